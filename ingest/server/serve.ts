@@ -1,0 +1,231 @@
+// Local server for the dashboard: the built app files and one database file, on 127.0.0.1 only.
+// Implements HEAD and single byte ranges itself (duckdb-wasm reads the database with range
+// requests; see STACK.md). Anything not served answers 404, other methods 405.
+import { createReadStream } from 'node:fs';
+import { realpath, stat } from 'node:fs/promises';
+import http from 'node:http';
+import path from 'node:path';
+import { pipeline } from 'node:stream/promises';
+import { parseRange } from './range.ts';
+import { requestSegments, resolveInside } from './safe-path.ts';
+
+/** The one URL path under which the database file is served. */
+export const DATABASE_URL_PATH = '/data/cohort.duckdb';
+
+export interface RequestLogEntry {
+  method: string;
+  path: string;
+  status: number;
+  /** Bytes of body sent (0 for HEAD and errors). */
+  bytes: number;
+  /** The Range header as received, if any. */
+  range?: string;
+}
+
+export interface DashboardServerOptions {
+  /** Database file to serve read-only at DATABASE_URL_PATH. */
+  dbPath: string;
+  /** Folder of the built app (holds index.html). */
+  appDir: string;
+  /** TCP port; 0 or absent picks a free one. */
+  port?: number;
+  /** Called once per answered request. */
+  onRequest?: (entry: RequestLogEntry) => void;
+}
+
+export interface DashboardServer {
+  /** Base address, e.g. http://127.0.0.1:41234/ */
+  url: string;
+  close(): Promise<void>;
+}
+
+export class DashboardServerError extends Error {
+  constructor(
+    message: string,
+    readonly field: string,
+    readonly value: string,
+  ) {
+    super(message);
+    this.name = 'DashboardServerError';
+  }
+}
+
+const CONTENT_TYPES: Record<string, string> = {
+  '.html': 'text/html; charset=utf-8',
+  '.js': 'text/javascript; charset=utf-8',
+  '.mjs': 'text/javascript; charset=utf-8',
+  '.css': 'text/css; charset=utf-8',
+  '.wasm': 'application/wasm',
+  '.json': 'application/json; charset=utf-8',
+  '.map': 'application/json; charset=utf-8',
+  '.svg': 'image/svg+xml',
+  '.png': 'image/png',
+  '.ico': 'image/x-icon',
+  '.txt': 'text/plain; charset=utf-8',
+  '.duckdb': 'application/octet-stream',
+};
+
+function contentType(file: string): string {
+  return CONTENT_TYPES[path.extname(file).toLowerCase()] ?? 'application/octet-stream';
+}
+
+// No CORS headers at all: only the app's own origin may read these files.
+const SECURITY_HEADERS: Record<string, string> = {
+  'Content-Security-Policy':
+    "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; worker-src 'self' blob:; " +
+    "connect-src 'self'; img-src 'self' data: blob:; style-src 'self' 'unsafe-inline'; " +
+    "object-src 'none'; base-uri 'none'; form-action 'none'; frame-ancestors 'none'",
+  'X-Content-Type-Options': 'nosniff',
+  'Referrer-Policy': 'no-referrer',
+  'X-Frame-Options': 'DENY',
+  'Cross-Origin-Opener-Policy': 'same-origin',
+  'Cross-Origin-Resource-Policy': 'same-origin',
+  'Cache-Control': 'no-cache',
+};
+
+async function requireFile(p: string, field: string): Promise<string> {
+  try {
+    const real = await realpath(p);
+    if (!(await stat(real)).isFile()) throw new Error('not a file');
+    return real;
+  } catch {
+    throw new DashboardServerError(`${field} is not a readable file: ${p}`, field, p);
+  }
+}
+
+async function requireDir(p: string, field: string): Promise<string> {
+  try {
+    const real = await realpath(p);
+    if (!(await stat(real)).isDirectory()) throw new Error('not a folder');
+    return real;
+  } catch {
+    throw new DashboardServerError(`${field} is not a folder: ${p}`, field, p);
+  }
+}
+
+/** Start the server; resolves once it listens on 127.0.0.1. */
+export async function startDashboardServer(options: DashboardServerOptions): Promise<DashboardServer> {
+  const dbFile = await requireFile(options.dbPath, 'dbPath');
+  const appRoot = await requireDir(options.appDir, 'appDir');
+  await requireFile(path.join(appRoot, 'index.html'), 'appDir/index.html');
+  const port = options.port ?? 0;
+  if (!Number.isInteger(port) || port < 0 || port > 65535) {
+    throw new DashboardServerError(`port must be an integer 0–65535, got ${port}`, 'port', String(port));
+  }
+  let allowedHosts: Set<string> = new Set();
+
+  const server = http.createServer((req, res) => {
+    handle(req, res).catch(() => {
+      if (!res.headersSent) send(res, req, 500, 'internal error');
+      else res.destroy();
+    });
+  });
+
+  function log(req: http.IncomingMessage, status: number, bytes: number): void {
+    options.onRequest?.({
+      method: req.method ?? '',
+      path: req.url ?? '',
+      status,
+      bytes,
+      ...(req.headers.range !== undefined ? { range: req.headers.range } : {}),
+    });
+  }
+
+  function send(
+    res: http.ServerResponse,
+    req: http.IncomingMessage,
+    status: number,
+    text: string,
+    extra: Record<string, string> = {},
+  ): void {
+    const body = Buffer.from(text + '\n');
+    res.writeHead(status, {
+      ...SECURITY_HEADERS,
+      'Content-Type': 'text/plain; charset=utf-8',
+      'Content-Length': String(body.length),
+      ...extra,
+    });
+    res.end(req.method === 'HEAD' ? undefined : body);
+    log(req, status, 0);
+  }
+
+  async function handle(req: http.IncomingMessage, res: http.ServerResponse): Promise<void> {
+    const method = req.method ?? '';
+    if (method !== 'GET' && method !== 'HEAD') {
+      send(res, req, 405, 'method not allowed', { Allow: 'GET, HEAD' });
+      return;
+    }
+    // Refuse other Host names, so a page elsewhere cannot reach this server by DNS rebinding.
+    if (!allowedHosts.has(req.headers.host ?? '')) {
+      send(res, req, 403, 'forbidden host');
+      return;
+    }
+    const raw = req.url ?? '';
+    const pathOnly = raw.split('?')[0];
+    let target: { file: string; size: number } | null = null;
+    if (pathOnly === DATABASE_URL_PATH) {
+      const info = await stat(dbFile).catch(() => null);
+      target = info?.isFile() ? { file: dbFile, size: info.size } : null;
+    } else {
+      const segments = requestSegments(pathOnly);
+      if (segments !== null && segments[0] !== 'data') {
+        target = await resolveInside(appRoot, segments.length === 0 ? ['index.html'] : segments);
+      }
+    }
+    if (target === null) {
+      send(res, req, 404, 'not found');
+      return;
+    }
+    await sendFile(req, res, target.file, target.size);
+  }
+
+  async function sendFile(
+    req: http.IncomingMessage,
+    res: http.ServerResponse,
+    file: string,
+    size: number,
+  ): Promise<void> {
+    const headers = { ...SECURITY_HEADERS, 'Content-Type': contentType(file), 'Accept-Ranges': 'bytes' };
+    const range = parseRange(req.headers.range, size);
+    if (range.kind === 'unsatisfiable') {
+      send(res, req, 416, range.reason, { 'Content-Range': `bytes */${size}` });
+      return;
+    }
+    const start = range.kind === 'single' ? range.range.start : 0;
+    const end = range.kind === 'single' ? range.range.end : size - 1;
+    const length = end - start + 1;
+    const status = range.kind === 'single' ? 206 : 200;
+    res.writeHead(status, {
+      ...headers,
+      'Content-Length': String(length),
+      ...(status === 206 ? { 'Content-Range': `bytes ${start}-${end}/${size}` } : {}),
+    });
+    if (req.method === 'HEAD' || length === 0) {
+      res.end();
+      log(req, status, 0);
+      return;
+    }
+    await pipeline(createReadStream(file, { start, end }), res);
+    log(req, status, length);
+  }
+
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', reject);
+    server.listen(port, '127.0.0.1', () => {
+      server.off('error', reject);
+      resolve();
+    });
+  });
+  const address = server.address();
+  if (address === null || typeof address === 'string') throw new Error('server has no TCP address');
+  allowedHosts = new Set([`127.0.0.1:${address.port}`, `localhost:${address.port}`]);
+
+  return {
+    url: `http://127.0.0.1:${address.port}/`,
+    close: () =>
+      new Promise<void>((resolve, reject) => {
+        server.close((err) => (err ? reject(err) : resolve()));
+        server.closeAllConnections();
+      }),
+  };
+}
