@@ -1,0 +1,93 @@
+import FFT from 'fft.js';
+
+/**
+ * Squared magnitudes |X_k|² (k = 0 … ⌊n/2⌋) of the discrete Fourier transform of a real
+ * sequence of any length n. Power-of-two lengths use fft.js's real transform directly; other
+ * lengths (a 4-s segment at 250 Hz is 1000 samples) use Bluestein's chirp-z algorithm
+ * (Bluestein 1970) on power-of-two fft.js transforms, so bins stay at exactly k·fs/n.
+ * Instances own their buffers: create one per segment length and reuse it.
+ */
+export class RealFftPower {
+  readonly n: number;
+  readonly nOut: number;
+  private readonly direct: boolean;
+  private readonly fft: FFT;
+  private readonly spectrum: number[];
+  // Bluestein only: chirp w_m = exp(−iπm²/n), the transformed conjugate chirp, and work buffers.
+  private readonly chirpRe: Float64Array;
+  private readonly chirpIm: Float64Array;
+  private readonly chirpFft: number[];
+  private readonly work: number[];
+
+  constructor(n: number) {
+    if (!Number.isInteger(n) || n < 2) throw new Error(`invalid FFT length: ${n}`);
+    this.n = n;
+    this.nOut = Math.floor(n / 2) + 1;
+    this.direct = (n & (n - 1)) === 0;
+    const m = this.direct ? n : nextPowerOfTwo(2 * n - 1);
+    this.fft = new FFT(m);
+    this.spectrum = this.fft.createComplexArray();
+    this.work = this.fft.createComplexArray();
+    this.chirpRe = new Float64Array(this.direct ? 0 : n);
+    this.chirpIm = new Float64Array(this.direct ? 0 : n);
+    this.chirpFft = this.direct ? [] : this.fft.createComplexArray();
+    if (!this.direct) this.prepareChirp(m);
+  }
+
+  private prepareChirp(m: number): void {
+    const n = this.n;
+    for (let k = 0; k < n; k++) {
+      // w_k = exp(−iπk²/n); k² mod 2n keeps the angle small and exact for large k
+      const angle = (Math.PI * ((k * k) % (2 * n))) / n;
+      this.chirpRe[k] = Math.cos(angle);
+      this.chirpIm[k] = -Math.sin(angle);
+    }
+    // b_m = conj(w_m) for m = −(n−1) … n−1, laid out circularly over length m
+    const b = this.work;
+    b.fill(0);
+    for (let k = 0; k < n; k++) {
+      b[2 * k] = this.chirpRe[k];
+      b[2 * k + 1] = -this.chirpIm[k];
+      if (k > 0) {
+        b[2 * (m - k)] = this.chirpRe[k];
+        b[2 * (m - k) + 1] = -this.chirpIm[k];
+      }
+    }
+    this.fft.transform(this.chirpFft, b);
+  }
+
+  /** Writes |X_k|² for k = 0 … ⌊n/2⌋ of x[0 … n−1] into out. */
+  power(x: ArrayLike<number>, out: Float64Array): void {
+    if (this.direct) {
+      this.fft.realTransform(this.spectrum, x);
+      const s = this.spectrum;
+      for (let k = 0; k < this.nOut; k++) out[k] = s[2 * k] * s[2 * k] + s[2 * k + 1] * s[2 * k + 1];
+      return;
+    }
+    // Bluestein: X_k = w_k · Σ_j (x_j w_j) · conj(w_{k−j}); |w_k| = 1, so |X_k|² = |conv_k|²
+    const a = this.work;
+    const n = this.n;
+    a.fill(0);
+    for (let j = 0; j < n; j++) {
+      a[2 * j] = x[j] * this.chirpRe[j];
+      a[2 * j + 1] = x[j] * this.chirpIm[j];
+    }
+    const s = this.spectrum;
+    this.fft.transform(s, a);
+    const b = this.chirpFft;
+    for (let i = 0; i < s.length; i += 2) {
+      const re = s[i] * b[i] - s[i + 1] * b[i + 1];
+      const im = s[i] * b[i + 1] + s[i + 1] * b[i];
+      s[i] = re;
+      s[i + 1] = im;
+    }
+    this.fft.inverseTransform(a, s);
+    for (let k = 0; k < this.nOut; k++) out[k] = a[2 * k] * a[2 * k] + a[2 * k + 1] * a[2 * k + 1];
+  }
+}
+
+function nextPowerOfTwo(v: number): number {
+  let p = 1;
+  while (p < v) p *= 2;
+  return p;
+}
