@@ -1,0 +1,386 @@
+// Streaming EDF/EDF+ reader (Kemp et al. 1992; Kemp & Olivan 2003). Opens a file, parses and
+// validates its header, makes one pass over the annotation signal only (positioned reads of
+// those bytes), and then hands out whole epochs of physical samples, reading the data records
+// in chunks through one FileHandle so memory stays bounded whatever the file size.
+import { open, type FileHandle } from 'node:fs/promises';
+import { endianness } from 'node:os';
+import { EdfFormatError, EdfIoError, isEdfError, showValue } from './errors.ts';
+import { parseEdfHeader, recordBytes, FIXED_HEADER_BYTES, BYTES_PER_SIGNAL_HEADER, type EdfHeader, type EdfSignal } from './header.ts';
+import { parseTals, type EdfAnnotation } from './tal.ts';
+
+export type { EdfAnnotation } from './tal.ts';
+export type { EdfHeader, EdfSignal } from './header.ts';
+
+/** Time differences below this are not gaps or overlaps: 100 µs, the annotation time resolution of EDFlib (common practice). */
+export const ONSET_TOLERANCE_S = 1e-4;
+const DEFAULT_CHUNK_BYTES = 4 * 1024 * 1024;
+/** Records whose annotation bytes are fetched by one batch of positioned reads. */
+const ANNOTATION_BATCH_RECORDS = 512;
+
+export interface EdfGap {
+  /** 0-based index of the record after which the gap starts. */
+  afterRecord: number;
+  /** Seconds from the file start: end of record `afterRecord` … onset of the next record. */
+  startS: number;
+  endS: number;
+}
+
+export interface EpochBlock {
+  /** Index on the grid t = epoch·epochS counted from the first record's onset. */
+  epoch: number;
+  /** Epoch start in seconds from the file's start date/time. */
+  onsetS: number;
+  /**
+   * Physical samples (units of each signal's physical dimension), one Float32Array per
+   * requested signal, fsHz·epochS long. The SAME arrays are refilled for the next epoch:
+   * copy them if you keep them past the next iteration. null when dropReason is set.
+   */
+  data: Float32Array[] | null;
+  /** 'gap': the epoch touches an EDF+D gap (never joined); 'end': the last, partial epoch. */
+  dropReason: null | 'gap' | 'end';
+}
+
+export interface ReadEpochsOptions {
+  /** Indices into header.signals (ordinary signals only). */
+  signals: number[];
+  /** Epoch length in seconds; epochS·fsHz must be a whole number for every requested signal. */
+  epochS: number;
+  /** Bytes of data records read per positioned read (default 4 MiB, at least one record). */
+  chunkBytes?: number;
+}
+
+export interface EdfFile {
+  /** The path as given to openEdf. */
+  file: string;
+  header: EdfHeader;
+  /** All TALs except the time-keeping ones, in file order; empty texts are dropped. */
+  annotations: EdfAnnotation[];
+  /** Onset of every data record in seconds from the file start. */
+  recordOnsetsS: Float64Array;
+  gaps: EdfGap[];
+  /** From the first record's onset to the end of the last record, gaps included (s). */
+  durationS: number;
+  readEpochs(opts: ReadEpochsOptions): AsyncGenerator<EpochBlock>;
+  close(): Promise<void>;
+}
+
+/** Reads exactly `length` bytes at `position` into `target` (offset 0), or reports how many came. */
+async function readFully(fh: FileHandle, file: string, target: Uint8Array, length: number, position: number): Promise<number> {
+  let done = 0;
+  while (done < length) {
+    let n: number;
+    try {
+      ({ bytesRead: n } = await fh.read(target, done, length - done, position + done));
+    } catch (cause) {
+      throw new EdfIoError(file, 'read', cause);
+    }
+    if (n === 0) break;
+    done += n;
+  }
+  return done;
+}
+
+/** Wraps anything unexpected so no raw exception leaves the reader. */
+function wrapUnexpected(file: string, e: unknown): Error {
+  if (isEdfError(e)) return e;
+  if (typeof e === 'object' && e !== null && 'code' in e) return new EdfIoError(file, 'read', e);
+  return new EdfFormatError(file, 'file', String(e), `unexpected failure while reading: ${e instanceof Error ? e.message : String(e)}`, {}, { cause: e });
+}
+
+interface AnnotationPass {
+  annotations: EdfAnnotation[];
+  /** Onset of each record from its time-keeping TAL, or null when the file has none. */
+  timeKeeping: Float64Array | null;
+}
+
+/** One pass over the annotation signal(s): positioned reads of just their bytes, batch by batch. */
+async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHeader): Promise<AnnotationPass> {
+  const annSignals = header.signals.filter((s) => s.isAnnotation);
+  const annotations: EdfAnnotation[] = [];
+  if (annSignals.length === 0 || header.nRecords === 0) return { annotations, timeKeeping: null };
+  const recB = recordBytes(header.signals);
+  const byteOffset: number[] = []; // byte offset of each signal inside a record (EDF 1992 §2.2)
+  let acc = 0;
+  for (const s of header.signals) {
+    byteOffset.push(acc);
+    acc += 2 * s.samplesPerRecord;
+  }
+  const isPlus = header.variant !== 'EDF';
+  const timeKeeping = new Float64Array(header.nRecords);
+  const first = annSignals[0];
+  for (let r0 = 0; r0 < header.nRecords; r0 += ANNOTATION_BATCH_RECORDS) {
+    const r1 = Math.min(header.nRecords, r0 + ANNOTATION_BATCH_RECORDS);
+    for (const sig of annSignals) {
+      const width = 2 * sig.samplesPerRecord;
+      const buf = new Uint8Array((r1 - r0) * width);
+      const reads: Promise<number>[] = [];
+      for (let r = r0; r < r1; r++) {
+        const pos = header.headerBytes + r * recB + byteOffset[sig.index];
+        reads.push(readFully(fh, file, buf.subarray((r - r0) * width), width, pos));
+      }
+      const got = await Promise.all(reads);
+      for (let r = r0; r < r1; r++) {
+        if (got[r - r0] < width) {
+          throw new EdfFormatError(file, 'file', String(got[r - r0]), `file was truncated while reading: record ${r + 1} gave ${got[r - r0]} of ${width} annotation bytes`, { record: r });
+        }
+        const tals = parseTals(buf.subarray((r - r0) * width, (r - r0 + 1) * width), file, r, { index: sig.index, label: sig.label });
+        let firstTal = 0;
+        if (sig === first) {
+          // EDF+ 2003 §2.2.4: the first TAL of each record in the first annotation signal is the
+          // time-keeping one: empty first text, onset = the record's start.
+          const tk = tals[0];
+          const isTimeKeeping = tk !== undefined && tk.texts.length > 0 && tk.texts[0] === '';
+          if (isTimeKeeping) {
+            timeKeeping[r] = tk.onsetS;
+            tals[0] = { onsetS: tk.onsetS, durationS: tk.durationS, texts: tk.texts.slice(1) };
+          } else if (isPlus) {
+            const seen = tk === undefined ? 'no annotation list' : `a list with text "${showValue(tk.texts[0] ?? '')}"`;
+            throw new EdfFormatError(file, 'annotations', tk === undefined ? '' : String(tk.onsetS), `${header.variant} record starts with ${seen} instead of a time-keeping TAL (onset, then an empty text)`, { record: r, signal: { index: sig.index, label: sig.label } });
+          } else {
+            timeKeeping[r] = r * header.recordDurationS;
+          }
+          if (tals[0] && tals[0].texts.length === 0) firstTal = 1;
+        }
+        for (let t = firstTal; t < tals.length; t++) {
+          const texts = tals[t].texts.filter((x) => x !== '');
+          if (texts.length > 0) annotations.push({ onsetS: tals[t].onsetS, durationS: tals[t].durationS, texts });
+        }
+      }
+    }
+  }
+  return { annotations, timeKeeping: isPlus ? timeKeeping : null };
+}
+
+/** Record onsets and gaps: k·duration for EDF, checked for EDF+C, from the time-keeping TALs for EDF+D. */
+function recordTiming(file: string, header: EdfHeader, timeKeeping: Float64Array | null): { onsets: Float64Array; gaps: EdfGap[] } {
+  const n = header.nRecords;
+  const d = header.recordDurationS;
+  const onsets = new Float64Array(n);
+  const gaps: EdfGap[] = [];
+  if (header.variant !== 'EDF+D') {
+    const t0 = timeKeeping ? timeKeeping[0] : 0;
+    for (let k = 0; k < n; k++) {
+      onsets[k] = t0 + k * d;
+      // EDF+ 2003 §2.1.3.1: in EDF+C every record starts where the previous one ended.
+      if (timeKeeping && Math.abs(timeKeeping[k] - onsets[k]) > ONSET_TOLERANCE_S) {
+        throw new EdfFormatError(file, 'annotations', String(timeKeeping[k]), `time-keeping onset ${timeKeeping[k]} s breaks the contiguity of an EDF+C file (expected ${onsets[k]} s)`, { record: k });
+      }
+    }
+    return { onsets, gaps };
+  }
+  // EDF+D (EDF+ 2003 §2.1.3.1, §2.2.4): onsets from the time-keeping TALs, increasing, records may not overlap.
+  const tk = timeKeeping as Float64Array;
+  for (let k = 0; k < n; k++) {
+    onsets[k] = tk[k];
+    if (k === 0) continue;
+    const prevEnd = tk[k - 1] + d;
+    if (tk[k] < prevEnd - ONSET_TOLERANCE_S) {
+      throw new EdfFormatError(file, 'annotations', String(tk[k]), `time-keeping onset ${tk[k]} s is before the end of the previous record (${prevEnd} s): records overlap`, { record: k });
+    }
+    if (tk[k] > prevEnd + ONSET_TOLERANCE_S) gaps.push({ afterRecord: k - 1, startS: prevEnd, endS: tk[k] });
+  }
+  return { onsets, gaps };
+}
+
+/** Opens an EDF/EDF+ file. Throws EdfFormatError or EdfIoError, nothing else. */
+export async function openEdf(path: string): Promise<EdfFile> {
+  if (endianness() !== 'LE') throw new EdfIoError(path, 'decode', new Error('this reader decodes int16 with the host byte order and needs a little-endian host'));
+  let fh: FileHandle;
+  try {
+    fh = await open(path, 'r');
+  } catch (cause) {
+    throw new EdfIoError(path, 'open', cause);
+  }
+  try {
+    let size: number;
+    try {
+      size = (await fh.stat()).size;
+    } catch (cause) {
+      throw new EdfIoError(path, 'stat', cause);
+    }
+    const fixed = new Uint8Array(Math.min(size, FIXED_HEADER_BYTES));
+    await readFully(fh, path, fixed, fixed.length, 0);
+    let headerBuf = fixed;
+    // EDF 1992 §2.1: the signal count (bytes 252..255) gives the full header length 256 + 256·ns.
+    const ns = fixed.length === FIXED_HEADER_BYTES ? Number(String.fromCharCode(...fixed.subarray(252, 256)).trim()) : NaN;
+    if (Number.isInteger(ns) && ns > 0) {
+      const want = Math.min(size, FIXED_HEADER_BYTES + BYTES_PER_SIGNAL_HEADER * ns);
+      headerBuf = new Uint8Array(want);
+      await readFully(fh, path, headerBuf, want, 0);
+    }
+    const header = parseEdfHeader(headerBuf, path, size);
+    const { annotations, timeKeeping } = await readAnnotationSignals(fh, path, header);
+    const { onsets, gaps } = recordTiming(path, header, timeKeeping);
+    const n = header.nRecords;
+    const durationS = n === 0 ? 0 : onsets[n - 1] + header.recordDurationS - onsets[0];
+    const handle = fh;
+    let closed = false;
+    return {
+      file: path,
+      header,
+      annotations,
+      recordOnsetsS: onsets,
+      gaps,
+      durationS,
+      readEpochs: (opts) => guarded(path, readEpochs(handle, path, header, onsets, gaps, opts)),
+      async close() {
+        if (closed) return;
+        closed = true;
+        try {
+          await handle.close();
+        } catch (cause) {
+          throw new EdfIoError(path, 'close', cause);
+        }
+      },
+    };
+  } catch (e) {
+    await fh.close().catch(() => undefined);
+    throw wrapUnexpected(path, e);
+  }
+}
+
+/** Passes the blocks through and turns any stray exception into a typed one. */
+async function* guarded(file: string, inner: AsyncGenerator<EpochBlock>): AsyncGenerator<EpochBlock> {
+  try {
+    yield* inner;
+  } catch (e) {
+    throw wrapUnexpected(file, e);
+  }
+}
+
+interface Segment {
+  firstRecord: number;
+  nRecords: number;
+  startS: number;
+}
+
+/** Runs of contiguous records between gaps. */
+function segmentsOf(onsets: Float64Array, gaps: EdfGap[]): Segment[] {
+  const segs: Segment[] = [];
+  let first = 0;
+  for (const g of gaps) {
+    segs.push({ firstRecord: first, nRecords: g.afterRecord + 1 - first, startS: onsets[first] });
+    first = g.afterRecord + 1;
+  }
+  segs.push({ firstRecord: first, nRecords: onsets.length - first, startS: onsets[first] });
+  return segs;
+}
+
+function checkEpochOptions(file: string, header: EdfHeader, opts: ReadEpochsOptions): { chosen: EdfSignal[]; perEpoch: number[] } {
+  const { signals, epochS } = opts;
+  if (!Number.isFinite(epochS) || epochS <= 0) throw new EdfFormatError(file, 'epoch length', String(epochS), `epoch length ${epochS} s is not a positive number`);
+  if (!Array.isArray(signals) || signals.length === 0) throw new EdfFormatError(file, 'signals', String(signals), 'no signals requested');
+  const chosen: EdfSignal[] = [];
+  const perEpoch: number[] = [];
+  for (const i of signals) {
+    const s = header.signals[i];
+    if (!Number.isInteger(i) || s === undefined) throw new EdfFormatError(file, 'signals', String(i), `signal index ${i} does not exist (file has ${header.signals.length} signals)`);
+    const place = { signal: { index: s.index, label: s.label } };
+    if (s.isAnnotation) throw new EdfFormatError(file, 'signals', String(i), `signal index ${i} is an annotation signal, not samples`, place);
+    const n = s.fsHz * epochS;
+    const whole = Math.round(n);
+    if (whole < 1 || Math.abs(n - whole) > 1e-9 * Math.max(1, n)) {
+      throw new EdfFormatError(file, 'epoch length', String(epochS), `epoch length ${epochS} s at ${s.fsHz} Hz gives ${n} samples, not a whole number`, place);
+    }
+    chosen.push(s);
+    perEpoch.push(whole);
+  }
+  const chunkBytes = opts.chunkBytes ?? DEFAULT_CHUNK_BYTES;
+  if (!Number.isFinite(chunkBytes) || chunkBytes <= 0) throw new EdfFormatError(file, 'chunk bytes', String(chunkBytes), `chunk size ${chunkBytes} bytes is not positive`);
+  return { chosen, perEpoch };
+}
+
+async function* readEpochs(
+  fh: FileHandle,
+  file: string,
+  header: EdfHeader,
+  onsets: Float64Array,
+  gaps: EdfGap[],
+  opts: ReadEpochsOptions,
+): AsyncGenerator<EpochBlock> {
+  const { chosen, perEpoch } = checkEpochOptions(file, header, opts);
+  const nRec = header.nRecords;
+  if (nRec === 0) return;
+  const d = header.recordDurationS;
+  const epochS = opts.epochS;
+  const recB = recordBytes(header.signals);
+  const recWords = recB / 2;
+  const wordOffset: number[] = []; // int16 offset of each signal inside a record (EDF 1992 §2.2)
+  let acc = 0;
+  for (const s of header.signals) {
+    wordOffset.push(acc);
+    acc += s.samplesPerRecord;
+  }
+  const chunkRecords = Math.max(1, Math.floor((opts.chunkBytes ?? DEFAULT_CHUNK_BYTES) / recB));
+  const chunkBuf = new ArrayBuffer(chunkRecords * recB); // own buffer: byteOffset 0, so the Int16Array view is aligned
+  const chunkU8 = new Uint8Array(chunkBuf);
+  const chunkI16 = new Int16Array(chunkBuf);
+  let chunkStart = -1;
+  let chunkCount = 0;
+  const ensure = async (r: number): Promise<void> => {
+    if (r >= chunkStart && r < chunkStart + chunkCount) return;
+    const count = Math.min(chunkRecords, nRec - r);
+    const want = count * recB;
+    const got = await readFully(fh, file, chunkU8, want, header.headerBytes + r * recB);
+    if (got < want) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r + 1}`, { record: r });
+    chunkStart = r;
+    chunkCount = count;
+  };
+
+  const out = perEpoch.map((n) => new Float32Array(n));
+  const scale = chosen.map((s) => (s.physicalMax - s.physicalMin) / (s.digitalMax - s.digitalMin));
+  const startSample = new Array<number>(chosen.length).fill(0);
+  const segs = segmentsOf(onsets, gaps);
+  const segEnd = (g: Segment) => g.startS + g.nRecords * d;
+  const t0 = onsets[0];
+  const last = segs[segs.length - 1];
+  const endS = segEnd(last);
+  let seg = 0;
+  for (let e = 0; ; e++) {
+    const a = t0 + e * epochS;
+    const b = a + epochS;
+    if (a >= endS - ONSET_TOLERANCE_S) return;
+    while (seg < segs.length - 1 && segEnd(segs[seg]) <= a + ONSET_TOLERANCE_S) seg++;
+    const sg = segs[seg];
+    if (a < sg.startS - ONSET_TOLERANCE_S || b > segEnd(sg) + ONSET_TOLERANCE_S) {
+      if (sg === last && b > endS + ONSET_TOLERANCE_S && a >= sg.startS - ONSET_TOLERANCE_S) {
+        yield { epoch: e, onsetS: a, data: null, dropReason: 'end' };
+        return;
+      }
+      yield { epoch: e, onsetS: a, data: null, dropReason: 'gap' };
+      continue;
+    }
+    // Sample range of each signal inside the segment; an EDF+D segment onset off the epoch grid is snapped to the nearest sample.
+    let rFirst = Infinity;
+    let rLast = -Infinity;
+    for (let k = 0; k < chosen.length; k++) {
+      const spr = chosen[k].samplesPerRecord;
+      const s0 = Math.min(Math.max(0, Math.round((a - sg.startS) * chosen[k].fsHz)), sg.nRecords * spr - perEpoch[k]);
+      startSample[k] = s0;
+      rFirst = Math.min(rFirst, Math.floor(s0 / spr));
+      rLast = Math.max(rLast, Math.floor((s0 + perEpoch[k] - 1) / spr));
+    }
+    // Records outer, signals inner: every record is fetched once, in file order.
+    for (let rr = rFirst; rr <= rLast; rr++) {
+      const r = sg.firstRecord + rr;
+      await ensure(r);
+      const recBase = (r - chunkStart) * recWords;
+      for (let k = 0; k < chosen.length; k++) {
+        const sig = chosen[k];
+        const spr = sig.samplesPerRecord;
+        const from = Math.max(startSample[k], rr * spr);
+        const to = Math.min(startSample[k] + perEpoch[k], (rr + 1) * spr);
+        if (from >= to) continue;
+        const src = recBase + wordOffset[sig.index] + (from - rr * spr);
+        const dst = out[k];
+        const o = from - startSample[k];
+        const pmin = sig.physicalMin;
+        const dmin = sig.digitalMin;
+        const g = scale[k];
+        // EDF 1992 §2.2 scaling: phys = pmin + (dig − dmin)·(pmax − pmin)/(dmax − dmin).
+        for (let i = 0; i < to - from; i++) dst[o + i] = pmin + (chunkI16[src + i] - dmin) * g;
+      }
+    }
+    yield { epoch: e, onsetS: a, data: out, dropReason: null };
+  }
+}
