@@ -1,0 +1,74 @@
+/**
+ * Opening (and creating) the DuckDB database file.
+ *
+ * The file is created with an explicit storage compatibility of v1.4.0 so that duckdb-wasm 1.32
+ * (DuckDB 1.4.3, reads storage versions 64–67) can ATTACH it in the browser; node-api 1.5.6
+ * would otherwise write whatever "latest" is asked for, which duckdb-wasm refuses.
+ * DuckDB docs, "Storage Versions and Format": the setting names the oldest DuckDB that can
+ * read the file; `duckdb_databases().tags` reports it, and the file header holds the storage
+ * version number as a little-endian uint64 after 8 checksum bytes and the magic "DUCK".
+ */
+import { closeSync, existsSync, openSync, readSync } from 'node:fs';
+import { DuckDBInstance } from '@duckdb/node-api';
+import { StoreError } from './errors.ts';
+import { schemaSql } from './schema.ts';
+import { Store } from './writer.ts';
+
+/** Storage compatibility pinned at creation (the oldest DuckDB that must read the file). */
+export const STORAGE_COMPATIBILITY = 'v1.4.0';
+
+/** Highest header storage number duckdb-wasm 1.32 reads (its error message: "between 64 and 67"). */
+export const MAX_READABLE_STORAGE_NUMBER = 67;
+
+export interface OpenOptions {
+  /** Create the file if it does not exist (default false: it must exist). */
+  create?: boolean;
+  /** Open read-only (for queries; the writer methods then fail). */
+  readOnly?: boolean;
+}
+
+/** Open a store at path. An existing file keeps its data; the schema is created where missing. */
+export async function openStore(path: string, options: OpenOptions = {}): Promise<Store> {
+  const exists = existsSync(path);
+  if (!exists && !options.create) throw new StoreError(`database file not found: ${path}`);
+  if (exists) {
+    const number = readHeaderStorageNumber(path);
+    if (number > MAX_READABLE_STORAGE_NUMBER) {
+      throw new StoreError(
+        `${path} has storage version number ${number}; the browser dashboard reads at most ${MAX_READABLE_STORAGE_NUMBER} (v1.4.x)`,
+      );
+    }
+  }
+  const instance = await DuckDBInstance.create(path, {
+    storage_compatibility_version: STORAGE_COMPATIBILITY,
+    access_mode: options.readOnly ? 'READ_ONLY' : 'READ_WRITE',
+    // No network at ingest: nothing is downloaded behind the user's back.
+    autoinstall_known_extensions: 'false',
+    autoload_known_extensions: 'false',
+  });
+  const connection = await instance.connect();
+  if (!options.readOnly) {
+    for (const sql of schemaSql()) await connection.run(sql);
+  }
+  return new Store(instance, connection, { readOnly: options.readOnly ?? false });
+}
+
+/**
+ * The storage version number in a DuckDB file header: bytes 8–11 are "DUCK", bytes 12–19 a
+ * little-endian uint64 (DuckDB docs, "Storage Versions and Format", section Storage Header).
+ * 64 = v0.10–v1.1, 65 = v1.2, 66 = v1.3 (docs table); 67 = v1.4 and 68 = v1.5 as written by
+ * node-api 1.5.6 here.
+ */
+export function readHeaderStorageNumber(path: string): number {
+  const header = Buffer.alloc(20);
+  const fd = openSync(path, 'r');
+  try {
+    const n = readSync(fd, header, 0, 20, 0);
+    if (n < 20 || header.subarray(8, 12).toString('latin1') !== 'DUCK') {
+      throw new StoreError(`${path} is not a DuckDB database file (no DUCK magic in its header)`);
+    }
+  } finally {
+    closeSync(fd);
+  }
+  return Number(header.readBigUInt64LE(12));
+}

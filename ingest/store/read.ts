@@ -1,0 +1,199 @@
+/**
+ * Named read queries the command line needs (bandwise compare, band-check, report).
+ * Spectra come back as one Float32Array matrix (row-major, rows × n_bins) with the row keys
+ * beside it, ready for src/core/stats.
+ */
+import type { DuckDBValue } from '@duckdb/node-api';
+import type { Averaging, Reference } from './bundle.ts';
+import { StoreError } from './errors.ts';
+import type { Store } from './writer.ts';
+import type { Stage } from '../../src/core/stages.ts';
+
+export interface RunInfo {
+  runId: string;
+  toolVersion: string;
+  parameters: unknown;
+  startedAt: Date;
+  finishedAt: Date | null;
+  shard: string | null;
+}
+
+export interface RecordingSummary {
+  recordingId: string;
+  subject: string;
+  session: string | null;
+  fileName: string;
+  fileSha256: string;
+  durationS: number;
+  status: string;
+}
+
+export interface SpectraQuery {
+  runId: string;
+  stage: Stage;
+  reference: Reference;
+  averaging: Averaging;
+  /** Only these channels (default: all). */
+  channels?: readonly string[];
+}
+
+/** Spectra of one (run, stage, reference, averaging), ordered by subject, session, channel. */
+export interface SpectraMatrix {
+  freqStartHz: number;
+  freqStepHz: number;
+  nBins: number;
+  recordingIds: string[];
+  subjects: string[];
+  sessions: (string | null)[];
+  channels: string[];
+  nEpochs: Int32Array;
+  /** 1 where the spectrum is flagged (see flagReasons). */
+  flagged: Uint8Array;
+  flagReasons: (string | null)[];
+  /** PSD in µV²/Hz, row r at [r·nBins, (r+1)·nBins). */
+  power: Float32Array;
+}
+
+export interface AperiodicInfo {
+  recordingId: string;
+  subject: string;
+  session: string | null;
+  channel: string;
+  method: string;
+  fitLoHz: number;
+  fitHiHz: number;
+  offset: number | null;
+  exponent: number | null;
+  knee: number | null;
+  r2: number | null;
+  rmse: number | null;
+}
+
+export interface ParticipantsTable {
+  columns: { name: string; type: 'DOUBLE' | 'VARCHAR' }[];
+  rows: (string | number | null)[][];
+}
+
+async function query(store: Store, sql: string, values: DuckDBValue[] = []): Promise<Record<string, unknown>[]> {
+  return store.exclusive(async () => (await store.connection.runAndReadAll(sql, values)).getRowObjectsJS());
+}
+
+const str = (v: unknown): string => String(v);
+const strOrNull = (v: unknown): string | null => (v === null || v === undefined ? null : String(v));
+const numOrNull = (v: unknown): number | null => (v === null || v === undefined ? null : Number(v));
+
+export async function listRuns(store: Store): Promise<RunInfo[]> {
+  const rows = await query(store, 'SELECT * FROM runs ORDER BY started_at, run_id');
+  return rows.map((r) => ({
+    runId: str(r.run_id),
+    toolVersion: str(r.tool_version),
+    parameters: JSON.parse(str(r.parameters)),
+    startedAt: r.started_at as Date,
+    finishedAt: (r.finished_at as Date | null) ?? null,
+    shard: strOrNull(r.shard),
+  }));
+}
+
+export async function listRecordings(store: Store, runId: string): Promise<RecordingSummary[]> {
+  const rows = await query(
+    store,
+    'SELECT * FROM recordings WHERE run_id = $1 ORDER BY subject, session NULLS FIRST, recording_id',
+    [runId],
+  );
+  return rows.map((r) => ({
+    recordingId: str(r.recording_id),
+    subject: str(r.subject),
+    session: strOrNull(r.session),
+    fileName: str(r.file_name),
+    fileSha256: str(r.file_sha256),
+    durationS: Number(r.duration_s),
+    status: str(r.status),
+  }));
+}
+
+export async function readSpectra(store: Store, q: SpectraQuery): Promise<SpectraMatrix> {
+  const rows = await query(
+    store,
+    `SELECT s.recording_id, r.subject, r.session, s.channel, s.n_epochs, s.flagged, s.flag_reason,
+            s.freq_start_hz, s.freq_step_hz, s.n_bins, s.power
+       FROM spectra s JOIN recordings r USING (recording_id)
+      WHERE r.run_id = $1 AND s.stage = $2 AND s.reference = $3 AND s.averaging = $4
+      ORDER BY r.subject, r.session NULLS FIRST, s.recording_id, s.channel`,
+    [q.runId, q.stage, q.reference, q.averaging],
+  );
+  const wanted = q.channels ? new Set(q.channels) : null;
+  const kept = wanted ? rows.filter((r) => wanted.has(str(r.channel))) : rows;
+  const first = kept[0];
+  const freqStartHz = first ? Number(first.freq_start_hz) : 0;
+  const freqStepHz = first ? Number(first.freq_step_hz) : 0;
+  const nBins = first ? Number(first.n_bins) : 0;
+  const power = new Float32Array(kept.length * nBins);
+  kept.forEach((r, i) => {
+    if (Number(r.freq_start_hz) !== freqStartHz || Number(r.freq_step_hz) !== freqStepHz || Number(r.n_bins) !== nBins) {
+      throw new StoreError(
+        `spectrum of recording ${str(r.recording_id)} channel ${str(r.channel)} has frequency axis ` +
+          `${Number(r.freq_start_hz)} + k·${Number(r.freq_step_hz)} Hz × ${Number(r.n_bins)}, the first has ${freqStartHz} + k·${freqStepHz} Hz × ${nBins}`,
+        { table: 'spectra' },
+      );
+    }
+    const values = r.power as number[];
+    for (let k = 0; k < nBins; k++) power[i * nBins + k] = values[k];
+  });
+  return {
+    freqStartHz,
+    freqStepHz,
+    nBins,
+    recordingIds: kept.map((r) => str(r.recording_id)),
+    subjects: kept.map((r) => str(r.subject)),
+    sessions: kept.map((r) => strOrNull(r.session)),
+    channels: kept.map((r) => str(r.channel)),
+    nEpochs: Int32Array.from(kept, (r) => Number(r.n_epochs)),
+    flagged: Uint8Array.from(kept, (r) => (r.flagged ? 1 : 0)),
+    flagReasons: kept.map((r) => strOrNull(r.flag_reason)),
+    power,
+  };
+}
+
+export async function readAperiodic(
+  store: Store,
+  q: Omit<SpectraQuery, 'channels'> & { method?: string },
+): Promise<AperiodicInfo[]> {
+  const rows = await query(
+    store,
+    `SELECT a.*, r.subject, r.session
+       FROM aperiodic a JOIN recordings r USING (recording_id)
+      WHERE r.run_id = $1 AND a.stage = $2 AND a.reference = $3 AND a.averaging = $4
+        AND ($5 IS NULL OR a.method = $5)
+      ORDER BY r.subject, r.session NULLS FIRST, a.recording_id, a.channel, a.method`,
+    [q.runId, q.stage, q.reference, q.averaging, q.method ?? null],
+  );
+  return rows.map((r) => ({
+    recordingId: str(r.recording_id),
+    subject: str(r.subject),
+    session: strOrNull(r.session),
+    channel: str(r.channel),
+    method: str(r.method),
+    fitLoHz: Number(r.fit_lo_hz),
+    fitHiHz: Number(r.fit_hi_hz),
+    offset: numOrNull(r.offset),
+    exponent: numOrNull(r.exponent),
+    knee: numOrNull(r.knee),
+    r2: numOrNull(r.r2),
+    rmse: numOrNull(r.rmse),
+  }));
+}
+
+/** The participants table with its column types; empty when no cohort table was written. */
+export async function readParticipants(store: Store): Promise<ParticipantsTable> {
+  const info = await query(
+    store,
+    "SELECT column_name, data_type FROM information_schema.columns WHERE table_name = 'participants' ORDER BY ordinal_position",
+  );
+  if (info.length === 0) return { columns: [], rows: [] };
+  const columns = info.map((c) => ({ name: str(c.column_name), type: str(c.data_type) === 'DOUBLE' ? ('DOUBLE' as const) : ('VARCHAR' as const) }));
+  const rows = await query(store, 'SELECT * FROM participants');
+  return {
+    columns,
+    rows: rows.map((r) => columns.map((c) => (r[c.name] === null ? null : c.type === 'DOUBLE' ? Number(r[c.name]) : String(r[c.name])))),
+  };
+}

@@ -1,0 +1,255 @@
+/**
+ * The database schema: every table of ../../shared/DESIGN.md ("The database") with exactly its
+ * names and columns, plus added columns (added freely, none renamed). The names are a public
+ * interface — Python, R and DuckDB users open the file directly.
+ *
+ * Tables are described as data (TableDef) so that the CREATE statements, the writer's column
+ * order and the documentation come from one place.
+ *
+ * No table has a column for the EDF "local patient identification" or "local recording
+ * identification" header fields: they often hold names and birth dates.
+ */
+
+/** SQL column types used by the store. FLOAT[] is a variable-length list of 32-bit floats. */
+export type SqlType = 'VARCHAR' | 'INTEGER' | 'DOUBLE' | 'FLOAT' | 'BOOLEAN' | 'FLOAT[]' | 'JSON' | 'TIMESTAMP';
+
+export interface ColumnDef {
+  name: string;
+  type: SqlType;
+  notNull?: boolean;
+  /** One line: meaning and unit. */
+  doc: string;
+}
+
+export interface TableDef {
+  name: string;
+  doc: string;
+  columns: readonly ColumnDef[];
+  primaryKey?: readonly string[];
+}
+
+const col = (name: string, type: SqlType, doc: string, notNull = false): ColumnDef => ({ name, type, doc, notNull });
+
+/** Keys shared by spectra, aperiodic and peaks: one spectrum per recording × channel × stage × reference × averaging. */
+const SPECTRUM_KEYS: readonly ColumnDef[] = [
+  col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
+  col('channel', 'VARCHAR', 'electrode name without type prefix (C3, M1) or bipolar pair (C3-P3)', true),
+  col('stage', 'VARCHAR', 'AASM stage label W, N1, N2, N3, R', true),
+  col('reference', 'VARCHAR', 'recorded, linked-mastoids, contralateral-mastoid, average or bipolar', true),
+  col('averaging', 'VARCHAR', 'mean or median (median bias-corrected) over the stage\'s clean epochs', true),
+];
+
+export const TABLES: readonly TableDef[] = [
+  {
+    name: 'runs',
+    doc: 'One ingest run: the tool version and every parameter. A run is identified by a hash of its parameters.',
+    primaryKey: ['run_id'],
+    columns: [
+      col('run_id', 'VARCHAR', 'first 16 hex digits of the SHA-256 of the parameters JSON with keys sorted', true),
+      col('tool_version', 'VARCHAR', 'bandwise version that wrote the run', true),
+      col('parameters', 'JSON', 'every ingest parameter, keys sorted', true),
+      col('started_at', 'TIMESTAMP', 'UTC time the run was first begun', true),
+      col('finished_at', 'TIMESTAMP', 'UTC time the run last finished; NULL while running or after an interrupt'),
+      col('shard', 'VARCHAR', '"K/N" when written by one shard of N, else NULL'),
+      col('parameters_sha256', 'VARCHAR', 'full SHA-256 (hex) of the parameters JSON with keys sorted', true),
+    ],
+  },
+  // participants is created dynamically from the cohort table's columns: see participantsCreateSql.
+  {
+    name: 'recordings',
+    doc: 'One row per ingested recording (EDF file) of a run. Never any EDF patient or recording identification text.',
+    primaryKey: ['recording_id'],
+    columns: [
+      col('recording_id', 'VARCHAR', 'first 16 hex digits of SHA-256 of run_id and file_sha256; unique across runs and shards', true),
+      col('subject', 'VARCHAR', 'subject label from the cohort table', true),
+      col('session', 'VARCHAR', 'session label from the cohort table, NULL if none'),
+      col('file_name', 'VARCHAR', 'EDF path as given in the cohort table (relative to it)', true),
+      col('file_sha256', 'VARCHAR', 'SHA-256 (hex) of the EDF file bytes', true),
+      col('duration_s', 'DOUBLE', 'recorded duration in s (sum of data records)', true),
+      col('run_id', 'VARCHAR', 'runs.run_id', true),
+      col('status', 'VARCHAR', 'ok, or a short word saying what was limited (e.g. partial-scoring)', true),
+      col('edf_variant', 'VARCHAR', 'EDF, EDF+C or EDF+D'),
+      col('scoring_source', 'VARCHAR', 'where the hypnogram came from: scoring file or edf-annotations'),
+      col('epoch_length_s', 'DOUBLE', 'scoring epoch length in s (usually 30)'),
+      col('n_channels', 'INTEGER', 'channels stored for this recording'),
+      col('n_epochs', 'INTEGER', 'scored epochs inside the recording'),
+      col('n_epochs_dropped', 'INTEGER', 'epochs dropped for crossing an EDF+D gap or the recording end'),
+      col('tst_min', 'DOUBLE', 'total sleep time in min (N1+N2+N3+R)'),
+      col('se_pct', 'DOUBLE', 'sleep efficiency in % (TST over time from first to last scored epoch)'),
+      col('sol_min', 'DOUBLE', 'sleep onset latency in min (start of scoring to first sleep epoch)'),
+      col('w_min', 'DOUBLE', 'minutes scored W'),
+      col('n1_min', 'DOUBLE', 'minutes scored N1'),
+      col('n2_min', 'DOUBLE', 'minutes scored N2'),
+      col('n3_min', 'DOUBLE', 'minutes scored N3'),
+      col('r_min', 'DOUBLE', 'minutes scored R'),
+      col('unscored_min', 'DOUBLE', 'minutes without a usable score'),
+      col('ingested_at', 'TIMESTAMP', 'UTC time the recording was committed', true),
+    ],
+  },
+  {
+    name: 'channels',
+    doc: 'Channels of a recording as stored (after channel selection).',
+    primaryKey: ['recording_id', 'channel'],
+    columns: [
+      col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
+      col('channel', 'VARCHAR', 'electrode name without type prefix (C3, M1)', true),
+      col('type', 'VARCHAR', 'signal type from the label prefix or default (EEG, EOG, EMG, ECG, …)', true),
+      col('unit', 'VARCHAR', 'physical dimension as recorded (uV, mV, …)'),
+      col('fs_hz', 'DOUBLE', 'sampling rate in Hz', true),
+      col('prefilter', 'VARCHAR', 'EDF prefiltering field'),
+      col('x', 'DOUBLE', 'electrode position x on the unit sphere (10-10 system), NULL if unknown'),
+      col('y', 'DOUBLE', 'electrode position y on the unit sphere, NULL if unknown'),
+      col('z', 'DOUBLE', 'electrode position z on the unit sphere, NULL if unknown'),
+      col('label', 'VARCHAR', 'signal label as in the EDF header'),
+      col('reference_electrode', 'VARCHAR', 'reference the channel was recorded against, if known from the label (e.g. M2)'),
+      col('physical_min', 'DOUBLE', 'EDF physical minimum, in unit'),
+      col('physical_max', 'DOUBLE', 'EDF physical maximum, in unit'),
+      col('digital_min', 'INTEGER', 'EDF digital minimum'),
+      col('digital_max', 'INTEGER', 'EDF digital maximum'),
+    ],
+  },
+  {
+    name: 'epochs',
+    doc: 'Scoring epochs of a recording.',
+    primaryKey: ['recording_id', 'epoch'],
+    columns: [
+      col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
+      col('epoch', 'INTEGER', 'epoch index from 0 in scoring order', true),
+      col('onset_s', 'DOUBLE', 'onset in s from the recording start', true),
+      col('stage', 'VARCHAR', 'AASM stage W, N1, N2, N3, R or unscored', true),
+      col('drop_reason', 'VARCHAR', 'why the epoch was dropped for all channels (gap, recording-end), NULL if kept'),
+    ],
+  },
+  {
+    name: 'epoch_rejections',
+    doc: 'Epochs rejected for one channel, each with its reason.',
+    columns: [
+      col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
+      col('channel', 'VARCHAR', 'channel name', true),
+      col('epoch', 'INTEGER', 'epochs.epoch', true),
+      col('reason', 'VARCHAR', 'rejection rule, e.g. peak-to-peak, flat, broadband-outlier, muscle-outlier', true),
+      col('value', 'DOUBLE', 'the value that broke the rule (unit depends on the rule), NULL if none'),
+    ],
+  },
+  {
+    name: 'spectra',
+    doc: 'Per-stage power spectral density (Welch 1967), µV²/Hz, frequencies freq_start_hz + i·freq_step_hz.',
+    primaryKey: ['recording_id', 'channel', 'stage', 'reference', 'averaging'],
+    columns: [
+      ...SPECTRUM_KEYS,
+      col('n_epochs', 'INTEGER', 'clean epochs averaged', true),
+      col('n_segments', 'INTEGER', 'Welch segments averaged', true),
+      col('freq_start_hz', 'DOUBLE', 'frequency of the first bin in Hz', true),
+      col('freq_step_hz', 'DOUBLE', 'bin spacing in Hz', true),
+      col('n_bins', 'INTEGER', 'number of bins (length of power)', true),
+      col('power', 'FLOAT[]', 'power spectral density per bin in µV²/Hz', true),
+      col('flagged', 'BOOLEAN', 'true when the spectrum should not be used as is (e.g. too few clean epochs)', true),
+      col('flag_reason', 'VARCHAR', 'plain reason for the flag, NULL if not flagged'),
+    ],
+  },
+  {
+    name: 'epoch_band_power',
+    doc: 'Band power per epoch and channel, for plotting the night over time with the hypnogram.',
+    columns: [
+      col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
+      col('channel', 'VARCHAR', 'channel name', true),
+      col('epoch', 'INTEGER', 'epochs.epoch', true),
+      col('band', 'VARCHAR', 'band id (its range and method are in runs.parameters)', true),
+      col('power', 'FLOAT', 'band power (µV² for an integral, µV²/Hz for a mean density; see runs.parameters)', true),
+      col('reference', 'VARCHAR', 'reference of the signal the power was computed on', true),
+    ],
+  },
+  {
+    name: 'aperiodic',
+    doc: 'Aperiodic fit per spectrum: log10 P(f) = offset − log10(knee + f^exponent).',
+    columns: [
+      ...SPECTRUM_KEYS,
+      col('method', 'VARCHAR', 'fit method, e.g. spectral-fit (Donoghue et al. 2020) or irasa (Wen & Liu 2016)', true),
+      col('fit_lo_hz', 'DOUBLE', 'lower end of the fit range in Hz', true),
+      col('fit_hi_hz', 'DOUBLE', 'upper end of the fit range in Hz', true),
+      col('offset', 'DOUBLE', 'offset b in log10(µV²/Hz)'),
+      col('exponent', 'DOUBLE', 'aperiodic exponent χ'),
+      col('knee', 'DOUBLE', 'knee k (Hz^χ); 0 for the plain power law, NULL if not fitted'),
+      col('r2', 'DOUBLE', 'R² of the full model in log10 power over the fit range'),
+      col('rmse', 'DOUBLE', 'root-mean-square error in log10 power over the fit range'),
+      col('n_peaks', 'INTEGER', 'number of Gaussian peaks in the joint fit'),
+    ],
+  },
+  {
+    name: 'peaks',
+    doc: 'Gaussian peaks above the aperiodic fit, one row per peak.',
+    columns: [
+      ...SPECTRUM_KEYS,
+      col('method', 'VARCHAR', 'aperiodic.method of the fit the peak belongs to', true),
+      col('center_hz', 'DOUBLE', 'peak centre in Hz', true),
+      col('height', 'DOUBLE', 'height above the aperiodic fit in log10 power', true),
+      col('bandwidth_hz', 'DOUBLE', 'peak bandwidth in Hz (2·standard deviation of the Gaussian)', true),
+    ],
+  },
+  {
+    name: 'quality',
+    doc: 'Quality metrics with flags and plain reasons (src/core/quality).',
+    columns: [
+      col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
+      col('channel', 'VARCHAR', 'channel name, NULL for a recording-level metric'),
+      col('stage', 'VARCHAR', 'stage, NULL when the metric is not per stage'),
+      col('metric', 'VARCHAR', 'metric id', true),
+      col('value', 'DOUBLE', 'metric value (unit in the metric\'s documentation), NULL if not computable'),
+      col('flagged', 'BOOLEAN', 'true when the value breaks its threshold', true),
+      col('reason', 'VARCHAR', 'plain reason for the flag, NULL if not flagged'),
+      col('reference', 'VARCHAR', 'reference of the spectrum the metric was computed on, NULL if not spectral'),
+    ],
+  },
+  {
+    name: 'ingest_errors',
+    doc: 'Failures while ingesting; the other recordings go on.',
+    columns: [
+      col('run_id', 'VARCHAR', 'runs.run_id', true),
+      col('file', 'VARCHAR', 'file that failed (relative to the cohort table)'),
+      col('step', 'VARCHAR', 'pipeline step, e.g. read-edf, scoring, welch', true),
+      col('field', 'VARCHAR', 'header field or column at fault, NULL if none'),
+      col('message', 'VARCHAR', 'error message', true),
+      col('logged_at', 'TIMESTAMP', 'UTC time of the error', true),
+    ],
+  },
+  {
+    name: 'reference_skips',
+    doc: 'References that were requested but not computed for a recording, with the reason.',
+    columns: [
+      col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
+      col('reference', 'VARCHAR', 'the reference that was skipped', true),
+      col('reason', 'VARCHAR', 'why the montage cannot support it', true),
+    ],
+  },
+];
+
+/** All table names of the database, participants included. */
+export const TABLE_NAMES: readonly string[] = [...TABLES.map((t) => t.name), 'participants'];
+
+export function tableDef(name: string): TableDef {
+  const table = TABLES.find((t) => t.name === name);
+  if (!table) throw new Error(`unknown table: ${name}`);
+  return table;
+}
+
+/** Quote an identifier for DuckDB ("offset", "group" are reserved words). */
+export function quoteIdent(name: string): string {
+  return `"${name.replaceAll('"', '""')}"`;
+}
+
+export function createTableSql(table: TableDef): string {
+  const lines = table.columns.map((c) => `  ${quoteIdent(c.name)} ${c.type}${c.notNull ? ' NOT NULL' : ''}`);
+  if (table.primaryKey) lines.push(`  PRIMARY KEY (${table.primaryKey.map(quoteIdent).join(', ')})`);
+  return `CREATE TABLE IF NOT EXISTS ${quoteIdent(table.name)} (\n${lines.join(',\n')}\n)`;
+}
+
+/** CREATE statements for all fixed tables (participants is created by participantsCreateSql). */
+export function schemaSql(): string[] {
+  return TABLES.map(createTableSql);
+}
+
+/** participants(subject VARCHAR first, then every other cohort column as DOUBLE or VARCHAR). */
+export function participantsCreateSql(columns: readonly { name: string; type: 'DOUBLE' | 'VARCHAR' }[]): string {
+  const lines = columns.map((c) => `  ${quoteIdent(c.name)} ${c.type}${c.name === 'subject' ? ' NOT NULL' : ''}`);
+  return `CREATE TABLE participants (\n${lines.join(',\n')}\n)`;
+}

@@ -1,0 +1,433 @@
+/**
+ * Store: the single writer of the database. Calls are serialised (one at a time on one
+ * connection), and each recording is written in ONE transaction — recording row, channels,
+ * epochs, rejections, spectra, band powers, aperiodic fits, peaks, quality and reference
+ * skips — so an interrupted or failed write never leaves half a recording.
+ */
+import type { DuckDBConnection, DuckDBInstance, DuckDBValue } from '@duckdb/node-api';
+import type { RecordingBundle, QualityRowIn } from './bundle.ts';
+import { appendColumns, type CellValue } from './chunks.ts';
+import { StoreError } from './errors.ts';
+import { recordingIdFor, runIdentity } from './identity.ts';
+import { participantsCreateSql, tableDef, type TableDef } from './schema.ts';
+
+export interface BeginRunOptions {
+  /** "K/N" when this file is one shard of N. */
+  shard?: string | null;
+}
+
+export interface IngestErrorIn {
+  runId: string;
+  file: string | null;
+  step: string;
+  field: string | null;
+  message: string;
+}
+
+/** A quality row of the cohort-level pass (after all recordings), with its recording. */
+export interface CohortQualityRow extends QualityRowIn {
+  recordingId: string;
+}
+
+/** Participant cell values as read from the cohort table. */
+export type ParticipantValue = string | number | null;
+
+/** Values the cohort table uses for "missing": empty and BIDS's "n/a" (BIDS spec, tabular files). */
+const MISSING = new Set(['', 'n/a']);
+
+export class Store {
+  readonly instance: DuckDBInstance;
+  /** The store's connection; read.ts queries through it. */
+  readonly connection: DuckDBConnection;
+  readonly readOnly: boolean;
+  private queue: Promise<unknown> = Promise.resolve();
+  private closed = false;
+
+  constructor(instance: DuckDBInstance, connection: DuckDBConnection, options: { readOnly: boolean }) {
+    this.instance = instance;
+    this.connection = connection;
+    this.readOnly = options.readOnly;
+  }
+
+  /**
+   * Begin (or resume) the run for these parameters. The run is identified by the hash of the
+   * parameters JSON with keys sorted: the same parameters reuse the run (reused: true), other
+   * parameters make a new run. A stored run with the same parameters but another tool version
+   * is refused rather than mixed.
+   */
+  beginRun(toolVersion: string, parameters: unknown, options: BeginRunOptions = {}): Promise<{ runId: string; reused: boolean }> {
+    return this.exclusive(async () => {
+      const { runId, json, sha256 } = runIdentity(parameters);
+      const found = await this.rows('SELECT tool_version FROM runs WHERE run_id = $1', [runId]);
+      if (found.length > 0) {
+        const stored = String(found[0].tool_version);
+        if (stored !== toolVersion) {
+          throw new StoreError(
+            `run ${runId} with these parameters was written by bandwise ${stored}, this is ${toolVersion}; ` +
+              'results of two tool versions are not mixed in one run — write to a new database file',
+            { table: 'runs' },
+          );
+        }
+        await this.connection.run('UPDATE runs SET finished_at = NULL WHERE run_id = $1', [runId]);
+        return { runId, reused: true };
+      }
+      await appendColumns(this.connection, tableDef('runs'), 1, {
+        run_id: () => runId,
+        tool_version: () => toolVersion,
+        parameters: () => json,
+        started_at: () => new Date(),
+        finished_at: () => null,
+        shard: () => options.shard ?? null,
+        parameters_sha256: () => sha256,
+      });
+      return { runId, reused: false };
+    });
+  }
+
+  /** Mark the run finished (UTC now) and checkpoint, so readers see one complete file. */
+  finishRun(runId: string): Promise<void> {
+    return this.exclusive(async () => {
+      await this.requireRun(runId);
+      await this.connection.run('UPDATE runs SET finished_at = $2::TIMESTAMP WHERE run_id = $1', [runId, utcTimestampText(new Date())]);
+      await this.connection.run('CHECKPOINT');
+    });
+  }
+
+  /**
+   * Replace the participants table with the cohort table: subject first (VARCHAR), every other
+   * column kept, typed DOUBLE when every non-missing value is a number, else VARCHAR.
+   * Missing values ('' and 'n/a') are stored as NULL.
+   */
+  writeParticipants(columns: readonly string[], rows: readonly (readonly ParticipantValue[])[]): Promise<void> {
+    return this.exclusive(async () => {
+      const subjectAt = columns.indexOf('subject');
+      if (subjectAt < 0) throw new StoreError('the cohort table has no "subject" column', { table: 'participants' });
+      const seen = new Set<string>();
+      for (const name of columns) {
+        if (name.trim() === '') throw new StoreError('a cohort column has an empty name', { table: 'participants' });
+        if (seen.has(name)) throw new StoreError(`duplicate cohort column "${name}"`, { table: 'participants' });
+        seen.add(name);
+      }
+      rows.forEach((row, r) => {
+        if (row.length !== columns.length) {
+          throw new StoreError(`has ${row.length} values, the header has ${columns.length}`, { table: 'participants', row: r });
+        }
+        if (cellMissing(row[subjectAt])) throw new StoreError('subject is empty', { table: 'participants', column: 'subject', row: r });
+      });
+      const order = [subjectAt, ...columns.map((_, i) => i).filter((i) => i !== subjectAt)];
+      const defs = order.map((i) => ({
+        name: columns[i],
+        type: i !== subjectAt && rows.every((row) => cellMissing(row[i]) || cellNumber(row[i]) !== null) ? ('DOUBLE' as const) : ('VARCHAR' as const),
+      }));
+      const table: TableDef = {
+        name: 'participants',
+        doc: 'the cohort table as given',
+        columns: defs.map((d) => ({ name: d.name, type: d.type, notNull: d.name === 'subject', doc: '' })),
+      };
+      await this.transaction(async () => {
+        await this.connection.run('DROP TABLE IF EXISTS participants');
+        await this.connection.run(participantsCreateSql(defs));
+        const sources: Record<string, (r: number) => CellValue> = {};
+        defs.forEach((d, k) => {
+          const i = order[k];
+          sources[d.name] = (r) => {
+            const v = rows[r][i];
+            if (cellMissing(v)) return null;
+            return d.type === 'DOUBLE' ? cellNumber(v) : String(v);
+          };
+        });
+        await appendColumns(this.connection, table, rows.length, sources);
+      });
+    });
+  }
+
+  /** Resumability: is a recording with this file hash already stored for this run? */
+  hasRecording(runId: string, fileSha256: string): Promise<boolean> {
+    return this.exclusive(async () => {
+      const found = await this.rows('SELECT 1 AS one FROM recordings WHERE run_id = $1 AND file_sha256 = $2', [runId, fileSha256]);
+      return found.length > 0;
+    });
+  }
+
+  /** Write one recording and everything computed from it in ONE transaction; returns its recording_id. */
+  writeRecording(bundle: RecordingBundle): Promise<string> {
+    return this.exclusive(async () => {
+      await this.requireRun(bundle.runId);
+      const id = recordingIdFor(bundle.runId, bundle.recording.fileSha256);
+      await this.transaction(async () => {
+        await writeBundleTables(this.connection, id, bundle);
+      });
+      return id;
+    });
+  }
+
+  /** Record a failure of one file or step; the other recordings go on. */
+  writeError(error: IngestErrorIn): Promise<void> {
+    return this.exclusive(async () => {
+      await appendColumns(this.connection, tableDef('ingest_errors'), 1, {
+        run_id: () => error.runId,
+        file: () => error.file,
+        step: () => error.step,
+        field: () => error.field,
+        message: () => error.message,
+        logged_at: () => new Date(),
+      });
+    });
+  }
+
+  /**
+   * Quality rows of the cohort-level pass (after all recordings). In one transaction, rows
+   * already stored for the same (recording_id, metric) are replaced, so a rerun does not
+   * duplicate them.
+   */
+  writeQuality(rows: readonly CohortQualityRow[]): Promise<void> {
+    return this.exclusive(async () => {
+      const pairs = new Map<string, { recordingId: string; metric: string }>();
+      for (const r of rows) pairs.set(`${r.recordingId}\u0000${r.metric}`, { recordingId: r.recordingId, metric: r.metric });
+      await this.transaction(async () => {
+        for (const { recordingId, metric } of pairs.values()) {
+          await this.connection.run('DELETE FROM quality WHERE recording_id = $1 AND metric = $2', [recordingId, metric]);
+        }
+        await appendColumns(this.connection, tableDef('quality'), rows.length, {
+          recording_id: (i) => rows[i].recordingId,
+          ...qualitySources(rows),
+        });
+      });
+    });
+  }
+
+  /** Storage compatibility of the open file as DuckDB reports it (duckdb_databases().tags), e.g. "v1.4.0+". */
+  storageVersion(): Promise<string> {
+    return this.exclusive(async () => {
+      const found = await this.rows(
+        "SELECT tags['storage_version'] AS v FROM duckdb_databases() WHERE database_name = current_database()",
+      );
+      if (found.length === 0 || found[0].v === null) throw new StoreError('DuckDB reports no storage version for this file');
+      return String(found[0].v);
+    });
+  }
+
+  /** Checkpoint (unless read-only) and close. */
+  close(): Promise<void> {
+    return this.exclusive(async () => {
+      if (this.closed) return;
+      this.closed = true;
+      if (!this.readOnly) await this.connection.run('CHECKPOINT');
+      this.connection.closeSync();
+      this.instance.closeSync();
+    });
+  }
+
+  /** Run fn after every earlier call has settled (one statement stream on one connection). */
+  exclusive<T>(fn: () => Promise<T>): Promise<T> {
+    const next = this.queue.then(() => {
+      if (this.closed) throw new StoreError('the store is closed');
+      return fn();
+    });
+    this.queue = next.catch(() => undefined);
+    return next;
+  }
+
+  private async transaction(fn: () => Promise<void>): Promise<void> {
+    await this.connection.run('BEGIN TRANSACTION');
+    try {
+      await fn();
+      await this.connection.run('COMMIT');
+    } catch (error) {
+      await this.connection.run('ROLLBACK');
+      throw error;
+    }
+  }
+
+  private async requireRun(runId: string): Promise<void> {
+    const found = await this.rows('SELECT 1 AS one FROM runs WHERE run_id = $1', [runId]);
+    if (found.length === 0) throw new StoreError(`no run ${runId}; call beginRun first`, { table: 'runs' });
+  }
+
+  private async rows(sql: string, values: DuckDBValue[] = []): Promise<Record<string, unknown>[]> {
+    const reader = await this.connection.runAndReadAll(sql, values);
+    return reader.getRowObjectsJS();
+  }
+}
+
+function cellMissing(v: ParticipantValue | undefined): boolean {
+  return v === null || v === undefined || (typeof v === 'string' && MISSING.has(v.trim()));
+}
+
+/** The number a cohort cell holds, or null when it is not a plain decimal number. */
+function cellNumber(v: ParticipantValue): number | null {
+  if (typeof v === 'number') return Number.isFinite(v) ? v : null;
+  if (typeof v !== 'string') return null;
+  const s = v.trim();
+  if (!/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(s)) return null;
+  return Number(s);
+}
+
+function utcTimestampText(d: Date): string {
+  return d.toISOString().replace('T', ' ').replace('Z', '');
+}
+
+function qualitySources(rows: readonly QualityRowIn[]): Record<string, (i: number) => CellValue> {
+  return {
+    channel: (i) => rows[i].channel,
+    stage: (i) => rows[i].stage,
+    metric: (i) => rows[i].metric,
+    value: (i) => rows[i].value,
+    flagged: (i) => rows[i].flagged,
+    reason: (i) => rows[i].reason,
+    reference: (i) => rows[i].reference ?? null,
+  };
+}
+
+/** All tables of one recording, in dependency order (called inside the transaction). */
+async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBundle): Promise<void> {
+  const rec = b.recording;
+  const stageMin = rec.stageMin ?? {};
+  await appendColumns(c, tableDef('recordings'), 1, {
+    recording_id: () => id,
+    subject: () => rec.subject,
+    session: () => rec.session,
+    file_name: () => rec.fileName,
+    file_sha256: () => rec.fileSha256,
+    duration_s: () => rec.durationS,
+    run_id: () => b.runId,
+    status: () => rec.status,
+    edf_variant: () => rec.edfVariant ?? null,
+    scoring_source: () => rec.scoringSource ?? null,
+    epoch_length_s: () => rec.epochLengthS ?? null,
+    n_channels: () => b.channels.length,
+    n_epochs: () => rec.nEpochs ?? null,
+    n_epochs_dropped: () => rec.nEpochsDropped ?? null,
+    tst_min: () => rec.tstMin ?? null,
+    se_pct: () => rec.sePct ?? null,
+    sol_min: () => rec.solMin ?? null,
+    w_min: () => stageMin.W ?? null,
+    n1_min: () => stageMin.N1 ?? null,
+    n2_min: () => stageMin.N2 ?? null,
+    n3_min: () => stageMin.N3 ?? null,
+    r_min: () => stageMin.R ?? null,
+    unscored_min: () => stageMin.unscored ?? null,
+    ingested_at: () => new Date(),
+  });
+
+  const ch = b.channels;
+  await appendColumns(c, tableDef('channels'), ch.length, {
+    recording_id: () => id,
+    channel: (i) => ch[i].channel,
+    type: (i) => ch[i].type,
+    unit: (i) => ch[i].unit,
+    fs_hz: (i) => ch[i].fsHz,
+    prefilter: (i) => ch[i].prefilter,
+    x: (i) => ch[i].x,
+    y: (i) => ch[i].y,
+    z: (i) => ch[i].z,
+    label: (i) => ch[i].label ?? null,
+    reference_electrode: (i) => ch[i].referenceElectrode ?? null,
+    physical_min: (i) => ch[i].physicalMin ?? null,
+    physical_max: (i) => ch[i].physicalMax ?? null,
+    digital_min: (i) => ch[i].digitalMin ?? null,
+    digital_max: (i) => ch[i].digitalMax ?? null,
+  });
+
+  const ep = b.epochs;
+  if (ep.stage.length !== ep.onsetS.length || (ep.dropReason && ep.dropReason.length !== ep.onsetS.length)) {
+    throw new StoreError(`epoch columns differ in length (onsetS ${ep.onsetS.length}, stage ${ep.stage.length})`, { table: 'epochs' });
+  }
+  await appendColumns(c, tableDef('epochs'), ep.onsetS.length, {
+    recording_id: () => id,
+    epoch: (i) => i,
+    onset_s: (i) => ep.onsetS[i],
+    stage: (i) => ep.stage[i],
+    drop_reason: (i) => (ep.dropReason ? ep.dropReason[i] : null),
+  });
+
+  const rj = b.rejections;
+  await appendColumns(c, tableDef('epoch_rejections'), rj.length, {
+    recording_id: () => id,
+    channel: (i) => rj[i].channel,
+    epoch: (i) => rj[i].epoch,
+    reason: (i) => rj[i].reason,
+    value: (i) => rj[i].value,
+  });
+
+  const sp = b.spectra;
+  await appendColumns(c, tableDef('spectra'), sp.length, {
+    recording_id: () => id,
+    channel: (i) => sp[i].channel,
+    stage: (i) => sp[i].stage,
+    reference: (i) => sp[i].reference,
+    averaging: (i) => sp[i].averaging,
+    n_epochs: (i) => sp[i].nEpochs,
+    n_segments: (i) => sp[i].nSegments,
+    freq_start_hz: (i) => sp[i].freqStartHz,
+    freq_step_hz: (i) => sp[i].freqStepHz,
+    n_bins: (i) => sp[i].power.length,
+    power: (i) => sp[i].power,
+    flagged: (i) => sp[i].flagged,
+    flag_reason: (i) => sp[i].flagReason,
+  });
+
+  for (const block of b.bandPowers) {
+    const n = block.power.length;
+    if (block.channelIdx.length !== n || block.epoch.length !== n || block.bandIdx.length !== n) {
+      throw new StoreError(`band power columns differ in length (power ${n})`, { table: 'epoch_band_power' });
+    }
+    await appendColumns(c, tableDef('epoch_band_power'), n, {
+      recording_id: () => id,
+      channel: (i) => indexed(block.channels, block.channelIdx[i], 'channel', i),
+      epoch: (i) => block.epoch[i],
+      band: (i) => indexed(block.bands, block.bandIdx[i], 'band', i),
+      power: (i) => block.power[i],
+      reference: () => block.reference,
+    });
+  }
+
+  const ap = b.aperiodic;
+  await appendColumns(c, tableDef('aperiodic'), ap.length, {
+    recording_id: () => id,
+    channel: (i) => ap[i].channel,
+    stage: (i) => ap[i].stage,
+    reference: (i) => ap[i].reference,
+    averaging: (i) => ap[i].averaging,
+    method: (i) => ap[i].method,
+    fit_lo_hz: (i) => ap[i].fitLoHz,
+    fit_hi_hz: (i) => ap[i].fitHiHz,
+    offset: (i) => ap[i].offset,
+    exponent: (i) => ap[i].exponent,
+    knee: (i) => ap[i].knee,
+    r2: (i) => ap[i].r2,
+    rmse: (i) => ap[i].rmse,
+    n_peaks: (i) => ap[i].nPeaks,
+  });
+
+  const pk = b.peaks;
+  await appendColumns(c, tableDef('peaks'), pk.length, {
+    recording_id: () => id,
+    channel: (i) => pk[i].channel,
+    stage: (i) => pk[i].stage,
+    reference: (i) => pk[i].reference,
+    averaging: (i) => pk[i].averaging,
+    method: (i) => pk[i].method,
+    center_hz: (i) => pk[i].centerHz,
+    height: (i) => pk[i].height,
+    bandwidth_hz: (i) => pk[i].bandwidthHz,
+  });
+
+  const q = b.quality;
+  await appendColumns(c, tableDef('quality'), q.length, { recording_id: () => id, ...qualitySources(q) });
+
+  const rs = b.referenceSkips;
+  await appendColumns(c, tableDef('reference_skips'), rs.length, {
+    recording_id: () => id,
+    reference: (i) => rs[i].reference,
+    reason: (i) => rs[i].reason,
+  });
+}
+
+function indexed(names: readonly string[], index: number, what: string, row: number): string {
+  const name = names[index];
+  if (name === undefined) {
+    throw new StoreError(`${what} index ${index} outside 0..${names.length - 1}`, { table: 'epoch_band_power', column: what, row });
+  }
+  return name;
+}

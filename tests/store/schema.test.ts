@@ -1,0 +1,79 @@
+/**
+ * The database names are a public interface fixed in /work/shared/DESIGN.md, section
+ * "The database". The expected tables and columns are parsed from that file (outside this
+ * module), and checked against the tables DuckDB actually created.
+ */
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { openStore } from '../../ingest/store/database.ts';
+import { TABLE_NAMES, TABLES } from '../../ingest/store/schema.ts';
+import { sql, tempDir } from './helpers.ts';
+
+const DESIGN = '/work/shared/DESIGN.md';
+
+/** Tables and columns as written in DESIGN.md: `name(col, col TYPE, …)`. */
+function designTables(): Map<string, { name: string; type: string | null }[]> {
+  const text = readFileSync(DESIGN, 'utf8');
+  const section = text.slice(text.indexOf('## The database'), text.indexOf('## The command line')).replace(/\s+/g, ' ');
+  const out = new Map<string, { name: string; type: string | null }[]>();
+  for (const m of section.matchAll(/`([a-z_]+)\(([^`]*)\)`/g)) {
+    const cols = m[2]
+      .split(',')
+      .map((s) => s.trim())
+      .filter((s) => s !== '' && !s.includes('…'))
+      .map((s) => {
+        const [name, type] = s.split(' ');
+        return { name, type: type ?? null };
+      });
+    out.set(m[1], cols);
+  }
+  return out;
+}
+
+describe('schema names equal DESIGN.md', () => {
+  const design = designTables();
+  const { dir, cleanup } = tempDir();
+  afterAll(cleanup);
+
+  it('parses the twelve tables DESIGN.md lists', () => {
+    expect([...design.keys()].sort()).toEqual(
+      ['aperiodic', 'channels', 'epoch_band_power', 'epoch_rejections', 'epochs', 'ingest_errors',
+        'participants', 'peaks', 'quality', 'recordings', 'runs', 'spectra'],
+    );
+  });
+
+  it('has every DESIGN table, plus only reference_skips', () => {
+    expect(new Set(TABLE_NAMES)).toEqual(new Set([...design.keys(), 'reference_skips']));
+  });
+
+  it('the created database has every DESIGN column under its exact name, with the stated types', async () => {
+    const store = await openStore(join(dir, 'schema.duckdb'), { create: true });
+    await store.writeParticipants(['group', 'subject', 'age'], [['control', 's1', '41']]);
+    const rows = await sql(store, 'SELECT table_name, column_name, data_type FROM information_schema.columns ORDER BY table_name, ordinal_position');
+    await store.close();
+    const actual = new Map<string, Map<string, string>>();
+    for (const r of rows) {
+      const t = String(r.table_name);
+      if (!actual.has(t)) actual.set(t, new Map());
+      actual.get(t)!.set(String(r.column_name), String(r.data_type));
+    }
+    // DESIGN: peaks(… same keys …, center_hz, …) — "same keys" as aperiodic: recording_id, channel, stage, reference, averaging.
+    const peakKeys = ['recording_id', 'channel', 'stage', 'reference', 'averaging'];
+    for (const [table, cols] of design) {
+      const got = actual.get(table);
+      expect(got, table).toBeDefined();
+      const expected = table === 'peaks' ? [...peakKeys.map((name) => ({ name, type: null })), ...cols] : cols;
+      for (const c of expected) {
+        expect(got!.has(c.name), `${table}.${c.name}`).toBe(true);
+        if (c.type !== null) expect(got!.get(c.name), `${table}.${c.name} type`).toBe(c.type);
+      }
+    }
+    // participants: subject first.
+    expect([...actual.get('participants')!.keys()][0]).toBe('subject');
+  });
+
+  it('no column could hold EDF patient or recording identification text', () => {
+    for (const t of TABLES) for (const c of t.columns) expect(c.name).not.toMatch(/patient|birth|identification|local_rec|startdate/i);
+  });
+});
