@@ -1,0 +1,21 @@
+/**
+ * One entry point for a scoring file, chosen by extension: .edf → EDF+ annotations,
+ * .tsv/.csv → table, .txt → one label per epoch; any other name is a table when its first line
+ * names an 'onset' column, else a per-epoch text file.
+ */
+import path from 'node:path';
+import { readScoringEdf } from './edf.ts';
+import type { EdfScoringOptions } from './edf.ts';
+import { readScoringFile, scoringFromTableText } from './table.ts';
+import { scoringFromText } from './text.ts';
+import type { Hypnogram } from './types.ts';
+
+export async function readScoring(file: string, options: EdfScoringOptions = {}): Promise<Hypnogram> {
+  const ext = path.extname(file).toLowerCase();
+  if (ext === '.edf') return readScoringEdf(file, options);
+  const text = await readScoringFile(file);
+  if (ext === '.tsv' || ext === '.csv') return scoringFromTableText(text, file, options);
+  if (ext === '.txt') return scoringFromText(text, file, options);
+  const first = (text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '').toLowerCase();
+  return first.split(/[\t,]/).some((c) => c.trim().replace(/^"|"$/g, '') === 'onset') ? scoringFromTableText(text, file, options) : scoringFromText(text, file, options);
+}
