@@ -51,9 +51,16 @@ export async function appendColumns(
       appender.appendDataChunk(chunk);
     }
     appender.flushSync();
-  } finally {
-    appender.closeSync();
+  } catch (error) {
+    // Closing an appender whose flush failed raises "transaction is aborted"; keep the first error.
+    try {
+      appender.closeSync();
+    } catch {
+      // the original error below says what went wrong
+    }
+    throw error;
   }
+  appender.closeSync();
 }
 
 function fillScalar(

@@ -95,7 +95,7 @@ export class Store {
 
   /**
    * Replace the participants table with the cohort table: subject first (VARCHAR), every other
-   * column kept, typed DOUBLE when every non-missing value is a number, else VARCHAR.
+   * column kept, typed DOUBLE when it has values and every non-missing one is a number, else VARCHAR.
    * Missing values ('' and 'n/a') are stored as NULL.
    */
   writeParticipants(columns: readonly string[], rows: readonly (readonly ParticipantValue[])[]): Promise<void> {
@@ -117,7 +117,7 @@ export class Store {
       const order = [subjectAt, ...columns.map((_, i) => i).filter((i) => i !== subjectAt)];
       const defs = order.map((i) => ({
         name: columns[i],
-        type: i !== subjectAt && rows.every((row) => cellMissing(row[i]) || cellNumber(row[i]) !== null) ? ('DOUBLE' as const) : ('VARCHAR' as const),
+        type: i !== subjectAt && isNumericColumn(rows, i) ? ('DOUBLE' as const) : ('VARCHAR' as const),
       }));
       const table: TableDef = {
         name: 'participants',
@@ -248,6 +248,17 @@ export class Store {
     const reader = await this.connection.runAndReadAll(sql, values);
     return reader.getRowObjectsJS();
   }
+}
+
+/** A column is numeric when it has at least one value and every non-missing value is a number. */
+function isNumericColumn(rows: readonly (readonly ParticipantValue[])[], i: number): boolean {
+  let present = 0;
+  for (const row of rows) {
+    if (cellMissing(row[i])) continue;
+    if (cellNumber(row[i]) === null) return false;
+    present++;
+  }
+  return present > 0;
 }
 
 function cellMissing(v: ParticipantValue | undefined): boolean {
