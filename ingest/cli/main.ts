@@ -1,0 +1,20 @@
+/**
+ * The bandwise command line. Each subcommand lives in its own file under ingest/cli/ and adds
+ * itself to the program through register(program).
+ */
+import { Command } from 'commander';
+import { readFileSync } from 'node:fs';
+
+const pkg = JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string };
+
+const program = new Command();
+program
+  .name('bandwise')
+  .description(
+    'Cohort-level sleep-EEG spectral database and group comparisons.\n' +
+      'A research tool, not a diagnostic device.',
+  )
+  .version(pkg.version)
+  .showHelpAfterError();
+
+await program.parseAsync(process.argv);
