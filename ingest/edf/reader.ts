@@ -134,7 +134,7 @@ async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHe
             timeKeeping[r] = tk.onsetS;
             tals[0] = { onsetS: tk.onsetS, durationS: tk.durationS, texts: tk.texts.slice(1) };
           } else if (isPlus) {
-            const seen = tk === undefined ? 'no annotation list' : `a list with text "${showValue(tk.texts[0] ?? '')}"`;
+            const seen = tk === undefined ? 'no annotation list' : `a list at onset ${tk.onsetS} with text "${showValue(tk.texts[0] ?? '')}"`;
             throw new EdfFormatError(file, 'annotations', tk === undefined ? '' : String(tk.onsetS), `${header.variant} record starts with ${seen} instead of a time-keeping TAL (onset, then an empty text)`, { record: r, signal: { index: sig.index, label: sig.label } });
           } else {
             timeKeeping[r] = r * header.recordDurationS;

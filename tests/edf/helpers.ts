@@ -106,23 +106,24 @@ export const FAKE_BIRTHDATE = '29-FEB-1952';
 export const FAKE_PATIENT_CODE = 'MCH-0012345';
 export const FAKE_HOSPITAL = 'Bogusville_Sleep_Lab';
 
+/** Digital sample values of goodEdfPlusSpec's record r: signal 0 (4 per record), signal 1 (2 per record). */
+export function goodDigital(r: number): [number[], number[]] {
+  return [[r * 10 + 1, -r * 10 - 2, 300 + r, -2048], [r * 7 - 100, 2047]];
+}
+
 /**
  * A small valid EDF+C file built by hand: two ordinary signals (4 and 2 samples per 0.5-s
- * record) and an annotation signal of 30 bytes; deterministic sample values.
+ * record, i.e. 8 and 4 Hz) and an annotation signal of 30 bytes; deterministic sample values.
+ * Record 1 carries an extra TAL "+0.75\x150.25\x14Arousal\x14\x00".
  */
-export function goodEdfPlus(nRecords = 3): { bytes: Uint8Array; digital: number[][] } {
-  const dig0: number[] = [];
-  const dig1: number[] = [];
+export function goodEdfPlusSpec(nRecords = 3): HandEdf {
   const records: Uint8Array[] = [];
   for (let r = 0; r < nRecords; r++) {
-    const a = [r * 10 + 1, -r * 10 - 2, 300 + r, -2048];
-    const b = [r * 7 - 100, 2047];
-    dig0.push(...a);
-    dig1.push(...b);
+    const [a, b] = goodDigital(r);
     const tal = r === 1 ? `+${r * 0.5}\x14\x14\x00+0.75\x150.25\x14Arousal\x14\x00` : `+${r * 0.5}\x14\x14\x00`;
     records.push(int16le(a), int16le(b), talBytes(tal, 30));
   }
-  const bytes = handEdf({
+  return {
     patient: `${FAKE_PATIENT_CODE} F ${FAKE_BIRTHDATE} ${FAKE_PATIENT_NAME}`,
     recording: `Startdate 12-MAR-2004 ${FAKE_HOSPITAL} tech01 amp7`,
     date: '12.03.04',
@@ -136,6 +137,11 @@ export function goodEdfPlus(nRecords = 3): { bytes: Uint8Array; digital: number[
       { label: 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-32768', dmax: '32767', spr: '15' },
     ],
     data: concat(records),
-  });
-  return { bytes, digital: [dig0, dig1] };
+  };
+}
+
+/** One record of goodEdfPlusSpec's layout with a given annotation text (\x00-padded to 30 bytes). */
+export function goodRecord(r: number, tal: string): Uint8Array {
+  const [a, b] = goodDigital(r);
+  return concat([int16le(a), int16le(b), talBytes(tal, 30)]);
 }
