@@ -1,49 +1,24 @@
-import { execFileSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readScoringEdf } from '../../ingest/hypnogram/edf.ts';
 import { readScoring } from '../../ingest/hypnogram/read.ts';
 import { ScoringError } from '../../ingest/hypnogram/types.ts';
+import { writeEdfWithLibedf } from './libedf.ts';
+import type { LibedfAnnotation } from './libedf.ts';
 
 // Outside reference: the EDF+ files are written by Debian's libedf (EDFlib 1.23), an independent
 // EDF+ implementation; annotation onset/duration are given in units of 100 µs (edflib.h).
 
-type Ann = [onsetS: number, durationS: number | null, text: string];
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-hyp-edf-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-/** Writes an EDF+ file with one 100-Hz signal, `seconds` records of 1 s and the annotations. */
-function writeWithLibedf(name: string, seconds: number, anns: Ann[]): string {
-  const out = path.join(dir, name);
-  const lines = anns.map(([o, d, t]) => `  if (edfwrite_annotation_utf8(h, ${Math.round(o * 1e4)}LL, ${d === null ? -1 : Math.round(d * 1e4)}LL, ${JSON.stringify(t)}) != 0) return 3;`);
-  const src = `#include <edflib.h>
-int main(void) {
-  int h = edfopen_file_writeonly(${JSON.stringify(out)}, EDFLIB_FILETYPE_EDFPLUS, 1);
-  if (h < 0) return 1;
-  edf_set_samplefrequency(h, 0, 100);
-  edf_set_physical_maximum(h, 0, 500); edf_set_physical_minimum(h, 0, -500);
-  edf_set_digital_maximum(h, 0, 32767); edf_set_digital_minimum(h, 0, -32768);
-  edf_set_label(h, 0, "EEG C3-M2"); edf_set_physical_dimension(h, 0, "uV");
-  static double buf[100];
-  for (int r = 0; r < ${seconds}; r++) if (edfwrite_physical_samples(h, buf) != 0) return 2;
-${lines.join('\n')}
-  return edfclose_file(h) == 0 ? 0 : 4;
-}
-`;
-  const c = path.join(dir, `${name}.c`);
-  const exe = path.join(dir, `${name}.bin`);
-  writeFileSync(c, src);
-  execFileSync('gcc', ['-O0', '-o', exe, c, '-ledf', '-lm']);
-  execFileSync(exe);
-  return out;
-}
+const writeWithLibedf = (name: string, seconds: number, anns: LibedfAnnotation[]) => writeEdfWithLibedf(dir, path.join(dir, name), seconds, anns);
 
 let night = '';
 let scoringOnly = '';
 beforeAll(() => {
-  const stages: Ann[] = [
+  const stages: LibedfAnnotation[] = [
     [0, 60, 'Sleep stage W'],
     [60, 30, 'Sleep stage 1'],
     [90, 60, 'Sleep stage 2'],

@@ -1,0 +1,160 @@
+/**
+ * A cohort table (TSV or CSV), one row per recording (shared/DESIGN.md, "The cohort table"):
+ * `subject`, `session` (optional), `group` (optional), `recording` (EDF path), `scoring`
+ * (optional path; else the EDF+ annotations), then covariate columns kept typed. These column
+ * names are matched case-insensitively; covariate names are kept as written. Paths are relative
+ * to the table's folder. 'n/a' and empty cells are missing.
+ *
+ * Every problem is collected and reported together (CohortError): unreadable file, missing
+ * required columns, duplicate column names, ragged rows, empty subject or recording, duplicate
+ * subject/session pairs, missing recording or scoring files, empty group cells when a group
+ * column exists, and a subject given two different groups.
+ */
+import { readFile, stat } from 'node:fs/promises';
+import path from 'node:path';
+import { z } from 'zod';
+import { cellValue, detectDelimiter, parseDelimited } from './delimited.ts';
+import { columnKind, typedValue } from './typed-columns.ts';
+import type { Cohort, CohortProblem, CohortRecording, ColumnKind } from './types.ts';
+import { CohortError } from './types.ts';
+
+const RESERVED = ['subject', 'session', 'group', 'recording', 'scoring'] as const;
+const REQUIRED = ['subject', 'recording'] as const;
+
+function rowSchema(hasGroup: boolean) {
+  return z.object({
+    subject: z.string({ error: 'subject is missing' }).min(1, { error: 'subject is empty' }),
+    session: z.string().nullable(),
+    group: hasGroup ? z.string({ error: 'group is empty (the table has a group column, so every row needs one)' }) : z.null(),
+    recording: z.string({ error: 'recording path is empty' }).min(1, { error: 'recording path is empty' }),
+    scoring: z.string().nullable(),
+  });
+}
+
+/** Reads and validates a cohort table; throws CohortError listing every problem found. */
+export async function readCohortTable(file: string): Promise<Cohort> {
+  const abs = path.resolve(file);
+  let text: string;
+  try {
+    text = await readFile(abs, 'utf8');
+  } catch (e) {
+    throw new CohortError(file, [{ row: null, column: null, message: `cannot read the cohort table: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}` }]);
+  }
+  let table;
+  try {
+    table = parseDelimited(text, detectDelimiter(abs, text));
+  } catch (e) {
+    throw new CohortError(file, [{ row: null, column: null, message: (e as Error).message }]);
+  }
+
+  const problems: CohortProblem[] = [];
+  const names = table.header.map((h) => {
+    const t = h.trim();
+    const lower = t.toLowerCase();
+    return (RESERVED as readonly string[]).includes(lower) ? lower : t;
+  });
+  const seen = new Set<string>();
+  names.forEach((n, i) => {
+    if (n === '') problems.push({ row: null, column: null, message: `header field ${i + 1} is empty` });
+    else if (seen.has(n)) problems.push({ row: null, column: n, message: `column '${n}' appears twice in the header` });
+    seen.add(n);
+  });
+  for (const req of REQUIRED) {
+    if (!names.includes(req)) problems.push({ row: null, column: req, message: `required column '${req}' is missing (header: ${table.header.join(', ')})` });
+  }
+  if (table.rows.length === 0) problems.push({ row: null, column: null, message: 'the table has no data rows' });
+  if (problems.length) throw new CohortError(file, problems);
+
+  const col = (name: string) => names.indexOf(name);
+  const hasGroup = col('group') >= 0;
+  const covariateNames = names.filter((n) => !(RESERVED as readonly string[]).includes(n));
+  const schema = rowSchema(hasGroup);
+  const folder = path.dirname(abs);
+
+  // Covariate kinds over all rows.
+  const kinds = new Map<string, ColumnKind>();
+  for (const name of covariateNames) kinds.set(name, columnKind(table.rows.map((r) => cellValue(r.cells[col(name)]))));
+
+  const recordings: CohortRecording[] = [];
+  const pairRow = new Map<string, number>();
+  const fileChecks: Promise<void>[] = [];
+  const at = (cells: string[], name: string) => (col(name) >= 0 ? cellValue(cells[col(name)]) : null);
+
+  table.rows.forEach((r, i) => {
+    const row = i + 1;
+    if (r.cells.length !== names.length) {
+      problems.push({ row, column: null, message: `has ${r.cells.length} fields, the header has ${names.length} (line ${r.line})` });
+      return;
+    }
+    const parsed = schema.safeParse({
+      subject: at(r.cells, 'subject') ?? '',
+      session: at(r.cells, 'session'),
+      group: at(r.cells, 'group'),
+      recording: at(r.cells, 'recording') ?? '',
+      scoring: at(r.cells, 'scoring'),
+    });
+    if (!parsed.success) {
+      for (const issue of parsed.error.issues) problems.push({ row, column: String(issue.path[0] ?? ''), message: issue.message });
+      return;
+    }
+    const v = parsed.data;
+    const key = `${v.subject}\u0000${v.session ?? ''}`;
+    const first = pairRow.get(key);
+    if (first !== undefined) {
+      problems.push({ row, column: 'subject', message: `subject '${v.subject}'${v.session === null ? ' (no session)' : ` session '${v.session}'`} is already in row ${first}` });
+    } else pairRow.set(key, row);
+
+    const recordingPath = path.resolve(folder, v.recording);
+    const scoringPath = v.scoring === null ? null : path.resolve(folder, v.scoring);
+    fileChecks.push(checkFile(recordingPath, v.recording, row, 'recording', problems));
+    if (scoringPath !== null && v.scoring !== null) fileChecks.push(checkFile(scoringPath, v.scoring, row, 'scoring', problems));
+
+    const covariates: Record<string, number | string | null> = {};
+    for (const name of covariateNames) covariates[name] = typedValue(at(r.cells, name), kinds.get(name)!);
+    recordings.push({ row, subject: v.subject, session: v.session, group: hasGroup ? v.group : null, recordingPath, scoringPath, covariates });
+  });
+  await Promise.all(fileChecks);
+
+  const participants = participantsOf(recordings, hasGroup, covariateNames, problems);
+  if (problems.length) {
+    problems.sort((a, b) => (a.row ?? 0) - (b.row ?? 0));
+    throw new CohortError(file, problems);
+  }
+  const columns = [
+    { name: 'subject', kind: 'string' as const },
+    ...(hasGroup ? [{ name: 'group', kind: 'string' as const }] : []),
+    ...covariateNames.map((name) => ({ name, kind: kinds.get(name)! })),
+  ];
+  return { source: 'table', root: folder, recordings, columns, participants };
+}
+
+async function checkFile(abs: string, given: string, row: number, column: string, problems: CohortProblem[]): Promise<void> {
+  try {
+    const s = await stat(abs);
+    if (!s.isFile()) problems.push({ row, column, message: `'${given}' is not a file (${abs})` });
+  } catch {
+    problems.push({ row, column, message: `${column} file not found: '${given}' (${abs})` });
+  }
+}
+
+/**
+ * One participant per subject, from the subject's first row. A subject in two groups is a
+ * problem; covariates may differ between a subject's sessions (each recording keeps its own).
+ */
+function participantsOf(recordings: CohortRecording[], hasGroup: boolean, covariateNames: string[], problems: CohortProblem[]) {
+  const bySubject = new Map<string, { row: number; record: Record<string, number | string | null> }>();
+  for (const r of recordings) {
+    const known = bySubject.get(r.subject);
+    if (known) {
+      if (hasGroup && known.record.group !== r.group) {
+        problems.push({ row: r.row, column: 'group', message: `subject '${r.subject}' is in group '${r.group}' here but in group '${known.record.group}' in row ${known.row}` });
+      }
+      continue;
+    }
+    const record: Record<string, number | string | null> = { subject: r.subject };
+    if (hasGroup) record.group = r.group;
+    for (const name of covariateNames) record[name] = r.covariates[name];
+    bySubject.set(r.subject, { row: r.row, record });
+  }
+  return [...bySubject.values()].map((v) => v.record);
+}

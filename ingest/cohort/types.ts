@@ -1,0 +1,69 @@
+/** A cohort as read from a table or a BIDS folder: recordings plus the participants table. */
+
+export interface BidsChannel {
+  name: string;
+  type: string;
+  units: string;
+  /** 'good' / 'bad', or null when the column is missing or n/a. */
+  status: string | null;
+}
+
+export interface BidsRecordingInfo {
+  powerLineHz: number | null;
+  reference: string | null;
+  samplingHz: number | null;
+  channels: BidsChannel[];
+}
+
+export interface CohortRecording {
+  /** 1-based data row of the table (or of participants.tsv for BIDS), for messages. */
+  row: number;
+  subject: string;
+  session: string | null;
+  group: string | null;
+  /** Absolute path. */
+  recordingPath: string;
+  /** Absolute path, or null: the scoring is the recording's EDF+ annotations. */
+  scoringPath: string | null;
+  covariates: Record<string, number | string | null>;
+  bids?: BidsRecordingInfo;
+}
+
+export type ColumnKind = 'number' | 'string';
+
+export interface Cohort {
+  source: 'table' | 'bids';
+  /** Absolute folder the paths were resolved against (the table's folder or the BIDS root). */
+  root: string;
+  recordings: CohortRecording[];
+  /** All participant columns: subject, group (if any) and the covariates, in file order. */
+  columns: { name: string; kind: ColumnKind }[];
+  /** One per subject, in order of first appearance; keys are `columns` names. */
+  participants: Record<string, number | string | null>[];
+}
+
+export interface CohortProblem {
+  /** 1-based data row, or null when the problem is not about one row. */
+  row: number | null;
+  column: string | null;
+  message: string;
+}
+
+/** A cohort that cannot be used; `message` lists every problem found, with rows and columns. */
+export class CohortError extends Error {
+  override name = 'CohortError';
+  readonly file: string;
+  readonly problems: CohortProblem[];
+
+  constructor(file: string, problems: CohortProblem[]) {
+    const lines = problems.map((p) => `  - ${describePlace(p)}${p.message}`).join('\n');
+    super(`${file}: ${problems.length === 1 ? 'cohort problem' : `${problems.length} cohort problems`}:\n${lines}`);
+    this.file = file;
+    this.problems = problems;
+  }
+}
+
+function describePlace(p: CohortProblem): string {
+  const parts = [p.row !== null ? `row ${p.row}` : '', p.column !== null ? `column '${p.column}'` : ''].filter(Boolean);
+  return parts.length ? `${parts.join(', ')}: ` : '';
+}
