@@ -2,11 +2,12 @@
 // Results are plain arrays of rows; big numeric results are typed arrays.
 import { listColumnToMatrix, numberColumn, stringColumn, tableToRows, type Row } from './arrow-rows.ts';
 import { COHORT, ident, literal, type SqlClient } from './sql-client.ts';
+import { SLEEP_STAGES as SLEEP } from '../../core/stages.ts';
 
 /** Length of one scoring epoch in seconds (DESIGN.md: epoch = 30-s scoring unit). */
 export const EPOCH_S = 30;
-/** Stages counted as sleep (AASM labels, src/core/stages.ts). */
-const SLEEP_STAGES = `('N1', 'N2', 'N3', 'R')`;
+/** Stages counted as sleep, as an SQL list (AASM labels, src/core/stages.ts). */
+const SLEEP_STAGES = `(${SLEEP.map(literal).join(', ')})`;
 
 export interface TableColumn {
   name: string;

@@ -1,0 +1,48 @@
+// Screen labels of the cohort tables' columns (keys are the TSV headers).
+import type { DataColumn } from '../../components/table-columns.ts';
+
+const RECORDING_COLUMNS: readonly DataColumn[] = [
+  { key: 'recording_id', label: 'Recording' },
+  { key: 'subject', label: 'Subject' },
+  { key: 'session', label: 'Session' },
+  { key: 'group', label: 'Group' },
+  { key: 'file_name', label: 'File' },
+  { key: 'status', label: 'Status' },
+  { key: 'duration_min', label: 'Duration (min)', digits: 1 },
+  { key: 'fs_hz', label: 'Sampling rate (Hz)' },
+  { key: 'n_channels', label: 'Channels' },
+  { key: 'w_min', label: 'W (min)', digits: 1 },
+  { key: 'n1_min', label: 'N1 (min)', digits: 1 },
+  { key: 'n2_min', label: 'N2 (min)', digits: 1 },
+  { key: 'n3_min', label: 'N3 (min)', digits: 1 },
+  { key: 'r_min', label: 'R (min)', digits: 1 },
+  { key: 'tst_min', label: 'Total sleep (min)', digits: 1 },
+  { key: 'efficiency_pct', label: 'Sleep efficiency (%)', digits: 1 },
+  { key: 'sol_min', label: 'Sleep onset latency (min)', digits: 1 },
+  { key: 'rem_latency_min', label: 'R latency (min)', digits: 1 },
+  { key: 'waso_min', label: 'Wake after sleep onset (min)', digits: 1 },
+  { key: 'n1_pct', label: 'N1 (% sleep)', digits: 1 },
+  { key: 'n2_pct', label: 'N2 (% sleep)', digits: 1 },
+  { key: 'n3_pct', label: 'N3 (% sleep)', digits: 1 },
+  { key: 'r_pct', label: 'R (% sleep)', digits: 1 },
+];
+
+/** The recording columns present in the query result, in display order. */
+export function recordingColumns(present: readonly string[]): DataColumn[] {
+  return RECORDING_COLUMNS.filter((c) => present.includes(c.key));
+}
+
+export const GROUP_SIZE_COLUMNS: readonly DataColumn[] = [
+  { key: 'group', label: 'Group' },
+  { key: 'subjects', label: 'Subjects' },
+  { key: 'recordings', label: 'Recordings' },
+  { key: 'withSpectra', label: 'With spectra' },
+];
+
+export const ERROR_COLUMNS: readonly DataColumn[] = [
+  { key: 'run_id', label: 'Run' },
+  { key: 'file', label: 'File' },
+  { key: 'step', label: 'Step' },
+  { key: 'field', label: 'Field' },
+  { key: 'message', label: 'Message' },
+];
