@@ -176,7 +176,9 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
       send(res, req, 404, 'not found');
       return;
     }
-    await sendFile(req, res, target.file, target.size);
+    // Vite names files under assets/ by content hash, so they never change under one name.
+    const cache = pathOnly.startsWith('/assets/') ? 'public, max-age=31536000, immutable' : 'no-cache';
+    await sendFile(req, res, target.file, target.size, cache);
   }
 
   async function sendFile(
@@ -184,8 +186,14 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     res: http.ServerResponse,
     file: string,
     size: number,
+    cacheControl: string,
   ): Promise<void> {
-    const headers = { ...SECURITY_HEADERS, 'Content-Type': contentType(file), 'Accept-Ranges': 'bytes' };
+    const headers = {
+      ...SECURITY_HEADERS,
+      'Cache-Control': cacheControl,
+      'Content-Type': contentType(file),
+      'Accept-Ranges': 'bytes',
+    };
     const range = parseRange(req.headers.range, size);
     if (range.kind === 'unsatisfiable') {
       send(res, req, 416, range.reason, { 'Content-Range': `bytes */${size}` });

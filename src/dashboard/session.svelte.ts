@@ -1,5 +1,5 @@
 // The open database, shared by every view.
-import { openPickedFile, openServedDatabase, type CohortConnection } from './db/connection.ts';
+import { openPickedFile, openServedDatabase, preloadEngine, type CohortConnection } from './db/connection.ts';
 import { cohortSchema, runs, type CohortSchema, type RunInfo } from './db/queries.ts';
 
 /** Where the dashboard server puts the database, relative to the app (ingest/server/serve.ts). */
@@ -18,6 +18,7 @@ export class Session {
 
   /** Open the database served beside the app, if there is one; otherwise stay idle. */
   async openServedIfPresent(): Promise<void> {
+    preloadEngine();
     let served = false;
     try {
       served = (await fetch(SERVED_DATABASE, { method: 'HEAD', cache: 'no-store' })).ok;

@@ -107,6 +107,10 @@ describe('dashboard server', () => {
     expect(wasm.body.equals(Buffer.from([0, 0x61, 0x73, 0x6d]))).toBe(true);
     const js = await request(port, 'GET', '/assets/main.js?v=1');
     expect(js.headers['content-type']).toBe('text/javascript; charset=utf-8');
+    // hashed build assets may be cached; the page and the database are revalidated
+    expect(js.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+    expect(index.headers['cache-control']).toBe('no-cache');
+    expect((await request(port, 'HEAD', '/data/cohort.duckdb')).headers['cache-control']).toBe('no-cache');
     // a symlink that stays inside the app folder is fine
     expect((await request(port, 'GET', '/alias.js')).body.toString()).toBe('export {};');
   });

@@ -47,6 +47,11 @@ function getEngine(): Promise<Engine> {
   return engine;
 }
 
+/** Start loading the engine now (errors show up on the next open). */
+export function preloadEngine(): void {
+  getEngine().catch(() => undefined);
+}
+
 /** An attached cohort database. */
 export interface CohortConnection extends SqlClient {
   /** Where it came from: the URL or the file name. */
