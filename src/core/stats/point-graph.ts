@@ -1,0 +1,31 @@
+/**
+ * The graph over points (channel c, frequency bin f), point index c·nFreqs + f: neighbouring
+ * bins of one channel are adjacent (frequency adjacency), and the same bin of two neighbouring
+ * channels is adjacent (spatial adjacency, from a channel neighbour graph). Returned as a flat
+ * edge list [a0, b0, a1, b1, …] with a < b, precomputed once and reused by every permutation.
+ */
+export interface PointGraphOptions {
+  /** neighbours[c] = indices of channels adjacent to channel c (symmetric); null: no spatial edges */
+  channelNeighbours: number[][] | null;
+  /** join neighbouring frequency bins (default true) */
+  frequency?: boolean;
+}
+
+export function pointGraphEdges(nChannels: number, nFreqs: number, options: PointGraphOptions): Int32Array {
+  const edges: number[] = [];
+  if (options.frequency !== false) {
+    for (let c = 0; c < nChannels; c++) for (let f = 0; f + 1 < nFreqs; f++) edges.push(c * nFreqs + f, c * nFreqs + f + 1);
+  }
+  const nb = options.channelNeighbours;
+  if (nb) {
+    if (nb.length !== nChannels) throw new RangeError(`channel neighbour graph has ${nb.length} entries for ${nChannels} channels`);
+    for (let c = 0; c < nChannels; c++) {
+      for (const d of nb[c]) {
+        if (!Number.isInteger(d) || d < 0 || d >= nChannels) throw new RangeError(`channel neighbour index ${d} of channel ${c} is out of range`);
+        if (d <= c) continue; // each pair once
+        for (let f = 0; f < nFreqs; f++) edges.push(c * nFreqs + f, d * nFreqs + f);
+      }
+    }
+  }
+  return Int32Array.from(edges);
+}
