@@ -1,0 +1,515 @@
+/**
+ * One recording end to end (Node): EDF → scoring → channel selection → references → 30-s epochs
+ * → time-domain rejection → Welch PSD per epoch → spectral outliers within stage → stage averages
+ * (mean and median) → aperiodic + peak fits → RecordingBundle for the single writer.
+ *
+ * Streaming: the EDF is read epoch by epoch into the reader's reused buffers; per epoch and
+ * channel only the stored-range spectrum (default 0–45 Hz, Float32) and a few numbers are kept,
+ * so memory grows with epochs × channels × bins, not with samples. The computation itself lives
+ * in src/core (Welch, reference, epoch-rejection, bands, stage-average, aperiodic-fit).
+ */
+import { createHash } from 'node:crypto';
+import { createReadStream } from 'node:fs';
+import path from 'node:path';
+import { sleepArchitecture } from '../src/core/hypnogram/architecture.ts';
+import { parseChannelLabel } from '../src/core/montage/labels.ts';
+import { electrodePosition } from '../src/core/montage/positions.ts';
+import { planReferences, Rereferencer, type MontageChannel, type ReferenceKind, type ReferencePlan } from '../src/core/montage/reference.ts';
+import { DEFAULT_REJECTION, spectralOutliers, timeDomainCheck, type RejectionOptions } from '../src/core/quality/epoch-rejection.ts';
+import { fitSpectrum, type SpectrumFitOptions } from '../src/core/spectrum/aperiodic-fit.ts';
+import { BandPowerTable, DEFAULT_BANDS, bandBins, type Band, type BandMethod } from '../src/core/spectrum/bands.ts';
+import { averageStage, DEFAULT_MIN_EPOCHS, hannWindow, welchDegreesOfFreedom } from '../src/core/spectrum/stage-average.ts';
+import { Welch } from '../src/core/spectrum/welch.ts';
+import { SCORED_STAGES, type Stage } from '../src/core/stages.ts';
+import type { CohortRecording } from './cohort/types.ts';
+import { openEdf, type EdfFile, type EdfSignal } from './edf/reader.ts';
+import { readScoring, scoringFromAnnotations, type Hypnogram } from './hypnogram/index.ts';
+import type {
+  AperiodicRow, BandPowerBlock, ChannelRow, EpochRejection, PeakRow, QualityRowIn, RecordingBundle, SpectrumRow,
+} from './store/bundle.ts';
+import { runIdentity } from './store/identity.ts';
+
+/** Every parameter of a run (stored as runs.parameters; a change makes a new run). */
+export interface IngestParams {
+  /** Scoring epoch length, s (default 30, AASM). */
+  epochS: number;
+  /** Welch segment length, s (default 4). */
+  segmentS: number;
+  /** Welch overlap, fraction of a segment (default 0.5). */
+  overlap: number;
+  /** Highest stored frequency, Hz (default 45; lowered to the Nyquist frequency when that is lower). */
+  maxFreqHz: number;
+  /** Highest frequency of the full-range spectrum used for the mains-hum metric, Hz (default 70). */
+  qualityMaxFreqHz: number;
+  /** Channel types selected when no include list is given (default ['EEG']). */
+  channelTypes: string[];
+  /** Labels or electrode names to take whatever their type (empty: by type). */
+  includeChannels: string[];
+  /** Labels or electrode names to leave out. */
+  excludeChannels: string[];
+  references: ReferenceKind[];
+  bipolarPairs: string[];
+  rejection: RejectionOptions;
+  /** Stages with fewer clean epochs are flagged 'too-few-epochs' (default 10 = 5 min). */
+  minEpochs: number;
+  bands: Band[];
+  bandMethod: BandMethod;
+  /** Aperiodic + peak fit of every stored spectrum; null to skip. */
+  fit: (SpectrumFitOptions & { fitRangeHz: [number, number] }) | null;
+}
+
+export const DEFAULT_INGEST_PARAMS: Readonly<IngestParams> = {
+  epochS: 30,
+  segmentS: 4,
+  overlap: 0.5,
+  maxFreqHz: 45,
+  qualityMaxFreqHz: 70,
+  channelTypes: ['EEG'],
+  includeChannels: [],
+  excludeChannels: [],
+  references: ['recorded'],
+  bipolarPairs: [],
+  rejection: { ...DEFAULT_REJECTION },
+  minEpochs: DEFAULT_MIN_EPOCHS,
+  bands: DEFAULT_BANDS.map((b) => ({ ...b })),
+  bandMethod: 'mean',
+  fit: { fitRangeHz: [1, 40], aperiodicMode: 'power-law' },
+};
+
+/** Fills defaults; the result is plain JSON (it identifies the run). */
+export function resolveIngestParams(partial: Partial<IngestParams> = {}): IngestParams {
+  const p: IngestParams = {
+    ...structuredClone(DEFAULT_INGEST_PARAMS as IngestParams),
+    ...structuredClone(partial),
+    rejection: { ...DEFAULT_REJECTION, ...(partial.rejection ?? {}) },
+  };
+  if (p.references.includes('bipolar') && p.bipolarPairs.length === 0) {
+    throw new PipelineError('parameters', null, 'references', "reference 'bipolar' needs bipolar pairs (e.g. F3-C3)");
+  }
+  return p;
+}
+
+/** A failure of one step of one recording (goes to ingest_errors with file, step and field). */
+export class PipelineError extends Error {
+  override name = 'PipelineError';
+  constructor(
+    readonly step: string,
+    readonly file: string | null,
+    readonly field: string | null,
+    message: string,
+    options?: { cause?: unknown },
+  ) {
+    super(file ? `${file}: ${message}` : message, options);
+  }
+}
+
+export interface PipelineProgress {
+  step: 'read' | 'spectra';
+  done: number;
+  total: number;
+}
+
+/** SHA-256 of the file bytes, streamed in 1-MiB chunks. */
+export function fileSha256(file: string): Promise<string> {
+  return new Promise((resolve, reject) => {
+    const hash = createHash('sha256');
+    createReadStream(file, { highWaterMark: 1 << 20 })
+      .on('data', (chunk) => hash.update(chunk))
+      .on('error', reject)
+      .on('end', () => resolve(hash.digest('hex')));
+  });
+}
+
+/** Multiplier from a physical dimension to µV, or null when it is not a voltage. Empty → µV (assumed). */
+export function toMicrovolts(dimension: string): number | null {
+  const d = dimension.trim();
+  if (d === '' || /^(µ|μ|u)V$/i.test(d)) return 1;
+  if (d === 'mV') return 1e3;
+  if (d === 'V') return 1e6;
+  if (d === 'nV') return 1e-3;
+  return null;
+}
+
+interface Selected {
+  signal: EdfSignal;
+  montage: MontageChannel;
+  name: string;
+  toUv: number;
+}
+
+const matches = (list: string[], s: EdfSignal, electrode: string) =>
+  list.some((x) => x.trim().toUpperCase() === s.label.trim().toUpperCase() || x.trim().toUpperCase() === electrode.toUpperCase());
+
+function selectChannels(edf: EdfFile, rec: CohortRecording, params: IngestParams): Selected[] {
+  const bids = new Map((rec.bids?.channels ?? []).map((c) => [c.name.trim().toUpperCase(), c]));
+  const out: Selected[] = [];
+  for (const s of edf.header.signals) {
+    if (s.isAnnotation) continue;
+    const parsed = parseChannelLabel(s.label, s.physicalDimension);
+    const b = bids.get(s.label.trim().toUpperCase());
+    // BIDS _channels.tsv: its type overrides the label's; status 'bad' leaves the channel out
+    const type = b?.type ? b.type.toUpperCase() : parsed.type;
+    if (b?.status === 'bad') continue;
+    const wanted = params.includeChannels.length > 0 ? matches(params.includeChannels, s, parsed.electrode) : params.channelTypes.includes(type);
+    if (!wanted || matches(params.excludeChannels, s, parsed.electrode)) continue;
+    const toUv = toMicrovolts(s.physicalDimension);
+    if (toUv === null) {
+      throw new PipelineError('channels', edf.file, 'physical dimension', `channel "${s.label}" has unit "${s.physicalDimension}", not a voltage`);
+    }
+    if (!(s.fsHz > 0)) throw new PipelineError('channels', edf.file, 'samples per record', `channel "${s.label}" has sampling rate ${s.fsHz} Hz`);
+    out.push({ signal: s, montage: { ...parsed, type, fsHz: s.fsHz }, name: parsed.electrode, toUv });
+  }
+  if (out.length === 0) {
+    throw new PipelineError('channels', edf.file, 'label', `no channel selected (types ${params.channelTypes.join(', ')}${params.includeChannels.length ? `, include ${params.includeChannels.join(', ')}` : ''})`);
+  }
+  // Two channels with the same electrode (e.g. C3-M2 and C3-M1): name both by the derivation.
+  const count = new Map<string, number>();
+  for (const c of out) count.set(c.name, (count.get(c.name) ?? 0) + 1);
+  for (const c of out) if (count.get(c.name)! > 1 && c.montage.reference) c.name = `${c.montage.electrode}-${c.montage.reference}`;
+  const seen = new Set<string>();
+  for (const c of out) {
+    if (seen.has(c.name)) throw new PipelineError('channels', edf.file, 'label', `two channels are both "${c.name}"; exclude one of them`);
+    seen.add(c.name);
+  }
+  return out;
+}
+
+async function readHypnogram(edf: EdfFile, rec: CohortRecording, params: IngestParams): Promise<Hypnogram> {
+  try {
+    if (rec.scoringPath) {
+      const separate = path.extname(rec.scoringPath).toLowerCase() === '.edf';
+      return await readScoring(rec.scoringPath, { epochS: params.epochS, recordingDurationS: edf.durationS, separateAnnotationFile: separate });
+    }
+    const startS = edf.recordOnsetsS.length ? edf.recordOnsetsS[0] : 0;
+    const annotations = edf.annotations.map((a) => ({ ...a, onsetS: a.onsetS - startS }));
+    return scoringFromAnnotations(annotations, edf.file, `annotations:${path.basename(edf.file)}`, { epochS: params.epochS, recordingDurationS: edf.durationS });
+  } catch (e) {
+    throw new PipelineError('scoring', rec.scoringPath ?? edf.file, null, e instanceof Error ? e.message : String(e), { cause: e });
+  }
+}
+
+/** Per output channel of one reference: everything kept per epoch. */
+interface OutputState {
+  channel: string;
+  welch: Welch;
+  /** Samples per epoch. */
+  length: number;
+  /** Per-epoch stored-range PSD, row e, µV²/Hz. */
+  spectra: Float32Array;
+  hasData: Uint8Array;
+  tdReason: Array<'amplitude' | 'flat' | null>;
+  tdValue: Float64Array;
+  logBroadband: Float64Array;
+  logMuscle: Float64Array;
+  bandPower: Float32Array;
+  /** Mean full-range PSD over time-domain-clean epochs (recorded reference only), µV²/Hz. */
+  fullSum: Float64Array | null;
+  fullCount: number;
+}
+
+interface PlanState {
+  plan: ReferencePlan;
+  rereferencer: Rereferencer;
+  outputs: OutputState[];
+}
+
+/** Time-domain measures of one recorded channel over the kept epochs, for the quality metrics. */
+export interface ChannelMeasures {
+  channel: string;
+  /** Fraction of samples at the physical (= digital) limits. */
+  clippingFraction: number;
+  /** Median over kept epochs of the epoch SD, µV. */
+  medianSdUv: number;
+  /** Mean PSD 0 … fullMaxHz over time-domain-clean epochs (mains-hum metric), µV²/Hz. */
+  fullSpectrum: Float32Array;
+  fullStepHz: number;
+}
+
+/**
+ * Processes one recording into the bundle the store writes. `runId` defaults to the identity of
+ * `params` (the store derives the same from the same parameters in beginRun).
+ */
+export async function processRecording(
+  rec: CohortRecording,
+  params: IngestParams,
+  onProgress?: (p: PipelineProgress) => void,
+  runId: string = runIdentity(params).runId,
+): Promise<RecordingBundle & { measures: ChannelMeasures[] }> {
+  const file = rec.recordingPath;
+  const sha = fileSha256(file).catch((e: unknown) => {
+    throw new PipelineError('hash', file, null, `cannot read the file for its SHA-256: ${e instanceof Error ? e.message : String(e)}`, { cause: e });
+  });
+  sha.catch(() => undefined); // awaited below; avoid an unhandled rejection if an earlier step fails
+  let edf: EdfFile;
+  try {
+    edf = await openEdf(file);
+  } catch (e) {
+    throw new PipelineError('open', file, (e as { field?: string }).field ?? null, e instanceof Error ? e.message : String(e), { cause: e });
+  }
+  try {
+    const hyp = await readHypnogram(edf, rec, params);
+    const epochS = hyp.epochS;
+    const selected = selectChannels(edf, rec, params);
+    const { plans, skips } = planReferences(selected.map((s) => s.montage), { references: params.references, bipolarPairs: params.bipolarPairs });
+    const recordedNames = selected.map((s) => s.name);
+
+    const step = 1 / params.segmentS;
+    const nyquist = Math.min(...selected.map((s) => s.signal.fsHz / 2));
+    const storedMaxHz = Math.min(params.maxFreqHz, nyquist);
+    const nStored = Math.floor(storedMaxHz / step + 1e-9) + 1;
+    const fullMaxHz = Math.min(params.qualityMaxFreqHz, nyquist);
+    const bands = params.bands.filter((b) => bandBins(b, 0, step, nStored) !== null);
+    const bandTable = new BandPowerTable(bands, 0, step, nStored, params.bandMethod);
+    const { broadbandHz, muscleHz } = params.rejection;
+    const broadBand = new BandPowerTable([{ name: 'broadband', loHz: broadbandHz[0], hiHz: Math.min(broadbandHz[1], fullMaxHz) }], 0, step, 1 << 20, 'mean');
+    const muscleBand = new BandPowerTable([{ name: 'muscle', loHz: muscleHz[0], hiHz: Math.min(muscleHz[1], fullMaxHz) }], 0, step, 1 << 20, 'mean');
+
+    const nGrid = Math.max(0, Math.ceil(edf.durationS / epochS - 1e-6));
+    const welchByFs = new Map<number, Welch>();
+    const welchFor = (fs: number) => {
+      let w = welchByFs.get(fs);
+      if (!w) {
+        try {
+          w = new Welch(fs, { segmentS: params.segmentS, overlap: params.overlap, maxFreqHz: fullMaxHz });
+        } catch (e) {
+          throw new PipelineError('spectra', file, 'segment length', (e as Error).message, { cause: e });
+        }
+        welchByFs.set(fs, w);
+      }
+      return w;
+    };
+    const states: PlanState[] = plans.map((plan) => {
+      const outputs = plan.outputs.map((o): OutputState => {
+        const fs = selected[o.source].signal.fsHz;
+        const welch = welchFor(fs);
+        return {
+          channel: plan.reference === 'recorded' ? recordedNames[o.source] : o.channel,
+          welch,
+          length: Math.round(fs * epochS),
+          spectra: new Float32Array(nGrid * nStored),
+          hasData: new Uint8Array(nGrid),
+          tdReason: new Array(nGrid).fill(null),
+          tdValue: new Float64Array(nGrid),
+          logBroadband: new Float64Array(nGrid).fill(NaN),
+          logMuscle: new Float64Array(nGrid).fill(NaN),
+          bandPower: new Float32Array(nGrid * bands.length),
+          fullSum: plan.reference === 'recorded' ? new Float64Array(welch.nBins) : null,
+          fullCount: 0,
+        };
+      });
+      return { plan, rereferencer: new Rereferencer(plan, plan.fsHz ? Math.round(plan.fsHz * epochS) : 0), outputs };
+    });
+
+    const stages: Stage[] = new Array(nGrid);
+    for (let e = 0; e < nGrid; e++) stages[e] = hyp.stages[e] ?? 'unscored';
+    const dropReason: (string | null)[] = new Array(nGrid).fill(null);
+    const onsetS = Float64Array.from({ length: nGrid }, (_, e) => e * epochS);
+    const clipped = new Float64Array(selected.length);
+    let epochsSeen = 0;
+    const epochSd = selected.map(() => new Float64Array(nGrid).fill(NaN));
+    const psd = new Float64Array(Math.max(...[...welchByFs.values()].map((w) => w.nBins)));
+    const one = new Float64Array(1);
+
+    let done = 0;
+    try {
+      for await (const block of edf.readEpochs({ signals: selected.map((s) => s.signal.index), epochS })) {
+        const e = block.epoch;
+        if (e >= nGrid) break;
+        if (block.dropReason || !block.data) {
+          dropReason[e] = block.dropReason === 'end' ? 'recording-end' : 'gap';
+          continue;
+        }
+        const data = block.data;
+        for (let c = 0; c < selected.length; c++) {
+          const x = data[c];
+          const k = selected[c].toUv;
+          const sig = selected[c].signal;
+          // clipping: samples within half a digital step of the physical limits
+          const tol = 0.5 * Math.abs(sig.gain);
+          const lo = Math.min(sig.physicalMin, sig.physicalMax) + tol;
+          const hi = Math.max(sig.physicalMin, sig.physicalMax) - tol;
+          let n = 0;
+          for (let i = 0; i < x.length; i++) if (x[i] <= lo || x[i] >= hi) n++;
+          clipped[c] += n;
+          if (k !== 1) for (let i = 0; i < x.length; i++) x[i] *= k;
+        }
+        epochsSeen += 1;
+        for (const st of states) {
+          const signals = st.rereferencer.apply(data);
+          for (let o = 0; o < st.outputs.length; o++) {
+            const out = st.outputs[o];
+            const x = signals[o];
+            const td = timeDomainCheck(x, 0, out.length, out.welch.fsHz, params.rejection);
+            if (st.plan.reference === 'recorded') epochSd[st.plan.outputs[o].source][e] = td.sdUv;
+            out.hasData[e] = 1;
+            out.tdReason[e] = td.reason;
+            out.tdValue[e] = td.value ?? NaN;
+            out.welch.mean(x, 0, out.length, psd);
+            out.spectra.set(psd.subarray(0, nStored), e * nStored);
+            broadBand.compute(psd, one);
+            out.logBroadband[e] = Math.log10(one[0]);
+            muscleBand.compute(psd, one);
+            out.logMuscle[e] = Math.log10(one[0]);
+            bandTable.compute(psd.subarray(0, nStored), out.bandPower.subarray(e * bands.length, (e + 1) * bands.length));
+            if (out.fullSum && td.reason === null) {
+              const full = out.fullSum;
+              for (let b = 0; b < full.length; b++) full[b] += psd[b];
+              out.fullCount++;
+            }
+          }
+        }
+        done++;
+        if (onProgress && (done & 15) === 0) onProgress({ step: 'read', done: e + 1, total: nGrid });
+      }
+    } catch (e) {
+      if (e instanceof PipelineError) throw e;
+      throw new PipelineError('read', file, (e as { field?: string }).field ?? null, e instanceof Error ? e.message : String(e), { cause: e });
+    }
+    onProgress?.({ step: 'read', done: nGrid, total: nGrid });
+
+    // ---- per reference and channel: outliers within stage, stage averages, fits ----
+    const stageIdx = Int32Array.from(stages, (s) => SCORED_STAGES.indexOf(s as (typeof SCORED_STAGES)[number]));
+    const freqs = Float64Array.from({ length: nStored }, (_, k) => k * step);
+    const rejections: EpochRejection[] = [];
+    const spectra: SpectrumRow[] = [];
+    const aperiodic: AperiodicRow[] = [];
+    const peaks: PeakRow[] = [];
+    const bandPowers: BandPowerBlock[] = [];
+    const quality: QualityRowIn[] = [];
+    const fitRange: [number, number] | null = params.fit ? [params.fit.fitRangeHz[0], Math.min(params.fit.fitRangeHz[1], storedMaxHz)] : null;
+    let outputsDone = 0;
+    const outputsTotal = states.reduce((s, st) => s + st.outputs.length, 0);
+    for (const st of states) {
+      const reference = st.plan.reference;
+      // Rejections are stored per channel name; re-referenced channels of mastoid/average
+      // references share names with the recorded ones, so only recorded and bipolar rows are
+      // stored (the others' clean-epoch counts are in spectra.n_epochs).
+      const storeRejections = reference === 'recorded' || reference === 'bipolar';
+      const block = { channelIdx: [] as number[], epoch: [] as number[], bandIdx: [] as number[], power: [] as number[] };
+      st.outputs.forEach((out, oi) => {
+        const eligible = Uint8Array.from(out.hasData, (h, e) => (h && out.tdReason[e] === null ? 1 : 0));
+        const outliers = spectralOutliers(out.logBroadband, out.logMuscle, stageIdx, eligible, params.rejection.outlierZ);
+        const clean = eligible.slice();
+        for (const r of outliers) clean[r.epoch] = 0;
+        if (storeRejections) {
+          for (let e = 0; e < nGrid; e++) {
+            const reason = out.tdReason[e];
+            if (out.hasData[e] && reason) rejections.push({ channel: out.channel, epoch: e, reason, value: Number.isFinite(out.tdValue[e]) ? out.tdValue[e] : null });
+          }
+          for (const r of outliers) rejections.push({ channel: out.channel, epoch: r.epoch, reason: r.reason, value: r.value });
+        }
+        for (let e = 0; e < nGrid; e++) {
+          if (!out.hasData[e]) continue;
+          for (let b = 0; b < bands.length; b++) {
+            block.channelIdx.push(oi);
+            block.epoch.push(e);
+            block.bandIdx.push(b);
+            block.power.push(out.bandPower[e * bands.length + b]);
+          }
+        }
+        const w = out.welch;
+        const K = w.segmentCount(out.length);
+        const nu = welchDegreesOfFreedom(K, hannWindow(w.nPerSeg), w.step);
+        SCORED_STAGES.forEach((stage, si) => {
+          const rows: number[] = [];
+          for (let e = 0; e < nGrid; e++) if (clean[e] && stageIdx[e] === si) rows.push(e);
+          const avg = averageStage(out.spectra, nStored, rows, nu, params.minEpochs);
+          if (!avg) return;
+          for (const averaging of ['mean', 'median'] as const) {
+            const power = Float32Array.from(averaging === 'mean' ? avg.mean : avg.median);
+            spectra.push({
+              channel: out.channel, stage, reference, averaging, nEpochs: avg.nEpochs, nSegments: avg.nEpochs * K,
+              freqStartHz: 0, freqStepHz: step, power, flagged: avg.flagged, flagReason: avg.flagReason,
+            });
+            if (fitRange) fitOne(power, { channel: out.channel, stage, reference, averaging });
+          }
+        });
+        outputsDone++;
+        onProgress?.({ step: 'spectra', done: outputsDone, total: outputsTotal });
+      });
+      bandPowers.push({
+        reference,
+        channels: st.outputs.map((o) => o.channel),
+        bands: bands.map((b) => b.name),
+        channelIdx: Int32Array.from(block.channelIdx),
+        epoch: Int32Array.from(block.epoch),
+        bandIdx: Int32Array.from(block.bandIdx),
+        power: Float32Array.from(block.power),
+      });
+    }
+
+    function fitOne(power: Float32Array, key: Pick<AperiodicRow, 'channel' | 'stage' | 'reference' | 'averaging'>): void {
+      const { fitRangeHz: _r, ...fitOptions } = params.fit!;
+      try {
+        const fit = fitSpectrum(freqs, power, { ...fitOptions, fitRangeHz: fitRange! });
+        aperiodic.push({ ...key, method: fit.method, fitLoHz: fit.fitLoHz, fitHiHz: fit.fitHiHz, offset: fit.offset, exponent: fit.exponent, knee: fit.knee, r2: fit.r2, rmse: fit.rmse, nPeaks: fit.peaks.length });
+        for (const p of fit.peaks) peaks.push({ ...key, method: fit.method, centerHz: p.centerHz, height: p.height, bandwidthHz: p.bandwidthHz });
+      } catch (e) {
+        // a spectrum that cannot be fitted keeps a row with empty values and a quality flag
+        aperiodic.push({ ...key, method: 'fit', fitLoHz: fitRange![0], fitHiHz: fitRange![1], offset: null, exponent: null, knee: null, r2: null, rmse: null, nPeaks: null });
+        quality.push({ channel: key.channel, stage: key.stage, metric: 'fit-failed', value: null, flagged: true, reason: `aperiodic fit failed (${key.averaging}): ${(e as Error).message}`, reference: key.reference });
+      }
+    }
+
+    const recordedState = states.find((s) => s.plan.reference === 'recorded');
+    const measures: ChannelMeasures[] = selected.map((s, c) => {
+      const out = recordedState?.outputs.find((_, o) => recordedState.plan.outputs[o].source === c);
+      const sds = Array.from(epochSd[c]).filter(Number.isFinite).sort((a, b) => a - b);
+      const fullSpectrum = new Float32Array(out?.fullSum?.length ?? 0);
+      if (out?.fullSum && out.fullCount > 0) for (let b = 0; b < fullSpectrum.length; b++) fullSpectrum[b] = out.fullSum[b] / out.fullCount;
+      return {
+        channel: s.name,
+        clippingFraction: epochsSeen > 0 ? clipped[c] / (epochsSeen * Math.round(s.signal.fsHz * epochS)) : 0,
+        medianSdUv: sds.length ? sds[Math.floor(sds.length / 2)] : NaN,
+        fullSpectrum,
+        fullStepHz: step,
+      };
+    });
+
+    const arch = sleepArchitecture(stages, epochS);
+    const channels: ChannelRow[] = selected.map((s) => {
+      const pos = electrodePosition(s.montage.electrode ?? '');
+      return {
+        channel: s.name, type: s.montage.type, unit: 'µV', fsHz: s.signal.fsHz, prefilter: s.signal.prefilter.trim() || null,
+        x: pos?.x ?? null, y: pos?.y ?? null, z: pos?.z ?? null, label: s.signal.label.trim(), referenceElectrode: s.montage.reference,
+        physicalMin: s.signal.physicalMin, physicalMax: s.signal.physicalMax, digitalMin: s.signal.digitalMin, digitalMax: s.signal.digitalMax,
+      };
+    });
+    const nDropped = dropReason.filter((d) => d !== null).length;
+    const bundle = {
+      runId,
+      recording: {
+        subject: rec.subject, session: rec.session, fileName: path.basename(file), fileSha256: await sha, durationS: edf.durationS,
+        status: 'ok', edfVariant: edf.header.variant, scoringSource: hyp.source, epochLengthS: epochS, nEpochs: nGrid,
+        nEpochsDropped: nDropped, tstMin: arch.totalSleepTimeMin, sePct: arch.sleepEfficiencyPct, solMin: arch.sleepOnsetLatencyMin,
+        stageMin: arch.minutesPerStage,
+      },
+      channels,
+      epochs: { onsetS, stage: stages, dropReason },
+      rejections,
+      spectra,
+      bandPowers,
+      aperiodic,
+      peaks,
+      quality,
+      referenceSkips: skips,
+      measures,
+    };
+    return bundle;
+  } finally {
+    await edf.close();
+  }
+}
+
+/** The ArrayBuffers of a bundle's typed arrays, for a zero-copy postMessage transfer. */
+export function bundleTransferList(bundle: RecordingBundle & { measures?: ChannelMeasures[] }): ArrayBuffer[] {
+  const buffers = new Set<ArrayBuffer>();
+  const add = (a: { buffer: ArrayBufferLike }) => {
+    if (a.buffer instanceof ArrayBuffer) buffers.add(a.buffer);
+  };
+  add(bundle.epochs.onsetS);
+  for (const s of bundle.spectra) add(s.power);
+  for (const b of bundle.bandPowers) [b.channelIdx, b.epoch, b.bandIdx, b.power].forEach(add);
+  for (const m of bundle.measures ?? []) add(m.fullSpectrum);
+  return [...buffers];
+}
