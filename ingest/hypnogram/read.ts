@@ -4,6 +4,7 @@
  * names an 'onset' column, else a per-epoch text file.
  */
 import path from 'node:path';
+import { detectDelimiter, parseDelimited } from '../cohort/delimited.ts';
 import { readScoringEdf } from './edf.ts';
 import type { EdfScoringOptions } from './edf.ts';
 import { readScoringFile, scoringFromTableText } from './table.ts';
@@ -16,6 +17,13 @@ export async function readScoring(file: string, options: EdfScoringOptions = {})
   const text = await readScoringFile(file);
   if (ext === '.tsv' || ext === '.csv') return scoringFromTableText(text, file, options);
   if (ext === '.txt') return scoringFromText(text, file, options);
-  const first = (text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '').toLowerCase();
-  return first.split(/[\t,]/).some((c) => c.trim().replace(/^"|"$/g, '') === 'onset') ? scoringFromTableText(text, file, options) : scoringFromText(text, file, options);
+  const firstLine = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '';
+  let header: string[] = [];
+  try {
+    header = parseDelimited(firstLine, detectDelimiter(file, text)).header;
+  } catch {
+    // an unclosed quote: not a table header
+  }
+  const isTable = header.some((h) => h.trim().toLowerCase() === 'onset');
+  return isTable ? scoringFromTableText(text, file, options) : scoringFromText(text, file, options);
 }

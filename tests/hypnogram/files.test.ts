@@ -4,6 +4,7 @@ import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { readScoringTable } from '../../ingest/hypnogram/table.ts';
 import { readScoringText } from '../../ingest/hypnogram/text.ts';
+import { readScoring } from '../../ingest/hypnogram/read.ts';
 import { ScoringError } from '../../ingest/hypnogram/types.ts';
 
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-hyp-'));
@@ -96,5 +97,15 @@ describe('scoring text files (one label per epoch)', () => {
     expect(h.epochS).toBe(20);
     expect(h.stages).toEqual(['N2', 'N2', 'R', 'unscored', 'unscored']);
     expect(h.warnings[0]).toEqual({ kind: 'gap', epochs: [3, 4], message: 'no scoring for epochs 3–4 (60–100 s): set to unscored' });
+  });
+});
+
+describe('readScoring picks the reader', () => {
+  it('by extension, else by an onset column in the first line', async () => {
+    expect((await readScoring(file('x.txt', 'N2\nR\n'))).source).toBe('text:x.txt');
+    expect((await readScoring(file('x.csv', 'onset,duration,stage\n0,30,N2\n'))).source).toBe('table:x.csv');
+    expect((await readScoring(file('x.hyp', '"Onset",Duration,Stage\n0,30,N2\n'))).source).toBe('table:x.hyp');
+    const plain = await readScoring(file('y.hyp', 'W\nS2\n'));
+    expect([plain.source, plain.stages]).toEqual(['text:y.hyp', ['W', 'N2']]);
   });
 });
