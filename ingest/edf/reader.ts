@@ -16,6 +16,8 @@ export const ONSET_TOLERANCE_S = 1e-4;
 const DEFAULT_CHUNK_BYTES = 4 * 1024 * 1024;
 /** Records whose annotation bytes are fetched by one batch of positioned reads. */
 const ANNOTATION_BATCH_RECORDS = 512;
+/** Records at least this large get positioned reads of their annotation bytes only; smaller ones are read whole. */
+const SLICE_READ_MIN_RECORD_BYTES = 16384;
 
 export interface EdfGap {
   /** 0-based index of the record after which the gap starts. */
@@ -105,27 +107,51 @@ async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHe
     byteOffset.push(acc);
     acc += 2 * s.samplesPerRecord;
   }
+  const annBytes = annSignals.reduce((a, s) => a + 2 * s.samplesPerRecord, 0);
+  // Small records are read whole, chunk by chunk: the OS reads whole pages anyway, and one read per tiny record would dominate.
+  const wholeRecords = recB < SLICE_READ_MIN_RECORD_BYTES;
+  const batch = wholeRecords ? Math.max(1, Math.floor(DEFAULT_CHUNK_BYTES / recB)) : ANNOTATION_BATCH_RECORDS;
+  const buf = new Uint8Array(batch * (wholeRecords ? recB : annBytes));
   const isPlus = header.variant !== 'EDF';
   const timeKeeping = new Float64Array(header.nRecords);
-  const first = annSignals[0];
-  for (let r0 = 0; r0 < header.nRecords; r0 += ANNOTATION_BATCH_RECORDS) {
-    const r1 = Math.min(header.nRecords, r0 + ANNOTATION_BATCH_RECORDS);
-    for (const sig of annSignals) {
-      const width = 2 * sig.samplesPerRecord;
-      const buf = new Uint8Array((r1 - r0) * width);
-      const reads: Promise<number>[] = [];
+  for (let r0 = 0; r0 < header.nRecords; r0 += batch) {
+    const r1 = Math.min(header.nRecords, r0 + batch);
+    // slice(r, k): the bytes of annotation signal k in record r, inside buf.
+    let slice: (r: number, k: number) => Uint8Array;
+    if (wholeRecords) {
+      const want = (r1 - r0) * recB;
+      const got = await readFully(fh, file, buf, want, header.headerBytes + r0 * recB);
+      if (got < want) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r0 + 1}`, { record: r0 });
+      slice = (r, k) => buf.subarray((r - r0) * recB + byteOffset[annSignals[k].index], (r - r0) * recB + byteOffset[annSignals[k].index] + 2 * annSignals[k].samplesPerRecord);
+    } else {
+      // Positioned reads of just the annotation bytes of each record, issued together.
+      const at: number[][] = [];
+      const reads: Promise<void>[] = [];
+      let o = 0;
       for (let r = r0; r < r1; r++) {
-        const pos = header.headerBytes + r * recB + byteOffset[sig.index];
-        reads.push(readFully(fh, file, buf.subarray((r - r0) * width), width, pos));
-      }
-      const got = await Promise.all(reads);
-      for (let r = r0; r < r1; r++) {
-        if (got[r - r0] < width) {
-          throw new EdfFormatError(file, 'file', String(got[r - r0]), `file was truncated while reading: record ${r + 1} gave ${got[r - r0]} of ${width} annotation bytes`, { record: r });
+        const row: number[] = [];
+        for (const sig of annSignals) {
+          const width = 2 * sig.samplesPerRecord;
+          const start = o;
+          row.push(start);
+          reads.push(
+            readFully(fh, file, buf.subarray(start, start + width), width, header.headerBytes + r * recB + byteOffset[sig.index]).then((got) => {
+              if (got < width) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: record ${r + 1} gave ${got} of ${width} annotation bytes`, { record: r });
+            }),
+          );
+          o += width;
         }
-        const tals = parseTals(buf.subarray((r - r0) * width, (r - r0 + 1) * width), file, r, { index: sig.index, label: sig.label });
+        at.push(row);
+      }
+      await Promise.all(reads);
+      slice = (r, k) => buf.subarray(at[r - r0][k], at[r - r0][k] + 2 * annSignals[k].samplesPerRecord);
+    }
+    for (let r = r0; r < r1; r++) {
+      for (let k = 0; k < annSignals.length; k++) {
+        const sig = annSignals[k];
+        const tals = parseTals(slice(r, k), file, r, { index: sig.index, label: sig.label });
         let firstTal = 0;
-        if (sig === first) {
+        if (k === 0) {
           // EDF+ 2003 §2.2.4: the first TAL of each record in the first annotation signal is the
           // time-keeping one: empty first text, onset = the record's start.
           const tk = tals[0];
@@ -133,13 +159,11 @@ async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHe
           if (isTimeKeeping) {
             timeKeeping[r] = tk.onsetS;
             tals[0] = { onsetS: tk.onsetS, durationS: tk.durationS, texts: tk.texts.slice(1) };
+            if (tals[0].texts.length === 0) firstTal = 1;
           } else if (isPlus) {
             const seen = tk === undefined ? 'no annotation list' : `a list at onset ${tk.onsetS} with text "${showValue(tk.texts[0] ?? '')}"`;
             throw new EdfFormatError(file, 'annotations', tk === undefined ? '' : String(tk.onsetS), `${header.variant} record starts with ${seen} instead of a time-keeping TAL (onset, then an empty text)`, { record: r, signal: { index: sig.index, label: sig.label } });
-          } else {
-            timeKeeping[r] = r * header.recordDurationS;
           }
-          if (tals[0] && tals[0].texts.length === 0) firstTal = 1;
         }
         for (let t = firstTal; t < tals.length; t++) {
           const texts = tals[t].texts.filter((x) => x !== '');

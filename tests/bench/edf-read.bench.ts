@@ -53,6 +53,7 @@ export async function run(): Promise<Record<string, unknown>> {
 
     const t0 = performance.now();
     const f = await openEdf(path);
+    const openSeconds = (performance.now() - t0) / 1000; // header + annotation pass
     const signals = f.header.signals.filter((s) => !s.isAnnotation).map((s) => s.index);
     let samples = 0;
     let checksum = 0;
@@ -78,6 +79,7 @@ export async function run(): Promise<Record<string, unknown>> {
       channelSamples: samples,
       channelSamplesPerSecond: Math.round(samples / seconds),
       seconds: Number(seconds.toFixed(3)),
+      openSeconds: Number(openSeconds.toFixed(3)),
       fileBytes,
       writeSeconds: Number(writeSeconds.toFixed(3)),
       peakRssMB: Number((process.resourceUsage().maxRSS / 1024).toFixed(1)),

@@ -201,3 +201,41 @@ describe('plain EDF built by hand', () => {
     }
   });
 });
+
+describe('large records: annotation bytes fetched by positioned reads of just those bytes', () => {
+  it('an EDF+D file with 20-kB records gives the same onsets, gaps, annotations and samples', async () => {
+    const spr = 10_000; // 20,000 bytes per record, above the whole-record read size
+    const onsets = [0, 1, 2, 10, 11];
+    const records = onsets.map((t, r) => {
+      const v = Array.from({ length: spr }, (_, i) => ((i * 31 + r * 7) % 4001) - 2000);
+      const tal = r === 3 ? `+${t}\x14\x14\x00+10.5\x152\x14Spindle ✓\x14\x00` : `+${t}\x14\x14\x00`;
+      return concat([int16le(v), talBytes(tal, 40)]);
+    });
+    const bytes = handEdf({
+      patient: 'X X X X',
+      recording: 'Startdate X X X X',
+      date: '01.02.03',
+      time: '04.05.06',
+      reserved: 'EDF+D',
+      nRecords: String(onsets.length),
+      duration: '1',
+      signals: [
+        { label: 'EEG Cz', dim: 'uV', pmin: '-2000', pmax: '2001', dmin: '-2000', dmax: '2001', spr: String(spr) },
+        { label: 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-32768', dmax: '32767', spr: '20' },
+      ],
+      data: concat(records),
+    });
+    const f = await openEdf(save('big.edf', bytes));
+    try {
+      expect(Array.from(f.recordOnsetsS)).toEqual(onsets);
+      expect(f.gaps).toEqual([{ afterRecord: 2, startS: 3, endS: 10 }]);
+      expect(f.annotations).toEqual([{ onsetS: 10.5, durationS: 2, texts: ['Spindle ✓'] }]);
+      const blocks = await collect(f.readEpochs({ signals: [0], epochS: 1, chunkBytes: 50_000 }));
+      expect(blocks.map((b) => b.dropReason)).toEqual([null, null, null, 'gap', 'gap', 'gap', 'gap', 'gap', 'gap', 'gap', null, null]);
+      // pmin = dmin and pmax = dmax: physical equals digital (gain 1).
+      expect(blocks[10].data![0].slice(0, 3)).toEqual([21 - 2000, 52 - 2000, 83 - 2000]);
+    } finally {
+      await f.close();
+    }
+  });
+});
