@@ -136,6 +136,8 @@ export interface QualityRowIn {
   flagged: boolean;
   reason: string | null;
   reference?: Reference | null;
+  /** 0 clean, ≥ 1 flagged (src/core/quality); null if not given. */
+  severity?: number | null;
 }
 
 export interface ReferenceSkip {

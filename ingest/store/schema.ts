@@ -198,6 +198,7 @@ export const TABLES: readonly TableDef[] = [
       col('flagged', 'BOOLEAN', 'true when the value breaks its threshold', true),
       col('reason', 'VARCHAR', 'plain reason for the flag, NULL if not flagged'),
       col('reference', 'VARCHAR', 'reference of the spectrum the metric was computed on, NULL if not spectral'),
+      col('severity', 'DOUBLE', 'value on a common scale relative to its threshold: 0 clean, ≥ 1 flagged, capped at 10 (src/core/quality/severity)'),
     ],
   },
   {

@@ -287,6 +287,7 @@ function qualitySources(rows: readonly QualityRowIn[]): Record<string, (i: numbe
     flagged: (i) => rows[i].flagged,
     reason: (i) => rows[i].reason,
     reference: (i) => rows[i].reference ?? null,
+    severity: (i) => rows[i].severity ?? null,
   };
 }
 
