@@ -8,6 +8,7 @@
  */
 import path from 'node:path';
 import { openEdf } from '../edf/reader.ts';
+import type { EdfFile } from '../edf/reader.ts';
 import { scoringFromAnnotations } from './annotations.ts';
 import type { Hypnogram, ScoringOptions } from './types.ts';
 
@@ -19,11 +20,16 @@ export interface EdfScoringOptions extends ScoringOptions {
 export async function readScoringEdf(file: string, options: EdfScoringOptions = {}): Promise<Hypnogram> {
   const edf = await openEdf(file);
   try {
-    const startS = edf.recordOnsetsS.length ? edf.recordOnsetsS[0] : 0;
-    const annotations = edf.annotations.map((a) => ({ ...a, onsetS: a.onsetS - startS }));
-    const recordingDurationS = options.recordingDurationS !== undefined ? options.recordingDurationS : options.separateAnnotationFile ? null : edf.durationS;
-    return scoringFromAnnotations(annotations, file, `annotations:${path.basename(file)}`, { ...options, recordingDurationS });
+    return scoringFromOpenEdf(edf, options);
   } finally {
     await edf.close();
   }
+}
+
+/** The same from an EDF file already open (the recording being ingested); does not close it. */
+export function scoringFromOpenEdf(edf: EdfFile, options: EdfScoringOptions = {}): Hypnogram {
+  const startS = edf.recordOnsetsS.length ? edf.recordOnsetsS[0] : 0;
+  const annotations = edf.annotations.map((a) => ({ ...a, onsetS: a.onsetS - startS }));
+  const recordingDurationS = options.recordingDurationS !== undefined ? options.recordingDurationS : options.separateAnnotationFile ? null : edf.durationS;
+  return scoringFromAnnotations(annotations, edf.file, `annotations:${path.basename(edf.file)}`, { ...options, recordingDurationS });
 }

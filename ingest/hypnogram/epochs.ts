@@ -39,7 +39,8 @@ export interface IntervalContext {
   eventStyle: boolean;
 }
 
-const TOL_S = 1e-6;
+/** Times closer than this are equal: 100 µs, the annotation time resolution of EDFlib (common practice). */
+const TOL_S = 1e-4;
 
 /** Collects epochs under a key, keeping the first-seen description. */
 class Buckets {
@@ -70,7 +71,7 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
   if (recDur !== null && !(recDur >= 0 && Number.isFinite(recDur))) {
     throw new ScoringError(ctx.file, [{ kind: 'recording-duration', epochs: [], message: `recording duration must be a non-negative number of seconds, got ${recDur}` }]);
   }
-  const nFull = recDur === null ? Infinity : Math.floor(recDur / epochS + 1e-9);
+  const nFull = recDur === null ? Infinity : Math.floor((recDur + TOL_S) / epochS);
   const hasPartial = recDur !== null && recDur - nFull * epochS > TOL_S;
 
   const sorted = [...intervals].sort((a, b) => a.onsetS - b.onsetS);
@@ -88,7 +89,7 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
       problems.push({ kind: 'onset', epochs: [], message: `${what}: onset ${iv.onsetS} s is not a time at or after the recording start` });
       continue;
     }
-    const firstEpoch = Math.floor(iv.onsetS / epochS + 1e-9);
+    const firstEpoch = Math.floor((iv.onsetS + TOL_S) / epochS);
     let stage = stageFromLabel(iv.label, options.labelMap);
     if (stage === undefined) {
       if (ctx.eventStyle && !looksLikeStageLabel(iv.label)) {
