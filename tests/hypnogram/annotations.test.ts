@@ -76,7 +76,7 @@ describe('scoring from EDF+ annotations', () => {
     expect(e.message).toContain("'N2' (annotation at 45 s): onset 45 s is not on the 30-s epoch grid (inside epoch 1 (30–60 s))");
     expect(e.message).toContain("'N3' (annotation at 90 s): duration 45 s from epoch 3 (90–120 s) is not a whole number of 30-s epochs");
     // Within the 100-µs annotation resolution of EDFlib an onset counts as on the grid; 1 ms off does not.
-    expect(score([{ onsetS: 30.00005, durationS: 29.9999, texts: ['N2'] }]).stages).toEqual(['unscored', 'N2']);
+    expect(score([{ onsetS: 30.00005, durationS: 29.99995, texts: ['N2'] }]).stages).toEqual(['unscored', 'N2']);
     expect(scoringError(() => score([{ onsetS: 30.001, durationS: 30, texts: ['N2'] }])).problems[0].kind).toBe('off-grid');
     // 20-s epochs: 40 s is on the grid.
     expect(score([{ onsetS: 40, durationS: 20, texts: ['N2'] }], { epochS: 20 }).stages).toEqual(['unscored', 'unscored', 'N2']);
