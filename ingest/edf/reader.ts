@@ -1,6 +1,7 @@
 // Streaming EDF/EDF+ reader (Kemp et al. 1992; Kemp & Olivan 2003). Opens a file, parses and
-// validates its header, makes one pass over the annotation signal only (positioned reads of
-// those bytes), and then hands out whole epochs of physical samples, reading the data records
+// validates its header, makes one pass over the annotation signal (positioned reads of just
+// those bytes when records are 16 kB or more; smaller records are read whole in 4-MiB chunks,
+// as the OS reads whole pages anyway), and then hands out whole epochs of physical samples, reading the data records
 // in chunks through one FileHandle so memory stays bounded whatever the file size.
 import { open, type FileHandle } from 'node:fs/promises';
 import { endianness } from 'node:os';

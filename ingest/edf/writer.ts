@@ -293,7 +293,6 @@ export class EdfWriter {
       try {
         await this.fh.close();
       } catch (cause) {
-        // eslint-disable-next-line no-unsafe-finally
         throw new EdfIoError(this.path, 'close', cause);
       }
     }
