@@ -41,11 +41,14 @@ describe('dashboard in chromium: cohort view', () => {
     );
     const expected = ['control', 'patient'].map((g) => {
       const members = FIXTURE_PARTICIPANTS.filter((p) => p.group === g);
-      return [g, String(members.length), String(members.length), String(members.filter((p) => p.ingested).length)];
+      const ingested = String(members.filter((p) => p.ingested).length);
+      return [g, String(members.length), ingested, ingested];
     });
     expect(cells).toEqual(expected);
 
-    await expect.poll(() => page.getByTestId('recordings').locator('tbody tr').count()).toBe(FIXTURE_PARTICIPANTS.length);
+    await expect
+      .poll(() => page.getByTestId('recordings').locator('tbody tr').count())
+      .toBe(FIXTURE_PARTICIPANTS.filter((p) => p.ingested).length);
     await expect.poll(() => page.getByTestId('participants').locator('tbody tr').count()).toBe(FIXTURE_PARTICIPANTS.length);
     const errorsText = await page.getByTestId('ingest-errors').locator('tbody').innerText();
     expect(errorsText).toContain('sub-07_night.edf');
@@ -101,9 +104,10 @@ describe('dashboard in chromium: cohort view', () => {
       page.getByTestId('group-sizes').getByRole('button', { name: 'Export TSV' }).click(),
     ]);
     const text = readFileSync(await tsv.path(), 'utf8');
-    const females = FIXTURE_PARTICIPANTS.filter((p) => p.sex === 'F').length;
+    const females = FIXTURE_PARTICIPANTS.filter((p) => p.sex === 'F');
+    const femaleRecordings = females.filter((p) => p.ingested).length;
     expect(text.split('\n')[0]).toBe('group\tsubjects\trecordings\twithSpectra');
-    expect(text).toContain(`F\t${females}\t${females}\t`);
+    expect(text).toContain(`F\t${females.length}\t${femaleRecordings}\t${femaleRecordings}\n`);
     const [svg] = await Promise.all([
       page.waitForEvent('download'),
       page.getByTestId('group-size-figure').getByRole('button', { name: 'SVG' }).click(),

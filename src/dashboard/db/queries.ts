@@ -2,12 +2,7 @@
 // Results are plain arrays of rows; big numeric results are typed arrays.
 import { listColumnToMatrix, numberColumn, stringColumn, tableToRows, type Row } from './arrow-rows.ts';
 import { COHORT, ident, literal, type SqlClient } from './sql-client.ts';
-import { SLEEP_STAGES as SLEEP } from '../../core/stages.ts';
 
-/** Length of one scoring epoch in seconds (DESIGN.md: epoch = 30-s scoring unit). */
-export const EPOCH_S = 30;
-/** Stages counted as sleep, as an SQL list (AASM labels, src/core/stages.ts). */
-const SLEEP_STAGES = `(${SLEEP.map(literal).join(', ')})`;
 
 export interface TableColumn {
   name: string;
@@ -163,23 +158,42 @@ export async function groupSizes(db: SqlClient, schema: CohortSchema, groupColum
   }));
 }
 
+/** Sleep architecture columns of recordings (written by ingest with src/core/hypnogram), shown when present. */
+export const ARCHITECTURE_COLUMNS = [
+  'w_min',
+  'n1_min',
+  'n2_min',
+  'n3_min',
+  'r_min',
+  'unscored_min',
+  'tst_min',
+  'se_pct',
+  'sol_min',
+  'rem_latency_min',
+  'waso_min',
+] as const;
+
+/** Stage minutes shown also as a share of total sleep time (%), when both are stored. */
+const STAGE_SHARE = [
+  ['n1_min', 'n1_pct'],
+  ['n2_min', 'n2_pct'],
+  ['n3_min', 'n3_pct'],
+  ['r_min', 'r_pct'],
+] as const;
+
 /**
- * One row per recording: group (when `groupColumn` is given), duration, sampling rate and channel
- * count (from channels), minutes per stage and sleep architecture (from epochs), when those
- * tables exist. Architecture, common practice of sleep scoring: total sleep time = N1+N2+N3+R;
- * sleep efficiency = total sleep time / time in bed (all scored epochs); sleep onset latency =
- * first sleep epoch − first epoch; REM latency = first R − sleep onset; WASO = W between sleep
- * onset and the last sleep epoch; stage shares in % of total sleep time.
+ * One row per recording: group (when `groupColumn` is given), file, status, duration, sampling
+ * rate and channel count (from channels), minutes per stage and sleep architecture as stored by
+ * ingest (only the columns the database has), stage shares in % of total sleep time.
  */
 export async function recordingsOverview(db: SqlClient, schema: CohortSchema, groupColumn: string | null): Promise<Row[]> {
   schema.require('recordings', 'recording_id', 'subject');
   const withGroup = groupColumn !== null && schema.has('participants', 'subject', groupColumn);
   const withChannels = schema.has('channels', 'recording_id', 'fs_hz');
-  const withEpochs = schema.has('epochs', 'recording_id', 'onset_s', 'stage');
-  const m = EPOCH_S / 60; // minutes per epoch
   const ctes: string[] = [];
+  const joins: string[] = [];
   const select = [
-    'r.recording_id',
+    'r.recording_id::VARCHAR AS recording_id',
     'r.subject::VARCHAR AS subject',
     ...(schema.has('recordings', 'session') ? ['r.session::VARCHAR AS session'] : []),
     ...(withGroup ? [`coalesce(p.grp, ${literal(NO_GROUP)}) AS "group"`] : []),
@@ -187,7 +201,6 @@ export async function recordingsOverview(db: SqlClient, schema: CohortSchema, gr
     ...(schema.has('recordings', 'status') ? ['r.status::VARCHAR AS status'] : []),
     ...(schema.has('recordings', 'duration_s') ? ['r.duration_s::DOUBLE / 60 AS duration_min'] : []),
   ];
-  const joins: string[] = [];
   if (withGroup) {
     ctes.push(`p AS (SELECT subject, any_value(${ident(groupColumn)}::VARCHAR) AS grp FROM ${COHORT}.participants GROUP BY subject)`);
     joins.push('LEFT JOIN p ON p.subject = r.subject');
@@ -202,38 +215,11 @@ export async function recordingsOverview(db: SqlClient, schema: CohortSchema, gr
     );
     joins.push('LEFT JOIN fs ON fs.recording_id = r.recording_id');
   }
-  if (withEpochs) {
-    ctes.push(
-      `st AS (SELECT recording_id, count(*)::DOUBLE AS n,
-                count(*) FILTER (WHERE stage = 'W')::DOUBLE AS w, count(*) FILTER (WHERE stage = 'N1')::DOUBLE AS n1,
-                count(*) FILTER (WHERE stage = 'N2')::DOUBLE AS n2, count(*) FILTER (WHERE stage = 'N3')::DOUBLE AS n3,
-                count(*) FILTER (WHERE stage = 'R')::DOUBLE AS rem,
-                min(onset_s) AS first_s, min(onset_s) FILTER (WHERE stage IN ${SLEEP_STAGES}) AS onset_s,
-                max(onset_s) FILTER (WHERE stage IN ${SLEEP_STAGES}) AS last_sleep_s,
-                min(onset_s) FILTER (WHERE stage = 'R') AS first_r_s
-              FROM ${COHORT}.epochs GROUP BY recording_id)`,
-      `wk AS (SELECT e.recording_id,
-                count(*) FILTER (WHERE e.stage = 'W' AND e.onset_s > st.onset_s AND e.onset_s < st.last_sleep_s)::DOUBLE AS w_after
-              FROM ${COHORT}.epochs e JOIN st ON st.recording_id = e.recording_id GROUP BY e.recording_id)`,
-    );
-    const tst = '(st.n1 + st.n2 + st.n3 + st.rem)';
-    select.push(
-      `st.w * ${m} AS w_min`,
-      `st.n1 * ${m} AS n1_min`,
-      `st.n2 * ${m} AS n2_min`,
-      `st.n3 * ${m} AS n3_min`,
-      `st.rem * ${m} AS r_min`,
-      `${tst} * ${m} AS tst_min`,
-      `100 * ${tst} / nullif(st.n, 0) AS efficiency_pct`,
-      `(st.onset_s - st.first_s) / 60 AS sol_min`,
-      `(st.first_r_s - st.onset_s) / 60 AS rem_latency_min`,
-      `wk.w_after * ${m} AS waso_min`,
-      `100 * st.n1 / nullif(${tst}, 0) AS n1_pct`,
-      `100 * st.n2 / nullif(${tst}, 0) AS n2_pct`,
-      `100 * st.n3 / nullif(${tst}, 0) AS n3_pct`,
-      `100 * st.rem / nullif(${tst}, 0) AS r_pct`,
-    );
-    joins.push('LEFT JOIN st ON st.recording_id = r.recording_id', 'LEFT JOIN wk ON wk.recording_id = r.recording_id');
+  for (const c of ARCHITECTURE_COLUMNS) if (schema.has('recordings', c)) select.push(`r.${c}::DOUBLE AS ${c}`);
+  if (schema.has('recordings', 'tst_min')) {
+    for (const [minutes, share] of STAGE_SHARE) {
+      if (schema.has('recordings', minutes)) select.push(`100 * r.${minutes} / nullif(r.tst_min, 0) AS ${share}`);
+    }
   }
   const sql =
     (ctes.length > 0 ? `WITH ${ctes.join(',\n')}\n` : '') +
@@ -260,7 +246,7 @@ export interface SpectraSelection {
 
 /** Spectra of one stage/reference/averaging, rows ordered by recording then channel. */
 export interface SpectraMatrix {
-  recordingIds: Float64Array;
+  recordingIds: string[];
   channels: string[];
   freqStartHz: number;
   freqStepHz: number;
@@ -271,7 +257,7 @@ export interface SpectraMatrix {
 
 export async function spectraMatrix(db: SqlClient, sel: SpectraSelection): Promise<SpectraMatrix> {
   const t = await db.query(
-    `SELECT recording_id::DOUBLE AS recording_id, channel::VARCHAR AS channel, freq_start_hz::DOUBLE AS f0,
+    `SELECT recording_id::VARCHAR AS recording_id, channel::VARCHAR AS channel, freq_start_hz::DOUBLE AS f0,
             freq_step_hz::DOUBLE AS df, n_bins::DOUBLE AS n_bins, power
      FROM ${COHORT}.spectra
      WHERE stage = ${literal(sel.stage)} AND reference = ${literal(sel.reference)} AND averaging = ${literal(sel.averaging)}
@@ -289,7 +275,7 @@ export async function spectraMatrix(db: SqlClient, sel: SpectraSelection): Promi
   }
   const nBins = t.numRows > 0 ? nb[0] : 0;
   return {
-    recordingIds: numberColumn(t, 'recording_id'),
+    recordingIds: stringColumn(t, 'recording_id'),
     channels: stringColumn(t, 'channel'),
     freqStartHz: t.numRows > 0 ? f0[0] : 0,
     freqStepHz: t.numRows > 0 ? df[0] : 0,
