@@ -16,6 +16,14 @@ import { parseChannelLabel } from '../src/core/montage/labels.ts';
 import { electrodePosition } from '../src/core/montage/positions.ts';
 import { planReferences, Rereferencer, type MontageChannel, type ReferenceKind, type ReferencePlan } from '../src/core/montage/reference.ts';
 import { DEFAULT_REJECTION, spectralOutliers, timeDomainCheck, type RejectionOptions } from '../src/core/quality/epoch-rejection.ts';
+import { aperiodicQuality } from '../src/core/quality/aperiodic-quality.ts';
+import { cleanEpochs } from '../src/core/quality/clean-epochs.ts';
+import { clipping } from '../src/core/quality/clipping.ts';
+import { flatChannel } from '../src/core/quality/flat-channel.ts';
+import { DEFAULT_MAINS_HUM, mainsHum } from '../src/core/quality/mains-hum.ts';
+import { DEFAULT_NARROW_SPIKE, narrowSpikes } from '../src/core/quality/narrow-spikes.ts';
+import { rejectedFraction } from '../src/core/quality/rejected-fraction.ts';
+import type { QualityRow } from '../src/core/quality/row.ts';
 import { fitSpectrum, type SpectrumFitOptions } from '../src/core/spectrum/aperiodic-fit.ts';
 import { BandPowerTable, DEFAULT_BANDS, bandBins, type Band, type BandMethod } from '../src/core/spectrum/bands.ts';
 import { averageStage, DEFAULT_MIN_EPOCHS, hannWindow, welchDegreesOfFreedom } from '../src/core/spectrum/stage-average.ts';
@@ -56,6 +64,27 @@ export interface IngestParams {
   bandMethod: BandMethod;
   /** Aperiodic + peak fit of every stored spectrum; null to skip. */
   fit: (SpectrumFitOptions & { fitRangeHz: [number, number] }) | null;
+  /** Thresholds of the per-recording quality metrics (src/core/quality; defaults there). */
+  quality: QualityParams;
+}
+
+export interface QualityParams {
+  /** Flag clipping above this fraction of samples at the digital limits (default 0.001). */
+  clippingMaxFraction: number;
+  /** Flat channel below this robust SD, µV (default 2); the SD is the median of the epoch SDs. */
+  flatMinSdUv: number;
+  /** Power-line frequency, Hz; null = the BIDS sidecar's, else detected (default null). */
+  lineHz: 50 | 60 | null;
+  /** Flag mains hum above this ratio, dB (default 6). */
+  mainsThresholdDb: number;
+  /** Narrow spikes: minimum excess, log10 units (default 0.5), widest narrow width, Hz (default 0.75). */
+  narrowHeightLog10: number;
+  narrowMaxWidthHz: number;
+  /** Flag a stage with more than this fraction of its epochs rejected (default 0.3). */
+  rejectedMaxFraction: number;
+  /** Flag fits with R² below this (default 0.9) or an exponent outside this range (default 0–4). */
+  aperiodicMinR2: number;
+  exponentRange: [number, number];
 }
 
 export const DEFAULT_INGEST_PARAMS: Readonly<IngestParams> = {
@@ -74,6 +103,17 @@ export const DEFAULT_INGEST_PARAMS: Readonly<IngestParams> = {
   bands: DEFAULT_BANDS.map((b) => ({ ...b })),
   bandMethod: 'mean',
   fit: { fitRangeHz: [1, 40], aperiodicMode: 'power-law' },
+  quality: {
+    clippingMaxFraction: 0.001,
+    flatMinSdUv: 2,
+    lineHz: null,
+    mainsThresholdDb: DEFAULT_MAINS_HUM.thresholdDb,
+    narrowHeightLog10: DEFAULT_NARROW_SPIKE.heightLog10,
+    narrowMaxWidthHz: DEFAULT_NARROW_SPIKE.maxWidthHz,
+    rejectedMaxFraction: 0.3,
+    aperiodicMinR2: 0.9,
+    exponentRange: [0, 4],
+  },
 };
 
 /** Fills defaults; the result is plain JSON (it identifies the run). */
@@ -82,6 +122,7 @@ export function resolveIngestParams(partial: Partial<IngestParams> = {}): Ingest
     ...structuredClone(DEFAULT_INGEST_PARAMS as IngestParams),
     ...structuredClone(partial),
     rejection: { ...DEFAULT_REJECTION, ...(partial.rejection ?? {}) },
+    quality: { ...DEFAULT_INGEST_PARAMS.quality, ...(partial.quality ?? {}) },
   };
   if (p.references.includes('bipolar') && p.bipolarPairs.length === 0) {
     throw new PipelineError('parameters', null, 'references', "reference 'bipolar' needs bipolar pairs (e.g. F3-C3)");
@@ -227,16 +268,18 @@ export interface ChannelMeasures {
 
 /**
  * Processes one recording into the bundle the store writes. `runId` defaults to the identity of
- * `params` (the store derives the same from the same parameters in beginRun).
+ * `params` (the store derives the same from the same parameters in beginRun); `knownSha256`
+ * saves hashing the file again when the caller has just hashed it.
  */
 export async function processRecording(
   rec: CohortRecording,
   params: IngestParams,
   onProgress?: (p: PipelineProgress) => void,
   runId: string = runIdentity(params).runId,
+  knownSha256?: string,
 ): Promise<RecordingBundle & { measures: ChannelMeasures[] }> {
   const file = rec.recordingPath;
-  const sha = fileSha256(file).catch((e: unknown) => {
+  const sha = (knownSha256 ? Promise.resolve(knownSha256) : fileSha256(file)).catch((e: unknown) => {
     throw new PipelineError('hash', file, null, `cannot read the file for its SHA-256: ${e instanceof Error ? e.message : String(e)}`, { cause: e });
   });
   sha.catch(() => undefined); // awaited below; avoid an unhandled rejection if an earlier step fails
@@ -376,6 +419,7 @@ export async function processRecording(
     const peaks: PeakRow[] = [];
     const bandPowers: BandPowerBlock[] = [];
     const quality: QualityRowIn[] = [];
+    const q = params.quality;
     const fitRange: [number, number] | null = params.fit ? [params.fit.fitRangeHz[0], Math.min(params.fit.fitRangeHz[1], storedMaxHz)] : null;
     let outputsDone = 0;
     const outputsTotal = states.reduce((s, st) => s + st.outputs.length, 0);
@@ -391,6 +435,7 @@ export async function processRecording(
         const outliers = spectralOutliers(out.logBroadband, out.logMuscle, stageIdx, eligible, params.rejection.outlierZ);
         const clean = eligible.slice();
         for (const r of outliers) clean[r.epoch] = 0;
+        const outlierReason = new Map(outliers.map((r) => [r.epoch, r.reason]));
         if (storeRejections) {
           for (let e = 0; e < nGrid; e++) {
             const reason = out.tdReason[e];
@@ -413,6 +458,21 @@ export async function processRecording(
         SCORED_STAGES.forEach((stage, si) => {
           const rows: number[] = [];
           for (let e = 0; e < nGrid; e++) if (clean[e] && stageIdx[e] === si) rows.push(e);
+          if (reference === 'recorded') {
+            const cell = { channel: out.channel, stage };
+            let nStage = 0;
+            const byReason: Record<string, number> = {};
+            for (let e = 0; e < nGrid; e++) {
+              if (!out.hasData[e] || stageIdx[e] !== si) continue;
+              nStage++;
+              const why = out.tdReason[e] ?? (clean[e] ? null : outlierReason.get(e));
+              if (why) byReason[why] = (byReason[why] ?? 0) + 1;
+            }
+            if (nStage > 0) {
+              quality.push(qualityIn(rejectedFraction(cell, nStage, byReason, { maxFraction: q.rejectedMaxFraction }), reference));
+              quality.push(qualityIn(cleanEpochs(cell, rows.length, { minEpochs: params.minEpochs }), reference));
+            }
+          }
           const avg = averageStage(out.spectra, nStored, rows, nu, params.minEpochs);
           if (!avg) return;
           for (const averaging of ['mean', 'median'] as const) {
@@ -440,14 +500,19 @@ export async function processRecording(
 
     function fitOne(power: Float32Array, key: Pick<AperiodicRow, 'channel' | 'stage' | 'reference' | 'averaging'>): void {
       const { fitRangeHz: _r, ...fitOptions } = params.fit!;
+      let fitQ: { r2: number | null; exponent: number | null } = { r2: null, exponent: null };
       try {
         const fit = fitSpectrum(freqs, power, { ...fitOptions, fitRangeHz: fitRange! });
         aperiodic.push({ ...key, method: fit.method, fitLoHz: fit.fitLoHz, fitHiHz: fit.fitHiHz, offset: fit.offset, exponent: fit.exponent, knee: fit.knee, r2: fit.r2, rmse: fit.rmse, nPeaks: fit.peaks.length });
         for (const p of fit.peaks) peaks.push({ ...key, method: fit.method, centerHz: p.centerHz, height: p.height, bandwidthHz: p.bandwidthHz });
-      } catch (e) {
-        // a spectrum that cannot be fitted keeps a row with empty values and a quality flag
+        fitQ = fit;
+      } catch {
+        // a spectrum that cannot be fitted keeps a row with empty values; aperiodicQuality flags it
         aperiodic.push({ ...key, method: 'fit', fitLoHz: fitRange![0], fitHiHz: fitRange![1], offset: null, exponent: null, knee: null, r2: null, rmse: null, nPeaks: null });
-        quality.push({ channel: key.channel, stage: key.stage, metric: 'fit-failed', value: null, flagged: true, reason: `aperiodic fit failed (${key.averaging}): ${(e as Error).message}`, reference: key.reference });
+      }
+      if (key.averaging === 'mean') {
+        const rows = aperiodicQuality({ channel: key.channel, stage: key.stage }, fitQ, { minR2: q.aperiodicMinR2, exponentRange: q.exponentRange });
+        for (const r of rows) quality.push(qualityIn(r, key.reference));
       }
     }
 
@@ -465,6 +530,26 @@ export async function processRecording(
         fullStepHz: step,
       };
     });
+
+    const lineHz = q.lineHz ?? (rec.bids?.powerLineHz === 50 || rec.bids?.powerLineHz === 60 ? rec.bids.powerLineHz : null);
+    for (const m of measures) {
+      const cell = { channel: m.channel, stage: null };
+      const sel = selected.find((s) => s.name === m.channel)!;
+      const nSamples = epochsSeen * Math.round(sel.signal.fsHz * epochS);
+      quality.push(qualityIn(clipping(cell, nSamples, Math.round(m.clippingFraction * nSamples), { maxFraction: q.clippingMaxFraction }), 'recorded'));
+      if (Number.isFinite(m.medianSdUv)) quality.push(qualityIn(flatChannel(cell, m.medianSdUv, { minSdUv: q.flatMinSdUv }), 'recorded'));
+      if (m.fullSpectrum.length > 0) {
+        const f = Float64Array.from({ length: m.fullSpectrum.length }, (_, k) => k * m.fullStepHz);
+        // a known line the spectrum cannot reach (60 Hz at fs 128) is not assessable: pass null
+        const reach = f[f.length - 1] >= (lineHz ?? 0) + DEFAULT_MAINS_HUM.outerHz;
+        quality.push(qualityIn(mainsHum(cell, f, m.fullSpectrum, { ...DEFAULT_MAINS_HUM, lineHz: reach ? lineHz : null, thresholdDb: q.mainsThresholdDb }), 'recorded'));
+        // the mains lines (50/60 ± 2 Hz) have their own metric and are left out of the spike search
+        const spikes = narrowSpikes(cell, f, m.fullSpectrum, {
+          ...DEFAULT_NARROW_SPIKE, heightLog10: q.narrowHeightLog10, maxWidthHz: q.narrowMaxWidthHz, excludeHz: [[48, 52], [58, 62]],
+        });
+        quality.push(qualityIn(spikes, 'recorded'));
+      }
+    }
 
     const arch = sleepArchitecture(stages, epochS);
     const channels: ChannelRow[] = selected.map((s) => {
@@ -499,6 +584,11 @@ export async function processRecording(
   } finally {
     await edf.close();
   }
+}
+
+/** A quality row of src/core/quality as the bundle holds it. */
+function qualityIn(r: QualityRow, reference: ReferenceKind): QualityRowIn {
+  return { channel: r.channel, stage: r.stage, metric: r.metric, value: r.value, flagged: r.flagged, reason: r.reason, severity: r.severity, reference };
 }
 
 /** The ArrayBuffers of a bundle's typed arrays, for a zero-copy postMessage transfer. */

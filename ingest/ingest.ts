@@ -1,0 +1,130 @@
+/**
+ * A whole cohort into the database: discover → begin (or resume) the run → skip recordings
+ * already stored → process the rest in the worker pool → write each in its own transaction →
+ * failures to ingest_errors while the others go on → summary.
+ *
+ * Resumable and idempotent: a recording is identified by (run, file SHA-256), and the run by its
+ * parameters, so a rerun after an interruption (even SIGKILL: DuckDB replays its write-ahead log,
+ * and a half-written transaction is never committed) writes only what is missing.
+ */
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { discoverCohort } from './cohort/discover.ts';
+import type { CohortRecording } from './cohort/types.ts';
+import { fileSha256, resolveIngestParams, type IngestParams, type PipelineProgress } from './pipeline.ts';
+import { IngestPool, WorkerTaskError } from './pool.ts';
+import { openStore } from './store/database.ts';
+
+export interface Shard {
+  /** 1-based shard number K of N. */
+  index: number;
+  count: number;
+}
+
+export interface IngestOptions {
+  params?: Partial<IngestParams>;
+  /** Worker threads (default: one per core). */
+  jobs?: number;
+  /** Process only recordings i (0-based, table order) with i mod N = K − 1. */
+  shard?: Shard | null;
+  /** Tool version recorded in runs (default: package.json's). */
+  toolVersion?: string;
+}
+
+export type IngestEvent =
+  | { kind: 'start'; runId: string; reused: boolean; total: number }
+  | { kind: 'progress'; file: string; step: PipelineProgress['step']; done: number; total: number }
+  | { kind: 'recording'; file: string; state: 'done' | 'skipped' | 'failed'; message?: string; channelSamples?: number };
+
+export interface IngestFailure {
+  file: string;
+  step: string;
+  message: string;
+}
+
+export interface IngestSummary {
+  runId: string;
+  done: number;
+  skipped: number;
+  failed: IngestFailure[];
+}
+
+export function parseShard(text: string): Shard {
+  const m = /^(\d+)\/(\d+)$/.exec(text.trim());
+  const index = m ? Number(m[1]) : NaN;
+  const count = m ? Number(m[2]) : NaN;
+  if (!m || !(count >= 1) || !(index >= 1 && index <= count)) throw new RangeError(`invalid shard '${text}' (expected K/N with 1 ≤ K ≤ N, e.g. 2/4)`);
+  return { index, count };
+}
+
+function packageVersion(): string {
+  return (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
+}
+
+export async function runIngest(
+  cohortPathOrBidsFolder: string,
+  outDb: string,
+  options: IngestOptions = {},
+  progress?: (e: IngestEvent) => void,
+): Promise<IngestSummary> {
+  const params = resolveIngestParams(options.params);
+  const cohort = await discoverCohort(cohortPathOrBidsFolder);
+  const shard = options.shard ?? null;
+  const recordings = cohort.recordings.filter((_, i) => !shard || i % shard.count === shard.index - 1);
+  const store = await openStore(outDb, { create: true });
+  const pool = new IngestPool(options.jobs);
+  try {
+    const { runId, reused } = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.index}/${shard.count}` : null });
+    const names = cohort.columns.map((c) => c.name);
+    await store.writeParticipants(names, cohort.participants.map((p) => names.map((n) => p[n] ?? null)));
+    progress?.({ kind: 'start', runId, reused, total: recordings.length });
+    const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [] };
+    // file names relative to the cohort root: no absolute paths (which may name people) in the database
+    const shown = (rec: CohortRecording) => path.relative(cohort.root, rec.recordingPath) || path.basename(rec.recordingPath);
+    const fail = async (rec: CohortRecording, step: string, field: string | null, message: string) => {
+      summary.failed.push({ file: shown(rec), step, message });
+      await store.writeError({ runId, file: shown(rec), step, field, message });
+      progress?.({ kind: 'recording', file: shown(rec), state: 'failed', message });
+    };
+    const one = async (rec: CohortRecording): Promise<void> => {
+      let sha: string;
+      try {
+        sha = await fileSha256(rec.recordingPath);
+      } catch (e) {
+        return fail(rec, 'hash', null, (e as Error).message);
+      }
+      if (await store.hasRecording(runId, sha)) {
+        summary.skipped++;
+        progress?.({ kind: 'recording', file: shown(rec), state: 'skipped' });
+        return;
+      }
+      let bundle;
+      try {
+        bundle = await pool.process(rec, params, runId, (p) => progress?.({ kind: 'progress', file: shown(rec), ...p }), sha);
+      } catch (e) {
+        const step = e instanceof WorkerTaskError ? e.step : 'process';
+        return fail(rec, step, e instanceof WorkerTaskError ? e.field : null, (e as Error).message);
+      }
+      bundle.recording.fileName = shown(rec);
+      try {
+        await store.writeRecording(bundle);
+      } catch (e) {
+        return fail(rec, 'write', null, (e as Error).message);
+      }
+      summary.done++;
+      const channelSamples = bundle.channels.reduce((s, c) => s + c.fsHz * bundle.recording.durationS, 0);
+      progress?.({ kind: 'recording', file: shown(rec), state: 'done', channelSamples });
+    };
+    // a few recordings in flight beyond the workers (hashing, writing), never the whole cohort at once
+    let next = 0;
+    const lanes = Array.from({ length: Math.min(recordings.length, pool.size + 1) }, async () => {
+      while (next < recordings.length) await one(recordings[next++]);
+    });
+    await Promise.all(lanes);
+    await store.finishRun(runId);
+    return summary;
+  } finally {
+    await pool.close();
+    await store.close();
+  }
+}

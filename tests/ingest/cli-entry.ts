@@ -1,0 +1,7 @@
+// Test entry for the ingest command alone (the lead wires register() into ingest/cli/main.ts).
+import { Command } from 'commander';
+import { register } from '../../ingest/cli/ingest.ts';
+
+const program = new Command().name('bandwise');
+register(program);
+await program.parseAsync(process.argv);
