@@ -3,6 +3,7 @@
 import { fireEvent, render, screen } from '@testing-library/svelte';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import DataTable from '../../src/dashboard/components/DataTable.svelte';
+import type { Row } from '../../src/dashboard/db/arrow-rows.ts';
 
 const columns = [
   { key: 'subject', label: 'Subject' },
@@ -14,7 +15,7 @@ describe('DataTable', () => {
   afterEach(() => vi.restoreAllMocks());
 
   it('shows the rows up to the limit, then all on request', async () => {
-    render(DataTable, { title: 'Participants', columns, rows, rowKey: (r) => String(r.subject), limit: 3, testId: 't' });
+    render(DataTable, { title: 'Participants', columns, rows, rowKey: (r: Row) => String(r.subject), limit: 3, testId: 't' });
     expect(screen.getByRole('heading').textContent).toBe('Participants (5)');
     expect(screen.getAllByRole('row')).toHaveLength(1 + 3);
     await fireEvent.click(screen.getByRole('button', { name: 'Show all 5 rows' }));
@@ -32,7 +33,7 @@ describe('DataTable', () => {
       return 'blob:test';
     });
     vi.spyOn(URL, 'revokeObjectURL').mockImplementation(() => undefined);
-    render(DataTable, { title: 'Participants', columns, rows, rowKey: (r) => String(r.subject), limit: 2 });
+    render(DataTable, { title: 'Participants', columns, rows, rowKey: (r: Row) => String(r.subject), limit: 2 });
     await fireEvent.click(screen.getByRole('button', { name: 'Export TSV' }));
     expect(blobs).toHaveLength(1);
     expect(blobs[0].type).toBe('text/tab-separated-values');
