@@ -127,7 +127,7 @@ export const TABLES: readonly TableDef[] = [
       col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
       col('channel', 'VARCHAR', 'channel name', true),
       col('epoch', 'INTEGER', 'epochs.epoch', true),
-      col('reason', 'VARCHAR', 'rejection rule, e.g. peak-to-peak, flat, broadband-outlier, muscle-outlier', true),
+      col('reason', 'VARCHAR', 'rejection rule: amplitude, flat, broadband-outlier or muscle-outlier (src/core/quality/epoch-rejection.ts)', true),
       col('value', 'DOUBLE', 'the value that broke the rule (unit depends on the rule), NULL if none'),
     ],
   },

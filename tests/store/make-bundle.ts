@@ -76,7 +76,7 @@ export function makeBundle(runId: string, seed: number, size: BundleSize = SMALL
       onsetS: Float64Array.from({ length: size.epochs }, (_, e) => e * 30),
       stage: Array.from({ length: size.epochs }, (_, e) => stageCycle[e % 5]),
     },
-    rejections: [{ channel: channels[0], epoch: 3, reason: 'peak-to-peak', value: 812.5 }],
+    rejections: [{ channel: channels[0], epoch: 3, reason: 'amplitude', value: 812.5 }],
     spectra,
     bandPowers: [{ reference: 'recorded', channels, bands: [...size.bands], channelIdx, epoch, bandIdx, power: bandPower }],
     aperiodic: [{
@@ -87,7 +87,7 @@ export function makeBundle(runId: string, seed: number, size: BundleSize = SMALL
       channel: channels[0], stage: size.stages[0], reference: 'recorded', averaging: 'mean', method: 'spectral-fit',
       centerHz: 13.1, height: 0.4, bandwidthHz: 2.2,
     }],
-    quality: [{ channel: channels[0], stage: null, metric: 'flat-channel', value: 12.5, flagged: false, reason: null }],
+    quality: [{ channel: channels[0], stage: null, metric: 'flat-channel', value: 12.5, flagged: false, reason: null, severity: 0.16 }],
     referenceSkips: [{ reference: 'linked-mastoids', reason: 'no M1/M2 or A1/A2 channels' }],
   };
 }
