@@ -49,6 +49,8 @@ describe('dashboard in chromium: cohort view', () => {
     await expect
       .poll(() => page.getByTestId('recordings').locator('tbody tr').count())
       .toBe(FIXTURE_PARTICIPANTS.filter((p) => p.ingested).length);
+    const arch = await page.getByTestId('sleep-architecture').locator('thead').innerText();
+    for (const h of ['N2 (min)', 'Total sleep (min)', 'Sleep efficiency (%)', 'N3 (% sleep)']) expect(arch).toContain(h);
     await expect.poll(() => page.getByTestId('participants').locator('tbody tr').count()).toBe(FIXTURE_PARTICIPANTS.length);
     const errorsText = await page.getByTestId('ingest-errors').locator('tbody').innerText();
     expect(errorsText).toContain('sub-07_night.edf');

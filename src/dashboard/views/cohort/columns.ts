@@ -11,6 +11,12 @@ const RECORDING_COLUMNS: readonly DataColumn[] = [
   { key: 'duration_min', label: 'Duration (min)', digits: 1 },
   { key: 'fs_hz', label: 'Sampling rate (Hz)' },
   { key: 'n_channels', label: 'Channels' },
+];
+
+const ARCHITECTURE_COLUMNS: readonly DataColumn[] = [
+  { key: 'subject', label: 'Subject' },
+  { key: 'session', label: 'Session' },
+  { key: 'group', label: 'Group' },
   { key: 'w_min', label: 'W (min)', digits: 1 },
   { key: 'n1_min', label: 'N1 (min)', digits: 1 },
   { key: 'n2_min', label: 'N2 (min)', digits: 1 },
@@ -31,6 +37,12 @@ const RECORDING_COLUMNS: readonly DataColumn[] = [
 /** The recording columns present in the query result, in display order. */
 export function recordingColumns(present: readonly string[]): DataColumn[] {
   return RECORDING_COLUMNS.filter((c) => present.includes(c.key));
+}
+
+/** Sleep architecture columns present in the query result; empty when none is stored. */
+export function architectureColumns(present: readonly string[]): DataColumn[] {
+  const cols = ARCHITECTURE_COLUMNS.filter((c) => present.includes(c.key));
+  return cols.some((c) => c.key.endsWith('_min') || c.key.endsWith('_pct')) ? cols : [];
 }
 
 export const GROUP_SIZE_COLUMNS: readonly DataColumn[] = [
