@@ -154,6 +154,13 @@ export class Store {
     return this.exclusive(async () => {
       await this.requireRun(bundle.runId);
       const id = recordingIdFor(bundle.runId, bundle.recording.fileSha256);
+      const stored = await this.rows('SELECT 1 AS one FROM recordings WHERE recording_id = $1', [id]);
+      if (stored.length > 0) {
+        throw new StoreError(
+          `${bundle.recording.fileName} (file hash ${bundle.recording.fileSha256.slice(0, 12)}…) is already stored in run ${bundle.runId}; check hasRecording first`,
+          { table: 'recordings' },
+        );
+      }
       await this.transaction(async () => {
         await writeBundleTables(this.connection, id, bundle);
       });

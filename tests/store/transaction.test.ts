@@ -73,6 +73,10 @@ describe('one transaction per recording', () => {
     expect(Object.values(left).every((n) => n === 0), JSON.stringify(left)).toBe(true);
   });
 
+  it('writing a stored recording again is refused by name', async () => {
+    await expect(store.writeRecording(makeBundle(runId, 1))).rejects.toThrow(/rec-1\.edf \(file hash [0-9a-f]{12}…\) is already stored/);
+  });
+
   it('the earlier recording is untouched by the failures', async () => {
     const first = makeBundle(runId, 1);
     const id = recordingIdFor(runId, first.recording.fileSha256);
