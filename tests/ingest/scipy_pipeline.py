@@ -1,0 +1,61 @@
+"""Plain numpy/scipy reference pipeline for one EDF (outside reference for the ingest tests, and
+the side-by-side baseline of tests/bench/ingest.bench.ts).
+
+EDF decoding follows Kemp et al. 1992: 256-byte fixed header, 256 bytes per signal, data records
+of int16 little-endian samples per signal in turn; phys = pmin + (dig - dmin)*(pmax - pmin)/(dmax - dmin).
+Per 30-s epoch: scipy.signal.welch(x, fs, nperseg=seg*fs, noverlap=nperseg//2) on all channels at once.
+
+usage: python3 scipy_pipeline.py EDF EPOCH_S SEGMENT_S MAXFREQ_HZ OUT.f64|-
+writes float64 [n_epochs, n_channels, n_bins] (if OUT is not '-') and prints a JSON summary line.
+"""
+import json, sys, time
+import numpy as np
+from scipy.signal import welch
+
+path, epoch_s, seg_s, fmax = sys.argv[1], float(sys.argv[2]), float(sys.argv[3]), float(sys.argv[4])
+out = sys.argv[5]
+t0 = time.perf_counter()
+with open(path, 'rb') as f:
+    fixed = f.read(256)
+    ns = int(fixed[252:256])
+    hdr = f.read(256 * ns)
+n_records = int(fixed[236:244])
+rec_dur = float(fixed[244:252])
+def field(offset, width):
+    return [hdr[offset + i * width: offset + (i + 1) * width].decode('ascii').strip() for i in range(ns)]
+o = 0
+labels = field(o, 16); o += 16 * ns
+o += 80 * ns + 8 * ns  # transducer, physical dimension
+pmin = np.array(field(o, 8), float); o += 8 * ns
+pmax = np.array(field(o, 8), float); o += 8 * ns
+dmin = np.array(field(o, 8), float); o += 8 * ns
+dmax = np.array(field(o, 8), float); o += 8 * ns
+o += 80 * ns
+spr = np.array(field(o, 8), int)
+ordinary = [i for i in range(ns) if labels[i] != 'EDF Annotations']
+rec_words = int(spr.sum())
+raw = np.memmap(path, dtype='<i2', mode='r', offset=256 + 256 * ns, shape=(n_records, rec_words))
+offsets = np.concatenate([[0], np.cumsum(spr)[:-1]])
+fs = spr[ordinary[0]] / rec_dur
+assert all(spr[i] == spr[ordinary[0]] for i in ordinary), 'one sampling rate expected'
+gain = (pmax - pmin) / (dmax - dmin)
+n_ep_samples = int(round(epoch_s * fs))
+nper = int(round(seg_s * fs))
+total = n_records * spr[ordinary[0]]
+n_epochs = total // n_ep_samples
+rec_per_epoch = n_ep_samples // spr[ordinary[0]]
+spectra = None
+for e in range(n_epochs):
+    block = raw[e * rec_per_epoch:(e + 1) * rec_per_epoch]
+    x = np.stack([(pmin[i] + (block[:, offsets[i]:offsets[i] + spr[i]].reshape(-1) - dmin[i]) * gain[i]) for i in ordinary])
+    f, p = welch(x, fs, nperseg=nper, noverlap=nper // 2)
+    keep = f <= fmax + 1e-9
+    if spectra is None:
+        spectra = np.empty((n_epochs, len(ordinary), int(keep.sum())))
+    spectra[e] = p[:, keep]
+means = spectra.mean(axis=0)  # a per-channel night mean, so the work is not optimised away
+elapsed = time.perf_counter() - t0
+if out != '-':
+    spectra.tofile(out)
+print(json.dumps({'labels': [labels[i] for i in ordinary], 'fs': fs, 'n_epochs': int(n_epochs), 'n_bins': int(spectra.shape[2]),
+                  'seconds': elapsed, 'check': float(means.sum())}))
