@@ -133,6 +133,22 @@ describe('dashboard in chromium: cohort view', () => {
     expect(s.requests.slice(before).filter((r) => r.path.startsWith('/data/'))).toEqual([]);
   });
 
+  it('offers a file picker when no database is served, and opens the picked file', async () => {
+    const page = await s.context.newPage();
+    page.on('console', (m) => {
+      // the blocked database probe is this test's own doing; anything else counts
+      if (m.type() === 'error' && !m.text().includes('404')) s.consoleErrors.push(m.text());
+    });
+    await page.route('**/data/cohort.duckdb', (route) => route.fulfill({ status: 404, body: 'not found' }));
+    await page.goto(`${s.server.url}#/cohort`);
+    await page.getByRole('region', { name: 'Open a database file' }).waitFor();
+    expect(await page.getByTestId('research-note').isVisible()).toBe(true);
+    await page.locator('input[type=file]').setInputFiles(dbPath);
+    await page.getByTestId('group-sizes').locator('tbody tr').first().waitFor();
+    expect(await page.getByTestId('group-sizes').locator('tbody tr td:first-child').allInnerTexts()).toEqual(['control', 'patient']);
+    await page.close();
+  });
+
   it('sent nothing beyond 127.0.0.1 and logged no console error', () => {
     expect(s.foreignRequests).toEqual([]);
     expect(s.consoleErrors).toEqual([]);
