@@ -2,6 +2,7 @@ import { aperiodicLog10, modelLog10, type AperiodicParams } from './aperiodic-mo
 import { SpectrumFitError } from './fit-error.ts';
 import { aperiodicCount, jointFit, unpackParams, type AperiodicMode, type JointFitProblem } from './joint-fit.ts';
 import { FWHM_PER_SD, findPeaks } from './peaks.ts';
+import { fitPowerLawLine } from './power-law-line.ts';
 
 /**
  * Aperiodic (1/f) and peak decomposition of one power spectrum, following the published approach
@@ -291,7 +292,7 @@ function robustAperiodicFit(freqs: Float64Array, logPower: Float64Array, mode: A
 
 /** The aperiodic part alone: a straight line in log-log (power-law) or a 3-parameter fit (knee). */
 function aperiodicOnly(freqs: Float64Array, logPower: Float64Array, mode: AperiodicMode): AperiodicParams {
-  const line = logLogLine(freqs, logPower);
+  const line = fitPowerLawLine(freqs, logPower);
   if (mode === 'power-law') return line;
   // knee start: knee frequency at the geometric centre of the range, k = f_k^χ
   // (the line meets the knee curve there when b = b_line + log10 2)
@@ -306,28 +307,6 @@ function aperiodicOnly(freqs: Float64Array, logPower: Float64Array, mode: Aperio
     upper: Float64Array.of(Infinity, Infinity, Infinity),
   });
   return { offset: p[0], knee: p[1], exponent: p[2] };
-}
-
-// ordinary least squares of log10 P = b − χ·log10 f (closed form, common practice)
-function logLogLine(freqs: Float64Array, logPower: Float64Array): AperiodicParams {
-  const n = freqs.length;
-  let sx = 0;
-  let sy = 0;
-  for (let i = 0; i < n; i++) {
-    sx += Math.log10(freqs[i]);
-    sy += logPower[i];
-  }
-  const mx = sx / n;
-  const my = sy / n;
-  let sxx = 0;
-  let sxy = 0;
-  for (let i = 0; i < n; i++) {
-    const dx = Math.log10(freqs[i]) - mx;
-    sxx += dx * dx;
-    sxy += dx * (logPower[i] - my);
-  }
-  const slope = sxy / sxx;
-  return { offset: my - slope * mx, exponent: -slope, knee: 0 };
 }
 
 // percentile with linear interpolation between order statistics (R-7 / numpy default, Hyndman & Fan 1996)
