@@ -59,26 +59,28 @@ export function timeDomainCheck(
 ): TimeDomainResult {
   let min = Infinity;
   let max = -Infinity;
-  let sum = 0;
   let run = 1;
   let longest = length > 0 ? 1 : 0;
   let prev = NaN;
+  // one pass on data shifted by the first sample K (shifted-data variance, Chan, Golub & LeVeque
+  // 1983): SD² = (Σ(x−K)² − (Σ(x−K))²/n) / (n − 1); stable while the mean is near K, as in EEG
+  const K = length > 0 ? x[start] : 0;
+  let s1 = 0;
+  let s2 = 0;
   for (let i = start; i < start + length; i++) {
     const v = x[i];
     if (v < min) min = v;
     if (v > max) max = v;
-    sum += v;
+    const d = v - K;
+    s1 += d;
+    s2 += d * d;
     if (v === prev) {
       run++;
       if (run > longest) longest = run;
     } else run = 1;
     prev = v;
   }
-  const mean = sum / length;
-  let ss = 0;
-  // SD = sqrt(Σ (x − mean)² / (n − 1)) (two-pass, numerically stable)
-  for (let i = start; i < start + length; i++) ss += (x[i] - mean) * (x[i] - mean);
-  const sdUv = Math.sqrt(ss / Math.max(1, length - 1));
+  const sdUv = Math.sqrt(Math.max(0, s2 - (s1 * s1) / length) / Math.max(1, length - 1));
   const peakToPeakUv = max - min;
   const longestRunS = longest / fsHz;
   let reason: TimeDomainResult['reason'] = null;
