@@ -9,6 +9,8 @@ export default defineConfig({
   // The dashboard app: `vite build` writes dist/dashboard/ with relative asset paths.
   root: `${repo}src/dashboard`,
   base: './',
+  // keep Vite's cache at the repo's node_modules, not under src/dashboard
+  cacheDir: `${repo}node_modules/.vite`,
   // No SPA fallback: unknown paths (such as DuckDB's .duckdb.wal probe) must get 404 (STACK.md).
   appType: 'mpa',
   plugins: [svelte({ configFile: false })],
@@ -19,6 +21,8 @@ export default defineConfig({
     chunkSizeWarningLimit: 2000,
   },
   test: {
+    // tests live at the repo root, whatever the app's root is
+    root: repo,
     testTimeout: 120_000,
     hookTimeout: 300_000,
     pool: 'forks',
@@ -27,7 +31,6 @@ export default defineConfig({
         extends: true,
         test: {
           name: 'node',
-          root: repo,
           include: ['tests/**/*.test.ts'],
           exclude: ['tests/**/*.dom.test.ts', '**/node_modules/**'],
           environment: 'node',
@@ -39,7 +42,6 @@ export default defineConfig({
         plugins: [svelteTesting()],
         test: {
           name: 'dom',
-          root: repo,
           include: ['tests/**/*.dom.test.ts'],
           environment: 'happy-dom',
         },
