@@ -217,5 +217,10 @@ describe('dashboard server', () => {
     await expect(
       startDashboardServer({ dbPath: path.join(dir, 'cohort.duckdb'), appDir: path.join(dir, 'nope') }),
     ).rejects.toThrow(/appDir is not a folder/);
+    const dbPath = path.join(dir, 'cohort.duckdb');
+    const appDir = path.join(dir, 'app');
+    await expect(startDashboardServer({ dbPath, appDir, port: 70000 })).rejects.toThrow(/port must be an integer/);
+    // the port given is taken (by the server under test): EADDRINUSE, no silent fallback
+    await expect(startDashboardServer({ dbPath, appDir, port })).rejects.toThrow(/EADDRINUSE/);
   });
 });
