@@ -4,6 +4,9 @@
  */
 import { Command } from 'commander';
 import { readFileSync } from 'node:fs';
+import { register as registerIngest } from './ingest.ts';
+import { register as registerMerge } from './merge.ts';
+import { register as registerCompare } from './compare.ts';
 
 const pkg = JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string };
 
@@ -16,5 +19,9 @@ program
   )
   .version(pkg.version)
   .showHelpAfterError();
+
+registerIngest(program);
+registerMerge(program);
+registerCompare(program);
 
 await program.parseAsync(process.argv);

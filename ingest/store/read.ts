@@ -197,3 +197,37 @@ export async function readParticipants(store: Store): Promise<ParticipantsTable>
     rows: rows.map((r) => columns.map((c) => (r[c.name] === null ? null : c.type === 'DOUBLE' ? Number(r[c.name]) : String(r[c.name])))),
   };
 }
+
+export interface PeakInfo {
+  recordingId: string;
+  subject: string;
+  session: string | null;
+  channel: string;
+  method: string;
+  centerHz: number;
+  height: number;
+  bandwidthHz: number;
+}
+
+/** Fitted peaks of one (run, stage, reference, averaging), optionally one aperiodic method. */
+export async function readPeaks(store: Store, q: Omit<SpectraQuery, 'channels'> & { method?: string }): Promise<PeakInfo[]> {
+  const rows = await query(
+    store,
+    `SELECT p.*, r.subject, r.session
+       FROM peaks p JOIN recordings r USING (recording_id)
+      WHERE r.run_id = $1 AND p.stage = $2 AND p.reference = $3 AND p.averaging = $4
+        AND ($5 IS NULL OR p.method = $5)
+      ORDER BY r.subject, r.session NULLS FIRST, p.recording_id, p.channel, p.center_hz`,
+    [q.runId, q.stage, q.reference, q.averaging, q.method ?? null],
+  );
+  return rows.map((r) => ({
+    recordingId: str(r.recording_id),
+    subject: str(r.subject),
+    session: strOrNull(r.session),
+    channel: str(r.channel),
+    method: str(r.method),
+    centerHz: Number(r.center_hz),
+    height: Number(r.height),
+    bandwidthHz: Number(r.bandwidth_hz),
+  }));
+}

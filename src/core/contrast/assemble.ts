@@ -1,0 +1,211 @@
+/**
+ * Turns a contrast and the rows it reads into the statistics engine's input: which subjects take
+ * part (and which are left out, with the reason), the measure per subject × channel × point, and
+ * the design. Pure; shared by the command line and the dashboard's worker.
+ */
+import type { Contrast } from './spec.ts';
+import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from './data.ts';
+import { measureLayout, measureValues, type MeasureLayout } from './measure.ts';
+import type { ContrastInput, Design } from '../stats/index.ts';
+import type { Stage } from '../stages.ts';
+
+export interface Participation {
+  subject: string;
+  /** group name (groups design), condition pair (paired) or null */
+  group: string | null;
+}
+
+export interface AssembledContrast {
+  input: ContrastInput;
+  layout: MeasureLayout;
+  /** subjects in the analysis, in the row order of input.data */
+  subjects: Participation[];
+  /** left out, with reasons (from the quality screen's list, flags, missing data) */
+  excluded: Exclusion[];
+  /** group names and sizes (groups design) */
+  nPerGroup: Record<string, number>;
+  /** the channel names the points use (a channel average is one pseudo-channel) */
+  channels: string[];
+}
+
+export class ContrastDataError extends Error {
+  override name = 'ContrastDataError';
+}
+
+function key(subject: string, session: string | null, channel: string, stage: Stage): string {
+  return `${subject}\u0000${session ?? ''}\u0000${channel}\u0000${stage}`;
+}
+
+/** The (stage, session) of each of the design's conditions: one for groups/covariate, two for paired. */
+function conditions(c: Contrast): { stage: Stage; session: string | null; name: string }[] {
+  if (c.design === 'paired' && c.stages) return c.stages.map((s) => ({ stage: s, session: c.session ?? null, name: s }));
+  if (c.design === 'paired' && c.sessions) return c.sessions.map((s) => ({ stage: c.stage, session: s, name: `session ${s}` }));
+  return [{ stage: c.stage, session: c.session ?? null, name: c.stage }];
+}
+
+export function assembleContrast(c: Contrast, data: ContrastData): AssembledContrast {
+  const axis = data.spectra;
+  const layout = measureLayout(c, axis);
+  const conds = conditions(c);
+  const excluded: Exclusion[] = [];
+
+  const spectra = new Map<string, SpectrumRow>();
+  const sessionsOf = new Map<string, Set<string | null>>();
+  for (const r of data.spectra.rows) {
+    spectra.set(key(r.subject, r.session, r.channel, r.stage), r);
+    if (!sessionsOf.has(r.subject)) sessionsOf.set(r.subject, new Set());
+    sessionsOf.get(r.subject)!.add(r.session);
+  }
+  const aperiodic = new Map<string, AperiodicRow>();
+  for (const a of data.aperiodic) aperiodic.set(key(a.subject, a.session, a.channel, a.stage), a);
+  const peaks = new Map<string, PeakRow[]>();
+  for (const p of data.peaks) {
+    const k = key(p.subject, p.session, p.channel, p.stage);
+    if (!peaks.has(k)) peaks.set(k, []);
+    peaks.get(k)!.push(p);
+  }
+
+  // channels: those asked for, or every channel stored for this stage
+  const stored = [...new Set(data.spectra.rows.filter((r) => conds.some((d) => d.stage === r.stage)).map((r) => r.channel))];
+  const channels = c.channels === 'all' ? stored : c.channels;
+  for (const ch of channels) if (!stored.includes(ch)) throw new ContrastDataError(`channel ${ch} has no stored ${conds.map((d) => d.stage).join('/')} spectra for reference ${c.reference}`);
+  if (channels.length === 0) throw new ContrastDataError(`no stored spectra for stage ${c.stage}, reference ${c.reference}, averaging ${c.averaging}`);
+
+  // who takes part, by design
+  const participants = new Map(data.participants.map((p) => [String(p.subject), p]));
+  const userExcluded = new Map<string, Exclusion[]>();
+  for (const e of data.exclusions) {
+    if (!userExcluded.has(e.subject)) userExcluded.set(e.subject, []);
+    userExcluded.get(e.subject)!.push(e);
+  }
+  const candidates: { subject: string; group: string | null; covariate: number | null; nuisance: number[] }[] = [];
+  for (const subject of [...sessionsOf.keys()].sort()) {
+    const p = participants.get(subject);
+    let group: string | null = null;
+    let covariate: number | null = null;
+    if (c.design === 'groups') {
+      const g = p?.[c.groupColumn];
+      if (g === null || g === undefined || !c.groups!.includes(String(g))) continue; // not in either group: not part of this contrast
+      group = String(g);
+    }
+    if (c.design === 'covariate') {
+      const v = p?.[c.covariate!];
+      if (typeof v !== 'number' || !Number.isFinite(v)) {
+        excluded.push({ subject, channel: null, reason: `no numeric value of ${c.covariate}` });
+        continue;
+      }
+      covariate = v;
+    }
+    const nuisance: number[] = [];
+    let missingNuisance: string | null = null;
+    for (const name of c.nuisance) {
+      const v = p?.[name];
+      if (typeof v === 'number' && Number.isFinite(v)) nuisance.push(v);
+      else missingNuisance ??= name;
+    }
+    if (missingNuisance) {
+      excluded.push({ subject, channel: null, reason: `no numeric value of nuisance covariate ${missingNuisance}` });
+      continue;
+    }
+    const own = userExcluded.get(subject) ?? [];
+    const whole = own.find((e) => e.channel === null);
+    const channelHit = own.find((e) => e.channel !== null && channels.includes(e.channel));
+    if (whole || channelHit) {
+      const e = whole ?? channelHit!;
+      excluded.push({ subject, channel: e.channel, reason: `excluded in the quality screen: ${e.reason}` });
+      continue;
+    }
+    if (c.design !== 'paired' || !c.sessions) {
+      const sessions = sessionsOf.get(subject)!;
+      if (c.session === undefined && sessions.size > 1) {
+        throw new ContrastDataError(`subject ${subject} has several sessions (${[...sessions].join(', ')}): say which one with "session"`);
+      }
+    }
+    candidates.push({ subject, group, covariate, nuisance });
+  }
+
+  // values per candidate; a subject with any channel missing or flagged is left out, with the reason
+  const P = layout.freqsHz.length;
+  const nCh = c.channelAverage ? 1 : channels.length;
+  const rows: Float64Array[][] = []; // per kept subject, per condition: nCh × P values
+  const kept: typeof candidates = [];
+  const scratch = new Float64Array(P);
+  for (const cand of candidates) {
+    const perCondition: Float64Array[] = [];
+    let reason: { channel: string | null; text: string } | null = null;
+    for (const cond of conds) {
+      const values = new Float64Array(nCh * P);
+      for (let ci = 0; ci < channels.length && !reason; ci++) {
+        const ch = channels[ci];
+        const session = cond.session ?? [...sessionsOf.get(cand.subject)!][0];
+        const k = key(cand.subject, session, ch, cond.stage);
+        const row = spectra.get(k);
+        if (!row) {
+          reason = { channel: ch, text: `no ${cond.name} spectrum for ${ch}` };
+          break;
+        }
+        if (row.flagged) {
+          reason = { channel: ch, text: `${cond.name} spectrum of ${ch} flagged: ${row.flagReason ?? 'flagged at ingest'}` };
+          break;
+        }
+        const why = measureValues(c, layout, axis, row.power, aperiodic.get(k), peaks.get(k) ?? [], scratch);
+        if (why) {
+          reason = { channel: ch, text: `${cond.name}, ${ch}: ${why}` };
+          break;
+        }
+        for (let j = 0; j < P; j++) {
+          if (!Number.isFinite(scratch[j])) {
+            reason = { channel: ch, text: `${cond.name}, ${ch}: measure is not finite at ${layout.freqsHz[j]} Hz` };
+            break;
+          }
+          // channel average: mean of the measure over the channels (common practice)
+          if (c.channelAverage) values[j] += scratch[j] / channels.length;
+          else values[ci * P + j] = scratch[j];
+        }
+      }
+      if (reason) break;
+      perCondition.push(values);
+    }
+    if (reason) {
+      excluded.push({ subject: cand.subject, channel: reason.channel, reason: reason.text });
+      continue;
+    }
+    kept.push(cand);
+    rows.push(perCondition);
+  }
+
+  const n = kept.length;
+  const data0 = new Float64Array(n * nCh * P);
+  for (let s = 0; s < n; s++) data0.set(rows[s][0], s * nCh * P);
+  let design: Design;
+  const nPerGroup: Record<string, number> = {};
+  if (c.design === 'groups') {
+    const [g0, g1] = c.groups!;
+    const group = kept.map((k) => (k.group === g1 ? 1 : 0));
+    nPerGroup[g0] = group.filter((g) => g === 0).length;
+    nPerGroup[g1] = group.filter((g) => g === 1).length;
+    design = { kind: 'groups', group, groupNames: [g0, g1], nuisance: nuisanceColumns(c, kept) };
+  } else if (c.design === 'paired') {
+    const second = new Float64Array(n * nCh * P);
+    for (let s = 0; s < n; s++) second.set(rows[s][1], s * nCh * P);
+    design = { kind: 'paired', second, conditionNames: [conds[0].name, conds[1].name] };
+    nPerGroup.pairs = n;
+  } else {
+    design = { kind: 'covariate', covariate: kept.map((k) => k.covariate!), covariateName: c.covariate, nuisance: nuisanceColumns(c, kept) };
+    nPerGroup.subjects = n;
+  }
+  if (design.kind !== 'paired' && design.nuisance && design.nuisance.length === 0) delete design.nuisance;
+  const pointChannels = c.channelAverage ? [`mean(${channels.join(',')})`] : channels;
+  const input: ContrastInput = {
+    channels: pointChannels,
+    freqsHz: layout.freqsHz,
+    data: data0,
+    design,
+    ...(c.channelAverage || channels.length < 2 ? { channelNeighbours: null } : {}),
+  };
+  return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels };
+}
+
+function nuisanceColumns(c: Contrast, kept: { nuisance: number[] }[]): { name: string; values: number[] }[] {
+  return c.nuisance.map((name, i) => ({ name, values: kept.map((k) => k.nuisance[i]) }));
+}

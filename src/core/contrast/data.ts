@@ -1,0 +1,63 @@
+/**
+ * What a contrast reads from the database, in a form both database layers (Node's DuckDB in the
+ * command line, duckdb-wasm in the dashboard) fill the same way.
+ */
+import type { Stage } from '../stages.ts';
+
+/** One stored stage spectrum (one reference and averaging), power in µV²/Hz. */
+export interface SpectrumRow {
+  subject: string;
+  session: string | null;
+  channel: string;
+  stage: Stage;
+  nEpochs: number;
+  flagged: boolean;
+  flagReason: string | null;
+  power: Float32Array;
+}
+
+export interface CohortSpectra {
+  freqStartHz: number;
+  freqStepHz: number;
+  nBins: number;
+  rows: SpectrumRow[];
+}
+
+/** One aperiodic fit (offset in log10 µV²/Hz, exponent, knee; null when the fit failed). */
+export interface AperiodicRow {
+  subject: string;
+  session: string | null;
+  channel: string;
+  stage: Stage;
+  offset: number | null;
+  exponent: number | null;
+  knee: number | null;
+}
+
+export interface PeakRow {
+  subject: string;
+  session: string | null;
+  channel: string;
+  stage: Stage;
+  centerHz: number;
+  /** log10 units above the aperiodic fit */
+  height: number;
+  bandwidthHz: number;
+}
+
+/** A subject, or one channel of a subject, left out of every contrast, with the reason. */
+export interface Exclusion {
+  subject: string;
+  /** null: the whole subject */
+  channel: string | null;
+  reason: string;
+}
+
+export interface ContrastData {
+  spectra: CohortSpectra;
+  aperiodic: AperiodicRow[];
+  peaks: PeakRow[];
+  /** one row per subject; values typed as stored (numbers for numeric columns) */
+  participants: Record<string, string | number | null>[];
+  exclusions: Exclusion[];
+}
