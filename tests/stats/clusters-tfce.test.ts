@@ -55,7 +55,7 @@ print(json.dumps({"masses": masses, "sizes": sizes, "score": score.tolist()}))`,
 
 describe('cluster labelling and TFCE on the channel × frequency graph', () => {
   it('clusters and their masses equal scipy connected components', () => {
-    const clusters = findClusters(stat, threshold, edges, new ClusterWork(P));
+    const clusters = findClusters(stat, threshold, new ClusterWork(P, edges));
     expect(clusters.length).toBe(ref.masses.length);
     expect(clusters.length).toBeGreaterThan(2);
     expect(clusters.some((c) => c.sign === -1) && clusters.some((c) => c.sign === 1)).toBe(true);
@@ -63,10 +63,10 @@ describe('cluster labelling and TFCE on the channel × frequency graph', () => {
     const theirs = ref.masses.map((m, i) => `${m.toFixed(9)}/${ref.sizes[i]}`).sort();
     expect(ours).toEqual(theirs);
     // two-tailed null statistic: the largest |mass| over both signs; by size: the largest size
-    const work = new ClusterWork(P);
-    expect(maxClusterStatistic(stat, threshold, edges, 'mass', work)).toBeCloseTo(Math.max(...ref.masses.map(Math.abs)), 9);
-    expect(maxClusterStatistic(stat, threshold, edges, 'size', work)).toBe(Math.max(...ref.sizes));
-    expect(maxClusterStatistic(new Float64Array(P), threshold, edges, 'mass', work)).toBe(0);
+    const work = new ClusterWork(P, edges);
+    expect(maxClusterStatistic(stat, threshold, 'mass', work)).toBeCloseTo(Math.max(...ref.masses.map(Math.abs)), 9);
+    expect(maxClusterStatistic(stat, threshold, 'size', work)).toBe(Math.max(...ref.sizes));
+    expect(maxClusterStatistic(new Float64Array(P), threshold, 'mass', work)).toBe(0);
   });
 
   it('TFCE scores equal the level-by-level definition, positive and negative parts apart', () => {

@@ -23,7 +23,7 @@ describe('family-wise error under the null', () => {
     let tfceHits = 0;
     for (let d = 0; d < datasets; d++) {
       const data = gridNoise(32, channels.length, nFreqs, neighbours, rng);
-      const r = runContrast({ channels, freqsHz, data, design: { kind: 'groups', group } }, { permutations: 500, seed: 1000 + d, tfce: true, channelNeighbours: undefined });
+      const r = runContrast({ channels, freqsHz, data, design: { kind: 'groups', group } }, { permutations: 500, seed: 1000 + d, tfce: true });
       if (r.clusters.some((c) => c.p <= 0.05)) clusterHits++;
       if (r.tfce!.pCorrected.some((p) => p <= 0.05)) tfceHits++;
     }

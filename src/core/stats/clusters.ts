@@ -7,8 +7,11 @@
  * size = number of points. Two-tailed rule: the null statistic of a permutation is the largest
  * |cluster statistic| over clusters of BOTH signs (0 when no point passes), and an observed
  * cluster is compared through its |statistic|.
+ * Speed: only supra-threshold points are visited, each with its adjacency list (precomputed from
+ * the edge list), so the work per permutation follows the number of points that pass.
  */
 import { UnionFind } from './union-find.ts';
+import { adjacencyLists, type AdjacencyLists } from './point-graph.ts';
 
 export type ClusterMeasure = 'mass' | 'size';
 
@@ -26,7 +29,9 @@ export class ClusterWork {
   readonly sign: Int8Array;
   readonly mass: Float64Array;
   readonly active: Int32Array;
-  constructor(nPoints: number) {
+  readonly graph: AdjacencyLists;
+  constructor(nPoints: number, edges: Int32Array) {
+    this.graph = adjacencyLists(nPoints, edges);
     this.uf = new UnionFind(nPoints);
     this.sign = new Int8Array(nPoints);
     this.mass = new Float64Array(nPoints);
@@ -35,11 +40,12 @@ export class ClusterWork {
 }
 
 /**
- * Unions supra-threshold points of one sign along the edges; returns the number of such points,
- * listed in work.active, their signs in work.sign.
+ * Unions supra-threshold points of one sign along the graph's edges; returns the number of such
+ * points, listed in work.active (ascending), their signs in work.sign.
  */
-function labelSupraThreshold(stat: Float64Array, threshold: number, edges: Int32Array, work: ClusterWork): number {
+function labelSupraThreshold(stat: Float64Array, threshold: number, work: ClusterWork): number {
   const { uf, sign, active } = work;
+  const { start, neighbours } = work.graph;
   let nActive = 0;
   for (let p = 0; p < stat.length; p++) {
     const v = stat[p];
@@ -51,18 +57,20 @@ function labelSupraThreshold(stat: Float64Array, threshold: number, edges: Int32
     }
   }
   if (nActive < 2) return nActive;
-  for (let e = 0; e < edges.length; e += 2) {
-    const a = edges[e];
-    const b = edges[e + 1];
+  for (let i = 0; i < nActive; i++) {
+    const a = active[i];
     const sa = sign[a];
-    if (sa !== 0 && sa === sign[b]) uf.union(a, b);
+    for (let k = start[a]; k < start[a + 1]; k++) {
+      const b = neighbours[k];
+      if (b > a && sign[b] === sa) uf.union(a, b);
+    }
   }
   return nActive;
 }
 
 /** Largest |cluster statistic| over both signs (the permutation null statistic); 0 without clusters. */
-export function maxClusterStatistic(stat: Float64Array, threshold: number, edges: Int32Array, measure: ClusterMeasure, work: ClusterWork): number {
-  const nActive = labelSupraThreshold(stat, threshold, edges, work);
+export function maxClusterStatistic(stat: Float64Array, threshold: number, measure: ClusterMeasure, work: ClusterWork): number {
+  const nActive = labelSupraThreshold(stat, threshold, work);
   if (nActive === 0) return 0; // early exit: nothing passes the threshold
   const { uf, active, mass } = work;
   if (measure === 'size') {
@@ -88,8 +96,8 @@ export function maxClusterStatistic(stat: Float64Array, threshold: number, edges
 }
 
 /** All clusters of the statistic map, largest |mass| first. */
-export function findClusters(stat: Float64Array, threshold: number, edges: Int32Array, work: ClusterWork): Cluster[] {
-  const nActive = labelSupraThreshold(stat, threshold, edges, work);
+export function findClusters(stat: Float64Array, threshold: number, work: ClusterWork): Cluster[] {
+  const nActive = labelSupraThreshold(stat, threshold, work);
   const byRoot = new Map<number, Cluster>();
   for (let i = 0; i < nActive; i++) {
     const p = work.active[i];

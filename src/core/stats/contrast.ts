@@ -189,7 +189,7 @@ export function prepareContrast(input: ContrastInput, options: ContrastOptions =
   const tfce = tfceParameters(options.tfce);
   const test: PermutationTest = { kernel, scheme: makeScheme(kernel.scheme, n, permutations, seed, labels), edges, threshold, clusterStatistic, tfce };
 
-  const observedClusters = clusterStatistic === 'none' ? [] : findClusters(stat, threshold, edges, new ClusterWork(P));
+  const observedClusters = clusterStatistic === 'none' ? [] : findClusters(stat, threshold, new ClusterWork(P, edges));
   let tfceScore: Float64Array | null = null;
   if (tfce) {
     tfceScore = new Float64Array(P);

@@ -56,6 +56,10 @@ export class CorrelationT implements PointStatistic {
     this.r = new Float64Array(P);
   }
 
+  computeNull(relabelling: Int32Array, stat: Float64Array): void {
+    this.compute(relabelling, stat);
+  }
+
   observedRelabelling(): Int32Array {
     return Int32Array.from({ length: this.nSubjects }, (_, i) => i);
   }

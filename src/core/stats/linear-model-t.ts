@@ -88,6 +88,10 @@ export class LinearModelT implements PointStatistic {
     return v;
   }
 
+  computeNull(relabelling: Int32Array, stat: Float64Array): void {
+    this.compute(relabelling, stat);
+  }
+
   observedRelabelling(): Int32Array {
     return Int32Array.from({ length: this.nSubjects }, (_, i) => i);
   }

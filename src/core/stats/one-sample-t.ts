@@ -36,6 +36,10 @@ export class OneSampleT implements PointStatistic {
     this.acc = new Float64Array(nPoints);
   }
 
+  computeNull(relabelling: Int32Array, stat: Float64Array): void {
+    this.compute(relabelling, stat);
+  }
+
   observedRelabelling(): Int32Array {
     return new Int32Array(this.nSubjects).fill(1);
   }

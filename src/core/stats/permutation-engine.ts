@@ -53,14 +53,16 @@ export function runPermutations(test: PermutationTest, range: PermutationRange, 
   const labels = new Int32Array(n);
   const work = new Int32Array(n);
   const stat = new Float64Array(P);
-  const clusterWork = cluster ? new ClusterWork(P) : null;
+  const clusterWork = cluster ? new ClusterWork(P, test.edges) : null;
   const tfceWork = tfce ? new TfceWork(P, test.edges) : null;
   const score = tfce ? new Float64Array(P) : null;
+  // TFCE needs t at every point; clusters alone only where |t| passes the threshold
+  const screen = tfce ? null : test.threshold;
   const every = Math.max(1, Math.floor(count / 100));
   for (let i = from; i < to; i++) {
     relabelling(scheme, i, labels, work);
-    kernel.compute(labels, stat);
-    if (cluster) cluster[i - from] = maxClusterStatistic(stat, test.threshold, test.edges, test.clusterStatistic as ClusterMeasure, clusterWork!);
+    kernel.computeNull(labels, stat, screen);
+    if (cluster) cluster[i - from] = maxClusterStatistic(stat, test.threshold, test.clusterStatistic as ClusterMeasure, clusterWork!);
     if (tfce) tfce[i - from] = tfceScores(stat, test.tfce!, tfceWork!, score!);
     if (onProgress && ((i - from + 1) % every === 0 || i + 1 === to)) onProgress(i - from + 1, count);
   }

@@ -29,3 +29,22 @@ export function pointGraphEdges(nChannels: number, nFreqs: number, options: Poin
   }
   return Int32Array.from(edges);
 }
+
+/** Compressed adjacency lists of an edge list: neighbours of p are neighbours[start[p] … start[p + 1]). */
+export interface AdjacencyLists {
+  start: Int32Array;
+  neighbours: Int32Array;
+}
+
+export function adjacencyLists(nPoints: number, edges: Int32Array): AdjacencyLists {
+  const start = new Int32Array(nPoints + 1);
+  for (let e = 0; e < edges.length; e++) start[edges[e] + 1]++;
+  for (let p = 0; p < nPoints; p++) start[p + 1] += start[p];
+  const neighbours = new Int32Array(edges.length);
+  const fill = start.slice(0, nPoints);
+  for (let e = 0; e < edges.length; e += 2) {
+    neighbours[fill[edges[e]]++] = edges[e + 1];
+    neighbours[fill[edges[e + 1]]++] = edges[e];
+  }
+  return { start, neighbours };
+}

@@ -23,4 +23,11 @@ export interface PointStatistic {
    * Welch's t, the design df otherwise).
    */
   compute(relabelling: Int32Array, stat: Float64Array, df?: Float64Array): void;
+  /**
+   * The statistic of a permutation for the null distribution. With threshold = null it equals
+   * `compute`. With a threshold (cluster test without TFCE), points with |t| > threshold get their
+   * exact t, and other points may get any value of magnitude ≤ threshold (0), which lets a kernel
+   * skip work there (two-group-t.ts).
+   */
+  computeNull(relabelling: Int32Array, stat: Float64Array, threshold: number | null): void;
 }
