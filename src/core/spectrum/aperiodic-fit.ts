@@ -1,7 +1,7 @@
 import { aperiodicLog10, modelLog10, type AperiodicParams } from './aperiodic-model.ts';
 import { SpectrumFitError } from './fit-error.ts';
 import { aperiodicCount, jointFit, unpackParams, type AperiodicMode, type JointFitProblem } from './joint-fit.ts';
-import { FWHM_PER_SD, findPeaks } from './peaks.ts';
+import { FWHM_PER_SD, dropOverlappingPeaks, findPeaks } from './peaks.ts';
 import { fitPowerLawLine } from './power-law-line.ts';
 
 /**
@@ -11,8 +11,9 @@ import { fitPowerLawLine } from './power-law-line.ts';
  * Steps: (1) robust initial aperiodic fit (fit, keep the points whose residual is below a
  * percentile, refit); (2) iterative peak search on the flattened spectrum; (3) edge and overlap
  * removal (peaks.ts); (4) one joint bounded least-squares fit of all parameters (joint-fit.ts),
- * repeated without any peak the fit shrank below minPeakHeight (such a peak's centre and width
- * are not determined by the data, and it is not reported); (5) R² and RMSE of the full model
+ * repeated without any peak the fit shrank below minPeakHeight (its centre and width are then not
+ * determined by the data) and without the lower of two fitted peaks that overlap by the rule of
+ * step 3 (one peak split in two); (5) R² and RMSE of the full model
  * over the fit range. The defaults are our own choices for
  * 4-s Welch spectra of sleep EEG, not taken from any program.
  */
@@ -96,29 +97,58 @@ export interface PreparedFit extends JointFitProblem {
 
 /** Fits the aperiodic part and peaks of one spectrum (freqsHz in Hz, power in µV²/Hz, linear). */
 export function fitSpectrum(freqsHz: ArrayLike<number>, power: ArrayLike<number>, options: SpectrumFitOptions = {}): SpectrumFit {
-  const minHeight = options.minPeakHeight ?? SPECTRUM_FIT_DEFAULTS.minPeakHeight;
-  let problem = prepareFit(freqsHz, power, options);
-  let params = jointFit(problem);
-  // each pass drops at least one peak, so this ends after at most maxPeaks refits
-  for (let reduced = withoutWeakPeaks(problem, params, minHeight); reduced; reduced = withoutWeakPeaks(problem, params, minHeight)) {
-    problem = reduced;
-    params = jointFit(problem);
-  }
+  const { problem, params } = solveSpectrum(freqsHz, power, options);
   return summarise(problem, params);
 }
 
+/** Steps 1–4: the final joint-fit problem (start values, bounds) and its fitted parameter vector. */
+export function solveSpectrum(
+  freqsHz: ArrayLike<number>,
+  power: ArrayLike<number>,
+  options: SpectrumFitOptions = {},
+): { problem: PreparedFit; params: Float64Array; refits: number } {
+  const minHeight = options.minPeakHeight ?? SPECTRUM_FIT_DEFAULTS.minPeakHeight;
+  const overlapSd = options.overlapSd ?? SPECTRUM_FIT_DEFAULTS.overlapSd;
+  let problem = prepareFit(freqsHz, power, options);
+  let params = jointFit(problem);
+  let refits = 0;
+  // each pass drops at least one peak, so this ends after at most maxPeaks refits
+  for (let next = withoutUnresolvedPeaks(problem, params, minHeight, overlapSd); next; next = withoutUnresolvedPeaks(problem, params, minHeight, overlapSd)) {
+    problem = next;
+    params = jointFit(problem);
+    refits++;
+  }
+  return { problem, params, refits };
+}
+
 /**
- * The joint-fit problem without the peaks whose fitted height is below minHeight, started from the
- * fitted values of the rest (bounds unchanged); null when every peak is at least minHeight high.
+ * The joint-fit problem without the fitted peaks that the data do not support: those lower than
+ * minHeight, and the lower of two that overlap by the rule of step 3 (centres closer than
+ * overlapSd · (w₁ + w₂)). The rest start from their fitted values; each kept centre's bounds are
+ * re-centred on its fitted value (±2 fitted widths, inside the range), as in prepareFit, so a peak
+ * can take over the place of a dropped neighbour. Null when every fitted peak stays.
  */
-export function withoutWeakPeaks(problem: PreparedFit, params: Float64Array, minHeight: number): PreparedFit | null {
+export function withoutUnresolvedPeaks(problem: PreparedFit, params: Float64Array, minHeight: number, overlapSd: number): PreparedFit | null {
   const nAp = aperiodicCount(problem.mode);
+  const { peaks } = unpackParams(params, problem.mode);
+  const strong = peaks.filter((p) => p.height >= minHeight);
+  const resolved = new Set(dropOverlappingPeaks(strong, overlapSd));
+  if (resolved.size === peaks.length) return null;
   const keep: number[] = [];
   for (let q = 0; q < nAp; q++) keep.push(q);
-  for (let q = nAp; q + 2 < params.length; q += 3) if (params[q + 1] >= minHeight) keep.push(q, q + 1, q + 2);
-  if (keep.length === params.length) return null;
+  peaks.forEach((p, j) => {
+    if (resolved.has(p)) keep.push(nAp + 3 * j, nAp + 3 * j + 1, nAp + 3 * j + 2);
+  });
   const pick = (a: Float64Array) => Float64Array.from(keep, (q) => a[q]);
-  return { ...problem, start: pick(params), lower: pick(problem.lower), upper: pick(problem.upper) };
+  const start = pick(params);
+  const lower = pick(problem.lower);
+  const upper = pick(problem.upper);
+  const f = problem.freqsHz;
+  for (let q = nAp; q + 2 < start.length; q += 3) {
+    lower[q] = Math.max(f[0], start[q] - 2 * start[q + 2]);
+    upper[q] = Math.min(f[f.length - 1], start[q] + 2 * start[q + 2]);
+  }
+  return { ...problem, start, lower, upper };
 }
 
 /** Steps 1–3: checks the input, restricts it to the fit range, finds the start values and bounds. */
