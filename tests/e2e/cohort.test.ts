@@ -115,6 +115,14 @@ describe('dashboard in chromium: cohort view', () => {
       page.getByTestId('group-size-figure').getByRole('button', { name: 'SVG' }).click(),
     ]);
     expect(readFileSync(await svg.path(), 'utf8')).toMatch(/^<\?xml[^]*<svg[^]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
+    // the stage figure has a legend: both the legend and the plot end up in the one SVG file
+    const [stages] = await Promise.all([
+      page.waitForEvent('download'),
+      page.getByTestId('stage-figure').getByRole('button', { name: 'SVG' }).click(),
+    ]);
+    const stageSvg = readFileSync(await stages.path(), 'utf8');
+    expect(stageSvg.match(/<svg/g)?.length).toBe(3);
+    for (const label of ['N1', 'N3', 'sub-01', 'minutes']) expect(stageSvg).toContain(`>${label}`);
     const [png] = await Promise.all([
       page.waitForEvent('download'),
       page.getByTestId('group-size-figure').getByRole('button', { name: 'PNG' }).click(),

@@ -2,6 +2,33 @@
 
 const SVG_NS = 'http://www.w3.org/2000/svg';
 
+/**
+ * One SVG holding the SVG parts of a rendered Plot figure (a legend ramp and the plot), stacked
+ * top to bottom. HTML parts (swatch legends, captions) are not SVG and are left out, so figures
+ * meant for export use SVG legends (`legend: 'ramp'`).
+ */
+export function figureSvg(el: Element): SVGSVGElement {
+  if (el instanceof SVGSVGElement) return el;
+  const parts = Array.from(el.querySelectorAll('svg')).filter((s) => s.parentElement?.closest('svg') === null);
+  if (parts.length === 0) throw new Error('figure holds no SVG');
+  if (parts.length === 1) return parts[0];
+  const out = document.createElementNS(SVG_NS, 'svg');
+  let y = 0;
+  let width = 0;
+  for (const part of parts) {
+    const { width: w, height: h } = svgSize(part);
+    const copy = part.cloneNode(true) as SVGSVGElement;
+    copy.setAttribute('y', String(y));
+    out.append(copy);
+    y += h;
+    width = Math.max(width, w);
+  }
+  out.setAttribute('width', String(width));
+  out.setAttribute('height', String(y));
+  out.setAttribute('viewBox', `0 0 ${width} ${y}`);
+  return out;
+}
+
 /** Standalone SVG text of `svg`, with its namespace and a white background. */
 export function svgText(svg: SVGSVGElement): string {
   const copy = svg.cloneNode(true) as SVGSVGElement;

@@ -44,7 +44,7 @@ export function stageMinutesPlot(recordings: readonly Row[]): Plot.PlotOptions {
     marginLeft: 110,
     x: { label: 'minutes', grid: true },
     y: { label: null },
-    color: { domain: [...SCORED_STAGES], range: SCORED_STAGES.map((s) => STAGE_COLORS[s]), legend: true },
+    color: { domain: [...SCORED_STAGES], range: SCORED_STAGES.map((s) => STAGE_COLORS[s]), legend: 'ramp', label: 'stage' },
     marks: [Plot.barX(long, { y: 'recording', x: 'minutes', fill: 'stage', order: [...SCORED_STAGES] }), Plot.ruleX([0])],
   };
 }
