@@ -74,6 +74,12 @@ describe('exact permutation p-values on a tiny design', () => {
     // TFCE: the same two relabellings reach the observed score, every mixed split scores below
     expect(r.tfce!.pCorrected).toEqual([0.1, 0.1, 0.1]);
     expect(r.pValueRule).toMatch(/exact/);
+    // cluster size as the statistic: the same two relabellings give a 3-point cluster
+    const bySize = runContrast(
+      { channels: ['Cz'], freqsHz: [1, 2, 3], data, design: { kind: 'groups', group: [0, 0, 0, 1, 1, 1] } },
+      { permutations: 1000, clusterStatistic: 'size' },
+    );
+    expect(bySize.clusters.map((c) => [c.size, c.p])).toEqual([[3, 0.1]]);
   });
 
   it('paired, 4 subjects: 16 sign flips, p = 2/16', () => {
@@ -112,7 +118,11 @@ describe('splitting permutations over ranges', () => {
     expect([...joined.cluster!]).toEqual([...all.cluster!]);
     expect([...joined.tfce!]).toEqual([...all.tfce!]);
     expect(new Set(all.cluster).size).toBeGreaterThan(50); // the null maxima really vary
-    expect(JSON.stringify(runContrast(input, options))).toBe(JSON.stringify(runContrast(input, options)));
+    const progress: [number, number][] = [];
+    const once = runContrast(input, options, (done, total) => progress.push([done, total]));
+    expect(JSON.stringify(runContrast(input, options))).toBe(JSON.stringify(once));
+    expect(progress[progress.length - 1]).toEqual([300, 300]);
+    expect(progress.length).toBeGreaterThan(10);
     expect(() => concatNullMaxima([parts[0]])).not.toThrow();
     expect(() => concatNullMaxima([runPermutations(whole.test, { from: 0, to: 100 }), parts[0]])).toThrow(/not contiguous/);
   });

@@ -34,6 +34,7 @@ interface Ref {
   lmCov: { t: number[]; p: number[]; beta: number[]; partial: number[] };
   lmGroup: { t: number[]; p: number[]; beta: number[] };
   hedges: { g: number[]; lo: number[]; hi: number[]; diff: number[] };
+  hedgesPaired: { g: number[]; lo: number[]; hi: number[]; diff: number[] };
   fisher: { lo: number[]; hi: number[] };
 }
 
@@ -80,6 +81,11 @@ gg = J * (a1.mean(axis=0) - a0.mean(axis=0)) / sp
 se = numpy.sqrt((n0 + n1) / (n0 * n1) + gg ** 2 / (2 * (n0 + n1)))
 zc = stats.norm.ppf(0.975)
 out["hedges"] = {"g": L(gg), "lo": L(gg - zc * se), "hi": L(gg + zc * se), "diff": L(a1.mean(axis=0) - a0.mean(axis=0))}
+d = b - a; nd = d.shape[0]
+Jz = 1 - 3 / (4 * (nd - 1) - 1)
+gz = Jz * d.mean(axis=0) / d.std(axis=0, ddof=1)
+sez = numpy.sqrt(1 / nd + gz ** 2 / (2 * nd))
+out["hedgesPaired"] = {"g": L(gz), "lo": L(gz - zc * sez), "hi": L(gz + zc * sez), "diff": L(d.mean(axis=0))}
 rr = numpy.array(out["pearson"]["r"])
 out["fisher"] = {"lo": L(numpy.tanh(numpy.arctanh(rr) - zc / numpy.sqrt(n - 3))), "hi": L(numpy.tanh(numpy.arctanh(rr) + zc / numpy.sqrt(n - 3)))}
 print(json.dumps(out))`,
@@ -164,6 +170,12 @@ describe('point statistics equal scipy.stats', () => {
     close(r.effect.ciLow, ref.hedges.lo, 'lo');
     close(r.effect.ciHigh, ref.hedges.hi, 'hi');
     close(r.effect.difference!, ref.hedges.diff, 'difference');
+    // paired: g of the differences with J = 1 − 3/(4(n − 1) − 1) and var ≈ 1/n + g²/(2n)
+    const paired = runContrast({ channels, freqsHz, data: first, design: { kind: 'paired', second } }, quick);
+    close(paired.effect.value, ref.hedgesPaired.g, 'paired g');
+    close(paired.effect.ciLow, ref.hedgesPaired.lo, 'paired lo');
+    close(paired.effect.ciHigh, ref.hedgesPaired.hi, 'paired hi');
+    close(paired.effect.difference!, ref.hedgesPaired.diff, 'paired difference');
   });
 
   it('fails loudly on bad input, naming the field', () => {
