@@ -10,7 +10,8 @@
  * which we tried first, accepts every step (also uphill ones) and clips it at the bounds; with
  * peak widths on their lower bound it stalled above scipy.optimize.curve_fit's minimum (measured:
  * 2 of 8 noisy spectra, e.g. RMSE 0.078617 vs 0.078379, not reached in 50 iterations with any
- * damping tried), and with no relative stopping rule it costs a fixed 0.14 ms per iteration.
+ * damping tried), and with no relative stopping rule it runs a fixed count of iterations at about
+ * 0.14 ms each (7 parameters, 157 bins; measured on a loaded machine).
  * All work arrays are allocated once per call; iterations allocate nothing.
  */
 export interface BoundedLeastSquaresProblem {
