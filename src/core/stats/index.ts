@@ -31,7 +31,11 @@
  * for the threshold, fixed for all points and permutations, so observed and null clusters follow
  * one rule (the permutation p stays valid for any fixed threshold). The per-point Welch–
  * Satterthwaite df are reported and used for the uncorrected p-values.
- * A point whose standard error is 0 (no variance) gets t = 0.
+ * A point whose standard error is 0 (no variance) gets t = 0; a correlation of exactly ±1 gives
+ * t = ±Infinity (null in JSON).
+ *
+ * Memory: the two-group statistic keeps subset-sum tables of up to 160 MB (two-group-t.ts), at
+ * least twice the data size.
  */
 import type { EffectSize } from './effect-size.ts';
 

@@ -23,7 +23,8 @@
  */
 import type { PointStatistic } from './point-statistic.ts';
 
-/** largest pair of subset-sum tables, bytes (float64 Σx and Σx² per point per subset) */
+/** largest pair of subset-sum tables, bytes (float64 Σx and Σx² per point per subset); at
+ * g = 1 the tables are the centred data and their squares, whatever the budget */
 const TABLE_BUDGET_BYTES = 160 * 1024 * 1024;
 const MAX_CHUNK = 6;
 const BLOCK_POINTS = 2048;
@@ -40,7 +41,7 @@ export class TwoGroupT implements PointStatistic {
   private readonly labels: Uint8Array;
   private readonly variance: TwoGroupVariance;
   private readonly nChunks: number;
-  /** rows [chunk·2^g + pattern] of P: Σx, and Σx², of the pattern's subjects */
+  /** rows [chunk·(2^g − 1) + pattern − 1] of P: Σx, and Σx², of the pattern's subjects */
   private readonly sumTable: Float64Array;
   private readonly sqTable: Float64Array;
   private readonly total: Float64Array; // Σx per point over all subjects
@@ -63,7 +64,7 @@ export class TwoGroupT implements PointStatistic {
     this.variance = variance;
     this.df = n - 2;
     let g = MAX_CHUNK;
-    while (g > 1 && Math.ceil(n / g) * 2 ** g * 2 * P * 8 > TABLE_BUDGET_BYTES) g--;
+    while (g > 1 && Math.ceil(n / g) * (2 ** g - 1) * 2 * P * 8 > TABLE_BUDGET_BYTES) g--;
     this.chunk = g;
     this.nChunks = Math.ceil(n / g);
     const mean = new Float64Array(P);
@@ -79,21 +80,23 @@ export class TwoGroupT implements PointStatistic {
       }
     }
     this.ssTotal = Float64Array.from(this.totalSq, (q, p) => q - (this.total[p] * this.total[p]) / n);
-    // subset sums: row(u) = row(u without its lowest bit) + x_j (x_j²) of that bit's subject j
-    const patterns = 2 ** g;
-    this.sumTable = new Float64Array(this.nChunks * patterns * P);
-    this.sqTable = new Float64Array(this.nChunks * patterns * P);
+    // subset sums, one row per non-empty pattern u (row c·(2^g − 1) + u − 1):
+    // row(u) = row(u without its lowest bit) + x_j (x_j²) of that bit's subject j
+    const rowsPerChunk = 2 ** g - 1;
+    this.sumTable = new Float64Array(this.nChunks * rowsPerChunk * P);
+    this.sqTable = new Float64Array(this.nChunks * rowsPerChunk * P);
     for (let c = 0; c < this.nChunks; c++) {
-      for (let u = 1; u < patterns; u++) {
+      for (let u = 1; u <= rowsPerChunk; u++) {
         const low = u & -u;
         const j = c * g + Math.log2(low);
         if (j >= n) continue; // bits beyond the last subject are never set
-        const dst = (c * patterns + u) * P;
-        const src = (c * patterns + (u ^ low)) * P;
+        const dst = (c * rowsPerChunk + u - 1) * P;
+        const rest = u ^ low;
+        const src = (c * rowsPerChunk + rest - 1) * P;
         for (let p = 0; p < P; p++) {
           const v = data[j * P + p] - mean[p];
-          this.sumTable[dst + p] = this.sumTable[src + p] + v;
-          this.sqTable[dst + p] = this.sqTable[src + p] + v * v;
+          this.sumTable[dst + p] = (rest === 0 ? 0 : this.sumTable[src + p]) + v;
+          this.sqTable[dst + p] = (rest === 0 ? 0 : this.sqTable[src + p]) + v * v;
         }
       }
     }
@@ -110,7 +113,7 @@ export class TwoGroupT implements PointStatistic {
   private selectRows(relabelling: Int32Array): void {
     const n = this.nSubjects;
     const g = this.chunk;
-    const patterns = 2 ** g;
+    const rowsPerChunk = 2 ** g - 1;
     let n1 = 0;
     for (let j = 0; j < n; j++) n1 += relabelling[j];
     const accLabel = n1 <= n - n1 ? 1 : 0;
@@ -120,7 +123,7 @@ export class TwoGroupT implements PointStatistic {
     for (let c = 0; c < this.nChunks; c++) {
       let u = 0;
       for (let b = 0; b < g && c * g + b < n; b++) if (relabelling[c * g + b] === accLabel) u |= 1 << b;
-      if (u !== 0) this.rows[this.nRows++] = (c * patterns + u) * this.nPoints;
+      if (u !== 0) this.rows[this.nRows++] = (c * rowsPerChunk + u - 1) * this.nPoints;
     }
   }
 
