@@ -1,0 +1,8 @@
+/**
+ * Band or broadband? The band check (band-check.ts, rules in rules.ts), its figure data
+ * (figure.ts) and robustness across analysis paths (paths.ts). Pure: no I/O.
+ */
+export { bandCheck, bandCheckSets, bandFlanks, directionWords, BandCheckError, type BandCheckOptions, type BandCheckResult, type BandCheckTests, type FrequencyWise } from './band-check.ts';
+export { decideVerdict, bonferroni, describeTest, VERDICTS, type Verdict, type FamilyStep, type VerdictDecision, type VerdictInputs } from './rules.ts';
+export { runScalarTest, combine, assembleAveraged, rowMean, type ScalarTest, type ScalarValues } from './scalar-test.ts';
+export { bandCheckFigure, type BandCheckFigure, type FigureSeries } from './figure.ts';
