@@ -51,22 +51,22 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 describe('runIngest into DuckDB', () => {
   it('stores every recording, skips them on a rerun, and logs a broken file while the others go on', async () => {
     const db = path.join(dir, 'a.duckdb');
-    const first = await runIngest(table, db, { jobs: 2, params: { references: ['recorded', 'linked-mastoids'] } });
+    const first = await runIngest(table, db, { jobs: 2, params: { references: ['recorded'] } });
     expect(first).toMatchObject({ done: 4, skipped: 0, failed: [] });
     expect(await count(db, 'SELECT count(*) FROM recordings')).toBe(4);
-    // 8 channels × 5 stages × 2 averagings for recorded, 6 scalp channels × 5 × 2 for linked mastoids
-    expect(await count(db, 'SELECT count(*) FROM spectra')).toBe(4 * (80 + 60));
+    // 8 channels × 5 stages × 2 averagings
+    expect(await count(db, 'SELECT count(*) FROM spectra')).toBe(4 * 80);
     expect(await count(db, "SELECT count(*) FROM spectra WHERE len(power) <> n_bins OR n_bins <> 181 OR freq_step_hz <> 0.25")).toBe(0);
-    expect(await count(db, 'SELECT count(*) FROM aperiodic')).toBe(4 * 140);
+    expect(await count(db, 'SELECT count(*) FROM aperiodic')).toBe(4 * 80);
     expect(await count(db, "SELECT count(*) FROM epoch_rejections WHERE channel = 'C3' AND reason = 'amplitude'")).toBe(2);
     expect(await count(db, 'SELECT count(*) FROM epochs')).toBe(4 * 72);
     expect(await count(db, "SELECT count(*) FROM quality WHERE metric = 'mains-hum'")).toBe(4 * 8);
-    const again = await runIngest(table, db, { jobs: 2, params: { references: ['recorded', 'linked-mastoids'] } });
+    const again = await runIngest(table, db, { jobs: 2, params: { references: ['recorded'] } });
     expect(again).toMatchObject({ runId: first.runId, done: 0, skipped: 4, failed: [] });
     expect(await count(db, 'SELECT count(*) FROM recordings')).toBe(4);
     // a broken EDF: header cut short. The others are kept, the failure is in ingest_errors.
     writeFileSync(path.join(dir, 's02.edf'), readFileSync(path.join(dir, 's02.edf')).subarray(0, 300));
-    const other = await runIngest(table, db, { jobs: 1, params: { references: ['recorded'], fit: null } });
+    const other = await runIngest(table, db, { jobs: 1, params: { references: ['recorded'], fit: null } }); // fits off: other parameters
     expect(other.runId).not.toBe(first.runId); // other parameters: a new run, never mixed
     expect(other.done).toBe(3);
     expect(other.failed).toHaveLength(1);
