@@ -1,6 +1,6 @@
 /** Same seed, same numbers; epochs in any order; stage sequences and artifacts as specified. */
 import { describe, expect, it } from 'vitest';
-import { NightGenerator, planNight, groundTruth, ScenarioError, checkScenario } from '../../src/core/simulate/index.ts';
+import { NightGenerator, generateEpoch, planNight, groundTruth, ScenarioError, checkScenario } from '../../src/core/simulate/index.ts';
 import { baseScenario } from './scenarios.ts';
 
 const withEvents = baseScenario({
@@ -55,6 +55,13 @@ describe('determinism', () => {
     const shuffled = epochs(withEvents, 0, [7, 2, 30, 3, 0, 39, 1, 15, 14, 16, ...[...Array(n).keys()].filter((i) => ![7, 2, 30, 3, 0, 39, 1, 15, 14, 16].includes(i))]);
     expect(bytes(reversed).equals(bytes(inOrder))).toBe(true);
     expect(bytes(shuffled).equals(bytes(inOrder))).toBe(true);
+  });
+
+  it('generateEpoch on its own gives the same epoch as the streaming generator', () => {
+    const plan = planNight(withEvents, 0);
+    const alone = plan.channels.map(() => new Float32Array(plan.epochSamples));
+    generateEpoch(plan, 17, alone);
+    expect(bytes([alone]).equals(bytes([epochs()[17]]))).toBe(true);
   });
 
   it('subjects differ from each other', () => {

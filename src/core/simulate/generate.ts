@@ -237,3 +237,11 @@ export class NightGenerator {
     }
   }
 }
+
+/**
+ * One epoch on its own (synthesises blocks epoch − 1 and epoch). For a whole night keep one
+ * NightGenerator and call generate() in order: each block is then synthesised once.
+ */
+export function generateEpoch(plan: NightPlan, epoch: number, out: Float32Array[]): void {
+  new NightGenerator(plan).generate(epoch, out);
+}

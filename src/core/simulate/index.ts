@@ -7,7 +7,7 @@ export { ScenarioError } from './scenario.ts';
 export { checkScenario } from './validate.ts';
 export { listSubjects, subjectCode, type SimulatedSubject } from './subjects.ts';
 export { planNight, isMovementEpoch, type NightPlan, type PlannedRhythm, type PlannedSource } from './plan.ts';
-export { NightGenerator } from './generate.ts';
+export { NightGenerator, generateEpoch } from './generate.ts';
 export { groundTruth, MODEL_TEXT, type CohortTruth } from './ground-truth.ts';
 export {
   backgroundDensity, backgroundWeight, channelCoefficients, expectedDensity, rhythmDensity,

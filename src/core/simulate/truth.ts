@@ -120,6 +120,7 @@ export interface SubjectTruth {
   aperiodic: Record<ScoredStage, Record<string, StageAperiodic>>;
   /** Peaks above the aperiodic part per stage and channel (heights below 0.005 left out). */
   peaks: Record<ScoredStage, Record<string, PeakTruth[]>>;
+  /** The subject's rhythms; amplitudeUvByStage is the RMS (narrowband) or the envelope peak (bursts) at unit gain. */
   rhythms: { name: string; kind: string; site: string; centerHz: number; amplitudeUvByStage: Record<ScoredStage, number>; perMinuteByStage?: Record<ScoredStage, number> }[];
   artifacts: (
     | { kind: 'mains'; frequencyHz: number; amplitudeUv: number; channels: string[] }
