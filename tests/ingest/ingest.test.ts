@@ -51,7 +51,7 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 describe('runIngest into DuckDB', () => {
   it('stores every recording, skips them on a rerun, and logs a broken file while the others go on', async () => {
     const db = path.join(dir, 'a.duckdb');
-    const first = await runIngest(table, db, { jobs: 2, params: { references: ['recorded'] } });
+    const first = await runIngest(table, db, { jobs: 2, params: { references: ['recorded'], fit: { fitRangeHz: [1, 40], maxPeaks: 2 } } });
     expect(first).toMatchObject({ done: 4, skipped: 0, failed: [] });
     expect(await count(db, 'SELECT count(*) FROM recordings')).toBe(4);
     // 8 channels × 5 stages × 2 averagings
@@ -61,7 +61,7 @@ describe('runIngest into DuckDB', () => {
     expect(await count(db, "SELECT count(*) FROM epoch_rejections WHERE channel = 'C3' AND reason = 'amplitude'")).toBe(2);
     expect(await count(db, 'SELECT count(*) FROM epochs')).toBe(4 * 72);
     expect(await count(db, "SELECT count(*) FROM quality WHERE metric = 'mains-hum'")).toBe(4 * 8);
-    const again = await runIngest(table, db, { jobs: 2, params: { references: ['recorded'] } });
+    const again = await runIngest(table, db, { jobs: 2, params: { references: ['recorded'], fit: { fitRangeHz: [1, 40], maxPeaks: 2 } } });
     expect(again).toMatchObject({ runId: first.runId, done: 0, skipped: 4, failed: [] });
     expect(await count(db, 'SELECT count(*) FROM recordings')).toBe(4);
     // a broken EDF: header cut short. The others are kept, the failure is in ingest_errors.
