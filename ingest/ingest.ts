@@ -1,7 +1,8 @@
 /**
  * A whole cohort into the database: discover → begin (or resume) the run → skip recordings
  * already stored → process the rest in the worker pool → write each in its own transaction →
- * failures to ingest_errors while the others go on → summary.
+ * failures to ingest_errors while the others go on → cohort-level quality pass (robust distance of
+ * each spectrum from the cohort median, ingest/store/merge.ts) → summary.
  *
  * Resumable and idempotent: a recording is identified by (run, file SHA-256), and the run by its
  * parameters, so a rerun after an interruption (even SIGKILL: DuckDB replays its write-ahead log,
@@ -14,6 +15,7 @@ import type { CohortRecording } from './cohort/types.ts';
 import { fileSha256, resolveIngestParams, type IngestParams, type PipelineProgress } from './pipeline.ts';
 import { IngestPool, WorkerTaskError } from './pool.ts';
 import { openStore } from './store/database.ts';
+import { cohortQualityPass } from './store/merge.ts';
 
 export interface Shard {
   /** 1-based shard number K of N. */
@@ -47,6 +49,8 @@ export interface IngestSummary {
   done: number;
   skipped: number;
   failed: IngestFailure[];
+  /** Rows written by the cohort-level quality pass (robust distance from the cohort median). */
+  cohortQualityRows: number;
 }
 
 export function parseShard(text: string): Shard {
@@ -78,7 +82,7 @@ export async function runIngest(
     const names = cohort.columns.map((c) => c.name);
     await store.writeParticipants(names, cohort.participants.map((p) => names.map((n) => p[n] ?? null)));
     progress?.({ kind: 'start', runId, reused, total: recordings.length });
-    const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [] };
+    const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0 };
     // file names relative to the cohort root: no absolute paths (which may name people) in the database
     const shown = (rec: CohortRecording) => path.relative(cohort.root, rec.recordingPath) || path.basename(rec.recordingPath);
     const fail = async (rec: CohortRecording, step: string, field: string | null, message: string) => {
@@ -121,6 +125,8 @@ export async function runIngest(
       while (next < recordings.length) await one(recordings[next++]);
     });
     await Promise.all(lanes);
+    // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
+    summary.cohortQualityRows = await cohortQualityPass(store);
     await store.finishRun(runId);
     return summary;
   } finally {

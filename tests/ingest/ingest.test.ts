@@ -61,6 +61,8 @@ describe('runIngest into DuckDB', () => {
     expect(await count(db, "SELECT count(*) FROM epoch_rejections WHERE channel = 'C3' AND reason = 'amplitude'")).toBe(2);
     expect(await count(db, 'SELECT count(*) FROM epochs')).toBe(4 * 72);
     expect(await count(db, "SELECT count(*) FROM quality WHERE metric = 'mains-hum'")).toBe(4 * 8);
+    expect(first.cohortQualityRows).toBeGreaterThan(0);
+    expect(await count(db, "SELECT count(*) FROM quality WHERE metric = 'cohort-distance'")).toBe(first.cohortQualityRows);
     const again = await runIngest(table, db, { jobs: 2, params: { references: ['recorded'], fit: { fitRangeHz: [1, 40], maxPeaks: 2 } } });
     expect(again).toMatchObject({ runId: first.runId, done: 0, skipped: 4, failed: [] });
     expect(await count(db, 'SELECT count(*) FROM recordings')).toBe(4);
