@@ -58,6 +58,10 @@ export interface FrequencyWise {
   effect: number[];
   effectKind: string;
   clusters: CompareCluster[];
+  /** cluster-forming threshold and p-value rule of the test */
+  threshold: { p: number; t: number; df: number };
+  clusterStatistic: 'mass' | 'size' | 'none';
+  pValueRule: string;
   /** clusters with p < α that overlap the band, and how far they reach */
   bandClusters: CompareCluster[];
   extent: string;
@@ -217,6 +221,9 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
     effect: fw.statistics.effect.value,
     effectKind: fw.statistics.effect.kind,
     clusters: fw.clusters,
+    threshold: fw.statistics.threshold,
+    clusterStatistic: fw.statistics.clusterStatistic,
+    pValueRule: fw.statistics.pValueRule,
     bandClusters: sig,
     extent: describeExtent(band, sig),
   };

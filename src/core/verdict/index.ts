@@ -6,3 +6,4 @@ export { bandCheck, bandCheckSets, bandFlanks, directionWords, BandCheckError, t
 export { decideVerdict, bonferroni, describeTest, VERDICTS, type Verdict, type FamilyStep, type VerdictDecision, type VerdictInputs } from './rules.ts';
 export { runScalarTest, combine, assembleAveraged, rowMean, type ScalarTest, type ScalarValues } from './scalar-test.ts';
 export { bandCheckFigure, type BandCheckFigure, type FigureSeries } from './figure.ts';
+export { runPaths, enumeratePaths, pathDataNeeds, defaultPathChoices, edgeVariants, availableFitRanges, PathError, type PathChoices, type PathDataSet, type PathMeasure, type PathResult, type PathSpec, type PathRunOptions, type SpecificationCurve } from './paths.ts';

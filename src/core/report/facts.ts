@@ -1,0 +1,88 @@
+/**
+ * What a methods report needs besides the result: facts about the database the result was
+ * computed from (gathered by ingest/report.ts in Node, by the dashboard's queries in the
+ * browser) and the ledger counts. Plain JSON.
+ */
+
+/** The ingest parameters the report writes out (a subset of runs.parameters, as stored). */
+export interface IngestParameterFacts {
+  epochS: number;
+  segmentS: number;
+  overlap: number;
+  maxFreqHz: number;
+  references: string[];
+  bipolarPairs: string[];
+  rejection: { maxPeakToPeakUv: number; flatSdUv: number; flatRunS: number; outlierZ: number; broadbandHz: [number, number]; muscleHz: [number, number] };
+  minEpochs: number;
+  fit: { fitRangeHz: [number, number]; aperiodicMode?: string; maxPeaks?: number; peakWidthHz?: [number, number]; minPeakHeight?: number; peakThresholdSd?: number } | null;
+}
+
+export interface StageEpochCounts {
+  stage: string;
+  /** epochs of this stage × channels, epochs dropped for all channels not counted */
+  channelEpochs: number;
+  rejected: number;
+  byReason: Record<string, number>;
+}
+
+export interface DatabaseFacts {
+  file: string;
+  runId: string;
+  toolVersion: string;
+  ingestParameters: unknown;
+  recordings: number;
+  samplingRatesHz: number[];
+  channelsPerRecording: { min: number; max: number };
+  epochs: StageEpochCounts[];
+  /** distinct aperiodic fit ranges stored for the analysis' stage, reference and averaging */
+  fitRangesHz: [number, number][];
+}
+
+export interface LedgerCounts {
+  /** analyses (compare, band check) recorded for this database */
+  analyses: number;
+  significant: number;
+  byKind: Record<string, number>;
+}
+
+export class ReportInputError extends Error {
+  override name = 'ReportInputError';
+}
+
+const isNum = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v);
+const isPair = (v: unknown): v is [number, number] => Array.isArray(v) && v.length === 2 && isNum(v[0]) && isNum(v[1]);
+
+/** Reads the fields the report states from runs.parameters; fails naming the first missing one. */
+export function ingestParameterFacts(p: unknown): IngestParameterFacts {
+  const o = (p ?? {}) as Record<string, unknown>;
+  const need = (ok: boolean, field: string, v: unknown) => {
+    if (!ok) throw new ReportInputError(`ingest parameters: ${field} is missing or invalid (${JSON.stringify(v)})`);
+  };
+  for (const k of ['epochS', 'segmentS', 'overlap', 'maxFreqHz', 'minEpochs'] as const) need(isNum(o[k]), k, o[k]);
+  need(Array.isArray(o.references), 'references', o.references);
+  const r = (o.rejection ?? {}) as Record<string, unknown>;
+  for (const k of ['maxPeakToPeakUv', 'flatSdUv', 'flatRunS', 'outlierZ'] as const) need(isNum(r[k]), `rejection.${k}`, r[k]);
+  need(isPair(r.broadbandHz), 'rejection.broadbandHz', r.broadbandHz);
+  need(isPair(r.muscleHz), 'rejection.muscleHz', r.muscleHz);
+  const fit = o.fit as IngestParameterFacts['fit'];
+  if (fit !== null) need(!!fit && isPair(fit.fitRangeHz), 'fit.fitRangeHz', fit);
+  return {
+    epochS: o.epochS as number,
+    segmentS: o.segmentS as number,
+    overlap: o.overlap as number,
+    maxFreqHz: o.maxFreqHz as number,
+    references: (o.references as string[]).map(String),
+    bipolarPairs: Array.isArray(o.bipolarPairs) ? (o.bipolarPairs as string[]).map(String) : [],
+    rejection: r as unknown as IngestParameterFacts['rejection'],
+    minEpochs: o.minEpochs as number,
+    fit,
+  };
+}
+
+/** Counts a ledger's analyses for one database file name (reports are not analyses). */
+export function ledgerCounts(entries: readonly { database: string; kind: string; significant: boolean }[], database: string): LedgerCounts {
+  const own = entries.filter((e) => e.database === database && (e.kind === 'compare' || e.kind === 'band-check'));
+  const byKind: Record<string, number> = {};
+  for (const e of own) byKind[e.kind] = (byKind[e.kind] ?? 0) + 1;
+  return { analyses: own.length, significant: own.filter((e) => e.significant).length, byKind };
+}

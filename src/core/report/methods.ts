@@ -1,0 +1,295 @@
+/**
+ * The methods report of a compare or band-check result: plain scientific English with every
+ * spectral and statistical parameter, the exclusions with reasons, the ledger counts, the
+ * references of the methods used and the research-tool note; exported as Markdown and as a JSON
+ * of parameters. Pure: the database facts come in as DatabaseFacts (facts.ts).
+ */
+import type { Contrast } from '../contrast/spec.ts';
+import type { CompareResult } from '../contrast/run.ts';
+import { RESEARCH_NOTE } from '../contrast/run.ts';
+import type { Exclusion } from '../contrast/data.ts';
+import type { BandCheckResult } from '../verdict/band-check.ts';
+import type { ScalarTest } from '../verdict/scalar-test.ts';
+import { ingestParameterFacts, type DatabaseFacts, type IngestParameterFacts, type LedgerCounts } from './facts.ts';
+import { REFERENCE_LIST, type ReferenceKey } from './references.ts';
+
+export type ReportableResult = (CompareResult | BandCheckResult) & { database?: { file: string; runId: string; toolVersion: string; ingestParameters: unknown } };
+
+export interface MethodsParameters {
+  kind: 'compare' | 'band-check';
+  contrast: Contrast;
+  band: BandCheckResult['band'] | null;
+  database: { file: string; runId: string; toolVersion: string } | null;
+  ingest: IngestParameterFacts | null;
+  frequencyResolutionHz: number | null;
+  epochs: DatabaseFacts['epochs'] | null;
+  fitRangesHz: [number, number][];
+  n: Record<string, number>;
+  exclusions: Exclusion[];
+  statistics: Record<string, unknown>;
+  ledger: LedgerCounts | null;
+  references: string[];
+  note: string;
+}
+
+export interface MethodsReport {
+  markdown: string;
+  parameters: MethodsParameters;
+}
+
+const g3 = (x: number) => Number(x.toPrecision(3)).toString();
+const pct = (a: number, b: number) => (b > 0 ? `${((100 * a) / b).toFixed(1)} %` : 'n/a');
+const hz = (r: readonly number[]) => `${r[0]}–${r[1]} Hz`;
+const list = (xs: string[]) => (xs.length <= 1 ? xs.join('') : `${xs.slice(0, -1).join(', ')} and ${xs[xs.length - 1]}`);
+
+const REFERENCE_WORDS: Record<string, string> = {
+  recorded: 'as recorded',
+  'linked-mastoids': 'linked mastoids (mean of M1 and M2)',
+  'contralateral-mastoid': 'the contralateral mastoid',
+  average: 'the common average',
+  bipolar: 'bipolar pairs',
+};
+
+const STATISTIC_WORDS: Record<string, string> = {
+  'welch-t': "Welch's t for unequal variances (Welch 1947)",
+  'student-t': "Student's t with pooled variance",
+  'paired-t': 'the paired t of the within-subject differences',
+  'one-sample-t': 'the one-sample t against zero',
+  pearson: 'the Pearson correlation, converted to t with n − 2 degrees of freedom',
+  spearman: 'the Spearman rank correlation (Pearson correlation of ranks), converted to t with n − 2 degrees of freedom',
+  'linear-model-t': 'the t of the effect of interest in a linear model with the nuisance covariates',
+};
+
+function designText(c: Contrast, n: Record<string, number>, refs: Set<ReferenceKey>): string {
+  const sizes = Object.entries(n).map(([k, v]) => `${k} n = ${v}`).join(', ');
+  let s: string;
+  if (c.design === 'groups') s = `Two independent groups were compared, taken from the participants column "${c.groupColumn}": ${c.groups![0]} and ${c.groups![1]} (${sizes}); differences are ${c.groups![1]} minus ${c.groups![0]}.`;
+  else if (c.design === 'paired' && c.stages) s = `Stages ${c.stages[0]} and ${c.stages[1]} were compared within subjects (${sizes}); differences are ${c.stages[1]} minus ${c.stages[0]}, permuted by sign flips of the differences.`;
+  else if (c.design === 'paired') s = `Sessions ${c.sessions![0]} and ${c.sessions![1]} were compared within subjects (${sizes}); differences are session ${c.sessions![1]} minus session ${c.sessions![0]}, permuted by sign flips of the differences.`;
+  else s = `The measure was correlated with the participants column "${c.covariate}" (${sizes}); the covariate was permuted across subjects.`;
+  if (c.nuisance.length > 0) {
+    refs.add('freedman1983');
+    refs.add('winkler2014');
+  }
+  if (c.nuisance.length > 0) s += ` The analysis adjusted for ${list(c.nuisance.map((x) => `"${x}"`))} in a linear model, with permutation of the reduced model's residuals (Freedman & Lane 1983; Winkler et al. 2014).`;
+  if (c.session !== undefined) s += ` Session ${c.session} was used.`;
+  return s;
+}
+
+function channelText(c: Contrast, channels: string[]): string {
+  const names = c.channels === 'all' ? `all stored channels (${channels.join(', ')})` : `channels ${c.channels.join(', ')}`;
+  return c.channelAverage || channels.length === 1 ? `${names}, averaged` : names;
+}
+
+function spectralSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFacts | null, refs: Set<ReferenceKey>): string {
+  refs.add('welch1967');
+  const res = 1 / f.segmentS;
+  const recs = facts
+    ? `${facts.recordings} recordings (sampling rates ${facts.samplingRatesHz.join(', ')} Hz; ${facts.channelsPerRecording.min === facts.channelsPerRecording.max ? facts.channelsPerRecording.min : `${facts.channelsPerRecording.min}–${facts.channelsPerRecording.max}`} channels each) were processed by bandwise ${facts.toolVersion} (ingest run ${facts.runId}, database ${facts.file}). `
+    : '';
+  const refsText = f.references.map((r) => REFERENCE_WORDS[r] ?? r).join('; ');
+  const bipolar = f.bipolarPairs.length ? ` (bipolar pairs ${f.bipolarPairs.join(', ')})` : '';
+  let avg: string;
+  if (c.averaging === 'median') {
+    refs.add('wilson1931');
+    avg = 'the median across clean epochs, divided by the median of χ²ν/ν (Wilson & Hilferty 1931 approximation, ν the equivalent degrees of freedom of one epoch) so that it estimates the same density as the mean';
+  } else avg = 'the mean across clean epochs';
+  return (
+    `${recs}Sleep was scored in ${f.epochS}-s epochs with the AASM stages W, N1, N2, N3 and R. ` +
+    `For every channel and epoch the power spectral density was estimated by Welch's method (Welch 1967): ${f.segmentS}-s Hann-windowed segments overlapping by ${g3(f.overlap * 100)} %, the mean of each segment removed, one-sided density scaling in µV²/Hz; ` +
+    `the frequency resolution is ${g3(res)} Hz and spectra were stored from 0 to ${f.maxFreqHz} Hz. ` +
+    `The epoch spectra of a stage were combined by ${avg}; a stage with fewer than ${f.minEpochs} clean epochs was flagged. ` +
+    `Spectra were stored for the references ${refsText}${bipolar}; this analysis used the reference ${REFERENCE_WORDS[c.reference] ?? c.reference} and the ${c.averaging} over epochs of stage ${stagesOf(c).join(' and ')}.`
+  );
+}
+
+const stagesOf = (c: Contrast): string[] => (c.design === 'paired' && c.stages ? [...c.stages] : [c.stage]);
+
+function rejectionSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFacts | null, refs: Set<ReferenceKey>): string {
+  refs.add('iglewicz1993');
+  const r = f.rejection;
+  let s =
+    `An epoch was rejected for a channel when its peak-to-peak amplitude exceeded ${r.maxPeakToPeakUv} µV; when its standard deviation was below ${r.flatSdUv} µV or one value repeated for at least ${r.flatRunS} s (flat); ` +
+    `or when its log10 power over ${hz(r.broadbandHz)} (broadband) or over ${hz(r.muscleHz)} (muscle range) was an outlier among the epochs of the same stage and channel, with a modified z-score |x − median|/(1.4826·MAD) above ${r.outlierZ} (Iglewicz & Hoaglin 1993).`;
+  if (facts && facts.epochs.length > 0) {
+    const used = facts.epochs.filter((e) => stagesOf(c).includes(e.stage));
+    const all = facts.epochs.reduce((a, e) => ({ n: a.n + e.channelEpochs, k: a.k + e.rejected }), { n: 0, k: 0 });
+    const reasons = (e: { byReason: Record<string, number> }) => Object.entries(e.byReason).sort().map(([k, v]) => `${k} ${v}`).join(', ') || 'none';
+    for (const e of used) s += ` In ${e.stage}, ${e.rejected} of ${e.channelEpochs} channel-epochs (${pct(e.rejected, e.channelEpochs)}) were rejected (${reasons(e)}).`;
+    s += ` Over all stages, ${all.k} of ${all.n} channel-epochs (${pct(all.k, all.n)}) were rejected.`;
+  }
+  return s;
+}
+
+function aperiodicSection(f: IngestParameterFacts, facts: DatabaseFacts | null, c: Contrast, usesFit: boolean, refs: Set<ReferenceKey>): string | null {
+  if (!f.fit) return usesFit ? 'No aperiodic fit was stored by the ingest run.' : null;
+  refs.add('donoghue2020');
+  const ranges = facts?.fitRangesHz ?? [];
+  const stated = ranges.length === 1 ? `${hz(ranges[0])} for every subject (as stored)` : ranges.length > 1 ? `ranges ${ranges.map(hz).join(', ')} (several stored)` : hz(f.fit.fitRangeHz);
+  let s =
+    `Each stored stage spectrum was decomposed into an aperiodic component and Gaussian peaks (Donoghue et al. 2020): log10 P(f) = b − log10(k + f^χ) + Σ h·exp(−(f − c)²/(2w²)), with offset b, exponent χ and knee k ` +
+    `(${f.fit.aperiodicMode === 'knee' ? 'knee fitted' : 'k = 0, a plain power law'}), fitted over ${stated}` +
+    (f.fit.maxPeaks !== undefined ? ` with at most ${f.fit.maxPeaks} peaks` : '') +
+    '. The residual spectrum is log10 power minus the fitted aperiodic component.';
+  if (c.aperiodicMethod === 'irasa') {
+    refs.add('wen2016');
+    s += ' The aperiodic estimate used here is IRASA (Wen & Liu 2016).';
+  }
+  return s;
+}
+
+function exclusionSection(ex: Exclusion[], n: Record<string, number>): string {
+  const sizes = Object.entries(n).map(([k, v]) => `${k} ${v}`).join(', ');
+  if (ex.length === 0) return `No subject was left out (analysed: ${sizes}).`;
+  return `${ex.length} subject${ex.length === 1 ? ' was' : 's were'} left out (analysed: ${sizes}):\n\n` + ex.map((e) => `- ${e.subject}${e.channel ? ` (${e.channel})` : ''}: ${e.reason}`).join('\n');
+}
+
+function permutationText(p: { permutations: number; exact: boolean; seed: number }, what: string): string {
+  return p.exact ? `all ${p.permutations} ${what} were enumerated (exact test)` : `${p.permutations} random ${what} were drawn from seed ${p.seed}`;
+}
+
+function relabellingWord(c: Contrast): string {
+  return c.design === 'groups' ? 'relabellings of the groups (sizes kept)' : c.design === 'paired' ? 'sign flips' : 'permutations of the covariate';
+}
+
+function compareStatistics(r: CompareResult, refs: Set<ReferenceKey>): { text: string; json: Record<string, unknown> } {
+  const s = r.statistics;
+  const c = r.contrast;
+  refs.add('phipson2010');
+  if (s.effect.kind === 'hedges-g') refs.add('hedges1985');
+  else refs.add('fisher1921');
+  if (s.statistic === 'welch-t') refs.add('welch1947');
+  let corr: string;
+  const perm = permutationText(s, relabellingWord(c));
+  if (c.correction === 'tfce' && s.tfce) {
+    refs.add('smith2009');
+    corr = `Multiple comparisons over points were corrected by threshold-free cluster enhancement (Smith & Nichols 2009) with E = ${s.tfce.E}, H = ${s.tfce.H} and step ${s.tfce.dh}, the corrected p of a point from the largest |TFCE| score of each permutation; ${perm}.`;
+  } else if (c.correction === 'none') {
+    corr = 'No correction for multiple comparisons was applied; p-values are uncorrected, from the t distribution.';
+  } else {
+    refs.add('maris2007');
+    const space = s.channelNeighbours ? ' and neighbouring channels (Delaunay triangulation of the 10-10 electrode positions, or the neighbour table given)' : '';
+    corr =
+      `Multiple comparisons were corrected by cluster-based permutation (Maris & Oostenveld 2007): points with |t| above ${g3(s.threshold.t)} (two-tailed p = ${c.clusterP} with ${s.threshold.df} degrees of freedom) formed clusters of one sign along neighbouring frequencies${s.frequencyAdjacency ? '' : ' (none: band points are not neighbours)'}${space}; ` +
+      `the cluster statistic was the ${c.correction === 'cluster-size' ? 'number of points' : 'sum of t (mass)'}, compared with the largest |cluster statistic| of each permutation (both signs); ${perm}; ${s.pValueRule}.`;
+  }
+  const text =
+    `The measure was ${r.measure}, over ${c.fminHz}–${c.fmaxHz} Hz in ${channelText(c, s.channels.length === 1 && c.channelAverage ? [s.channels[0]] : s.channels)}. ` +
+    `The point statistic was ${STATISTIC_WORDS[s.statistic] ?? s.statistic} at every ${s.channels.length > 1 ? 'channel × frequency point' : 'frequency point'}. ${corr} ` +
+    `Effect sizes are ${s.effect.kind === 'hedges-g' ? "Hedges' g with a large-sample interval (Hedges & Olkin 1985)" : 'correlations with a Fisher z interval (Fisher 1921)'} at the ${g3(s.effect.level * 100)} % level.`;
+  const json = { statistic: s.statistic, correction: c.correction, clusterP: c.clusterP, threshold: s.threshold, clusterStatistic: s.clusterStatistic, tfce: s.tfce ? { E: s.tfce.E, H: s.tfce.H, dh: s.tfce.dh } : null, permutations: s.permutations, exact: s.exact, seed: s.seed, pValueRule: s.pValueRule, effectSize: s.effect.kind, confidenceLevel: s.effect.level, channels: s.channels, frequencyAdjacency: s.frequencyAdjacency, spatialNeighbours: s.channelNeighbours !== null };
+  return { text, json };
+}
+
+function compareResults(r: CompareResult): string {
+  const sig = r.clusters.filter((k) => k.p < 0.05);
+  if (r.clusters.length === 0) return 'No cluster formed.';
+  const lines = r.clusters.slice(0, 10).map((k) => `- ${k.sign > 0 ? 'positive' : 'negative'} cluster, ${k.fminHz}–${k.fmaxHz} Hz, channels ${k.channels.join(', ')}: ${r.contrast.correction === 'cluster-size' ? 'size' : 'mass'} ${g3(r.contrast.correction === 'cluster-size' ? k.size : k.mass)}, p = ${g3(k.p)}`);
+  return `${r.clusters.length} cluster${r.clusters.length === 1 ? '' : 's'} formed, ${sig.length} with p < 0.05${r.clusters.length > 10 ? ' (the 10 smallest p shown)' : ''}:\n\n${lines.join('\n')}`;
+}
+
+function testLine(name: string, t: ScalarTest | null): string {
+  if (!t) return `- ${name}: not computed (no room inside the fit range)`;
+  const e = t.effectKind === 'hedges-g' ? 'g' : t.effectKind;
+  const d = t.difference !== null ? `, difference ${g3(t.difference)}` : '';
+  return `- ${name} — ${t.measure}: ${e} = ${t.effect.toFixed(2)} [${t.ciLow.toFixed(2)}, ${t.ciHigh.toFixed(2)}]${d}, t = ${t.t.toFixed(2)}, p = ${g3(t.p)} (${Object.entries(t.n).map(([k, v]) => `${k} ${v}`).join(', ')})`;
+}
+
+function bandStatistics(r: BandCheckResult, refs: Set<ReferenceKey>): { text: string; json: Record<string, unknown> } {
+  const c = r.contrast;
+  const t = r.tests;
+  refs.add('phipson2010');
+  refs.add('maris2007');
+  refs.add(t.raw.effectKind === 'hedges-g' ? 'hedges1985' : 'fisher1921');
+  if (t.raw.statistic === 'welch-t') refs.add('welch1947');
+  const L = r.flanks.lower;
+  const U = r.flanks.upper;
+  const fw = r.frequencyWise;
+  const text =
+    `The band check asked whether an effect in ${r.band.name} (${r.band.loHz}–${r.band.hiHz} Hz) in ${channelText({ ...c, channelAverage: true }, r.channels)} is band-specific or a broadband aperiodic change. ` +
+    `Each of the following was computed per subject and tested on its own with ${STATISTIC_WORDS[t.raw.statistic] ?? t.raw.statistic} and a two-tailed permutation test of |t| (${permutationText(t.raw, relabellingWord(c))}; p = (1 + number of permutations with |t*| ≥ |t|)/(1 + permutations), Phipson & Smyth 2010): ` +
+    `log10 band power (${c.bandMethod === 'mean' ? 'mean density' : 'trapezoid integral'}); the aperiodic offset and exponent; the residual averaged over the band's bins (periodic power); the height of the highest fitted peak in the band (0 where none); the aperiodic component averaged over the band; ` +
+    `log10 power in flanks of ${r.flanks.widthHz} Hz just below (${L ? `${L.loHz}–${L.hiHz} Hz` : 'none'}) and above (${U ? `${U.loHz}–${U.hiHz} Hz` : 'none'}) the band${r.flanks.note ? ` (${r.flanks.note})` : ''} and their difference (upper minus lower); and log10 relative band power (band integral over the integral across ${hz(r.normalisation.denominatorHz)}). ` +
+    `The verdict rests on the periodic, offset and exponent tests, Bonferroni-corrected at α = ${r.alpha} (each passes at p ≤ ${g3(r.alpha / 3)}); the aperiodic level in the band, the flanks and their difference tell the kinds of a passing aperiodic effect apart (rules in the bandwise README). ` +
+    `To show how far the effect extends, log10 PSD over ${c.fminHz}–${c.fmaxHz} Hz was tested at every frequency with cluster-based permutation (Maris & Oostenveld 2007; |t| above ${g3(fw.threshold.t)}, two-tailed p = ${c.clusterP} with ${fw.threshold.df} degrees of freedom; ${fw.pValueRule}). ` +
+    `Effect sizes are ${t.raw.effectKind === 'hedges-g' ? "Hedges' g with a large-sample interval (Hedges & Olkin 1985)" : 'correlations with a Fisher z interval (Fisher 1921)'} at the ${g3(t.raw.level * 100)} % level.`;
+  const json = { statistic: t.raw.statistic, permutations: t.raw.permutations, exact: t.raw.exact, seed: r.seed, alpha: r.alpha, decisionCorrection: 'bonferroni', family: r.family, flanks: r.flanks, relativeDenominatorHz: r.normalisation.denominatorHz, frequencyWise: { correction: c.correction, clusterP: c.clusterP, threshold: fw.threshold, clusterStatistic: fw.clusterStatistic, pValueRule: fw.pValueRule, fminHz: c.fminHz, fmaxHz: c.fmaxHz }, effectSize: t.raw.effectKind, confidenceLevel: t.raw.level, channels: r.channels };
+  return { text, json };
+}
+
+function bandResults(r: BandCheckResult): string {
+  const t = r.tests;
+  const lines = [
+    testLine('raw band effect', t.raw),
+    testLine('aperiodic offset', t.offset),
+    testLine('aperiodic exponent', t.exponent),
+    testLine('periodic band effect', t.periodic),
+    testLine('peak height', t.peakHeight),
+    testLine('aperiodic level in the band', t.aperiodicInBand),
+    testLine('lower flank', t.lowerFlank),
+    testLine('upper flank', t.upperFlank),
+    testLine('flank difference', t.tilt),
+    testLine('relative band power', t.relative),
+  ];
+  const presence = Object.entries(r.peakPresence).map(([k, v]) => `${k} ${(100 * v).toFixed(0)} %`).join(', ');
+  return (
+    `Verdict: **${r.verdict}** (rule ${r.rule}). ${r.sentence}\n\n${lines.join('\n')}\n\n` +
+    (presence ? `Subjects with a fitted peak in the band on at least one channel: ${presence}.\n\n` : '') +
+    `Frequency-wise: ${r.frequencyWise.extent}.` +
+    (r.normalisation.note ? `\n\n${r.normalisation.note}` : '')
+  );
+}
+
+function ledgerSection(l: LedgerCounts | null): string {
+  if (!l) return 'No ledger was given, so the number of analyses run on this database is not known.';
+  const kinds = Object.entries(l.byKind).map(([k, v]) => `${v} ${k}`).join(', ');
+  return `The ledger of this database records ${l.analyses} analys${l.analyses === 1 ? 'is' : 'es'} (${kinds || 'none'}), of which ${l.significant} had p < 0.05. A result chosen from many analyses overstates the evidence; weigh this one against that count.`;
+}
+
+/** The contrast's keys and values, one per line, as set for this analysis. */
+function contrastList(c: Contrast): string {
+  return Object.entries(c).map(([k, v]) => `- ${k}: ${typeof v === 'object' ? JSON.stringify(v) : String(v)}`).join('\n');
+}
+
+export function methodsReport(result: ReportableResult, facts: DatabaseFacts | null, ledger: LedgerCounts | null): MethodsReport {
+  const c = result.contrast;
+  const refs = new Set<ReferenceKey>();
+  const ingestRaw = facts?.ingestParameters ?? result.database?.ingestParameters;
+  const f = ingestRaw === undefined ? null : ingestParameterFacts(ingestRaw);
+  const isBand = result.kind === 'band-check';
+  const usesFit = isBand || ['residual', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center'].includes(c.measure);
+  const n = isBand ? (result as BandCheckResult).n : (result as CompareResult).n;
+  const stats = isBand ? bandStatistics(result as BandCheckResult, refs) : compareStatistics(result as CompareResult, refs);
+  const parts: string[] = [`# Methods${isBand ? `: band check of ${(result as BandCheckResult).band.name}` : ''}`, `*${RESEARCH_NOTE}*`];
+  if (f) {
+    parts.push('## Recordings and spectra', spectralSection(f, c, facts, refs));
+    parts.push('## Epoch rejection', rejectionSection(f, c, facts, refs));
+    const ap = aperiodicSection(f, facts, c, usesFit, refs);
+    if (ap) parts.push('## Aperiodic model', ap);
+  } else parts.push('## Recordings and spectra', 'The ingest parameters of the database were not available, so the spectral parameters cannot be stated.');
+  parts.push('## Subjects and exclusions', exclusionSection(result.exclusions, n));
+  parts.push('## Design and statistics', designText(c, n, refs), stats.text);
+  parts.push('## Result', isBand ? bandResults(result as BandCheckResult) : compareResults(result as CompareResult));
+  parts.push('## Analyses run', ledgerSection(ledger));
+  parts.push('## Contrast settings', contrastList(c));
+  const keys = [...refs].sort((a, b) => REFERENCE_LIST[a].localeCompare(REFERENCE_LIST[b]));
+  parts.push('## References', keys.map((k) => `- ${REFERENCE_LIST[k]}`).join('\n'));
+  const db = facts ?? result.database ?? null;
+  const parameters: MethodsParameters = {
+    kind: result.kind,
+    contrast: c,
+    band: isBand ? (result as BandCheckResult).band : null,
+    database: db ? { file: db.file, runId: db.runId, toolVersion: db.toolVersion } : null,
+    ingest: f,
+    frequencyResolutionHz: f ? 1 / f.segmentS : null,
+    epochs: facts?.epochs ?? null,
+    fitRangesHz: facts?.fitRangesHz ?? (isBand ? [(result as BandCheckResult).fitRangeHz] : []),
+    n,
+    exclusions: result.exclusions,
+    statistics: stats.json,
+    ledger,
+    references: keys.map((k) => REFERENCE_LIST[k]),
+    note: RESEARCH_NOTE,
+  };
+  return { markdown: parts.join('\n\n') + '\n', parameters };
+}

@@ -1,0 +1,234 @@
+/**
+ * Robustness across analysis paths: a path is one set of analysis choices; the band contrast is
+ * run for every combination of the choices the user varies, and the results form a
+ * specification curve (Simonsohn, Simmons & Nelson 2020, Nature Human Behaviour 4:1208–1214):
+ * effect sizes sorted with their intervals, the choices of each path, the significant paths
+ * marked and their share stated.
+ *
+ * Choices that can vary: measure (absolute log10 band power; log10 relative band power with one
+ * or more denominator ranges; residual above the aperiodic fit averaged over the band), reference
+ * and epoch averaging (each a separately stored set of spectra), band power summary (mean
+ * density or trapezoid integral), aperiodic fit range (only ranges stored in the database) and
+ * band edges. A choice that does not apply to a measure is not varied for it, so no path is
+ * counted twice: the summary applies to absolute power only (relative power is a ratio of
+ * integrals — a ratio of mean densities differs by a constant factor, which leaves the effect
+ * size unchanged — and the residual is a mean of log values), the fit range to the residual only.
+ *
+ * Each path is one band summary per subject, averaged over the contrast's channels (one stage),
+ * tested with the same one-point permutation test as the band check (scalar-test.ts). Only the
+ * rows differ by reference, averaging and fit range: the caller passes one data set for each.
+ */
+import type { Contrast } from '../contrast/spec.ts';
+import type { ContrastData } from '../contrast/data.ts';
+import { checkBand, type Band, type BandMethod } from '../spectrum/bands.ts';
+import { assembleAveraged, reduce, rowMean, runScalarTest, type ScalarTest } from './scalar-test.ts';
+
+export type PathMeasure = 'absolute' | 'relative' | 'residual';
+export type Averaging = 'mean' | 'median';
+
+/** Rows of one (reference, averaging) as stored, with the fit range of their aperiodic fits. */
+export interface PathDataSet {
+  reference: string;
+  averaging: Averaging;
+  /** aperiodic fit range of data.aperiodic, Hz (null: no fits in this set) */
+  fitRangeHz: [number, number] | null;
+  data: ContrastData;
+}
+
+export interface PathChoices {
+  measures: PathMeasure[];
+  /** denominator ranges of the relative measure, Hz */
+  relativeDenominatorsHz: [number, number][];
+  references: string[];
+  averagings: Averaging[];
+  /** band power summary of the absolute measure */
+  summaries: BandMethod[];
+  /** aperiodic fit ranges of the residual measure (each must be stored) */
+  fitRangesHz: [number, number][];
+  /** band edge variants (edgeVariants gives ±1 Hz) */
+  bands: Band[];
+}
+
+export interface PathSpec {
+  id: number;
+  measure: PathMeasure;
+  denominatorHz: [number, number] | null;
+  reference: string;
+  averaging: Averaging;
+  summary: BandMethod | null;
+  fitRangeHz: [number, number] | null;
+  band: Band;
+  /** the path's measure in words */
+  description: string;
+}
+
+export interface PathResult extends PathSpec {
+  effect: number;
+  ciLow: number;
+  ciHigh: number;
+  effectKind: ScalarTest['effectKind'];
+  p: number;
+  significant: boolean;
+  n: Record<string, number>;
+  /** position on the curve, 1 = smallest effect */
+  rank: number;
+}
+
+export interface SpecificationCurve {
+  kind: 'robustness';
+  contrast: Contrast;
+  band: Band;
+  /** sorted by effect size, smallest first */
+  paths: PathResult[];
+  nPaths: number;
+  nSignificant: number;
+  shareSignificant: number;
+  /** paths with p < α whose effect has the sign of the median effect */
+  nSignificantMajoritySign: number;
+  medianEffect: number;
+  alpha: number;
+  permutations: number;
+  seed: number;
+  /** the values each choice took */
+  choices: PathChoices;
+  notes: string[];
+}
+
+export class PathError extends Error {
+  override name = 'PathError';
+}
+
+/** Band edges moved by ±shiftHz: wider on both sides, as given, narrower on both sides. */
+export function edgeVariants(band: Band, shiftHz = 1): Band[] {
+  checkBand(band);
+  const out = [{ ...band, loHz: Math.max(0, band.loHz - shiftHz), hiHz: band.hiHz + shiftHz }, { ...band }];
+  if (band.hiHz - band.loHz > 2 * shiftHz) out.push({ ...band, loHz: band.loHz + shiftHz, hiHz: band.hiHz - shiftHz });
+  return out;
+}
+
+const sameRange = (a: readonly number[] | null, b: readonly number[] | null) => a !== null && b !== null && Math.abs(a[0] - b[0]) < 1e-9 && Math.abs(a[1] - b[1]) < 1e-9;
+
+/** The distinct fit ranges stored in the data sets (for the choice of fit ranges). */
+export function availableFitRanges(sets: readonly PathDataSet[]): [number, number][] {
+  const out: [number, number][] = [];
+  for (const s of sets) if (s.fitRangeHz && !out.some((r) => sameRange(r, s.fitRangeHz))) out.push([...s.fitRangeHz]);
+  return out;
+}
+
+/** Every combination of the choices, a choice that does not apply to a measure taken once. */
+export function enumeratePaths(choices: PathChoices): PathSpec[] {
+  const out: PathSpec[] = [];
+  for (const k of ['measures', 'references', 'averagings', 'bands'] as const) if (choices[k].length === 0) throw new PathError(`choices.${k}: at least one value is needed`);
+  for (const band of choices.bands) checkBand(band);
+  for (const measure of choices.measures) {
+    const denominators: ([number, number] | null)[] = measure === 'relative' ? choices.relativeDenominatorsHz : [null];
+    const summaries: (BandMethod | null)[] = measure === 'absolute' ? choices.summaries : [null];
+    const fitRanges: ([number, number] | null)[] = measure === 'residual' ? choices.fitRangesHz : [null];
+    if (denominators.length === 0) throw new PathError('choices.relativeDenominatorsHz: the relative measure needs at least one denominator range');
+    if (summaries.length === 0) throw new PathError('choices.summaries: the absolute measure needs a band power summary');
+    if (fitRanges.length === 0) throw new PathError('choices.fitRangesHz: the residual measure needs a fit range');
+    for (const reference of choices.references)
+      for (const averaging of choices.averagings)
+        for (const denominatorHz of denominators)
+          for (const summary of summaries)
+            for (const fitRangeHz of fitRanges)
+              for (const band of choices.bands) {
+                const edges = `${band.loHz}–${band.hiHz} Hz`;
+                const description =
+                  measure === 'absolute'
+                    ? `log10 band power (${summary === 'mean' ? 'mean density' : 'trapezoid integral'}) ${edges}`
+                    : measure === 'relative'
+                      ? `log10 relative band power ${edges} / ${denominatorHz![0]}–${denominatorHz![1]} Hz`
+                      : `residual averaged over ${edges} (fit ${fitRangeHz![0]}–${fitRangeHz![1]} Hz)`;
+                out.push({ id: out.length + 1, measure, denominatorHz, reference, averaging, summary, fitRangeHz, band, description: `${description}; ${reference}, ${averaging}` });
+              }
+  }
+  return out;
+}
+
+/** The (reference, averaging) data sets the choices need: the caller loads rows for each. */
+export function pathDataNeeds(choices: PathChoices): { reference: string; averaging: Averaging }[] {
+  return choices.references.flatMap((reference) => choices.averagings.map((averaging) => ({ reference, averaging })));
+}
+
+export interface PathRunOptions {
+  /** permutations per path (default: the contrast's) */
+  permutations?: number;
+  /** significance level of each path (default 0.05) */
+  alpha?: number;
+  onProgress?: (done: number, total: number) => void;
+}
+
+function findSet(sets: readonly PathDataSet[], p: PathSpec): PathDataSet {
+  const candidates = sets.filter((s) => s.reference === p.reference && s.averaging === p.averaging);
+  if (candidates.length === 0) throw new PathError(`no data set for reference ${p.reference}, averaging ${p.averaging} (have: ${sets.map((s) => `${s.reference}/${s.averaging}`).join(', ')})`);
+  if (p.measure !== 'residual') return candidates[0];
+  const hit = candidates.find((s) => sameRange(s.fitRangeHz, p.fitRangeHz));
+  if (!hit) {
+    const have = availableFitRanges(candidates).map((r) => `${r[0]}–${r[1]} Hz`).join(', ') || 'none';
+    throw new PathError(`aperiodic fit range ${p.fitRangeHz![0]}–${p.fitRangeHz![1]} Hz is not stored for ${p.reference}/${p.averaging} (stored: ${have})`);
+  }
+  return hit;
+}
+
+function pathValues(c: Contrast, p: PathSpec, data: ContrastData) {
+  const base = { ...c, reference: p.reference as Contrast['reference'], averaging: p.averaging };
+  if (p.measure === 'absolute') return reduce(p.description, assembleAveraged(base, data, { measure: 'band-power', bands: [p.band], bandMethod: p.summary! }), (r) => r[0]);
+  if (p.measure === 'relative') return reduce(p.description, assembleAveraged(base, data, { measure: 'relative-band-power', bands: [p.band], relativeRangeHz: p.denominatorHz! }), (r) => r[0]);
+  return reduce(p.description, assembleAveraged(base, data, { measure: 'residual', fminHz: p.band.loHz, fmaxHz: p.band.hiHz }), rowMean);
+}
+
+/**
+ * Every choice the data allow: all three measures, relative power over the contrast's denominator
+ * and over its analysis range (fminHz–fmaxHz), every stored reference and averaging, both
+ * summaries, every stored fit range, band edges ±1 Hz.
+ */
+export function defaultPathChoices(c: Contrast, band: Band, sets: readonly PathDataSet[]): PathChoices {
+  const second: [number, number] = [c.fminHz, c.fmaxHz];
+  return {
+    measures: ['absolute', 'relative', 'residual'],
+    relativeDenominatorsHz: sameRange(c.relativeRangeHz, second) ? [[...c.relativeRangeHz]] : [[...c.relativeRangeHz], second],
+    references: [...new Set(sets.map((s) => s.reference))],
+    averagings: [...new Set(sets.map((s) => s.averaging))],
+    summaries: ['mean', 'integral'],
+    fitRangesHz: availableFitRanges(sets),
+    bands: edgeVariants(band),
+  };
+}
+
+/** Runs every path and returns the specification curve; `band` is the band as given (its variants are in choices.bands). */
+export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoices, sets: readonly PathDataSet[], options: PathRunOptions = {}): SpecificationCurve {
+  const alpha = options.alpha ?? 0.05;
+  const permutations = options.permutations ?? contrastBase.permutations;
+  const specs = enumeratePaths(choices);
+  const notes: string[] = [];
+  if (choices.measures.includes('residual')) {
+    const stored = availableFitRanges(sets);
+    if (stored.length < 2) notes.push(`aperiodic fit range not varied: the database stores ${stored.length === 0 ? 'no fit' : `one fit range (${stored[0][0]}–${stored[0][1]} Hz)`}`);
+  }
+  const results: PathResult[] = specs.map((p, i) => {
+    const t = runScalarTest(pathValues(contrastBase, p, findSet(sets, p).data), { statistic: contrastBase.statistic, permutations, seed: contrastBase.seed });
+    options.onProgress?.(i + 1, specs.length);
+    return { ...p, effect: t.effect, ciLow: t.ciLow, ciHigh: t.ciHigh, effectKind: t.effectKind, p: t.p, significant: t.p < alpha, n: t.n, rank: 0 };
+  });
+  results.sort((a, b) => a.effect - b.effect || a.id - b.id);
+  results.forEach((r, i) => (r.rank = i + 1));
+  const mid = results.length % 2 === 1 ? results[(results.length - 1) / 2].effect : (results[results.length / 2 - 1].effect + results[results.length / 2].effect) / 2;
+  const nSignificant = results.filter((r) => r.significant).length;
+  return {
+    kind: 'robustness',
+    contrast: contrastBase,
+    band: { ...band },
+    paths: results,
+    nPaths: results.length,
+    nSignificant,
+    shareSignificant: nSignificant / results.length,
+    nSignificantMajoritySign: results.filter((r) => r.significant && Math.sign(r.effect) === Math.sign(mid)).length,
+    medianEffect: mid,
+    alpha,
+    permutations,
+    seed: contrastBase.seed,
+    choices,
+    notes,
+  };
+}

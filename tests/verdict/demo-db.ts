@@ -1,0 +1,24 @@
+/**
+ * An ingested demo database for the band-check tests and the robustness benchmark: the demo
+ * cohort (generated once by ensureDemoCohort into demo-cohort/recordings/) ingested with the
+ * recorded and the linked-mastoid reference into a file in the system temp folder named after
+ * the scenario stamp. Ingest is resumable and skips stored recordings, so later runs reuse it.
+ */
+import { mkdirSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { runIngest } from '../../ingest/ingest.ts';
+import { ensureDemoCohort, scenarioStamp, DEMO_SCENARIO } from '../../ingest/simulate/demo.ts';
+
+export const DEMO_REFERENCES = ['recorded', 'linked-mastoids'] as const;
+
+export async function demoDatabase(): Promise<string> {
+  const cohort = await ensureDemoCohort();
+  const stamp = (await scenarioStamp(DEMO_SCENARIO)).slice(0, 16);
+  const dir = path.join(tmpdir(), 'bandwise-verdict-demo');
+  mkdirSync(dir, { recursive: true });
+  const db = path.join(dir, `demo-${stamp}.duckdb`);
+  const summary = await runIngest(cohort.participantsPath, db, { jobs: 2, params: { references: [...DEMO_REFERENCES] } });
+  if (summary.failed.length > 0) throw new Error(`demo ingest failed for ${summary.failed.map((f) => `${f.file} (${f.step}: ${f.message})`).join(', ')}`);
+  return db;
+}
