@@ -23,7 +23,7 @@ const num = (name: string) => (v: string) => {
   return x;
 };
 
-interface Flags {
+export interface Flags {
   contrast?: string;
   out: string;
   tsv?: string;
@@ -117,22 +117,14 @@ export function pointsTsv(r: CompareRun): string {
   return lines.join('\n') + '\n';
 }
 
-export function register(program: Command): void {
-  program
-    .command('compare')
-    .summary('run one contrast (groups, paired stages/sessions, covariate) with permutation correction')
-    .description(
-      'Runs a contrast over channels × frequencies on a bandwise database: a point statistic per channel and ' +
-        'frequency (Welch t by default), cluster-based permutation correction (Maris & Oostenveld 2007) or TFCE ' +
-        '(Smith & Nichols 2009). Options override the keys of --contrast. Signs are groups[1] minus groups[0] ' +
-        '(paired: second minus first). Writes the full result (every parameter and the seed) as JSON. ' +
-        'A research tool: results are not a diagnosis.',
-    )
-    .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
+/**
+ * The options that define a contrast, plus exclusions, run, ledger and progress, shared by the
+ * commands that run one (compare, band-check). bandMeasures adds --band for band-power and peak
+ * measures (band-check has its own --band, the band it checks).
+ */
+export function addContrastOptions(command: Command, o: { bandMeasures: boolean }): Command {
+  command
     .option('--contrast <file>', 'contrast JSON (the format the dashboard saves)')
-    .requiredOption('--out <file>', 'result JSON to write')
-    .option('--tsv <file>', 'cluster table as TSV')
-    .option('--points-tsv <file>', 'per-point statistics (t, df, p, effect size with interval, cluster) as TSV')
     .option('--exclusions <file>', 'TSV of subjects/channels to leave out (subject, channel, reason), as the dashboard exports it')
     .option('--run <id>', 'ingest run to read (default: the most recent finished run)')
     .option('--ledger <file>', 'ledger file (JSON lines) this analysis is appended to, so reports can count every analysis run (default: <database>.ledger.jsonl)')
@@ -154,7 +146,6 @@ export function register(program: Command): void {
     .option('--fmax <hz>', 'highest frequency, Hz (default 30)', num('--fmax'))
     .addOption(new Option('--measure <name>', 'measure (default log-psd)').choices([...MEASURES]))
     .option('--relative-range <lo,hi>', 'denominator range of relative measures, Hz (default 0.5,45)', pair('--relative-range'))
-    .option('--band <name:lo-hi...>', 'band(s) for band-power and peak measures, e.g. sigma:12-16')
     .addOption(new Option('--band-method <m>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²) (default mean)').choices(['mean', 'integral']))
     .addOption(new Option('--aperiodic-method <m>', 'aperiodic estimate for residual/offset/exponent measures (default fit)').choices(['fit', 'irasa']))
     .addOption(new Option('--statistic <name>', 'point statistic (default: welch-t for groups, paired-t, pearson for covariates)').choices(['welch-t', 'student-t', 'paired-t', 'pearson', 'spearman', 'linear-model-t']))
@@ -162,7 +153,28 @@ export function register(program: Command): void {
     .option('--cluster-p <p>', 'two-tailed cluster-forming p (default 0.05)', num('--cluster-p'))
     .option('--permutations <n>', 'permutations (default 1000; exact enumeration when fewer relabellings exist)', num('--permutations'))
     .option('--seed <n>', 'seed of the permutation generator (default 1)', num('--seed'))
-    .option('--quiet', 'no progress bar')
+    .option('--quiet', 'no progress bar');
+  if (o.bandMeasures) command.option('--band <name:lo-hi...>', 'band(s) for band-power and peak measures, e.g. sigma:12-16');
+  return command;
+}
+
+export function register(program: Command): void {
+  const command = program
+    .command('compare')
+    .summary('run one contrast (groups, paired stages/sessions, covariate) with permutation correction')
+    .description(
+      'Runs a contrast over channels × frequencies on a bandwise database: a point statistic per channel and ' +
+        'frequency (Welch t by default), cluster-based permutation correction (Maris & Oostenveld 2007) or TFCE ' +
+        '(Smith & Nichols 2009). Options override the keys of --contrast. Signs are groups[1] minus groups[0] ' +
+        '(paired: second minus first). Writes the full result (every parameter and the seed) as JSON. ' +
+        'A research tool: results are not a diagnosis.',
+    )
+    .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
+    .requiredOption('--out <file>', 'result JSON to write')
+    .option('--tsv <file>', 'cluster table as TSV')
+    .option('--points-tsv <file>', 'per-point statistics (t, df, p, effect size with interval, cluster) as TSV');
+  addContrastOptions(command, { bandMeasures: true });
+  command
     .action(async (database: string, flags: Flags) => {
       let contrast;
       try {
