@@ -12,13 +12,16 @@ import { ensureDemoCohort, scenarioStamp, DEMO_SCENARIO } from '../../ingest/sim
 
 export const DEMO_REFERENCES = ['recorded', 'linked-mastoids'] as const;
 
-export async function demoDatabase(): Promise<string> {
+/**
+ * The database path and the recordings ingest could not store (known: ctl-09, whose flat O2
+ * channel trips the mains-hum metric; reported to the ingest owner). The checks run on the rest.
+ */
+export async function demoDatabase(): Promise<{ db: string; failed: string[] }> {
   const cohort = await ensureDemoCohort();
   const stamp = (await scenarioStamp(DEMO_SCENARIO)).slice(0, 16);
   const dir = path.join(tmpdir(), 'bandwise-verdict-demo');
   mkdirSync(dir, { recursive: true });
   const db = path.join(dir, `demo-${stamp}.duckdb`);
   const summary = await runIngest(cohort.participantsPath, db, { jobs: 2, params: { references: [...DEMO_REFERENCES] } });
-  if (summary.failed.length > 0) throw new Error(`demo ingest failed for ${summary.failed.map((f) => `${f.file} (${f.step}: ${f.message})`).join(', ')}`);
-  return db;
+  return { db, failed: summary.failed.map((f) => `${f.file} (${f.step}: ${f.message})`) };
 }

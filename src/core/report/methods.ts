@@ -10,6 +10,7 @@ import { RESEARCH_NOTE } from '../contrast/run.ts';
 import type { Exclusion } from '../contrast/data.ts';
 import type { BandCheckResult } from '../verdict/band-check.ts';
 import type { ScalarTest } from '../verdict/scalar-test.ts';
+import { fmt } from '../verdict/rules.ts';
 import { ingestParameterFacts, type DatabaseFacts, type IngestParameterFacts, type LedgerCounts } from './facts.ts';
 import { REFERENCE_LIST, type ReferenceKey } from './references.ts';
 
@@ -37,7 +38,7 @@ export interface MethodsReport {
   parameters: MethodsParameters;
 }
 
-const g3 = (x: number) => Number(x.toPrecision(3)).toString();
+const g3 = (x: number) => Number(x.toPrecision(3)).toString().replace('-', '−');
 const pct = (a: number, b: number) => (b > 0 ? `${((100 * a) / b).toFixed(1)} %` : 'n/a');
 const hz = (r: readonly number[]) => `${r[0]}–${r[1]} Hz`;
 const list = (xs: string[]) => (xs.length <= 1 ? xs.join('') : `${xs.slice(0, -1).join(', ')} and ${xs[xs.length - 1]}`);
@@ -77,8 +78,10 @@ function designText(c: Contrast, n: Record<string, number>, refs: Set<ReferenceK
 }
 
 function channelText(c: Contrast, channels: string[]): string {
+  const chosen = c.channels === 'all' ? channels : c.channels;
+  if (chosen.length === 1) return `channel ${chosen[0]}`;
   const names = c.channels === 'all' ? `all stored channels (${channels.join(', ')})` : `channels ${c.channels.join(', ')}`;
-  return c.channelAverage || channels.length === 1 ? `${names}, averaged` : names;
+  return c.channelAverage ? `the average over ${names}` : names;
 }
 
 function spectralSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFacts | null, refs: Set<ReferenceKey>): string {
@@ -99,7 +102,7 @@ function spectralSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFa
     `For every channel and epoch the power spectral density was estimated by Welch's method (Welch 1967): ${f.segmentS}-s Hann-windowed segments overlapping by ${g3(f.overlap * 100)} %, the mean of each segment removed, one-sided density scaling in µV²/Hz; ` +
     `the frequency resolution is ${g3(res)} Hz and spectra were stored from 0 to ${f.maxFreqHz} Hz. ` +
     `The epoch spectra of a stage were combined by ${avg}; a stage with fewer than ${f.minEpochs} clean epochs was flagged. ` +
-    `Spectra were stored for the references ${refsText}${bipolar}; this analysis used the reference ${REFERENCE_WORDS[c.reference] ?? c.reference} and the ${c.averaging} over epochs of stage ${stagesOf(c).join(' and ')}.`
+    `Spectra were stored for these references: ${refsText}${bipolar}. This analysis used the reference ${REFERENCE_WORDS[c.reference] ?? c.reference} and the ${c.averaging} over epochs of stage ${stagesOf(c).join(' and ')}.`
   );
 }
 
@@ -148,6 +151,13 @@ function permutationText(p: { permutations: number; exact: boolean; seed: number
   return p.exact ? `all ${p.permutations} ${what} were enumerated (exact test)` : `${p.permutations} random ${what} were drawn from seed ${p.seed}`;
 }
 
+/** The permutation p of a cluster or TFCE score, in words. */
+function pRule(p: { permutations: number; exact: boolean }): string {
+  return p.exact
+    ? `p = (number of relabellings, the observed one included, whose largest statistic reaches the observed one)/${p.permutations}`
+    : `p = (1 + number of permutations whose largest statistic reaches the observed one)/(1 + ${p.permutations}) (Phipson & Smyth 2010)`;
+}
+
 function relabellingWord(c: Contrast): string {
   return c.design === 'groups' ? 'relabellings of the groups (sizes kept)' : c.design === 'paired' ? 'sign flips' : 'permutations of the covariate';
 }
@@ -171,7 +181,7 @@ function compareStatistics(r: CompareResult, refs: Set<ReferenceKey>): { text: s
     const space = s.channelNeighbours ? ' and neighbouring channels (Delaunay triangulation of the 10-10 electrode positions, or the neighbour table given)' : '';
     corr =
       `Multiple comparisons were corrected by cluster-based permutation (Maris & Oostenveld 2007): points with |t| above ${g3(s.threshold.t)} (two-tailed p = ${c.clusterP} with ${s.threshold.df} degrees of freedom) formed clusters of one sign along neighbouring frequencies${s.frequencyAdjacency ? '' : ' (none: band points are not neighbours)'}${space}; ` +
-      `the cluster statistic was the ${c.correction === 'cluster-size' ? 'number of points' : 'sum of t (mass)'}, compared with the largest |cluster statistic| of each permutation (both signs); ${perm}; ${s.pValueRule}.`;
+      `the cluster statistic was the ${c.correction === 'cluster-size' ? 'number of points' : 'sum of t (mass)'}, compared with the largest |cluster statistic| of each permutation (both signs); ${perm}; ${pRule(s)}.`;
   }
   const text =
     `The measure was ${r.measure}, over ${c.fminHz}–${c.fmaxHz} Hz in ${channelText(c, s.channels.length === 1 && c.channelAverage ? [s.channels[0]] : s.channels)}. ` +
@@ -192,7 +202,7 @@ function testLine(name: string, t: ScalarTest | null): string {
   if (!t) return `- ${name}: not computed (no room inside the fit range)`;
   const e = t.effectKind === 'hedges-g' ? 'g' : t.effectKind;
   const d = t.difference !== null ? `, difference ${g3(t.difference)}` : '';
-  return `- ${name} — ${t.measure}: ${e} = ${t.effect.toFixed(2)} [${t.ciLow.toFixed(2)}, ${t.ciHigh.toFixed(2)}]${d}, t = ${t.t.toFixed(2)}, p = ${g3(t.p)} (${Object.entries(t.n).map(([k, v]) => `${k} ${v}`).join(', ')})`;
+  return `- ${name} — ${t.measure}: ${e} = ${fmt(t.effect)} [${fmt(t.ciLow)}, ${fmt(t.ciHigh)}]${d}, t = ${fmt(t.t)}, p = ${g3(t.p)} (${Object.entries(t.n).map(([k, v]) => `${k} ${v}`).join(', ')})`;
 }
 
 function bandStatistics(r: BandCheckResult, refs: Set<ReferenceKey>): { text: string; json: Record<string, unknown> } {
@@ -206,12 +216,12 @@ function bandStatistics(r: BandCheckResult, refs: Set<ReferenceKey>): { text: st
   const U = r.flanks.upper;
   const fw = r.frequencyWise;
   const text =
-    `The band check asked whether an effect in ${r.band.name} (${r.band.loHz}–${r.band.hiHz} Hz) in ${channelText({ ...c, channelAverage: true }, r.channels)} is band-specific or a broadband aperiodic change. ` +
+    `The band check asked whether an effect in ${r.band.name} (${r.band.loHz}–${r.band.hiHz} Hz), in the average over ${r.channels.length === 1 ? 'channel' : 'channels'} ${r.channels.join(', ')}, is band-specific or a broadband aperiodic change. ` +
     `Each of the following was computed per subject and tested on its own with ${STATISTIC_WORDS[t.raw.statistic] ?? t.raw.statistic} and a two-tailed permutation test of |t| (${permutationText(t.raw, relabellingWord(c))}; p = (1 + number of permutations with |t*| ≥ |t|)/(1 + permutations), Phipson & Smyth 2010): ` +
     `log10 band power (${c.bandMethod === 'mean' ? 'mean density' : 'trapezoid integral'}); the aperiodic offset and exponent; the residual averaged over the band's bins (periodic power); the height of the highest fitted peak in the band (0 where none); the aperiodic component averaged over the band; ` +
     `log10 power in flanks of ${r.flanks.widthHz} Hz just below (${L ? `${L.loHz}–${L.hiHz} Hz` : 'none'}) and above (${U ? `${U.loHz}–${U.hiHz} Hz` : 'none'}) the band${r.flanks.note ? ` (${r.flanks.note})` : ''} and their difference (upper minus lower); and log10 relative band power (band integral over the integral across ${hz(r.normalisation.denominatorHz)}). ` +
     `The verdict rests on the periodic, offset and exponent tests, Bonferroni-corrected at α = ${r.alpha} (each passes at p ≤ ${g3(r.alpha / 3)}); the aperiodic level in the band, the flanks and their difference tell the kinds of a passing aperiodic effect apart (rules in the bandwise README). ` +
-    `To show how far the effect extends, log10 PSD over ${c.fminHz}–${c.fmaxHz} Hz was tested at every frequency with cluster-based permutation (Maris & Oostenveld 2007; |t| above ${g3(fw.threshold.t)}, two-tailed p = ${c.clusterP} with ${fw.threshold.df} degrees of freedom; ${fw.pValueRule}). ` +
+    `To show how far the effect extends, log10 PSD over ${c.fminHz}–${c.fmaxHz} Hz was tested at every frequency with cluster-based permutation (Maris & Oostenveld 2007; |t| above ${g3(fw.threshold.t)}, two-tailed p = ${c.clusterP} with ${fw.threshold.df} degrees of freedom; ${pRule(t.raw)}). ` +
     `Effect sizes are ${t.raw.effectKind === 'hedges-g' ? "Hedges' g with a large-sample interval (Hedges & Olkin 1985)" : 'correlations with a Fisher z interval (Fisher 1921)'} at the ${g3(t.raw.level * 100)} % level.`;
   const json = { statistic: t.raw.statistic, permutations: t.raw.permutations, exact: t.raw.exact, seed: r.seed, alpha: r.alpha, decisionCorrection: 'bonferroni', family: r.family, flanks: r.flanks, relativeDenominatorHz: r.normalisation.denominatorHz, frequencyWise: { correction: c.correction, clusterP: c.clusterP, threshold: fw.threshold, clusterStatistic: fw.clusterStatistic, pValueRule: fw.pValueRule, fminHz: c.fminHz, fmaxHz: c.fmaxHz }, effectSize: t.raw.effectKind, confidenceLevel: t.raw.level, channels: r.channels };
   return { text, json };

@@ -110,6 +110,7 @@ export function decideVerdict(x: VerdictInputs, bandName: string, words: Directi
   const off = `the aperiodic offset (${describeTest(x.offset)}; ${adj(1)})`;
   const exp = `the aperiodic exponent (${describeTest(x.exponent)}; ${adj(2)})`;
   const inBand = `the aperiodic level in the band (${describeTest(x.aperiodicInBand)})`;
+  const inBandBare = `aperiodic level in the band ${describeTest(x.aperiodicInBand)}`;
   const done = (verdict: Verdict, rule: string, sentence: string): VerdictDecision => ({ verdict, rule, sentence, family: steps, alpha });
 
   if (!P && !O && !E) {
@@ -122,7 +123,7 @@ export function decideVerdict(x: VerdictInputs, bandName: string, words: Directi
       return done('mixed', '2a', `Mixed: ${per} is ${dir(x.periodic)}, and ${ap} also differs, raising or lowering ${inBand} the same way, so the raw band effect is partly band-specific and partly broadband.`);
     }
     if (aperiodicPasses) {
-      const why = x.aperiodicInBand.p < alpha ? `moves the band's level the other way (${inBand})` : `leaves the band's level unchanged (${inBand})`;
+      const why = x.aperiodicInBand.p < alpha ? `moves the band's level the other way (${inBandBare})` : `leaves the band's level unchanged (${inBandBare})`;
       return done('band-specific', '2b', `Band-specific: ${per} is ${dir(x.periodic)}; ${ap} also differs but ${why}, so it cannot account for the band change.`);
     }
     return done('band-specific', '2b', `Band-specific: ${per} is ${dir(x.periodic)}, while neither ${off} nor ${exp} differs.`);

@@ -1,0 +1,74 @@
+/**
+ * The methods report: the text for a fixed band check and a fixed compare equals the stored,
+ * reviewed texts (numbers included); every key and value of the contrast appears in it; the
+ * parameters JSON carries the same numbers; bad ingest parameters fail naming the field.
+ * The numbers themselves come from the engine checked against numpy/scipy in
+ * tests/verdict/validation.test.ts; the rejected shares below are recomputed by hand.
+ */
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { methodsReport, ingestParameterFacts, ledgerCounts, ReportInputError } from '../../src/core/report/index.ts';
+import { CONTRAST_JSON, FACTS, LEDGER, fixedResults } from './inputs.ts';
+
+const { contrast, check, cmp } = fixedResults();
+const expected = (name: string) => readFileSync(new URL(`./${name}`, import.meta.url), 'utf8');
+
+describe('methods report', () => {
+  it('equals the stored text for the fixed band check and compare', () => {
+    expect(methodsReport(check, FACTS, LEDGER).markdown).toBe(expected('expected-band-check.md'));
+    expect(methodsReport(cmp, FACTS, LEDGER).markdown).toBe(expected('expected-compare.md'));
+  });
+
+  it('states every parameter of the contrast JSON', () => {
+    for (const r of [check, cmp]) {
+      const text = methodsReport(r, FACTS, LEDGER).markdown;
+      for (const [key, value] of Object.entries(contrast)) {
+        expect(text, key).toContain(`- ${key}: ${typeof value === 'object' ? JSON.stringify(value) : String(value)}`);
+      }
+      // the values of the JSON as given also appear in the prose
+      for (const v of [CONTRAST_JSON.stage, CONTRAST_JSON.groups[0], CONTRAST_JSON.groups[1], `${CONTRAST_JSON.fminHz}–${CONTRAST_JSON.fmaxHz} Hz`, `seed ${CONTRAST_JSON.seed}`, `${CONTRAST_JSON.permutations} random`]) expect(text).toContain(v);
+    }
+  });
+
+  it('states the spectral, rejection and ledger facts with the shares computed from the counts', () => {
+    const text = methodsReport(check, FACTS, LEDGER).markdown;
+    // 1300/52000 = 2.5 %; all stages (1300 + 260)/(52000 + 26000) = 2.0 % (by hand)
+    expect(text).toContain('In N2, 1300 of 52000 channel-epochs (2.5 %) were rejected (amplitude 400, broadband-outlier 700, muscle-outlier 200)');
+    expect(text).toContain('1560 of 78000 channel-epochs (2.0 %)');
+    // frequency resolution 1/segment length (Welch 1967): 1/4 s = 0.25 Hz
+    expect(text).toContain('4-s Hann-windowed segments overlapping by 50 %');
+    expect(text).toContain('the frequency resolution is 0.25 Hz');
+    expect(text).toContain('records 7 analyses (5 compare, 2 band-check), of which 3 had p < 0.05');
+    expect(text).toContain('fitted over 1–40 Hz for every subject');
+    expect(text).toContain(check.sentence);
+    expect(text).toContain('research tool');
+  });
+
+  it('exports the parameters as JSON with the same numbers', () => {
+    const p = methodsReport(check, FACTS, LEDGER).parameters;
+    expect(p.kind).toBe('band-check');
+    expect(p.frequencyResolutionHz).toBe(0.25);
+    expect(p.ingest!.rejection.maxPeakToPeakUv).toBe(500);
+    expect(p.statistics.permutations).toBe(200);
+    expect(p.statistics.seed).toBe(5);
+    expect(p.ledger).toEqual(LEDGER);
+    expect(p.contrast).toEqual(contrast);
+    expect(JSON.parse(JSON.stringify(p))).toEqual(p);
+  });
+
+  it('fails on ingest parameters without a field, naming it', () => {
+    const broken = { ...(FACTS.ingestParameters as Record<string, unknown>), segmentS: undefined };
+    expect(() => ingestParameterFacts(broken)).toThrow(ReportInputError);
+    expect(() => ingestParameterFacts(broken)).toThrow(/segmentS/);
+  });
+
+  it('counts only analyses of the same database in the ledger', () => {
+    const entries = [
+      { database: 'a.duckdb', kind: 'compare', significant: true },
+      { database: 'a.duckdb', kind: 'band-check', significant: false },
+      { database: 'a.duckdb', kind: 'report', significant: false },
+      { database: 'b.duckdb', kind: 'compare', significant: true },
+    ];
+    expect(ledgerCounts(entries, 'a.duckdb')).toEqual({ analyses: 2, significant: 1, byKind: { compare: 1, 'band-check': 1 } });
+  });
+});
