@@ -120,7 +120,7 @@ export function decideVerdict(x: VerdictInputs, bandName: string, words: Directi
     const aperiodicPasses = O || E;
     const ap = [O ? off : null, E ? exp : null].filter(Boolean).join(' and ');
     if (aperiodicPasses && x.aperiodicInBand.p < alpha && sign(x.aperiodicInBand) === sign(x.periodic)) {
-      return done('mixed', '2a', `Mixed: ${per} is ${dir(x.periodic)}, and ${ap} also differs, raising or lowering ${inBand} the same way, so the raw band effect is partly band-specific and partly broadband.`);
+      return done('mixed', '2a', `Mixed: ${per} is ${dir(x.periodic)}, and ${ap} also differs, so that ${inBand} is ${dir(x.aperiodicInBand)} as well: the raw band effect is partly band-specific and partly broadband.`);
     }
     if (aperiodicPasses) {
       const why = x.aperiodicInBand.p < alpha ? `moves the band's level the other way (${inBandBare})` : `leaves the band's level unchanged (${inBandBare})`;

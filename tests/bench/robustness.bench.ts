@@ -1,0 +1,57 @@
+/**
+ * Robustness run on the demo cohort (issue 7 target: 48 paths × 1000 permutations under 10 s):
+ * sigma 12–16 Hz in N2 over C3, C4, Cz, P3, P4, Pz (channel average), groups control vs patient.
+ * Paths: measure (absolute log10 band power, relative power over 0.5–45 Hz and over 1–30 Hz,
+ * residual) × reference (recorded, linked mastoids) × epoch averaging (mean, median) × band
+ * edges (±1 Hz) = 4 × 2 × 2 × 3 = 48; one stored fit range (1–40 Hz), summary mean density.
+ * Loading the four (reference, averaging) row sets from DuckDB is timed apart from the paths.
+ */
+import { parseContrast } from '../../src/core/contrast/spec.ts';
+import { edgeVariants, enumeratePaths, runPaths, type PathChoices, type PathDataSet } from '../../src/core/verdict/index.ts';
+import { openStore } from '../../ingest/store/index.ts';
+import { loadBandCheckData } from '../../ingest/cli/band-check.ts';
+import { demoDatabase } from '../verdict/demo-db.ts';
+
+export async function run(): Promise<Record<string, unknown>> {
+  const { db, failed } = await demoDatabase();
+  const sigma = { name: 'sigma', loHz: 12, hiHz: 16 };
+  const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'], permutations: 1000, seed: 1 });
+  const choices: PathChoices = {
+    measures: ['absolute', 'relative', 'residual'],
+    relativeDenominatorsHz: [[0.5, 45], [1, 30]],
+    references: ['recorded', 'linked-mastoids'],
+    averagings: ['mean', 'median'],
+    summaries: ['mean'],
+    fitRangesHz: [[1, 40]],
+    bands: edgeVariants(sigma),
+  };
+  const t0 = performance.now();
+  const store = await openStore(db, { readOnly: true });
+  const sets: PathDataSet[] = [];
+  try {
+    for (const reference of choices.references) {
+      for (const averaging of choices.averagings) {
+        const c = { ...contrast, reference: reference as typeof contrast.reference, averaging };
+        const loaded = await loadBandCheckData(store, c, []);
+        sets.push({ reference, averaging, fitRangeHz: loaded.fitRangeHz, data: loaded.data });
+      }
+    }
+  } finally {
+    await store.close();
+  }
+  const loadS = (performance.now() - t0) / 1000;
+  const t1 = performance.now();
+  const curve = runPaths(contrast, sigma, choices, sets, { permutations: 1000 });
+  const pathsS = (performance.now() - t1) / 1000;
+  return {
+    paths: enumeratePaths(choices).length,
+    permutationsPerPath: 1000,
+    pathsSeconds: Number(pathsS.toFixed(3)),
+    loadSeconds: Number(loadS.toFixed(3)),
+    totalSeconds: Number((loadS + pathsS).toFixed(3)),
+    targetSeconds: 10,
+    shareSignificant: curve.shareSignificant,
+    medianEffect: curve.medianEffect,
+    ingestFailures: failed,
+  };
+}
