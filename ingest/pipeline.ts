@@ -520,7 +520,8 @@ export async function processRecording(
     const measures: ChannelMeasures[] = selected.map((s, c) => {
       const out = recordedState?.outputs.find((_, o) => recordedState.plan.outputs[o].source === c);
       const sds = Array.from(epochSd[c]).filter(Number.isFinite).sort((a, b) => a - b);
-      const fullSpectrum = new Float32Array(out?.fullSum?.length ?? 0);
+      // a channel without clean epochs (flat all night, say) has no spectrum to assess
+      const fullSpectrum = new Float32Array(out?.fullSum && out.fullCount > 0 ? out.fullSum.length : 0);
       if (out?.fullSum && out.fullCount > 0) for (let b = 0; b < fullSpectrum.length; b++) fullSpectrum[b] = out.fullSum[b] / out.fullCount;
       return {
         channel: s.name,

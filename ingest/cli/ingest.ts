@@ -62,6 +62,7 @@ interface Flags {
 export function register(program: Command): void {
   program
     .command('ingest')
+    .summary('turn a cohort (table or BIDS folder) into the spectral database')
     .description(
       'Turn a cohort (TSV/CSV table or BIDS folder) into the spectral database: per channel and stage Welch ' +
         'spectra (µV²/Hz), aperiodic fits, epoch band powers and quality metrics. Resumable: recordings already ' +

@@ -7,6 +7,10 @@ import { readFileSync } from 'node:fs';
 import { register as registerIngest } from './ingest.ts';
 import { register as registerMerge } from './merge.ts';
 import { register as registerCompare } from './compare.ts';
+import { register as registerSimulate } from './simulate.ts';
+import { register as registerDashboard } from './dashboard.ts';
+import { register as registerDemo } from './demo.ts';
+import { register as registerClusterScript } from './cluster-script.ts';
 
 const pkg = JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string };
 
@@ -23,5 +27,9 @@ program
 registerIngest(program);
 registerMerge(program);
 registerCompare(program);
+registerDashboard(program);
+registerClusterScript(program);
+registerSimulate(program);
+registerDemo(program);
 
 await program.parseAsync(process.argv);

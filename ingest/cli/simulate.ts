@@ -22,6 +22,7 @@ recording is involved.`;
 export function register(program: Command): void {
   program
     .command('simulate')
+    .summary('write a synthetic cohort (EDF+, scoring, participants, ground truth) from a scenario')
     .description('write a simulated cohort (EDF+, scoring, participants table, ground truth) from a scenario file')
     .argument('<scenario.json>', 'scenario file (JSON)')
     .argument('<out-folder>', 'folder for the generated files (created if missing)')

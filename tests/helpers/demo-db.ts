@@ -1,0 +1,58 @@
+/**
+ * The ingested demo database, built once and shared by every test file that needs it (the
+ * dashboard end-to-end tests, the verdict and statistics checks on the demo). The recordings are
+ * generated into demo-cohort/recordings/ (as `bandwise demo` does) and ingested with the default
+ * parameters into tests/.tmp/demo-<stamp>.duckdb; a lock folder keeps parallel test files from
+ * building it twice.
+ */
+import { existsSync, mkdirSync, rmSync, statSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { ensureDemoCohort, DEMO_SCENARIO, scenarioStamp } from '../../ingest/simulate/index.ts';
+import { runIngest } from '../../ingest/ingest.ts';
+
+const repo = fileURLToPath(new URL('../..', import.meta.url));
+const tmp = path.join(repo, 'tests', '.tmp');
+
+async function withLock<T>(name: string, fn: () => Promise<T>): Promise<T> {
+  mkdirSync(tmp, { recursive: true });
+  const lock = path.join(tmp, `${name}.lock`);
+  const deadline = Date.now() + 20 * 60_000;
+  for (;;) {
+    try {
+      mkdirSync(lock);
+      break;
+    } catch {
+      // a lock older than 20 minutes is left over from a killed run
+      if (existsSync(lock) && Date.now() - statSync(lock).mtimeMs > 20 * 60_000) rmSync(lock, { recursive: true, force: true });
+      if (Date.now() > deadline) throw new Error(`waited too long for ${lock}`);
+      await new Promise((r) => setTimeout(r, 500));
+    }
+  }
+  try {
+    return await fn();
+  } finally {
+    rmSync(lock, { recursive: true, force: true });
+  }
+}
+
+/** Path of the ingested demo database (built on first use). */
+export async function demoDatabase(): Promise<string> {
+  return withLock('demo', async () => {
+    const cohort = await ensureDemoCohort();
+    const stamp = (await scenarioStamp(DEMO_SCENARIO)).slice(0, 12);
+    const db = path.join(tmp, `demo-${stamp}.duckdb`);
+    const done = `${db}.done`;
+    if (existsSync(db) && existsSync(done)) return db;
+    // the ingest is resumable: a partial database from a killed run is completed, not rebuilt
+    const summary = await runIngest(cohort.participantsPath, db, { jobs: 2 });
+    if (summary.failed.length > 0) throw new Error(`demo ingest failed: ${summary.failed.map((f) => `${f.file}: ${f.message}`).join('; ')}`);
+    mkdirSync(done, { recursive: true });
+    return db;
+  });
+}
+
+/** The demo's ground truth (what the generator planted). */
+export function demoTruthPath(): string {
+  return path.join(repo, 'demo-cohort', 'recordings', 'truth.json');
+}
