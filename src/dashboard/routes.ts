@@ -16,19 +16,19 @@ export const VIEWS: readonly ViewInfo[] = [
     label: 'Quality screen',
     summary:
       'A subjects × channels grid coloured by quality score, the list of flags with reasons, each spectrum against the cohort, and the exclusion list.',
-    ready: false,
+    ready: true,
   },
   {
     id: 'spectra',
     label: 'Spectra',
     summary: 'Group mean spectra with 95 % confidence bands per stage, channel and reference, aperiodic fits overlaid, and scalp maps of band power.',
-    ready: false,
+    ready: true,
   },
   {
     id: 'contrast',
     label: 'Contrast',
     summary: 'Group, paired or covariate contrasts over channels × frequencies with cluster-based permutation correction.',
-    ready: false,
+    ready: true,
   },
   {
     id: 'band-check',

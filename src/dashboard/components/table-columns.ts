@@ -28,3 +28,16 @@ export function isNumericColumn(rows: readonly Row[], key: string): boolean {
   }
   return seen;
 }
+
+/** Rows ordered by one column: numbers numerically, text by locale, missing values last. */
+export function sortRows(rows: readonly Row[], key: string, descending: boolean): Row[] {
+  const sign = descending ? -1 : 1;
+  return [...rows].sort((a, b) => {
+    const x = a[key];
+    const y = b[key];
+    if (x === null || x === undefined) return y === null || y === undefined ? 0 : 1;
+    if (y === null || y === undefined) return -1;
+    if (typeof x === 'number' && typeof y === 'number') return sign * (x - y);
+    return sign * String(x).localeCompare(String(y), undefined, { numeric: true });
+  });
+}

@@ -1,0 +1,167 @@
+// What a contrast reads, over duckdb-wasm: the dashboard's twin of ingest/compare.ts
+// (loadContrastData), filling src/core/contrast's ContrastData the same way, row for row.
+import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from '../../core/contrast/data.ts';
+import { measureNeeds } from '../../core/contrast/measure.ts';
+import type { Contrast } from '../../core/contrast/spec.ts';
+import type { Stage } from '../../core/stages.ts';
+import { listColumnToMatrix, numberColumn, stringColumn } from './arrow-rows.ts';
+import { participants, type CohortSchema, type RunInfo } from './queries.ts';
+import { COHORT, literal, type SqlClient } from './sql-client.ts';
+
+/** The run a contrast reads: the most recent finished one, else the last one (as the command line). */
+export function chooseRun(runs: readonly RunInfo[]): RunInfo {
+  if (runs.length === 0) throw new Error('the database holds no ingest run');
+  return [...runs].reverse().find((r) => r.finishedAt !== null) ?? runs[runs.length - 1];
+}
+
+export interface SpectraKey {
+  runId: string;
+  stage: Stage;
+  reference: string;
+  averaging: string;
+}
+
+/** Stored spectra of one run × stage × reference × averaging, ordered by subject, session, recording, channel. */
+export async function contrastSpectra(
+  db: SqlClient,
+  q: SpectraKey,
+): Promise<{ freqStartHz: number; freqStepHz: number; nBins: number; rows: SpectrumRow[] }> {
+  const t = await db.query(
+    `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, s.channel::VARCHAR AS channel,
+            s.n_epochs::DOUBLE AS n_epochs, s.flagged AS flagged, s.flag_reason::VARCHAR AS flag_reason,
+            s.freq_start_hz::DOUBLE AS f0, s.freq_step_hz::DOUBLE AS df, s.n_bins::DOUBLE AS n_bins, s.power AS power
+     FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
+     WHERE r.run_id = ${literal(q.runId)} AND s.stage = ${literal(q.stage)}
+       AND s.reference = ${literal(q.reference)} AND s.averaging = ${literal(q.averaging)}
+     ORDER BY r.subject, r.session NULLS FIRST, s.recording_id, s.channel`,
+  );
+  const f0 = numberColumn(t, 'f0');
+  const df = numberColumn(t, 'df');
+  const nb = numberColumn(t, 'n_bins');
+  for (let i = 1; i < t.numRows; i++) {
+    if (f0[i] !== f0[0] || df[i] !== df[0] || nb[i] !== nb[0]) {
+      throw new Error(`spectra of ${q.stage}/${q.reference}/${q.averaging}: row ${i} has frequency axis ${f0[i]} + k·${df[i]} Hz × ${nb[i]}, the first ${f0[0]} + k·${df[0]} Hz × ${nb[0]}`);
+    }
+  }
+  const nBins = t.numRows > 0 ? nb[0] : 0;
+  const power = listColumnToMatrix(t, 'power', nBins);
+  const subject = stringColumn(t, 'subject');
+  const channel = stringColumn(t, 'channel');
+  const nEpochs = numberColumn(t, 'n_epochs');
+  const session = t.getChild('session')!;
+  const flagged = t.getChild('flagged')!;
+  const reason = t.getChild('flag_reason')!;
+  const rows: SpectrumRow[] = new Array(t.numRows);
+  for (let i = 0; i < t.numRows; i++) {
+    const s = session.get(i) as string | null;
+    const why = reason.get(i) as string | null;
+    rows[i] = {
+      subject: subject[i],
+      session: s ?? null,
+      channel: channel[i],
+      stage: q.stage,
+      nEpochs: nEpochs[i],
+      flagged: flagged.get(i) === true,
+      flagReason: why ?? null,
+      power: power.subarray(i * nBins, (i + 1) * nBins),
+    };
+  }
+  return { freqStartHz: t.numRows > 0 ? f0[0] : 0, freqStepHz: t.numRows > 0 ? df[0] : 0, nBins, rows };
+}
+
+/** Aperiodic fits of one run × stage × reference × averaging and method. */
+export async function contrastAperiodic(db: SqlClient, q: SpectraKey, method: string): Promise<AperiodicRow[]> {
+  const t = await db.query(
+    `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, a.channel::VARCHAR AS channel,
+            a."offset"::DOUBLE AS "offset", a.exponent::DOUBLE AS exponent, a.knee::DOUBLE AS knee
+     FROM ${COHORT}.aperiodic a JOIN ${COHORT}.recordings r USING (recording_id)
+     WHERE r.run_id = ${literal(q.runId)} AND a.stage = ${literal(q.stage)} AND a.reference = ${literal(q.reference)}
+       AND a.averaging = ${literal(q.averaging)} AND a.method = ${literal(method)}
+     ORDER BY r.subject, r.session NULLS FIRST, a.recording_id, a.channel, a.method`,
+  );
+  const subject = stringColumn(t, 'subject');
+  const channel = stringColumn(t, 'channel');
+  const session = t.getChild('session')!;
+  const num = (name: string) => {
+    const v = numberColumn(t, name);
+    return (i: number) => (Number.isNaN(v[i]) ? null : v[i]);
+  };
+  const offset = num('offset');
+  const exponent = num('exponent');
+  const knee = num('knee');
+  return subject.map((s, i) => ({
+    subject: s,
+    session: (session.get(i) as string | null) ?? null,
+    channel: channel[i],
+    stage: q.stage,
+    offset: offset(i),
+    exponent: exponent(i),
+    knee: knee(i),
+  }));
+}
+
+/** Fitted peaks of one run × stage × reference × averaging and method. */
+export async function contrastPeaks(db: SqlClient, q: SpectraKey, method: string): Promise<PeakRow[]> {
+  const t = await db.query(
+    `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, p.channel::VARCHAR AS channel,
+            p.center_hz::DOUBLE AS center_hz, p.height::DOUBLE AS height, p.bandwidth_hz::DOUBLE AS bandwidth_hz
+     FROM ${COHORT}.peaks p JOIN ${COHORT}.recordings r USING (recording_id)
+     WHERE r.run_id = ${literal(q.runId)} AND p.stage = ${literal(q.stage)} AND p.reference = ${literal(q.reference)}
+       AND p.averaging = ${literal(q.averaging)} AND p.method = ${literal(method)}
+     ORDER BY r.subject, r.session NULLS FIRST, p.recording_id, p.channel, p.center_hz`,
+  );
+  const subject = stringColumn(t, 'subject');
+  const channel = stringColumn(t, 'channel');
+  const session = t.getChild('session')!;
+  const center = numberColumn(t, 'center_hz');
+  const height = numberColumn(t, 'height');
+  const width = numberColumn(t, 'bandwidth_hz');
+  return subject.map((s, i) => ({
+    subject: s,
+    session: (session.get(i) as string | null) ?? null,
+    channel: channel[i],
+    stage: q.stage,
+    centerHz: center[i],
+    height: height[i],
+    bandwidthHz: width[i],
+  }));
+}
+
+/** The participants table as the contrast reads it: numbers for numeric columns, text otherwise. */
+export async function contrastParticipants(db: SqlClient, schema: CohortSchema): Promise<ContrastData['participants']> {
+  const p = await participants(db, schema);
+  return p.rows.map((r) => Object.fromEntries(Object.entries(r).map(([k, v]) => [k, typeof v === 'boolean' ? String(v) : v])));
+}
+
+/** Everything `contrast` needs from the database, with the exclusion list of the quality screen. */
+export async function loadContrastData(
+  db: SqlClient,
+  schema: CohortSchema,
+  runs: readonly RunInfo[],
+  c: Contrast,
+  exclusions: readonly Exclusion[],
+): Promise<{ runId: string; data: ContrastData }> {
+  const run = chooseRun(runs);
+  const stages: Stage[] = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
+  const needs = measureNeeds(c.measure);
+  const rows: SpectrumRow[] = [];
+  let axis = { freqStartHz: 0, freqStepHz: 0, nBins: 0 };
+  const aperiodic: AperiodicRow[] = [];
+  const peaks: PeakRow[] = [];
+  for (const stage of stages) {
+    const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
+    const m = await contrastSpectra(db, q);
+    if (m.nBins > 0) {
+      if (axis.nBins > 0 && (axis.nBins !== m.nBins || axis.freqStepHz !== m.freqStepHz)) throw new Error('stages have different frequency axes');
+      axis = { freqStartHz: m.freqStartHz, freqStepHz: m.freqStepHz, nBins: m.nBins };
+    }
+    rows.push(...m.rows);
+    if (needs.aperiodic) aperiodic.push(...(await contrastAperiodic(db, q, c.aperiodicMethod)));
+    if (needs.peaks) peaks.push(...(await contrastPeaks(db, q, c.aperiodicMethod)));
+  }
+  if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
+  return {
+    runId: run.runId,
+    data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: await contrastParticipants(db, schema), exclusions: [...exclusions] },
+  };
+}

@@ -1,0 +1,98 @@
+// What the dashboard keeps in browser storage, per database: the exclusion list of the quality
+// screen and the ledger of contrasts run. A database is known by its ingest run ids (runs.run_id
+// is a hash of the run's parameters) and its file name, so two different files never share a list.
+import type { Exclusion } from '../../core/contrast/data.ts';
+import type { RunInfo } from './queries.ts';
+
+/** The key prefix of one database's entries. */
+export function databaseKey(runs: readonly RunInfo[], source: string): string {
+  const ids = runs.map((r) => r.runId).sort().join('+') || 'no-run';
+  return `bandwise:${ids}:${source.split('/').pop() ?? source}`;
+}
+
+/** Minimal Storage interface (window.localStorage in the app, a Map in tests). */
+export interface KeyValueStore {
+  getItem(key: string): string | null;
+  setItem(key: string, value: string): void;
+}
+
+function readJson<T>(store: KeyValueStore, key: string, check: (v: unknown) => v is T, fallback: T): T {
+  const text = store.getItem(key);
+  if (text === null) return fallback;
+  let value: unknown;
+  try {
+    value = JSON.parse(text);
+  } catch {
+    throw new Error(`browser storage ${key} is not valid JSON`);
+  }
+  if (!check(value)) throw new Error(`browser storage ${key} does not hold the expected list`);
+  return value;
+}
+
+function isExclusionList(v: unknown): v is Exclusion[] {
+  return (
+    Array.isArray(v) &&
+    v.every(
+      (e) =>
+        e !== null &&
+        typeof e === 'object' &&
+        typeof (e as Exclusion).subject === 'string' &&
+        ((e as Exclusion).channel === null || typeof (e as Exclusion).channel === 'string') &&
+        typeof (e as Exclusion).reason === 'string',
+    )
+  );
+}
+
+export function loadExclusions(store: KeyValueStore, dbKey: string): Exclusion[] {
+  return readJson(store, `${dbKey}:exclusions`, isExclusionList, []);
+}
+
+export function saveExclusions(store: KeyValueStore, dbKey: string, list: readonly Exclusion[]): void {
+  store.setItem(`${dbKey}:exclusions`, JSON.stringify(list));
+}
+
+/** Add an exclusion; one entry per subject × channel (a later reason replaces the earlier one). */
+export function withExclusion(list: readonly Exclusion[], e: Exclusion): Exclusion[] {
+  const subject = e.subject.trim();
+  if (subject === '') throw new Error('an exclusion needs a subject');
+  const reason = e.reason.trim() || 'no reason given';
+  const rest = list.filter((x) => !(x.subject === subject && x.channel === e.channel));
+  return [...rest, { subject, channel: e.channel, reason }].sort(
+    (a, b) => a.subject.localeCompare(b.subject) || (a.channel ?? '').localeCompare(b.channel ?? ''),
+  );
+}
+
+export function withoutExclusion(list: readonly Exclusion[], subject: string, channel: string | null): Exclusion[] {
+  return list.filter((x) => !(x.subject === subject && x.channel === channel));
+}
+
+/** One contrast run, as the ledger keeps it. */
+export interface LedgerEntry {
+  /** ISO time the run finished */
+  time: string;
+  /** the contrast JSON (parsed, defaults filled) */
+  contrast: unknown;
+  /** smallest cluster (or TFCE) p, null when the run produced none */
+  smallestP: number | null;
+  n: Record<string, number>;
+  exclusions: number;
+}
+
+function isLedger(v: unknown): v is LedgerEntry[] {
+  return Array.isArray(v) && v.every((e) => e !== null && typeof e === 'object' && typeof (e as LedgerEntry).time === 'string');
+}
+
+export function loadLedger(store: KeyValueStore, dbKey: string): LedgerEntry[] {
+  return readJson(store, `${dbKey}:ledger`, isLedger, []);
+}
+
+export function appendLedger(store: KeyValueStore, dbKey: string, entry: LedgerEntry): LedgerEntry[] {
+  const list = [...loadLedger(store, dbKey), entry];
+  store.setItem(`${dbKey}:ledger`, JSON.stringify(list));
+  return list;
+}
+
+/** "analyses run: N, significant: M" — significant: smallest p below `alpha`. */
+export function ledgerCounts(list: readonly LedgerEntry[], alpha = 0.05): { runs: number; significant: number } {
+  return { runs: list.length, significant: list.filter((e) => e.smallestP !== null && e.smallestP < alpha).length };
+}

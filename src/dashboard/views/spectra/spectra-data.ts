@@ -1,0 +1,199 @@
+// What the spectra view shows: per group, the mean spectrum of a chosen measure with its 95 %
+// confidence band, the group mean aperiodic fit, and band power per channel for the scalp maps.
+// Measures come from src/core/contrast/measure.ts (the same numbers a contrast tests).
+import type { AperiodicRow, Exclusion, SpectrumRow } from '../../../core/contrast/data.ts';
+import { measureLayout, measureValues } from '../../../core/contrast/measure.ts';
+import { parseContrast, type Contrast } from '../../../core/contrast/spec.ts';
+import { aperiodicLog10 } from '../../../core/spectrum/aperiodic-model.ts';
+import { bandPower, type Band } from '../../../core/spectrum/bands.ts';
+import type { Stage } from '../../../core/stages.ts';
+import { chooseRun, contrastAperiodic, contrastParticipants, contrastSpectra } from '../../db/contrast-data.ts';
+import type { CohortSchema, RunInfo } from '../../db/queries.ts';
+import type { SqlClient } from '../../db/sql-client.ts';
+import { meanWithInterval, type MeanBand } from './group-mean.ts';
+
+/** What the y axis shows. */
+export type SpectrumMeasure = 'absolute' | 'log10' | 'relative' | 'residual';
+
+export const MEASURE_LABELS: Record<SpectrumMeasure, string> = {
+  absolute: 'PSD (µV²/Hz)',
+  log10: 'log10 PSD (log10 µV²/Hz)',
+  relative: 'log10 relative PSD (log10 1/Hz)',
+  residual: 'residual: log10 PSD − aperiodic fit (log10)',
+};
+
+export interface SpectraRows {
+  runId: string;
+  stage: Stage;
+  reference: string;
+  freqStartHz: number;
+  freqStepHz: number;
+  nBins: number;
+  rows: SpectrumRow[];
+  aperiodic: AperiodicRow[];
+  participants: Record<string, string | number | null>[];
+  channels: string[];
+}
+
+export async function loadSpectraRows(
+  db: SqlClient,
+  schema: CohortSchema,
+  runs: readonly RunInfo[],
+  sel: { stage: Stage; reference: string; averaging: string },
+): Promise<SpectraRows> {
+  const run = chooseRun(runs);
+  const q = { runId: run.runId, ...sel };
+  const s = await contrastSpectra(db, q);
+  const aperiodic = await contrastAperiodic(db, q, 'fit');
+  const participants = await contrastParticipants(db, schema);
+  return { runId: run.runId, stage: sel.stage, reference: sel.reference, ...s, aperiodic, participants, channels: [...new Set(s.rows.map((r) => r.channel))] };
+}
+
+export interface GroupCurve {
+  group: string;
+  band: MeanBand;
+  /** group mean aperiodic fit in the measure's unit, null when the measure has none */
+  fit: Float64Array | null;
+  subjects: string[];
+}
+
+export interface GroupSpectra {
+  freqsHz: number[];
+  measure: SpectrumMeasure;
+  channels: string[];
+  groups: GroupCurve[];
+  /** subjects left out, with reasons (exclusions, flagged spectra, missing fits) */
+  left: Exclusion[];
+}
+
+function keyOf(subject: string, channel: string): string {
+  return `${subject}\u0000${channel}`;
+}
+
+/** The contrast-like settings the core measures read (one implementation of every measure). */
+export function measureSettings(measure: SpectrumMeasure, fminHz: number, fmaxHz: number, relativeRangeHz: [number, number]): Contrast {
+  return parseContrast({
+    design: 'groups',
+    groups: ['a', 'b'],
+    measure: measure === 'relative' ? 'relative' : measure === 'residual' ? 'residual' : 'log-psd',
+    fminHz,
+    fmaxHz,
+    relativeRangeHz,
+  });
+}
+
+/**
+ * Group curves of `measure` over `channels` (several: the mean over channels of each subject's
+ * measure; absolute: the mean PSD). Subjects on the exclusion list, or with a flagged or missing
+ * spectrum in one of the channels, are left out and listed.
+ */
+export function groupSpectra(
+  d: SpectraRows,
+  o: { groupColumn: string; channels: readonly string[]; measure: SpectrumMeasure; fminHz: number; fmaxHz: number; relativeRangeHz: [number, number]; exclusions: readonly Exclusion[] },
+): GroupSpectra {
+  const c = measureSettings(o.measure, o.fminHz, o.fmaxHz, o.relativeRangeHz);
+  const axis = { freqStartHz: d.freqStartHz, freqStepHz: d.freqStepHz, nBins: d.nBins };
+  const layout = measureLayout(c, axis);
+  const P = layout.freqsHz.length;
+  const spectra = new Map(d.rows.map((r) => [keyOf(r.subject, r.channel), r]));
+  const fits = new Map(d.aperiodic.map((a) => [keyOf(a.subject, a.channel), a]));
+  const groupOf = new Map(d.participants.map((p) => [String(p.subject), p[o.groupColumn]]));
+  const subjects = [...new Set(d.rows.map((r) => r.subject))].sort();
+  const left: Exclusion[] = [];
+  const perGroup = new Map<string, { rows: Float64Array[]; fits: Float64Array[]; subjects: string[] }>();
+  const scratch = new Float64Array(P);
+  for (const subject of subjects) {
+    const g = groupOf.get(subject);
+    if (g === null || g === undefined) continue;
+    const ex = o.exclusions.find((e) => e.subject === subject && (e.channel === null || o.channels.includes(e.channel)));
+    if (ex) {
+      left.push({ subject, channel: ex.channel, reason: `excluded in the quality screen: ${ex.reason}` });
+      continue;
+    }
+    const values = new Float64Array(P);
+    const fit = new Float64Array(P);
+    let fitOk = true;
+    let why: string | null = null;
+    for (const ch of o.channels) {
+      const row = spectra.get(keyOf(subject, ch));
+      if (!row) {
+        why = `no ${d.stage} spectrum for ${ch}`;
+        break;
+      }
+      if (row.flagged) {
+        why = `${d.stage} spectrum of ${ch} flagged: ${row.flagReason ?? 'flagged at ingest'}`;
+        break;
+      }
+      const ap = fits.get(keyOf(subject, ch));
+      if (o.measure === 'absolute') {
+        for (let j = 0; j < P; j++) values[j] += row.power[layout.bins[j]] / o.channels.length;
+      } else {
+        const err = measureValues(c, layout, axis, row.power, ap, [], scratch);
+        if (err) {
+          why = `${ch}: ${err}`;
+          break;
+        }
+        for (let j = 0; j < P; j++) values[j] += scratch[j] / o.channels.length;
+      }
+      if (ap && ap.offset !== null && ap.exponent !== null) {
+        const p = { offset: ap.offset, exponent: ap.exponent, knee: ap.knee ?? 0 };
+        for (let j = 0; j < P; j++) fit[j] += aperiodicLog10(layout.freqsHz[j], p) / o.channels.length;
+      } else fitOk = false;
+    }
+    if (why) {
+      left.push({ subject, channel: null, reason: why });
+      continue;
+    }
+    const key = String(g);
+    let entry = perGroup.get(key);
+    if (entry === undefined) perGroup.set(key, (entry = { rows: [], fits: [], subjects: [] }));
+    entry.rows.push(values);
+    entry.subjects.push(subject);
+    if (fitOk) entry.fits.push(fit);
+  }
+  const hasFit = o.measure === 'absolute' || o.measure === 'log10';
+  const groups = [...perGroup.keys()].sort().map((group) => {
+    const e = perGroup.get(group)!;
+    let fit: Float64Array | null = null;
+    if (hasFit && e.fits.length > 0) {
+      // group mean of the fitted log10 aperiodic part; shown as a PSD (10^mean) for the absolute measure
+      fit = meanWithInterval(e.fits, P).mean;
+      if (o.measure === 'absolute') fit = fit.map((v) => 10 ** v);
+    }
+    return { group, band: meanWithInterval(e.rows, P), fit, subjects: e.subjects };
+  });
+  return { freqsHz: layout.freqsHz, measure: o.measure, channels: [...o.channels], groups, left };
+}
+
+export interface BandMapValues {
+  band: Band;
+  channels: string[];
+  /** per group: mean log10 band power per channel (NaN where no subject has it) */
+  groups: { group: string; n: number; values: number[] }[];
+}
+
+/** Mean log10 band power (mean density, µV²/Hz) per channel and group, exclusions and flags left out. */
+export function bandMap(d: SpectraRows, o: { groupColumn: string; band: Band; exclusions: readonly Exclusion[] }): BandMapValues {
+  const groupOf = new Map(d.participants.map((p) => [String(p.subject), p[o.groupColumn]]));
+  const sums = new Map<string, { n: Set<string>; sum: Float64Array; count: Float64Array }>();
+  const idx = new Map(d.channels.map((ch, i) => [ch, i]));
+  for (const r of d.rows) {
+    const g = groupOf.get(r.subject);
+    if (g === null || g === undefined || r.flagged) continue;
+    if (o.exclusions.some((e) => e.subject === r.subject && (e.channel === null || e.channel === r.channel))) continue;
+    const v = Math.log10(bandPower(r.power, o.band, d.freqStartHz, d.freqStepHz, 'mean'));
+    if (!Number.isFinite(v)) continue;
+    const key = String(g);
+    let s = sums.get(key);
+    if (s === undefined) sums.set(key, (s = { n: new Set(), sum: new Float64Array(d.channels.length), count: new Float64Array(d.channels.length) }));
+    const i = idx.get(r.channel)!;
+    s.sum[i] += v;
+    s.count[i] += 1;
+    s.n.add(r.subject);
+  }
+  const groups = [...sums.keys()].sort().map((group) => {
+    const s = sums.get(group)!;
+    return { group, n: s.n.size, values: Array.from(s.sum, (v, i) => (s.count[i] > 0 ? v / s.count[i] : Number.NaN)) };
+  });
+  return { band: o.band, channels: d.channels, groups };
+}
