@@ -14,14 +14,21 @@
  * integrals — a ratio of mean densities differs by a constant factor, which leaves the effect
  * size unchanged — and the residual is a mean of log values), the fit range to the residual only.
  *
- * Each path is one band summary per subject, averaged over the contrast's channels (one stage),
- * tested with the same one-point permutation test as the band check (scalar-test.ts). Only the
- * rows differ by reference, averaging and fit range: the caller passes one data set for each.
+ * Two ways to test a path (one stage, channel average over the contrast's channels):
+ *  'band-summary' (default): one band summary per subject, tested with the band check's
+ *    one-point permutation test (scalar-test.ts); effect and p belong to that summary.
+ *  'frequency-wise': the spectral form of the measure (log10 PSD, log10 relative PSD, residual)
+ *    at every bin of the band, cluster-mass permutation over neighbouring bins as in compare;
+ *    the path's p is the smallest cluster p (1 when no cluster forms); its effect is that of the
+ *    band mean of the same spectral measure (no summary choice then: log10 of each bin).
+ * Only the rows differ by reference, averaging and fit range: the caller passes one data set
+ * for each.
  */
 import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData } from '../contrast/data.ts';
 import { checkBand, type Band, type BandMethod } from '../spectrum/bands.ts';
-import { assembleAveraged, reduce, rowMean, runScalarTest, type ScalarTest } from './scalar-test.ts';
+import { compare } from '../contrast/run.ts';
+import { assembleAveraged, reduce, rowMean, runScalarTest, scalarEffect, type ScalarTest } from './scalar-test.ts';
 
 export type PathMeasure = 'absolute' | 'relative' | 'residual';
 export type Averaging = 'mean' | 'median';
@@ -89,6 +96,7 @@ export interface SpecificationCurve {
   alpha: number;
   permutations: number;
   seed: number;
+  test: PathTest;
   /** the values each choice took */
   choices: PathChoices;
   notes: string[];
@@ -115,14 +123,16 @@ export function availableFitRanges(sets: readonly PathDataSet[]): [number, numbe
   return out;
 }
 
+export type PathTest = 'band-summary' | 'frequency-wise';
+
 /** Every combination of the choices, a choice that does not apply to a measure taken once. */
-export function enumeratePaths(choices: PathChoices): PathSpec[] {
+export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summary'): PathSpec[] {
   const out: PathSpec[] = [];
   for (const k of ['measures', 'references', 'averagings', 'bands'] as const) if (choices[k].length === 0) throw new PathError(`choices.${k}: at least one value is needed`);
   for (const band of choices.bands) checkBand(band);
   for (const measure of choices.measures) {
     const denominators: ([number, number] | null)[] = measure === 'relative' ? choices.relativeDenominatorsHz : [null];
-    const summaries: (BandMethod | null)[] = measure === 'absolute' ? choices.summaries : [null];
+    const summaries: (BandMethod | null)[] = measure === 'absolute' && test === 'band-summary' ? choices.summaries : [null];
     const fitRanges: ([number, number] | null)[] = measure === 'residual' ? choices.fitRangesHz : [null];
     if (denominators.length === 0) throw new PathError('choices.relativeDenominatorsHz: the relative measure needs at least one denominator range');
     if (summaries.length === 0) throw new PathError('choices.summaries: the absolute measure needs a band power summary');
@@ -136,10 +146,10 @@ export function enumeratePaths(choices: PathChoices): PathSpec[] {
                 const edges = `${band.loHz}–${band.hiHz} Hz`;
                 const description =
                   measure === 'absolute'
-                    ? `log10 band power (${summary === 'mean' ? 'mean density' : 'trapezoid integral'}) ${edges}`
+                    ? summary ? `log10 band power (${summary === 'mean' ? 'mean density' : 'trapezoid integral'}) ${edges}` : `log10 PSD at each bin of ${edges}`
                     : measure === 'relative'
-                      ? `log10 relative band power ${edges} / ${denominatorHz![0]}–${denominatorHz![1]} Hz`
-                      : `residual averaged over ${edges} (fit ${fitRangeHz![0]}–${fitRangeHz![1]} Hz)`;
+                      ? test === 'band-summary' ? `log10 relative band power ${edges} / ${denominatorHz![0]}–${denominatorHz![1]} Hz` : `log10 relative PSD (over the ${denominatorHz![0]}–${denominatorHz![1]} Hz integral) at each bin of ${edges}`
+                      : `residual ${test === 'band-summary' ? 'averaged over' : 'at each bin of'} ${edges} (fit ${fitRangeHz![0]}–${fitRangeHz![1]} Hz)`;
                 out.push({ id: out.length + 1, measure, denominatorHz, reference, averaging, summary, fitRangeHz, band, description: `${description}; ${reference}, ${averaging}` });
               }
   }
@@ -156,6 +166,8 @@ export interface PathRunOptions {
   permutations?: number;
   /** significance level of each path (default 0.05) */
   alpha?: number;
+  /** how each path is tested (default 'band-summary') */
+  test?: PathTest;
   onProgress?: (done: number, total: number) => void;
 }
 
@@ -176,6 +188,23 @@ function pathValues(c: Contrast, p: PathSpec, data: ContrastData) {
   if (p.measure === 'absolute') return reduce(p.description, assembleAveraged(base, data, { measure: 'band-power', bands: [p.band], bandMethod: p.summary! }), (r) => r[0]);
   if (p.measure === 'relative') return reduce(p.description, assembleAveraged(base, data, { measure: 'relative-band-power', bands: [p.band], relativeRangeHz: p.denominatorHz! }), (r) => r[0]);
   return reduce(p.description, assembleAveraged(base, data, { measure: 'residual', fminHz: p.band.loHz, fmaxHz: p.band.hiHz }), rowMean);
+}
+
+/** The frequency-wise contrast of a path: its spectral measure over the band's bins, cluster mass. */
+function spectralContrast(c: Contrast, p: PathSpec, permutations: number): Contrast {
+  const measure = p.measure === 'absolute' ? 'log-psd' : p.measure;
+  return {
+    ...c,
+    reference: p.reference as Contrast['reference'],
+    averaging: p.averaging,
+    measure,
+    fminHz: p.band.loHz,
+    fmaxHz: p.band.hiHz,
+    relativeRangeHz: p.denominatorHz ?? c.relativeRangeHz,
+    channelAverage: true,
+    correction: 'cluster-mass',
+    permutations,
+  };
 }
 
 /**
@@ -200,14 +229,24 @@ export function defaultPathChoices(c: Contrast, band: Band, sets: readonly PathD
 export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoices, sets: readonly PathDataSet[], options: PathRunOptions = {}): SpecificationCurve {
   const alpha = options.alpha ?? 0.05;
   const permutations = options.permutations ?? contrastBase.permutations;
-  const specs = enumeratePaths(choices);
+  const test = options.test ?? 'band-summary';
+  const specs = enumeratePaths(choices, test);
   const notes: string[] = [];
   if (choices.measures.includes('residual')) {
     const stored = availableFitRanges(sets);
     if (stored.length < 2) notes.push(`aperiodic fit range not varied: the database stores ${stored.length === 0 ? 'no fit' : `one fit range (${stored[0][0]}–${stored[0][1]} Hz)`}`);
   }
   const results: PathResult[] = specs.map((p, i) => {
-    const t = runScalarTest(pathValues(contrastBase, p, findSet(sets, p).data), { statistic: contrastBase.statistic, permutations, seed: contrastBase.seed });
+    const data = findSet(sets, p).data;
+    const so = { statistic: contrastBase.statistic, permutations, seed: contrastBase.seed };
+    let t: Pick<ScalarTest, 'effect' | 'ciLow' | 'ciHigh' | 'effectKind' | 'p' | 'n'>;
+    if (test === 'band-summary') t = runScalarTest(pathValues(contrastBase, p, data), so);
+    else {
+      const fc = spectralContrast(contrastBase, p, permutations);
+      const clusters = compare(fc, data).clusters;
+      const mean = reduce(p.description, assembleAveraged(fc, data, {}), rowMean);
+      t = { ...scalarEffect(mean, so), p: clusters.length > 0 ? Math.min(...clusters.map((k) => k.p)) : 1 };
+    }
     options.onProgress?.(i + 1, specs.length);
     return { ...p, effect: t.effect, ciLow: t.ciLow, ciHigh: t.ciHigh, effectKind: t.effectKind, p: t.p, significant: t.p < alpha, n: t.n, rank: 0 };
   });
@@ -228,6 +267,7 @@ export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoice
     alpha,
     permutations,
     seed: contrastBase.seed,
+    test,
     choices,
     notes,
   };

@@ -15,7 +15,7 @@
 import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData, Exclusion } from '../contrast/data.ts';
 import { assembleContrast, type AssembledContrast, type Participation } from '../contrast/assemble.ts';
-import { runContrast, type ContrastInput, type Design, type ProgressCallback, type StatisticName } from '../stats/index.ts';
+import { prepareContrast, runContrast, type ContrastInput, type Design, type ProgressCallback, type StatisticName } from '../stats/index.ts';
 
 /** Two-tailed cluster-forming p that makes the threshold |t| ≈ 1e-9: every non-zero t is its own cluster. */
 const ONE_POINT_CLUSTER_P = 1 - 1e-9;
@@ -155,10 +155,21 @@ export interface ScalarTestOptions {
   onProgress?: ProgressCallback;
 }
 
+function scalarInput(v: ScalarValues): ContrastInput {
+  return { channels: ['value'], freqsHz: [0], data: v.values, design: subsetDesign(v.design, v.rows, v.second), channelNeighbours: null };
+}
+
+/** The effect size of one value per subject with its interval, without permutations. */
+export function scalarEffect(v: ScalarValues, o: Pick<ScalarTestOptions, 'statistic' | 'confidenceLevel'>): Pick<ScalarTest, 'effectKind' | 'effect' | 'ciLow' | 'ciHigh' | 'level' | 'n'> {
+  const input = scalarInput(v);
+  const e = prepareContrast(input, { statistic: o.statistic, permutations: 1, clusterStatistic: 'none', confidenceLevel: o.confidenceLevel }).effect;
+  return { effectKind: e.kind, effect: e.value[0], ciLow: e.ciLow[0], ciHigh: e.ciHigh[0], level: e.level, n: nPerGroup(input.design, v.values.length) };
+}
+
 /** Runs the permutation test of one value per subject (see the header for the p-value). */
 export function runScalarTest(v: ScalarValues, o: ScalarTestOptions): ScalarTest {
-  const design = subsetDesign(v.design, v.rows, v.second);
-  const input: ContrastInput = { channels: ['value'], freqsHz: [0], data: v.values, design, channelNeighbours: null };
+  const input = scalarInput(v);
+  const design = input.design;
   const r = runContrast(input, {
     statistic: o.statistic,
     permutations: o.permutations,
