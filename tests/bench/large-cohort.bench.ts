@@ -14,7 +14,7 @@
  * (target from issue 8: under 60 s on 2 cores, memory under 6 GB).
  */
 import { mkdtempSync, rmSync, statfsSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { loadavg, tmpdir } from 'node:os';
 import path from 'node:path';
 import { syntheticSpec } from '../../src/core/simulate/synthetic-database.ts';
 import { writeSyntheticDatabase, type SyntheticWriteResult } from '../../ingest/store/synthetic.ts';
@@ -24,43 +24,52 @@ interface Point {
   channels: number;
   bins: number;
   spectraRows: number;
+  /** Wall-clock seconds of the whole build. */
   totalS: number;
+  /** CPU seconds of the process (all threads, DuckDB's included) during the build: less sensitive to other load. */
+  cpuS: number;
   drawS: number;
   writeS: number;
   fileMB: number;
-  /** µs per spectrum row, whole build. */
-  usPerRow: number;
+  /** CPU µs per spectrum row, whole build. */
+  cpuUsPerRow: number;
 }
 
 async function build(dir: string, recordings: number, channels: number, bins: number): Promise<Point> {
   const file = path.join(dir, `r${recordings}-c${channels}-b${bins}.duckdb`);
+  const cpu0 = process.cpuUsage();
   const r: SyntheticWriteResult = await writeSyntheticDatabase(file, syntheticSpec({ recordings, channelCount: channels, nBins: bins, seed: 7 }));
+  const cpu = process.cpuUsage(cpu0);
   rmSync(file, { force: true });
   const round = (x: number, d = 2) => Math.round(x * 10 ** d) / 10 ** d;
-  return {
-    recordings, channels, bins, spectraRows: r.spectraRows, totalS: round(r.totalS), drawS: round(r.drawS), writeS: round(r.writeS),
-    fileMB: round(r.fileBytes / 2 ** 20, 1), usPerRow: round((1e6 * r.totalS) / r.spectraRows, 1),
+  const cpuS = (cpu.user + cpu.system) / 1e6;
+  const point = {
+    recordings, channels, bins, spectraRows: r.spectraRows, totalS: round(r.totalS), cpuS: round(cpuS), drawS: round(r.drawS), writeS: round(r.writeS),
+    fileMB: round(r.fileBytes / 2 ** 20, 1), cpuUsPerRow: round((1e6 * cpuS) / r.spectraRows, 1),
   };
+  process.stderr.write(`large-cohort: ${JSON.stringify(point)}\n`);
+  return point;
 }
 
 /** Ratio of the last to the first time of a series, beside the ratio of sizes. */
-function growth(points: Point[], size: (p: Point) => number): { sizes: number[]; seconds: number[]; sizeRatio: number; timeRatio: number } {
+function growth(points: Point[], size: (p: Point) => number): { sizes: number[]; cpuS: number[]; wallS: number[]; sizeRatio: number; cpuRatio: number } {
   const first = points[0];
   const last = points[points.length - 1];
   return {
     sizes: points.map(size),
-    seconds: points.map((p) => p.totalS),
-    sizeRatio: size(last) / size(first),
-    timeRatio: Math.round((100 * last.totalS) / first.totalS) / 100,
+    cpuS: points.map((p) => p.cpuS),
+    wallS: points.map((p) => p.totalS),
+    sizeRatio: Math.round((100 * size(last)) / size(first)) / 100,
+    cpuRatio: Math.round((100 * last.cpuS) / first.cpuS) / 100,
   };
 }
 
 export async function run(): Promise<Record<string, unknown>> {
   const dir = mkdtempSync(path.join(tmpdir(), 'bw-large-'));
   try {
-    const base = { recordings: 250, channels: 64, bins: 181 };
+    const base = { recordings: 125, channels: 64, bins: 181 };
     const byRecordings = [];
-    for (const n of [250, 500, 1000]) byRecordings.push(await build(dir, n, base.channels, base.bins));
+    for (const n of [125, 250, 500]) byRecordings.push(await build(dir, n, base.channels, base.bins));
     const byChannels = [];
     for (const c of [16, 32, 64]) byChannels.push(c === 64 ? byRecordings[0] : await build(dir, base.recordings, c, base.bins));
     const byBins = [];
@@ -71,7 +80,8 @@ export async function run(): Promise<Record<string, unknown>> {
     const ref = byRecordings[byRecordings.length - 1];
     const extrapolated = {
       spectraRows: fullRows,
-      totalS: Math.round((ref.totalS * fullRows) / ref.spectraRows),
+      cpuS: Math.round((ref.cpuS * fullRows) / ref.spectraRows),
+      wallS: Math.round((ref.totalS * fullRows) / ref.spectraRows),
       fileGB: Math.round(((ref.fileMB * fullRows) / ref.spectraRows / 1024) * 100) / 100,
       from: `${ref.recordings} recordings × ${ref.channels} channels × 5 stages × ${ref.bins} bins, linear in spectra rows`,
     };
@@ -84,7 +94,8 @@ export async function run(): Promise<Record<string, unknown>> {
         : { skipped: `only ${freeGB.toFixed(1)} GB free under ${tmpdir()}, need ${(2 * extrapolated.fileGB).toFixed(1)} GB` };
     }
     return {
-      note: 'synthetic database build (draw + bulk write + checkpoint), one process; compare timing pending until `bandwise compare` exists',
+      note: 'synthetic database build (draw + bulk write + checkpoint), one process; cpuS is the process CPU time (all threads), wallS depends on other load; compare timing pending until `bandwise compare` exists',
+      loadAverage: loadavg(),
       byRecordings: growth(byRecordings, (p) => p.recordings),
       byChannels: growth(byChannels, (p) => p.channels),
       byBins: growth(byBins, (p) => p.bins),
