@@ -34,7 +34,7 @@ export function mapElectrodes(
  * equal to vᵢ at an electrode; NaN outside the unit disk (nothing is extrapolated past the head).
  */
 export function inverseDistance(electrodes: readonly MapElectrode[], x: number, y: number): number {
-  if (x * x + y * y > 1 || electrodes.length === 0) return Number.NaN;
+  if (x * x + y * y > 1 + 1e-9 || electrodes.length === 0) return Number.NaN;
   let num = 0;
   let den = 0;
   for (const e of electrodes) {

@@ -1,0 +1,76 @@
+// Browser-storage lists and the contrast in the address bar. The exclusion TSV is the one
+// src/core/contrast/exclusions.ts writes and `bandwise compare --exclusions` reads; the address
+// bar must give back exactly the contrast parseContrast (src/core/contrast/spec.ts) validates.
+import { describe, expect, it } from 'vitest';
+import { exclusionsToTsv, parseExclusionsTsv } from '../../src/core/contrast/exclusions.ts';
+import { parseContrast } from '../../src/core/contrast/spec.ts';
+import { appendLedger, databaseKey, ledgerCounts, loadExclusions, loadLedger, saveExclusions, withExclusion, withoutExclusion } from '../../src/dashboard/db/local-store.ts';
+import type { RunInfo } from '../../src/dashboard/db/queries.ts';
+import { formatHash, parseHash } from '../../src/dashboard/routes.ts';
+import { contrastFileText, contrastFromParams, paramsFromContrast } from '../../src/dashboard/views/contrast/contrast-params.ts';
+
+class MemoryStore {
+  map = new Map<string, string>();
+  getItem(k: string): string | null {
+    return this.map.get(k) ?? null;
+  }
+  setItem(k: string, v: string): void {
+    this.map.set(k, v);
+  }
+}
+
+const run = (runId: string): RunInfo => ({ runId, toolVersion: '0.1.0', parameters: {}, startedAt: null, finishedAt: null, shard: null });
+
+describe('per-database lists in browser storage', () => {
+  it('keys by run ids and file name, so two databases never share a list', () => {
+    expect(databaseKey([run('b2'), run('a1')], 'http://127.0.0.1:4000/data/cohort.duckdb')).toBe('bandwise:a1+b2:cohort.duckdb');
+    expect(databaseKey([run('a1')], 'other.duckdb')).not.toBe(databaseKey([run('a1')], 'cohort.duckdb'));
+  });
+
+  it('keeps one exclusion per subject × channel, round-trips through storage and TSV', () => {
+    const store = new MemoryStore();
+    let list = withExclusion([], { subject: 'pat-07', channel: null, reason: 'mains hum' });
+    list = withExclusion(list, { subject: 'ctl-09', channel: 'O2', reason: 'flat' });
+    list = withExclusion(list, { subject: 'pat-07', channel: null, reason: 'mains hum, 50 Hz' });
+    expect(list).toEqual([
+      { subject: 'ctl-09', channel: 'O2', reason: 'flat' },
+      { subject: 'pat-07', channel: null, reason: 'mains hum, 50 Hz' },
+    ]);
+    saveExclusions(store, 'k', list);
+    expect(loadExclusions(store, 'k')).toEqual(list);
+    expect(loadExclusions(store, 'other')).toEqual([]);
+    expect(parseExclusionsTsv(exclusionsToTsv(list))).toEqual(list);
+    expect(withoutExclusion(list, 'ctl-09', 'O2')).toEqual([list[1]]);
+    expect(() => withExclusion(list, { subject: ' ', channel: null, reason: 'x' })).toThrow(/needs a subject/);
+    store.setItem('bad:exclusions', '{"subject":1}');
+    expect(() => loadExclusions(store, 'bad')).toThrow(/bad:exclusions/);
+  });
+
+  it('counts analyses run and those with a smallest p below 0.05', () => {
+    const store = new MemoryStore();
+    for (const p of [0.01, 0.2, null, 0.049]) appendLedger(store, 'k', { time: '2026-01-01T00:00:00Z', contrast: {}, smallestP: p, n: {}, exclusions: 0 });
+    expect(ledgerCounts(loadLedger(store, 'k'))).toEqual({ runs: 4, significant: 2 });
+  });
+});
+
+describe('contrast in the address bar', () => {
+  it('gives back the same contrast through the hash, for each design', () => {
+    const designs = [
+      { design: 'groups', groups: ['control', 'patient'], stage: 'N2', fminHz: 0.5, fmaxHz: 30, permutations: 1000, channels: ['C3', 'Cz'], correction: 'tfce' },
+      { design: 'paired', stages: ['N2', 'N3'], measure: 'relative', relativeRangeHz: [1, 40], statistic: 'paired-t', channelAverage: true },
+      { design: 'covariate', covariate: 'age', nuisance: ['score'], measure: 'band-power', bands: [{ name: 'sigma', loHz: 12, hiHz: 16 }], seed: 7, clusterP: 0.01 },
+    ];
+    for (const d of designs) {
+      const c = parseContrast(d);
+      const hash = formatHash({ view: 'contrast', params: { ...paramsFromContrast(c), run: '1' } });
+      const back = contrastFromParams(parseHash(hash).params);
+      expect(back).toEqual(c);
+      expect(parseContrast(JSON.parse(contrastFileText(c)))).toEqual(c);
+    }
+  });
+
+  it('names a bad value', () => {
+    expect(() => contrastFromParams({ design: 'groups', groups: 'a,b', fminHz: 'x' })).toThrow(/fminHz=x is not a number/);
+    expect(() => contrastFromParams({ design: 'groups', groups: 'a,b', fminHz: '40', fmaxHz: '30' })).toThrow(/fmaxHz/);
+  });
+});
