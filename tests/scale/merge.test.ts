@@ -4,7 +4,7 @@ import path from 'node:path';
 import { spawnSync } from 'node:child_process';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { runIngest } from '../../ingest/ingest.ts';
+import { parseShard, runIngest } from '../../ingest/ingest.ts';
 import { openStore, readHeaderStorageNumber } from '../../ingest/store/database.ts';
 import { cohortQualityPass, MergeError, mergeShards, parameterDifferences } from '../../ingest/store/merge.ts';
 import { runPython } from '../helpers/python.ts';
@@ -35,7 +35,7 @@ beforeAll(async () => {
   const store = await openStore(at('single.duckdb'));
   await cohortQualityPass(store);
   await store.close();
-  for (let k = 1; k <= 3; k++) await runIngest(table, shards[k - 1], { jobs: 1, params, shard: { index: k, count: 3 } });
+  for (let k = 1; k <= 3; k++) await runIngest(table, shards[k - 1], { jobs: 1, params, shard: { k, n: 3 } });
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
@@ -98,7 +98,7 @@ print(json.dumps(list((d - numpy.median(d)) / (1.4826 * numpy.median(numpy.abs(d
   });
 
   it('refuses shards written with other parameters, naming the differing keys', async () => {
-    await runIngest(table, at('other-2.duckdb'), { jobs: 1, shard: { index: 2, count: 3 }, params: { fit: null, minEpochs: 3 } });
+    await runIngest(table, at('other-2.duckdb'), { jobs: 1, shard: { k: 2, n: 3 }, params: { fit: null, minEpochs: 3 } });
     const err = await mergeShards([shards[0], at('other-2.duckdb'), shards[2]], at('mix.duckdb')).catch((e: unknown) => e);
     expect(err).toBeInstanceOf(MergeError);
     expect((err as Error).message).toMatch(/written with different parameters .* differing parameter keys: minEpochs\./);
