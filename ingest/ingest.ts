@@ -8,6 +8,7 @@
  * parameters, so a rerun after an interruption (even SIGKILL: DuckDB replays its write-ahead log,
  * and a half-written transaction is never committed) writes only what is missing.
  */
+import { selectShard, type ShardSpec } from './cohort/shard.ts';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { discoverCohort } from './cohort/discover.ts';
@@ -17,18 +18,14 @@ import { IngestPool, WorkerTaskError } from './pool.ts';
 import { openStore } from './store/database.ts';
 import { cohortQualityPass } from './store/merge.ts';
 
-export interface Shard {
-  /** 1-based shard number K of N. */
-  index: number;
-  count: number;
-}
+export type { ShardSpec as Shard } from './cohort/shard.ts';
 
 export interface IngestOptions {
   params?: Partial<IngestParams>;
   /** Worker threads (default: one per core). */
   jobs?: number;
   /** Process only recordings i (0-based, table order) with i mod N = K − 1. */
-  shard?: Shard | null;
+  shard?: ShardSpec | null;
   /** Tool version recorded in runs (default: package.json's). */
   toolVersion?: string;
 }
@@ -53,13 +50,7 @@ export interface IngestSummary {
   cohortQualityRows: number;
 }
 
-export function parseShard(text: string): Shard {
-  const m = /^(\d+)\/(\d+)$/.exec(text.trim());
-  const index = m ? Number(m[1]) : NaN;
-  const count = m ? Number(m[2]) : NaN;
-  if (!m || !(count >= 1) || !(index >= 1 && index <= count)) throw new RangeError(`invalid shard '${text}' (expected K/N with 1 ≤ K ≤ N, e.g. 2/4)`);
-  return { index, count };
-}
+export { parseShard } from './cohort/shard.ts';
 
 function packageVersion(): string {
   return (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
@@ -74,11 +65,12 @@ export async function runIngest(
   const params = resolveIngestParams(options.params);
   const cohort = await discoverCohort(cohortPathOrBidsFolder);
   const shard = options.shard ?? null;
-  const recordings = cohort.recordings.filter((_, i) => !shard || i % shard.count === shard.index - 1);
+  // a stable 1/N share by sorted subject, session and path (ingest/cohort/shard.ts)
+  const recordings = shard ? selectShard(cohort.recordings, shard.k, shard.n) : cohort.recordings;
   const store = await openStore(outDb, { create: true });
   const pool = new IngestPool(options.jobs);
   try {
-    const { runId, reused } = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.index}/${shard.count}` : null });
+    const { runId, reused } = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.k}/${shard.n}` : null });
     const names = cohort.columns.map((c) => c.name);
     await store.writeParticipants(names, cohort.participants.map((p) => names.map((n) => p[n] ?? null)));
     progress?.({ kind: 'start', runId, reused, total: recordings.length });

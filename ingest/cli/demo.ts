@@ -6,13 +6,16 @@ import { mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { Command } from 'commander';
 import cliProgress from 'cli-progress';
-import { ensureDemoCohort, DEMO_DIR } from '../simulate/index.ts';
+import { ensureDemoCohort, DEMO_DIR, DEMO_INGEST_PARAMS } from '../simulate/index.ts';
 import { runIngest } from '../ingest.ts';
 import { compareDatabase } from '../compare.ts';
 import { parseContrast, type ContrastJson } from '../../src/core/contrast/spec.ts';
 import { RESEARCH_NOTE } from '../../src/core/contrast/run.ts';
 import { serveDashboard } from '../dashboard.ts';
 import { waitForSignal } from './dashboard.ts';
+import { bandCheckDatabase } from './band-check.ts';
+import { writeReport } from './report.ts';
+import { appendLedger } from '../ledger.ts';
 
 export const DEMO_DATABASE = path.join(DEMO_DIR, 'demo.duckdb');
 export const DEMO_RESULTS = path.join(DEMO_DIR, 'results');
@@ -34,6 +37,22 @@ export const DEMO_CONTRASTS: { name: string; what: string; contrast: ContrastJso
 function bar(label: string, quiet: boolean) {
   return quiet ? null : new cliProgress.SingleBar({ format: `${label.padEnd(12)} |{bar}| {value}/{total}`, hideCursor: true }, cliProgress.Presets.shades_classic);
 }
+
+/** The demo's band checks: is N2 theta (planted: broadband offset) or sigma (planted: fewer fast spindles) band-specific? */
+export const DEMO_BAND_CHECKS: { name: string; what: string; band: { name: string; loHz: number; hiHz: number }; contrast: ContrastJson }[] = [
+  {
+    name: 'n2-theta-band-check',
+    what: 'band check, N2 theta 4–8 Hz, all channels averaged',
+    band: { name: 'theta', loHz: 4, hiHz: 8 },
+    contrast: { design: 'groups', groups: ['control', 'patient'], stage: 'N2' },
+  },
+  {
+    name: 'n2-sigma-band-check',
+    what: 'band check, N2 sigma 12–16 Hz, C3 C4 Cz P3 P4 Pz averaged',
+    band: { name: 'sigma', loHz: 12, hiHz: 16 },
+    contrast: { design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'] },
+  },
+];
 
 export function register(program: Command): void {
   program
@@ -64,7 +83,7 @@ export function register(program: Command): void {
       console.log(cohort.generated ? `generated ${cohort.recordings.length} recordings in demo-cohort/recordings/` : `demo recordings up to date (${cohort.recordings.length})`);
 
       const ing = bar('ingest', quiet);
-      const summary = await runIngest(cohort.participantsPath, DEMO_DATABASE, { jobs: flags.jobs }, (e) => {
+      const summary = await runIngest(cohort.participantsPath, DEMO_DATABASE, { jobs: flags.jobs, params: { references: [...DEMO_INGEST_PARAMS.references] } }, (e) => {
         if (!ing) return;
         if (e.kind === 'start') ing.start(e.total, 0);
         else if (e.kind === 'recording') ing.increment();
@@ -78,11 +97,23 @@ export function register(program: Command): void {
         const result = await compareDatabase(DEMO_DATABASE, parseContrast(d.contrast), []);
         const file = path.join(DEMO_RESULTS, `${d.name}.json`);
         writeFileSync(file, JSON.stringify(result, null, 2) + '\n');
+        appendLedger(`${DEMO_DATABASE}.ledger.jsonl`, DEMO_DATABASE, result);
         console.log(`\n${d.what}\n  n: ${Object.entries(result.n).map(([k, v]) => `${k} ${v}`).join(', ')}; written to ${path.relative(process.cwd(), file)}`);
         for (const k of result.clusters.slice(0, 3)) {
           console.log(`  cluster ${k.sign > 0 ? 'patient > control' : 'patient < control'}: ${k.fminHz}–${k.fmaxHz} Hz over ${k.channels.join(',')}, mass ${k.mass.toFixed(0)}, p = ${k.p.toPrecision(3)}`);
         }
       }
+      const ledger = `${DEMO_DATABASE}.ledger.jsonl`;
+      for (const d of DEMO_BAND_CHECKS) {
+        const result = await bandCheckDatabase(DEMO_DATABASE, parseContrast(d.contrast), d.band, []);
+        const file = path.join(DEMO_RESULTS, `${d.name}.json`);
+        writeFileSync(file, JSON.stringify(result, null, 2) + '\n');
+        appendLedger(ledger, DEMO_DATABASE, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p });
+        console.log(`\n${d.what}: ${result.verdict}\n  ${result.sentence}`);
+      }
+      const report = path.join(DEMO_RESULTS, 'n2-sigma-band-check-methods.md');
+      await writeReport(path.join(DEMO_RESULTS, 'n2-sigma-band-check.json'), { out: report, database: DEMO_DATABASE, ledger });
+      console.log(`\nmethods text for the sigma band check: ${path.relative(process.cwd(), report)}`);
       console.log(`\n${RESEARCH_NOTE}`);
       if (!flags.dashboard) return;
       const server = await serveDashboard(DEMO_DATABASE, flags.port, false, (s) => console.log(s));

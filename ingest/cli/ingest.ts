@@ -72,7 +72,7 @@ export function register(program: Command): void {
     .argument('<cohort>', 'cohort table (.tsv/.csv) or BIDS folder')
     .requiredOption('--out <file>', 'database file to create or extend (DuckDB)')
     .option('--jobs <n>', 'worker threads, one recording each (default: one per core)', num('jobs', (x) => Number.isInteger(x) && x >= 1), availableParallelism())
-    .option('--shard <K/N>', 'process only shard K of N (recordings i with i mod N = K−1, K from 1); merge the shard files later')
+    .option('--shard <K/N>', 'process only shard K of N (K from 1): the recordings sorted by subject, session and path, every N-th from the K-th; merge the shard files later')
     .option('--epoch <s>', 'scoring epoch length, s', num('epoch', (x) => x > 0), D.epochS)
     .option('--segment <s>', 'Welch segment length, s (frequency step 1/segment Hz)', num('segment', (x) => x > 0), D.segmentS)
     .option('--overlap <fraction>', 'Welch segment overlap, 0 ≤ f < 1', num('overlap', (x) => x >= 0 && x < 1), D.overlap)

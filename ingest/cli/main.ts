@@ -10,6 +10,8 @@ import { register as registerCompare } from './compare.ts';
 import { register as registerSimulate } from './simulate.ts';
 import { register as registerDashboard } from './dashboard.ts';
 import { register as registerDemo } from './demo.ts';
+import { register as registerBandCheck } from './band-check.ts';
+import { register as registerReport } from './report.ts';
 import { register as registerClusterScript } from './cluster-script.ts';
 
 const pkg = JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string };
@@ -27,6 +29,8 @@ program
 registerIngest(program);
 registerMerge(program);
 registerCompare(program);
+registerBandCheck(program);
+registerReport(program);
 registerDashboard(program);
 registerClusterScript(program);
 registerSimulate(program);

@@ -71,3 +71,9 @@ export async function ensureDemoCohort(options: { onProgress?: (p: SimulateProgr
   const result = await ensureCohort(DEMO_SCENARIO, DEMO_RECORDINGS, options);
   return { ...result, participantsPath: path.join(DEMO_DIR, 'participants.tsv') };
 }
+
+/**
+ * Ingest parameters of the demo database (bandwise demo and the tests on the demo): the recorded
+ * reference and linked mastoids, so reference choices can be compared; everything else default.
+ */
+export const DEMO_INGEST_PARAMS = { references: ['recorded', 'linked-mastoids'] } as const;

@@ -4,4 +4,4 @@ export {
   edfSpec, loadScenario, participantsTsv, PHYSICAL_MAX_UV, PHYSICAL_MIN_UV, recordingName, scoringName, scoringTsv,
   writeNightEdf, writeSimulatedCohort, type SimulatedCohortFiles, type SimulateProgress,
 } from './write.ts';
-export { DEMO_DIR, DEMO_RECORDINGS, DEMO_SCENARIO, ensureCohort, ensureDemoCohort, GENERATOR_VERSION, scenarioStamp, STAMP_FILE, type EnsuredCohort } from './demo.ts';
+export { DEMO_DIR, DEMO_INGEST_PARAMS, DEMO_RECORDINGS, DEMO_SCENARIO, ensureCohort, ensureDemoCohort, GENERATOR_VERSION, scenarioStamp, STAMP_FILE, type EnsuredCohort } from './demo.ts';

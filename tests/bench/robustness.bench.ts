@@ -12,10 +12,10 @@ import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { edgeVariants, enumeratePaths, runPaths, type PathChoices, type PathDataSet } from '../../src/core/verdict/index.ts';
 import { openStore } from '../../ingest/store/index.ts';
 import { loadBandCheckData } from '../../ingest/cli/band-check.ts';
-import { demoDatabase } from '../verdict/demo-db.ts';
+import { demoDatabase } from '../helpers/demo-db.ts';
 
 export async function run(): Promise<Record<string, unknown>> {
-  const { db, failed } = await demoDatabase();
+  const db = await demoDatabase();
   const sigma = { name: 'sigma', loHz: 12, hiHz: 16 };
   const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'], permutations: 1000, seed: 1 });
   const choices: PathChoices = {
@@ -60,6 +60,5 @@ export async function run(): Promise<Record<string, unknown>> {
     frequencyWiseSeconds: Number(fwS.toFixed(3)),
     frequencyWiseShareSignificant: fw.shareSignificant,
     medianEffect: curve.medianEffect,
-    ingestFailures: failed,
   };
 }

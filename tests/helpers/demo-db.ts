@@ -2,13 +2,13 @@
  * The ingested demo database, built once and shared by every test file that needs it (the
  * dashboard end-to-end tests, the verdict and statistics checks on the demo). The recordings are
  * generated into demo-cohort/recordings/ (as `bandwise demo` does) and ingested with the default
- * parameters into tests/.tmp/demo-<stamp>.duckdb; a lock folder keeps parallel test files from
+ * parameters of `bandwise demo` (DEMO_INGEST_PARAMS) into tests/.tmp/demo-<stamp>.duckdb; a lock folder keeps parallel test files from
  * building it twice.
  */
 import { existsSync, mkdirSync, rmSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { ensureDemoCohort, DEMO_SCENARIO, scenarioStamp } from '../../ingest/simulate/index.ts';
+import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_SCENARIO, scenarioStamp } from '../../ingest/simulate/index.ts';
 import { runIngest } from '../../ingest/ingest.ts';
 
 const repo = fileURLToPath(new URL('../..', import.meta.url));
@@ -45,7 +45,7 @@ export async function demoDatabase(): Promise<string> {
     const done = `${db}.done`;
     if (existsSync(db) && existsSync(done)) return db;
     // the ingest is resumable: a partial database from a killed run is completed, not rebuilt
-    const summary = await runIngest(cohort.participantsPath, db, { jobs: 2 });
+    const summary = await runIngest(cohort.participantsPath, db, { jobs: 2, params: { references: [...DEMO_INGEST_PARAMS.references] } });
     if (summary.failed.length > 0) throw new Error(`demo ingest failed: ${summary.failed.map((f) => `${f.file}: ${f.message}`).join('; ')}`);
     mkdirSync(done, { recursive: true });
     return db;

@@ -18,7 +18,7 @@ import { register as registerReport } from '../../ingest/cli/report.ts';
 import { readLedger } from '../../ingest/ledger.ts';
 import { openStore } from '../../ingest/store/index.ts';
 import type { BandCheckRun } from '../../ingest/cli/band-check.ts';
-import { demoDatabase } from './demo-db.ts';
+import { demoDatabase } from '../helpers/demo-db.ts';
 
 let db = '';
 let dir = '';
@@ -31,7 +31,7 @@ async function cli(args: string[]): Promise<void> {
 }
 
 beforeAll(async () => {
-  db = (await demoDatabase()).db;
+  db = await demoDatabase();
   dir = mkdtempSync(path.join(tmpdir(), 'bw-verdict-'));
 }, 1_800_000);
 
