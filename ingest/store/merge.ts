@@ -22,7 +22,8 @@ import type { Reference } from './bundle.ts';
 import { openStore, readHeaderStorageNumber } from './database.ts';
 import { canonicalJson } from './identity.ts';
 import { participantsCreateSql, quoteIdent, TABLES, type TableDef } from './schema.ts';
-import type { CohortQualityRow, Store } from './writer.ts';
+import { appendColumns } from './chunks.ts';
+import type { Store } from './writer.ts';
 
 /** A merge that cannot be done, with the reason. */
 export class MergeError extends Error {
@@ -324,46 +325,81 @@ async function copyErrors(c: DuckDBConnection, alias: string[]): Promise<void> {
  * run × channel × stage × reference over the mean-averaged spectra of all its recordings with at
  * least one clean epoch — flagged ones included (e.g. few clean epochs): the screen shows every
  * spectrum, and the median/MAD are robust to a few noisy ones. Spectra with a non-positive bin
- * inside the distance range get no row (log10 is undefined there). Earlier cohort-distance rows are replaced. Returns the rows written.
+ * inside the distance range get no row (log10 is undefined there). Earlier cohort-distance rows
+ * are replaced, in one transaction. Returns the rows written.
+ *
+ * One scan, sorted by group, streamed: one group's spectra in memory at a time (a query per
+ * group would rescan the whole spectra table for each of channels × stages × references).
  * Run it once the whole cohort is in one database (after a merge, or after a single-process ingest).
  */
 export async function cohortQualityPass(store: Store): Promise<number> {
-  const groups = await store.exclusive(() =>
-    rows(
-      store.connection,
-      `SELECT r.run_id, s.channel, s.stage, s.reference, s.freq_start_hz, s.freq_step_hz, s.n_bins
+  const options = DEFAULT_COHORT_DISTANCE;
+  return store.exclusive(async () => {
+    const c = store.connection;
+    const rows = {
+      recordingId: [] as string[], channel: [] as string[], stage: [] as Stage[], reference: [] as Reference[],
+      value: [] as (number | null)[], flagged: [] as boolean[], reason: [] as (string | null)[], severity: [] as number[],
+    };
+    let key: string | null = null;
+    let head: Record<string, unknown> = {};
+    let group: { recordingId: string; power: Float32Array }[] = [];
+    const flush = () => {
+      if (group.length === 0) return;
+      const [start, step, nBins] = [Number(head.freq_start_hz), Number(head.freq_step_hz), Number(head.n_bins)];
+      const freqs = Float64Array.from({ length: nBins }, (_, k) => start + k * step);
+      if (!freqs.some((f) => f >= options.fminHz && f <= options.fmaxHz)) return;
+      const usable = group.filter((sp) => sp.power.every((p, k) => p > 0 || freqs[k] < options.fminHz || freqs[k] > options.fmaxHz));
+      if (usable.length === 0) return;
+      const [channel, stage, reference] = [String(head.channel), String(head.stage) as Stage, String(head.reference) as Reference];
+      for (const row of cohortDistance(channel, stage, freqs, usable, options)) {
+        rows.recordingId.push(row.recordingId);
+        rows.channel.push(channel);
+        rows.stage.push(stage);
+        rows.reference.push(reference);
+        rows.value.push(row.value);
+        rows.flagged.push(row.flagged);
+        rows.reason.push(row.reason);
+        rows.severity.push(row.severity);
+      }
+    };
+    const result = await c.stream(
+      `SELECT r.run_id, s.channel, s.stage, s.reference, s.freq_start_hz, s.freq_step_hz, s.n_bins, s.recording_id, s.power
          FROM spectra s JOIN recordings r USING (recording_id)
         WHERE s.averaging = 'mean' AND s.n_epochs > 0
-        GROUP BY ALL ORDER BY ALL`,
-    ),
-  );
-  const out: CohortQualityRow[] = [];
-  const options = DEFAULT_COHORT_DISTANCE;
-  for (const g of groups) {
-    const [start, step, nBins] = [Number(g.freq_start_hz), Number(g.freq_step_hz), Number(g.n_bins)];
-    const spectra = await store.exclusive(() =>
-      rows(
-        store.connection,
-        `SELECT s.recording_id, s.power FROM spectra s JOIN recordings r USING (recording_id)
-          WHERE r.run_id = $1 AND s.channel = $2 AND s.stage = $3 AND s.reference = $4 AND s.averaging = 'mean' AND s.n_epochs > 0
-            AND s.freq_start_hz = $5 AND s.freq_step_hz = $6 AND s.n_bins = $7
-          ORDER BY s.recording_id`,
-        [String(g.run_id), String(g.channel), String(g.stage), String(g.reference), start, step, nBins],
-      ),
+        ORDER BY r.run_id, s.channel, s.stage, s.reference, s.freq_start_hz, s.freq_step_hz, s.n_bins, s.recording_id`,
     );
-    const freqs = Float64Array.from({ length: nBins }, (_, k) => start + k * step);
-    const usable = spectra
-      .map((r) => ({ recordingId: String(r.recording_id), power: r.power as number[] }))
-      .filter((s) => s.power.every((p, k) => p > 0 || freqs[k] < options.fminHz || freqs[k] > options.fmaxHz));
-    if (usable.length === 0 || !freqs.some((f) => f >= options.fminHz && f <= options.fmaxHz)) continue;
-    for (const row of cohortDistance(String(g.channel), String(g.stage) as Stage, freqs, usable, options)) {
-      out.push({
-        recordingId: row.recordingId, channel: row.channel, stage: row.stage, metric: row.metric, value: row.value,
-        flagged: row.flagged, reason: row.reason, severity: row.severity, reference: String(g.reference) as Reference,
-      });
+    for await (const batch of result.yieldRowObjectJs()) {
+      for (const r of batch) {
+        const k = [r.run_id, r.channel, r.stage, r.reference, r.freq_start_hz, r.freq_step_hz, r.n_bins].join('\u0000');
+        if (k !== key) {
+          flush();
+          key = k;
+          head = r;
+          group = [];
+        }
+        group.push({ recordingId: String(r.recording_id), power: Float32Array.from(r.power as number[]) });
+      }
     }
-  }
-  await store.exclusive(() => store.connection.run(`DELETE FROM quality WHERE metric IN (${COHORT_METRICS.map(sqlText).join(', ')})`));
-  await store.writeQuality(out);
-  return out.length;
+    flush();
+    await c.run('BEGIN TRANSACTION');
+    try {
+      await c.run(`DELETE FROM quality WHERE metric IN (${COHORT_METRICS.map(sqlText).join(', ')})`);
+      await appendColumns(c, table('quality'), rows.recordingId.length, {
+        recording_id: (i) => rows.recordingId[i],
+        channel: (i) => rows.channel[i],
+        stage: (i) => rows.stage[i],
+        metric: () => 'cohort-distance',
+        value: (i) => rows.value[i],
+        flagged: (i) => rows.flagged[i],
+        reason: (i) => rows.reason[i],
+        reference: (i) => rows.reference[i],
+        severity: (i) => rows.severity[i],
+      });
+      await c.run('COMMIT');
+    } catch (error) {
+      await c.run('ROLLBACK');
+      throw error;
+    }
+    return rows.recordingId.length;
+  });
 }
