@@ -1,0 +1,79 @@
+// The database facts a methods report states (src/core/report DatabaseFacts), over duckdb-wasm:
+// the dashboard's twin of ingest/report.ts (databaseFacts), query for query.
+import type { Contrast } from '../../core/contrast/spec.ts';
+import type { DatabaseFacts } from '../../core/report/index.ts';
+import { tableToRows } from './arrow-rows.ts';
+import { chooseRun } from './contrast-data.ts';
+import type { RunInfo } from './queries.ts';
+import { COHORT, literal, type SqlClient } from './sql-client.ts';
+import { storedFitRanges } from './verdict-data.ts';
+
+/** Number of recordings of a run. */
+export async function recordingCount(db: SqlClient, runId: string): Promise<number> {
+  const [r] = tableToRows(await db.query(`SELECT count(*)::DOUBLE AS n FROM ${COHORT}.recordings WHERE run_id = ${literal(runId)}`));
+  return Number(r.n);
+}
+
+/** Distinct sampling rates of a run's channels, Hz, ascending. */
+export async function samplingRates(db: SqlClient, runId: string): Promise<number[]> {
+  const rows = tableToRows(
+    await db.query(`SELECT DISTINCT c.fs_hz::DOUBLE AS fs FROM ${COHORT}.channels c JOIN ${COHORT}.recordings r USING (recording_id) WHERE r.run_id = ${literal(runId)} ORDER BY 1`),
+  );
+  return rows.map((r) => Number(r.fs));
+}
+
+/** Fewest and most channels of a run's recordings. */
+export async function channelsPerRecording(db: SqlClient, runId: string): Promise<{ min: number; max: number }> {
+  const [r] = tableToRows(
+    await db.query(
+      `SELECT min(n)::DOUBLE AS lo, max(n)::DOUBLE AS hi FROM (SELECT count(*) AS n FROM ${COHORT}.channels c JOIN ${COHORT}.recordings r USING (recording_id)
+       WHERE r.run_id = ${literal(runId)} GROUP BY c.recording_id)`,
+    ),
+  );
+  return { min: Number(r?.lo ?? 0), max: Number(r?.hi ?? 0) };
+}
+
+/** Channel-epochs per stage (kept epochs × the recording's channels) and rejections by reason. */
+export async function stageEpochCounts(db: SqlClient, runId: string): Promise<DatabaseFacts['epochs']> {
+  const epochs = tableToRows(
+    await db.query(
+      `SELECT e.stage::VARCHAR AS stage, sum(k.n)::DOUBLE AS channel_epochs FROM ${COHORT}.epochs e JOIN ${COHORT}.recordings r USING (recording_id)
+         JOIN (SELECT recording_id, count(*) AS n FROM ${COHORT}.channels GROUP BY recording_id) k USING (recording_id)
+       WHERE r.run_id = ${literal(runId)} AND e.drop_reason IS NULL GROUP BY e.stage ORDER BY e.stage`,
+    ),
+  );
+  const rejected = tableToRows(
+    await db.query(
+      `SELECT e.stage::VARCHAR AS stage, x.reason::VARCHAR AS reason, count(*)::DOUBLE AS n FROM ${COHORT}.epoch_rejections x
+         JOIN ${COHORT}.epochs e USING (recording_id, epoch) JOIN ${COHORT}.recordings r USING (recording_id)
+       WHERE r.run_id = ${literal(runId)} GROUP BY e.stage, x.reason ORDER BY 1, 2`,
+    ),
+  );
+  return epochs.map((e) => {
+    const stage = String(e.stage);
+    const mine = rejected.filter((x) => String(x.stage) === stage);
+    return {
+      stage,
+      channelEpochs: Number(e.channel_epochs),
+      rejected: mine.reduce((s, x) => s + Number(x.n), 0),
+      byReason: Object.fromEntries(mine.map((x) => [String(x.reason), Number(x.n)])),
+    };
+  });
+}
+
+/** Everything a methods report states about the database, for the analysis' stage, reference and averaging. */
+export async function databaseFacts(db: SqlClient, source: string, runs: readonly RunInfo[], c: Contrast): Promise<DatabaseFacts> {
+  const run = chooseRun(runs);
+  const stage = c.design === 'paired' && c.stages ? c.stages[0] : c.stage;
+  return {
+    file: source.split(/[\\/]/).pop()!,
+    runId: run.runId,
+    toolVersion: run.toolVersion,
+    ingestParameters: run.parameters,
+    recordings: await recordingCount(db, run.runId),
+    samplingRatesHz: await samplingRates(db, run.runId),
+    channelsPerRecording: await channelsPerRecording(db, run.runId),
+    epochs: await stageEpochCounts(db, run.runId),
+    fitRangesHz: await storedFitRanges(db, run.runId, stage, c.reference, c.averaging, c.aperiodicMethod),
+  };
+}
