@@ -27,8 +27,14 @@ interface Truth {
   }[];
 }
 
-/** The planted two-group N2 contrast: groups from the participants' group column, all channels, 0.5–30 Hz, cluster mass, 1000 permutations. */
-const PLANTED = '#/contrast?design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all&fminHz=0.5&fmaxHz=30&measure=log-psd&correction=cluster-mass&permutations=1000&seed=1';
+/**
+ * The planted two-group N2 contrast: groups from the participants' group column, all channels,
+ * 1–30 Hz, cluster mass, 1000 permutations, on the residual spectrum (log10 PSD minus the aperiodic
+ * fit). On log10 PSD the planted +0.15 broadband offset fills one positive cluster over every
+ * channel and frequency and the spindle reduction stays at cluster p ≈ 0.11 (measured) — the
+ * scenario's point; the residual takes the offset out.
+ */
+const PLANTED = '#/contrast?design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=30&measure=residual&correction=cluster-mass&permutations=1000&seed=1';
 
 describe('dashboard in chromium on the demo database: quality, spectra, contrast', () => {
   let dir: string;
@@ -144,8 +150,13 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     await page.getByTestId('contrast-form').waitFor();
     const before = await page.getByTestId('ledger-count').innerText();
     const { n, clusters } = await runAndRead();
-    const size = (g: string) => participants.filter((p) => p[1] === g).length;
+    // subjects with a missing (or flagged) spectrum in any channel are left out by the assembly and listed
+    const leftOut = await page.getByTestId('left-out').locator('tbody tr td:first-child').allInnerTexts();
+    const size = (g: string) => participants.filter((p) => p[1] === g && !leftOut.includes(p[0])).length;
     expect(n).toContain(`control ${size('control')}, patient ${size('patient')}`);
+    const flat = truth.subjects.find((t) => t.artifacts[0]?.kind === 'flat')!;
+    // the flat channel has no clean epoch, hence no spectrum: that subject cannot take part
+    expect(leftOut).toEqual([flat.subject]);
     const planted = ['F3', 'F4', 'Fz', 'C3', 'C4', 'Cz', 'P3', 'P4', 'Pz', 'O1', 'O2'].filter((ch) => {
       const h = truth.subjects.filter((t) => t.group === 'control').map((t) => t.peaks.N2[ch].find((p) => p.rhythm === 'fast-spindle')?.heightLog10 ?? 0);
       return h.reduce((a, b) => a + b, 0) / h.length >= 0.7;
@@ -174,7 +185,7 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     const { page } = s;
     const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId('save-contrast').click()]);
     const saved = parseContrast(JSON.parse(readFileSync(await dl.path(), 'utf8')));
-    expect(saved).toMatchObject({ design: 'groups', groupColumn: 'group', groups: ['control', 'patient'], stage: 'N2', fminHz: 0.5, fmaxHz: 30, correction: 'cluster-mass', permutations: 1000, seed: 1 });
+    expect(saved).toMatchObject({ design: 'groups', groupColumn: 'group', groups: ['control', 'patient'], stage: 'N2', measure: 'residual', fminHz: 1, fmaxHz: 30, correction: 'cluster-mass', permutations: 1000, seed: 1 });
   });
 
   it('contrast: a saved link reopens the same result', async () => {
