@@ -28,6 +28,7 @@ import { fitSpectrum, type SpectrumFitOptions } from '../src/core/spectrum/aperi
 import { BandPowerTable, DEFAULT_BANDS, bandBins, type Band, type BandMethod } from '../src/core/spectrum/bands.ts';
 import { averageStage, DEFAULT_MIN_EPOCHS, hannWindow, welchDegreesOfFreedom } from '../src/core/spectrum/stage-average.ts';
 import { Welch } from '../src/core/spectrum/welch.ts';
+import { Irasa, IRASA_FACTORS } from '../src/core/spectrum/irasa.ts';
 import { SCORED_STAGES, type Stage } from '../src/core/stages.ts';
 import type { CohortRecording } from './cohort/types.ts';
 import { openEdf, type EdfFile, type EdfSignal } from './edf/reader.ts';
@@ -64,6 +65,12 @@ export interface IngestParams {
   bandMethod: BandMethod;
   /** Aperiodic + peak fit of every stored spectrum; null to skip. */
   fit: (SpectrumFitOptions & { fitRangeHz: [number, number] }) | null;
+  /**
+   * IRASA aperiodic estimate (Wen & Liu 2016) per channel, stage and reference from the clean
+   * epochs' time series, stored with method 'irasa' and averaging 'mean'; null to skip (default).
+   * Its fit range is the fit's, capped at fs/(2·h_max) (stored in fit_hi_hz).
+   */
+  irasa: { resamplingFactors?: number[] } | null;
   /** Thresholds of the per-recording quality metrics (src/core/quality; defaults there). */
   quality: QualityParams;
 }
@@ -103,6 +110,7 @@ export const DEFAULT_INGEST_PARAMS: Readonly<IngestParams> = {
   bands: DEFAULT_BANDS.map((b) => ({ ...b })),
   bandMethod: 'mean',
   fit: { fitRangeHz: [1, 40], aperiodicMode: 'power-law' },
+  irasa: null,
   quality: {
     clippingMaxFraction: 0.001,
     flatMinSdUv: 2,
@@ -145,7 +153,7 @@ export class PipelineError extends Error {
 }
 
 export interface PipelineProgress {
-  step: 'read' | 'spectra';
+  step: 'read' | 'spectra' | 'irasa';
   done: number;
   total: number;
 }
@@ -246,6 +254,8 @@ interface OutputState {
   /** Mean full-range PSD over time-domain-clean epochs (recorded reference only), µV²/Hz. */
   fullSum: Float64Array | null;
   fullCount: number;
+  /** 1 for the epochs kept after every rejection rule (set after the read pass). */
+  clean: Uint8Array | null;
 }
 
 interface PlanState {
@@ -338,6 +348,7 @@ export async function processRecording(
           bandPower: new Float32Array(nGrid * bands.length),
           fullSum: plan.reference === 'recorded' ? new Float64Array(welch.nBins) : null,
           fullCount: 0,
+          clean: null,
         };
       });
       return { plan, rereferencer: new Rereferencer(plan, plan.fsHz ? Math.round(plan.fsHz * epochS) : 0), outputs };
@@ -435,6 +446,7 @@ export async function processRecording(
         const outliers = spectralOutliers(out.logBroadband, out.logMuscle, stageIdx, eligible, params.rejection.outlierZ);
         const clean = eligible.slice();
         for (const r of outliers) clean[r.epoch] = 0;
+        out.clean = clean;
         const outlierReason = new Map(outliers.map((r) => [r.epoch, r.reason]));
         if (storeRejections) {
           for (let e = 0; e < nGrid; e++) {
@@ -469,8 +481,8 @@ export async function processRecording(
               if (why) byReason[why] = (byReason[why] ?? 0) + 1;
             }
             if (nStage > 0) {
-              quality.push(qualityIn(rejectedFraction(cell, nStage, byReason, { maxFraction: q.rejectedMaxFraction }), reference));
-              quality.push(qualityIn(cleanEpochs(cell, rows.length, { minEpochs: params.minEpochs }), reference));
+              quality.push(qualityIn(rejectedFraction(cell, nStage, byReason, { maxFraction: q.rejectedMaxFraction, minEpochs: params.minEpochs }), reference));
+              quality.push(qualityIn(cleanEpochs(cell, rows.length, { minEpochs: params.minEpochs }, nStage), reference));
             }
           }
           const avg = averageStage(out.spectra, nStored, rows, nu, params.minEpochs);
@@ -514,6 +526,11 @@ export async function processRecording(
         const rows = aperiodicQuality({ channel: key.channel, stage: key.stage }, fitQ, { minR2: q.aperiodicMinR2, exponentRange: q.exponentRange });
         for (const r of rows) quality.push(qualityIn(r, key.reference));
       }
+    }
+
+    if (params.irasa) {
+      onProgress?.({ step: 'irasa', done: 0, total: nGrid });
+      aperiodic.push(...(await irasaPass(edf, selected.map((s) => s.signal.index), selected.map((s) => s.toUv), states, stageIdx, epochS, params, fitRange, nGrid, (d) => onProgress?.({ step: 'irasa', done: d, total: nGrid }))));
     }
 
     const recordedState = states.find((s) => s.plan.reference === 'recorded');
@@ -585,6 +602,66 @@ export async function processRecording(
   } finally {
     await edf.close();
   }
+}
+
+/**
+ * IRASA over a second read of the recording: every clean epoch of a stage is added to that
+ * stage's estimator (per reference and channel), then each estimator's power-law fit becomes an
+ * aperiodic row with method 'irasa'.
+ */
+async function irasaPass(
+  edf: EdfFile,
+  signals: number[],
+  toUv: number[],
+  states: PlanState[],
+  stageIdx: Int32Array,
+  epochS: number,
+  params: IngestParams,
+  fitRange: [number, number] | null,
+  nGrid: number,
+  onEpoch: (done: number) => void,
+): Promise<AperiodicRow[]> {
+  const [lo, hi] = fitRange ?? [1, 40];
+  const estimators = states.map((st) =>
+    st.outputs.map((out) => {
+      const cap = out.welch.fsHz / (2 * Math.max(...(params.irasa!.resamplingFactors ?? IRASA_FACTORS)));
+      const range: [number, number] = [lo, Math.min(hi, Math.floor(cap * 4) / 4)];
+      return SCORED_STAGES.map(() => new Irasa(out.welch.fsHz, { segmentS: params.segmentS, overlap: params.overlap, fitRangeHz: range, resamplingFactors: params.irasa!.resamplingFactors }));
+    }),
+  );
+  for await (const block of edf.readEpochs({ signals, epochS })) {
+    const e = block.epoch;
+    if (e >= nGrid) break;
+    if (!block.data || stageIdx[e] < 0) continue;
+    const data = block.data;
+    for (let c = 0; c < data.length; c++) if (toUv[c] !== 1) for (let i = 0; i < data[c].length; i++) data[c][i] *= toUv[c];
+    states.forEach((st, si) => {
+      const x = st.rereferencer.apply(data);
+      st.outputs.forEach((out, oi) => {
+        if (out.clean?.[e]) estimators[si][oi][stageIdx[e]].add(x[oi], 0, out.length);
+      });
+    });
+    if ((e & 15) === 0) onEpoch(e);
+  }
+  const rows: AperiodicRow[] = [];
+  states.forEach((st, si) =>
+    st.outputs.forEach((out, oi) =>
+      SCORED_STAGES.forEach((stage, g) => {
+        const est = estimators[si][oi][g];
+        let fit: ReturnType<Irasa['result']>['fit'] | null = null;
+        try {
+          fit = est.result().fit;
+        } catch {
+          return; // no clean epoch of this stage (or too little signal): no row, as for spectra
+        }
+        rows.push({
+          channel: out.channel, stage, reference: st.plan.reference, averaging: 'mean', method: 'irasa',
+          fitLoHz: fit.fitLoHz, fitHiHz: fit.fitHiHz, offset: fit.offset, exponent: fit.exponent, knee: 0, r2: fit.r2, rmse: fit.rmse, nPeaks: null,
+        });
+      }),
+    ),
+  );
+  return rows;
 }
 
 /** A quality row of src/core/quality as the bundle holds it. */

@@ -55,6 +55,7 @@ interface Flags {
   fitRange: [number, number];
   knee: boolean;
   fit: boolean;
+  irasa?: boolean;
   lineFreq?: number;
   quiet?: boolean;
 }
@@ -94,6 +95,7 @@ export function register(program: Command): void {
     .option('--fit-range <LO-HI>', 'aperiodic fit range, Hz', range('fit-range'), D.fit!.fitRangeHz)
     .option('--knee', 'fit the aperiodic knee (default: plain power law, knee 0)', false)
     .option('--no-fit', 'skip the aperiodic and peak fits')
+    .option('--irasa', 'also estimate the aperiodic component by IRASA (Wen & Liu 2016) from the clean epochs\' time series, stored with method irasa (a second read of each recording; slower)')
     .option('--line-freq <Hz>', 'power-line frequency for the mains-hum metric, 50 or 60 (default: BIDS sidecar, else detected)', num('line-freq', (x) => x === 50 || x === 60))
     .option('--quiet', 'no progress bars (they are off anyway when stdout is not a terminal)')
     .addHelpText('after', '\nA research tool, not a diagnostic device. No EDF patient or recording identification is stored.')
@@ -123,6 +125,7 @@ function toParams(f: Flags): Partial<IngestParams> {
     bands: f.band ? (Array.isArray(f.band) ? f.band : [f.band]).map(parseBand) : D.bands,
     bandMethod: f.bandMethod,
     fit: f.fit === false ? null : { fitRangeHz: f.fitRange, aperiodicMode: f.knee ? 'knee' : 'power-law' },
+    irasa: f.irasa ? {} : null,
     quality: { ...D.quality, lineHz: (f.lineFreq as 50 | 60 | undefined) ?? null },
   };
 }

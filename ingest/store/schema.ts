@@ -183,7 +183,7 @@ export const TABLES: readonly TableDef[] = [
       col('method', 'VARCHAR', 'aperiodic.method of the fit the peak belongs to', true),
       col('center_hz', 'DOUBLE', 'peak centre in Hz', true),
       col('height', 'DOUBLE', 'height above the aperiodic fit in log10 power', true),
-      col('bandwidth_hz', 'DOUBLE', 'peak bandwidth in Hz (2·standard deviation of the Gaussian)', true),
+      col('bandwidth_hz', 'DOUBLE', 'peak bandwidth in Hz: full width at half maximum of the Gaussian, 2·√(2 ln 2)·σ', true),
     ],
   },
   {

@@ -5,14 +5,32 @@
  * parameters of `bandwise demo` (DEMO_INGEST_PARAMS) into tests/.tmp/demo-<stamp>.duckdb; a lock folder keeps parallel test files from
  * building it twice.
  */
-import { existsSync, mkdirSync, rmSync, statSync } from 'node:fs';
+import { createHash } from 'node:crypto';
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_SCENARIO, scenarioStamp } from '../../ingest/simulate/index.ts';
 import { runIngest } from '../../ingest/ingest.ts';
+import { resolveIngestParams } from '../../ingest/pipeline.ts';
+import { runIdentity } from '../../ingest/store/identity.ts';
 
 const repo = fileURLToPath(new URL('../..', import.meta.url));
 const tmp = path.join(repo, 'tests', '.tmp');
+
+/** Hash of the code that writes the database (src/core and ingest), so a code change rebuilds it. */
+function codeHash(): string {
+  const h = createHash('sha256');
+  const walk = (dir: string) => {
+    for (const name of readdirSync(dir, { withFileTypes: true }).sort((a, b) => a.name.localeCompare(b.name))) {
+      const p = path.join(dir, name.name);
+      if (name.isDirectory()) walk(p);
+      else if (/\.(ts|mjs)$/.test(name.name)) h.update(p.slice(repo.length)).update(readFileSync(p));
+    }
+  };
+  walk(path.join(repo, 'src', 'core'));
+  walk(path.join(repo, 'ingest'));
+  return h.digest('hex').slice(0, 8);
+}
 
 async function withLock<T>(name: string, fn: () => Promise<T>): Promise<T> {
   mkdirSync(tmp, { recursive: true });
@@ -40,12 +58,14 @@ async function withLock<T>(name: string, fn: () => Promise<T>): Promise<T> {
 export async function demoDatabase(): Promise<string> {
   return withLock('demo', async () => {
     const cohort = await ensureDemoCohort();
-    const stamp = (await scenarioStamp(DEMO_SCENARIO)).slice(0, 12);
+    // keyed by the scenario, the ingest parameters and the code, so a change of any builds a new file
+    const params = resolveIngestParams({ references: [...DEMO_INGEST_PARAMS.references] });
+    const stamp = `${(await scenarioStamp(DEMO_SCENARIO)).slice(0, 8)}-${runIdentity(params).runId.slice(0, 8)}-${codeHash()}`;
     const db = path.join(tmp, `demo-${stamp}.duckdb`);
     const done = `${db}.done`;
     if (existsSync(db) && existsSync(done)) return db;
     // the ingest is resumable: a partial database from a killed run is completed, not rebuilt
-    const summary = await runIngest(cohort.participantsPath, db, { jobs: 2, params: { references: [...DEMO_INGEST_PARAMS.references] } });
+    const summary = await runIngest(cohort.participantsPath, db, { jobs: 2, params });
     if (summary.failed.length > 0) throw new Error(`demo ingest failed: ${summary.failed.map((f) => `${f.file}: ${f.message}`).join('; ')}`);
     mkdirSync(done, { recursive: true });
     return db;

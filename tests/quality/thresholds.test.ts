@@ -88,3 +88,24 @@ describe('cell score', () => {
     expect(cellScore([])).toEqual({ score: 0, nFlagged: 0, worst: null, reasons: [] });
   });
 });
+
+describe('stages too short to judge a channel', () => {
+  it('makes clean-epochs a note, not a flag, when the night scored fewer epochs than the minimum', () => {
+    const cell = { channel: 'C3', stage: 'N1' as const };
+    // 6 scored N1 epochs, 5 clean, minimum 10: the stage is short, the channel is not at fault
+    const short = cleanEpochs(cell, 5, { minEpochs: 10 }, 6);
+    expect(short.flagged).toBe(false);
+    expect(short.reason).toMatch(/only 6 scored epochs of N1/);
+    // 40 scored, 5 clean: rejection removed them, so it is flagged
+    expect(cleanEpochs(cell, 5, { minEpochs: 10 }, 40).flagged).toBe(true);
+  });
+
+  it('reports but does not flag the rejected share of a handful of epochs', () => {
+    const cell = { channel: 'C3', stage: 'N1' as const };
+    const few = rejectedFraction(cell, 6, { amplitude: 3 }, { maxFraction: 0.3, minEpochs: 10 });
+    expect(few.value).toBe(0.5);
+    expect(few.flagged).toBe(false);
+    expect(few.reason).toMatch(/too few epochs to flag/);
+    expect(rejectedFraction(cell, 60, { amplitude: 30 }, { maxFraction: 0.3, minEpochs: 10 }).flagged).toBe(true);
+  });
+});

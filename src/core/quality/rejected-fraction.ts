@@ -3,6 +3,8 @@ import { clampSeverity, pct, QualityInputError, type Cell, type QualityRow } fro
 export interface RejectedFractionOptions {
   /** Flag when more than this fraction of a stage's epochs is rejected (default 0.3; our choice, a common screening level). */
   maxFraction: number;
+  /** Stages with fewer epochs than this get the fraction as a note, not a flag (a share of a handful of epochs says little; default 0). */
+  minEpochs?: number;
 }
 
 export const DEFAULT_REJECTED_FRACTION: Readonly<RejectedFractionOptions> = { maxFraction: 0.3 };
@@ -28,7 +30,8 @@ export function rejectedFraction(
   const base = { ...cell, metric: 'rejected-fraction' as const };
   if (nEpochs === 0) return { ...base, value: null, flagged: false, reason: 'no epochs in this stage', severity: 0 };
   const value = rejected / nEpochs;
-  const flagged = value > options.maxFraction;
+  const assessed = nEpochs >= (options.minEpochs ?? 0);
+  const flagged = assessed && value > options.maxFraction;
   const why = Object.entries(rejectedByReason)
     .filter(([, n]) => n > 0)
     .sort((a, b) => b[1] - a[1])
@@ -36,6 +39,8 @@ export function rejectedFraction(
     .join(', ');
   const reason = flagged
     ? `${pct(value)} of ${nEpochs} epochs rejected (${why}); more than ${pct(options.maxFraction)}`
-    : null;
+    : !assessed && rejected > 0
+      ? `${pct(value)} of only ${nEpochs} epochs rejected (${why}); too few epochs to flag`
+      : null;
   return { ...base, value, flagged, reason, severity: clampSeverity(value / options.maxFraction) };
 }
