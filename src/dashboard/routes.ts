@@ -34,15 +34,15 @@ export const VIEWS: readonly ViewInfo[] = [
     id: 'band-check',
     label: 'Band check',
     summary: 'Whether a band effect is band-specific, a broadband offset shift or an exponent change.',
-    ready: false,
+    ready: true,
   },
   {
     id: 'robustness',
     label: 'Robustness',
     summary: 'The same contrast over every combination of analysis choices, as a specification curve.',
-    ready: false,
+    ready: true,
   },
-  { id: 'report', label: 'Methods report', summary: 'Every spectral and statistical parameter written out as methods text.', ready: false },
+  { id: 'report', label: 'Methods report', summary: 'Every spectral and statistical parameter written out as methods text.', ready: true },
 ];
 
 export const DEFAULT_VIEW = 'cohort';
