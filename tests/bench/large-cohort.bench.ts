@@ -9,10 +9,13 @@
  * full size from it (linear in spectra × bins, as the series shows); by default the full size is
  * built too when the disk has room (twice the extrapolated file size free).
  *
- * `bandwise compare` on one stage with 1000 permutations over the full database is not measured
- * here yet: that command does not exist at the time of writing. Add it to run() when it lands
- * (target from issue 8: under 60 s on 2 cores, memory under 6 GB).
+ * `bandwise compare` (the real command, in its own process under /usr/bin/time -v for its wall
+ * time, CPU time and peak RSS): groups control vs patient, N2, log-PSD 1–30 Hz, Welch t, cluster
+ * mass, on every database of the series, at 250/500/1000 permutations on the middle one, and
+ * with 1000 permutations on the full database (target from issue 8: under 60 s on the 2 cores
+ * here, memory under 6 GB).
  */
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, statfsSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import path from 'node:path';
@@ -33,6 +36,43 @@ interface Point {
   fileMB: number;
   /** CPU µs per spectrum row, whole build. */
   cpuUsPerRow: number;
+  /** bandwise compare, 1000 permutations, on this database. */
+  compare: CompareFigures;
+}
+
+interface CompareFigures {
+  permutations: number;
+  wallS: number;
+  cpuS: number;
+  peakRssMB: number;
+}
+
+const repo = path.resolve(import.meta.dirname, '../..');
+const permutationRuns: CompareFigures[] = [];
+
+/** Run `bandwise compare` on db under /usr/bin/time -v and read its wall time, CPU time and peak RSS. */
+function timeCompare(db: string, permutations: number): CompareFigures {
+  const out = `${db}.result.json`;
+  const r = spawnSync(
+    '/usr/bin/time',
+    ['-v', process.execPath, path.join(repo, 'bin/bandwise.mjs'), 'compare', db, '--groups', 'control,patient', '--stage', 'N2', '--fmin', '1', '--fmax', '30',
+      '--permutations', String(permutations), '--seed', '1', '--out', out, '--no-ledger', '--quiet'],
+    { encoding: 'utf8' },
+  );
+  rmSync(out, { force: true });
+  if (r.status !== 0) throw new Error(`bandwise compare failed (exit ${r.status}): ${r.stderr.slice(-800)}`);
+  const field = (name: string) => {
+    const m = new RegExp(`${name}: (.+)`).exec(r.stderr);
+    if (!m) throw new Error(`/usr/bin/time printed no "${name}"`);
+    return m[1].trim();
+  };
+  const clock = field('Elapsed \\(wall clock\\) time \\(h:mm:ss or m:ss\\)').split(':').map(Number);
+  const wallS = clock.reduce((acc, x) => acc * 60 + x, 0);
+  const round = (x: number) => Math.round(x * 100) / 100;
+  return {
+    permutations, wallS: round(wallS), cpuS: round(Number(field('User time \\(seconds\\)')) + Number(field('System time \\(seconds\\)'))),
+    peakRssMB: round(Number(field('Maximum resident set size \\(kbytes\\)')) / 1024),
+  };
 }
 
 async function build(dir: string, recordings: number, channels: number, bins: number): Promise<Point> {
@@ -40,13 +80,16 @@ async function build(dir: string, recordings: number, channels: number, bins: nu
   const cpu0 = process.cpuUsage();
   const r: SyntheticWriteResult = await writeSyntheticDatabase(file, syntheticSpec({ recordings, channelCount: channels, nBins: bins, seed: 7 }));
   const cpu = process.cpuUsage(cpu0);
+  const compare = timeCompare(file, 1000);
+  const permutationSeries = recordings === 250 && channels === 64 && bins === 181 ? [250, 500].map((n) => timeCompare(file, n)) : [];
   rmSync(file, { force: true });
   const round = (x: number, d = 2) => Math.round(x * 10 ** d) / 10 ** d;
   const cpuS = (cpu.user + cpu.system) / 1e6;
   const point = {
     recordings, channels, bins, spectraRows: r.spectraRows, totalS: round(r.totalS), cpuS: round(cpuS), drawS: round(r.drawS), writeS: round(r.writeS),
-    fileMB: round(r.fileBytes / 2 ** 20, 1), cpuUsPerRow: round((1e6 * cpuS) / r.spectraRows, 1),
+    fileMB: round(r.fileBytes / 2 ** 20, 1), cpuUsPerRow: round((1e6 * cpuS) / r.spectraRows, 1), compare,
   };
+  if (permutationSeries.length) permutationRuns.push(...permutationSeries, compare);
   process.stderr.write(`large-cohort: ${JSON.stringify(point)}\n`);
   return point;
 }
@@ -94,12 +137,16 @@ export async function run(): Promise<Record<string, unknown>> {
         : { skipped: `only ${freeGB.toFixed(1)} GB free under ${tmpdir()}, need ${(2 * extrapolated.fileGB).toFixed(1)} GB` };
     }
     return {
-      note: 'synthetic database build (draw + bulk write + checkpoint), one process; cpuS is the process CPU time (all threads), wallS depends on other load; compare timing pending until `bandwise compare` exists',
+      note: 'synthetic database build (draw + bulk write + checkpoint), one process; cpuS is the process CPU time (all threads), wallS depends on other load; compare: the real command in its own process, 1000 permutations unless stated',
       loadAverage: loadavg(),
       byRecordings: growth(byRecordings, (p) => p.recordings),
       byChannels: growth(byChannels, (p) => p.channels),
       byBins: growth(byBins, (p) => p.bins),
       points: [...byRecordings, ...byChannels.slice(0, 2), byBins[0], byBins[2]],
+      compareByRecordings: { sizes: byRecordings.map((p) => p.recordings), cpuS: byRecordings.map((p) => p.compare.cpuS), wallS: byRecordings.map((p) => p.compare.wallS), peakRssMB: byRecordings.map((p) => p.compare.peakRssMB) },
+      compareByChannels: { sizes: byChannels.map((p) => p.channels), cpuS: byChannels.map((p) => p.compare.cpuS) },
+      compareByBins: { sizes: byBins.map((p) => p.bins), cpuS: byBins.map((p) => p.compare.cpuS) },
+      compareByPermutations: { recordings: base.recordings * 2, sizes: permutationRuns.map((c) => c.permutations), cpuS: permutationRuns.map((c) => c.cpuS), wallS: permutationRuns.map((c) => c.wallS) },
       extrapolatedFull: extrapolated,
       full,
     };
