@@ -1,0 +1,122 @@
+// The dashboard's band check, robustness and report loaders (duckdb-wasm, the browser's engine)
+// against the command line's (ingest/cli/band-check.ts loadBandCheckData and ingest/report.ts
+// databaseFacts over @duckdb/node-api, another DuckDB build) on the shared demo database
+// (tests/helpers/demo-db.ts): the same rows, the same facts, and the same band check and
+// robustness results from src/core/verdict. 200 permutations per test (the equality of the two
+// loaders does not depend on the count; kept small for time).
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { loadBandCheckData as loadCli } from '../../ingest/cli/band-check.ts';
+import { databaseFacts as factsCli } from '../../ingest/report.ts';
+import { openStore } from '../../ingest/store/index.ts';
+import type { ContrastData } from '../../src/core/contrast/data.ts';
+import { parseContrast } from '../../src/core/contrast/spec.ts';
+import { bandCheck, edgeVariants, runPaths, type PathChoices, type PathDataSet } from '../../src/core/verdict/index.ts';
+import { cohortSchema, runs, type CohortSchema, type RunInfo } from '../../src/dashboard/db/queries.ts';
+import { databaseFacts } from '../../src/dashboard/db/report-facts.ts';
+import { fitRangeChoices, loadBandCheckData, loadPathDataSets, storedFitRanges } from '../../src/dashboard/db/verdict-data.ts';
+import { demoDatabase } from '../helpers/demo-db.ts';
+import { wasmClientFor } from './wasm-client.ts';
+
+const plainRows = (d: ContrastData) => d.spectra.rows.map((r) => ({ ...r, power: Array.from(r.power) }));
+const bySubject = (x: ContrastData['participants']) => [...x].sort((p, q) => String(p.subject).localeCompare(String(q.subject)));
+
+function expectSameData(a: ContrastData, b: ContrastData): void {
+  expect([a.spectra.freqStartHz, a.spectra.freqStepHz, a.spectra.nBins]).toEqual([b.spectra.freqStartHz, b.spectra.freqStepHz, b.spectra.nBins]);
+  expect(plainRows(a)).toEqual(plainRows(b));
+  expect(a.aperiodic).toEqual(b.aperiodic);
+  expect(bySubject(a.participants)).toEqual(bySubject(b.participants));
+  expect(a.exclusions).toEqual(b.exclusions);
+}
+
+describe('band check, robustness and report data over duckdb-wasm equal the command line on the demo database', () => {
+  let file: string;
+  let client: Awaited<ReturnType<typeof wasmClientFor>>;
+  let schema: CohortSchema;
+  let runList: RunInfo[];
+  const exclusions = [{ subject: 'ctl-01', channel: null, reason: 'test exclusion' }];
+  const sigma = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'], permutations: 200, seed: 3 });
+
+  beforeAll(async () => {
+    file = await demoDatabase();
+    client = await wasmClientFor(file);
+    schema = await cohortSchema(client);
+    runList = await runs(client);
+  });
+
+  afterAll(() => client?.close());
+
+  it('band check rows (spectra, fits, peaks, fit range) and the band check result are the same', async () => {
+    const ours = await loadBandCheckData(client, schema, runList, sigma, exclusions);
+    const store = await openStore(file, { readOnly: true });
+    let theirs;
+    try {
+      theirs = await loadCli(store, sigma, exclusions);
+    } finally {
+      await store.close();
+    }
+    expect(ours.runId).toBe(theirs.runId);
+    expect(ours.fitRangeHz).toEqual(theirs.fitRangeHz);
+    expect(ours.toolVersion).toBe(theirs.toolVersion);
+    expect(ours.runParameters).toEqual(theirs.runParameters);
+    expectSameData(ours.data, theirs.data);
+    expect(ours.data.peaks).toEqual(theirs.data.peaks);
+    expect(ours.data.peaks.length).toBeGreaterThan(0);
+    const band = { name: 'sigma', loHz: 12, hiHz: 16 };
+    const a = bandCheck(sigma, band, ours.data, { fitRangeHz: ours.fitRangeHz });
+    const b = bandCheck(sigma, band, theirs.data, { fitRangeHz: theirs.fitRangeHz });
+    expect(a.verdict).toBe(b.verdict);
+    expect(a.family).toEqual(b.family);
+    expect(a.tests).toEqual(b.tests);
+    expect(a.exclusions.some((e) => e.subject === 'ctl-01')).toBe(true);
+  });
+
+  it('robustness row sets: one per stored (reference, averaging, fit range), equal to the command line rows; same curve', async () => {
+    const needs = [
+      { reference: 'recorded', averaging: 'mean' as const },
+      { reference: 'linked-mastoids', averaging: 'median' as const },
+    ];
+    const sets = await loadPathDataSets(client, schema, runList, sigma, needs, exclusions);
+    const store = await openStore(file, { readOnly: true });
+    const theirs: PathDataSet[] = [];
+    try {
+      for (const n of needs) {
+        const loaded = await loadCli(store, { ...sigma, reference: n.reference as typeof sigma.reference, averaging: n.averaging }, exclusions);
+        theirs.push({ ...n, fitRangeHz: loaded.fitRangeHz, data: loaded.data });
+      }
+    } finally {
+      await store.close();
+    }
+    // the demo stores one fit range per (reference, averaging), so one set each
+    expect(sets.map((s) => [s.reference, s.averaging, s.fitRangeHz])).toEqual(theirs.map((s) => [s.reference, s.averaging, s.fitRangeHz]));
+    for (let i = 0; i < sets.length; i++) expectSameData(sets[i].data, theirs[i].data);
+    expect(await fitRangeChoices(client, runList, 'N2', 'fit')).toEqual([theirs[0].fitRangeHz]);
+    // paths over the recorded/mean set only (the other loaded pair is compared row by row above)
+    const choices: PathChoices = {
+      measures: ['absolute', 'relative', 'residual'],
+      relativeDenominatorsHz: [[0.5, 45]],
+      references: ['recorded'],
+      averagings: ['mean'],
+      summaries: ['mean'],
+      fitRangesHz: [theirs[0].fitRangeHz!],
+      bands: edgeVariants({ name: 'sigma', loHz: 12, hiHz: 16 }),
+    };
+    const a = runPaths(sigma, { name: 'sigma', loHz: 12, hiHz: 16 }, choices, sets);
+    const b = runPaths(sigma, { name: 'sigma', loHz: 12, hiHz: 16 }, choices, theirs);
+    expect(a.nPaths).toBe(9); // 3 measures × 3 band edge variants
+    expect(a.paths).toEqual(b.paths);
+  });
+
+  it('database facts for the methods report equal ingest/report.ts databaseFacts', async () => {
+    const store = await openStore(file, { readOnly: true });
+    let theirs;
+    try {
+      theirs = await factsCli(store, file, sigma);
+    } finally {
+      await store.close();
+    }
+    const ours = await databaseFacts(client, `http://127.0.0.1:1/data/${file.split('/').pop()}`, runList, sigma);
+    expect(ours).toEqual(theirs);
+    expect(ours.recordings).toBe(36); // demo-cohort/participants.tsv lists 36 participants, one recording each
+    expect(await storedFitRanges(client, ours.runId, 'N2', 'recorded', 'mean', 'fit')).toEqual(ours.fitRangesHz);
+  });
+});
