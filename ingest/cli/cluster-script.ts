@@ -30,6 +30,7 @@ const whole = (name: string) => (v: string) => {
 export function register(program: Command): void {
   program
     .command('cluster-script')
+    .summary('write a Slurm job-array script for a sharded ingest plus the merge job')
     .description(
       'Write Slurm scripts that ingest a cohort as a job array (task K of N runs `bandwise ingest --shard K/N` ' +
         'into its own shard database, logs per task) and then merge the shards in a job that waits for every ' +

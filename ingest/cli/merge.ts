@@ -14,6 +14,7 @@ interface Flags {
 export function register(program: Command): void {
   program
     .command('merge')
+    .summary('combine shard databases written with the same parameters')
     .description(
       'Combine shard databases written by `bandwise ingest --shard K/N` with the same parameters into one new ' +
         'cohort database, then run the cohort-level quality pass (distance of each spectrum from the cohort median). ' +

@@ -18,7 +18,7 @@ function timed(fn: () => void): { wallS: number; cpuS: number } {
 
 export async function run(): Promise<Record<string, unknown>> {
   const scenario = await loadScenario(DEMO_SCENARIO);
-  const plan = planNight(scenario, 0); // ctl-01: 256 Hz
+  const plan = planNight(scenario, 0); // ctl01: 256 Hz
   const out = plan.channels.map(() => new Float32Array(plan.epochSamples));
   const generateNight = (): void => {
     const gen = new NightGenerator(plan);

@@ -29,9 +29,9 @@ function compare(name: string, args: string[]): { clusters: { sign: number; p: n
 describe('bandwise compare on the demo cohort', () => {
   it('finds the planted fast-spindle reduction as a significant negative N2 cluster on the residual spectrum', () => {
     const r = compare('residual', ['--measure', 'residual', '--fmin', '1', '--fmax', '30']);
-    // ctl-09's flat O2 has no clean epoch, hence no N2 spectrum: left out, with the reason
+    // ctl09's flat O2 has no clean epoch, hence no N2 spectrum: left out, with the reason
     expect(r.n).toEqual({ control: 17, patient: 18 });
-    expect(r.exclusions).toEqual([{ subject: 'ctl-09', channel: 'O2', reason: 'no N2 spectrum for O2' }]);
+    expect(r.exclusions).toEqual([{ subject: 'ctl09', channel: 'O2', reason: 'no N2 spectrum for O2' }]);
     const spindle = r.clusters.find((k) => k.sign === -1 && k.p < 0.05)!;
     expect(spindle, JSON.stringify(r.clusters.slice(0, 3))).toBeDefined();
     // sigma range, over the planted channels (the cluster may reach a neighbour)

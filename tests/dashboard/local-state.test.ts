@@ -29,18 +29,18 @@ describe('per-database lists in browser storage', () => {
 
   it('keeps one exclusion per subject × channel, round-trips through storage and TSV', () => {
     const store = new MemoryStore();
-    let list = withExclusion([], { subject: 'pat-07', channel: null, reason: 'mains hum' });
-    list = withExclusion(list, { subject: 'ctl-09', channel: 'O2', reason: 'flat' });
-    list = withExclusion(list, { subject: 'pat-07', channel: null, reason: 'mains hum, 50 Hz' });
+    let list = withExclusion([], { subject: 'pat07', channel: null, reason: 'mains hum' });
+    list = withExclusion(list, { subject: 'ctl09', channel: 'O2', reason: 'flat' });
+    list = withExclusion(list, { subject: 'pat07', channel: null, reason: 'mains hum, 50 Hz' });
     expect(list).toEqual([
-      { subject: 'ctl-09', channel: 'O2', reason: 'flat' },
-      { subject: 'pat-07', channel: null, reason: 'mains hum, 50 Hz' },
+      { subject: 'ctl09', channel: 'O2', reason: 'flat' },
+      { subject: 'pat07', channel: null, reason: 'mains hum, 50 Hz' },
     ]);
     saveExclusions(store, 'k', list);
     expect(loadExclusions(store, 'k')).toEqual(list);
     expect(loadExclusions(store, 'other')).toEqual([]);
     expect(parseExclusionsTsv(exclusionsToTsv(list))).toEqual(list);
-    expect(withoutExclusion(list, 'ctl-09', 'O2')).toEqual([list[1]]);
+    expect(withoutExclusion(list, 'ctl09', 'O2')).toEqual([list[1]]);
     expect(() => withExclusion(list, { subject: ' ', channel: null, reason: 'x' })).toThrow(/needs a subject/);
     store.setItem('bad:exclusions', '{"subject":1}');
     expect(() => loadExclusions(store, 'bad')).toThrow(/bad:exclusions/);

@@ -12,22 +12,19 @@ import { quoteIdent, TABLE_NAMES } from '../../ingest/store/schema.ts';
 
 // Issue 3, "Done when": `bandwise ingest` on the demo cohort and on a BIDS-laid-out copy of it
 // gives the same database content. The demo scenario (demo-cohort/scenario.json, invented) is cut
-// to 3 controls + 3 patients of 20 min each, pat-02 at 128 Hz, the rest at 256 Hz, with two
+// to 3 controls + 3 patients of 20 min each, pat02 at 128 Hz, the rest at 256 Hz, with two
 // planted artifacts moved onto these subjects so that epoch rejections and quality flags are not
 // empty. Size: 6 recordings × 13 channels × 40 epochs, references recorded + linked mastoids,
 // aperiodic fit on with at most 2 peaks (the default 6 triples the fit time); each layout ingested
 // once with 2 workers (about 40 s in all on a loaded 2-core machine).
 //
-// The demo's subject codes (ctl-01, …) hold a '-', which a BIDS label cannot (BIDS specification:
-// labels are alphanumeric; shared/STANDARDS.md), so writeBidsCopy rightly refuses them. The table
-// side is therefore given the same subjects with the '-' dropped (ctl01, …): same recordings,
-// scoring files and covariates, only the labels changed, so both layouts carry equal subjects.
+// The demo's subject codes (ctl01, …) are alphanumeric, as BIDS labels must be (BIDS
+// specification; shared/STANDARDS.md), so the table's subjects are the BIDS labels as they are.
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-bids-eq-'));
 const tableDb = path.join(dir, 'table.duckdb');
 const bidsDb = path.join(dir, 'bids.duckdb');
 const bidsRoot = path.join(dir, 'bids');
 const params: Partial<IngestParams> = { references: ['recorded', 'linked-mastoids'], fit: { fitRangeHz: [1, 40], aperiodicMode: 'power-law', maxPeaks: 2 } };
-const label = (code: string) => code.replace('-', '');
 let tableSummary: IngestSummary;
 let bidsSummary: IngestSummary;
 let tableText = '';
@@ -40,7 +37,7 @@ const EXCLUDED: Record<string, string[]> = {
   runs: ['started_at', 'finished_at'],
   // ingested_at: wall-clock time of the commit; file_name: path relative to the cohort root, which
   // is the layout itself (checked below against each layout's path); scoring_source: names the
-  // scoring file, ctl-01_scoring.tsv vs sub-ctl01_task-sleep_events.tsv (checked below)
+  // scoring file, ctl01_scoring.tsv vs sub-ctl01_task-sleep_events.tsv (checked below)
   recordings: ['ingested_at', 'file_name', 'scoring_source'],
   // logged_at: wall-clock time; file: path in the layout (the table is empty in both, see below)
   ingest_errors: ['logged_at', 'file'],
@@ -54,15 +51,14 @@ beforeAll(async () => {
   const scenario = JSON.parse(readFileSync(path.resolve(import.meta.dirname, '../../demo-cohort/scenario.json'), 'utf8'));
   scenario.nightMin = 20;
   scenario.groups = scenario.groups.map((g: object) => ({ ...g, size: 3 }));
-  scenario.subjects = { 'pat-02': { fsHz: 128 } };
+  scenario.subjects = { 'pat02': { fsHz: 128 } };
   scenario.artifacts = [
-    { kind: 'movement', subject: 'ctl-02', epochFraction: 0.25, rmsUv: 150, durationS: [2, 8] },
-    { kind: 'mains', subject: 'pat-03', frequencyHz: 50, amplitudeUv: 25, channels: 'all' },
+    { kind: 'movement', subject: 'ctl02', epochFraction: 0.25, rmsUv: 150, durationS: [2, 8] },
+    { kind: 'mains', subject: 'pat03', frequencyHz: 50, amplitudeUv: 25, channels: 'all' },
   ];
   const files = await writeSimulatedCohort(scenario, dir);
-  const [head, ...body] = readFileSync(files.participantsPath, 'utf8').trimEnd().split('\n');
-  expect(head.split('\t')[0]).toBe('subject');
-  tableText = [head, ...body.map((line) => line.replace(/^[^\t]+/, label))].join('\n') + '\n';
+  tableText = readFileSync(files.participantsPath, 'utf8');
+  expect(tableText.split('\t')[0]).toBe('subject');
   const table = path.join(dir, 'cohort.tsv');
   writeFileSync(table, tableText);
 
@@ -141,7 +137,7 @@ describe('ingest of the demo cohort as a table and as its BIDS copy', () => {
       FROM t.recordings x JOIN b.recordings y USING (recording_id) ORDER BY x.subject`);
     expect(got).toHaveLength(6);
     for (const r of got) {
-      const code = `${r.subject.slice(0, 3)}-${r.subject.slice(3)}`;
+      const code = r.subject;
       expect(r.ft).toBe(`${code}.edf`);
       expect(r.fb).toBe(path.join(`sub-${r.subject}`, 'eeg', `sub-${r.subject}_task-sleep_eeg.edf`));
       // the scoring reader names its source by kind and file name (ingest/hypnogram/table.ts)

@@ -21,7 +21,7 @@ beforeAll(async () => {
   const scenario = JSON.parse(readFileSync(path.resolve(import.meta.dirname, '../../demo-cohort/scenario.json'), 'utf8'));
   scenario.groups = scenario.groups.map((g: object) => ({ ...g, size: 5 }));
   scenario.artifacts = [];
-  scenario.subjects = { 'ctl-05': { fsHz: 128 }, 'pat-03': { fsHz: 128 } };
+  scenario.subjects = { 'ctl05': { fsHz: 128 }, 'pat03': { fsHz: 128 } };
   const files = await writeSimulatedCohort(scenario, dir);
   truth = JSON.parse(readFileSync(files.truthPath, 'utf8'));
   const summary = await runIngest(files.participantsPath, db, { jobs: 2, params: { fit: null } });

@@ -24,36 +24,36 @@ describe('quality screen on the demo cohort', () => {
   it('knows the planted artifacts from the ground truth', () => {
     const truth = JSON.parse(readFileSync(demoTruthPath(), 'utf8')) as unknown;
     const text = JSON.stringify(truth);
-    for (const s of ['pat-07', 'ctl-09', 'ctl-14']) expect(text).toContain(s);
+    for (const s of ['pat07', 'ctl09', 'ctl14']) expect(text).toContain(s);
   });
 
-  it('flags the mains hum of pat-07 at 50 Hz on every channel', () => {
-    const hum = rows.filter((q) => q.subject === 'pat-07' && q.metric === 'mains-hum');
+  it('flags the mains hum of pat07 at 50 Hz on every channel', () => {
+    const hum = rows.filter((q) => q.subject === 'pat07' && q.metric === 'mains-hum');
     expect(hum.length).toBeGreaterThanOrEqual(11);
     for (const q of hum) {
       expect(q.flagged, q.channel).toBe(true);
       expect(q.reason).toMatch(/50 Hz/);
     }
     // nobody else has a mains line
-    const others = rows.filter((q) => q.subject !== 'pat-07' && q.metric === 'mains-hum' && q.flagged);
+    const others = rows.filter((q) => q.subject !== 'pat07' && q.metric === 'mains-hum' && q.flagged);
     expect(others).toEqual([]);
   });
 
-  it('flags the flat O2 channel of ctl-09 as flat', () => {
-    const flat = rows.filter((q) => q.subject === 'ctl-09' && q.channel === 'O2' && q.flagged);
+  it('flags the flat O2 channel of ctl09 as flat', () => {
+    const flat = rows.filter((q) => q.subject === 'ctl09' && q.channel === 'O2' && q.flagged);
     expect(flat.map((q) => q.metric)).toContain('flat-channel');
-    const otherFlat = rows.filter((q) => q.metric === 'flat-channel' && q.flagged && !(q.subject === 'ctl-09' && q.channel === 'O2'));
+    const otherFlat = rows.filter((q) => q.metric === 'flat-channel' && q.flagged && !(q.subject === 'ctl09' && q.channel === 'O2'));
     expect(otherFlat).toEqual([]);
   });
 
-  it('flags the movement epochs of ctl-14 through its rejected fraction', () => {
-    const rej = rows.filter((q) => q.subject === 'ctl-14' && q.metric === 'rejected-fraction' && q.flagged);
+  it('flags the movement epochs of ctl14 through its rejected fraction', () => {
+    const rej = rows.filter((q) => q.subject === 'ctl14' && q.metric === 'rejected-fraction' && q.flagged);
     expect(rej.length).toBeGreaterThanOrEqual(11);
     for (const q of rej) expect(q.reason).toMatch(/amplitude/);
   });
 
   it('flags at most 5 % of the clean channels', () => {
-    const planted = (q: { subject: string }) => ['pat-07', 'ctl-09', 'ctl-14'].includes(q.subject);
+    const planted = (q: { subject: string }) => ['pat07', 'ctl09', 'ctl14'].includes(q.subject);
     const cells = new Set(rows.filter((q) => !planted(q)).map((q) => `${q.subject}/${q.channel}`));
     const flaggedCells = new Set(rows.filter((q) => !planted(q) && q.flagged).map((q) => `${q.subject}/${q.channel}`));
     console.log(`clean channels flagged: ${flaggedCells.size} of ${cells.size}`, [...new Set(rows.filter((q) => !planted(q) && q.flagged).map((q) => `${q.subject}/${q.channel}: ${q.metric}`))].slice(0, 10));

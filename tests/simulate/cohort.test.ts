@@ -23,7 +23,7 @@ const scenario: Scenario = baseScenario({
     { name: 'patient', codePrefix: 'pat', size: 1, fsHz: 128, covariates: { ageMean: 45, ageSd: 10, femaleFraction: 0.5, scoreMean: 20, scoreSd: 3 } },
   ],
   rhythms: [{ name: 'fast-spindle', kind: 'bursts', site: 'CPz', widthDeg: 40, centerHz: 13.5, amplitudeUv: 15, durationS: [0.5, 2], burstFrequencySdHz: 0.3, perMinute: { N2: 5 } }],
-  artifacts: [{ kind: 'flat', subject: 'ctl-02', channel: 'O2', valueUv: 0, noiseSdUv: 0 }],
+  artifacts: [{ kind: 'flat', subject: 'ctl02', channel: 'O2', valueUv: 0, noiseSdUv: 0 }],
 });
 
 let dir: string;
@@ -37,8 +37,8 @@ describe('writeSimulatedCohort', () => {
     const out = path.join(dir, 'cohort');
     const progress: string[] = [];
     const files = await writeSimulatedCohort(scenario, out, { onProgress: (p) => progress.push(`${p.subject}:${p.epochsDone}`) });
-    expect(files.recordings.map((f) => path.basename(f))).toEqual(['ctl-01.edf', 'ctl-02.edf', 'pat-01.edf']);
-    expect(progress).toContain('pat-01:6');
+    expect(files.recordings.map((f) => path.basename(f))).toEqual(['ctl01.edf', 'ctl02.edf', 'pat01.edf']);
+    expect(progress).toContain('pat01:6');
 
     for (const [i, file] of files.recordings.entries()) {
       const plan = planNight(scenario, i);
@@ -82,12 +82,12 @@ describe('writeSimulatedCohort', () => {
     const table = readFileSync(files.participantsPath, 'utf8').trim().split('\n').map((l) => l.split('\t'));
     expect(table[0]).toEqual(['subject', 'group', 'recording', 'scoring', 'age', 'sex', 'score']);
     expect(table.slice(1).map((r) => [r[0], r[1], r[2], r[3]])).toEqual([
-      ['ctl-01', 'control', 'ctl-01.edf', 'ctl-01_scoring.tsv'],
-      ['ctl-02', 'control', 'ctl-02.edf', 'ctl-02_scoring.tsv'],
-      ['pat-01', 'patient', 'pat-01.edf', 'pat-01_scoring.tsv'],
+      ['ctl01', 'control', 'ctl01.edf', 'ctl01_scoring.tsv'],
+      ['ctl02', 'control', 'ctl02.edf', 'ctl02_scoring.tsv'],
+      ['pat01', 'patient', 'pat01.edf', 'pat01_scoring.tsv'],
     ]);
     const truth = JSON.parse(readFileSync(files.truthPath, 'utf8'));
-    expect(truth.subjects.map((s: { subject: string }) => s.subject)).toEqual(['ctl-01', 'ctl-02', 'pat-01']);
+    expect(truth.subjects.map((s: { subject: string }) => s.subject)).toEqual(['ctl01', 'ctl02', 'pat01']);
     expect(truth.subjects[1].artifacts).toEqual([{ kind: 'flat', channel: 'O2', valueUv: 0, noiseSdUv: 0 }]);
   });
 

@@ -13,8 +13,8 @@ const withEvents = baseScenario({
     { name: 'alpha', kind: 'narrowband', site: 'Oz', widthDeg: 40, centerHz: 10, bandwidthHz: 0.6, rmsUv: { W: 14 } },
   ],
   artifacts: [
-    { kind: 'movement', subject: 'ctl-01', epochFraction: 0.3, rmsUv: 150, durationS: [2, 6] },
-    { kind: 'mains', subject: 'ctl-02', frequencyHz: 60, amplitudeUv: 10, channels: ['Cz'] },
+    { kind: 'movement', subject: 'ctl01', epochFraction: 0.3, rmsUv: 150, durationS: [2, 6] },
+    { kind: 'mains', subject: 'ctl02', frequencyHz: 60, amplitudeUv: 10, channels: ['Cz'] },
   ],
 });
 
@@ -152,7 +152,7 @@ describe('artifacts and truth', () => {
 
   it('groundTruth lists every subject with per-stage, per-channel aperiodic values', () => {
     const t = groundTruth(withEvents);
-    expect(t.subjects.map((s) => s.subject)).toEqual(['ctl-01', 'ctl-02']);
+    expect(t.subjects.map((s) => s.subject)).toEqual(['ctl01', 'ctl02']);
     expect(Object.keys(t.subjects[0].aperiodic.N2)).toEqual(withEvents.channels);
     expect(JSON.parse(JSON.stringify(t))).toEqual(t);
   });
@@ -160,8 +160,8 @@ describe('artifacts and truth', () => {
   it('bad scenarios fail with the field named', () => {
     expect(() => checkScenario({ ...withEvents, channels: ['C3', 'Xy9'] })).toThrow(/channels\[1\].*Xy9/);
     expect(() => checkScenario({ ...withEvents, reference: { label: 'REF', site: 'Cz' } })).toThrow(ScenarioError);
-    expect(() => checkScenario({ ...withEvents, artifacts: [{ kind: 'flat', subject: 'ctl-09', channel: 'O2', valueUv: 0, noiseSdUv: 0 }] })).toThrow(/artifacts\[0\]\.subject/);
+    expect(() => checkScenario({ ...withEvents, artifacts: [{ kind: 'flat', subject: 'ctl09', channel: 'O2', valueUv: 0, noiseSdUv: 0 }] })).toThrow(/artifacts\[0\]\.subject/);
     expect(() => checkScenario({ ...withEvents, nightMin: 10.25 })).toThrow(/nightMin/);
-    expect(() => checkScenario({ ...withEvents, artifacts: [{ kind: 'mains', subject: 'ctl-01', frequencyHz: 60, amplitudeUv: 1, channels: 'all' }], groups: [{ ...withEvents.groups[0], fsHz: 100 }] })).toThrow(/Nyquist/);
+    expect(() => checkScenario({ ...withEvents, artifacts: [{ kind: 'mains', subject: 'ctl01', frequencyHz: 60, amplitudeUv: 1, channels: 'all' }], groups: [{ ...withEvents.groups[0], fsHz: 100 }] })).toThrow(/Nyquist/);
   });
 });

@@ -14,7 +14,7 @@ export interface SimulatedSubject {
 }
 
 export function subjectCode(prefix: string, number: number): string {
-  return `${prefix}-${String(number).padStart(2, '0')}`;
+  return `${prefix}${String(number).padStart(2, '0')}`;
 }
 
 export function listSubjects(scenario: Scenario): SimulatedSubject[] {
