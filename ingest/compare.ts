@@ -76,11 +76,13 @@ export interface CompareRun extends CompareResult {
 
 export async function compareDatabase(dbPath: string, c: Contrast, exclusions: Exclusion[], onProgress?: ProgressCallback, runId?: string): Promise<CompareRun> {
   const store = await openStore(dbPath, { readOnly: true });
+  let loaded: LoadedContrast;
   try {
-    const loaded = await loadContrastData(store, c, exclusions, runId);
-    const result = compare(c, loaded.data, onProgress);
-    return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } };
+    loaded = await loadContrastData(store, c, exclusions, runId);
   } finally {
+    // closed before the permutations, so DuckDB's cached pages are not held during them
     await store.close();
   }
+  const result = compare(c, loaded.data, onProgress);
+  return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } };
 }
