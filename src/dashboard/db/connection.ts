@@ -26,15 +26,16 @@ async function createEngine(): Promise<Engine> {
   const worker = new Worker(bundle.mainWorker);
   const db = new duckdb.AsyncDuckDB(new duckdb.VoidLogger(), worker);
   await db.instantiate(bundle.mainModule, bundle.pthreadWorker);
+  performance.mark('bandwise:duckdb-instantiated');
   await db.open({
     // Range reads only: never download the whole database (STACK.md).
     filesystem: { reliableHeadRequests: true, allowFullHTTPReads: false, forceFullHTTPReads: false },
     query: { castBigIntToDouble: true },
   });
   const conn = await db.connect();
-  // Extensions would be fetched from the internet; the app works offline.
-  await conn.query('SET autoinstall_known_extensions = false');
-  await conn.query('SET autoload_known_extensions = false');
+  // Extensions would be fetched from the internet; the app works offline. (One round trip: every
+  // statement of a cold engine costs, its code is compiled on first use.)
+  await conn.query('SET autoinstall_known_extensions = false; SET autoload_known_extensions = false');
   performance.mark('bandwise:duckdb-ready');
   return { db, conn };
 }
@@ -58,8 +59,12 @@ export interface CohortConnection extends SqlClient {
   source: string;
 }
 
+/** Whether a cohort database has been attached (the first open needs no DETACH). */
+let attachedOnce = false;
+
 async function attach(e: Engine, location: string, source: string): Promise<CohortConnection> {
-  await e.conn.query(`DETACH DATABASE IF EXISTS ${COHORT}`);
+  if (attachedOnce) await e.conn.query(`DETACH DATABASE IF EXISTS ${COHORT}`);
+  attachedOnce = true;
   await e.conn.query(`ATTACH ${literal(location)} AS ${COHORT} (READ_ONLY)`);
   return { source, query: (sql: string) => e.conn.query(sql) };
 }

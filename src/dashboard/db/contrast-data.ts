@@ -144,24 +144,36 @@ export async function loadContrastData(
   const run = chooseRun(runs);
   const stages: Stage[] = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
   const needs = measureNeeds(c.measure);
-  const rows: SpectrumRow[] = [];
+  // all queries issued together (duckdb-wasm runs them one after another in its worker, without
+  // waits between); rows joined with concat, not push(...rows), which overflows the call stack
+  // at cohort size (10⁵ rows)
+  const [perStage, participantRows] = await Promise.all([
+    Promise.all(
+      stages.map((stage) => {
+        const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
+        return Promise.all([
+          contrastSpectra(db, q),
+          needs.aperiodic ? contrastAperiodic(db, q, c.aperiodicMethod) : Promise.resolve([]),
+          needs.peaks ? contrastPeaks(db, q, c.aperiodicMethod) : Promise.resolve([]),
+        ]);
+      }),
+    ),
+    contrastParticipants(db, schema),
+  ]);
   let axis = { freqStartHz: 0, freqStepHz: 0, nBins: 0 };
-  const aperiodic: AperiodicRow[] = [];
-  const peaks: PeakRow[] = [];
-  for (const stage of stages) {
-    const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
-    const m = await contrastSpectra(db, q);
+  for (const [m] of perStage) {
     if (m.nBins > 0) {
       if (axis.nBins > 0 && (axis.nBins !== m.nBins || axis.freqStepHz !== m.freqStepHz)) throw new Error('stages have different frequency axes');
       axis = { freqStartHz: m.freqStartHz, freqStepHz: m.freqStepHz, nBins: m.nBins };
     }
-    rows.push(...m.rows);
-    if (needs.aperiodic) aperiodic.push(...(await contrastAperiodic(db, q, c.aperiodicMethod)));
-    if (needs.peaks) peaks.push(...(await contrastPeaks(db, q, c.aperiodicMethod)));
   }
+  const rows: SpectrumRow[] = ([] as SpectrumRow[]).concat(...perStage.map(([m]) => m.rows));
+  const aperiodic: AperiodicRow[] = ([] as AperiodicRow[]).concat(...perStage.map(([, a]) => a));
+  const peaks: PeakRow[] = ([] as PeakRow[]).concat(...perStage.map(([, , p]) => p));
+  performance.mark('bandwise:contrast-data');
   if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
   return {
     runId: run.runId,
-    data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: await contrastParticipants(db, schema), exclusions: [...exclusions] },
+    data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions] },
   };
 }

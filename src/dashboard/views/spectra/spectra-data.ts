@@ -43,9 +43,9 @@ export async function loadSpectraRows(
 ): Promise<SpectraRows> {
   const run = chooseRun(runs);
   const q = { runId: run.runId, ...sel };
-  const s = await contrastSpectra(db, q);
-  const aperiodic = await contrastAperiodic(db, q, 'fit');
-  const participants = await contrastParticipants(db, schema);
+  // issued together: duckdb-wasm runs them one after another in its worker, without waits between
+  const [s, aperiodic, participants] = await Promise.all([contrastSpectra(db, q), contrastAperiodic(db, q, 'fit'), contrastParticipants(db, schema)]);
+  performance.mark('bandwise:spectra-rows');
   return { runId: run.runId, stage: sel.stage, reference: sel.reference, ...s, aperiodic, participants, channels: [...new Set(s.rows.map((r) => r.channel))] };
 }
 
