@@ -36,7 +36,7 @@ const seriesLabel = (s: BandCheckFigure['series'][number]) => `${s.name} (n = ${
 
 function colour(fig: BandCheckFigure): Plot.ScaleOptions {
   const domain = fig.series.map(seriesLabel);
-  return { domain, range: GROUP_COLORS.slice(0, domain.length), legend: 'ramp' };
+  return { domain, range: GROUP_COLORS.slice(0, domain.length), legend: 'ramp', label: null };
 }
 
 const x = (fig: BandCheckFigure, label: string | null): Plot.ScaleOptions => ({

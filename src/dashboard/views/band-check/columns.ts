@@ -3,14 +3,14 @@ import type { DataColumn } from '../../components/table-columns.ts';
 
 export const EFFECT_COLUMNS: readonly DataColumn[] = [
   { key: 'effect', label: 'Effect' },
-  { key: 'measure', label: 'Measure' },
-  { key: 'kind', label: 'Size' },
   { key: 'size', label: 'Effect size', digits: 2 },
   { key: 'ci_low', label: 'CI low', digits: 2 },
   { key: 'ci_high', label: 'CI high', digits: 2 },
-  { key: 'difference', label: 'Difference', digits: 3 },
   { key: 't', label: 't', digits: 2 },
   { key: 'p', label: 'p', digits: 4 },
   { key: 'p_adjusted', label: 'p (Bonferroni ×3)', digits: 4 },
   { key: 'decides', label: 'Decides the verdict' },
+  { key: 'difference', label: 'Difference', digits: 3 },
+  { key: 'kind', label: 'Size' },
+  { key: 'measure', label: 'Measure' },
 ];

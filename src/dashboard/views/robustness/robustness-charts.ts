@@ -19,7 +19,7 @@ export function curvePanel(curve: SpecificationCurve): Plot.PlotOptions {
     marginLeft: MARGIN_LEFT,
     x: xScale(curve.nPaths, null),
     y: { label: `${kind} (95 % CI)`, grid: true },
-    color: { domain: [`p < ${curve.alpha}`, `p ≥ ${curve.alpha}`], range: [SIGNIFICANT, NOT_SIGNIFICANT], legend: 'ramp' },
+    color: { domain: [`p < ${curve.alpha}`, `p ≥ ${curve.alpha}`], range: [SIGNIFICANT, NOT_SIGNIFICANT], legend: 'ramp', label: null },
     marks: [
       Plot.ruleY([0], { stroke: '#444' }),
       Plot.ruleY([curve.medianEffect], { stroke: '#444', strokeDasharray: '4,3' }),

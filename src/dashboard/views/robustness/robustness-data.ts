@@ -27,7 +27,8 @@ export interface MatrixRow {
 /** Rows of the dot matrix: every value a varied choice took (choices with one value are left out and returned as fixed). */
 export function matrixRows(curve: SpecificationCurve): { rows: MatrixRow[]; fixed: string[] } {
   const seen = new Map<string, string[]>();
-  for (const p of curve.paths) {
+  // values in the order the paths were enumerated (the order of the choices), not the curve's
+  for (const p of [...curve.paths].sort((a, b) => a.id - b.id)) {
     for (const { choice, value } of pathChoiceValues(p)) {
       if (value === null) continue;
       const vs = seen.get(choice) ?? [];
