@@ -1,0 +1,140 @@
+// Logic of the band check, robustness and report views (no browser): address-bar round trips,
+// the path choices against src/core/verdict's own enumeration and defaults, the specification
+// curve's dot matrix and share sentence, the effects table's Bonferroni column (adjusted
+// p = min(1, 3p): Bonferroni inequality, common practice), the browser ledger counts against
+// src/core/report's ledgerCounts, the band check's ledger entry, and the result-file checks.
+import { describe, expect, it } from 'vitest';
+import { parseContrast } from '../../src/core/contrast/spec.ts';
+import { ledgerCounts } from '../../src/core/report/index.ts';
+import { defaultPathChoices, enumeratePaths, type BandCheckResult, type PathDataSet, type PathResult, type SpecificationCurve } from '../../src/core/verdict/index.ts';
+import { bandCheckLedgerEntry, browserLedgerCounts, entryKind } from '../../src/dashboard/db/ledger-report.ts';
+import type { LedgerEntry } from '../../src/dashboard/db/local-store.ts';
+import { bandCheckFromParams, bandFromParams, paramsFromBandCheck, withEdges } from '../../src/dashboard/views/band-check/band-check-params.ts';
+import { EFFECTS, effectRows } from '../../src/dashboard/views/band-check/band-check-data.ts';
+import { markdownBlocks, parseResultJson, ResultFileError } from '../../src/dashboard/views/report/report-data.ts';
+import { matrixDots, matrixRows, shareSentence } from '../../src/dashboard/views/robustness/robustness-data.ts';
+import { paramsFromChoices, pathChoicesFromParams, RobustnessParamError, toggled } from '../../src/dashboard/views/robustness/robustness-params.ts';
+
+const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'Cz'], permutations: 500, seed: 7 });
+const sigma = { name: 'sigma', loHz: 12, hiHz: 16 };
+const stored = { references: ['recorded', 'linked-mastoids'], averagings: ['mean', 'median'], fitRangesHz: [[1, 40]] as [number, number][] };
+
+describe('band check address bar', () => {
+  it('round-trips contrast and band; a missing band is sigma 12–16 Hz; edges matching a preset take its name', () => {
+    const params = paramsFromBandCheck(contrast, { name: 'theta', loHz: 4, hiHz: 8 });
+    expect(params.band).toBe('theta:4-8');
+    const back = bandCheckFromParams(params);
+    expect(back.contrast).toEqual(contrast);
+    expect(back.band).toEqual({ name: 'theta', loHz: 4, hiHz: 8 });
+    expect(bandFromParams({})).toEqual(sigma);
+    expect(withEdges(13, 15).name).toBe('fast-sigma');
+    expect(withEdges(4.5, 8)).toEqual({ name: 'band', loHz: 4.5, hiHz: 8 });
+    expect(() => withEdges(8, 4)).toThrow(/invalid edges 8–4 Hz/);
+    expect(() => bandFromParams({ band: 'theta' })).toThrow(/expected name:lo-hi/);
+  });
+});
+
+describe('robustness choices', () => {
+  const sets = stored.references.flatMap((reference) => stored.averagings.map((averaging) => ({ reference, averaging, fitRangeHz: [1, 40], data: {} }) as unknown as PathDataSet));
+
+  it('with no choice keys: every stored value, as src/core/verdict defaultPathChoices; 60 band-summary paths', () => {
+    const { choices, test } = pathChoicesFromParams({}, contrast, sigma, stored);
+    expect(test).toBe('band-summary');
+    expect(choices).toEqual(defaultPathChoices(contrast, sigma, sets));
+    // (absolute × 2 summaries + relative × 2 denominators + residual × 1 fit) × 2 references × 2 averagings × 3 edge variants
+    expect(enumeratePaths(choices, test)).toHaveLength((2 + 2 + 1) * 2 * 2 * 3);
+    expect(enumeratePaths(choices, 'frequency-wise')).toHaveLength((1 + 2 + 1) * 2 * 2 * 3);
+  });
+
+  it('round-trips through the address bar; unticked values drop out; unknown or unstored values are refused', () => {
+    const { choices } = pathChoicesFromParams({ measures: 'absolute,residual', references: 'recorded', edges: '0', summaries: 'integral' }, contrast, sigma, stored);
+    expect(choices.measures).toEqual(['absolute', 'residual']);
+    expect(choices.bands).toEqual([sigma]);
+    expect(enumeratePaths(choices)).toHaveLength((1 + 1) * 1 * 2 * 1);
+    const again = pathChoicesFromParams(paramsFromChoices(choices, 'frequency-wise', sigma), contrast, sigma, stored);
+    expect(again).toEqual({ choices, test: 'frequency-wise' });
+    expect(pathChoicesFromParams({ references: 'none' }, contrast, sigma, stored).choices.references).toEqual([]);
+    expect(() => pathChoicesFromParams({ references: 'average' }, contrast, sigma, stored)).toThrow(RobustnessParamError);
+    expect(() => pathChoicesFromParams({ fits: '2-30' }, contrast, sigma, stored)).toThrow(/2–30 Hz is not stored \(stored: 1–40 Hz\)/);
+    expect(() => pathChoicesFromParams({ denominators: '45-0.5' }, contrast, sigma, stored)).toThrow(/not a range/);
+    expect(() => pathChoicesFromParams({ test: 'fast' }, contrast, sigma, stored)).toThrow(/test holds fast/);
+    expect(toggled(['a', 'c'], 'b', true, ['a', 'b', 'c'])).toEqual(['a', 'b', 'c']);
+    expect(toggled(['a', 'b', 'c'], 'a', false, ['a', 'b', 'c'])).toEqual(['b', 'c']);
+  });
+
+  it('dot matrix: one row per value of a varied choice, one dot per path and choice it used; share stated', () => {
+    const { choices } = pathChoicesFromParams({ measures: 'absolute,residual', references: 'recorded', averagings: 'mean', summaries: 'mean' }, contrast, sigma, stored);
+    const specs = enumeratePaths(choices);
+    // invented effects: path i has effect (i − 3), significant when |effect| ≥ 2
+    const paths: PathResult[] = specs.map((p, i) => ({ ...p, effect: i - 3, ciLow: i - 4, ciHigh: i - 2, effectKind: 'hedges-g', p: Math.abs(i - 3) >= 2 ? 0.01 : 0.5, significant: Math.abs(i - 3) >= 2, n: { control: 10, patient: 10 }, rank: i + 1 }));
+    const curve = { paths, nPaths: 6, nSignificant: 3, shareSignificant: 3 / 6, nSignificantMajoritySign: 2, medianEffect: -0.5, alpha: 0.05 } as unknown as SpecificationCurve;
+    const { rows, fixed } = matrixRows(curve);
+    expect(rows.map((r) => r.label)).toEqual(['absolute log10 power', 'residual', 'band 11–17 Hz', 'band 12–16 Hz', 'band 13–15 Hz']);
+    expect(fixed).toEqual(['reference: recorded', 'averaging: mean over epochs', 'summary: mean density', 'fit range: fit 1–40 Hz']);
+    const dots = matrixDots(curve, rows);
+    expect(dots).toHaveLength(6 * 2); // each path: its measure and its band edges
+    expect(dots.filter((d) => d.significant)).toHaveLength(3 * 2); // effects −3, −2 and 2
+    expect(shareSentence(curve)).toBe('3 of 6 paths (50 %) have p < 0.05; 2 of them have the sign of the median effect (median g = −0.50).');
+  });
+});
+
+const t = (p: number, effect = 0.5) => ({ measure: 'm', n: { control: 10, patient: 10 }, statistic: 'welch-t', t: 1, df: 18, effectKind: 'hedges-g', effect, ciLow: effect - 1, ciHigh: effect + 1, level: 0.95, difference: 0.1, p, permutations: 500, exact: false, seed: 7, excluded: [] });
+
+function fakeResult(): BandCheckResult {
+  const tests = { raw: t(0.01), offset: t(0.2), exponent: t(0.5), periodic: t(0.004, -1), peakHeight: t(0.03), aperiodicInBand: t(0.3), lowerFlank: null, upperFlank: t(0.4), tilt: null, relative: t(0.02) };
+  const family = [
+    { test: 'periodic', p: 0.004, threshold: 0.05 / 3, adjustedP: 0.012, passed: true },
+    { test: 'offset', p: 0.2, threshold: 0.05 / 3, adjustedP: 0.6, passed: false },
+    { test: 'exponent', p: 0.5, threshold: 0.05 / 3, adjustedP: 1, passed: false },
+  ];
+  return { kind: 'band-check', contrast, band: sigma, tests, family, flanks: { lower: null, upper: { name: 'upper flank', loHz: 16.25, hiHz: 20 }, widthHz: 4, note: 'no room for a lower flank inside the fit range 12–40 Hz' }, p: 0.012, n: { control: 10, patient: 10 }, verdict: 'band-specific' } as unknown as BandCheckResult;
+}
+
+describe('band check table and ledger', () => {
+  it('effects in the fixed order; adjusted p only for the three deciding tests; a missing flank says why', () => {
+    const rows = effectRows(fakeResult());
+    expect(rows.map((r) => r.effect)).toEqual(EFFECTS.map((e) => e.label));
+    const deciding = rows.filter((r) => r.decides);
+    expect(deciding.map((r) => r.effect)).toEqual(['aperiodic offset', 'aperiodic exponent', 'periodic residual']);
+    for (const r of deciding) expect(r.p_adjusted).toBeCloseTo(Math.min(1, 3 * Number(r.p)), 12);
+    expect(rows.filter((r) => !r.decides).every((r) => r.p_adjusted === null)).toBe(true);
+    const lower = rows.find((r) => r.effect === 'lower flank')!;
+    expect(lower.size).toBeNull();
+    expect(lower.measure).toContain('no room for a lower flank');
+  });
+
+  it('browser ledger counts equal src/core/report ledgerCounts; a band check entry records its band and adjusted p', () => {
+    const entry = bandCheckLedgerEntry(fakeResult(), 2, '2026-01-01T00:00:00.000Z');
+    expect(entry).toEqual({ time: '2026-01-01T00:00:00.000Z', kind: 'band-check', contrast: { ...contrast, band: sigma }, smallestP: 0.012, n: { control: 10, patient: 10 }, exclusions: 2 });
+    const contrastEntry = (p: number | null): LedgerEntry => ({ time: 'x', contrast, smallestP: p, n: {}, exclusions: 0 });
+    const list: LedgerEntry[] = [contrastEntry(0.001), contrastEntry(null), contrastEntry(0.05), entry];
+    expect(list.map(entryKind)).toEqual(['compare', 'compare', 'compare', 'band-check']);
+    const core = ledgerCounts(
+      list.map((e) => ({ database: 'd', kind: entryKind(e), significant: e.smallestP !== null && e.smallestP < 0.05 })),
+      'd',
+    );
+    expect(browserLedgerCounts(list)).toEqual(core);
+    expect(core).toEqual({ analyses: 4, significant: 2, byKind: { compare: 3, 'band-check': 1 } });
+  });
+});
+
+describe('report inputs', () => {
+  it('reads a band-check or compare result JSON and refuses anything else, naming the file', () => {
+    const r = parseResultJson(JSON.stringify({ kind: 'band-check', contrast, exclusions: [] }), 'sigma.json');
+    expect(r.kind).toBe('band-check');
+    expect(() => parseResultJson('{', 'x.json')).toThrow(/x.json: cannot be read as JSON/);
+    expect(() => parseResultJson(JSON.stringify({ kind: 'report', contrast }), 'y.json')).toThrow(ResultFileError);
+    expect(() => parseResultJson(JSON.stringify({ kind: 'compare', exclusions: [] }), 'z.json')).toThrow(/z.json: no "contrast" object/);
+  });
+
+  it('Markdown blocks: headings, lists and paragraphs, emphasis markers dropped for the screen', () => {
+    const md = '# Methods: band check of sigma\n\n*bandwise is a research tool.*\n\n## Result\n\nVerdict: **band-specific** (rule 2b).\n\n- a: 1\n- b: 2\n';
+    expect(markdownBlocks(md)).toEqual([
+      { kind: 'h1', text: 'Methods: band check of sigma' },
+      { kind: 'p', text: 'bandwise is a research tool.' },
+      { kind: 'h2', text: 'Result' },
+      { kind: 'p', text: 'Verdict: band-specific (rule 2b).' },
+      { kind: 'ul', items: ['a: 1', 'b: 2'] },
+    ]);
+  });
+});
