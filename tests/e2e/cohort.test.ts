@@ -91,7 +91,7 @@ describe('dashboard in chromium: cohort view', () => {
       .poll(() => page.getByTestId('group-sizes').locator('tbody tr td:first-child').allInnerTexts())
       .toEqual(['F', 'M']);
     await page.getByRole('link', { name: 'Quality screen' }).click();
-    await page.getByTestId('planned-view').waitFor();
+    await page.getByTestId('quality-view').waitFor();
     expect(new URL(page.url()).hash).toBe('#/quality');
     expect(await page.getByTestId('research-note').isVisible()).toBe(true);
     await page.goBack();
@@ -134,7 +134,7 @@ describe('dashboard in chromium: cohort view', () => {
   it('opens a picked database file without the server', async () => {
     const { page } = s;
     const before = s.requests.length;
-    await page.locator('input[type=file]').setInputFiles(dbPath);
+    await page.locator('input[type=file][accept=".duckdb,.db"]').setInputFiles(dbPath);
     await expect.poll(() => page.locator('.source span').first().innerText()).toBe('fixture.duckdb');
     await page.getByTestId('group-sizes').locator('tbody tr').first().waitFor();
     expect(await page.getByTestId('group-sizes').locator('tbody tr').count()).toBe(2);
@@ -151,7 +151,7 @@ describe('dashboard in chromium: cohort view', () => {
     await page.goto(`${s.server.url}#/cohort`);
     await page.getByRole('region', { name: 'Open a database file' }).waitFor();
     expect(await page.getByTestId('research-note').isVisible()).toBe(true);
-    await page.locator('input[type=file]').setInputFiles(dbPath);
+    await page.locator('input[type=file][accept=".duckdb,.db"]').setInputFiles(dbPath);
     await page.getByTestId('group-sizes').locator('tbody tr').first().waitFor();
     expect(await page.getByTestId('group-sizes').locator('tbody tr td:first-child').allInnerTexts()).toEqual(['control', 'patient']);
     await page.close();
