@@ -109,7 +109,7 @@ export const DEFAULT_INGEST_PARAMS: Readonly<IngestParams> = {
   minEpochs: DEFAULT_MIN_EPOCHS,
   bands: DEFAULT_BANDS.map((b) => ({ ...b })),
   bandMethod: 'mean',
-  fit: { fitRangeHz: [1, 40], aperiodicMode: 'power-law' },
+  fit: { fitRangeHz: [1, 40], aperiodicForm: 'power-law' },
   irasa: null,
   quality: {
     clippingMaxFraction: 0.001,

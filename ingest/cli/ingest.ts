@@ -124,7 +124,7 @@ function toParams(f: Flags): Partial<IngestParams> {
     minEpochs: f.minEpochs,
     bands: f.band ? (Array.isArray(f.band) ? f.band : [f.band]).map(parseBand) : D.bands,
     bandMethod: f.bandMethod,
-    fit: f.fit === false ? null : { fitRangeHz: f.fitRange, aperiodicMode: f.knee ? 'knee' : 'power-law' },
+    fit: f.fit === false ? null : { fitRangeHz: f.fitRange, aperiodicForm: f.knee ? 'knee' : 'power-law' },
     irasa: f.irasa ? {} : null,
     quality: { ...D.quality, lineHz: (f.lineFreq as 50 | 60 | undefined) ?? null },
   };

@@ -40,7 +40,7 @@ describe('joint fit agrees with scipy.optimize.curve_fit', () => {
     let refitted = 0;
     cases.forEach(({ seed, nAv: n }, i) => {
       const c = simulatedCase(seed, n);
-      const { problem, params, refits } = solveSpectrum(c.freqsHz, c.power, { aperiodicMode: c.mode });
+      const { problem, params, refits } = solveSpectrum(c.freqsHz, c.power, { aperiodicForm: c.mode });
       if (refits > 0) refitted++;
       arrays[`f${i}`] = problem.freqsHz;
       arrays[`y${i}`] = problem.log10Power;

@@ -35,14 +35,14 @@ describe('aperiodic + peak fit: bad input and edge cases', () => {
     expect(() => fitSpectrum(freqs, clean(), { fitRangeHz: [0, 20] })).toThrow(/fitRangeHz: invalid range/);
     expect(() => fitSpectrum(freqs, clean().subarray(1))).toThrow(/length 239 differs/);
     expect(() => fitSpectrum(freqs, clean(), { peakWidthHz: [2, 1] })).toThrow(/peakWidthHz/);
-    expect(() => fitSpectrum(freqs, clean(), { aperiodicMode: 'curved' as never })).toThrow(/aperiodicMode/);
+    expect(() => fitSpectrum(freqs, clean(), { aperiodicForm: 'curved' as never })).toThrow(/aperiodicForm/);
   });
 
   it('a flat spectrum gives exponent ≈ 0, offset = log10 of the level and no peaks', () => {
     // white noise of 4 µV²/Hz with the noise of 3195 averaged segments (σ ≈ 0.008 log10)
     const p = simulateSpectrum({ aperiodic: { offset: Math.log10(4), exponent: 0, knee: 0 }, peaks: [] }, freqs, 3195, new Random(5));
     for (const mode of ['power-law', 'knee'] as const) {
-      const fit = fitSpectrum(freqs, p, { aperiodicMode: mode });
+      const fit = fitSpectrum(freqs, p, { aperiodicForm: mode });
       expect(Math.abs(fit.exponent)).toBeLessThan(0.01);
       expect(fit.peaks).toHaveLength(0);
       if (mode === 'power-law') expect(fit.offset).toBeCloseTo(Math.log10(4), 2);

@@ -20,7 +20,7 @@ describe('aperiodic + peak fit: recovery of simulated parameters', () => {
     let peaksTotal = 0;
     for (let seed = 1; seed <= CASES; seed++) {
       const c = simulatedCase(seed, nAveraged);
-      const fit = fitSpectrum(c.freqsHz, c.power, { aperiodicMode: c.mode });
+      const fit = fitSpectrum(c.freqsHz, c.power, { aperiodicForm: c.mode });
       const problems: string[] = [];
       const dExp = fit.exponent - c.truth.aperiodic.exponent;
       const dOff = fit.offset - c.truth.aperiodic.offset;

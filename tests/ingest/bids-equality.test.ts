@@ -24,7 +24,7 @@ const dir = mkdtempSync(path.join(tmpdir(), 'bw-bids-eq-'));
 const tableDb = path.join(dir, 'table.duckdb');
 const bidsDb = path.join(dir, 'bids.duckdb');
 const bidsRoot = path.join(dir, 'bids');
-const params: Partial<IngestParams> = { references: ['recorded', 'linked-mastoids'], fit: { fitRangeHz: [1, 40], aperiodicMode: 'power-law', maxPeaks: 2 } };
+const params: Partial<IngestParams> = { references: ['recorded', 'linked-mastoids'], fit: { fitRangeHz: [1, 40], aperiodicForm: 'power-law', maxPeaks: 2 } };
 let tableSummary: IngestSummary;
 let bidsSummary: IngestSummary;
 let tableText = '';

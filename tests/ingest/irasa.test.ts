@@ -17,7 +17,7 @@ describe('IRASA at ingest (on request)', () => {
     const labels = ['EEG C3', 'EEG C4', 'EEG M1', 'EEG M2'];
     const stages = await writeFixtureEdf(file, { seed: 9, fsHz: 128, nEpochs: 24, labels, artifactEpochs: [9] });
     const rec: CohortRecording = { row: 1, subject: 's1', session: null, group: null, recordingPath: file, scoringPath: null, covariates: {} };
-    const bundle = await processRecording(rec, resolveIngestParams({ fit: { fitRangeHz: [1, 30], aperiodicMode: 'power-law' }, irasa: {}, minEpochs: 2 }));
+    const bundle = await processRecording(rec, resolveIngestParams({ fit: { fitRangeHz: [1, 30], aperiodicForm: 'power-law' }, irasa: {}, minEpochs: 2 }));
     const irasaRows = bundle.aperiodic.filter((a) => a.method === 'irasa');
     const scored = [...new Set(stages)];
     expect(irasaRows.length).toBe(labels.length * scored.length);

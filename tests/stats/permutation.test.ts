@@ -77,7 +77,7 @@ describe('exact permutation p-values on a tiny design', () => {
     // cluster size as the statistic: the same two relabellings give a 3-point cluster
     const bySize = runContrast(
       { channels: ['Cz'], freqsHz: [1, 2, 3], data, design: { kind: 'groups', group: [0, 0, 0, 1, 1, 1] } },
-      { permutations: 1000, clusterStatistic: 'size' },
+      { permutations: 1000, clusterMeasure: 'size' },
     );
     expect(bySize.clusters.map((c) => [c.size, c.p])).toEqual([[3, 0.1]]);
   });

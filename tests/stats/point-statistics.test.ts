@@ -100,7 +100,7 @@ function close(actual: ArrayLike<number> | number, expected: number[], what: str
   }
 }
 
-const quick = { clusterStatistic: 'none' as const, permutations: 10 };
+const quick = { clusterMeasure: 'none' as const, permutations: 10 };
 
 describe('point statistics equal scipy.stats', () => {
   it('Welch t, Welch–Satterthwaite df and p (ttest_ind, equal_var=False), group 1 minus group 0', () => {

@@ -56,7 +56,7 @@ function subjectRows(subject: string, b: SubjectBase, scenario: ScenarioName | '
     { centerHz: 13.5, height: Math.max(0, fastHeight), widthHz: 1 },
   ];
   const power = simulateSpectrum({ aperiodic: { offset, exponent, knee: 0 }, peaks }, freqs, 1000, new Random(b.noiseSeed));
-  const fit = fitSpectrum(freqs, power, { fitRangeHz: FIT_RANGE_HZ, aperiodicMode: 'power-law' });
+  const fit = fitSpectrum(freqs, power, { fitRangeHz: FIT_RANGE_HZ, aperiodicForm: 'power-law' });
   const key = { subject, session: null, channel: 'Cz', stage: 'N2' as const };
   const spectrum: SpectrumRow = { ...key, nEpochs: 60, flagged: false, flagReason: null, power: Float32Array.from(power) };
   const aperiodic: AperiodicRow = { ...key, offset: fit.offset, exponent: fit.exponent, knee: fit.knee };

@@ -38,7 +38,7 @@ export function statsOptions(c: Contrast): ContrastOptions {
     permutations: c.permutations,
     seed: c.seed,
     clusterP: c.clusterP,
-    clusterStatistic: c.correction === 'cluster-size' ? 'size' : c.correction === 'cluster-mass' ? 'mass' : 'none',
+    clusterMeasure: c.correction === 'cluster-size' ? 'size' : c.correction === 'cluster-mass' ? 'mass' : 'none',
     tfce: c.correction === 'tfce' ? (c.tfce ?? true) : false,
   };
 }

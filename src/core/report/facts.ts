@@ -14,7 +14,7 @@ export interface IngestParameterFacts {
   bipolarPairs: string[];
   rejection: { maxPeakToPeakUv: number; flatSdUv: number; flatRunS: number; outlierZ: number; broadbandHz: [number, number]; muscleHz: [number, number] };
   minEpochs: number;
-  fit: { fitRangeHz: [number, number]; aperiodicMode?: string; maxPeaks?: number; peakWidthHz?: [number, number]; minPeakHeight?: number; peakThresholdSd?: number } | null;
+  fit: { fitRangeHz: [number, number]; aperiodicForm?: string; maxPeaks?: number; peakWidthHz?: [number, number]; peakMinHeight?: number; peakThresholdSd?: number } | null;
 }
 
 export interface StageEpochCounts {

@@ -131,7 +131,7 @@ function aperiodicSection(f: IngestParameterFacts, facts: DatabaseFacts | null, 
   const stated = ranges.length === 1 ? `${hz(ranges[0])} for every subject (as stored)` : ranges.length > 1 ? `ranges ${ranges.map(hz).join(', ')} (several stored)` : hz(f.fit.fitRangeHz);
   let s =
     `Each stored stage spectrum was decomposed into an aperiodic component and Gaussian peaks (Donoghue et al. 2020): log10 P(f) = b − log10(k + f^χ) + Σ h·exp(−(f − c)²/(2w²)), with offset b, exponent χ and knee k ` +
-    `(${f.fit.aperiodicMode === 'knee' ? 'knee fitted' : 'k = 0, a plain power law'}), fitted over ${stated}` +
+    `(${f.fit.aperiodicForm === 'knee' ? 'knee fitted' : 'k = 0, a plain power law'}), fitted over ${stated}` +
     (f.fit.maxPeaks !== undefined ? ` with at most ${f.fit.maxPeaks} peaks` : '') +
     '. The residual spectrum is log10 power minus the fitted aperiodic component.';
   if (c.aperiodicMethod === 'irasa') {
@@ -187,7 +187,7 @@ function compareStatistics(r: CompareResult, refs: Set<ReferenceKey>): { text: s
     `The measure was ${r.measure}, over ${c.fminHz}–${c.fmaxHz} Hz in ${channelText(c, s.channels.length === 1 && c.channelAverage ? [s.channels[0]] : s.channels)}. ` +
     `The point statistic was ${STATISTIC_WORDS[s.statistic] ?? s.statistic} at every ${s.channels.length > 1 ? 'channel × frequency point' : 'frequency point'}. ${corr} ` +
     `Effect sizes are ${s.effect.kind === 'hedges-g' ? "Hedges' g with a large-sample interval (Hedges & Olkin 1985)" : 'correlations with a Fisher z interval (Fisher 1921)'} at the ${g3(s.effect.level * 100)} % level.`;
-  const json = { statistic: s.statistic, correction: c.correction, clusterP: c.clusterP, threshold: s.threshold, clusterStatistic: s.clusterStatistic, tfce: s.tfce ? { E: s.tfce.E, H: s.tfce.H, dh: s.tfce.dh } : null, permutations: s.permutations, exact: s.exact, seed: s.seed, pValueRule: s.pValueRule, effectSize: s.effect.kind, confidenceLevel: s.effect.level, channels: s.channels, frequencyAdjacency: s.frequencyAdjacency, spatialNeighbours: s.channelNeighbours !== null };
+  const json = { statistic: s.statistic, correction: c.correction, clusterP: c.clusterP, threshold: s.threshold, clusterMeasure: s.clusterMeasure, tfce: s.tfce ? { E: s.tfce.E, H: s.tfce.H, dh: s.tfce.dh } : null, permutations: s.permutations, exact: s.exact, seed: s.seed, pValueRule: s.pValueRule, effectSize: s.effect.kind, confidenceLevel: s.effect.level, channels: s.channels, frequencyAdjacency: s.frequencyAdjacency, spatialNeighbours: s.channelNeighbours !== null };
   return { text, json };
 }
 
@@ -223,7 +223,7 @@ function bandStatistics(r: BandCheckResult, refs: Set<ReferenceKey>): { text: st
     `The verdict rests on the periodic, offset and exponent tests, Bonferroni-corrected at α = ${r.alpha} (each passes at p ≤ ${g3(r.alpha / 3)}); the aperiodic level in the band, the flanks and their difference tell the kinds of a passing aperiodic effect apart (rules in the bandwise README). ` +
     `To show how far the effect extends, log10 PSD over ${c.fminHz}–${c.fmaxHz} Hz was tested at every frequency with cluster-based permutation (Maris & Oostenveld 2007; |t| above ${g3(fw.threshold.t)}, two-tailed p = ${c.clusterP} with ${fw.threshold.df} degrees of freedom; ${pRule(t.raw)}). ` +
     `Effect sizes are ${t.raw.effectKind === 'hedges-g' ? "Hedges' g with a large-sample interval (Hedges & Olkin 1985)" : 'correlations with a Fisher z interval (Fisher 1921)'} at the ${g3(t.raw.level * 100)} % level.`;
-  const json = { statistic: t.raw.statistic, permutations: t.raw.permutations, exact: t.raw.exact, seed: r.seed, alpha: r.alpha, decisionCorrection: 'bonferroni', family: r.family, flanks: r.flanks, relativeDenominatorHz: r.normalisation.denominatorHz, frequencyWise: { correction: c.correction, clusterP: c.clusterP, threshold: fw.threshold, clusterStatistic: fw.clusterStatistic, pValueRule: fw.pValueRule, fminHz: c.fminHz, fmaxHz: c.fmaxHz }, effectSize: t.raw.effectKind, confidenceLevel: t.raw.level, channels: r.channels };
+  const json = { statistic: t.raw.statistic, permutations: t.raw.permutations, exact: t.raw.exact, seed: r.seed, alpha: r.alpha, decisionCorrection: 'bonferroni', family: r.family, flanks: r.flanks, relativeDenominatorHz: r.normalisation.denominatorHz, frequencyWise: { correction: c.correction, clusterP: c.clusterP, threshold: fw.threshold, clusterMeasure: fw.clusterMeasure, pValueRule: fw.pValueRule, fminHz: c.fminHz, fmaxHz: c.fmaxHz }, effectSize: t.raw.effectKind, confidenceLevel: t.raw.level, channels: r.channels };
   return { text, json };
 }
 

@@ -1,6 +1,6 @@
 import { aperiodicLog10, modelLog10, type AperiodicParams } from './aperiodic-model.ts';
 import { SpectrumFitError } from './fit-error.ts';
-import { aperiodicCount, jointFit, unpackParams, type AperiodicMode, type JointFitProblem } from './joint-fit.ts';
+import { aperiodicCount, jointFit, unpackParams, type AperiodicForm, type JointFitProblem } from './joint-fit.ts';
 import { FWHM_PER_SD, dropOverlappingPeaks, findPeaks } from './peaks.ts';
 import { fitPowerLawLine } from './power-law-line.ts';
 
@@ -11,7 +11,7 @@ import { fitPowerLawLine } from './power-law-line.ts';
  * Steps: (1) robust initial aperiodic fit (fit, keep the points whose residual is below a
  * percentile, refit); (2) iterative peak search on the flattened spectrum; (3) edge and overlap
  * removal (peaks.ts); (4) one joint bounded least-squares fit of all parameters (joint-fit.ts),
- * repeated without any peak the fit shrank below minPeakHeight (its centre and width are then not
+ * repeated without any peak the fit shrank below peakMinHeight (its centre and width are then not
  * determined by the data) and without the lower of two fitted peaks that overlap by the rule of
  * step 3 (one peak split in two); (5) R² and RMSE of the full model
  * over the fit range. The defaults are our own choices for
@@ -21,13 +21,13 @@ export interface SpectrumFitOptions {
   /** Frequency range fitted, Hz, both ends included (default [1, 40]). */
   fitRangeHz?: readonly [number, number];
   /** 'power-law' (knee fixed at 0) or 'knee' (knee k ≥ 0 fitted) (default 'power-law'). */
-  aperiodicMode?: AperiodicMode;
+  aperiodicForm?: AperiodicForm;
   /** Bounds on each peak's Gaussian width w (standard deviation), Hz (default [0.5, 6]). */
   peakWidthHz?: readonly [number, number];
   /** Most peaks fitted (default 6). */
   maxPeaks?: number;
   /** Smallest peak height found, log10(µV²/Hz) above the aperiodic fit (default 0.05). */
-  minPeakHeight?: number;
+  peakMinHeight?: number;
   /** Peak threshold, in robust SDs (1.4826 × MAD) of the flattened spectrum (default 2). */
   peakThresholdSd?: number;
   /** Peaks centred closer than this many widths w to an end of the fit range are dropped (default 1). */
@@ -67,10 +67,10 @@ export interface SpectrumFit {
 
 interface ResolvedOptions {
   fitRangeHz: readonly [number, number];
-  aperiodicMode: AperiodicMode;
+  aperiodicForm: AperiodicForm;
   peakWidthHz: readonly [number, number];
   maxPeaks: number;
-  minPeakHeight: number;
+  peakMinHeight: number;
   peakThresholdSd: number;
   edgeGuardSd: number;
   overlapSd: number;
@@ -79,10 +79,10 @@ interface ResolvedOptions {
 
 export const SPECTRUM_FIT_DEFAULTS: ResolvedOptions = {
   fitRangeHz: [1, 40],
-  aperiodicMode: 'power-law',
+  aperiodicForm: 'power-law',
   peakWidthHz: [0.5, 6],
   maxPeaks: 6,
-  minPeakHeight: 0.05,
+  peakMinHeight: 0.05,
   peakThresholdSd: 2,
   edgeGuardSd: 1,
   overlapSd: 1,
@@ -107,7 +107,7 @@ export function solveSpectrum(
   power: ArrayLike<number>,
   options: SpectrumFitOptions = {},
 ): { problem: PreparedFit; params: Float64Array; refits: number } {
-  const minHeight = options.minPeakHeight ?? SPECTRUM_FIT_DEFAULTS.minPeakHeight;
+  const minHeight = options.peakMinHeight ?? SPECTRUM_FIT_DEFAULTS.peakMinHeight;
   const overlapSd = options.overlapSd ?? SPECTRUM_FIT_DEFAULTS.overlapSd;
   let problem = prepareFit(freqsHz, power, options);
   let params = jointFit(problem);
@@ -156,14 +156,14 @@ export function prepareFit(freqsHz: ArrayLike<number>, power: ArrayLike<number>,
   const o = resolveOptions(options);
   const [lo, hi] = o.fitRangeHz;
   const { freqs, logPower } = selectRange(freqsHz, power, lo, hi);
-  const mode = o.aperiodicMode;
+  const mode = o.aperiodicForm;
   const initial = robustAperiodicFit(freqs, logPower, mode, o.aperiodicPercentile);
   const flattened = new Float64Array(freqs.length);
   for (let i = 0; i < freqs.length; i++) flattened[i] = logPower[i] - aperiodicLog10(freqs[i], initial);
   const peaks = findPeaks(freqs, flattened, {
     widthHz: o.peakWidthHz,
     maxPeaks: o.maxPeaks,
-    minHeight: o.minPeakHeight,
+    minHeight: o.peakMinHeight,
     thresholdSd: o.peakThresholdSd,
     edgeGuardSd: o.edgeGuardSd,
     overlapSd: o.overlapSd,
@@ -239,13 +239,13 @@ function resolveOptions(options: SpectrumFitOptions): ResolvedOptions {
   if (!(Number.isFinite(lo) && Number.isFinite(hi) && lo > 0 && hi > lo)) {
     throw new SpectrumFitError(`fitRangeHz: invalid range [${lo}, ${hi}] Hz (need 0 < lo < hi)`);
   }
-  if (o.aperiodicMode !== 'power-law' && o.aperiodicMode !== 'knee') {
-    throw new SpectrumFitError(`aperiodicMode: invalid value '${String(o.aperiodicMode)}' (power-law or knee)`);
+  if (o.aperiodicForm !== 'power-law' && o.aperiodicForm !== 'knee') {
+    throw new SpectrumFitError(`aperiodicForm: invalid value '${String(o.aperiodicForm)}' (power-law or knee)`);
   }
   const [wMin, wMax] = o.peakWidthHz;
   if (!(wMin > 0 && wMax >= wMin && Number.isFinite(wMax))) throw new SpectrumFitError(`peakWidthHz: invalid bounds [${wMin}, ${wMax}] Hz`);
   if (!(Number.isInteger(o.maxPeaks) && o.maxPeaks >= 0)) throw new SpectrumFitError(`maxPeaks: invalid value ${o.maxPeaks}`);
-  if (!(o.minPeakHeight >= 0)) throw new SpectrumFitError(`minPeakHeight: invalid value ${o.minPeakHeight}`);
+  if (!(o.peakMinHeight >= 0)) throw new SpectrumFitError(`peakMinHeight: invalid value ${o.peakMinHeight}`);
   if (!(o.peakThresholdSd >= 0)) throw new SpectrumFitError(`peakThresholdSd: invalid value ${o.peakThresholdSd}`);
   if (!(o.edgeGuardSd >= 0)) throw new SpectrumFitError(`edgeGuardSd: invalid value ${o.edgeGuardSd}`);
   if (!(o.overlapSd >= 0)) throw new SpectrumFitError(`overlapSd: invalid value ${o.overlapSd}`);
@@ -299,7 +299,7 @@ function selectRange(freqsHz: ArrayLike<number>, power: ArrayLike<number>, lo: n
  * Step 1: fit the aperiodic part to all points, keep the points whose residual is at or below
  * the given percentile (the flat parts between peaks), refit to those.
  */
-function robustAperiodicFit(freqs: Float64Array, logPower: Float64Array, mode: AperiodicMode, percentile: number): AperiodicParams {
+function robustAperiodicFit(freqs: Float64Array, logPower: Float64Array, mode: AperiodicForm, percentile: number): AperiodicParams {
   const first = aperiodicOnly(freqs, logPower, mode);
   const n = freqs.length;
   const residual = new Float64Array(n);
@@ -321,7 +321,7 @@ function robustAperiodicFit(freqs: Float64Array, logPower: Float64Array, mode: A
 }
 
 /** The aperiodic part alone: a straight line in log-log (power-law) or a 3-parameter fit (knee). */
-function aperiodicOnly(freqs: Float64Array, logPower: Float64Array, mode: AperiodicMode): AperiodicParams {
+function aperiodicOnly(freqs: Float64Array, logPower: Float64Array, mode: AperiodicForm): AperiodicParams {
   const line = fitPowerLawLine(freqs, logPower);
   if (mode === 'power-law') return line;
   // knee start: knee frequency at the geometric centre of the range, k = f_k^χ

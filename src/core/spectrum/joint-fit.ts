@@ -9,13 +9,13 @@ import { boundedLeastSquares } from './bounded-least-squares.ts';
  * Parameter vector layout:
  *   power-law: [offset, exponent, c₁, h₁, w₁, c₂, …]      knee: [offset, knee, exponent, c₁, h₁, w₁, …]
  */
-export type AperiodicMode = 'power-law' | 'knee';
+export type AperiodicForm = 'power-law' | 'knee';
 
 export interface JointFitProblem {
   freqsHz: Float64Array;
   /** log10 power at freqsHz, log10(µV²/Hz). */
   log10Power: Float64Array;
-  mode: AperiodicMode;
+  mode: AperiodicForm;
   start: Float64Array;
   lower: Float64Array;
   upper: Float64Array;
@@ -24,12 +24,12 @@ export interface JointFitProblem {
 const LN10 = Math.LN10;
 
 /** Number of aperiodic parameters for a mode (2 or 3). */
-export function aperiodicCount(mode: AperiodicMode): number {
+export function aperiodicCount(mode: AperiodicForm): number {
   return mode === 'knee' ? 3 : 2;
 }
 
 /** Splits a parameter vector into the model's aperiodic and peak parameters. */
-export function unpackParams(p: ArrayLike<number>, mode: AperiodicMode): { aperiodic: AperiodicParams; peaks: PeakParams[] } {
+export function unpackParams(p: ArrayLike<number>, mode: AperiodicForm): { aperiodic: AperiodicParams; peaks: PeakParams[] } {
   const knee = mode === 'knee';
   const aperiodic = { offset: p[0], knee: knee ? p[1] : 0, exponent: knee ? p[2] : p[1] };
   const peaks: PeakParams[] = [];

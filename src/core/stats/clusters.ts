@@ -113,8 +113,3 @@ export function findClusters(stat: Float64Array, threshold: number, work: Cluste
   }
   return [...byRoot.values()].sort((a, b) => Math.abs(b.mass) - Math.abs(a.mass));
 }
-
-/** The cluster statistic of a cluster under a measure (mass or size). */
-export function clusterStatistic(c: Cluster, measure: ClusterMeasure): number {
-  return measure === 'mass' ? c.mass : c.sign * c.size;
-}

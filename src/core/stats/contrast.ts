@@ -156,8 +156,8 @@ export function prepareContrast(input: ContrastInput, options: ContrastOptions =
   if (!(clusterP > 0 && clusterP < 1)) fail('options.clusterP', clusterP, 'must lie in (0, 1)');
   if (!Number.isInteger(permutations) || permutations < 1) fail('options.permutations', permutations, 'must be a positive integer');
   if (!Number.isFinite(seed)) fail('options.seed', seed, 'must be a finite number');
-  const clusterStatistic = options.clusterStatistic ?? 'mass';
-  if (!['mass', 'size', 'none'].includes(clusterStatistic)) fail('options.clusterStatistic', clusterStatistic, 'expected mass, size or none');
+  const clusterMeasure = options.clusterMeasure ?? 'mass';
+  if (!['mass', 'size', 'none'].includes(clusterMeasure)) fail('options.clusterMeasure', clusterMeasure, 'expected mass, size or none');
   const frequencyAdjacency = options.frequencyAdjacency ?? true;
   const level = options.confidenceLevel ?? 0.95;
   if (!(level > 0 && level < 1)) fail('options.confidenceLevel', level, 'must lie in (0, 1)');
@@ -187,9 +187,9 @@ export function prepareContrast(input: ContrastInput, options: ContrastOptions =
   const edges = pointGraphEdges(channels.length, freqsHz.length, { channelNeighbours, frequency: frequencyAdjacency });
   const threshold = twoTailedCriticalT(clusterP, kernel.df);
   const tfce = tfceParameters(options.tfce);
-  const test: PermutationTest = { kernel, scheme: makeScheme(kernel.scheme, n, permutations, seed, labels), edges, threshold, clusterStatistic, tfce };
+  const test: PermutationTest = { kernel, scheme: makeScheme(kernel.scheme, n, permutations, seed, labels), edges, threshold, clusterMeasure, tfce };
 
-  const observedClusters = clusterStatistic === 'none' ? [] : findClusters(stat, threshold, new ClusterWork(P, edges));
+  const observedClusters = clusterMeasure === 'none' ? [] : findClusters(stat, threshold, new ClusterWork(P, edges));
   let tfceScore: Float64Array | null = null;
   if (tfce) {
     tfceScore = new Float64Array(P);
@@ -204,7 +204,7 @@ export function finishContrast(prepared: PreparedContrast, nulls: NullMaxima): C
   const { scheme } = test;
   if (nulls.from !== 0 || nulls.to !== scheme.count) throw new RangeError(`null maxima cover [${nulls.from}, ${nulls.to}), expected [0, ${scheme.count})`);
   const F = input.freqsHz.length;
-  const measure = test.clusterStatistic;
+  const measure = test.clusterMeasure;
   const clusters: ClusterResult[] = prepared.observedClusters.map((c) => {
     const observed = measure === 'size' ? c.size : Math.abs(c.mass);
     const chans = new Set<number>();
@@ -244,7 +244,7 @@ export function finishContrast(prepared: PreparedContrast, nulls: NullMaxima): C
     df: perPointDf ? Array.from(df) : kernelDf,
     pUncorrected: Array.from(stat, (t, p) => twoTailedP(t, df[p])),
     effect: effectResult(effect),
-    clusterStatistic: measure,
+    clusterMeasure: measure,
     clusters,
     permutations: scheme.count,
     exact: scheme.exact,

@@ -108,7 +108,7 @@ export interface ContrastOptions {
   /** two-tailed cluster-forming p (default 0.05) */
   clusterP?: number;
   /** cluster statistic: 'mass' (default, Σ t), 'size' (number of points) or 'none' (no clusters) */
-  clusterStatistic?: 'mass' | 'size' | 'none';
+  clusterMeasure?: 'mass' | 'size' | 'none';
   /** join neighbouring frequency bins in clusters (default true) */
   frequencyAdjacency?: boolean;
   /** TFCE on the same graph: true for E = 0.5, H = 2, dh = 0.1, or the parameters (default off) */
@@ -161,7 +161,7 @@ export interface ContrastResult {
   /** two-tailed p per point from the t distribution with `df` */
   pUncorrected: number[];
   effect: EffectResult;
-  clusterStatistic: 'mass' | 'size' | 'none';
+  clusterMeasure: 'mass' | 'size' | 'none';
   /** clusters, smallest p first (then largest |mass|) */
   clusters: ClusterResult[];
   tfce?: { score: number[]; pCorrected: number[]; E: number; H: number; dh: number };

@@ -18,7 +18,7 @@ export interface PermutationTest {
   edges: Int32Array;
   /** cluster-forming threshold |t| */
   threshold: number;
-  clusterStatistic: ClusterMeasure | 'none';
+  clusterMeasure: ClusterMeasure | 'none';
   tfce: TfceParameters | null;
 }
 
@@ -48,7 +48,7 @@ export function runPermutations(test: PermutationTest, range: PermutationRange, 
   const count = to - from;
   const P = kernel.nPoints;
   const n = kernel.nSubjects;
-  const cluster = test.clusterStatistic === 'none' ? null : new Float64Array(count);
+  const cluster = test.clusterMeasure === 'none' ? null : new Float64Array(count);
   const tfce = test.tfce ? new Float64Array(count) : null;
   const labels = new Int32Array(n);
   const work = new Int32Array(n);
@@ -62,7 +62,7 @@ export function runPermutations(test: PermutationTest, range: PermutationRange, 
   for (let i = from; i < to; i++) {
     relabelling(scheme, i, labels, work);
     kernel.computeNull(labels, stat, screen);
-    if (cluster) cluster[i - from] = maxClusterStatistic(stat, test.threshold, test.clusterStatistic as ClusterMeasure, clusterWork!);
+    if (cluster) cluster[i - from] = maxClusterStatistic(stat, test.threshold, test.clusterMeasure as ClusterMeasure, clusterWork!);
     if (tfce) tfce[i - from] = tfceScores(stat, test.tfce!, tfceWork!, score!);
     if (onProgress && ((i - from + 1) % every === 0 || i + 1 === to)) onProgress(i - from + 1, count);
   }

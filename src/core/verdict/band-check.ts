@@ -60,7 +60,7 @@ export interface FrequencyWise {
   clusters: CompareCluster[];
   /** cluster-forming threshold and p-value rule of the test */
   threshold: { p: number; t: number; df: number };
-  clusterStatistic: 'mass' | 'size' | 'none';
+  clusterMeasure: 'mass' | 'size' | 'none';
   pValueRule: string;
   /** clusters with p < α that overlap the band, and how far they reach */
   bandClusters: CompareCluster[];
@@ -222,7 +222,7 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
     effectKind: fw.statistics.effect.kind,
     clusters: fw.clusters,
     threshold: fw.statistics.threshold,
-    clusterStatistic: fw.statistics.clusterStatistic,
+    clusterMeasure: fw.statistics.clusterMeasure,
     pValueRule: fw.statistics.pValueRule,
     bandClusters: sig,
     extent: describeExtent(band, sig),

@@ -162,7 +162,7 @@ function scalarInput(v: ScalarValues): ContrastInput {
 /** The effect size of one value per subject with its interval, without permutations. */
 export function scalarEffect(v: ScalarValues, o: Pick<ScalarTestOptions, 'statistic' | 'confidenceLevel'>): Pick<ScalarTest, 'effectKind' | 'effect' | 'ciLow' | 'ciHigh' | 'level' | 'n'> {
   const input = scalarInput(v);
-  const e = prepareContrast(input, { statistic: o.statistic, permutations: 1, clusterStatistic: 'none', confidenceLevel: o.confidenceLevel }).effect;
+  const e = prepareContrast(input, { statistic: o.statistic, permutations: 1, clusterMeasure: 'none', confidenceLevel: o.confidenceLevel }).effect;
   return { effectKind: e.kind, effect: e.value[0], ciLow: e.ciLow[0], ciHigh: e.ciHigh[0], level: e.level, n: nPerGroup(input.design, v.values.length) };
 }
 
@@ -175,7 +175,7 @@ export function runScalarTest(v: ScalarValues, o: ScalarTestOptions): ScalarTest
     permutations: o.permutations,
     seed: o.seed,
     clusterP: ONE_POINT_CLUSTER_P,
-    clusterStatistic: 'mass',
+    clusterMeasure: 'mass',
     frequencyAdjacency: false,
     tfce: false,
     confidenceLevel: o.confidenceLevel,
