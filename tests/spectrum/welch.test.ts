@@ -40,16 +40,20 @@ describe('Welch PSD', () => {
   it('equals scipy.signal.welch to 1e-4 relative per bin across sampling rates and segment lengths', () => {
     // reference: scipy.signal.welch (scipy 1.17 on this machine), window hann, 50 % overlap,
     // detrend constant, density scaling, one-sided
-    const cases: { fs: number; segmentS: number; average: 'mean' | 'median' }[] = [
+    // (odd and even segment counts, power-of-two and other lengths, and one large DC offset: the
+    // mean path removes the mean in frequency, so an offset must not leak into other bins)
+    const cases: { fs: number; segmentS: number; average: 'mean' | 'median'; offset?: number }[] = [
       { fs: 128, segmentS: 4, average: 'mean' },
       { fs: 250, segmentS: 4, average: 'mean' },
       { fs: 256, segmentS: 2, average: 'mean' },
       { fs: 500, segmentS: 4, average: 'median' },
       { fs: 512, segmentS: 5, average: 'mean' },
       { fs: 200, segmentS: 3, average: 'median' },
+      { fs: 256, segmentS: 4, average: 'mean', offset: 5000 },
+      { fs: 250, segmentS: 3, average: 'mean', offset: -2000 },
     ];
     for (const [i, c] of cases.entries()) {
-      const x = noise(c.fs * 30, 11 + i);
+      const x = noise(c.fs * 30, 11 + i).map((v) => v + (c.offset ?? 0));
       const ours = welch(x, c.fs, { segmentS: c.segmentS, average: c.average });
       const ref = runPython<{ f: number[]; p: number[] }>(
         `from scipy.signal import welch\nx = numpy.fromfile(inputs['x'])\n` +

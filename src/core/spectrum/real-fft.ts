@@ -18,6 +18,7 @@ export class RealFftPower {
   private readonly chirpIm: Float64Array;
   private readonly chirpFft: number[];
   private readonly work: number[];
+  private readonly pair: number[];
 
   constructor(n: number) {
     if (!Number.isInteger(n) || n < 2) throw new Error(`invalid FFT length: ${n}`);
@@ -28,6 +29,7 @@ export class RealFftPower {
     this.fft = new FFT(m);
     this.spectrum = this.fft.createComplexArray();
     this.work = this.fft.createComplexArray();
+    this.pair = new Array<number>(2 * n).fill(0);
     this.chirpRe = new Float64Array(this.direct ? 0 : n);
     this.chirpIm = new Float64Array(this.direct ? 0 : n);
     this.chirpFft = this.direct ? [] : this.fft.createComplexArray();
@@ -83,6 +85,55 @@ export class RealFftPower {
     }
     this.fft.inverseTransform(a, s);
     for (let k = 0; k < this.nOut; k++) out[k] = a[2 * k] * a[2 * k] + a[2 * k + 1] * a[2 * k + 1];
+  }
+
+  /**
+   * The buffer to fill before pairTransform: two real sequences a, b of length n interleaved as
+   * one complex sequence z = a + i·b (z[2j] = a_j, z[2j+1] = b_j).
+   */
+  pairInput(): number[] {
+    return this.pair;
+  }
+
+  /**
+   * The full DFT Z_k, k = 0 … n−1 (interleaved re, im), of the complex sequence in pairInput().
+   * One complex transform serves two real sequences: A_k = (Z_k + conj Z_{n−k})/2 and
+   * B_k = (Z_k − conj Z_{n−k})/2i, hence |A_k|² + |B_k|² = (|Z_k|² + |Z_{n−k}|²)/2 (the
+   * two-for-one real FFT; Cooley, Lewis & Welch 1970). The returned array is reused.
+   */
+  pairTransform(): number[] {
+    const z = this.pair;
+    if (this.direct) {
+      this.fft.transform(this.spectrum, z);
+      return this.spectrum;
+    }
+    // Bluestein on complex input: Z_k = w_k · ((z·w) ⊛ conj(w))_k
+    const n = this.n;
+    const a = this.work;
+    a.fill(0);
+    for (let j = 0; j < n; j++) {
+      const re = z[2 * j];
+      const im = z[2 * j + 1];
+      a[2 * j] = re * this.chirpRe[j] - im * this.chirpIm[j];
+      a[2 * j + 1] = re * this.chirpIm[j] + im * this.chirpRe[j];
+    }
+    const s = this.spectrum;
+    this.fft.transform(s, a);
+    const b = this.chirpFft;
+    for (let i = 0; i < s.length; i += 2) {
+      const re = s[i] * b[i] - s[i + 1] * b[i + 1];
+      const im = s[i] * b[i + 1] + s[i + 1] * b[i];
+      s[i] = re;
+      s[i + 1] = im;
+    }
+    this.fft.inverseTransform(a, s);
+    for (let k = 0; k < n; k++) {
+      const re = a[2 * k];
+      const im = a[2 * k + 1];
+      a[2 * k] = re * this.chirpRe[k] - im * this.chirpIm[k];
+      a[2 * k + 1] = re * this.chirpIm[k] + im * this.chirpRe[k];
+    }
+    return a;
   }
 }
 

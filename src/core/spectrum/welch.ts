@@ -112,11 +112,57 @@ export class Welch {
     return count;
   }
 
-  /** Adds each segment's density into sum (length nBins). Returns the number of segments. */
+  /**
+   * Adds each segment's density into sum (length nBins). Returns the number of segments.
+   * The same estimate as forEachSegment, formed with less work: segments go through one complex
+   * transform in pairs (RealFftPower.pairTransform), an odd last one paired with zeros; the mean
+   * is removed by zeroing the DC bin of the raw transform, and the periodic Hann window is applied
+   * in frequency as the exact 3-tap convolution X_w[k] = ½X[k] − ¼X[k−1] − ¼X[k+1] (indices
+   * mod n; Harris 1978, Proc. IEEE 66:51–83).
+   */
   accumulate(x: ArrayLike<number>, start: number, length: number, sum: Float64Array): number {
-    return this.forEachSegment(x, start, length, (psd) => {
-      for (let k = 0; k < psd.length; k++) sum[k] += psd[k];
-    });
+    const count = this.segmentCount(length);
+    const n = this.nPerSeg;
+    const z = this.fft.pairInput();
+    const raw = this.segment;
+    raw.fill(0);
+    for (let s = 0; s < count; s += 2) {
+      const oa = start + s * this.step;
+      const ob = oa + this.step;
+      if (s + 1 < count) {
+        for (let i = 0; i < n; i++) {
+          z[2 * i] = x[oa + i];
+          z[2 * i + 1] = x[ob + i];
+        }
+      } else {
+        for (let i = 0; i < n; i++) {
+          z[2 * i] = x[oa + i];
+          z[2 * i + 1] = 0;
+        }
+      }
+      const y = this.fft.pairTransform();
+      y[0] = 0; // detrend 'constant': the DC bin of a zero-mean segment is 0
+      y[1] = 0;
+      for (let k = 0; k < this.nBins; k++) {
+        const km = k === 0 ? n - 1 : k - 1;
+        const kp = k === n - 1 ? 0 : k + 1;
+        // windowed Z_k, and Z_{n−k} (neighbours of n−k are n−k∓1)
+        const re = 0.5 * y[2 * k] - 0.25 * (y[2 * km] + y[2 * kp]);
+        const im = 0.5 * y[2 * k + 1] - 0.25 * (y[2 * km + 1] + y[2 * kp + 1]);
+        const m = k === 0 ? 0 : n - k;
+        const mm = m === 0 ? n - 1 : m - 1;
+        const mp = m === n - 1 ? 0 : m + 1;
+        const re2 = 0.5 * y[2 * m] - 0.25 * (y[2 * mm] + y[2 * mp]);
+        const im2 = 0.5 * y[2 * m + 1] - 0.25 * (y[2 * mm + 1] + y[2 * mp + 1]);
+        raw[k] += 0.5 * (re * re + im * im + re2 * re2 + im2 * im2); // |A_k|² + |B_k|²
+      }
+    }
+    const evenNyquist = n % 2 === 0 ? n / 2 : -1;
+    for (let k = 0; k < this.nBins; k++) {
+      const doubled = k !== 0 && k !== evenNyquist; // one-sided: double all but DC and Nyquist
+      sum[k] += raw[k] * this.scale * (doubled ? 2 : 1);
+    }
+    return count;
   }
 
   /** Mean density over the segments of x[start … start+length) into out. Returns the count. */
