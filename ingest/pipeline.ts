@@ -148,7 +148,8 @@ export class PipelineError extends Error {
     message: string,
     options?: { cause?: unknown },
   ) {
-    super(file ? `${file}: ${message}` : message, options);
+    // the EDF reader's and the scoring readers' messages already start with the file
+    super(file && !message.startsWith(`${file}: `) ? `${file}: ${message}` : message, options);
   }
 }
 
