@@ -17,6 +17,7 @@ import { fileSha256, resolveIngestParams, type IngestParams, type PipelineProgre
 import { IngestPool, WorkerTaskError } from './pool.ts';
 import { openStore } from './store/database.ts';
 import { cohortQualityPass } from './store/merge.ts';
+import { sortSpectra } from './store/spectra-order.ts';
 
 export type { ShardSpec as Shard } from './cohort/shard.ts';
 
@@ -124,5 +125,6 @@ export async function runIngest(
   } finally {
     await pool.close();
     await store.close();
+    await sortSpectra(store); // rows of this and earlier runs in (stage, reference, averaging, recording, channel) order
   }
 }

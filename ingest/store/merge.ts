@@ -23,6 +23,7 @@ import { openStore, readHeaderStorageNumber } from './database.ts';
 import { canonicalJson } from './identity.ts';
 import { participantsCreateSql, quoteIdent, TABLES, type TableDef } from './schema.ts';
 import { appendColumns } from './chunks.ts';
+import { sortSpectra, SPECTRA_ORDER } from './spectra-order.ts';
 import type { Store } from './writer.ts';
 
 /** A merge that cannot be done, with the reason. */
@@ -135,6 +136,7 @@ async function mergeInto(store: Store, shardPaths: readonly string[], options: M
     }
   }).then(async (summary) => {
     summary.cohortQualityRows = await cohortQualityPass(store);
+    await sortSpectra(store); // a no-op check: the rows went in sorted
     return summary;
   });
 }
@@ -298,6 +300,12 @@ async function copyRecordings(c: DuckDBConnection, alias: string[], shown: reado
   }
   for (const name of RECORDING_TABLES) {
     const cols = columnList(table(name));
+    if (name === 'spectra') {
+      // one insert in the stored order (spectra-order.ts), so the merged file needs no rewrite
+      const parts = alias.map((a, i) => `SELECT ${cols} FROM ${a}.spectra WHERE recording_id IN (SELECT recording_id FROM merge_owner WHERE src = ${i})`);
+      await c.run(`INSERT INTO spectra (${cols}) SELECT ${cols} FROM (${parts.join(' UNION ALL ')}) ORDER BY ${SPECTRA_ORDER.map(quoteIdent).join(', ')}`);
+      continue;
+    }
     for (let i = 0; i < alias.length; i++) {
       const where = `recording_id IN (SELECT recording_id FROM merge_owner WHERE src = ${i})${name === 'quality' ? ` AND ${notCohort}` : ''}`;
       await c.run(`INSERT INTO ${name} (${cols}) SELECT ${cols} FROM ${alias[i]}.${name} WHERE ${where}`);

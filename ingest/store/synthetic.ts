@@ -17,6 +17,7 @@ import { electrodePosition } from '../../src/core/montage/positions.ts';
 import { drawRecording, syntheticParticipant, type SyntheticCohortSpec, type SyntheticRecording } from '../../src/core/simulate/synthetic-database.ts';
 import { appendColumns } from './chunks.ts';
 import { openStore } from './database.ts';
+import { sortSpectra } from './spectra-order.ts';
 import { StoreError } from './errors.ts';
 import { recordingIdFor } from './identity.ts';
 import { tableDef } from './schema.ts';
@@ -86,6 +87,7 @@ export async function writeSyntheticDatabase(file: string, spec: SyntheticCohort
       writeMs += performance.now() - tb;
       options.progress?.(start + recs.length, spec.recordings);
     }
+    await sortSpectra(store);
     await store.finishRun(runId);
   } finally {
     await store.close();
