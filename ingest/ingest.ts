@@ -120,11 +120,11 @@ export async function runIngest(
     await Promise.all(lanes);
     // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
     summary.cohortQualityRows = await cohortQualityPass(store);
+    await sortSpectra(store); // rows of this and earlier runs in (stage, reference, averaging, recording, channel) order
     await store.finishRun(runId);
     return summary;
   } finally {
     await pool.close();
     await store.close();
-    await sortSpectra(store); // rows of this and earlier runs in (stage, reference, averaging, recording, channel) order
   }
 }
