@@ -337,19 +337,40 @@ async function* readEpochs(
     acc += s.samplesPerRecord;
   }
   const chunkRecords = Math.max(1, Math.floor((opts.chunkBytes ?? DEFAULT_CHUNK_BYTES) / recB));
-  const chunkBuf = new ArrayBuffer(chunkRecords * recB); // own buffer: byteOffset 0, so the Int16Array view is aligned
-  const chunkU8 = new Uint8Array(chunkBuf);
-  const chunkI16 = new Int16Array(chunkBuf);
+  // Two chunk buffers: while one is decoded, the next chunk is read into the other, so the disk
+  // read overlaps the caller's work. Own buffers: byteOffset 0, so the Int16Array views are aligned.
+  const chunkBufs = [new ArrayBuffer(chunkRecords * recB), new ArrayBuffer(chunkRecords * recB)];
+  const chunkU8s = chunkBufs.map((b) => new Uint8Array(b));
+  const chunkI16s = chunkBufs.map((b) => new Int16Array(b));
+  let current = 0;
+  let chunkI16 = chunkI16s[current];
   let chunkStart = -1;
   let chunkCount = 0;
+  interface ChunkRead { start: number; count: number; into: number; got: Promise<number> }
+  const startRead = (r: number, into: number): ChunkRead => {
+    const count = Math.min(chunkRecords, nRec - r);
+    const got = readFully(fh, file, chunkU8s[into], count * recB, header.headerBytes + r * recB);
+    got.catch(() => undefined); // awaited when used; a read left behind by an early return stays silent
+    return { start: r, count, into, got };
+  };
+  let ahead: ChunkRead | null = null;
   const ensure = async (r: number): Promise<void> => {
     if (r >= chunkStart && r < chunkStart + chunkCount) return;
-    const count = Math.min(chunkRecords, nRec - r);
-    const want = count * recB;
-    const got = await readFully(fh, file, chunkU8, want, header.headerBytes + r * recB);
+    let read: ChunkRead;
+    if (ahead && ahead.start === r) read = ahead;
+    else {
+      if (ahead) await ahead.got.catch(() => undefined); // never two reads into one buffer
+      read = startRead(r, 1 - current);
+    }
+    ahead = null;
+    const want = read.count * recB;
+    const got = await read.got;
     if (got < want) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r + 1}`, { record: r });
+    current = read.into;
+    chunkI16 = chunkI16s[current];
     chunkStart = r;
-    chunkCount = count;
+    chunkCount = read.count;
+    if (r + read.count < nRec) ahead = startRead(r + read.count, 1 - current);
   };
 
   const out = perEpoch.map((n) => new Float32Array(n));
