@@ -9,6 +9,12 @@
  * required columns, duplicate column names, ragged rows, empty subject or recording, duplicate
  * subject/session pairs, missing recording or scoring files, empty group cells when a group
  * column exists, and a subject given two different groups.
+ *
+ * With `rowProblems: 'per-recording'` (what ingest uses) the problems that concern one recording
+ * only — a duplicate subject/session row (the later row), a recording or scoring file that is
+ * missing or not a regular file (a folder, a FIFO) — do not stop the table: the row is kept with
+ * `problem` set, so ingest can record it in ingest_errors and store the other recordings. Such
+ * rows add no participant.
  */
 import { readFile, stat } from 'node:fs/promises';
 import path from 'node:path';
@@ -31,8 +37,14 @@ function rowSchema(hasGroup: boolean) {
   });
 }
 
+export interface ReadCohortOptions {
+  /** 'all-fatal' (default): every problem throws; 'per-recording': see the module comment. */
+  rowProblems?: 'all-fatal' | 'per-recording';
+}
+
 /** Reads and validates a cohort table; throws CohortError listing every problem found. */
-export async function readCohortTable(file: string): Promise<Cohort> {
+export async function readCohortTable(file: string, options: ReadCohortOptions = {}): Promise<Cohort> {
+  const perRecording = options.rowProblems === 'per-recording';
   const abs = path.resolve(file);
   let text: string;
   try {
@@ -98,24 +110,30 @@ export async function readCohortTable(file: string): Promise<Cohort> {
       return;
     }
     const v = parsed.data;
+    const recordingPath = path.resolve(folder, v.recording);
+    const scoringPath = v.scoring === null ? null : path.resolve(folder, v.scoring);
+    const covariates: Record<string, number | string | null> = {};
+    for (const name of covariateNames) covariates[name] = typedValue(at(r.cells, name), kinds.get(name)!);
+    const rec: CohortRecording = { row, subject: v.subject, session: v.session, group: hasGroup ? v.group : null, recordingPath, scoringPath, covariates };
+    recordings.push(rec);
+    // a problem of this row alone: fatal, or kept on the row for ingest to record
+    const rowProblem = (p: CohortProblem & { column: string }) => {
+      if (!perRecording) problems.push(p);
+      else rec.problem ??= { column: p.column, message: `cohort table row ${p.row}, column '${p.column}': ${p.message}` };
+    };
+
     const key = `${v.subject}\u0000${v.session ?? ''}`;
     const first = pairRow.get(key);
     if (first !== undefined) {
-      problems.push({ row, column: 'subject', message: `subject '${v.subject}'${v.session === null ? ' (no session)' : ` session '${v.session}'`} is already in row ${first}` });
+      rowProblem({ row, column: 'subject', message: `subject '${v.subject}'${v.session === null ? ' (no session)' : ` session '${v.session}'`} is already in row ${first}` });
     } else pairRow.set(key, row);
 
-    const recordingPath = path.resolve(folder, v.recording);
-    const scoringPath = v.scoring === null ? null : path.resolve(folder, v.scoring);
-    fileChecks.push(checkFile(recordingPath, v.recording, row, 'recording', problems));
-    if (scoringPath !== null && v.scoring !== null) fileChecks.push(checkFile(scoringPath, v.scoring, row, 'scoring', problems));
-
-    const covariates: Record<string, number | string | null> = {};
-    for (const name of covariateNames) covariates[name] = typedValue(at(r.cells, name), kinds.get(name)!);
-    recordings.push({ row, subject: v.subject, session: v.session, group: hasGroup ? v.group : null, recordingPath, scoringPath, covariates });
+    fileChecks.push(checkFile(recordingPath, v.recording, row, 'recording', rowProblem));
+    if (scoringPath !== null && v.scoring !== null) fileChecks.push(checkFile(scoringPath, v.scoring, row, 'scoring', rowProblem));
   });
   await Promise.all(fileChecks);
 
-  const participants = participantsOf(recordings, hasGroup, covariateNames, problems);
+  const participants = participantsOf(recordings.filter((r) => !r.problem), hasGroup, covariateNames, problems);
   if (problems.length) {
     problems.sort((a, b) => (a.row ?? 0) - (b.row ?? 0));
     throw new CohortError(file, problems);
@@ -128,12 +146,14 @@ export async function readCohortTable(file: string): Promise<Cohort> {
   return { source: 'table', root: folder, recordings, columns, participants };
 }
 
-async function checkFile(abs: string, given: string, row: number, column: string, problems: CohortProblem[]): Promise<void> {
+async function checkFile(abs: string, given: string, row: number, column: string, report: (p: CohortProblem & { column: string }) => void): Promise<void> {
   try {
     const s = await stat(abs);
-    if (!s.isFile()) problems.push({ row, column, message: `'${given}' is not a file (${abs})` });
-  } catch {
-    problems.push({ row, column, message: `${column} file not found: '${given}' (${abs})` });
+    // a folder or a FIFO in place of the file: never opened (reading a FIFO would block)
+    if (!s.isFile()) report({ row, column, message: `'${given}' is not a file but a ${s.isDirectory() ? 'folder' : s.isFIFO() ? 'FIFO (named pipe)' : 'special file'} (${abs})` });
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    report({ row, column, message: code === 'ENOENT' || code === undefined ? `${column} file not found: '${given}' (${abs})` : `${column} file cannot be examined (${code}): '${given}' (${abs})` });
   }
 }
 

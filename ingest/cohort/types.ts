@@ -27,6 +27,12 @@ export interface CohortRecording {
   scoringPath: string | null;
   covariates: Record<string, number | string | null>;
   bids?: BidsRecordingInfo;
+  /**
+   * Set only when the table was read with `rowProblems: 'per-recording'`: this row cannot be
+   * ingested (duplicate subject/session, recording or scoring file missing or not a regular
+   * file). Ingest records it in ingest_errors (step 'cohort') and goes on with the others.
+   */
+  problem?: { column: string; message: string };
 }
 
 export type ColumnKind = 'number' | 'string';
