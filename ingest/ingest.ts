@@ -16,6 +16,7 @@ import type { CohortRecording } from './cohort/types.ts';
 import { fileSha256, resolveIngestParams, type IngestParams, type PipelineProgress } from './pipeline.ts';
 import { IngestPool, WorkerTaskError } from './pool.ts';
 import { openStore } from './store/database.ts';
+import { DiskFullError, isDiskFull } from './store/errors.ts';
 import { cohortQualityPass } from './store/merge.ts';
 import { sortSpectra } from './store/spectra-order.ts';
 
@@ -64,12 +65,16 @@ export async function runIngest(
   progress?: (e: IngestEvent) => void,
 ): Promise<IngestSummary> {
   const params = resolveIngestParams(options.params);
-  const cohort = await discoverCohort(cohortPathOrBidsFolder);
+  // rows that cannot be ingested on their own (duplicate subject, file missing or not a regular file) fail alone
+  const cohort = await discoverCohort(cohortPathOrBidsFolder, { rowProblems: 'per-recording' });
   const shard = options.shard ?? null;
   // a stable 1/N share by sorted subject, session and path (ingest/cohort/shard.ts)
   const recordings = shard ? selectShard(cohort.recordings, shard.k, shard.n) : cohort.recordings;
   const store = await openStore(outDb, { create: true });
   const pool = new IngestPool(options.jobs);
+  let failure: unknown = null;
+  let storedSoFar = 0;
+  const diskFull = (e: unknown, during: string) => new DiskFullError(outDb, during, storedSoFar, e);
   try {
     const { runId, reused } = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.k}/${shard.n}` : null });
     const names = cohort.columns.map((c) => c.name);
@@ -78,12 +83,19 @@ export async function runIngest(
     const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0 };
     // file names relative to the cohort root: no absolute paths (which may name people) in the database
     const shown = (rec: CohortRecording) => path.relative(cohort.root, rec.recordingPath) || path.basename(rec.recordingPath);
-    const fail = async (rec: CohortRecording, step: string, field: string | null, message: string) => {
+    // messages name files relative to the cohort root too
+    const rootPrefix = cohort.root.endsWith(path.sep) ? cohort.root : cohort.root + path.sep;
+    // set when the run must stop (disk full): recordings still in flight are neither written nor logged
+    let stopped = false;
+    const fail = async (rec: CohortRecording, step: string, field: string | null, fullMessage: string) => {
+      if (stopped) return;
+      const message = fullMessage.split(rootPrefix).join('');
       summary.failed.push({ file: shown(rec), step, message });
       await store.writeError({ runId, file: shown(rec), step, field, message });
       progress?.({ kind: 'recording', file: shown(rec), state: 'failed', message });
     };
     const one = async (rec: CohortRecording): Promise<void> => {
+      if (rec.problem) return fail(rec, 'cohort', rec.problem.column, rec.problem.message);
       let sha: string;
       try {
         sha = await fileSha256(rec.recordingPath);
@@ -92,6 +104,7 @@ export async function runIngest(
       }
       if (await store.hasRecording(runId, sha)) {
         summary.skipped++;
+        storedSoFar++;
         progress?.({ kind: 'recording', file: shown(rec), state: 'skipped' });
         return;
       }
@@ -102,29 +115,49 @@ export async function runIngest(
         const step = e instanceof WorkerTaskError ? e.step : 'process';
         return fail(rec, step, e instanceof WorkerTaskError ? e.field : null, (e as Error).message);
       }
+      if (stopped) return;
       bundle.recording.fileName = shown(rec);
       try {
         await store.writeRecording(bundle);
       } catch (e) {
+        // a full disk fails every later write too: stop, keep what was committed, say so plainly
+        if (isDiskFull(e)) {
+          stopped = true;
+          throw diskFull(e, `writing ${shown(rec)}`);
+        }
         return fail(rec, 'write', null, (e as Error).message);
       }
       summary.done++;
+      storedSoFar++;
       const channelSamples = bundle.channels.reduce((s, c) => s + c.fsHz * bundle.recording.durationS, 0);
       progress?.({ kind: 'recording', file: shown(rec), state: 'done', channelSamples });
     };
     // a few recordings in flight beyond the workers (hashing, writing), never the whole cohort at once
     let next = 0;
     const lanes = Array.from({ length: Math.min(recordings.length, pool.size + 1) }, async () => {
-      while (next < recordings.length) await one(recordings[next++]);
+      while (next < recordings.length && !stopped) await one(recordings[next++]);
     });
-    await Promise.all(lanes);
-    // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
-    summary.cohortQualityRows = await cohortQualityPass(store);
-    await sortSpectra(store); // rows of this and earlier runs in (stage, reference, averaging, recording, channel) order
-    await store.finishRun(runId);
+    // every lane settles before the pool and the store close; the first error is the one reported
+    const ended = await Promise.allSettled(lanes);
+    const laneError = ended.find((r): r is PromiseRejectedResult => r.status === 'rejected');
+    if (laneError) throw laneError.reason;
+    try {
+      // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
+      summary.cohortQualityRows = await cohortQualityPass(store);
+      await sortSpectra(store); // rows of this and earlier runs in (stage, reference, averaging, recording, channel) order
+      await store.finishRun(runId);
+    } catch (e) {
+      throw isDiskFull(e) ? diskFull(e, 'finishing the run (cohort quality pass, spectra order, checkpoint)') : e;
+    }
     return summary;
+  } catch (e) {
+    failure = e;
+    throw e;
   } finally {
     await pool.close();
-    await store.close();
+    // a close that fails (its checkpoint on a full disk) must not hide the first error
+    await store.close().catch((e: unknown) => {
+      if (failure === null) throw isDiskFull(e) ? diskFull(e, 'closing the database (checkpoint)') : e;
+    });
   }
 }

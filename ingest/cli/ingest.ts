@@ -3,7 +3,8 @@
  *
  * Exit status: 0 every recording done or already stored; 3 some recordings failed (they are in
  * ingest_errors, the others are stored); 1 nothing could be done (bad cohort, unwritable
- * database, every recording failed).
+ * database, every recording failed) or the run had to stop (the disk holding the database is
+ * full: what was stored is kept, a rerun resumes).
  */
 import { availableParallelism } from 'node:os';
 import { Command, InvalidArgumentError } from 'commander';

@@ -219,9 +219,13 @@ export class Store {
     return this.exclusive(async () => {
       if (this.closed) return;
       this.closed = true;
-      if (!this.readOnly) await this.connection.run('CHECKPOINT');
-      this.connection.closeSync();
-      this.instance.closeSync();
+      try {
+        if (!this.readOnly) await this.connection.run('CHECKPOINT');
+      } finally {
+        // closed even when the checkpoint fails (disk full): what was committed stays in the write-ahead log
+        this.connection.closeSync();
+        this.instance.closeSync();
+      }
     });
   }
 
@@ -241,7 +245,8 @@ export class Store {
       await fn();
       await this.connection.run('COMMIT');
     } catch (error) {
-      await this.connection.run('ROLLBACK');
+      // a COMMIT that failed (disk full) has already ended the transaction: the first error is the one to report
+      await this.connection.run('ROLLBACK').catch(() => undefined);
       throw error;
     }
   }
