@@ -376,17 +376,12 @@ export async function processRecording(
         }
         const data = block.data;
         for (let c = 0; c < selected.length; c++) {
-          const x = data[c];
+          clipped[c] += block.atDigitalLimits![c]; // samples at the digital limits
           const k = selected[c].toUv;
-          const sig = selected[c].signal;
-          // clipping: samples within half a digital step of the physical limits
-          const tol = 0.5 * Math.abs(sig.gain);
-          const lo = Math.min(sig.physicalMin, sig.physicalMax) + tol;
-          const hi = Math.max(sig.physicalMin, sig.physicalMax) - tol;
-          let n = 0;
-          for (let i = 0; i < x.length; i++) if (x[i] <= lo || x[i] >= hi) n++;
-          clipped[c] += n;
-          if (k !== 1) for (let i = 0; i < x.length; i++) x[i] *= k;
+          if (k !== 1) {
+            const x = data[c];
+            for (let i = 0; i < x.length; i++) x[i] *= k;
+          }
         }
         epochsSeen += 1;
         for (const st of states) {

@@ -39,6 +39,11 @@ export interface EpochBlock {
    * copy them if you keep them past the next iteration. null when dropReason is set.
    */
   data: Float32Array[] | null;
+  /**
+   * Per requested signal, the samples of this epoch at or beyond the digital minimum or maximum
+   * (the amplifier or converter range was reached: clipping). Refilled like data; null with it.
+   */
+  atDigitalLimits: Int32Array | null;
   /** 'gap': the epoch touches an EDF+D gap (never joined); 'end': the last, partial epoch. */
   dropReason: null | 'gap' | 'end';
 }
@@ -374,6 +379,7 @@ async function* readEpochs(
   };
 
   const out = perEpoch.map((n) => new Float32Array(n));
+  const limits = new Int32Array(chosen.length);
   const scale = chosen.map((s) => (s.physicalMax - s.physicalMin) / (s.digitalMax - s.digitalMin));
   const startSample = new Array<number>(chosen.length).fill(0);
   const segs = segmentsOf(onsets, gaps);
@@ -390,10 +396,10 @@ async function* readEpochs(
     const sg = segs[seg];
     if (a < sg.startS - ONSET_TOLERANCE_S || b > segEnd(sg) + ONSET_TOLERANCE_S) {
       if (sg === last && b > endS + ONSET_TOLERANCE_S && a >= sg.startS - ONSET_TOLERANCE_S) {
-        yield { epoch: e, onsetS: a, data: null, dropReason: 'end' };
+        yield { epoch: e, onsetS: a, data: null, atDigitalLimits: null, dropReason: 'end' };
         return;
       }
-      yield { epoch: e, onsetS: a, data: null, dropReason: 'gap' };
+      yield { epoch: e, onsetS: a, data: null, atDigitalLimits: null, dropReason: 'gap' };
       continue;
     }
     // Sample range of each signal inside the segment; an EDF+D segment onset off the epoch grid is snapped to the nearest sample.
@@ -406,6 +412,7 @@ async function* readEpochs(
       rFirst = Math.min(rFirst, Math.floor(s0 / spr));
       rLast = Math.max(rLast, Math.floor((s0 + perEpoch[k] - 1) / spr));
     }
+    limits.fill(0);
     // Records outer, signals inner: every record is fetched once, in file order.
     for (let rr = rFirst; rr <= rLast; rr++) {
       const r = sg.firstRecord + rr;
@@ -422,11 +429,18 @@ async function* readEpochs(
         const o = from - startSample[k];
         const pmin = sig.physicalMin;
         const dmin = sig.digitalMin;
+        const dmax = sig.digitalMax;
         const g = scale[k];
-        // EDF 1992 §2.2 scaling: phys = pmin + (dig − dmin)·(pmax − pmin)/(dmax − dmin).
-        for (let i = 0; i < to - from; i++) dst[o + i] = pmin + (chunkI16[src + i] - dmin) * g;
+        let atLimits = 0;
+        for (let i = 0; i < to - from; i++) {
+          const v = chunkI16[src + i];
+          // EDF 1992 §2.2 scaling: phys = pmin + (dig − dmin)·(pmax − pmin)/(dmax − dmin).
+          dst[o + i] = pmin + (v - dmin) * g;
+          if (v <= dmin || v >= dmax) atLimits++;
+        }
+        limits[k] += atLimits;
       }
     }
-    yield { epoch: e, onsetS: a, data: out, dropReason: null };
+    yield { epoch: e, onsetS: a, data: out, atDigitalLimits: limits, dropReason: null };
   }
 }
