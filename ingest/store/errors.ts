@@ -18,19 +18,27 @@ export class StoreError extends Error {
   }
 }
 
-/** True when DuckDB or the operating system reports a full disk (ENOSPC, "No space left on device"). */
+/**
+ * True when DuckDB or the operating system reports no room to write: a full disk (ENOSPC, "No
+ * space left on device") or a file size limit reached (EFBIG, "File too large", e.g. ulimit -f).
+ */
 export function isDiskFull(e: unknown): boolean {
-  if (typeof e === 'object' && e !== null && (e as { code?: unknown }).code === 'ENOSPC') return true;
-  const text = e instanceof Error ? e.message : String(e);
-  return /No space left on device|ENOSPC|disk (is )?full/i.test(text);
+  return noRoomReason(e) !== null;
 }
 
-/** The disk holding the database filled up: the run stops; what was committed before is kept. */
+function noRoomReason(e: unknown): string | null {
+  const code = typeof e === 'object' && e !== null ? (e as { code?: unknown }).code : undefined;
+  const text = e instanceof Error ? e.message : String(e);
+  if (code === 'ENOSPC' || /No space left on device|ENOSPC/i.test(text)) return 'no space left on the device';
+  if (code === 'EFBIG' || /File too large|EFBIG/i.test(text)) return 'the file size limit was reached';
+  return null;
+}
+
+/** No room to write the database (disk full, file size limit): the run stops; what was committed before is kept. */
 export class DiskFullError extends StoreError {
   constructor(database: string, during: string, stored: number, cause: unknown) {
-    const first = (cause instanceof Error ? cause.message : String(cause)).split('\n')[0];
     super(
-      `the disk holding ${database} is full (${first.replace(/^.*?(No space left on device).*$/i, '$1')}) while ${during}; the run stopped. ` +
+      `no room to write ${database}: ${noRoomReason(cause) ?? 'the disk is full'} while ${during}; the run stopped. ` +
         `The ${stored} recording${stored === 1 ? '' : 's'} of this run stored before ${stored === 1 ? 'is' : 'are'} kept; ` +
         'free some space and rerun the same command: recordings already stored are skipped.',
     );

@@ -405,7 +405,8 @@ export async function cohortQualityPass(store: Store): Promise<number> {
       });
       await c.run('COMMIT');
     } catch (error) {
-      await c.run('ROLLBACK');
+      // a COMMIT that failed (disk full) has already ended the transaction: report the first error
+      await c.run('ROLLBACK').catch(() => undefined);
       throw error;
     }
     return rows.recordingId.length;

@@ -42,7 +42,8 @@ export async function sortSpectra(store: Store): Promise<boolean> {
       await c.run(`ALTER TABLE ${SORTING_TABLE} RENAME TO spectra`);
       await c.run('COMMIT');
     } catch (error) {
-      await c.run('ROLLBACK');
+      // a COMMIT that failed (disk full) has already ended the transaction: report the first error
+      await c.run('ROLLBACK').catch(() => undefined);
       throw error;
     }
     await c.run('CHECKPOINT');
