@@ -219,6 +219,16 @@ describe('files written by our EdfWriter read back through libedf', () => {
     try {
       const mine = await readAll(f, [0, 1, 2], 4);
       for (let k = 0; k < 3; k++) expect(maxAbsDiff(mine[k], samples[k])).toBeLessThan(1e-4);
+      // Clipping counts: our per-epoch count of samples at the digital limits equals the samples
+      // libedf returns at the physical limits (within half a step), signal by signal.
+      const counted = [0, 0, 0];
+      for await (const b of f.readEpochs({ signals: [0, 1, 2], epochS: 4 })) b.atDigitalLimits!.forEach((n, k) => (counted[k] += n));
+      const atLimits = spec.signals.map((s, k) => {
+        const half = (0.5 * (s.physicalMax - s.physicalMin)) / ((s.digitalMax ?? 32767) - (s.digitalMin ?? -32768));
+        return Array.from(samples[k]).filter((v) => Math.abs(v - s.physicalMin) < half || Math.abs(v - s.physicalMax) < half).length;
+      });
+      expect(atLimits[2]).toBeGreaterThan(100);
+      expect(counted).toEqual(atLimits);
     } finally {
       await f.close();
     }
