@@ -143,17 +143,14 @@ export class Welch {
       const y = this.fft.pairTransform();
       y[0] = 0; // detrend 'constant': the DC bin of a zero-mean segment is 0
       y[1] = 0;
-      for (let k = 0; k < this.nBins; k++) {
-        const km = k === 0 ? n - 1 : k - 1;
-        const kp = k === n - 1 ? 0 : k + 1;
-        // windowed Z_k, and Z_{n−k} (neighbours of n−k are n−k∓1)
-        const re = 0.5 * y[2 * k] - 0.25 * (y[2 * km] + y[2 * kp]);
-        const im = 0.5 * y[2 * k + 1] - 0.25 * (y[2 * km + 1] + y[2 * kp + 1]);
-        const m = k === 0 ? 0 : n - k;
-        const mm = m === 0 ? n - 1 : m - 1;
-        const mp = m === n - 1 ? 0 : m + 1;
-        const re2 = 0.5 * y[2 * m] - 0.25 * (y[2 * mm] + y[2 * mp]);
-        const im2 = 0.5 * y[2 * m + 1] - 0.25 * (y[2 * mm + 1] + y[2 * mp + 1]);
+      // bins 0 and 1 need indices modulo n; from k = 2 on, k ± 1 and n − k ± 1 stay inside 0 … n−1
+      for (let k = 0; k < Math.min(2, this.nBins); k++) raw[k] += windowedPairPower(y, n, k);
+      for (let k = 2; k < this.nBins; k++) {
+        const m = n - k;
+        const re = 0.5 * y[2 * k] - 0.25 * (y[2 * k - 2] + y[2 * k + 2]);
+        const im = 0.5 * y[2 * k + 1] - 0.25 * (y[2 * k - 1] + y[2 * k + 3]);
+        const re2 = 0.5 * y[2 * m] - 0.25 * (y[2 * m - 2] + y[2 * m + 2]);
+        const im2 = 0.5 * y[2 * m + 1] - 0.25 * (y[2 * m - 1] + y[2 * m + 3]);
         raw[k] += 0.5 * (re * re + im * im + re2 * re2 + im2 * im2); // |A_k|² + |B_k|²
       }
     }
@@ -172,6 +169,23 @@ export class Welch {
     if (count > 0) for (let k = 0; k < this.nBins; k++) out[k] /= count;
     return count;
   }
+}
+
+/**
+ * |A_k|² + |B_k|² of the Hann-windowed pair at bin k, from the raw transform y of z = a + i·b:
+ * windowed Z_j = ½Z_j − ¼(Z_{j−1} + Z_{j+1}) (indices mod n) at j = k and j = n − k, then
+ * (|Z_k|² + |Z_{n−k}|²)/2 (see RealFftPower.pairTransform).
+ */
+function windowedPairPower(y: ArrayLike<number>, n: number, k: number): number {
+  let sum = 0;
+  for (const j of [k, (n - k) % n]) {
+    const jm = (j + n - 1) % n;
+    const jp = (j + 1) % n;
+    const re = 0.5 * y[2 * j] - 0.25 * (y[2 * jm] + y[2 * jp]);
+    const im = 0.5 * y[2 * j + 1] - 0.25 * (y[2 * jm + 1] + y[2 * jp + 1]);
+    sum += re * re + im * im;
+  }
+  return 0.5 * sum;
 }
 
 export interface WelchResult {
