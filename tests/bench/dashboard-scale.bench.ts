@@ -33,7 +33,7 @@ const TARGET_TAB_MB = 1536;
 
 function generatorHash(): string {
   const h = createHash('sha256');
-  for (const f of ['src/core/simulate/synthetic-database.ts', 'src/core/simulate/spectrum.ts', 'ingest/store/synthetic.ts', 'ingest/store/schema.ts']) {
+  for (const f of ['src/core/simulate/synthetic-database.ts', 'src/core/simulate/spectrum.ts', 'ingest/store/synthetic.ts', 'ingest/store/schema.ts', 'ingest/store/spectra-order.ts']) {
     h.update(f).update(readFileSync(path.join(repo, f)));
   }
   return h.digest('hex').slice(0, 8);

@@ -1,5 +1,5 @@
 // Arrow tables from duckdb-wasm into plain rows and typed arrays.
-import type { Table } from 'apache-arrow';
+import type { RecordBatch, Table } from 'apache-arrow';
 
 export type Cell = string | number | boolean | null;
 export type Row = Record<string, Cell>;
@@ -85,4 +85,34 @@ export function listColumnToMatrix(table: Table, name: string, width: number): F
     row += data.length;
   }
   return out;
+}
+
+/**
+ * The FLOAT[] column of a batch (or table) whose lists all have `width` values, row i copied to
+ * out[target(i)·width …] (rows in any order into their places). Fails loudly on a list of another
+ * length or a null list; a null value inside a list becomes NaN.
+ */
+export function listColumnRowsInto(batch: Table | RecordBatch, name: string, width: number, target: (row: number) => number, out: Float32Array): void {
+  const col = batch.getChild(name);
+  if (col === null) throw new Error(`result has no column ${name}`);
+  let row = 0;
+  for (const data of col.data) {
+    if (data.length === 0) continue;
+    const offsets = data.valueOffsets as Int32Array | undefined;
+    const child = data.children[0];
+    if (offsets === undefined || child === undefined) throw new TypeError(`column ${name} is not a list column`);
+    const values = child.values as ArrayLike<number> & { subarray(a: number, b: number): ArrayLike<number> };
+    for (let i = 0; i < data.length; i++) {
+      const n = offsets[i + 1] - offsets[i];
+      if (!data.getValid(i) || n !== width) {
+        throw new RangeError(`column ${name}, row ${row + i}: expected ${width} values, got ${data.getValid(i) ? n : 'null'}`);
+      }
+      const at = target(row + i) * width;
+      out.set(values.subarray(offsets[i], offsets[i + 1]), at);
+      if (child.nullCount > 0) {
+        for (let j = 0; j < width; j++) if (!child.getValid(offsets[i] + j)) out[at + j] = Number.NaN;
+      }
+    }
+    row += data.length;
+  }
 }

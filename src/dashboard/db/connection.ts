@@ -2,6 +2,7 @@
 // (never a CDN), extension autoload/autoinstall off, and the cohort database attached
 // read-only, either over HTTP range requests or from a file the user picked.
 import * as duckdb from '@duckdb/duckdb-wasm';
+import type { RecordBatch } from 'apache-arrow';
 import ehWorker from '@duckdb/duckdb-wasm/dist/duckdb-browser-eh.worker.js?url';
 import mvpWorker from '@duckdb/duckdb-wasm/dist/duckdb-browser-mvp.worker.js?url';
 import ehWasm from '@duckdb/duckdb-wasm/dist/duckdb-eh.wasm?url';
@@ -66,7 +67,20 @@ async function attach(e: Engine, location: string, source: string): Promise<Coho
   if (attachedOnce) await e.conn.query(`DETACH DATABASE IF EXISTS ${COHORT}`);
   attachedOnce = true;
   await e.conn.query(`ATTACH ${literal(location)} AS ${COHORT} (READ_ONLY)`);
-  return { source, query: (sql: string) => e.conn.query(sql) };
+  return { source, query: (sql: string) => e.conn.query(sql), stream: (sql: string) => streamed(e, sql) };
+}
+
+/**
+ * A streamed query on a connection of its own: a query sent on the shared connection meanwhile
+ * (other views, the other loaders) would end a pending streamed result there.
+ */
+async function* streamed(e: Engine, sql: string): AsyncIterable<RecordBatch> {
+  const conn = await e.db.connect();
+  try {
+    for await (const batch of await conn.send(sql, true)) yield batch;
+  } finally {
+    await conn.close();
+  }
 }
 
 /** Attach the database served at `url` (absolute http URL), read with range requests. */

@@ -4,9 +4,9 @@ import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from
 import { measureNeeds } from '../../core/contrast/measure.ts';
 import type { Contrast } from '../../core/contrast/spec.ts';
 import type { Stage } from '../../core/stages.ts';
-import { listColumnToMatrix, numberColumn, stringColumn } from './arrow-rows.ts';
+import { listColumnRowsInto, numberColumn, stringColumn } from './arrow-rows.ts';
 import { participants, type CohortSchema, type RunInfo } from './queries.ts';
-import { COHORT, literal, type SqlClient } from './sql-client.ts';
+import { COHORT, literal, resultBatches, type SqlClient } from './sql-client.ts';
 
 /** The run a contrast reads: the most recent finished one, else the last one (as the command line). */
 export function chooseRun(runs: readonly RunInfo[]): RunInfo {
@@ -21,18 +21,24 @@ export interface SpectraKey {
   averaging: string;
 }
 
-/** Stored spectra of one run × stage × reference × averaging, ordered by subject, session, recording, channel. */
+/**
+ * Stored spectra of one run × stage × reference × averaging, ordered by subject, session, recording,
+ * channel. Two reads: the keys in that order (small), then the power lists streamed in storage
+ * order, each copied into its row's place of one Float32Array as it arrives — the engine never
+ * sorts (nor holds) the lists, and the page never holds them twice.
+ */
 export async function contrastSpectra(
   db: SqlClient,
   q: SpectraKey,
 ): Promise<{ freqStartHz: number; freqStepHz: number; nBins: number; rows: SpectrumRow[] }> {
-  const t = await db.query(
-    `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, s.channel::VARCHAR AS channel,
-            s.n_epochs::DOUBLE AS n_epochs, s.flagged AS flagged, s.flag_reason::VARCHAR AS flag_reason,
-            s.freq_start_hz::DOUBLE AS f0, s.freq_step_hz::DOUBLE AS df, s.n_bins::DOUBLE AS n_bins, s.power AS power
-     FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
+  const from = `FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
      WHERE r.run_id = ${literal(q.runId)} AND s.stage = ${literal(q.stage)}
-       AND s.reference = ${literal(q.reference)} AND s.averaging = ${literal(q.averaging)}
+       AND s.reference = ${literal(q.reference)} AND s.averaging = ${literal(q.averaging)}`;
+  const t = await db.query(
+    `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, s.recording_id::VARCHAR AS recording_id,
+            s.channel::VARCHAR AS channel, s.n_epochs::DOUBLE AS n_epochs, s.flagged AS flagged, s.flag_reason::VARCHAR AS flag_reason,
+            s.freq_start_hz::DOUBLE AS f0, s.freq_step_hz::DOUBLE AS df, s.n_bins::DOUBLE AS n_bins
+     ${from}
      ORDER BY r.subject, r.session NULLS FIRST, s.recording_id, s.channel`,
   );
   const f0 = numberColumn(t, 'f0');
@@ -44,9 +50,24 @@ export async function contrastSpectra(
     }
   }
   const nBins = t.numRows > 0 ? nb[0] : 0;
-  const power = listColumnToMatrix(t, 'power', nBins);
   const subject = stringColumn(t, 'subject');
+  const recording = stringColumn(t, 'recording_id');
   const channel = stringColumn(t, 'channel');
+  const place = new Map<string, number>();
+  for (let i = 0; i < t.numRows; i++) place.set(`${recording[i]}\u0000${channel[i]}`, i);
+  const power = new Float32Array(t.numRows * nBins);
+  let copied = 0;
+  for await (const batch of resultBatches(db, `SELECT s.recording_id::VARCHAR AS recording_id, s.channel::VARCHAR AS channel, s.power AS power ${from}`)) {
+    const rec = batch.getChild('recording_id')!;
+    const ch = batch.getChild('channel')!;
+    listColumnRowsInto(batch, 'power', nBins, (i) => {
+      const at = place.get(`${rec.get(i) as string}\u0000${ch.get(i) as string}`);
+      if (at === undefined) throw new Error(`spectra of ${q.stage}/${q.reference}/${q.averaging}: the power read has a row (${rec.get(i)}, ${ch.get(i)}) the keys read has not`);
+      return at;
+    }, power);
+    copied += batch.numRows;
+  }
+  if (copied !== t.numRows) throw new Error(`spectra of ${q.stage}/${q.reference}/${q.averaging}: ${t.numRows} keys but ${copied} power lists`);
   const nEpochs = numberColumn(t, 'n_epochs');
   const session = t.getChild('session')!;
   const flagged = t.getChild('flagged')!;
