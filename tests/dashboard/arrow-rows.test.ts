@@ -4,7 +4,7 @@ import { Field, Float32, List, Table, tableFromArrays, vectorFromArray } from 'a
 import { describe, expect, it } from 'vitest';
 import { listColumnRowsInto, listColumnToMatrix, numberColumn, stringColumn, tableToRows } from '../../src/dashboard/db/arrow-rows.ts';
 
-function listTable(lists: (number[] | null)[]): Table {
+function listTable(lists: ((number | null)[] | null)[]): Table {
   const type = new List(new Field('item', new Float32(), true));
   return new Table({ power: vectorFromArray(lists, type) });
 }
