@@ -5,8 +5,11 @@
  */
 import type { Contrast } from './spec.ts';
 import type { ContrastData, Exclusion } from './data.ts';
-import { assembleContrast, type Participation } from './assemble.ts';
-import { runContrast, type ContrastOptions, type ContrastResult, type ProgressCallback } from '../stats/index.ts';
+import { assembleContrast, type AssembledContrast, type Participation } from './assemble.ts';
+import {
+  finishContrast, prepareContrast, runPermutations,
+  type ContrastOptions, type ContrastResult, type NullMaxima, type PermutationRange, type PreparedContrast, type ProgressCallback,
+} from '../stats/index.ts';
 
 export const RESEARCH_NOTE = 'bandwise is a research tool. Its results are not a diagnosis and must not be used for clinical decisions.';
 
@@ -43,11 +46,29 @@ export function statsOptions(c: Contrast): ContrastOptions {
   };
 }
 
-export function compare(c: Contrast, data: ContrastData, onProgress?: ProgressCallback): CompareResult {
-  const a = assembleContrast(c, data);
+/** A contrast assembled and its statistics prepared: the same on every thread (deterministic). */
+export interface PreparedCompare {
+  contrast: Contrast;
+  assembled: AssembledContrast;
+  prepared: PreparedContrast;
+}
+
+export function prepareCompare(c: Contrast, data: ContrastData): PreparedCompare {
+  const assembled = assembleContrast(c, data);
   const options = statsOptions(c);
-  options.frequencyAdjacency = a.layout.frequencyAdjacency;
-  const statistics = runContrast(a.input, options, onProgress);
+  options.frequencyAdjacency = assembled.layout.frequencyAdjacency;
+  return { contrast: c, assembled, prepared: prepareContrast(assembled.input, options) };
+}
+
+/** The permutations [from, to) of part `index` of `parts` equal shares of `count` (split over threads). */
+export function permutationShare(count: number, index: number, parts: number): PermutationRange {
+  return { from: Math.floor((count * index) / parts), to: Math.floor((count * (index + 1)) / parts) };
+}
+
+/** The result from the prepared contrast and the null maxima of all its permutations. */
+export function finishCompare(p: PreparedCompare, nulls: NullMaxima): CompareResult {
+  const { contrast: c, assembled: a } = p;
+  const statistics = finishContrast(p.prepared, nulls);
   return {
     kind: 'compare',
     note: RESEARCH_NOTE,
@@ -59,4 +80,11 @@ export function compare(c: Contrast, data: ContrastData, onProgress?: ProgressCa
     clusters: statistics.clusters.map((k) => ({ sign: k.sign, mass: k.mass, size: k.size, p: k.p, fminHz: k.fminHz, fmaxHz: k.fmaxHz, channels: k.channels })),
     statistics,
   };
+}
+
+/** The whole contrast on one thread; split over threads (prepareCompare, runPermutations of shares, finishCompare) it gives the same result. */
+export function compare(c: Contrast, data: ContrastData, onProgress?: ProgressCallback): CompareResult {
+  const p = prepareCompare(c, data);
+  const nulls = runPermutations(p.prepared.test, { from: 0, to: p.prepared.test.scheme.count }, onProgress);
+  return finishCompare(p, nulls);
 }

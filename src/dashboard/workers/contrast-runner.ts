@@ -1,8 +1,11 @@
-// The page's side of the contrast worker: one run at a time, progress, cancel.
+// The page's side of the contrast workers: one run at a time over up to two workers (the
+// permutations split between them, src/core/contrast/run.ts permutationShare), progress summed
+// over the parts, cancel. Part 0 writes the result once the page hands it the other parts' nulls.
 import type { ContrastData } from '../../core/contrast/data.ts';
 import type { CompareResult } from '../../core/contrast/run.ts';
 import type { Contrast } from '../../core/contrast/spec.ts';
-import type { RunRequest, WorkerReply } from './contrast-protocol.ts';
+import type { NullMaxima } from '../../core/stats/index.ts';
+import type { RunRequest, WorkerReply, WorkerRequest } from './contrast-protocol.ts';
 
 export class ContrastCancelled extends Error {
   override name = 'ContrastCancelled';
@@ -13,32 +16,56 @@ export interface RunningContrast {
   cancel(): void;
 }
 
-export function startContrast(contrast: Contrast, data: ContrastData, onProgress: (done: number, total: number) => void): RunningContrast {
-  const worker = new Worker(new URL('./contrast.worker.ts', import.meta.url), { type: 'module' });
+/** Workers per contrast: two where the machine has two or more cores (each holds a copy of the rows). */
+export function contrastWorkerCount(): number {
+  return (globalThis.navigator?.hardwareConcurrency ?? 1) >= 2 ? 2 : 1;
+}
+
+export function startContrast(
+  contrast: Contrast,
+  data: ContrastData,
+  onProgress: (done: number, total: number) => void,
+  parts = contrastWorkerCount(),
+): RunningContrast {
+  const workers = Array.from({ length: parts }, () => new Worker(new URL('./contrast.worker.ts', import.meta.url), { type: 'module' }));
+  const stop = () => workers.forEach((w) => w.terminate());
+  const done = new Array<number>(parts).fill(0);
+  const total = new Array<number>(parts).fill(0);
+  const others: NullMaxima[] = [];
   let settle: ((e: Error) => void) | null = null;
   const result = new Promise<{ result: CompareResult; seconds: number }>((resolve, reject) => {
-    settle = reject;
-    worker.onmessage = (e: MessageEvent<WorkerReply>) => {
-      const m = e.data;
-      if (m.kind === 'progress') onProgress(m.done, m.total);
-      else {
-        worker.terminate();
-        if (m.kind === 'result') resolve({ result: m.result, seconds: m.seconds });
-        else reject(new Error(m.message));
-      }
+    settle = (e) => {
+      stop();
+      reject(e);
     };
-    worker.onerror = (e) => {
-      worker.terminate();
-      reject(new Error(e.message || 'the contrast worker failed'));
-    };
+    workers.forEach((worker, part) => {
+      worker.onmessage = (e: MessageEvent<WorkerReply>) => {
+        const m = e.data;
+        if (m.kind === 'progress') {
+          done[part] = m.done;
+          total[part] = m.total;
+          onProgress(done.reduce((a, b) => a + b, 0), total.reduce((a, b) => a + b, 0));
+        } else if (m.kind === 'nulls') {
+          others.push(m.nulls);
+          worker.terminate();
+          if (others.length === parts - 1) {
+            const req: WorkerRequest = { kind: 'nulls', nulls: others };
+            workers[0].postMessage(req);
+          }
+        } else if (m.kind === 'result') {
+          stop();
+          resolve({ result: m.result, seconds: m.seconds });
+        } else settle!(new Error(m.message));
+      };
+      worker.onerror = (e) => settle!(new Error(e.message || 'the contrast worker failed'));
+    });
   });
-  const req: RunRequest = { kind: 'run', contrast, data };
-  worker.postMessage(req);
+  workers.forEach((worker, part) => {
+    const req: RunRequest = { kind: 'run', contrast, data, part, parts };
+    worker.postMessage(req);
+  });
   return {
     result,
-    cancel: () => {
-      worker.terminate();
-      settle?.(new ContrastCancelled('cancelled'));
-    },
+    cancel: () => settle?.(new ContrastCancelled('cancelled')),
   };
 }
