@@ -14,6 +14,8 @@
  * An epoch gets one reason per channel, the first rule it breaks in the order amplitude, flat,
  * muscle-outlier, broadband-outlier (muscle is the more specific finding of the two outliers).
  */
+import { medianInPlace } from '../stats/median.ts';
+
 export type RejectionReason = 'amplitude' | 'flat' | 'broadband-outlier' | 'muscle-outlier';
 
 export interface RejectionOptions {
@@ -94,9 +96,7 @@ export function timeDomainCheck(
 /** Median of values[idx[0..n)] using scratch (length ≥ n); NaN for n = 0. */
 function medianOf(values: ArrayLike<number>, idx: ArrayLike<number>, n: number, scratch: Float64Array): number {
   for (let i = 0; i < n; i++) scratch[i] = values[idx[i]];
-  const s = scratch.subarray(0, n).sort();
-  if (n === 0) return NaN;
-  return n % 2 === 1 ? s[(n - 1) / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
+  return medianInPlace(scratch.subarray(0, n));
 }
 
 /**

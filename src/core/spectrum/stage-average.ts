@@ -19,6 +19,7 @@
  * The DC and Nyquist bins have half the degrees of freedom; their correction uses the same ν
  * (DC is ~0 after per-segment mean removal, and Nyquist lies above the stored range).
  */
+import { medianInPlace } from '../stats/median.ts';
 
 /** Overlap correlation ρ(m) = Σ w[n]·w[n + m·step] / Σ w² of a window. */
 export function overlapCorrelation(window: ArrayLike<number>, step: number, m: number): number {
@@ -86,9 +87,7 @@ export function stageMedian(
   const col = scratch.subarray(0, n);
   for (let k = 0; k < nBins; k++) {
     for (let i = 0; i < n; i++) col[i] = spectra[rows[i] * nBins + k];
-    col.sort();
-    const med = n % 2 === 1 ? col[(n - 1) / 2] : 0.5 * (col[n / 2 - 1] + col[n / 2]);
-    out[k] = med / bias;
+    out[k] = medianInPlace(col) / bias;
   }
 }
 

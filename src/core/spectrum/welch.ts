@@ -1,5 +1,6 @@
 import { RealFftPower } from './real-fft.ts';
 import { medianBias } from './median-bias.ts';
+import { medianInPlace } from '../stats/median.ts';
 
 /**
  * Welch's averaged, modified periodogram (Welch 1967, IEEE Trans. Audio Electroacoust. 15:70–73),
@@ -223,10 +224,7 @@ export function welch(
   return { freqsHz: est.frequencies(), psd, nSegments };
 }
 
-/** Median of the values (sorted copy; the mean of the two middle values for even counts). */
+/** Median of the values (on a copy; the mean of the two middle values for even counts). */
 export function median(values: ArrayLike<number>): number {
-  const s = Float64Array.from(values).sort();
-  const n = s.length;
-  if (n === 0) return NaN;
-  return n % 2 === 1 ? s[(n - 1) / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
+  return medianInPlace(Float64Array.from(values));
 }
