@@ -67,8 +67,11 @@ export async function dumpAll(file: string): Promise<Record<string, string[]>> {
 export async function perRecordingCounts(file: string): Promise<Record<string, Record<string, number>>> {
   return withDb(file, async (q) => {
     const out: Record<string, Record<string, number>> = {};
+    // a process killed right after creating the file may leave it without the tables yet: nothing stored
+    const tables = new Set((await q('SELECT table_name FROM duckdb_tables()')).map((r) => String(r.table_name)));
+    if (!tables.has('recordings')) return out;
     for (const r of await q('SELECT recording_id, n_epochs FROM recordings')) out[String(r.recording_id)] = { n_epochs: Number(r.n_epochs) };
-    for (const t of ['channels', 'epochs', 'spectra', 'epoch_band_power', 'epoch_rejections', 'reference_skips']) {
+    for (const t of ['channels', 'epochs', 'spectra', 'epoch_band_power', 'epoch_rejections', 'reference_skips'].filter((x) => tables.has(x))) {
       for (const r of await q(`SELECT recording_id, count(*)::INTEGER AS n FROM ${t} GROUP BY recording_id`)) {
         const id = String(r.recording_id);
         // a row of a recording that is not in recordings: half-stored
