@@ -13,7 +13,7 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { discoverCohort } from './cohort/discover.ts';
 import type { CohortRecording } from './cohort/types.ts';
-import { fileSha256, resolveIngestParams, type IngestParams, type PipelineProgress } from './pipeline.ts';
+import { resolveIngestParams, type IngestParams, type PipelineProgress } from './pipeline.ts';
 import { IngestPool, WorkerTaskError } from './pool.ts';
 import { openStore } from './store/database.ts';
 import { DiskFullError, isDiskFull } from './store/errors.ts';
@@ -98,7 +98,7 @@ export async function runIngest(
       if (rec.problem) return fail(rec, 'cohort', rec.problem.column, rec.problem.message);
       let sha: string;
       try {
-        sha = await fileSha256(rec.recordingPath);
+        sha = await pool.hash(rec.recordingPath); // in a worker: the main thread only writes
       } catch (e) {
         return fail(rec, 'hash', null, (e as Error).message);
       }

@@ -20,7 +20,7 @@ export class WorkerTaskError extends Error {
 
 interface Task {
   req: WorkRequest;
-  resolve: (b: ProcessedBundle) => void;
+  resolve: (result: ProcessedBundle | string) => void;
   reject: (e: Error) => void;
   onProgress?: (p: PipelineProgress) => void;
 }
@@ -57,9 +57,18 @@ export class IngestPool {
 
   /** Processes one recording in the next free worker. */
   process(rec: CohortRecording, params: IngestParams, runId: string, onProgress?: (p: PipelineProgress) => void, fileSha256?: string): Promise<ProcessedBundle> {
+    return this.submit({ id: this.nextId++, kind: 'process', rec, params, runId, fileSha256 }, onProgress) as Promise<ProcessedBundle>;
+  }
+
+  /** SHA-256 (hex) of a file's bytes, computed in the next free worker. */
+  hash(file: string): Promise<string> {
+    return this.submit({ id: this.nextId++, kind: 'hash', file }) as Promise<string>;
+  }
+
+  private submit(req: WorkRequest, onProgress?: (p: PipelineProgress) => void): Promise<ProcessedBundle | string> {
     if (this.closed) return Promise.reject(new Error('the pool is closed'));
     return new Promise((resolve, reject) => {
-      this.queue.push({ req: { id: this.nextId++, rec, params, runId, fileSha256 }, resolve, reject, onProgress });
+      this.queue.push({ req, resolve, reject, onProgress });
       this.dispatch();
     });
   }
@@ -81,6 +90,7 @@ export class IngestPool {
     }
     slot.task = null;
     if (m.kind === 'done') task.resolve(m.bundle);
+    else if (m.kind === 'hashed') task.resolve(m.sha256);
     else task.reject(new WorkerTaskError(m.step, m.field, m.message));
     this.dispatch();
   }
