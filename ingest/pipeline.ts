@@ -9,7 +9,7 @@
  * in src/core (Welch, reference, epoch-rejection, bands, stage-average, aperiodic-fit).
  */
 import { createHash } from 'node:crypto';
-import { createReadStream } from 'node:fs';
+import { open } from 'node:fs/promises';
 import path from 'node:path';
 import { sleepArchitecture } from '../src/core/hypnogram/architecture.ts';
 import { parseChannelLabel } from '../src/core/montage/labels.ts';
@@ -159,15 +159,22 @@ export interface PipelineProgress {
   total: number;
 }
 
-/** SHA-256 of the file bytes, streamed in 1-MiB chunks. */
-export function fileSha256(file: string): Promise<string> {
-  return new Promise((resolve, reject) => {
-    const hash = createHash('sha256');
-    createReadStream(file, { highWaterMark: 1 << 20 })
-      .on('data', (chunk) => hash.update(chunk))
-      .on('error', reject)
-      .on('end', () => resolve(hash.digest('hex')));
-  });
+/** SHA-256 of the file bytes, read in 1-MiB pieces into one reused buffer (no garbage per piece). */
+export async function fileSha256(file: string): Promise<string> {
+  const hash = createHash('sha256');
+  const buf = new Uint8Array(1 << 20);
+  const fh = await open(file, 'r');
+  try {
+    for (let position = 0; ; ) {
+      const { bytesRead } = await fh.read(buf, 0, buf.length, position);
+      if (bytesRead === 0) break;
+      hash.update(buf.subarray(0, bytesRead));
+      position += bytesRead;
+    }
+  } finally {
+    await fh.close();
+  }
+  return hash.digest('hex');
 }
 
 /** Multiplier from a physical dimension to µV, or null when it is not a voltage. Empty → µV (assumed). */
