@@ -124,20 +124,25 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
     candidates.push({ subject, group, covariate, nuisance });
   }
 
-  // values per candidate; a subject with any channel missing or flagged is left out, with the reason
+  // values per candidate, written straight into the subjects × points matrices (one per
+  // condition) at the next kept row; a subject with any channel missing or flagged is left out,
+  // with the reason, and its row is reused
   const P = layout.freqsHz.length;
   const nCh = c.channelAverage ? 1 : channels.length;
-  const rows: Float64Array[][] = []; // per kept subject, per condition: nCh × P values
+  const width = nCh * P;
+  const matrices = conds.map(() => new Float64Array(candidates.length * width));
   const kept: typeof candidates = [];
   const scratch = new Float64Array(P);
   for (const cand of candidates) {
-    const perCondition: Float64Array[] = [];
     let reason: { channel: string | null; text: string } | null = null;
-    for (const cond of conds) {
-      const values = new Float64Array(nCh * P);
+    const onlySession = sessionsOf.get(cand.subject)!.values().next().value ?? null;
+    for (let di = 0; di < conds.length && !reason; di++) {
+      const cond = conds[di];
+      const session = cond.session ?? onlySession;
+      const values = matrices[di].subarray(kept.length * width, (kept.length + 1) * width);
+      values.fill(0);
       for (let ci = 0; ci < channels.length && !reason; ci++) {
         const ch = channels[ci];
-        const session = cond.session ?? [...sessionsOf.get(cand.subject)!][0];
         const k = key(cand.subject, session, ch, cond.stage);
         const row = spectra.get(k);
         if (!row) {
@@ -163,20 +168,16 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
           else values[ci * P + j] = scratch[j];
         }
       }
-      if (reason) break;
-      perCondition.push(values);
     }
     if (reason) {
       excluded.push({ subject: cand.subject, channel: reason.channel, reason: reason.text });
       continue;
     }
     kept.push(cand);
-    rows.push(perCondition);
   }
 
   const n = kept.length;
-  const data0 = new Float64Array(n * nCh * P);
-  for (let s = 0; s < n; s++) data0.set(rows[s][0], s * nCh * P);
+  const data0 = matrices[0].subarray(0, n * width);
   let design: Design;
   const nPerGroup: Record<string, number> = {};
   if (c.design === 'groups') {
@@ -186,9 +187,7 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
     nPerGroup[g1] = group.filter((g) => g === 1).length;
     design = { kind: 'groups', group, groupNames: [g0, g1], nuisance: nuisanceColumns(c, kept) };
   } else if (c.design === 'paired') {
-    const second = new Float64Array(n * nCh * P);
-    for (let s = 0; s < n; s++) second.set(rows[s][1], s * nCh * P);
-    design = { kind: 'paired', second, conditionNames: [conds[0].name, conds[1].name] };
+    design = { kind: 'paired', second: matrices[1].subarray(0, n * width), conditionNames: [conds[0].name, conds[1].name] };
     nPerGroup.pairs = n;
   } else {
     design = { kind: 'covariate', covariate: kept.map((k) => k.covariate!), covariateName: c.covariate, nuisance: nuisanceColumns(c, kept) };
