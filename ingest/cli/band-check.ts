@@ -16,6 +16,7 @@ import { openStore, readPeaks, type Store } from '../store/index.ts';
 import { loadContrastData, type LoadedContrast } from '../compare.ts';
 import { storedFitRanges } from '../report.ts';
 import { appendLedger } from '../ledger.ts';
+import { reportUserError } from './user-errors.ts';
 import { addContrastOptions, contrastFromFlags, type Flags } from './compare.ts';
 
 /** "sigma", "12-16" or "spindles:12.5-15" → a band (named presets: DEFAULT_BANDS, SIGMA_PRESETS). */
@@ -120,18 +121,25 @@ export function register(program: Command): void {
     const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
     const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'band check {bar} {value}/{total} tests | {step}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
     let started = false;
-    const result = await bandCheckDatabase(database, contrast, flags.band, exclusions, {
-      alpha: flags.alpha,
-      flankWidthHz: flags.flankWidth,
-      onProgress: (step, done, total) => {
-        if (!bar) return;
-        if (!started) {
-          bar.start(total, 0, { step });
-          started = true;
-        }
-        bar.update(done, { step });
-      },
-    }, flags.run);
+    let result: BandCheckRun;
+    try {
+      result = await bandCheckDatabase(database, contrast, flags.band, exclusions, {
+        alpha: flags.alpha,
+        flankWidthHz: flags.flankWidth,
+        onProgress: (step, done, total) => {
+          if (!bar) return;
+          if (!started) {
+            bar.start(total, 0, { step });
+            started = true;
+          }
+          bar.update(done, { step });
+        },
+      }, flags.run);
+    } catch (e) {
+      bar?.stop();
+      if (reportUserError('band-check', e)) return;
+      throw e;
+    }
     bar?.stop();
     writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
     // the ledger records the band with the contrast

@@ -10,6 +10,7 @@ import { parseExclusionsTsv } from '../../src/core/contrast/exclusions.ts';
 import { parseBand } from '../../src/core/spectrum/bands.ts';
 import { compareDatabase, type CompareRun } from '../compare.ts';
 import { appendLedger } from '../ledger.ts';
+import { reportUserError } from './user-errors.ts';
 
 const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);
 const pair = (name: string) => (v: string): [string, string] => {
@@ -190,14 +191,21 @@ export function register(program: Command): void {
       const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
       const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'permutations {bar} {value}/{total} | ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
       let started = false;
-      const result = await compareDatabase(database, contrast, exclusions, (done, total) => {
-        if (!bar) return;
-        if (!started) {
-          bar.start(total, 0);
-          started = true;
-        }
-        bar.update(done);
-      }, flags.run);
+      let result: CompareRun;
+      try {
+        result = await compareDatabase(database, contrast, exclusions, (done, total) => {
+          if (!bar) return;
+          if (!started) {
+            bar.start(total, 0);
+            started = true;
+          }
+          bar.update(done);
+        }, flags.run);
+      } catch (e) {
+        bar?.stop();
+        if (reportUserError('compare', e)) return;
+        throw e;
+      }
       bar?.stop();
       writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
       if (flags.tsv) writeFileSync(flags.tsv, clustersTsv(result));

@@ -1,6 +1,8 @@
 /** `bandwise dashboard <cohort.duckdb> [--port P]`: the dashboard on 127.0.0.1 for one database. */
 import { Command, InvalidArgumentError } from 'commander';
 import { serveDashboard } from '../dashboard.ts';
+import { openStore } from '../store/database.ts';
+import { reportUserError } from './user-errors.ts';
 
 export function register(program: Command): void {
   program
@@ -19,6 +21,13 @@ export function register(program: Command): void {
     })
     .option('--rebuild', 'rebuild the dashboard app before serving')
     .action(async (database: string, flags: { port?: number; rebuild?: boolean }) => {
+      try {
+        // the browser reads the file as it is on disk: refuse one another process is writing (its lock says so)
+        await (await openStore(database, { readOnly: true })).close();
+      } catch (e) {
+        if (reportUserError('dashboard', e)) return;
+        throw e;
+      }
       const server = await serveDashboard(database, flags.port, flags.rebuild);
       console.log(`dashboard on ${server.url}  (Ctrl-C to stop)`);
       await waitForSignal();

@@ -9,6 +9,7 @@ import type { Command } from 'commander';
 import { methodsReport, type ReportableResult } from '../../src/core/report/index.ts';
 import { databaseFactsOf, ledgerCountsOf } from '../report.ts';
 import { appendLedger } from '../ledger.ts';
+import { reportUserError } from './user-errors.ts';
 
 interface ReportFlags {
   out: string;
@@ -88,6 +89,7 @@ export function register(program: Command): void {
           process.exitCode = 2;
           return;
         }
+        if (reportUserError('report', e)) return;
         throw e;
       }
     });

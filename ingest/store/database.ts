@@ -10,7 +10,7 @@
  */
 import { closeSync, existsSync, openSync, readSync } from 'node:fs';
 import { DuckDBInstance } from '@duckdb/node-api';
-import { StoreError } from './errors.ts';
+import { DatabaseBusyError, StoreError } from './errors.ts';
 import { schemaSql } from './schema.ts';
 import { Store } from './writer.ts';
 
@@ -39,13 +39,19 @@ export async function openStore(path: string, options: OpenOptions = {}): Promis
       );
     }
   }
-  const instance = await DuckDBInstance.create(path, {
-    storage_compatibility_version: STORAGE_COMPATIBILITY,
-    access_mode: options.readOnly ? 'READ_ONLY' : 'READ_WRITE',
-    // No network at ingest: nothing is downloaded behind the user's back.
-    autoinstall_known_extensions: 'false',
-    autoload_known_extensions: 'false',
-  });
+  let instance: DuckDBInstance;
+  try {
+    instance = await DuckDBInstance.create(path, {
+      storage_compatibility_version: STORAGE_COMPATIBILITY,
+      access_mode: options.readOnly ? 'READ_ONLY' : 'READ_WRITE',
+      // No network at ingest: nothing is downloaded behind the user's back.
+      autoinstall_known_extensions: 'false',
+      autoload_known_extensions: 'false',
+    });
+  } catch (e) {
+    // another process holds DuckDB's file lock: say what that means instead of the raw lock error
+    throw DatabaseBusyError.from(path, options.readOnly ?? false, e) ?? e;
+  }
   const connection = await instance.connect();
   if (!options.readOnly) {
     for (const sql of schemaSql()) await connection.run(sql);

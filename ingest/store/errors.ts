@@ -45,3 +45,32 @@ export class DiskFullError extends StoreError {
     this.name = 'DiskFullError';
   }
 }
+
+/**
+ * Another process holds the database file's lock. DuckDB (documentation, "Concurrency") lets one
+ * process open a file for writing, and then no other process may open it at all; several
+ * processes may read a file together when none writes.
+ */
+export class DatabaseBusyError extends StoreError {
+  /** The explained error for DuckDB's "Could not set lock on file" failure, or null for any other error. */
+  static from(database: string, readOnly: boolean, cause: unknown): DatabaseBusyError | null {
+    const text = cause instanceof Error ? cause.message : String(cause);
+    if (!/Could not set lock on file/i.test(text)) return null;
+    const pid = /\(PID (\d+)\)/.exec(text)?.[1];
+    const holder = pid ? `another process (PID ${pid})` : 'another process';
+    return new DatabaseBusyError(
+      readOnly
+        ? `${database} is open for writing by ${holder}, e.g. a bandwise ingest or merge still running. ` +
+            'A DuckDB database that one process writes cannot be read by any other until the writer has finished; ' +
+            'wait for it to end, then run this again (or read another, finished database).'
+        : `${database} is in use by ${holder}: another bandwise ingest or merge writing it, or a reader (compare, band-check, ` +
+            'report, Python, R) holding it open. DuckDB lets only one process write a database, with no other process ' +
+            'reading it meanwhile; wait until that process has finished, or write to another file.',
+    );
+  }
+
+  private constructor(message: string) {
+    super(message);
+    this.name = 'DatabaseBusyError';
+  }
+}

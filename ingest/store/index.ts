@@ -2,7 +2,7 @@
 export { openStore, readHeaderStorageNumber, STORAGE_COMPATIBILITY, MAX_READABLE_STORAGE_NUMBER, type OpenOptions } from './database.ts';
 export { Store, type BeginRunOptions, type CohortQualityRow, type IngestErrorIn, type ParticipantValue } from './writer.ts';
 export type * from './bundle.ts';
-export { StoreError } from './errors.ts';
+export { DatabaseBusyError, DiskFullError, StoreError } from './errors.ts';
 export { canonicalJson, recordingIdFor, runIdentity } from './identity.ts';
 export { TABLES, TABLE_NAMES, type TableDef, type ColumnDef } from './schema.ts';
 export * from './read.ts';

@@ -1,0 +1,21 @@
+/**
+ * Errors that describe the user's input or the machine's state, not a fault of the program: a
+ * database that is busy, missing or full (StoreError and its kinds), a contrast the data cannot
+ * support (ContrastInputError, ContrastDataError). The commands print them as one plain line,
+ * without a stack trace, and exit with status 1; anything else is a bug and keeps its trace.
+ */
+import { ContrastDataError } from '../../src/core/contrast/assemble.ts';
+import { ContrastInputError } from '../../src/core/stats/contrast.ts';
+import { StoreError } from '../store/errors.ts';
+
+export function isUserError(e: unknown): e is Error {
+  return e instanceof StoreError || e instanceof ContrastInputError || e instanceof ContrastDataError;
+}
+
+/** Prints a user error as `bandwise <command>: <message>` and sets exit status 1; false for any other error. */
+export function reportUserError(command: string, e: unknown): boolean {
+  if (!isUserError(e)) return false;
+  console.error(`bandwise ${command}: ${e.message}`);
+  process.exitCode = 1;
+  return true;
+}
