@@ -116,7 +116,8 @@ async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHe
   const annBytes = annSignals.reduce((a, s) => a + 2 * s.samplesPerRecord, 0);
   // Small records are read whole, chunk by chunk: the OS reads whole pages anyway, and one read per tiny record would dominate.
   const wholeRecords = recB < SLICE_READ_MIN_RECORD_BYTES;
-  const batch = wholeRecords ? Math.max(1, Math.floor(DEFAULT_CHUNK_BYTES / recB)) : ANNOTATION_BATCH_RECORDS;
+  // never more records than the file holds: a small file gets a buffer no larger than its data
+  const batch = Math.min(header.nRecords, wholeRecords ? Math.max(1, Math.floor(DEFAULT_CHUNK_BYTES / recB)) : ANNOTATION_BATCH_RECORDS);
   const buf = new Uint8Array(batch * (wholeRecords ? recB : annBytes));
   const isPlus = header.variant !== 'EDF';
   const timeKeeping = new Float64Array(header.nRecords);
