@@ -275,7 +275,8 @@ describe('allocation stays within the file whatever the header declares', () => 
     ['header size 99,999,999', { nRecords: '1', headerBytes: '99999999', spr: ['1'] }],
     ['-1 records (derived from the size) with 1-sample records', { nRecords: '-1', spr: ['1'] }],
   ])('%s: refused or read without allocating in proportion to the declaration', async (_, over) => {
-    const d: Declared = { nRecords: '1', ns: null, headerBytes: null, spr: ['1'], duration: '1', plus: 'EDF+C', dataBytes: 2000, annotationSignal: true, ...over };
+    const base: Declared = { nRecords: '1', ns: null, headerBytes: null, spr: ['1'], duration: '1', plus: 'EDF+C', dataBytes: 2000, annotationSignal: true };
+    const d: Declared = { ...base, ...over };
     const bytes = hostileFile(d);
     const file = path.join(tmp.dir, 'extreme.edf');
     writeFileSync(file, bytes);
