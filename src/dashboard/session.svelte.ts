@@ -37,11 +37,15 @@ export class Session {
     this.error = null;
     try {
       const db = await connect();
-      const schema = await cohortSchema(db);
-      schema.require('runs', 'run_id', 'parameters');
-      this.runs = await runs(db);
+      // both reads issued together (one wait on the engine, not two); a database without a runs
+      // table reports that, not the failed runs query
+      const [schema, runList] = await Promise.allSettled([cohortSchema(db), runs(db)]);
+      if (schema.status === 'rejected') throw schema.reason;
+      schema.value.require('runs', 'run_id', 'parameters');
+      if (runList.status === 'rejected') throw runList.reason;
+      this.runs = runList.value;
       performance.mark('bandwise:database-open');
-      this.schema = schema;
+      this.schema = schema.value;
       this.db = db;
       this.generation++;
       this.status = 'ready';

@@ -1,4 +1,4 @@
-// The page's side of the contrast workers: one run at a time over up to two workers (the
+// The page's side of the contrast workers: one run at a time over one or two workers (the
 // permutations split between them, src/core/contrast/run.ts permutationShare), progress summed
 // over the parts, cancel. Part 0 writes the result once the page hands it the other parts' nulls.
 import type { ContrastData } from '../../core/contrast/data.ts';
@@ -16,16 +16,29 @@ export interface RunningContrast {
   cancel(): void;
 }
 
-/** Workers per contrast: two where the machine has two or more cores (each holds a copy of the rows). */
-export function contrastWorkerCount(): number {
-  return (globalThis.navigator?.hardwareConcurrency ?? 1) >= 2 ? 2 : 1;
+/**
+ * A second worker holds its own copy of the rows, the assembled matrix and the statistic's tables,
+ * about 20 bytes per stored bin (4 for the float32 rows, 8 + 8 for float64 values and centred
+ * copies); it is started only while that stays below this.
+ */
+const SECOND_WORKER_BYTES = 200 * 1024 * 1024;
+
+/**
+ * Workers per contrast: two where the machine has two or more cores and the copy is small;
+ * one for large cohorts, whose memory matters more than the permutations' time (2,000 recordings
+ * × 64 channels: a second worker adds ~440 MB to the tab, measured by dashboard-scale.bench.ts,
+ * and did not save time on this shared 2-core machine).
+ */
+export function contrastWorkerCount(data: ContrastData): number {
+  const cores = globalThis.navigator?.hardwareConcurrency ?? 1;
+  return cores >= 2 && data.spectra.rows.length * data.spectra.nBins * 20 <= SECOND_WORKER_BYTES ? 2 : 1;
 }
 
 export function startContrast(
   contrast: Contrast,
   data: ContrastData,
   onProgress: (done: number, total: number) => void,
-  parts = contrastWorkerCount(),
+  parts = contrastWorkerCount(data),
 ): RunningContrast {
   const workers = Array.from({ length: parts }, () => new Worker(new URL('./contrast.worker.ts', import.meta.url), { type: 'module' }));
   const stop = () => workers.forEach((w) => w.terminate());
