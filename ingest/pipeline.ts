@@ -439,10 +439,6 @@ export async function processRecording(
     const outputsTotal = states.reduce((s, st) => s + st.outputs.length, 0);
     for (const st of states) {
       const reference = st.plan.reference;
-      // Rejections are stored per channel name; re-referenced channels of mastoid/average
-      // references share names with the recorded ones, so only recorded and bipolar rows are
-      // stored (the others' clean-epoch counts are in spectra.n_epochs).
-      const storeRejections = reference === 'recorded' || reference === 'bipolar';
       const block = { channelIdx: [] as number[], epoch: [] as number[], bandIdx: [] as number[], power: [] as number[] };
       st.outputs.forEach((out, oi) => {
         const eligible = Uint8Array.from(out.hasData, (h, e) => (h && out.tdReason[e] === null ? 1 : 0));
@@ -451,13 +447,11 @@ export async function processRecording(
         for (const r of outliers) clean[r.epoch] = 0;
         out.clean = clean;
         const outlierReason = new Map(outliers.map((r) => [r.epoch, r.reason]));
-        if (storeRejections) {
-          for (let e = 0; e < nGrid; e++) {
-            const reason = out.tdReason[e];
-            if (out.hasData[e] && reason) rejections.push({ channel: out.channel, epoch: e, reason, value: Number.isFinite(out.tdValue[e]) ? out.tdValue[e] : null });
-          }
-          for (const r of outliers) rejections.push({ channel: out.channel, epoch: r.epoch, reason: r.reason, value: r.value });
+        for (let e = 0; e < nGrid; e++) {
+          const reason = out.tdReason[e];
+          if (out.hasData[e] && reason) rejections.push({ channel: out.channel, reference, epoch: e, reason, value: Number.isFinite(out.tdValue[e]) ? out.tdValue[e] : null });
         }
+        for (const r of outliers) rejections.push({ channel: out.channel, reference, epoch: r.epoch, reason: r.reason, value: r.value });
         for (let e = 0; e < nGrid; e++) {
           if (!out.hasData[e]) continue;
           for (let b = 0; b < bands.length; b++) {

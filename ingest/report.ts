@@ -42,7 +42,7 @@ export async function databaseFacts(store: Store, file: string, c: Contrast, run
   const rejected = await rows(
     store,
     `SELECT e.stage, x.reason, count(*) AS n FROM epoch_rejections x JOIN epochs e USING (recording_id, epoch)
-       JOIN recordings r USING (recording_id) WHERE r.run_id = $1 GROUP BY e.stage, x.reason`,
+       JOIN recordings r USING (recording_id) WHERE r.run_id = $1 AND x.reference = 'recorded' GROUP BY e.stage, x.reason`,
     [run.runId],
   );
   const stages = epochs.map((e) => {

@@ -64,6 +64,8 @@ export interface EpochColumns {
 
 export interface EpochRejection {
   channel: string;
+  /** Reference of the channel judged (each reference's channels are judged on their own signals). */
+  reference: Reference;
   epoch: number;
   reason: string;
   /** The value that broke the rule, null if none. */

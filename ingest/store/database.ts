@@ -11,7 +11,7 @@
 import { closeSync, existsSync, openSync, readSync } from 'node:fs';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { DatabaseBusyError, StoreError } from './errors.ts';
-import { schemaSql } from './schema.ts';
+import { schemaSql, TABLES } from './schema.ts';
 import { Store } from './writer.ts';
 
 /** Storage compatibility pinned at creation (the oldest DuckDB that must read the file). */
@@ -55,6 +55,15 @@ export async function openStore(path: string, options: OpenOptions = {}): Promis
   const connection = await instance.connect();
   if (!options.readOnly) {
     for (const sql of schemaSql()) await connection.run(sql);
+    // a file from an earlier bandwise may lack columns added since (CREATE … IF NOT EXISTS keeps its tables)
+    const reader = await connection.runAndReadAll(`SELECT table_name, column_name FROM duckdb_columns() WHERE database_name = current_database()`);
+    const have = new Set(reader.getRowObjects().map((r) => `${r.table_name}.${r.column_name}`));
+    const missing = TABLES.flatMap((t) => t.columns.map((c) => `${t.name}.${c.name}`)).filter((k) => !have.has(k));
+    if (missing.length > 0) {
+      connection.closeSync();
+      instance.closeSync();
+      throw new StoreError(`${path} was written by an earlier version of bandwise (missing columns: ${missing.join(', ')}); write into a new database file`);
+    }
   }
   return new Store(instance, connection, { readOnly: options.readOnly ?? false });
 }

@@ -129,6 +129,7 @@ export const TABLES: readonly TableDef[] = [
       col('epoch', 'INTEGER', 'epochs.epoch', true),
       col('reason', 'VARCHAR', 'rejection rule: amplitude, flat, broadband-outlier or muscle-outlier (src/core/quality/epoch-rejection.ts)', true),
       col('value', 'DOUBLE', 'the value that broke the rule (unit depends on the rule), NULL if none'),
+      col('reference', 'VARCHAR', 'reference of the channel judged: recorded, linked-mastoids, contralateral-mastoid, average or bipolar', true),
     ],
   },
   {

@@ -372,6 +372,7 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     epoch: (i) => rj[i].epoch,
     reason: (i) => rj[i].reason,
     value: (i) => rj[i].value,
+    reference: (i) => rj[i].reference,
   });
 
   const sp = b.spectra;

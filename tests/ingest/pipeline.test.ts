@@ -45,7 +45,7 @@ describe('processRecording', () => {
     const spectra = bundle.spectra.filter((s) => s.reference === 'recorded' && s.averaging === 'mean');
     expect(spectra.length).toBe(8 * 5); // 8 EEG channels × 5 stages (EOG not selected)
     for (const s of spectra) {
-      const rejected = new Set(bundle.rejections.filter((r) => r.channel === s.channel).map((r) => r.epoch));
+      const rejected = new Set(bundle.rejections.filter((r) => r.channel === s.channel && r.reference === 'recorded').map((r) => r.epoch));
       const rows = stages.map((st, e) => (st === s.stage && !rejected.has(e) ? e : -1)).filter((e) => e >= 0);
       expect(s.nEpochs).toBe(rows.length);
       expect(s.nSegments).toBe(rows.length * 14); // (30 − 4)/2 + 1 segments per epoch
@@ -58,13 +58,26 @@ describe('processRecording', () => {
   });
 
   it('rejects the planted spikes by amplitude and keeps rejections rare elsewhere', () => {
-    const c3 = bundle.rejections.filter((r) => r.channel === 'C3' && r.reason === 'amplitude').map((r) => r.epoch);
+    const recorded = bundle.rejections.filter((r) => r.reference === 'recorded');
+    const c3 = recorded.filter((r) => r.channel === 'C3' && r.reason === 'amplitude').map((r) => r.epoch);
     expect(c3).toEqual([5, 21]);
-    const others = bundle.rejections.filter((r) => r.reason === 'amplitude' && r.channel !== 'C3' && r.channel !== 'F3-C3');
+    const others = recorded.filter((r) => r.reason === 'amplitude' && r.channel !== 'C3');
     expect(others).toEqual([]);
+    // the spike is C3's own, so C3 against the linked mastoids is rejected in the same epochs
+    expect(bundle.rejections.filter((r) => r.reference === 'linked-mastoids' && r.channel === 'C3' && r.reason === 'amplitude').map((r) => r.epoch)).toEqual([5, 21]);
     // modified z > 3.5 on Gaussian-like log powers: expect only a few percent of epochs
-    const outliers = bundle.rejections.filter((r) => r.reason.endsWith('outlier'));
-    expect(outliers.length / (48 * 9)).toBeLessThan(0.06);
+    const outliers = recorded.filter((r) => r.reason.endsWith('outlier'));
+    expect(outliers.length / (48 * 8)).toBeLessThan(0.06);
+  });
+
+  it('stores the rejections of every reference: each spectrum averages the stage epochs minus those rejected for its channel and reference', () => {
+    const refs = new Set(bundle.rejections.map((r) => r.reference));
+    expect([...refs].sort()).toEqual(['average', 'bipolar', 'linked-mastoids', 'recorded']);
+    for (const s of bundle.spectra) {
+      const rejected = new Set(bundle.rejections.filter((r) => r.channel === s.channel && r.reference === s.reference).map((r) => r.epoch));
+      const expected = stages.filter((st, e) => st === s.stage && !rejected.has(e)).length;
+      expect(s.nEpochs, `${s.reference} ${s.channel} ${s.stage}`).toBe(expected);
+    }
   });
 
   it('re-references before the spectrum: linked mastoids and bipolar equal scipy on the derived signals', async () => {

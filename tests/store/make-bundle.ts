@@ -76,7 +76,7 @@ export function makeBundle(runId: string, seed: number, size: BundleSize = SMALL
       onsetS: Float64Array.from({ length: size.epochs }, (_, e) => e * 30),
       stage: Array.from({ length: size.epochs }, (_, e) => stageCycle[e % 5]),
     },
-    rejections: [{ channel: channels[0], epoch: 3, reason: 'amplitude', value: 812.5 }],
+    rejections: [{ channel: channels[0], reference: 'recorded', epoch: 3, reason: 'amplitude', value: 812.5 }],
     spectra,
     bandPowers: [{ reference: 'recorded', channels, bands: [...size.bands], channelIdx, epoch, bandIdx, power: bandPower }],
     aperiodic: [{

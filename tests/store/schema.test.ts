@@ -73,6 +73,18 @@ describe('schema names equal DESIGN.md', () => {
     expect([...actual.get('participants')!.keys()][0]).toBe('subject');
   });
 
+  it('refuses to write into a file of an earlier version that lacks a column, naming it, and leaves the file as it was', async () => {
+    const file = join(dir, 'older.duckdb');
+    const store = await openStore(file, { create: true });
+    await sql(store, 'ALTER TABLE epoch_rejections DROP COLUMN reference'); // as files written before the column existed
+    await store.close();
+    await expect(openStore(file, { create: true })).rejects.toThrow(/earlier version of bandwise \(missing columns: epoch_rejections\.reference\); write into a new database file/);
+    const again = await openStore(file, { readOnly: true });
+    const cols = await sql(again, "SELECT column_name FROM duckdb_columns() WHERE table_name = 'epoch_rejections' ORDER BY column_index");
+    await again.close();
+    expect(cols.map((c) => c.column_name)).toEqual(['recording_id', 'channel', 'epoch', 'reason', 'value']);
+  });
+
   it('no column could hold EDF patient or recording identification text', () => {
     for (const t of TABLES) for (const c of t.columns) expect(c.name).not.toMatch(/patient|birth|identification|local_rec|startdate/i);
   });

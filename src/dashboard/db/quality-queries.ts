@@ -135,7 +135,7 @@ export async function recordingEpochs(db: SqlClient, recordingId: string, channe
       `SELECT e.epoch::DOUBLE AS epoch, e.onset_s::DOUBLE AS onset_s, e.stage::VARCHAR AS stage,
               coalesce(string_agg(DISTINCT x.reason, ', ' ORDER BY x.reason), '') AS reasons
        FROM ${COHORT}.epochs e
-       LEFT JOIN ${COHORT}.epoch_rejections x ON x.recording_id = e.recording_id AND x.epoch = e.epoch AND x.channel = ${literal(channel)}
+       LEFT JOIN ${COHORT}.epoch_rejections x ON x.recording_id = e.recording_id AND x.epoch = e.epoch AND x.channel = ${literal(channel)} AND x.reference = 'recorded'
        WHERE e.recording_id = ${literal(recordingId)}
        GROUP BY e.epoch, e.onset_s, e.stage ORDER BY e.epoch`,
     ),

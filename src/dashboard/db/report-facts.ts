@@ -46,7 +46,7 @@ export async function stageEpochCounts(db: SqlClient, runId: string): Promise<Da
     await db.query(
       `SELECT e.stage::VARCHAR AS stage, x.reason::VARCHAR AS reason, count(*)::DOUBLE AS n FROM ${COHORT}.epoch_rejections x
          JOIN ${COHORT}.epochs e USING (recording_id, epoch) JOIN ${COHORT}.recordings r USING (recording_id)
-       WHERE r.run_id = ${literal(runId)} GROUP BY e.stage, x.reason ORDER BY 1, 2`,
+       WHERE r.run_id = ${literal(runId)} AND x.reference = 'recorded' GROUP BY e.stage, x.reason ORDER BY 1, 2`,
     ),
   );
   return epochs.map((e) => {
