@@ -1,13 +1,15 @@
 /**
  * Reads what a contrast needs from a bandwise database (Node's DuckDB) into the pure form of
- * src/core/contrast, and runs it.
+ * src/core/contrast, and runs it (its permutations on several threads when it is large).
  */
 import { openStore, listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, type Store } from './store/index.ts';
 import type { Contrast } from '../src/core/contrast/spec.ts';
 import type { ContrastData, Exclusion, SpectrumRow } from '../src/core/contrast/data.ts';
 import { measureNeeds } from '../src/core/contrast/measure.ts';
-import { compare, type CompareResult } from '../src/core/contrast/run.ts';
-import type { ProgressCallback } from '../src/core/stats/index.ts';
+import { assembleContrast, type AssembledContrast } from '../src/core/contrast/assemble.ts';
+import { finishCompare, prepareAssembled, type CompareResult } from '../src/core/contrast/run.ts';
+import { runPermutations, type ProgressCallback } from '../src/core/stats/index.ts';
+import { compareOnThreads, defaultThreads } from './compare-threads.ts';
 import type { Stage } from '../src/core/stages.ts';
 
 export interface LoadedContrast {
@@ -74,7 +76,13 @@ export interface CompareRun extends CompareResult {
   database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown };
 }
 
-export async function compareDatabase(dbPath: string, c: Contrast, exclusions: Exclusion[], onProgress?: ProgressCallback, runId?: string): Promise<CompareRun> {
+export interface CompareOptions {
+  /** threads for the permutations (default: the machine's cores for a large contrast, else 1; see compare-threads.ts) */
+  threads?: number;
+}
+
+/** The run's identity and the assembled contrast; the rows read are garbage once this returns. */
+async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId?: string): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast }> {
   const store = await openStore(dbPath, { readOnly: true });
   let loaded: LoadedContrast;
   try {
@@ -83,6 +91,23 @@ export async function compareDatabase(dbPath: string, c: Contrast, exclusions: E
     // closed before the permutations, so DuckDB's cached pages are not held during them
     await store.close();
   }
-  const result = compare(c, loaded.data, onProgress);
-  return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } };
+  const { data, ...info } = loaded;
+  return { info, assembled: assembleContrast(c, data) };
+}
+
+/**
+ * The contrast on a database: read, assembled, then prepareAssembled + runPermutations +
+ * finishCompare (src/core/contrast/run.ts) on this thread, or the permutations split over worker
+ * threads (compare-threads.ts); either way the result equals compare() on the rows read.
+ */
+export async function compareDatabase(dbPath: string, c: Contrast, exclusions: Exclusion[], onProgress?: ProgressCallback, runId?: string, options: CompareOptions = {}): Promise<CompareRun> {
+  const { info, assembled } = await loadAssembled(dbPath, c, exclusions, runId);
+  const threads = options.threads ?? defaultThreads(assembled, c.permutations);
+  let result: CompareResult;
+  if (threads > 1) result = await compareOnThreads(c, assembled, threads, onProgress);
+  else {
+    const p = prepareAssembled(c, assembled);
+    result = finishCompare(p, runPermutations(p.prepared.test, { from: 0, to: p.prepared.test.scheme.count }, onProgress));
+  }
+  return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters } };
 }

@@ -54,7 +54,11 @@ export interface PreparedCompare {
 }
 
 export function prepareCompare(c: Contrast, data: ContrastData): PreparedCompare {
-  const assembled = assembleContrast(c, data);
+  return prepareAssembled(c, assembleContrast(c, data));
+}
+
+/** prepareCompare from the assembled contrast (a thread given the assembly, not the rows, prepares from here). */
+export function prepareAssembled(c: Contrast, assembled: AssembledContrast): PreparedCompare {
   const options = statsOptions(c);
   options.frequencyAdjacency = assembled.layout.frequencyAdjacency;
   return { contrast: c, assembled, prepared: prepareContrast(assembled.input, options) };

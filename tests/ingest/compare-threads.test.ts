@@ -1,0 +1,82 @@
+// `bandwise compare` with its permutations on worker threads (ingest/compare-threads.ts, the
+// matrix shared through a SharedArrayBuffer) gives the single-thread compare() of
+// src/core/contrast/run.ts on the same rows exactly (JSON equal), for 1, 2 and 3 threads (3 does
+// not divide the 301 permutations evenly), a groups design with cluster mass, one with TFCE and a
+// paired design (its second matrix shared too); a ContrastInputError raised in a worker reaches
+// the caller with its type and message. Size: a synthetic database of 24 recordings × 6 channels
+// × 5 stages × 61 bins (0–15 Hz), contrasts on 1–12 Hz with 301 permutations.
+import { mkdtempSync, rmSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { compareDatabase, loadContrastData } from '../../ingest/compare.ts';
+import { openStore } from '../../ingest/store/index.ts';
+import { writeSyntheticDatabase } from '../../ingest/store/synthetic.ts';
+import type { ContrastData, Exclusion } from '../../src/core/contrast/data.ts';
+import { compare } from '../../src/core/contrast/run.ts';
+import { parseContrast, type Contrast } from '../../src/core/contrast/spec.ts';
+import { syntheticSpec } from '../../src/core/simulate/synthetic-database.ts';
+import { ContrastInputError } from '../../src/core/stats/index.ts';
+
+describe('compare on worker threads', () => {
+  let dir: string;
+  let file: string;
+
+  beforeAll(async () => {
+    dir = mkdtempSync(path.join(os.tmpdir(), 'bandwise-compare-threads-'));
+    file = path.join(dir, 'synthetic.duckdb');
+    // a strong exponent effect, so the groups contrasts find clusters (the comparison is not between empty results)
+    await writeSyntheticDatabase(file, syntheticSpec({ recordings: 24, channelCount: 6, nBins: 61, seed: 3, effect: { offsetLog10: 0.3, exponent: 0.4, sigmaHeightLog10: -0.1 } }));
+  });
+
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+  async function rows(c: Contrast, exclusions: Exclusion[] = []): Promise<ContrastData> {
+    const store = await openStore(file, { readOnly: true });
+    try {
+      return (await loadContrastData(store, c, exclusions)).data;
+    } finally {
+      await store.close();
+    }
+  }
+
+  const contrasts = {
+    'groups, cluster mass': { design: 'groups', groups: ['control', 'patient'], stage: 'N2', fminHz: 1, fmaxHz: 12, permutations: 301, seed: 4 },
+    'groups, TFCE': { design: 'groups', groups: ['control', 'patient'], stage: 'N3', fminHz: 1, fmaxHz: 12, correction: 'tfce', permutations: 301, seed: 5 },
+    'paired N2 vs R': { design: 'paired', stages: ['N2', 'R'], fminHz: 1, fmaxHz: 12, permutations: 301, seed: 6 },
+  };
+
+  for (const [name, json] of Object.entries(contrasts)) {
+    it(`${name}: 1, 2 and 3 threads equal compare()`, async () => {
+      const c = parseContrast(json);
+      const single = compare(c, await rows(c));
+      expect(single.clusters.length + (single.statistics.tfce ? 1 : 0)).toBeGreaterThan(0);
+      for (const threads of [1, 2, 3]) {
+        const progress: [number, number][] = [];
+        const { database, ...result } = await compareDatabase(file, c, [], (done, total) => progress.push([done, total]), undefined, { threads });
+        expect(database.file).toBe('synthetic.duckdb');
+        expect(JSON.stringify(result), `${threads} threads`).toBe(JSON.stringify(single));
+        expect(progress[progress.length - 1]).toEqual([301, 301]);
+      }
+    });
+  }
+
+  it('a ContrastInputError in a worker reaches the caller typed', async () => {
+    const c = parseContrast(contrasts['groups, cluster mass']);
+    // every patient (odd recordings) but one left out: the statistics refuse a group of one
+    const exclusions: Exclusion[] = Array.from({ length: 11 }, (_, i) => ({ subject: '', channel: null, reason: 'test' }));
+    const all = await rows(c);
+    const patients = [...new Set(all.participants.filter((p) => p.group === 'patient').map((p) => String(p.subject)))].sort();
+    patients.slice(1).forEach((s, i) => (exclusions[i].subject = s));
+    let expected: unknown;
+    try {
+      compare(c, await rows(c, exclusions));
+    } catch (e) {
+      expected = e;
+    }
+    expect(expected).toBeInstanceOf(ContrastInputError);
+    const threaded = compareDatabase(file, c, exclusions, undefined, undefined, { threads: 2 });
+    await expect(threaded).rejects.toBeInstanceOf(ContrastInputError);
+    await expect(threaded).rejects.toThrow((expected as Error).message);
+  });
+});
