@@ -74,6 +74,13 @@ export class RealFftPower {
       a[2 * j] = x[j] * this.chirpRe[j];
       a[2 * j + 1] = x[j] * this.chirpIm[j];
     }
+    this.convolveWithChirp();
+    for (let k = 0; k < this.nOut; k++) out[k] = a[2 * k] * a[2 * k] + a[2 * k + 1] * a[2 * k + 1];
+  }
+
+  /** Bluestein's convolution in place: work ← work ⊛ conj(w), by FFT, product with the transformed chirp, inverse FFT. */
+  private convolveWithChirp(): void {
+    const a = this.work;
     const s = this.spectrum;
     this.fft.transform(s, a);
     const b = this.chirpFft;
@@ -84,7 +91,6 @@ export class RealFftPower {
       s[i + 1] = im;
     }
     this.fft.inverseTransform(a, s);
-    for (let k = 0; k < this.nOut; k++) out[k] = a[2 * k] * a[2 * k] + a[2 * k + 1] * a[2 * k + 1];
   }
 
   /**
@@ -117,16 +123,7 @@ export class RealFftPower {
       a[2 * j] = re * this.chirpRe[j] - im * this.chirpIm[j];
       a[2 * j + 1] = re * this.chirpIm[j] + im * this.chirpRe[j];
     }
-    const s = this.spectrum;
-    this.fft.transform(s, a);
-    const b = this.chirpFft;
-    for (let i = 0; i < s.length; i += 2) {
-      const re = s[i] * b[i] - s[i + 1] * b[i + 1];
-      const im = s[i] * b[i + 1] + s[i + 1] * b[i];
-      s[i] = re;
-      s[i + 1] = im;
-    }
-    this.fft.inverseTransform(a, s);
+    this.convolveWithChirp();
     for (let k = 0; k < n; k++) {
       const re = a[2 * k];
       const im = a[2 * k + 1];
