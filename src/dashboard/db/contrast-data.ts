@@ -21,11 +21,14 @@ export interface SpectraKey {
   averaging: string;
 }
 
+/** Below this many stored values (4 MB) the power lists come in one result, not a stream (which costs a connection and several round trips to the engine). */
+const STREAM_MIN_VALUES = 1 << 20;
+
 /**
  * Stored spectra of one run × stage × reference × averaging, ordered by subject, session, recording,
- * channel. Two reads: the keys in that order (small), then the power lists streamed in storage
- * order, each copied into its row's place of one Float32Array as it arrives — the engine never
- * sorts (nor holds) the lists, and the page never holds them twice.
+ * channel. Two reads: the keys in that order (small), then the power lists in storage order, each
+ * copied into its row's place of one Float32Array — streamed as they arrive when there are many,
+ * so the engine never sorts (nor holds) the lists and the page never holds them twice.
  */
 export async function contrastSpectra(
   db: SqlClient,
@@ -34,6 +37,8 @@ export async function contrastSpectra(
   const from = `FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
      WHERE r.run_id = ${literal(q.runId)} AND s.stage = ${literal(q.stage)}
        AND s.reference = ${literal(q.reference)} AND s.averaging = ${literal(q.averaging)}`;
+  const powerSql = `SELECT s.recording_id::VARCHAR AS recording_id, s.channel::VARCHAR AS channel, s.power AS power ${from}`;
+  // the keys, with the count that decides how the lists are read
   const t = await db.query(
     `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, s.recording_id::VARCHAR AS recording_id,
             s.channel::VARCHAR AS channel, s.n_epochs::DOUBLE AS n_epochs, s.flagged AS flagged, s.flag_reason::VARCHAR AS flag_reason,
@@ -57,7 +62,8 @@ export async function contrastSpectra(
   for (let i = 0; i < t.numRows; i++) place.set(`${recording[i]}\u0000${channel[i]}`, i);
   const power = new Float32Array(t.numRows * nBins);
   let copied = 0;
-  for await (const batch of resultBatches(db, `SELECT s.recording_id::VARCHAR AS recording_id, s.channel::VARCHAR AS channel, s.power AS power ${from}`)) {
+  const batches = t.numRows * nBins < STREAM_MIN_VALUES ? (await db.query(powerSql)).batches : resultBatches(db, powerSql);
+  for await (const batch of batches) {
     const rec = batch.getChild('recording_id')!;
     const ch = batch.getChild('channel')!;
     listColumnRowsInto(batch, 'power', nBins, (i) => {
