@@ -4,12 +4,11 @@
 // raw lock error. Outside source: DuckDB's concurrency rule (documentation, "Concurrency": one
 // process may open a database file for writing, and then no other process can open it; many
 // processes may read it together when none writes) and RFC 9110 §14 for the range answers.
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ensureDashboardBuilt } from '../../ingest/dashboard.ts';
 import { DATABASE_URL_PATH, startDashboardServer } from '../../ingest/server/serve.ts';
 import { faultEdfBytes, STAGES_10 } from './fixture.ts';
 import { cli, dumpAll, run } from './helpers.ts';
@@ -46,7 +45,10 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 describe('readers while an ingest writes another file', () => {
   it('the server and compare read the finished database; readers of the busy file get an explanation', async () => {
-    const appDir = await ensureDashboardBuilt();
+    // a stand-in app folder (the built app is served in privacy-readers.test.ts; one build at a time)
+    const appDir = at('app');
+    mkdirSync(appDir, { recursive: true });
+    writeFileSync(path.join(appDir, 'index.html'), '<!doctype html><title>stand-in</title>\n');
     const before = await dumpAll(finished);
     const busy = at('busy.duckdb');
     const writer = cli(['ingest', writerTable, '--out', busy, '--jobs', '1']);

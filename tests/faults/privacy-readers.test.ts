@@ -111,5 +111,5 @@ describe('planted EDF identification never reaches readers', () => {
     }
     expect(seen.length).toBeGreaterThan(8);
     expect(existsSync(at('db.duckdb.wal'))).toBe(false);
-  }, 60_000);
+  }, 180_000); // builds the app with Vite first when dist/dashboard is missing
 });
