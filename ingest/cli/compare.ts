@@ -24,7 +24,14 @@ const num = (name: string) => (v: string) => {
   return x;
 };
 
+const threadCount = (v: string) => {
+  const x = Number(v);
+  if (!(Number.isInteger(x) && x >= 1)) throw new InvalidArgumentError(`invalid --threads: ${v} (a whole number ≥ 1)`);
+  return x;
+};
+
 export interface Flags {
+  threads?: number;
   contrast?: string;
   out: string;
   tsv?: string;
@@ -173,7 +180,8 @@ export function register(program: Command): void {
     .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
     .requiredOption('--out <file>', 'result JSON to write')
     .option('--tsv <file>', 'cluster table as TSV')
-    .option('--points-tsv <file>', 'per-point statistics (t, df, p, effect size with interval, cluster) as TSV');
+    .option('--points-tsv <file>', 'per-point statistics (t, df, p, effect size with interval, cluster) as TSV')
+    .option('--threads <n>', 'threads for the permutations (default: one per core for a large contrast, else 1); the result is the same', threadCount);
   addContrastOptions(command, { bandMeasures: true });
   command
     .action(async (database: string, flags: Flags) => {
@@ -200,7 +208,7 @@ export function register(program: Command): void {
             started = true;
           }
           bar.update(done);
-        }, flags.run);
+        }, flags.run, { threads: flags.threads });
       } catch (e) {
         bar?.stop();
         if (reportUserError('compare', e)) return;
