@@ -69,7 +69,7 @@ export function register(program: Command): void {
       'Turn a cohort (TSV/CSV table or BIDS folder) into the spectral database: per channel and stage Welch ' +
         'spectra (µV²/Hz), aperiodic fits, epoch band powers and quality metrics. Resumable: recordings already ' +
         'stored with the same parameters are skipped. Exit status 0 all done, 3 some recordings failed (see ' +
-        'ingest_errors), 1 nothing done.',
+        'ingest_errors), 1 nothing done or the run had to stop (disk full: what was stored is kept, a rerun resumes).',
     )
     .argument('<cohort>', 'cohort table (.tsv/.csv) or BIDS folder')
     .requiredOption('--out <file>', 'database file to create or extend (DuckDB)')
