@@ -7,7 +7,7 @@
 // in the tab under 1.5 GB.
 //
 // Figures: open → result from navigation start in the page (marks bandwise:duckdb-ready,
-// bandwise:database-open, bandwise:contrast-data, bandwise:contrast-result); memory: the main
+// bandwise:database-open, bandwise:spectra-keys, bandwise:contrast-data, bandwise:contrast-result); memory: the main
 // thread's JS heap (CDP Performance.getMetrics JSHeapUsedSize / JSHeapTotalSize — it does not
 // count ArrayBuffers, the duckdb-wasm worker's memory or Arrow buffers), and the peak resident
 // set (VmHWM in /proc/<pid>/status) of the tab's renderer process, which holds the page, the
@@ -125,6 +125,7 @@ async function openToResult(appDir: string, file: string): Promise<Record<string
       clusterTableSha256: createHash('sha256').update(clusters).digest('hex').slice(0, 16),
       duckdbReadyMs: round(marks['duckdb-ready']),
       databaseOpenMs: round(marks['database-open']),
+      contrastKeysReadMs: marks['spectra-keys'] === undefined ? null : round(marks['spectra-keys']),
       contrastDataReadMs: marks['contrast-data'] === undefined ? null : round(marks['contrast-data']),
       openToResultMs: round(marks['contrast-result']),
       databaseBytesRead: dbRequests.reduce((a, r) => a + r.bytes, 0),

@@ -10,7 +10,7 @@ import { loadContrastData as loadCli } from '../../ingest/compare.ts';
 import { openStore } from '../../ingest/store/index.ts';
 import { compare } from '../../src/core/contrast/run.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
-import { loadContrastData } from '../../src/dashboard/db/contrast-data.ts';
+import { binsUpTo, contrastMaxHz, loadContrastData } from '../../src/dashboard/db/contrast-data.ts';
 import { channelSpectra, qualityRows, recordingEpochs } from '../../src/dashboard/db/quality-queries.ts';
 import { cohortSchema, runs, type CohortSchema } from '../../src/dashboard/db/queries.ts';
 import { FIXTURE_CHANNELS, FIXTURE_PARTICIPANTS, fixtureRecordingId, makeFixtureDb } from '../fixtures/make-fixture-db.ts';
@@ -56,9 +56,14 @@ describe('contrast data over duckdb-wasm equals the command line loader', () => 
       expect(ours.runId).toBe(theirs.runId);
       const a = ours.data;
       const b = theirs.data;
-      expect([a.spectra.freqStartHz, a.spectra.freqStepHz, a.spectra.nBins]).toEqual([b.spectra.freqStartHz, b.spectra.freqStepHz, b.spectra.nBins]);
+      expect([a.spectra.freqStartHz, a.spectra.freqStepHz]).toEqual([b.spectra.freqStartHz, b.spectra.freqStepHz]);
+      // log-psd and residual lists are read only up to fmaxHz: the first bins of the stored ones
+      const maxHz = contrastMaxHz(c);
+      const width = maxHz === undefined ? b.spectra.nBins : binsUpTo(b.spectra.freqStartHz, b.spectra.freqStepHz, maxHz);
+      expect(a.spectra.nBins).toBe(width);
+      if (maxHz !== undefined) expect(width).toBeLessThan(b.spectra.nBins);
       expect(a.spectra.rows.length).toBe(b.spectra.rows.length);
-      const plain = (r: (typeof a.spectra.rows)[number]) => ({ ...r, power: Array.from(r.power) });
+      const plain = (r: (typeof a.spectra.rows)[number]) => ({ ...r, power: Array.from(r.power.subarray(0, width)) });
       expect(a.spectra.rows.map(plain)).toEqual(b.spectra.rows.map(plain));
       expect(a.aperiodic).toEqual(b.aperiodic);
       expect(a.peaks).toEqual(b.peaks);
@@ -80,6 +85,16 @@ describe('contrast data over duckdb-wasm equals the command line loader', () => 
       expect(ra.exclusions.some((e) => e.subject === 'sub-02')).toBe(true);
     });
   }
+
+  it('binsUpTo keeps the bins a measure up to maxHz uses (f0 + k·df ≤ maxHz + 1e-9), counted directly', () => {
+    for (const [f0, df] of [[0, 0.25], [0, 0.2], [0.5, 0.1], [0, 1 / 3]]) {
+      for (const maxHz of [0, 0.7, 1, 12.2, 30, 44.9]) {
+        let direct = 0;
+        while (f0 + direct * df <= maxHz + 1e-9) direct++;
+        expect(binsUpTo(f0, df, maxHz)).toBe(Math.max(1, direct));
+      }
+    }
+  });
 
   it('quality screen queries: rows with subjects, one channel across recordings, epochs with rejections', async () => {
     const q = await qualityRows(client, schema);

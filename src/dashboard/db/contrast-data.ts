@@ -26,18 +26,18 @@ const STREAM_MIN_VALUES = 1 << 20;
 
 /**
  * Stored spectra of one run × stage × reference × averaging, ordered by subject, session, recording,
- * channel. Two reads: the keys in that order (small), then the power lists in storage order, each
+ * channel; with maxHz, each list only up to that frequency (the axis start unchanged). Two reads: the keys in that order (small), then the power lists in storage order, each
  * copied into its row's place of one Float32Array — streamed as they arrive when there are many,
  * so the engine never sorts (nor holds) the lists and the page never holds them twice.
  */
 export async function contrastSpectra(
   db: SqlClient,
   q: SpectraKey,
+  maxHz?: number,
 ): Promise<{ freqStartHz: number; freqStepHz: number; nBins: number; rows: SpectrumRow[] }> {
   const from = `FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
      WHERE r.run_id = ${literal(q.runId)} AND s.stage = ${literal(q.stage)}
        AND s.reference = ${literal(q.reference)} AND s.averaging = ${literal(q.averaging)}`;
-  const powerSql = `SELECT s.recording_id::VARCHAR AS recording_id, s.channel::VARCHAR AS channel, s.power AS power ${from}`;
   // the keys, with the count that decides how the lists are read
   const t = await db.query(
     `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, s.recording_id::VARCHAR AS recording_id,
@@ -46,6 +46,7 @@ export async function contrastSpectra(
      ${from}
      ORDER BY r.subject, r.session NULLS FIRST, s.recording_id, s.channel`,
   );
+  performance.mark('bandwise:spectra-keys');
   const f0 = numberColumn(t, 'f0');
   const df = numberColumn(t, 'df');
   const nb = numberColumn(t, 'n_bins');
@@ -54,7 +55,10 @@ export async function contrastSpectra(
       throw new Error(`spectra of ${q.stage}/${q.reference}/${q.averaging}: row ${i} has frequency axis ${f0[i]} + k·${df[i]} Hz × ${nb[i]}, the first ${f0[0]} + k·${df[0]} Hz × ${nb[0]}`);
     }
   }
-  const nBins = t.numRows > 0 ? nb[0] : 0;
+  const nBins = t.numRows > 0 ? Math.min(nb[0], maxHz === undefined ? nb[0] : binsUpTo(f0[0], df[0], maxHz)) : 0;
+  // the first nBins of each list (list_slice counts from 1, end included)
+  const powerSql = `SELECT s.recording_id::VARCHAR AS recording_id, s.channel::VARCHAR AS channel,
+                           ${t.numRows > 0 && nBins < nb[0] ? `list_slice(s.power, 1, ${nBins})` : 's.power'} AS power ${from}`;
   const subject = stringColumn(t, 'subject');
   const recording = stringColumn(t, 'recording_id');
   const channel = stringColumn(t, 'channel');
@@ -94,6 +98,22 @@ export async function contrastSpectra(
     };
   }
   return { freqStartHz: t.numRows > 0 ? f0[0] : 0, freqStepHz: t.numRows > 0 ? df[0] : 0, nBins, rows };
+}
+
+/**
+ * Bins k = 0, 1, … whose frequency f0 + k·df is at most maxHz (with measureLayout's 1e-9 Hz
+ * tolerance, so a measure up to maxHz finds the same bins as in the whole list); at least one.
+ */
+export function binsUpTo(f0: number, df: number, maxHz: number): number {
+  let k = Math.max(0, Math.floor((maxHz - f0) / df));
+  while (f0 + (k + 1) * df <= maxHz + 1e-9) k++;
+  while (k > 0 && f0 + k * df > maxHz + 1e-9) k--;
+  return k + 1;
+}
+
+/** Highest frequency a contrast's measure reads from the stored lists (Hz), undefined for all of it. */
+export function contrastMaxHz(c: Contrast): number | undefined {
+  return c.measure === 'log-psd' || c.measure === 'residual' ? c.fmaxHz : undefined;
 }
 
 /** Aperiodic fits of one run × stage × reference × averaging and method. */
@@ -179,7 +199,8 @@ export async function loadContrastData(
       stages.map((stage) => {
         const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
         return Promise.all([
-          contrastSpectra(db, q),
+          // log-psd and residual read no bin above fmaxHz: those lists are read cut there
+          contrastSpectra(db, q, contrastMaxHz(c)),
           needs.aperiodic ? contrastAperiodic(db, q, c.aperiodicMethod) : Promise.resolve([]),
           needs.peaks ? contrastPeaks(db, q, c.aperiodicMethod) : Promise.resolve([]),
         ]);

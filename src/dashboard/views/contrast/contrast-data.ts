@@ -4,7 +4,7 @@ import type { ContrastData, Exclusion } from '../../../core/contrast/data.ts';
 import type { CompareResult } from '../../../core/contrast/run.ts';
 import type { Contrast } from '../../../core/contrast/spec.ts';
 import type { Row } from '../../db/arrow-rows.ts';
-import { loadContrastData } from '../../db/contrast-data.ts';
+import { contrastMaxHz, loadContrastData } from '../../db/contrast-data.ts';
 import { participants, type CohortSchema, type RunInfo } from '../../db/queries.ts';
 import { spectraChoices } from '../../db/quality-queries.ts';
 import type { SqlClient } from '../../db/sql-client.ts';
@@ -35,7 +35,7 @@ export async function loadChoices(db: SqlClient, schema: CohortSchema): Promise<
   return { textColumns, numericColumns, stages: uniq('stage'), references: uniq('reference'), averagings: uniq('averaging') };
 }
 
-/** Reads ContrastData once per (stages, reference, averaging, measure needs); exclusions applied on each use. */
+/** Reads ContrastData once per (stages, reference, averaging, measure, highest frequency read); exclusions applied on each use. */
 export class ContrastDataCache {
   private cache = new Map<string, Promise<{ runId: string; data: ContrastData }>>();
 
@@ -47,7 +47,7 @@ export class ContrastDataCache {
 
   async get(c: Contrast, exclusions: readonly Exclusion[]): Promise<{ runId: string; data: ContrastData }> {
     const stages = c.design === 'paired' && c.stages ? c.stages.join(',') : c.stage;
-    const key = [stages, c.reference, c.averaging, c.measure, c.aperiodicMethod].join('|');
+    const key = [stages, c.reference, c.averaging, c.measure, c.aperiodicMethod, contrastMaxHz(c) ?? 'all'].join('|');
     let entry = this.cache.get(key);
     if (entry === undefined) {
       entry = loadContrastData(this.db, this.schema, this.runs, c, []);
