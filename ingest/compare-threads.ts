@@ -1,17 +1,20 @@
 /**
  * `bandwise compare`'s permutations on several threads (node:worker_threads, one per core by
- * default): the contrast is assembled once in the main thread, its subjects × points matrix
- * copied once into a SharedArrayBuffer that every thread reads, and each thread (compare-worker.ts)
- * prepares the statistics from that assembly and runs its permutationShare; part 0 joins the null
- * maxima and finishes. The split is the one of src/core/contrast/run.ts (prepareCompare,
- * runPermutations of shares, finishCompare), so the result equals compare() exactly.
+ * default): the contrast is assembled once, its subjects × points matrix copied once into a
+ * SharedArrayBuffer that every thread reads (sharedAssembly); the main thread and threads − 1
+ * workers (compare-worker.ts) each prepare the statistics from that assembly and run their
+ * permutationShare, and the main thread joins the null maxima and finishes. The split is the one
+ * of src/core/contrast/run.ts (prepareCompare, runPermutations of shares, finishCompare), so the
+ * result equals compare() exactly. Part 0 runs on the main thread so that preparing its
+ * statistics (a matrix-sized allocation) lets the main thread's garbage collector free the rows
+ * read and the unshared matrix before the permutations.
  */
 import { availableParallelism } from 'node:os';
-import { Worker } from 'node:worker_threads';
+import { MessageChannel, Worker, receiveMessageOnPort, type MessagePort } from 'node:worker_threads';
 import type { AssembledContrast } from '../src/core/contrast/assemble.ts';
-import type { CompareResult } from '../src/core/contrast/run.ts';
+import { finishCompare, permutationShare, prepareAssembled, type CompareResult } from '../src/core/contrast/run.ts';
 import type { Contrast } from '../src/core/contrast/spec.ts';
-import { ContrastInputError, type Matrix, type NullMaxima, type ProgressCallback } from '../src/core/stats/index.ts';
+import { ContrastInputError, concatNullMaxima, runPermutations, type Matrix, type NullMaxima, type ProgressCallback } from '../src/core/stats/index.ts';
 import type { CompareWorkReply, CompareWorkRequest } from './compare-worker.ts';
 
 const BOOTSTRAP = new URL('./compare-worker-bootstrap.mjs', import.meta.url);
@@ -35,7 +38,7 @@ function shared<T extends Matrix>(m: T): T {
 }
 
 /** The assembly with its matrices (data, and a paired design's second condition) in shared memory. */
-function sharedAssembly(a: AssembledContrast): AssembledContrast {
+export function sharedAssembly(a: AssembledContrast): AssembledContrast {
   const design = a.input.design.kind === 'paired' ? { ...a.input.design, second: shared(a.input.design.second) } : a.input.design;
   return { ...a, input: { ...a.input, data: shared(a.input.data), design } };
 }
@@ -47,32 +50,56 @@ function workerError(m: Extract<CompareWorkReply, { kind: 'error' }>): Error {
   return e;
 }
 
-/** Runs the assembled contrast's permutations on `threads` worker threads and returns the finished result. */
-export async function compareOnThreads(c: Contrast, assembled: AssembledContrast, threads: number, onProgress?: ProgressCallback): Promise<CompareResult> {
+/**
+ * Runs a shared assembly's permutations on this thread and threads − 1 workers and returns the
+ * finished result. onProgress gets the permutations done over all threads.
+ */
+export async function compareOnThreads(c: Contrast, assembly: AssembledContrast, threads: number, onProgress?: ProgressCallback): Promise<CompareResult> {
   if (!(Number.isInteger(threads) && threads >= 1)) throw new RangeError(`invalid number of threads: ${threads}`);
-  const assembly = sharedAssembly(assembled);
-  const workers = Array.from({ length: threads }, () => new Worker(BOOTSTRAP));
+  const workers: Worker[] = [];
+  const ports: MessagePort[] = [];
   const done = new Array<number>(threads).fill(0);
   try {
-    return await new Promise<CompareResult>((resolve, reject) => {
-      const others: NullMaxima[] = [];
-      workers.forEach((w, part) => {
+    const nulls = new Promise<NullMaxima[]>((resolve, reject) => {
+      const parts: NullMaxima[] = [];
+      for (let part = 1; part < threads; part++) {
+        const w = new Worker(BOOTSTRAP);
+        workers.push(w);
+        const { port1, port2 } = new MessageChannel();
+        ports.push(port1);
         w.on('error', reject);
         w.on('exit', (code) => reject(new Error(`compare worker ${part} exited with code ${code}`)));
         w.on('message', (m: CompareWorkReply) => {
-          if (m.kind === 'progress') {
-            done[m.part] = m.done;
-            onProgress?.(done.reduce((a, b) => a + b, 0), m.count);
-          } else if (m.kind === 'nulls') {
-            others.push(m.nulls);
-            if (others.length === threads - 1) workers[0].postMessage({ kind: 'nulls', nulls: others } satisfies CompareWorkRequest);
-          } else if (m.kind === 'result') resolve(m.result);
-          else reject(workerError(m));
+          if (m.kind === 'error') reject(workerError(m));
+          else if (parts.push(m.nulls) === threads - 1) resolve(parts);
         });
-        w.postMessage({ kind: 'run', contrast: c, assembled: assembly, part, parts: threads } satisfies CompareWorkRequest);
-      });
+        w.postMessage({ contrast: c, assembled: assembly, part, parts: threads, progress: port2 } satisfies CompareWorkRequest, [port2]);
+      }
+      if (threads === 1) resolve(parts);
     });
+    nulls.catch(() => {}); // awaited below, after this thread's share; a worker's failure is thrown there
+    const p = prepareAssembled(c, assembly);
+    const count = p.prepared.test.scheme.count;
+    // the workers' progress, read from their ports; synchronously while this thread computes
+    const report = () => onProgress?.(done.reduce((a, b) => a + b, 0), count);
+    const drain = () => ports.forEach((port, i) => {
+      for (let m = receiveMessageOnPort(port); m; m = receiveMessageOnPort(port)) done[i + 1] = (m.message as { done: number }).done;
+    });
+    const own = runPermutations(p.prepared.test, permutationShare(count, 0, threads), (d) => {
+      done[0] = d;
+      drain();
+      report();
+    });
+    ports.forEach((port, i) => port.on('message', (m: { done: number }) => {
+      done[i + 1] = m.done;
+      report();
+    }));
+    const others = await nulls;
+    drain(); // each worker's last progress was posted before its null maxima
+    report();
+    return finishCompare(p, concatNullMaxima([own, ...others]));
   } finally {
+    ports.forEach((port) => port.close());
     await Promise.all(workers.map((w) => w.terminate()));
   }
 }

@@ -1,25 +1,28 @@
 /**
- * One permutation thread of `bandwise compare` (ingest/compare-threads.ts starts them): given the
- * assembled contrast (its subjects × points matrix in a SharedArrayBuffer, so every thread reads
- * the one copy), it prepares the statistics (src/core/contrast/run.ts prepareAssembled), runs its
- * permutationShare, and either posts its null maxima (parts > 0) or, as part 0, waits for the
- * others' and posts the finished result. Progress goes back at most every 100 ms.
+ * One permutation thread of `bandwise compare` (ingest/compare-threads.ts starts them; the main
+ * thread runs part 0 itself and finishes): given the assembled contrast (its subjects × points
+ * matrix in a SharedArrayBuffer, so every thread reads the one copy), it prepares the statistics
+ * (src/core/contrast/run.ts prepareAssembled), runs its permutationShare and posts the null
+ * maxima. Progress goes to its own port at most every 100 ms (the main thread reads it
+ * synchronously while it computes its own share).
  */
-import { parentPort } from 'node:worker_threads';
+import { parentPort, type MessagePort } from 'node:worker_threads';
 import type { AssembledContrast } from '../src/core/contrast/assemble.ts';
-import { finishCompare, permutationShare, prepareAssembled, type CompareResult, type PreparedCompare } from '../src/core/contrast/run.ts';
+import { permutationShare, prepareAssembled } from '../src/core/contrast/run.ts';
 import type { Contrast } from '../src/core/contrast/spec.ts';
-import { ContrastInputError, concatNullMaxima, runPermutations, type NullMaxima } from '../src/core/stats/index.ts';
+import { ContrastInputError, runPermutations, type NullMaxima } from '../src/core/stats/index.ts';
 
-export type CompareWorkRequest =
-  | { kind: 'run'; contrast: Contrast; assembled: AssembledContrast; part: number; parts: number }
-  | { kind: 'nulls'; nulls: NullMaxima[] };
+export interface CompareWorkRequest {
+  contrast: Contrast;
+  assembled: AssembledContrast;
+  part: number;
+  parts: number;
+  /** receives { done } (permutations of this part so far) */
+  progress: MessagePort;
+}
 
 export type CompareWorkReply =
-  /** done: permutations of this part so far; count: permutations of the whole contrast */
-  | { kind: 'progress'; part: number; done: number; count: number }
   | { kind: 'nulls'; part: number; nulls: NullMaxima }
-  | { kind: 'result'; result: CompareResult }
   /** field and value are set for a ContrastInputError (rebuilt with its type in the main thread) */
   | { kind: 'error'; name: string; message: string; stack?: string; field?: string; value?: unknown };
 
@@ -27,37 +30,26 @@ if (!parentPort) throw new Error('ingest/compare-worker.ts must run in a worker 
 const port = parentPort;
 const post = (m: CompareWorkReply) => port.postMessage(m);
 
-/** part 0's prepared contrast and own null maxima, waiting for the other parts' */
-let waiting: { prepared: PreparedCompare; own: NullMaxima } | null = null;
-
 port.on('message', (req: CompareWorkRequest) => {
   try {
-    if (req.kind === 'run') {
-      const prepared = prepareAssembled(req.contrast, req.assembled);
-      const count = prepared.prepared.test.scheme.count;
-      const range = permutationShare(count, req.part, req.parts);
-      let last = 0;
-      const own = runPermutations(prepared.prepared.test, range, (done, total) => {
-        const now = performance.now();
-        if (now - last >= 100 || done === total) {
-          last = now;
-          post({ kind: 'progress', part: req.part, done, count });
-        }
-      });
-      if (req.part !== 0) post({ kind: 'nulls', part: req.part, nulls: own });
-      else if (req.parts === 1) post({ kind: 'result', result: finishCompare(prepared, own) });
-      else waiting = { prepared, own };
-    } else {
-      if (waiting === null) throw new Error('null maxima arrived before part 0 finished its own');
-      const { prepared, own } = waiting;
-      waiting = null;
-      post({ kind: 'result', result: finishCompare(prepared, concatNullMaxima([own, ...req.nulls])) });
-    }
+    const prepared = prepareAssembled(req.contrast, req.assembled);
+    const range = permutationShare(prepared.prepared.test.scheme.count, req.part, req.parts);
+    let last = 0;
+    const nulls = runPermutations(prepared.prepared.test, range, (done, total) => {
+      const now = performance.now();
+      if (now - last >= 100 || done === total) {
+        last = now;
+        req.progress.postMessage({ done });
+      }
+    });
+    post({ kind: 'nulls', part: req.part, nulls });
   } catch (e) {
     const err = e instanceof Error ? e : new Error(String(e));
     post({
       kind: 'error', name: err.name, message: err.message, stack: err.stack,
       ...(err instanceof ContrastInputError ? { field: err.field, value: err.value } : {}),
     });
+  } finally {
+    req.progress.close();
   }
 });

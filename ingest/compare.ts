@@ -7,9 +7,9 @@ import type { Contrast } from '../src/core/contrast/spec.ts';
 import type { ContrastData, Exclusion, SpectrumRow } from '../src/core/contrast/data.ts';
 import { measureNeeds } from '../src/core/contrast/measure.ts';
 import { assembleContrast, type AssembledContrast } from '../src/core/contrast/assemble.ts';
-import { finishCompare, prepareAssembled, type CompareResult } from '../src/core/contrast/run.ts';
-import { runPermutations, type ProgressCallback } from '../src/core/stats/index.ts';
-import { compareOnThreads, defaultThreads } from './compare-threads.ts';
+import type { CompareResult } from '../src/core/contrast/run.ts';
+import type { ProgressCallback } from '../src/core/stats/index.ts';
+import { compareOnThreads, defaultThreads, sharedAssembly } from './compare-threads.ts';
 import type { Stage } from '../src/core/stages.ts';
 
 export interface LoadedContrast {
@@ -81,8 +81,12 @@ export interface CompareOptions {
   threads?: number;
 }
 
-/** The run's identity and the assembled contrast; the rows read are garbage once this returns. */
-async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId?: string): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast }> {
+/**
+ * The run's identity, the assembled contrast and the threads for its permutations (with more
+ * than one, the assembly's matrices are in shared memory); the rows read and the unshared
+ * matrices are garbage once this returns.
+ */
+async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId: string | undefined, threads: number | undefined): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
   const store = await openStore(dbPath, { readOnly: true });
   let loaded: LoadedContrast;
   try {
@@ -92,22 +96,19 @@ async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[
     await store.close();
   }
   const { data, ...info } = loaded;
-  return { info, assembled: assembleContrast(c, data) };
+  const assembled = assembleContrast(c, data);
+  const n = threads ?? defaultThreads(assembled, c.permutations);
+  return { info, assembled: n > 1 ? sharedAssembly(assembled) : assembled, threads: n };
 }
 
 /**
  * The contrast on a database: read, assembled, then prepareAssembled + runPermutations +
- * finishCompare (src/core/contrast/run.ts) on this thread, or the permutations split over worker
- * threads (compare-threads.ts); either way the result equals compare() on the rows read.
+ * finishCompare (src/core/contrast/run.ts) on this thread, or with the permutations split over
+ * worker threads too (compare-threads.ts); either way the result equals compare() on the rows read.
  */
 export async function compareDatabase(dbPath: string, c: Contrast, exclusions: Exclusion[], onProgress?: ProgressCallback, runId?: string, options: CompareOptions = {}): Promise<CompareRun> {
-  const { info, assembled } = await loadAssembled(dbPath, c, exclusions, runId);
-  const threads = options.threads ?? defaultThreads(assembled, c.permutations);
-  let result: CompareResult;
-  if (threads > 1) result = await compareOnThreads(c, assembled, threads, onProgress);
-  else {
-    const p = prepareAssembled(c, assembled);
-    result = finishCompare(p, runPermutations(p.prepared.test, { from: 0, to: p.prepared.test.scheme.count }, onProgress));
-  }
+  if (options.threads !== undefined && !(Number.isInteger(options.threads) && options.threads >= 1)) throw new RangeError(`invalid number of threads: ${options.threads}`);
+  const { info, assembled, threads } = await loadAssembled(dbPath, c, exclusions, runId, options.threads);
+  const result = await compareOnThreads(c, assembled, threads, onProgress);
   return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters } };
 }

@@ -2,7 +2,7 @@
 // matrix shared through a SharedArrayBuffer) gives the single-thread compare() of
 // src/core/contrast/run.ts on the same rows exactly (JSON equal): a groups design with cluster
 // mass on 1, 2 and 3 threads (3 does not divide the 301 permutations evenly), one with TFCE and a
-// paired design (its second matrix shared too) on 2; a ContrastInputError raised in a worker reaches
+// paired design (its second matrix shared too) on 2; a ContrastInputError of the statistics reaches
 // the caller with its type and message. Size: a synthetic database of 24 recordings × 6 channels
 // × 5 stages × 61 bins (0–15 Hz), contrasts on 1–12 Hz with 301 permutations.
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -62,7 +62,7 @@ describe('compare on worker threads', () => {
     });
   }
 
-  it('a ContrastInputError in a worker reaches the caller typed', async () => {
+  it('a ContrastInputError of the statistics reaches the caller typed, the workers stopped', async () => {
     const c = parseContrast(contrasts['groups, cluster mass']);
     // every patient (odd recordings) but one left out: the statistics refuse a group of one
     const exclusions: Exclusion[] = Array.from({ length: 11 }, (_, i) => ({ subject: '', channel: null, reason: 'test' }));
