@@ -51,39 +51,13 @@ export function stringColumn(table: Table, name: string): string[] {
 }
 
 /**
- * A FLOAT[] column whose lists all have `width` values, packed row-major into one
- * Float32Array of numRows × width, copied from the Arrow list's child values batch by batch
- * (no per-row list objects). A list of another length or a null list fails loudly; a null
- * value inside a list becomes NaN.
+ * A FLOAT[] column whose lists all have `width` values, packed row-major into one Float32Array
+ * of numRows × width (no per-row list objects). A list of another length or a null list fails
+ * loudly; a null value inside a list becomes NaN.
  */
 export function listColumnToMatrix(table: Table, name: string, width: number): Float32Array {
-  const col = table.getChild(name);
-  if (col === null) throw new Error(`result has no column ${name}`);
   const out = new Float32Array(table.numRows * width);
-  let row = 0;
-  for (const data of col.data) {
-    if (data.length === 0) continue;
-    const offsets = data.valueOffsets as Int32Array | undefined;
-    const child = data.children[0];
-    if (offsets === undefined || child === undefined) throw new TypeError(`column ${name} is not a list column`);
-    for (let i = 0; i < data.length; i++) {
-      const n = offsets[i + 1] - offsets[i];
-      if (!data.getValid(i) || n !== width) {
-        throw new RangeError(`column ${name}, row ${row + i}: expected ${width} values, got ${data.getValid(i) ? n : 'null'}`);
-      }
-    }
-    // every list has `width` values, so the batch's values are one contiguous run of the child
-    // (apache-arrow slices offset and value buffers to the batch; `offset` counts only for validity)
-    const first = offsets[0];
-    const values = child.values as ArrayLike<number> & { subarray(a: number, b: number): ArrayLike<number> };
-    out.set(values.subarray(first, first + data.length * width), row * width);
-    if (child.nullCount > 0) {
-      for (let j = 0; j < data.length * width; j++) {
-        if (!child.getValid(first + j)) out[row * width + j] = Number.NaN;
-      }
-    }
-    row += data.length;
-  }
+  listColumnRowsInto(table, name, width, (row) => row, out);
   return out;
 }
 
