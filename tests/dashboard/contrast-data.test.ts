@@ -45,7 +45,7 @@ describe('contrast data over duckdb-wasm equals the command line loader', () => 
     it(`${json.design} ${json.measure ?? 'log-psd'}: same rows, same result`, async () => {
       const c = parseContrast(json);
       const exclusions = [{ subject: 'sub-02', channel: null, reason: 'test' }];
-      const ours = await loadContrastData(client, schema, await runs(client), c, exclusions);
+      const ours = await loadContrastData(client, schema, await runs(client), c, exclusions, contrastMaxHz(c));
       const store = await openStore(file, { readOnly: true });
       let theirs;
       try {

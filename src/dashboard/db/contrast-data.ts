@@ -180,13 +180,18 @@ export async function contrastParticipants(db: SqlClient, schema: CohortSchema):
   return p.rows.map((r) => Object.fromEntries(Object.entries(r).map(([k, v]) => [k, typeof v === 'boolean' ? String(v) : v])));
 }
 
-/** Everything `contrast` needs from the database, with the exclusion list of the quality screen. */
+/**
+ * Everything `contrast` needs from the database, with the exclusion list of the quality screen;
+ * with maxHz the spectra only up to that frequency (contrastMaxHz: what the contrast's own
+ * measure reads — not for callers that compute other measures from the same rows).
+ */
 export async function loadContrastData(
   db: SqlClient,
   schema: CohortSchema,
   runs: readonly RunInfo[],
   c: Contrast,
   exclusions: readonly Exclusion[],
+  maxHz?: number,
 ): Promise<{ runId: string; data: ContrastData }> {
   const run = chooseRun(runs);
   const stages: Stage[] = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
@@ -199,8 +204,7 @@ export async function loadContrastData(
       stages.map((stage) => {
         const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
         return Promise.all([
-          // log-psd and residual read no bin above fmaxHz: those lists are read cut there
-          contrastSpectra(db, q, contrastMaxHz(c)),
+          contrastSpectra(db, q, maxHz),
           needs.aperiodic ? contrastAperiodic(db, q, c.aperiodicMethod) : Promise.resolve([]),
           needs.peaks ? contrastPeaks(db, q, c.aperiodicMethod) : Promise.resolve([]),
         ]);

@@ -50,7 +50,8 @@ export class ContrastDataCache {
     const key = [stages, c.reference, c.averaging, c.measure, c.aperiodicMethod, contrastMaxHz(c) ?? 'all'].join('|');
     let entry = this.cache.get(key);
     if (entry === undefined) {
-      entry = loadContrastData(this.db, this.schema, this.runs, c, []);
+      // log-psd and residual read no bin above fmaxHz: their lists are read cut there
+      entry = loadContrastData(this.db, this.schema, this.runs, c, [], contrastMaxHz(c));
       entry.catch(() => this.cache.delete(key));
       this.cache.set(key, entry);
     }
