@@ -20,10 +20,12 @@ import type { CompareWorkReply, CompareWorkRequest } from './compare-worker.ts';
 const BOOTSTRAP = new URL('./compare-worker-bootstrap.mjs', import.meta.url);
 
 /**
- * Below this many subject-points × permutations (about half a second of permutations on one
- * core here) one thread is quicker than starting workers with the TypeScript loader.
+ * Below this many subject-points × permutations (about 3 s of permutations on one core here:
+ * 2,000 subjects × 7,616 points × 1000 took 9.8 s) the workers' start with the TypeScript loader
+ * and their own preparation of the statistics take most of what they save (large-cohort bench,
+ * 500 recordings on the loaded 2 cores: 9.2 s on two threads, 5.0 s on one).
  */
-const THREADED_WORK = 1e9;
+const THREADED_WORK = 5e9;
 
 /** Threads worth using for an assembled contrast: the machine's cores for a large one, else 1. */
 export function defaultThreads(assembled: AssembledContrast, permutations: number): number {
