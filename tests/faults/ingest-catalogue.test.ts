@@ -1,7 +1,7 @@
 // Ingest fault catalogue (issue 8, "Faults and bad input"): one cohort table with four good
 // recordings and one bad input per case, ingested by the real `bandwise ingest` in a child
-// process running as an unprivileged user (so a mode-000 file is really refused; root reads
-// anything). Every failing case must be in ingest_errors with file, step and message; the good
+// process that obeys file modes (as root: without CAP_DAC_OVERRIDE and CAP_DAC_READ_SEARCH, so a
+// mode-000 file is really refused; plain root reads anything). Every failing case must be in ingest_errors with file, step and message; the good
 // recordings stored whole; the exit status 3 ("some recordings failed", ingest/cli/ingest.ts and
 // the README). Then a full disk: a 1-MiB tmpfs (or, where mount is not allowed, a file size limit
 // on the child) as the database's home.
@@ -10,7 +10,7 @@
 // minimum < maximum; §2.2.2 TAL onset = one sign then digits; §2.1.3.1 EDF+D may be
 // discontinuous), the scoring rule of 30-s epochs (common practice), POSIX errors (EACCES, ENOSPC).
 import { execFileSync, spawnSync } from 'node:child_process';
-import { chmodSync, chownSync, mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -20,10 +20,12 @@ import { perRecordingCounts, run, withDb, type Ended } from './helpers.ts';
 
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-faults-'));
 const cohortDir = path.join(dir, 'cohort');
-const NOBODY = 65534;
 const isRoot = process.getuid?.() === 0;
-// unprivileged child: as root, drop to uid/gid 65534 with no supplementary groups (util-linux setpriv)
-const asNobody = isRoot ? ['setpriv', `--reuid=${NOBODY}`, `--regid=${NOBODY}`, '--clear-groups'] : [];
+// a child that obeys file modes: as root, without the two capabilities that bypass them
+// (CAP_DAC_OVERRIDE, CAP_DAC_READ_SEARCH; capabilities(7)), dropped from the bounding set by
+// util-linux setpriv, so root's exec gets neither. The repo, wherever it is cloned, stays readable.
+const DROP_DAC = ['setpriv', '--bounding-set=-dac_override,-dac_read_search'];
+const obeyModes = isRoot ? DROP_DAC : [];
 const ARGS = ['--jobs', '2', '--no-fit', '--reference', 'recorded,linked-mastoids'];
 
 let result: Ended;
@@ -31,13 +33,7 @@ const db = path.join(cohortDir, 'out.duckdb');
 
 beforeAll(async () => {
   const { table } = writeCatalogueCohort(cohortDir, { permissionCase: true });
-  if (isRoot) {
-    chmodSync(dir, 0o755); // mkdtemp makes it 700: the other user must be able to pass through
-    // the unprivileged user owns the folder and every file but the locked one (mode 000, owned by root)
-    chownSync(cohortDir, NOBODY, NOBODY);
-    for (const f of readdirSync(cohortDir)) if (f !== 'locked.edf') chownSync(path.join(cohortDir, f), NOBODY, NOBODY);
-  }
-  result = await run(['ingest', table, '--out', db, ...ARGS], asNobody, { ...process.env, HOME: cohortDir });
+  result = await run(['ingest', table, '--out', db, ...ARGS], obeyModes, { ...process.env, HOME: cohortDir });
 }, 120_000);
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
@@ -60,9 +56,13 @@ const FAILS: Record<string, Expected> = {
 const STORED = [...GOOD.map((s) => `${s}.edf`), 'gaps.edf', 'mixed-rates.edf', 'no-mastoids.edf'];
 
 describe('ingest fault catalogue: one cohort, each bad input a real file, folder, FIFO or unreadable file', () => {
-  it('the child really ran unprivileged, so mode 000 denies (else the permission case proves nothing)', () => {
-    if (isRoot) expect(execFileSync('setpriv', [`--reuid=${NOBODY}`, `--regid=${NOBODY}`, '--clear-groups', 'id', '-u']).toString().trim()).toBe(String(NOBODY));
-    const probe = spawnSync(asNobody[0] ?? 'cat', [...asNobody.slice(1), ...(asNobody.length ? ['cat'] : []), path.join(cohortDir, 'locked.edf')]);
+  it('the child really ran without permission overrides, so mode 000 denies (else the permission case proves nothing)', () => {
+    if (isRoot) {
+      // CapEff of the child (proc(5)): bits 1 (dac_override) and 2 (dac_read_search) are clear
+      const capEff = execFileSync(DROP_DAC[0], [...DROP_DAC.slice(1), 'grep', 'CapEff', '/proc/self/status']).toString().trim().split(/\s+/)[1];
+      expect(BigInt(`0x${capEff}`) & 0b110n).toBe(0n);
+    }
+    const probe = spawnSync(obeyModes[0] ?? 'cat', [...obeyModes.slice(1), ...(obeyModes.length ? ['cat'] : []), path.join(cohortDir, 'locked.edf')]);
     expect(probe.status).not.toBe(0);
     expect(probe.stderr.toString()).toMatch(/Permission denied/);
   });
