@@ -7,7 +7,7 @@
 import { writeFileSync, readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
-import { parseContrast, ContrastSpecError, type Contrast } from '../../src/core/contrast/spec.ts';
+import type { Contrast } from '../../src/core/contrast/spec.ts';
 import type { Exclusion } from '../../src/core/contrast/data.ts';
 import { parseExclusionsTsv } from '../../src/core/contrast/exclusions.ts';
 import { DEFAULT_BANDS, SIGMA_PRESETS, checkBand, BandError, type Band } from '../../src/core/spectrum/bands.ts';
@@ -17,7 +17,7 @@ import { loadContrastData, type LoadedContrast } from '../compare.ts';
 import { storedFitRanges } from '../report.ts';
 import { appendLedger } from '../ledger.ts';
 import { reportUserError } from './user-errors.ts';
-import { addContrastOptions, contrastFromFlags, type Flags } from './compare.ts';
+import { addContrastOptions, contrastOrExit, type Flags } from './compare.ts';
 
 /** "sigma", "12-16" or "spindles:12.5-15" → a band (named presets: DEFAULT_BANDS, SIGMA_PRESETS). */
 export function parseBandArgument(text: string): Band {
@@ -107,17 +107,8 @@ export function register(program: Command): void {
     .option('--flank-width <hz>', 'width of each flank, Hz (default: the band\'s width)', positive('--flank-width'));
   addContrastOptions(command, { bandMeasures: false });
   command.action(async (database: string, flags: BandFlags) => {
-    let contrast: Contrast;
-    try {
-      contrast = parseContrast(contrastFromFlags({ ...flags, band: undefined }));
-    } catch (e) {
-      if (e instanceof ContrastSpecError || e instanceof SyntaxError) {
-        console.error(e.message);
-        process.exitCode = 2;
-        return;
-      }
-      throw e;
-    }
+    const contrast = contrastOrExit({ ...flags, band: undefined });
+    if (!contrast) return;
     const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
     const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'band check {bar} {value}/{total} tests | {step}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
     let started = false;

@@ -5,9 +5,9 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import cliProgress from 'cli-progress';
-import { MEASURES, REFERENCES, parseContrast, ContrastSpecError, type ContrastJson } from '../../src/core/contrast/spec.ts';
+import { MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../../src/core/contrast/spec.ts';
 import { parseExclusionsTsv } from '../../src/core/contrast/exclusions.ts';
-import { parseBand } from '../../src/core/spectrum/bands.ts';
+import { BandError, parseBand } from '../../src/core/spectrum/bands.ts';
 import { compareDatabase, type CompareRun } from '../compare.ts';
 import { appendLedger } from '../ledger.ts';
 import { reportUserError } from './user-errors.ts';
@@ -130,6 +130,23 @@ export function pointsTsv(r: CompareRun): string {
  * commands that run one (compare, band-check). bandMeasures adds --band for band-power and peak
  * measures (band-check has its own --band, the band it checks).
  */
+/**
+ * The contrast the flags describe, or null after printing why it is invalid (exit status 2: bad
+ * input, nothing read). Shared by compare and band-check.
+ */
+export function contrastOrExit(flags: Flags): Contrast | null {
+  try {
+    return parseContrast(contrastFromFlags(flags));
+  } catch (e) {
+    if (e instanceof ContrastSpecError || e instanceof SyntaxError || e instanceof BandError) {
+      console.error(e.message);
+      process.exitCode = 2;
+      return null;
+    }
+    throw e;
+  }
+}
+
 export function addContrastOptions(command: Command, o: { bandMeasures: boolean }): Command {
   command
     .option('--contrast <file>', 'contrast JSON (the format the dashboard saves)')
@@ -185,17 +202,8 @@ export function register(program: Command): void {
   addContrastOptions(command, { bandMeasures: true });
   command
     .action(async (database: string, flags: Flags) => {
-      let contrast;
-      try {
-        contrast = parseContrast(contrastFromFlags(flags));
-      } catch (e) {
-        if (e instanceof ContrastSpecError || e instanceof SyntaxError) {
-          console.error(e.message);
-          process.exitCode = 2;
-          return;
-        }
-        throw e;
-      }
+      const contrast = contrastOrExit(flags);
+      if (!contrast) return;
       const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
       const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'permutations {bar} {value}/{total} | ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
       let started = false;
