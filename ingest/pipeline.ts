@@ -272,6 +272,68 @@ interface PlanState {
   outputs: OutputState[];
 }
 
+/** What every epoch of one recording shares: the stored range, rejection rules, band tables and scratch. */
+interface EpochWork {
+  nStored: number;
+  rejection: RejectionOptions;
+  bandTable: BandPowerTable;
+  nBands: number;
+  broadBand: BandPowerTable;
+  muscleBand: BandPowerTable;
+  /** per recorded channel, per epoch: SD in µV */
+  epochSd: Float64Array[];
+  psd: Float64Array;
+  one: Float64Array;
+}
+
+/**
+ * One epoch of one reference plan: time-domain check, Welch PSD, band powers, full-range sum.
+ * A function of its own (not a loop inside processRecording) so its optimised code outlives one
+ * recording: a worker reuses it for every recording it processes.
+ */
+function epochOfPlan(st: PlanState, data: Float32Array[], e: number, w: EpochWork): void {
+  const signals = st.rereferencer.apply(data);
+  const { psd, one, nStored } = w;
+  for (let o = 0; o < st.outputs.length; o++) {
+    const out = st.outputs[o];
+    const x = signals[o];
+    const td = timeDomainCheck(x, 0, out.length, out.welch.fsHz, w.rejection);
+    if (st.plan.reference === 'recorded') w.epochSd[st.plan.outputs[o].source][e] = td.sdUv;
+    out.hasData[e] = 1;
+    out.tdReason[e] = td.reason;
+    out.tdValue[e] = td.value ?? NaN;
+    out.welch.mean(x, 0, out.length, psd);
+    out.spectra.set(psd.subarray(0, nStored), e * nStored);
+    w.broadBand.compute(psd, one);
+    out.logBroadband[e] = Math.log10(one[0]);
+    w.muscleBand.compute(psd, one);
+    out.logMuscle[e] = Math.log10(one[0]);
+    w.bandTable.compute(psd.subarray(0, nStored), out.bandPower.subarray(e * w.nBands, (e + 1) * w.nBands));
+    if (out.fullSum && td.reason === null) {
+      const full = out.fullSum;
+      for (let b = 0; b < full.length; b++) full[b] += psd[b];
+      out.fullCount++;
+    }
+  }
+}
+
+/**
+ * Welch estimators kept across recordings (per sampling rate and parameters): their FFT tables
+ * and buffers are built once per worker, not once per recording. Each call of Welch.mean is
+ * synchronous, so recordings processed concurrently in one thread can share one.
+ */
+const welchCache = new Map<string, Welch>();
+
+function sharedWelch(fsHz: number, segmentS: number, overlap: number, maxFreqHz: number): Welch {
+  const key = `${fsHz}|${segmentS}|${overlap}|${maxFreqHz}`;
+  let w = welchCache.get(key);
+  if (!w) {
+    w = new Welch(fsHz, { segmentS, overlap, maxFreqHz });
+    welchCache.set(key, w);
+  }
+  return w;
+}
+
 /** Time-domain measures of one recorded channel over the kept epochs, for the quality metrics. */
 export interface ChannelMeasures {
   channel: string;
@@ -331,7 +393,7 @@ export async function processRecording(
       let w = welchByFs.get(fs);
       if (!w) {
         try {
-          w = new Welch(fs, { segmentS: params.segmentS, overlap: params.overlap, maxFreqHz: fullMaxHz });
+          w = sharedWelch(fs, params.segmentS, params.overlap, fullMaxHz);
         } catch (e) {
           throw new PipelineError('spectra', file, 'segment length', (e as Error).message, { cause: e });
         }
@@ -369,8 +431,11 @@ export async function processRecording(
     const clipped = new Float64Array(selected.length);
     let epochsSeen = 0;
     const epochSd = selected.map(() => new Float64Array(nGrid).fill(NaN));
-    const psd = new Float64Array(Math.max(...[...welchByFs.values()].map((w) => w.nBins)));
-    const one = new Float64Array(1);
+    const epochWork: EpochWork = {
+      nStored, rejection: params.rejection, bandTable, nBands: bands.length, broadBand, muscleBand, epochSd,
+      psd: new Float64Array(Math.max(...[...welchByFs.values()].map((w) => w.nBins))),
+      one: new Float64Array(1),
+    };
 
     let done = 0;
     try {
@@ -391,30 +456,7 @@ export async function processRecording(
           }
         }
         epochsSeen += 1;
-        for (const st of states) {
-          const signals = st.rereferencer.apply(data);
-          for (let o = 0; o < st.outputs.length; o++) {
-            const out = st.outputs[o];
-            const x = signals[o];
-            const td = timeDomainCheck(x, 0, out.length, out.welch.fsHz, params.rejection);
-            if (st.plan.reference === 'recorded') epochSd[st.plan.outputs[o].source][e] = td.sdUv;
-            out.hasData[e] = 1;
-            out.tdReason[e] = td.reason;
-            out.tdValue[e] = td.value ?? NaN;
-            out.welch.mean(x, 0, out.length, psd);
-            out.spectra.set(psd.subarray(0, nStored), e * nStored);
-            broadBand.compute(psd, one);
-            out.logBroadband[e] = Math.log10(one[0]);
-            muscleBand.compute(psd, one);
-            out.logMuscle[e] = Math.log10(one[0]);
-            bandTable.compute(psd.subarray(0, nStored), out.bandPower.subarray(e * bands.length, (e + 1) * bands.length));
-            if (out.fullSum && td.reason === null) {
-              const full = out.fullSum;
-              for (let b = 0; b < full.length; b++) full[b] += psd[b];
-              out.fullCount++;
-            }
-          }
-        }
+        for (const st of states) epochOfPlan(st, data, e, epochWork);
         done++;
         if (onProgress && (done & 15) === 0) onProgress({ step: 'read', done: e + 1, total: nGrid });
       }

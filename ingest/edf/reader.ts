@@ -153,33 +153,53 @@ async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHe
       await Promise.all(reads);
       slice = (r, k) => buf.subarray(at[r - r0][k], at[r - r0][k] + 2 * annSignals[k].samplesPerRecord);
     }
-    for (let r = r0; r < r1; r++) {
-      for (let k = 0; k < annSignals.length; k++) {
-        const sig = annSignals[k];
-        const tals = parseTals(slice(r, k), file, r, { index: sig.index, label: sig.label });
-        let firstTal = 0;
-        if (k === 0) {
-          // EDF+ 2003 §2.2.4: the first TAL of each record in the first annotation signal is the
-          // time-keeping one: empty first text, onset = the record's start.
-          const tk = tals[0];
-          const isTimeKeeping = tk !== undefined && tk.texts.length > 0 && tk.texts[0] === '';
-          if (isTimeKeeping) {
-            timeKeeping[r] = tk.onsetS;
-            tals[0] = { onsetS: tk.onsetS, durationS: tk.durationS, texts: tk.texts.slice(1) };
-            if (tals[0].texts.length === 0) firstTal = 1;
-          } else if (isPlus) {
-            const seen = tk === undefined ? 'no annotation list' : `a list at onset ${tk.onsetS} with text "${showValue(tk.texts[0] ?? '')}"`;
-            throw new EdfFormatError(file, 'annotations', tk === undefined ? '' : String(tk.onsetS), `${header.variant} record starts with ${seen} instead of a time-keeping TAL (onset, then an empty text)`, { record: r, signal: { index: sig.index, label: sig.label } });
-          }
+    talsOfBatch(file, header, annSignals, r0, r1, slice, timeKeeping, annotations);
+  }
+  return { annotations, timeKeeping: isPlus ? timeKeeping : null };
+}
+
+/**
+ * The TALs of records r0 … r1 − 1 (slice(r, k): the bytes of annotation signal k in record r):
+ * time-keeping onsets into timeKeeping, the other annotations appended to `annotations`.
+ * A plain function, not a loop inside the async pass, so its optimised code serves every batch
+ * and every file instead of being compiled again for each call of the pass.
+ */
+function talsOfBatch(
+  file: string,
+  header: EdfHeader,
+  annSignals: EdfSignal[],
+  r0: number,
+  r1: number,
+  slice: (r: number, k: number) => Uint8Array,
+  timeKeeping: Float64Array,
+  annotations: EdfAnnotation[],
+): void {
+  const isPlus = header.variant !== 'EDF';
+  for (let r = r0; r < r1; r++) {
+    for (let k = 0; k < annSignals.length; k++) {
+      const sig = annSignals[k];
+      const tals = parseTals(slice(r, k), file, r, { index: sig.index, label: sig.label });
+      let firstTal = 0;
+      if (k === 0) {
+        // EDF+ 2003 §2.2.4: the first TAL of each record in the first annotation signal is the
+        // time-keeping one: empty first text, onset = the record's start.
+        const tk = tals[0];
+        const isTimeKeeping = tk !== undefined && tk.texts.length > 0 && tk.texts[0] === '';
+        if (isTimeKeeping) {
+          timeKeeping[r] = tk.onsetS;
+          tals[0] = { onsetS: tk.onsetS, durationS: tk.durationS, texts: tk.texts.slice(1) };
+          if (tals[0].texts.length === 0) firstTal = 1;
+        } else if (isPlus) {
+          const seen = tk === undefined ? 'no annotation list' : `a list at onset ${tk.onsetS} with text "${showValue(tk.texts[0] ?? '')}"`;
+          throw new EdfFormatError(file, 'annotations', tk === undefined ? '' : String(tk.onsetS), `${header.variant} record starts with ${seen} instead of a time-keeping TAL (onset, then an empty text)`, { record: r, signal: { index: sig.index, label: sig.label } });
         }
-        for (let t = firstTal; t < tals.length; t++) {
-          const texts = tals[t].texts.filter((x) => x !== '');
-          if (texts.length > 0) annotations.push({ onsetS: tals[t].onsetS, durationS: tals[t].durationS, texts });
-        }
+      }
+      for (let t = firstTal; t < tals.length; t++) {
+        const texts = tals[t].texts.filter((x) => x !== '');
+        if (texts.length > 0) annotations.push({ onsetS: tals[t].onsetS, durationS: tals[t].durationS, texts });
       }
     }
   }
-  return { annotations, timeKeeping: isPlus ? timeKeeping : null };
 }
 
 /** Record onsets and gaps: k·duration for EDF, checked for EDF+C, from the time-keeping TALs for EDF+D. */
@@ -340,6 +360,33 @@ function decodeSamples(src: Int16Array, from: number, dst: Float32Array, to: num
   return atLimits;
 }
 
+/**
+ * Record rr of the current segment (its words from recBase in chunk) into the epoch buffers: for
+ * each chosen signal k, the samples of the epoch (startSample[k], perEpoch[k] of them) that fall in
+ * this record. A plain function, so its optimised code outlives one generator's run.
+ */
+function decodeRecord(
+  chunk: Int16Array,
+  recBase: number,
+  rr: number,
+  chosen: EdfSignal[],
+  wordOffset: number[],
+  startSample: number[],
+  perEpoch: number[],
+  scale: number[],
+  out: Float32Array[],
+  limits: Int32Array,
+): void {
+  for (let k = 0; k < chosen.length; k++) {
+    const sig = chosen[k];
+    const spr = sig.samplesPerRecord;
+    const from = Math.max(startSample[k], rr * spr);
+    const to = Math.min(startSample[k] + perEpoch[k], (rr + 1) * spr);
+    if (from >= to) continue;
+    limits[k] += decodeSamples(chunk, recBase + wordOffset[sig.index] + (from - rr * spr), out[k], from - startSample[k], to - from, sig, scale[k]);
+  }
+}
+
 async function* readEpochs(
   fh: FileHandle,
   file: string,
@@ -437,18 +484,7 @@ async function* readEpochs(
     for (let rr = rFirst; rr <= rLast; rr++) {
       const r = sg.firstRecord + rr;
       await ensure(r);
-      const recBase = (r - chunkStart) * recWords;
-      for (let k = 0; k < chosen.length; k++) {
-        const sig = chosen[k];
-        const spr = sig.samplesPerRecord;
-        const from = Math.max(startSample[k], rr * spr);
-        const to = Math.min(startSample[k] + perEpoch[k], (rr + 1) * spr);
-        if (from >= to) continue;
-        const src = recBase + wordOffset[sig.index] + (from - rr * spr);
-        const dst = out[k];
-        const o = from - startSample[k];
-        limits[k] += decodeSamples(chunkI16, src, dst, o, to - from, sig, scale[k]);
-      }
+      decodeRecord(chunkI16, (r - chunkStart) * recWords, rr, chosen, wordOffset, startSample, perEpoch, scale, out, limits);
     }
     yield { epoch: e, onsetS: a, data: out, atDigitalLimits: limits, dropReason: null };
   }
