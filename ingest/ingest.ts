@@ -65,13 +65,21 @@ export async function runIngest(
   progress?: (e: IngestEvent) => void,
 ): Promise<IngestSummary> {
   const params = resolveIngestParams(options.params);
-  // rows that cannot be ingested on their own (duplicate subject, file missing or not a regular file) fail alone
-  const cohort = await discoverCohort(cohortPathOrBidsFolder, { rowProblems: 'per-recording' });
+  // the workers start first: their start (loading the pipeline's modules) overlaps the discovery and the store's opening
+  const pool = new IngestPool(options.jobs);
+  let cohort: Awaited<ReturnType<typeof discoverCohort>>;
+  let store: Awaited<ReturnType<typeof openStore>>;
+  try {
+    // rows that cannot be ingested on their own (duplicate subject, file missing or not a regular file) fail alone
+    cohort = await discoverCohort(cohortPathOrBidsFolder, { rowProblems: 'per-recording' });
+    store = await openStore(outDb, { create: true });
+  } catch (e) {
+    await pool.close();
+    throw e;
+  }
   const shard = options.shard ?? null;
   // a stable 1/N share by sorted subject, session and path (ingest/cohort/shard.ts)
   const recordings = shard ? selectShard(cohort.recordings, shard.k, shard.n) : cohort.recordings;
-  const store = await openStore(outDb, { create: true });
-  const pool = new IngestPool(options.jobs);
   let failure: unknown = null;
   let storedSoFar = 0;
   const diskFull = (e: unknown, during: string) => new DiskFullError(outDb, during, storedSoFar, e);
@@ -96,24 +104,22 @@ export async function runIngest(
     };
     const one = async (rec: CohortRecording): Promise<void> => {
       if (rec.problem) return fail(rec, 'cohort', rec.problem.column, rec.problem.message);
-      let sha: string;
+      let bundle;
       try {
-        sha = await pool.hash(rec.recordingPath); // in a worker: the main thread only writes
+        // the worker hashes the file and asks here whether that recording is stored (skipped if so)
+        bundle = await pool.process(rec, params, runId, {
+          onProgress: (p) => progress?.({ kind: 'progress', file: shown(rec), ...p }),
+          isStored: (sha) => store.hasRecording(runId, sha),
+        });
       } catch (e) {
-        return fail(rec, 'hash', null, (e as Error).message);
+        const step = e instanceof WorkerTaskError ? e.step : 'process';
+        return fail(rec, step, e instanceof WorkerTaskError ? e.field : null, (e as Error).message);
       }
-      if (await store.hasRecording(runId, sha)) {
+      if (bundle === 'skipped') {
         summary.skipped++;
         storedSoFar++;
         progress?.({ kind: 'recording', file: shown(rec), state: 'skipped' });
         return;
-      }
-      let bundle;
-      try {
-        bundle = await pool.process(rec, params, runId, (p) => progress?.({ kind: 'progress', file: shown(rec), ...p }), sha);
-      } catch (e) {
-        const step = e instanceof WorkerTaskError ? e.step : 'process';
-        return fail(rec, step, e instanceof WorkerTaskError ? e.field : null, (e as Error).message);
       }
       if (stopped) return;
       bundle.recording.fileName = shown(rec);

@@ -1,12 +1,13 @@
 /**
- * A pool of worker threads (default one per core), one recording per worker at a time. Results
- * come back to the caller in the main thread, which hands them to the single writer.
+ * A pool of worker threads (default one per core), one recording per worker at a time: its hash,
+ * the caller's check whether it is stored, and its processing. Results come back to the caller in
+ * the main thread, which hands them to the single writer.
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
 import type { CohortRecording } from './cohort/types.ts';
 import type { IngestParams, PipelineProgress } from './pipeline.ts';
-import type { WorkReply, WorkRequest } from './worker.ts';
+import type { ProcessRequest, WorkReply, WorkRequest } from './worker.ts';
 
 export type ProcessedBundle = Extract<WorkReply, { kind: 'done' }>['bundle'];
 
@@ -19,10 +20,11 @@ export class WorkerTaskError extends Error {
 }
 
 interface Task {
-  req: WorkRequest;
-  resolve: (result: ProcessedBundle | string) => void;
+  req: ProcessRequest;
+  resolve: (result: ProcessedBundle | 'skipped') => void;
   reject: (e: Error) => void;
   onProgress?: (p: PipelineProgress) => void;
+  isStored?: (sha256: string) => Promise<boolean>;
 }
 
 interface Slot {
@@ -55,20 +57,20 @@ export class IngestPool {
     return slot;
   }
 
-  /** Processes one recording in the next free worker. */
-  process(rec: CohortRecording, params: IngestParams, runId: string, onProgress?: (p: PipelineProgress) => void, fileSha256?: string): Promise<ProcessedBundle> {
-    return this.submit({ id: this.nextId++, kind: 'process', rec, params, runId, fileSha256 }, onProgress) as Promise<ProcessedBundle>;
-  }
-
-  /** SHA-256 (hex) of a file's bytes, computed in the next free worker. */
-  hash(file: string): Promise<string> {
-    return this.submit({ id: this.nextId++, kind: 'hash', file }) as Promise<string>;
-  }
-
-  private submit(req: WorkRequest, onProgress?: (p: PipelineProgress) => void): Promise<ProcessedBundle | string> {
+  /**
+   * Processes one recording in the next free worker. Without `fileSha256` the worker hashes the
+   * file first and asks `isStored`; when that says yes the result is 'skipped' and nothing is read further.
+   */
+  process(
+    rec: CohortRecording,
+    params: IngestParams,
+    runId: string,
+    options: { onProgress?: (p: PipelineProgress) => void; fileSha256?: string; isStored?: (sha256: string) => Promise<boolean> } = {},
+  ): Promise<ProcessedBundle | 'skipped'> {
     if (this.closed) return Promise.reject(new Error('the pool is closed'));
+    const req: ProcessRequest = { id: this.nextId++, kind: 'process', rec, params, runId, fileSha256: options.fileSha256 };
     return new Promise((resolve, reject) => {
-      this.queue.push({ req, resolve, reject, onProgress });
+      this.queue.push({ req, resolve, reject, onProgress: options.onProgress, isStored: options.isStored ?? (async () => false) });
       this.dispatch();
     });
   }
@@ -88,9 +90,22 @@ export class IngestPool {
       task.onProgress?.({ step: m.step as PipelineProgress['step'], done: m.done, total: m.total });
       return;
     }
+    if (m.kind === 'hashed') {
+      const answer = (stored: boolean) => {
+        if (slot.task === task) slot.worker.postMessage({ id: m.id, kind: 'stored', stored } satisfies WorkRequest);
+      };
+      task.isStored!(m.sha256).then(answer, (e: unknown) => {
+        // the check itself failed: the task fails, the worker is told to drop it
+        answer(true);
+        slot.task = null;
+        task.reject(e instanceof Error ? e : new Error(String(e)));
+        this.dispatch();
+      });
+      return;
+    }
     slot.task = null;
     if (m.kind === 'done') task.resolve(m.bundle);
-    else if (m.kind === 'hashed') task.resolve(m.sha256);
+    else if (m.kind === 'skipped') task.resolve('skipped');
     else task.reject(new WorkerTaskError(m.step, m.field, m.message));
     this.dispatch();
   }

@@ -1,20 +1,15 @@
 /**
- * Worker thread: per message either hashes one file (SHA-256, so the main thread can check
- * whether the recording is stored already without doing that work itself) or processes one
- * recording and posts the bundle back, its typed arrays transferred (not copied). Failures come
- * back as { step, field, message }.
+ * Worker thread: per message it processes one recording and posts the bundle back, its typed
+ * arrays transferred (not copied). Without a known SHA-256 it first hashes the file and asks the
+ * main thread whether that recording is stored already ('hashed' → 'stored'), so the hash, the
+ * check and the work of one recording stay on one worker and the main thread only writes.
+ * Failures come back as { step, field, message }.
  */
 import { parentPort } from 'node:worker_threads';
 import type { CohortRecording } from './cohort/types.ts';
 import { bundleTransferList, fileSha256, PipelineError, processRecording, type IngestParams } from './pipeline.ts';
 
-export type WorkRequest = HashRequest | ProcessRequest;
-
-export interface HashRequest {
-  id: number;
-  kind: 'hash';
-  file: string;
-}
+export type WorkRequest = ProcessRequest | StoredAnswer;
 
 export interface ProcessRequest {
   id: number;
@@ -25,23 +20,43 @@ export interface ProcessRequest {
   fileSha256?: string;
 }
 
+/** The main thread's answer to 'hashed': whether the recording with that hash is stored. */
+export interface StoredAnswer {
+  id: number;
+  kind: 'stored';
+  stored: boolean;
+}
+
 export type WorkReply =
   | { id: number; kind: 'progress'; step: string; done: number; total: number }
   | { id: number; kind: 'hashed'; sha256: string }
+  | { id: number; kind: 'skipped' }
   | { id: number; kind: 'done'; bundle: Awaited<ReturnType<typeof processRecording>> }
   | { id: number; kind: 'failed'; step: string; field: string | null; message: string };
 
 if (!parentPort) throw new Error('ingest/worker.ts must run in a worker thread');
 const port = parentPort;
 
-port.on('message', async (req: WorkRequest) => {
-  if (req.kind === 'hash') {
+/** answers awaited, by request id */
+const waiting = new Map<number, (stored: boolean) => void>();
+
+const failed = (id: number, step: string, field: string | null, e: unknown): WorkReply => ({ id, kind: 'failed', step, field, message: e instanceof Error ? e.message : String(e) });
+
+async function processOne(req: ProcessRequest): Promise<void> {
+  let sha = req.fileSha256;
+  if (sha === undefined) {
     try {
-      port.postMessage({ id: req.id, kind: 'hashed', sha256: await fileSha256(req.file) } satisfies WorkReply);
+      sha = await fileSha256(req.rec.recordingPath);
     } catch (e) {
-      port.postMessage({ id: req.id, kind: 'failed', step: 'hash', field: null, message: e instanceof Error ? e.message : String(e) } satisfies WorkReply);
+      port.postMessage(failed(req.id, 'hash', null, e) satisfies WorkReply);
+      return;
     }
-    return;
+    const stored = new Promise<boolean>((resolve) => waiting.set(req.id, resolve));
+    port.postMessage({ id: req.id, kind: 'hashed', sha256: sha } satisfies WorkReply);
+    if (await stored) {
+      port.postMessage({ id: req.id, kind: 'skipped' } satisfies WorkReply);
+      return;
+    }
   }
   try {
     let last = 0;
@@ -50,11 +65,18 @@ port.on('message', async (req: WorkRequest) => {
       if (now - last < 200 && p.done < p.total) return; // at most 5 progress messages a second
       last = now;
       port.postMessage({ id: req.id, kind: 'progress', step: p.step, done: p.done, total: p.total } satisfies WorkReply);
-    }, req.runId, req.fileSha256);
+    }, req.runId, sha);
     port.postMessage({ id: req.id, kind: 'done', bundle } satisfies WorkReply, bundleTransferList(bundle));
   } catch (e) {
-    const step = e instanceof PipelineError ? e.step : 'process';
-    const field = e instanceof PipelineError ? e.field : null;
-    port.postMessage({ id: req.id, kind: 'failed', step, field, message: e instanceof Error ? e.message : String(e) } satisfies WorkReply);
+    port.postMessage(failed(req.id, e instanceof PipelineError ? e.step : 'process', e instanceof PipelineError ? e.field : null, e) satisfies WorkReply);
   }
+}
+
+port.on('message', (req: WorkRequest) => {
+  if (req.kind === 'stored') {
+    waiting.get(req.id)?.(req.stored);
+    waiting.delete(req.id);
+    return;
+  }
+  void processOne(req);
 });
