@@ -13,49 +13,22 @@
 // set (VmHWM in /proc/<pid>/status) of the tab's renderer process, which holds the page, the
 // duckdb-wasm worker and the contrast worker, beside the sum over all of the browser's processes.
 //
-// The database is built once into os.tmpdir() under a name holding its parameters and a hash of
-// the generator's code, and reused (a .done marker says it is complete).
+// The database is built once by tests/bench/synthetic-cache.ts and reused while the generator's
+// code is unchanged.
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { writeSyntheticDatabase } from '../../ingest/store/synthetic.ts';
-import { syntheticSpec, type SyntheticCohortSpec } from '../../src/core/simulate/synthetic-database.ts';
+import { syntheticSpec } from '../../src/core/simulate/synthetic-database.ts';
 import { buildDashboard, openDashboard } from '../e2e/harness.ts';
+import { cachedSyntheticDatabase } from './synthetic-cache.ts';
 
-const repo = path.resolve(import.meta.dirname, '../..');
 const SIZE = { recordings: 2000, channelCount: 64, nBins: 181, seed: 11 } as const;
 const CONTRAST =
   '#/contrast?design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all' +
   '&fminHz=0.5&fmaxHz=30&measure=log-psd&correction=cluster-mass&permutations=1000&seed=1&run=1';
 const TARGET_MS = 15_000;
 const TARGET_TAB_MB = 1536;
-
-function generatorHash(): string {
-  const h = createHash('sha256');
-  for (const f of ['src/core/simulate/synthetic-database.ts', 'src/core/simulate/spectrum.ts', 'ingest/store/synthetic.ts', 'ingest/store/schema.ts', 'ingest/store/spectra-order.ts']) {
-    h.update(f).update(readFileSync(path.join(repo, f)));
-  }
-  return h.digest('hex').slice(0, 8);
-}
-
-/** The synthetic database, built on first use and kept in the temp folder. */
-async function syntheticDatabase(spec: SyntheticCohortSpec): Promise<{ file: string; builtS: number | null }> {
-  const dir = path.join(os.tmpdir(), 'bandwise-synthetic');
-  mkdirSync(dir, { recursive: true });
-  const name = `r${spec.recordings}-c${spec.channels.length}-s${spec.stages.length}-b${spec.nBins}-seed${spec.seed}-${generatorHash()}.duckdb`;
-  const file = path.join(dir, name);
-  if (existsSync(file) && existsSync(`${file}.done`)) return { file, builtS: null };
-  rmSync(file, { force: true });
-  rmSync(`${file}.wal`, { force: true });
-  const r = await writeSyntheticDatabase(file, spec, {
-    progress: (done, total) => {
-      if (done % 500 === 0 || done === total) process.stderr.write(`dashboard-scale: built ${done}/${total} recordings\n`);
-    },
-  });
-  mkdirSync(`${file}.done`);
-  return { file, builtS: Math.round(r.totalS * 10) / 10 };
-}
 
 /** Child processes of `pid` and theirs (from /proc/<n>/stat, field 4 the parent). */
 function descendants(pid: number): number[] {
@@ -144,7 +117,7 @@ async function openToResult(appDir: string, file: string): Promise<Record<string
 
 export async function run(): Promise<Record<string, unknown>> {
   const spec = syntheticSpec(SIZE);
-  const { file, builtS } = await syntheticDatabase(spec);
+  const { file, builtS } = await cachedSyntheticDatabase(spec, 'dashboard-scale');
   const dir = mkdtempSync(path.join(os.tmpdir(), 'bandwise-bench-dash-scale-'));
   try {
     await buildDashboard(path.join(dir, 'app'));
