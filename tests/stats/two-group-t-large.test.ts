@@ -8,7 +8,9 @@ import { runPython } from '../helpers/python.ts';
 // reference: scipy.stats.ttest_ind(group1, group0, equal_var=False / True) of the machine's
 // python3 (scipy 1.17) at 40 of the points, for the observed labels and for one relabelling.
 // Size: 1,001 subjects (500 vs 501) × 7,200 points, 58 MB of float64 data — the smallest size at
-// which the table budget of two-group-t.ts forces g = 1 with about this many points.
+// which the table budget of two-group-t.ts forces g = 1 with about this many points. At g = 1 the
+// sums run over the raw data and are centred afterwards (values here: |mean|/sd up to about 10,
+// as log10 spectra), so the agreement to 1e-9 also checks that centring.
 
 const n = 1001;
 const P = 7200;
@@ -52,8 +54,16 @@ describe('two-group t with one subject per table chunk (cohort size)', () => {
   const welch = new TwoGroupT(data, n, P, labels, 'welch');
   const student = new TwoGroupT(data, n, P, labels, 'pooled');
 
-  it('uses g = 1 at this size', () => {
+  it('uses g = 1 at this size, summing the data as given without changing them', () => {
     expect(welch.chunk).toBe(1);
+    const before = Float64Array.from(data);
+    const t = new Float64Array(P);
+    welch.compute(relabel, t);
+    welch.computeNull(relabel, t, 1.2);
+    student.computeNull(relabel, t, 1.2);
+    let changed = 0;
+    for (let i = 0; i < data.length; i++) if (data[i] !== before[i]) changed++;
+    expect(changed).toBe(0);
   });
 
   it("Welch's and Student's t and Welch–Satterthwaite df equal scipy's", () => {

@@ -24,10 +24,14 @@
  */
 import type { PointStatistic } from './point-statistic.ts';
 
-/** largest pair of subset-sum tables, bytes (float64 Σx and Σx² per point per subset); at
- * g = 1 the Σx table is the centred data, whatever the budget, and Σx² is not stored: each
- * square is formed where it is summed (the same double as a stored one; at 2,000 subjects ×
- * 7,616 points that is 122 MB less) */
+/** largest pair of subset-sum tables, bytes (float64 Σx and Σx² per point per subset). At
+ * g = 1 (cohort size) no table is built at all: the rows summed are the caller's data as given
+ * (read only, never copied: at 2,000 subjects × 7,616 points 244 MB less than a centred Σx and
+ * Σx² table, and threads sharing the data share it whole), the squares formed where they are
+ * summed, and the sums centred afterwards, S = Σx − n_A·m and Q = Σx² − 2m·Σx + n_A·m² (m the
+ * point's mean). That moves the rounding of the raw sums into the result: a relative error of
+ * about √n_A·ε·|m|/sd in S and ε·(m/sd)² in Q, below 1e-12 while |m|/sd < 1e3 (log10 spectra
+ * are near 10); tests/stats/two-group-t-large.test.ts checks it against scipy. */
 const TABLE_BUDGET_BYTES = 160 * 1024 * 1024;
 const MAX_CHUNK = 6;
 const BLOCK_POINTS = 2048;
@@ -44,9 +48,12 @@ export class TwoGroupT implements PointStatistic {
   private readonly labels: Uint8Array;
   private readonly variance: TwoGroupVariance;
   private readonly nChunks: number;
-  /** rows [chunk·(2^g − 1) + pattern − 1] of P: Σx, and Σx², of the pattern's subjects (null at g = 1) */
+  /** rows [chunk·(2^g − 1) + pattern − 1] of P: Σx, and Σx², of the pattern's subjects, centred;
+   * at g = 1 the data themselves (one row per subject, not centred) and no Σx² table */
   private readonly sumTable: Float64Array;
   private readonly sqTable: Float64Array | null;
+  /** per point mean over all subjects (the centring of the g = 1 sums) */
+  private readonly mean: Float64Array;
   private readonly total: Float64Array; // Σx per point over all subjects
   private readonly totalSq: Float64Array; // Σx² per point
   private readonly ssTotal: Float64Array; // Σx² − (Σx)²/n per point
@@ -58,7 +65,7 @@ export class TwoGroupT implements PointStatistic {
   private flip = 1;
 
   /** data: subjects × points row-major; labels: 0/1 per subject (each group ≥ 2 subjects). */
-  constructor(data: ArrayLike<number>, nSubjects: number, nPoints: number, labels: Uint8Array, variance: TwoGroupVariance) {
+  constructor(data: Float64Array | Float32Array, nSubjects: number, nPoints: number, labels: Uint8Array, variance: TwoGroupVariance) {
     const n = nSubjects;
     const P = nPoints;
     this.nPoints = P;
@@ -73,6 +80,7 @@ export class TwoGroupT implements PointStatistic {
     const mean = new Float64Array(P);
     for (let s = 0; s < n; s++) for (let p = 0; p < P; p++) mean[p] += data[s * P + p];
     for (let p = 0; p < P; p++) mean[p] /= n;
+    this.mean = mean;
     this.total = new Float64Array(P);
     this.totalSq = new Float64Array(P);
     for (let s = 0; s < n; s++) {
@@ -86,10 +94,13 @@ export class TwoGroupT implements PointStatistic {
     // subset sums, one row per non-empty pattern u (row c·(2^g − 1) + u − 1):
     // row(u) = row(u without its lowest bit) + x_j (x_j²) of that bit's subject j
     const rowsPerChunk = 2 ** g - 1;
-    this.sumTable = new Float64Array(this.nChunks * rowsPerChunk * P);
-    const sq = g === 1 ? null : new Float64Array(this.nChunks * rowsPerChunk * P);
+    const size = this.nChunks * rowsPerChunk * P;
+    // g = 1: the data as given, uncentred (a float32 matrix in a float64 copy); no Σx² table
+    const asGiven = () => (data instanceof Float64Array ? data.subarray(0, n * P) : Float64Array.from(data.subarray(0, n * P)));
+    this.sumTable = g === 1 ? asGiven() : new Float64Array(size);
+    const sq = g === 1 ? null : new Float64Array(size);
     this.sqTable = sq;
-    for (let c = 0; c < this.nChunks; c++) {
+    for (let c = 0; g > 1 && c < this.nChunks; c++) {
       for (let u = 1; u <= rowsPerChunk; u++) {
         const low = u & -u;
         const j = c * g + Math.log2(low);
@@ -173,6 +184,20 @@ export class TwoGroupT implements PointStatistic {
     }
   }
 
+  /**
+   * g = 1: the raw sums of block [b0, b0 + len) centred on the point means, S = Σx − n_A·m and,
+   * with squares, Q = Σx² − 2m·Σx + n_A·m² (Q first: it needs the raw S).
+   */
+  private centreRawSums(b0: number, len: number, squares: boolean): void {
+    const nA = this.nA;
+    for (let k = 0; k < len; k++) {
+      const m = this.mean[b0 + k];
+      const s = this.accSum[k];
+      if (squares) this.accSq[k] = this.accSq[k] - 2 * m * s + nA * m * m;
+      this.accSum[k] = s - nA * m;
+    }
+  }
+
   compute(relabelling: Int32Array, stat: Float64Array, df?: Float64Array): void {
     this.selectRows(relabelling);
     const n = this.nSubjects;
@@ -186,7 +211,10 @@ export class TwoGroupT implements PointStatistic {
       const len = Math.min(P, b0 + BLOCK_POINTS) - b0;
       this.sumRows(this.sumTable, this.accSum, b0, len);
       if (this.sqTable) this.sumRows(this.sqTable, this.accSq, b0, len);
-      else this.sumSquaredRows(this.sumTable, this.accSq, b0, len);
+      else {
+        this.sumSquaredRows(this.sumTable, this.accSq, b0, len);
+        this.centreRawSums(b0, len, true);
+      }
       for (let k = 0; k < len; k++) {
         const p = b0 + k;
         const sA = this.accSum[k];
@@ -234,6 +262,11 @@ export class TwoGroupT implements PointStatistic {
     for (let b0 = 0; b0 < P; b0 += BLOCK_POINTS) {
       const len = Math.min(P, b0 + BLOCK_POINTS) - b0;
       this.sumRows(this.sumTable, this.accSum, b0, len);
+      // g = 1: raw Σx kept beside the centred one, for the Σx² of points that pass the bound below
+      if (this.sqTable === null) {
+        if (!fromSums) this.accSq.set(this.accSum.subarray(0, len));
+        this.centreRawSums(b0, len, false);
+      }
       for (let k = 0; k < len; k++) {
         const p = b0 + k;
         const sA = this.accSum[k];
@@ -259,6 +292,9 @@ export class TwoGroupT implements PointStatistic {
             const v = this.sumTable[this.rows[r] + p];
             qA += v * v;
           }
+          // Σ(x − m)² = Σx² − 2m·Σx + n_A·m² (raw Σx in accSq)
+          const m = this.mean[p];
+          qA = qA - 2 * m * this.accSq[k] + nA * m * m;
         }
         const ssA = Math.max(0, qA - sA * sA * invA);
         const sB = this.total[p] - sA;
