@@ -34,6 +34,11 @@ export async function sortSpectra(store: Store): Promise<boolean> {
     if (Number(check.getRowObjectsJS()[0].n) === 0) return false;
     const def = tableDef('spectra');
     const columns = def.columns.map((col) => quoteIdent(col.name)).join(', ');
+    // one thread writes the sorted rows: parallel writers interleave their row groups' blocks in
+    // the file, and a reader over HTTP (duckdb-wasm) then needs one range request per block
+    // instead of one per run of adjacent blocks (one stage of 2,000 × 64: 632 vs 87 requests)
+    const threads = (await c.runAndReadAll(`SELECT current_setting('threads')::INTEGER AS n`)).getRowObjectsJS()[0].n;
+    await c.run('SET threads = 1');
     await c.run('BEGIN TRANSACTION');
     try {
       await c.run(createTableSql({ ...def, name: SORTING_TABLE }).replace('IF NOT EXISTS ', ''));
@@ -45,6 +50,8 @@ export async function sortSpectra(store: Store): Promise<boolean> {
       // a COMMIT that failed (disk full) has already ended the transaction: report the first error
       await c.run('ROLLBACK').catch(() => undefined);
       throw error;
+    } finally {
+      await c.run(`SET threads = ${Number(threads)}`);
     }
     await c.run('CHECKPOINT');
     return true;
