@@ -7,7 +7,8 @@
 // in the tab under 1.5 GB.
 //
 // Figures: open → result from navigation start in the page (marks bandwise:duckdb-ready,
-// bandwise:database-open, bandwise:spectra-keys, bandwise:contrast-data, bandwise:contrast-result); memory: the main
+// bandwise:database-open, bandwise:spectra-keys, bandwise:contrast-data, bandwise:permutations-started,
+// bandwise:contrast-result); memory: the main
 // thread's JS heap (CDP Performance.getMetrics JSHeapUsedSize / JSHeapTotalSize — it does not
 // count ArrayBuffers, the duckdb-wasm worker's memory or Arrow buffers), and the peak resident
 // set (VmHWM in /proc/<pid>/status) of the tab's renderer process, which holds the page, the
@@ -65,7 +66,7 @@ function memoryOf(pid: number): { rssMB: number; peakMB: number; renderer: boole
 }
 
 /** One open → result in a fresh browser. */
-async function openToResult(appDir: string, file: string): Promise<Record<string, unknown>> {
+export async function openToResult(appDir: string, file: string): Promise<Record<string, unknown>> {
   const round = (x: number) => Math.round(x);
   const s = await openDashboard(appDir, file);
   try {
@@ -100,6 +101,7 @@ async function openToResult(appDir: string, file: string): Promise<Record<string
       databaseOpenMs: round(marks['database-open']),
       contrastKeysReadMs: marks['spectra-keys'] === undefined ? null : round(marks['spectra-keys']),
       contrastDataReadMs: marks['contrast-data'] === undefined ? null : round(marks['contrast-data']),
+      permutationsStartedMs: marks['permutations-started'] === undefined ? null : round(marks['permutations-started']),
       openToResultMs: round(marks['contrast-result']),
       databaseBytesRead: dbRequests.reduce((a, r) => a + r.bytes, 0),
       databaseRequests: dbRequests.length,

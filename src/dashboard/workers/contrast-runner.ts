@@ -17,21 +17,21 @@ export interface RunningContrast {
 }
 
 /**
- * A second worker holds its own copy of the rows, the assembled matrix and the statistic's tables,
- * about 20 bytes per stored bin (4 for the float32 rows, 8 + 8 for float64 values and centred
- * copies); it is started only while that stays below this.
+ * A second worker holds its own copy of the rows and of the assembled matrix, about 12 bytes per
+ * stored bin (4 for the float32 rows, 8 for the float64 matrix; the statistics sum that matrix as
+ * it is, src/core/stats/two-group-t.ts); it is started only while that stays below this.
  */
 const SECOND_WORKER_BYTES = 200 * 1024 * 1024;
 
 /**
- * Workers per contrast: two where the machine has two or more cores and the copy is small;
- * one for large cohorts, whose memory matters more than the permutations' time (2,000 recordings
- * × 64 channels: a second worker adds ~440 MB to the tab, measured by dashboard-scale.bench.ts,
- * and did not save time on this shared 2-core machine).
+ * Workers per contrast: two where the machine has two or more cores and the copy is small
+ * enough; one for larger cohorts, whose memory matters more than the permutations' time (2,000
+ * recordings × 64 channels × 0.5–30 Hz, 186 MB a worker: two workers, measured by
+ * dashboard-scale.bench.ts).
  */
 export function contrastWorkerCount(data: ContrastData): number {
   const cores = globalThis.navigator?.hardwareConcurrency ?? 1;
-  return cores >= 2 && data.spectra.rows.length * data.spectra.nBins * 20 <= SECOND_WORKER_BYTES ? 2 : 1;
+  return cores >= 2 && data.spectra.rows.length * data.spectra.nBins * 12 <= SECOND_WORKER_BYTES ? 2 : 1;
 }
 
 export function startContrast(
@@ -55,6 +55,8 @@ export function startContrast(
       worker.onmessage = (e: MessageEvent<WorkerReply>) => {
         const m = e.data;
         if (m.kind === 'progress') {
+          // the first progress of part 0: its data are assembled and the statistic prepared
+          if (part === 0 && done[0] === 0) performance.mark('bandwise:permutations-started');
           done[part] = m.done;
           total[part] = m.total;
           onProgress(done.reduce((a, b) => a + b, 0), total.reduce((a, b) => a + b, 0));
