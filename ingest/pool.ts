@@ -24,7 +24,7 @@ interface Task {
   resolve: (result: ProcessedBundle | 'skipped') => void;
   reject: (e: Error) => void;
   onProgress?: (p: PipelineProgress) => void;
-  isStored?: (sha256: string) => Promise<boolean>;
+  isStored: (sha256: string) => Promise<boolean>;
 }
 
 interface Slot {
@@ -94,7 +94,7 @@ export class IngestPool {
       const answer = (stored: boolean) => {
         if (slot.task === task) slot.worker.postMessage({ id: m.id, kind: 'stored', stored } satisfies WorkRequest);
       };
-      task.isStored!(m.sha256).then(answer, (e: unknown) => {
+      task.isStored(m.sha256).then(answer, (e: unknown) => {
         // the check itself failed: the task fails, the worker is told to drop it
         answer(true);
         slot.task = null;
