@@ -20,8 +20,8 @@ export const STORAGE_COMPATIBILITY = 'v1.4.0';
 /**
  * Rows per row group of the tables written (DuckDB's default is 122,880). Smaller groups let a
  * reader that filters on the stored order (spectra: stage, reference, averaging) skip more: one
- * stage of a 2,000-recording × 64-channel database read over HTTP, 168 → 121 MB and 4.9 → 2.6 s
- * in duckdb-wasm (dashboard-scale.bench.ts, same clusters).
+ * stage of a 2,000-recording × 64-channel database read over HTTP in duckdb-wasm, 168 → 121 MB,
+ * 303 → 90 range requests, 4.9 → 1.7 s (dashboard-scale.bench.ts, the same clusters).
  */
 export const ROW_GROUP_ROWS = 16_384;
 
