@@ -37,6 +37,13 @@ export type WorkReply =
 if (!parentPort) throw new Error('ingest/worker.ts must run in a worker thread');
 const port = parentPort;
 
+// Detach one buffer before any hot loop is optimised. The first ArrayBuffer detached in an isolate
+// (here: the first bundle's transferred arrays) discards every piece of optimised code that relied
+// on no buffer ever being detached (V8's detaching protector), so the whole pipeline would be
+// compiled twice per worker; detached now, it is compiled once.
+const probe = new ArrayBuffer(8);
+structuredClone(probe, { transfer: [probe] });
+
 /** answers awaited, by request id */
 const waiting = new Map<number, (stored: boolean) => void>();
 
