@@ -8,6 +8,7 @@ import { Worker } from 'node:worker_threads';
 import type { CohortRecording } from './cohort/types.ts';
 import type { IngestParams, PipelineProgress } from './pipeline.ts';
 import type { ProcessRequest, WorkReply, WorkRequest } from './worker.ts';
+import { ingestWorkerUrl } from './worker-code.ts';
 
 export type ProcessedBundle = Extract<WorkReply, { kind: 'done' }>['bundle'];
 
@@ -32,8 +33,6 @@ interface Slot {
   task: Task | null;
 }
 
-const BOOTSTRAP = new URL('./worker-bootstrap.mjs', import.meta.url);
-
 export class IngestPool {
   readonly size: number;
   private readonly slots: Slot[] = [];
@@ -48,7 +47,7 @@ export class IngestPool {
   }
 
   private spawn(): Slot {
-    const slot: Slot = { worker: new Worker(BOOTSTRAP), task: null };
+    const slot: Slot = { worker: new Worker(ingestWorkerUrl()), task: null };
     slot.worker.on('message', (m: WorkReply) => this.onMessage(slot, m));
     slot.worker.on('error', (e) => this.onCrash(slot, e));
     slot.worker.on('exit', (code) => {
