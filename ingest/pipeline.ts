@@ -8,8 +8,6 @@
  * so memory grows with epochs × channels × bins, not with samples. The computation itself lives
  * in src/core (Welch, reference, epoch-rejection, bands, stage-average, aperiodic-fit).
  */
-import { createHash } from 'node:crypto';
-import { open } from 'node:fs/promises';
 import path from 'node:path';
 import { sleepArchitecture } from '../src/core/hypnogram/architecture.ts';
 import { parseChannelLabel } from '../src/core/montage/labels.ts';
@@ -157,24 +155,6 @@ export interface PipelineProgress {
   step: 'read' | 'spectra' | 'irasa';
   done: number;
   total: number;
-}
-
-/** SHA-256 of the file bytes, read in 1-MiB pieces into one reused buffer (no garbage per piece). */
-export async function fileSha256(file: string): Promise<string> {
-  const hash = createHash('sha256');
-  const buf = new Uint8Array(1 << 20);
-  const fh = await open(file, 'r');
-  try {
-    for (let position = 0; ; ) {
-      const { bytesRead } = await fh.read(buf, 0, buf.length, position);
-      if (bytesRead === 0) break;
-      hash.update(buf.subarray(0, bytesRead));
-      position += bytesRead;
-    }
-  } finally {
-    await fh.close();
-  }
-  return hash.digest('hex');
 }
 
 /** Multiplier from a physical dimension to µV, or null when it is not a voltage. Empty → µV (assumed). */
@@ -346,29 +326,46 @@ export interface ChannelMeasures {
   fullStepHz: number;
 }
 
+/** A recording's EDF, open, with the SHA-256 of its file. */
+export interface OpenedRecording {
+  edf: EdfFile;
+  sha256: string;
+}
+
+/** Opens a recording's EDF and hashes the file in the same reads as its annotations where it can. */
+export async function openRecording(rec: CohortRecording): Promise<OpenedRecording> {
+  let edf: EdfFile;
+  try {
+    edf = await openEdf(rec.recordingPath, { sha256: true });
+  } catch (e) {
+    throw new PipelineError('open', rec.recordingPath, (e as { field?: string }).field ?? null, e instanceof Error ? e.message : String(e), { cause: e });
+  }
+  return { edf, sha256: edf.sha256 as string };
+}
+
 /**
  * Processes one recording into the bundle the store writes. `runId` defaults to the identity of
- * `params` (the store derives the same from the same parameters in beginRun); `knownSha256`
- * saves hashing the file again when the caller has just hashed it.
+ * `params` (the store derives the same from the same parameters in beginRun).
  */
 export async function processRecording(
   rec: CohortRecording,
   params: IngestParams,
   onProgress?: (p: PipelineProgress) => void,
   runId: string = runIdentity(params).runId,
-  knownSha256?: string,
+): Promise<RecordingBundle & { measures: ChannelMeasures[] }> {
+  return processOpened(rec, await openRecording(rec), params, onProgress, runId);
+}
+
+/** The same for a recording opened by openRecording; closes its EDF. */
+export async function processOpened(
+  rec: CohortRecording,
+  opened: OpenedRecording,
+  params: IngestParams,
+  onProgress?: (p: PipelineProgress) => void,
+  runId: string = runIdentity(params).runId,
 ): Promise<RecordingBundle & { measures: ChannelMeasures[] }> {
   const file = rec.recordingPath;
-  const sha = (knownSha256 ? Promise.resolve(knownSha256) : fileSha256(file)).catch((e: unknown) => {
-    throw new PipelineError('hash', file, null, `cannot read the file for its SHA-256: ${e instanceof Error ? e.message : String(e)}`, { cause: e });
-  });
-  sha.catch(() => undefined); // awaited below; avoid an unhandled rejection if an earlier step fails
-  let edf: EdfFile;
-  try {
-    edf = await openEdf(file);
-  } catch (e) {
-    throw new PipelineError('open', file, (e as { field?: string }).field ?? null, e instanceof Error ? e.message : String(e), { cause: e });
-  }
+  const edf = opened.edf;
   try {
     const hyp = await readHypnogram(edf, rec, params);
     const epochS = hyp.epochS;
@@ -621,7 +618,7 @@ export async function processRecording(
     const bundle = {
       runId,
       recording: {
-        subject: rec.subject, session: rec.session, fileName: path.basename(file), fileSha256: await sha, durationS: edf.durationS,
+        subject: rec.subject, session: rec.session, fileName: path.basename(file), fileSha256: opened.sha256, durationS: edf.durationS,
         status: 'ok', edfVariant: edf.header.variant, scoringSource: hyp.source, epochLengthS: epochS, nEpochs: nGrid,
         nEpochsDropped: nDropped, tstMin: arch.totalSleepTimeMin, sePct: arch.sleepEfficiencyPct, solMin: arch.sleepOnsetLatencyMin,
         stageMin: arch.minutesPerStage,

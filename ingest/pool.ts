@@ -57,17 +57,17 @@ export class IngestPool {
   }
 
   /**
-   * Processes one recording in the next free worker. Without `fileSha256` the worker hashes the
-   * file first and asks `isStored`; when that says yes the result is 'skipped' and nothing is read further.
+   * Processes one recording in the next free worker. The worker opens and hashes the file first
+   * and asks `isStored`; when that says yes the result is 'skipped' and no samples are read.
    */
   process(
     rec: CohortRecording,
     params: IngestParams,
     runId: string,
-    options: { onProgress?: (p: PipelineProgress) => void; fileSha256?: string; isStored?: (sha256: string) => Promise<boolean> } = {},
+    options: { onProgress?: (p: PipelineProgress) => void; isStored?: (sha256: string) => Promise<boolean> } = {},
   ): Promise<ProcessedBundle | 'skipped'> {
     if (this.closed) return Promise.reject(new Error('the pool is closed'));
-    const req: ProcessRequest = { id: this.nextId++, kind: 'process', rec, params, runId, fileSha256: options.fileSha256 };
+    const req: ProcessRequest = { id: this.nextId++, kind: 'process', rec, params, runId };
     return new Promise((resolve, reject) => {
       this.queue.push({ req, resolve, reject, onProgress: options.onProgress, isStored: options.isStored ?? (async () => false) });
       this.dispatch();

@@ -1,13 +1,13 @@
 /**
  * Worker thread: per message it processes one recording and posts the bundle back, its typed
- * arrays transferred (not copied). Without a known SHA-256 it first hashes the file and asks the
- * main thread whether that recording is stored already ('hashed' → 'stored'), so the hash, the
- * check and the work of one recording stay on one worker and the main thread only writes.
- * Failures come back as { step, field, message }.
+ * arrays transferred (not copied). It opens the file (hashing it in the same reads as the
+ * annotations) and asks the main thread whether that recording is stored already ('hashed' →
+ * 'stored'), so the hash, the check and the work of one recording stay on one worker and the
+ * main thread only writes. Failures come back as { step, field, message }.
  */
 import { parentPort } from 'node:worker_threads';
 import type { CohortRecording } from './cohort/types.ts';
-import { bundleTransferList, fileSha256, PipelineError, processRecording, type IngestParams } from './pipeline.ts';
+import { bundleTransferList, openRecording, PipelineError, processOpened, type OpenedRecording, type IngestParams } from './pipeline.ts';
 
 export type WorkRequest = ProcessRequest | StoredAnswer;
 
@@ -17,7 +17,6 @@ export interface ProcessRequest {
   rec: CohortRecording;
   params: IngestParams;
   runId: string;
-  fileSha256?: string;
 }
 
 /** The main thread's answer to 'hashed': whether the recording with that hash is stored. */
@@ -31,7 +30,7 @@ export type WorkReply =
   | { id: number; kind: 'progress'; step: string; done: number; total: number }
   | { id: number; kind: 'hashed'; sha256: string }
   | { id: number; kind: 'skipped' }
-  | { id: number; kind: 'done'; bundle: Awaited<ReturnType<typeof processRecording>> }
+  | { id: number; kind: 'done'; bundle: Awaited<ReturnType<typeof processOpened>> }
   | { id: number; kind: 'failed'; step: string; field: string | null; message: string };
 
 if (!parentPort) throw new Error('ingest/worker.ts must run in a worker thread');
@@ -49,33 +48,35 @@ const waiting = new Map<number, (stored: boolean) => void>();
 
 const failed = (id: number, step: string, field: string | null, e: unknown): WorkReply => ({ id, kind: 'failed', step, field, message: e instanceof Error ? e.message : String(e) });
 
+const failure = (id: number, e: unknown): WorkReply =>
+  failed(id, e instanceof PipelineError ? e.step : 'process', e instanceof PipelineError ? e.field : null, e);
+
 async function processOne(req: ProcessRequest): Promise<void> {
-  let sha = req.fileSha256;
-  if (sha === undefined) {
-    try {
-      sha = await fileSha256(req.rec.recordingPath);
-    } catch (e) {
-      port.postMessage(failed(req.id, 'hash', null, e) satisfies WorkReply);
-      return;
-    }
-    const stored = new Promise<boolean>((resolve) => waiting.set(req.id, resolve));
-    port.postMessage({ id: req.id, kind: 'hashed', sha256: sha } satisfies WorkReply);
-    if (await stored) {
-      port.postMessage({ id: req.id, kind: 'skipped' } satisfies WorkReply);
-      return;
-    }
+  let opened: OpenedRecording;
+  try {
+    opened = await openRecording(req.rec);
+  } catch (e) {
+    port.postMessage(failure(req.id, e) satisfies WorkReply);
+    return;
+  }
+  const stored = new Promise<boolean>((resolve) => waiting.set(req.id, resolve));
+  port.postMessage({ id: req.id, kind: 'hashed', sha256: opened.sha256 } satisfies WorkReply);
+  if (await stored) {
+    await opened.edf.close().catch(() => undefined); // read-only: nothing is lost if the close fails
+    port.postMessage({ id: req.id, kind: 'skipped' } satisfies WorkReply);
+    return;
   }
   try {
     let last = 0;
-    const bundle = await processRecording(req.rec, req.params, (p) => {
+    const bundle = await processOpened(req.rec, opened, req.params, (p) => {
       const now = Date.now();
       if (now - last < 200 && p.done < p.total) return; // at most 5 progress messages a second
       last = now;
       port.postMessage({ id: req.id, kind: 'progress', step: p.step, done: p.done, total: p.total } satisfies WorkReply);
-    }, req.runId, sha);
+    }, req.runId);
     port.postMessage({ id: req.id, kind: 'done', bundle } satisfies WorkReply, bundleTransferList(bundle));
   } catch (e) {
-    port.postMessage(failed(req.id, e instanceof PipelineError ? e.step : 'process', e instanceof PipelineError ? e.field : null, e) satisfies WorkReply);
+    port.postMessage(failure(req.id, e) satisfies WorkReply);
   }
 }
 

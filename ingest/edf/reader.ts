@@ -2,12 +2,15 @@
 // validates its header, makes one pass over the annotation signal (positioned reads of just
 // those bytes when records are 16 kB or more; smaller records are read whole in 4-MiB chunks,
 // as the OS reads whole pages anyway), and then hands out whole epochs of physical samples, reading the data records
-// in chunks through one FileHandle so memory stays bounded whatever the file size.
+// in chunks through one FileHandle so memory stays bounded whatever the file size. On request it
+// also hashes the file (SHA-256), in the annotation pass's own reads when that pass reads every byte.
+import { createHash, type Hash } from 'node:crypto';
 import { open, type FileHandle } from 'node:fs/promises';
 import { endianness } from 'node:os';
 import { EdfFormatError, EdfIoError, isEdfError, showValue } from './errors.ts';
 import { parseEdfHeader, recordBytes, FIXED_HEADER_BYTES, BYTES_PER_SIGNAL_HEADER, type EdfHeader, type EdfSignal } from './header.ts';
 import { parseTals, type EdfAnnotation } from './tal.ts';
+import { hashRestOfFile } from '../file-sha256.ts';
 
 export type { EdfAnnotation } from './tal.ts';
 export type { EdfHeader, EdfSignal } from './header.ts';
@@ -68,6 +71,8 @@ export interface EdfFile {
   gaps: EdfGap[];
   /** From the first record's onset to the end of the last record, gaps included (s). */
   durationS: number;
+  /** SHA-256 (hex) of the file bytes when opened with { sha256: true }, else null. */
+  sha256: string | null;
   readEpochs(opts: ReadEpochsOptions): AsyncGenerator<EpochBlock>;
   close(): Promise<void>;
 }
@@ -99,13 +104,18 @@ interface AnnotationPass {
   annotations: EdfAnnotation[];
   /** Onset of each record from its time-keeping TAL, or null when the file has none. */
   timeKeeping: Float64Array | null;
+  /** True when every data-record byte went into the hash, in file order. */
+  hashed: boolean;
 }
 
-/** One pass over the annotation signal(s): positioned reads of just their bytes, batch by batch. */
-async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHeader): Promise<AnnotationPass> {
+/**
+ * One pass over the annotation signal(s): positioned reads of just their bytes, batch by batch,
+ * or whole records for small records; those whole-record reads also feed `hash` when given.
+ */
+async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHeader, hash: Hash | null): Promise<AnnotationPass> {
   const annSignals = header.signals.filter((s) => s.isAnnotation);
   const annotations: EdfAnnotation[] = [];
-  if (annSignals.length === 0 || header.nRecords === 0) return { annotations, timeKeeping: null };
+  if (annSignals.length === 0 || header.nRecords === 0) return { annotations, timeKeeping: null, hashed: header.nRecords === 0 };
   const recB = recordBytes(header.signals);
   const byteOffset: number[] = []; // byte offset of each signal inside a record (EDF 1992 §2.2)
   let acc = 0;
@@ -129,6 +139,7 @@ async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHe
       const want = (r1 - r0) * recB;
       const got = await readFully(fh, file, buf, want, header.headerBytes + r0 * recB);
       if (got < want) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r0 + 1}`, { record: r0 });
+      hash?.update(buf.subarray(0, want));
       slice = (r, k) => buf.subarray((r - r0) * recB + byteOffset[annSignals[k].index], (r - r0) * recB + byteOffset[annSignals[k].index] + 2 * annSignals[k].samplesPerRecord);
     } else {
       // Positioned reads of just the annotation bytes of each record, issued together.
@@ -155,7 +166,7 @@ async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHe
     }
     talsOfBatch(file, header, annSignals, r0, r1, slice, timeKeeping, annotations);
   }
-  return { annotations, timeKeeping: isPlus ? timeKeeping : null };
+  return { annotations, timeKeeping: isPlus ? timeKeeping : null, hashed: wholeRecords };
 }
 
 /**
@@ -233,8 +244,13 @@ function recordTiming(file: string, header: EdfHeader, timeKeeping: Float64Array
   return { onsets, gaps };
 }
 
+export interface OpenEdfOptions {
+  /** Hash the file bytes too (EdfFile.sha256). */
+  sha256?: boolean;
+}
+
 /** Opens an EDF/EDF+ file. Throws EdfFormatError or EdfIoError, nothing else. */
-export async function openEdf(path: string): Promise<EdfFile> {
+export async function openEdf(path: string, options: OpenEdfOptions = {}): Promise<EdfFile> {
   if (endianness() !== 'LE') throw new EdfIoError(path, 'decode', new Error('this reader decodes int16 with the host byte order and needs a little-endian host'));
   let fh: FileHandle;
   try {
@@ -260,7 +276,16 @@ export async function openEdf(path: string): Promise<EdfFile> {
       await readFully(fh, path, headerBuf, want, 0);
     }
     const header = parseEdfHeader(headerBuf, path, size);
-    const { annotations, timeKeeping } = await readAnnotationSignals(fh, path, header);
+    // the header and then the records as the annotation pass reads them: the file's bytes in order
+    const hash = options.sha256 && headerBuf.length === header.headerBytes ? createHash('sha256').update(headerBuf) : null;
+    const { annotations, timeKeeping, hashed } = await readAnnotationSignals(fh, path, header, hash);
+    let sha256: string | null = null;
+    if (options.sha256) {
+      // any bytes after the last record, or the whole file in a pass of its own when the annotation pass read only parts
+      const whole = hash && hashed ? hash : createHash('sha256');
+      await hashRestOfFile(fh, whole, whole === hash ? header.headerBytes + header.nRecords * recordBytes(header.signals) : 0);
+      sha256 = whole.digest('hex');
+    }
     const { onsets, gaps } = recordTiming(path, header, timeKeeping);
     const n = header.nRecords;
     const durationS = n === 0 ? 0 : onsets[n - 1] + header.recordDurationS - onsets[0];
@@ -273,6 +298,7 @@ export async function openEdf(path: string): Promise<EdfFile> {
       recordOnsetsS: onsets,
       gaps,
       durationS,
+      sha256,
       readEpochs: (opts) => guarded(path, readEpochs(handle, path, header, onsets, gaps, opts)),
       async close() {
         if (closed) return;

@@ -51,7 +51,7 @@ const FAILS: Record<string, Expected> = {
   'duplicate.edf': { step: 'cohort', field: 'subject', message: /^cohort table row 16, column 'subject': subject 'g02' \(no session\) is already in row 2$/ },
   'folder.edf': { step: 'cohort', field: 'recording', message: /^cohort table row 17, column 'recording': 'folder\.edf' is not a file but a folder \(folder\.edf\)$/ },
   'pipe.edf': { step: 'cohort', field: 'recording', message: /'pipe\.edf' is not a file but a FIFO \(named pipe\)/ },
-  'locked.edf': { step: 'hash', field: null, message: /EACCES: permission denied/ },
+  'locked.edf': { step: 'open', field: 'file', message: /cannot open the file \(EACCES\): .*permission denied/ },
 };
 const STORED = [...GOOD.map((s) => `${s}.edf`), 'gaps.edf', 'mixed-rates.edf', 'no-mastoids.edf'];
 
