@@ -297,6 +297,136 @@ function epochOfPlan(st: PlanState, data: Float32Array[], e: number, w: EpochWor
   }
 }
 
+/** sum[k]/count as float32: a mean spectrum from its running sum. */
+function dividedBy(sum: Float64Array, count: number): Float32Array {
+  const mean = new Float32Array(sum.length);
+  for (let k = 0; k < sum.length; k++) mean[k] = sum[k] / count;
+  return mean;
+}
+
+/** 0, d, 2d, … (n values): epoch onsets, bin frequencies. */
+function evenlySpaced(n: number, d: number): Float64Array {
+  const v = new Float64Array(n);
+  for (let i = 0; i < n; i++) v[i] = i * d;
+  return v;
+}
+
+/** What the per-output pass after the read shares within one recording: rules, stage index per epoch, the rows collected. */
+interface FinishWork {
+  params: IngestParams;
+  /** per epoch: index into SCORED_STAGES, −1 when not a scored sleep/wake stage */
+  stageIdx: Int32Array;
+  nGrid: number;
+  nStored: number;
+  nBands: number;
+  /** frequency step of the stored bins, Hz */
+  step: number;
+  freqs: Float64Array;
+  fitRange: [number, number] | null;
+  rejections: EpochRejection[];
+  spectra: SpectrumRow[];
+  aperiodic: AperiodicRow[];
+  peaks: PeakRow[];
+  quality: QualityRowIn[];
+}
+
+/** Epoch band powers of one reference, collected per output before they become typed arrays. */
+interface BandPowerColumns {
+  channelIdx: number[];
+  epoch: number[];
+  bandIdx: number[];
+  power: number[];
+}
+
+/**
+ * One output channel of one reference, after the read pass: spectral outliers within stage, the
+ * rejection rows, its epoch band powers into `block`, the stage averages (mean and median) and,
+ * with fits on, their aperiodic fits. A function of its own, like epochOfPlan: a closure made
+ * anew for every recording would be optimised anew for every recording.
+ */
+function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, block: BandPowerColumns, w: FinishWork): void {
+  const { params, stageIdx, nGrid } = w;
+  const q = params.quality;
+  const eligible = new Uint8Array(nGrid);
+  for (let e = 0; e < nGrid; e++) eligible[e] = out.hasData[e] && out.tdReason[e] === null ? 1 : 0;
+  const outliers = spectralOutliers(out.logBroadband, out.logMuscle, stageIdx, eligible, params.rejection.outlierZ);
+  const clean = eligible.slice();
+  const outlierReason = new Map<number, string>();
+  for (const r of outliers) {
+    clean[r.epoch] = 0;
+    outlierReason.set(r.epoch, r.reason);
+  }
+  out.clean = clean;
+  for (let e = 0; e < nGrid; e++) {
+    const reason = out.tdReason[e];
+    if (out.hasData[e] && reason) w.rejections.push({ channel: out.channel, reference, epoch: e, reason, value: Number.isFinite(out.tdValue[e]) ? out.tdValue[e] : null });
+  }
+  for (const r of outliers) w.rejections.push({ channel: out.channel, reference, epoch: r.epoch, reason: r.reason, value: r.value });
+  for (let e = 0; e < nGrid; e++) {
+    if (!out.hasData[e]) continue;
+    for (let b = 0; b < w.nBands; b++) {
+      block.channelIdx.push(oi);
+      block.epoch.push(e);
+      block.bandIdx.push(b);
+      block.power.push(out.bandPower[e * w.nBands + b]);
+    }
+  }
+  const welch = out.welch;
+  const K = welch.segmentCount(out.length);
+  const nu = welchDegreesOfFreedom(K, hannWindow(welch.nPerSeg), welch.step);
+  for (let si = 0; si < SCORED_STAGES.length; si++) {
+    const stage = SCORED_STAGES[si];
+    const rows: number[] = [];
+    for (let e = 0; e < nGrid; e++) if (clean[e] && stageIdx[e] === si) rows.push(e);
+    if (reference === 'recorded') {
+      const cell = { channel: out.channel, stage };
+      let nStage = 0;
+      const byReason: Record<string, number> = {};
+      for (let e = 0; e < nGrid; e++) {
+        if (!out.hasData[e] || stageIdx[e] !== si) continue;
+        nStage++;
+        const why = out.tdReason[e] ?? (clean[e] ? null : outlierReason.get(e));
+        if (why) byReason[why] = (byReason[why] ?? 0) + 1;
+      }
+      if (nStage > 0) {
+        w.quality.push(qualityIn(rejectedFraction(cell, nStage, byReason, { maxFraction: q.rejectedMaxFraction, minEpochs: params.minEpochs }), reference));
+        w.quality.push(qualityIn(cleanEpochs(cell, rows.length, { minEpochs: params.minEpochs }, nStage), reference));
+      }
+    }
+    const avg = averageStage(out.spectra, w.nStored, rows, nu, params.minEpochs);
+    if (!avg) continue;
+    for (const averaging of ['mean', 'median'] as const) {
+      const power = Float32Array.from(averaging === 'mean' ? avg.mean : avg.median);
+      w.spectra.push({
+        channel: out.channel, stage, reference, averaging, nEpochs: avg.nEpochs, nSegments: avg.nEpochs * K,
+        freqStartHz: 0, freqStepHz: w.step, power, flagged: avg.flagged, flagReason: avg.flagReason,
+      });
+      if (w.fitRange) fitOne(power, { channel: out.channel, stage, reference, averaging }, w);
+    }
+  }
+}
+
+/** The aperiodic fit of one stage average (with its peaks and fit-quality rows), or a row of empty values when it cannot be fitted. */
+function fitOne(power: Float32Array, key: Pick<AperiodicRow, 'channel' | 'stage' | 'reference' | 'averaging'>, w: FinishWork): void {
+  const q = w.params.quality;
+  const fitRange = w.fitRange!;
+  const { fitRangeHz: _r, ...fitOptions } = w.params.fit!;
+  let fitQ: { r2: number | null; exponent: number | null } = { r2: null, exponent: null };
+  try {
+    const fit = fitSpectrum(w.freqs, power, { ...fitOptions, fitRangeHz: fitRange });
+    w.aperiodic.push({ ...key, method: fit.method, fitLoHz: fit.fitLoHz, fitHiHz: fit.fitHiHz, offset: fit.offset, exponent: fit.exponent, knee: fit.knee, r2: fit.r2, rmse: fit.rmse, nPeaks: fit.peaks.length });
+    for (const p of fit.peaks) w.peaks.push({ ...key, method: fit.method, centerHz: p.centerHz, height: p.height, bandwidthHz: p.bandwidthHz });
+    fitQ = fit;
+  } catch {
+    // a spectrum that cannot be fitted keeps a row with empty values; aperiodicQuality flags it
+    w.aperiodic.push({ ...key, method: 'fit', fitLoHz: fitRange[0], fitHiHz: fitRange[1], offset: null, exponent: null, knee: null, r2: null, rmse: null, nPeaks: null });
+  }
+  if (key.averaging === 'mean') {
+    const rows = aperiodicQuality({ channel: key.channel, stage: key.stage }, fitQ, { minR2: q.aperiodicMinR2, exponentRange: q.exponentRange });
+    for (const r of rows) w.quality.push(qualityIn(r, key.reference));
+  }
+}
+
 /**
  * Welch estimators kept across recordings (per sampling rate and parameters): their FFT tables
  * and buffers are built once per worker, not once per recording. Each call of Welch.mean is
@@ -424,7 +554,7 @@ export async function processOpened(
     const stages: Stage[] = new Array(nGrid);
     for (let e = 0; e < nGrid; e++) stages[e] = hyp.stages[e] ?? 'unscored';
     const dropReason: (string | null)[] = new Array(nGrid).fill(null);
-    const onsetS = Float64Array.from({ length: nGrid }, (_, e) => e * epochS);
+    const onsetS = evenlySpaced(nGrid, epochS);
     const clipped = new Float64Array(selected.length);
     let epochsSeen = 0;
     const epochSd = selected.map(() => new Float64Array(nGrid).fill(NaN));
@@ -465,76 +595,26 @@ export async function processOpened(
 
     // ---- per reference and channel: outliers within stage, stage averages, fits ----
     const stageIdx = Int32Array.from(stages, (s) => SCORED_STAGES.indexOf(s as (typeof SCORED_STAGES)[number]));
-    const freqs = Float64Array.from({ length: nStored }, (_, k) => k * step);
-    const rejections: EpochRejection[] = [];
-    const spectra: SpectrumRow[] = [];
-    const aperiodic: AperiodicRow[] = [];
-    const peaks: PeakRow[] = [];
-    const bandPowers: BandPowerBlock[] = [];
-    const quality: QualityRowIn[] = [];
+    const freqs = evenlySpaced(nStored, step);
+    const finish: FinishWork = {
+      params, stageIdx, nGrid, nStored, nBands: bands.length, step, freqs,
+      fitRange: params.fit ? [params.fit.fitRangeHz[0], Math.min(params.fit.fitRangeHz[1], storedMaxHz)] : null,
+      rejections: [], spectra: [], aperiodic: [], peaks: [], quality: [],
+    };
+    const { rejections, spectra, aperiodic, peaks, quality } = finish;
+    const fitRange = finish.fitRange;
     const q = params.quality;
-    const fitRange: [number, number] | null = params.fit ? [params.fit.fitRangeHz[0], Math.min(params.fit.fitRangeHz[1], storedMaxHz)] : null;
+    const bandPowers: BandPowerBlock[] = [];
     let outputsDone = 0;
     const outputsTotal = states.reduce((s, st) => s + st.outputs.length, 0);
     for (const st of states) {
       const reference = st.plan.reference;
-      const block = { channelIdx: [] as number[], epoch: [] as number[], bandIdx: [] as number[], power: [] as number[] };
-      st.outputs.forEach((out, oi) => {
-        const eligible = Uint8Array.from(out.hasData, (h, e) => (h && out.tdReason[e] === null ? 1 : 0));
-        const outliers = spectralOutliers(out.logBroadband, out.logMuscle, stageIdx, eligible, params.rejection.outlierZ);
-        const clean = eligible.slice();
-        for (const r of outliers) clean[r.epoch] = 0;
-        out.clean = clean;
-        const outlierReason = new Map(outliers.map((r) => [r.epoch, r.reason]));
-        for (let e = 0; e < nGrid; e++) {
-          const reason = out.tdReason[e];
-          if (out.hasData[e] && reason) rejections.push({ channel: out.channel, reference, epoch: e, reason, value: Number.isFinite(out.tdValue[e]) ? out.tdValue[e] : null });
-        }
-        for (const r of outliers) rejections.push({ channel: out.channel, reference, epoch: r.epoch, reason: r.reason, value: r.value });
-        for (let e = 0; e < nGrid; e++) {
-          if (!out.hasData[e]) continue;
-          for (let b = 0; b < bands.length; b++) {
-            block.channelIdx.push(oi);
-            block.epoch.push(e);
-            block.bandIdx.push(b);
-            block.power.push(out.bandPower[e * bands.length + b]);
-          }
-        }
-        const w = out.welch;
-        const K = w.segmentCount(out.length);
-        const nu = welchDegreesOfFreedom(K, hannWindow(w.nPerSeg), w.step);
-        SCORED_STAGES.forEach((stage, si) => {
-          const rows: number[] = [];
-          for (let e = 0; e < nGrid; e++) if (clean[e] && stageIdx[e] === si) rows.push(e);
-          if (reference === 'recorded') {
-            const cell = { channel: out.channel, stage };
-            let nStage = 0;
-            const byReason: Record<string, number> = {};
-            for (let e = 0; e < nGrid; e++) {
-              if (!out.hasData[e] || stageIdx[e] !== si) continue;
-              nStage++;
-              const why = out.tdReason[e] ?? (clean[e] ? null : outlierReason.get(e));
-              if (why) byReason[why] = (byReason[why] ?? 0) + 1;
-            }
-            if (nStage > 0) {
-              quality.push(qualityIn(rejectedFraction(cell, nStage, byReason, { maxFraction: q.rejectedMaxFraction, minEpochs: params.minEpochs }), reference));
-              quality.push(qualityIn(cleanEpochs(cell, rows.length, { minEpochs: params.minEpochs }, nStage), reference));
-            }
-          }
-          const avg = averageStage(out.spectra, nStored, rows, nu, params.minEpochs);
-          if (!avg) return;
-          for (const averaging of ['mean', 'median'] as const) {
-            const power = Float32Array.from(averaging === 'mean' ? avg.mean : avg.median);
-            spectra.push({
-              channel: out.channel, stage, reference, averaging, nEpochs: avg.nEpochs, nSegments: avg.nEpochs * K,
-              freqStartHz: 0, freqStepHz: step, power, flagged: avg.flagged, flagReason: avg.flagReason,
-            });
-            if (fitRange) fitOne(power, { channel: out.channel, stage, reference, averaging });
-          }
-        });
+      const block: BandPowerColumns = { channelIdx: [], epoch: [], bandIdx: [], power: [] };
+      for (let oi = 0; oi < st.outputs.length; oi++) {
+        finishOutput(st.outputs[oi], oi, reference, block, finish);
         outputsDone++;
         onProgress?.({ step: 'spectra', done: outputsDone, total: outputsTotal });
-      });
+      }
       bandPowers.push({
         reference,
         channels: st.outputs.map((o) => o.channel),
@@ -546,24 +626,6 @@ export async function processOpened(
       });
     }
 
-    function fitOne(power: Float32Array, key: Pick<AperiodicRow, 'channel' | 'stage' | 'reference' | 'averaging'>): void {
-      const { fitRangeHz: _r, ...fitOptions } = params.fit!;
-      let fitQ: { r2: number | null; exponent: number | null } = { r2: null, exponent: null };
-      try {
-        const fit = fitSpectrum(freqs, power, { ...fitOptions, fitRangeHz: fitRange! });
-        aperiodic.push({ ...key, method: fit.method, fitLoHz: fit.fitLoHz, fitHiHz: fit.fitHiHz, offset: fit.offset, exponent: fit.exponent, knee: fit.knee, r2: fit.r2, rmse: fit.rmse, nPeaks: fit.peaks.length });
-        for (const p of fit.peaks) peaks.push({ ...key, method: fit.method, centerHz: p.centerHz, height: p.height, bandwidthHz: p.bandwidthHz });
-        fitQ = fit;
-      } catch {
-        // a spectrum that cannot be fitted keeps a row with empty values; aperiodicQuality flags it
-        aperiodic.push({ ...key, method: 'fit', fitLoHz: fitRange![0], fitHiHz: fitRange![1], offset: null, exponent: null, knee: null, r2: null, rmse: null, nPeaks: null });
-      }
-      if (key.averaging === 'mean') {
-        const rows = aperiodicQuality({ channel: key.channel, stage: key.stage }, fitQ, { minR2: q.aperiodicMinR2, exponentRange: q.exponentRange });
-        for (const r of rows) quality.push(qualityIn(r, key.reference));
-      }
-    }
-
     if (params.irasa) {
       onProgress?.({ step: 'irasa', done: 0, total: nGrid });
       aperiodic.push(...(await irasaPass(edf, selected.map((s) => s.signal.index), selected.map((s) => s.toUv), states, stageIdx, epochS, params, fitRange, nGrid, (d) => onProgress?.({ step: 'irasa', done: d, total: nGrid }))));
@@ -572,10 +634,9 @@ export async function processOpened(
     const recordedState = states.find((s) => s.plan.reference === 'recorded');
     const measures: ChannelMeasures[] = selected.map((s, c) => {
       const out = recordedState?.outputs.find((_, o) => recordedState.plan.outputs[o].source === c);
-      const sds = Array.from(epochSd[c]).filter(Number.isFinite).sort((a, b) => a - b);
+      const sds = epochSd[c].filter(Number.isFinite).sort();
       // a channel without clean epochs (flat all night, say) has no spectrum to assess
-      const fullSpectrum = new Float32Array(out?.fullSum && out.fullCount > 0 ? out.fullSum.length : 0);
-      if (out?.fullSum && out.fullCount > 0) for (let b = 0; b < fullSpectrum.length; b++) fullSpectrum[b] = out.fullSum[b] / out.fullCount;
+      const fullSpectrum = out?.fullSum && out.fullCount > 0 ? dividedBy(out.fullSum, out.fullCount) : new Float32Array(0);
       return {
         channel: s.name,
         clippingFraction: epochsSeen > 0 ? clipped[c] / (epochsSeen * Math.round(s.signal.fsHz * epochS)) : 0,
@@ -593,7 +654,7 @@ export async function processOpened(
       quality.push(qualityIn(clipping(cell, nSamples, Math.round(m.clippingFraction * nSamples), { maxFraction: q.clippingMaxFraction }), 'recorded'));
       if (Number.isFinite(m.medianSdUv)) quality.push(qualityIn(flatChannel(cell, m.medianSdUv, { minSdUv: q.flatMinSdUv }), 'recorded'));
       if (m.fullSpectrum.length > 0) {
-        const f = Float64Array.from({ length: m.fullSpectrum.length }, (_, k) => k * m.fullStepHz);
+        const f = evenlySpaced(m.fullSpectrum.length, m.fullStepHz);
         // a known line the spectrum cannot reach (60 Hz at fs 128) is not assessable: pass null
         const reach = f[f.length - 1] >= (lineHz ?? 0) + DEFAULT_MAINS_HUM.outerHz;
         quality.push(qualityIn(mainsHum(cell, f, m.fullSpectrum, { ...DEFAULT_MAINS_HUM, lineHz: reach ? lineHz : null, thresholdDb: q.mainsThresholdDb }), 'recorded'));

@@ -131,49 +131,46 @@ async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHe
   const buf = new Uint8Array(batch * (wholeRecords ? recB : annBytes));
   const isPlus = header.variant !== 'EDF';
   const timeKeeping = new Float64Array(header.nRecords);
+  // annotation signal k of record r (r0 ≤ r < r1) sits at buf[(r − r0)·stride + within[k] …], 2·samplesPerRecord bytes
+  const stride = wholeRecords ? recB : annBytes;
+  const within = new Int32Array(annSignals.length);
+  for (let k = 0, o = 0; k < annSignals.length; o += 2 * annSignals[k].samplesPerRecord, k++) within[k] = wholeRecords ? byteOffset[annSignals[k].index] : o;
   for (let r0 = 0; r0 < header.nRecords; r0 += batch) {
     const r1 = Math.min(header.nRecords, r0 + batch);
-    // slice(r, k): the bytes of annotation signal k in record r, inside buf.
-    let slice: (r: number, k: number) => Uint8Array;
     if (wholeRecords) {
       const want = (r1 - r0) * recB;
       const got = await readFully(fh, file, buf, want, header.headerBytes + r0 * recB);
       if (got < want) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r0 + 1}`, { record: r0 });
       hash?.update(buf.subarray(0, want));
-      slice = (r, k) => buf.subarray((r - r0) * recB + byteOffset[annSignals[k].index], (r - r0) * recB + byteOffset[annSignals[k].index] + 2 * annSignals[k].samplesPerRecord);
     } else {
       // Positioned reads of just the annotation bytes of each record, issued together.
-      const at: number[][] = [];
       const reads: Promise<void>[] = [];
-      let o = 0;
       for (let r = r0; r < r1; r++) {
-        const row: number[] = [];
-        for (const sig of annSignals) {
+        for (let k = 0; k < annSignals.length; k++) {
+          const sig = annSignals[k];
           const width = 2 * sig.samplesPerRecord;
-          const start = o;
-          row.push(start);
+          const start = (r - r0) * stride + within[k];
           reads.push(
             readFully(fh, file, buf.subarray(start, start + width), width, header.headerBytes + r * recB + byteOffset[sig.index]).then((got) => {
               if (got < width) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: record ${r + 1} gave ${got} of ${width} annotation bytes`, { record: r });
             }),
           );
-          o += width;
         }
-        at.push(row);
       }
       await Promise.all(reads);
-      slice = (r, k) => buf.subarray(at[r - r0][k], at[r - r0][k] + 2 * annSignals[k].samplesPerRecord);
     }
-    talsOfBatch(file, header, annSignals, r0, r1, slice, timeKeeping, annotations);
+    talsOfBatch(file, header, annSignals, r0, r1, buf, stride, within, timeKeeping, annotations);
   }
   return { annotations, timeKeeping: isPlus ? timeKeeping : null, hashed: wholeRecords };
 }
 
+const nonEmpty = (text: string) => text !== '';
+
 /**
- * The TALs of records r0 … r1 − 1 (slice(r, k): the bytes of annotation signal k in record r):
- * time-keeping onsets into timeKeeping, the other annotations appended to `annotations`.
- * A plain function, not a loop inside the async pass, so its optimised code serves every batch
- * and every file instead of being compiled again for each call of the pass.
+ * The TALs of records r0 … r1 − 1 (annotation signal k of record r at buf[(r − r0)·stride +
+ * within[k]]): time-keeping onsets into timeKeeping, the other annotations appended to
+ * `annotations`. A plain function, not a loop inside the async pass, so its optimised code
+ * serves every batch and every file instead of being compiled again for each call of the pass.
  */
 function talsOfBatch(
   file: string,
@@ -181,7 +178,9 @@ function talsOfBatch(
   annSignals: EdfSignal[],
   r0: number,
   r1: number,
-  slice: (r: number, k: number) => Uint8Array,
+  buf: Uint8Array,
+  stride: number,
+  within: Int32Array,
   timeKeeping: Float64Array,
   annotations: EdfAnnotation[],
 ): void {
@@ -189,7 +188,8 @@ function talsOfBatch(
   for (let r = r0; r < r1; r++) {
     for (let k = 0; k < annSignals.length; k++) {
       const sig = annSignals[k];
-      const tals = parseTals(slice(r, k), file, r, { index: sig.index, label: sig.label });
+      const at = (r - r0) * stride + within[k];
+      const tals = parseTals(buf.subarray(at, at + 2 * sig.samplesPerRecord), file, r, { index: sig.index, label: sig.label });
       let firstTal = 0;
       if (k === 0) {
         // EDF+ 2003 §2.2.4: the first TAL of each record in the first annotation signal is the
@@ -206,7 +206,7 @@ function talsOfBatch(
         }
       }
       for (let t = firstTal; t < tals.length; t++) {
-        const texts = tals[t].texts.filter((x) => x !== '');
+        const texts = tals[t].texts.filter(nonEmpty);
         if (texts.length > 0) annotations.push({ onsetS: tals[t].onsetS, durationS: tals[t].durationS, texts });
       }
     }

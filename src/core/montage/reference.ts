@@ -269,6 +269,8 @@ export function planReferences(
 export class Rereferencer {
   readonly plan: ReferencePlan;
   private readonly out: Float32Array[];
+  /** 'recorded': the input arrays of the outputs, refilled per call */
+  private readonly passed: ArrayLike<number>[];
   private readonly signalBuf: Float64Array[];
   private readonly length: number;
 
@@ -278,17 +280,22 @@ export class Rereferencer {
     this.length = length;
     const copies = plan.reference !== 'recorded';
     this.out = copies ? plan.outputs.map(() => new Float32Array(length)) : [];
+    this.passed = copies ? [] : new Array(plan.outputs.length);
     this.signalBuf = plan.signals.map(() => new Float64Array(length));
   }
 
   /**
    * Re-referenced epoch, one array per plan output (same order). `data[i]` is the epoch of the
    * planned channel i. For 'recorded' the input arrays themselves are returned (no copy).
+   * The returned list (and for the other references its arrays) is refilled by the next call.
    */
   apply(data: readonly ArrayLike<number>[]): ArrayLike<number>[] {
     const plan = this.plan;
     const n = this.length;
-    if (plan.reference === 'recorded') return plan.outputs.map((o) => data[o.source]);
+    if (plan.reference === 'recorded') {
+      for (let k = 0; k < plan.outputs.length; k++) this.passed[k] = data[plan.outputs[k].source];
+      return this.passed;
+    }
     for (let s = 0; s < plan.signals.length; s++) {
       const { indices, weights } = plan.signals[s];
       const r = this.signalBuf[s];
