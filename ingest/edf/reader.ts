@@ -368,15 +368,52 @@ function checkEpochOptions(file: string, header: EdfHeader, opts: ReadEpochsOpti
 }
 
 /**
+ * Where and how each requested signal is decoded, in typed arrays (one row per requested signal k):
+ * its word offset inside a record, samples per record and per epoch, scaling, and the first sample
+ * of the current epoch. Plain numbers only, so the decode loops see the same shapes for every file.
+ */
+class DecodePlan {
+  readonly n: number;
+  /** int16 offset of signal k inside a record (EDF 1992 §2.2) */
+  readonly wordOffset: Int32Array;
+  readonly samplesPerRecord: Int32Array;
+  readonly perEpoch: Int32Array;
+  readonly fsHz: Float64Array;
+  readonly physicalMin: Float64Array;
+  readonly digitalMin: Float64Array;
+  readonly digitalMax: Float64Array;
+  /** (pmax − pmin)/(dmax − dmin) */
+  readonly gain: Float64Array;
+  /** first sample of the current epoch, counted from the segment's first record */
+  readonly startSample: Int32Array;
+
+  constructor(header: EdfHeader, chosen: EdfSignal[], perEpoch: number[]) {
+    const n = (this.n = chosen.length);
+    const offsets: number[] = [];
+    let acc = 0;
+    for (const s of header.signals) {
+      offsets.push(acc);
+      acc += s.samplesPerRecord;
+    }
+    this.wordOffset = Int32Array.from(chosen, (s) => offsets[s.index]);
+    this.samplesPerRecord = Int32Array.from(chosen, (s) => s.samplesPerRecord);
+    this.perEpoch = Int32Array.from(perEpoch);
+    this.fsHz = Float64Array.from(chosen, (s) => s.fsHz);
+    this.physicalMin = Float64Array.from(chosen, (s) => s.physicalMin);
+    this.digitalMin = Float64Array.from(chosen, (s) => s.digitalMin);
+    this.digitalMax = Float64Array.from(chosen, (s) => s.digitalMax);
+    this.gain = Float64Array.from(chosen, (s) => (s.physicalMax - s.physicalMin) / (s.digitalMax - s.digitalMin));
+    this.startSample = new Int32Array(n);
+  }
+}
+
+/**
  * Physical values of `count` digital samples src[from …] into dst[to …] (EDF 1992 §2.2 scaling:
  * phys = pmin + (dig − dmin)·(pmax − pmin)/(dmax − dmin), `gain` the last factor). Returns how
  * many were at or beyond the digital limits. A plain function, so the engine optimises the loop
  * fully (it is the inner loop of every ingest; the generator around it is not).
  */
-function decodeSamples(src: Int16Array, from: number, dst: Float32Array, to: number, count: number, sig: EdfSignal, gain: number): number {
-  const pmin = sig.physicalMin;
-  const dmin = sig.digitalMin;
-  const dmax = sig.digitalMax;
+function decodeSamples(src: Int16Array, from: number, dst: Float32Array, to: number, count: number, pmin: number, dmin: number, dmax: number, gain: number): number {
   let atLimits = 0;
   for (let i = 0; i < count; i++) {
     const v = src[from + i];
@@ -388,28 +425,91 @@ function decodeSamples(src: Int16Array, from: number, dst: Float32Array, to: num
 
 /**
  * Record rr of the current segment (its words from recBase in chunk) into the epoch buffers: for
- * each chosen signal k, the samples of the epoch (startSample[k], perEpoch[k] of them) that fall in
- * this record. A plain function, so its optimised code outlives one generator's run.
+ * each requested signal k, the samples of the epoch (p.startSample[k], p.perEpoch[k] of them) that
+ * fall in this record. A plain function, so its optimised code outlives one generator's run.
  */
-function decodeRecord(
-  chunk: Int16Array,
-  recBase: number,
-  rr: number,
-  chosen: EdfSignal[],
-  wordOffset: number[],
-  startSample: number[],
-  perEpoch: number[],
-  scale: number[],
-  out: Float32Array[],
-  limits: Int32Array,
-): void {
-  for (let k = 0; k < chosen.length; k++) {
-    const sig = chosen[k];
-    const spr = sig.samplesPerRecord;
-    const from = Math.max(startSample[k], rr * spr);
-    const to = Math.min(startSample[k] + perEpoch[k], (rr + 1) * spr);
+function decodeRecord(chunk: Int16Array, recBase: number, rr: number, p: DecodePlan, out: Float32Array[], limits: Int32Array): void {
+  for (let k = 0; k < p.n; k++) {
+    const spr = p.samplesPerRecord[k];
+    const first = p.startSample[k];
+    const from = Math.max(first, rr * spr);
+    const to = Math.min(first + p.perEpoch[k], (rr + 1) * spr);
     if (from >= to) continue;
-    limits[k] += decodeSamples(chunk, recBase + wordOffset[sig.index] + (from - rr * spr), out[k], from - startSample[k], to - from, sig, scale[k]);
+    limits[k] += decodeSamples(chunk, recBase + p.wordOffset[k] + (from - rr * spr), out[k], from - first, to - from, p.physicalMin[k], p.digitalMin[k], p.digitalMax[k], p.gain[k]);
+  }
+}
+
+/** End of a run of contiguous records, s from the file start. */
+function segmentEnd(g: Segment, recordDurationS: number): number {
+  return g.startS + g.nRecords * recordDurationS;
+}
+
+interface ChunkRead {
+  first: number;
+  count: number;
+  into: number;
+  got: Promise<number>;
+}
+
+/**
+ * The data records of a file, a chunk at a time, through two buffers: while one chunk is decoded
+ * the next is read into the other, so the disk read overlaps the caller's work. Own buffers
+ * (byteOffset 0), so the Int16Array views are aligned. A class, not closures inside the epoch
+ * generator: its methods and the objects they make keep one shape for every file, so a worker's
+ * optimised code for them is not thrown away at the next recording.
+ */
+class RecordChunks {
+  /** Samples of the current chunk: record `first` starts at word 0. */
+  words: Int16Array;
+  first = -1;
+  count = 0;
+  private readonly bytes: Uint8Array[];
+  private readonly views: Int16Array[];
+  private readonly recB: number;
+  private current = 0;
+  private ahead: ChunkRead | null = null;
+
+  constructor(
+    private readonly fh: FileHandle,
+    private readonly file: string,
+    private readonly header: EdfHeader,
+    private readonly chunkRecords: number,
+  ) {
+    this.recB = recordBytes(header.signals);
+    const buffers = [new ArrayBuffer(chunkRecords * this.recB), new ArrayBuffer(chunkRecords * this.recB)];
+    this.bytes = [new Uint8Array(buffers[0]), new Uint8Array(buffers[1])];
+    this.views = [new Int16Array(buffers[0]), new Int16Array(buffers[1])];
+    this.words = this.views[0];
+  }
+
+  holds(r: number): boolean {
+    return r >= this.first && r < this.first + this.count;
+  }
+
+  /** Makes record r's chunk current (the one read ahead, if it starts at r), and reads the next one ahead. */
+  async load(r: number): Promise<void> {
+    let read: ChunkRead;
+    if (this.ahead && this.ahead.first === r) read = this.ahead;
+    else {
+      if (this.ahead) await this.ahead.got.catch(() => undefined); // never two reads into one buffer
+      read = this.startRead(r, 1 - this.current);
+    }
+    this.ahead = null;
+    const want = read.count * this.recB;
+    const got = await read.got;
+    if (got < want) throw new EdfFormatError(this.file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r + 1}`, { record: r });
+    this.current = read.into;
+    this.words = this.views[read.into];
+    this.first = r;
+    this.count = read.count;
+    if (r + read.count < this.header.nRecords) this.ahead = this.startRead(r + read.count, 1 - read.into);
+  }
+
+  private startRead(r: number, into: number): ChunkRead {
+    const count = Math.min(this.chunkRecords, this.header.nRecords - r);
+    const got = readFully(this.fh, this.file, this.bytes[into], count * this.recB, this.header.headerBytes + r * this.recB);
+    got.catch(() => undefined); // awaited when used; a read left behind by an early return stays silent
+    return { first: r, count, into, got };
   }
 }
 
@@ -428,66 +528,24 @@ async function* readEpochs(
   const epochS = opts.epochS;
   const recB = recordBytes(header.signals);
   const recWords = recB / 2;
-  const wordOffset: number[] = []; // int16 offset of each signal inside a record (EDF 1992 §2.2)
-  let acc = 0;
-  for (const s of header.signals) {
-    wordOffset.push(acc);
-    acc += s.samplesPerRecord;
-  }
-  const chunkRecords = Math.max(1, Math.floor((opts.chunkBytes ?? DEFAULT_CHUNK_BYTES) / recB));
-  // Two chunk buffers: while one is decoded, the next chunk is read into the other, so the disk
-  // read overlaps the caller's work. Own buffers: byteOffset 0, so the Int16Array views are aligned.
-  const chunkBufs = [new ArrayBuffer(chunkRecords * recB), new ArrayBuffer(chunkRecords * recB)];
-  const chunkU8s = chunkBufs.map((b) => new Uint8Array(b));
-  const chunkI16s = chunkBufs.map((b) => new Int16Array(b));
-  let current = 0;
-  let chunkI16 = chunkI16s[current];
-  let chunkStart = -1;
-  let chunkCount = 0;
-  interface ChunkRead { start: number; count: number; into: number; got: Promise<number> }
-  const startRead = (r: number, into: number): ChunkRead => {
-    const count = Math.min(chunkRecords, nRec - r);
-    const got = readFully(fh, file, chunkU8s[into], count * recB, header.headerBytes + r * recB);
-    got.catch(() => undefined); // awaited when used; a read left behind by an early return stays silent
-    return { start: r, count, into, got };
-  };
-  let ahead: ChunkRead | null = null;
-  const ensure = async (r: number): Promise<void> => {
-    if (r >= chunkStart && r < chunkStart + chunkCount) return;
-    let read: ChunkRead;
-    if (ahead && ahead.start === r) read = ahead;
-    else {
-      if (ahead) await ahead.got.catch(() => undefined); // never two reads into one buffer
-      read = startRead(r, 1 - current);
-    }
-    ahead = null;
-    const want = read.count * recB;
-    const got = await read.got;
-    if (got < want) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r + 1}`, { record: r });
-    current = read.into;
-    chunkI16 = chunkI16s[current];
-    chunkStart = r;
-    chunkCount = read.count;
-    if (r + read.count < nRec) ahead = startRead(r + read.count, 1 - current);
-  };
+  const plan = new DecodePlan(header, chosen, perEpoch);
+  const chunks = new RecordChunks(fh, file, header, Math.max(1, Math.floor((opts.chunkBytes ?? DEFAULT_CHUNK_BYTES) / recB)));
 
   const out = perEpoch.map((n) => new Float32Array(n));
   const limits = new Int32Array(chosen.length);
-  const scale = chosen.map((s) => (s.physicalMax - s.physicalMin) / (s.digitalMax - s.digitalMin));
-  const startSample = new Array<number>(chosen.length).fill(0);
+  const startSample = plan.startSample;
   const segs = segmentsOf(onsets, gaps);
-  const segEnd = (g: Segment) => g.startS + g.nRecords * d;
   const t0 = onsets[0];
   const last = segs[segs.length - 1];
-  const endS = segEnd(last);
+  const endS = segmentEnd(last, d);
   let seg = 0;
   for (let e = 0; ; e++) {
     const a = t0 + e * epochS;
     const b = a + epochS;
     if (a >= endS - ONSET_TOLERANCE_S) return;
-    while (seg < segs.length - 1 && segEnd(segs[seg]) <= a + ONSET_TOLERANCE_S) seg++;
+    while (seg < segs.length - 1 && segmentEnd(segs[seg], d) <= a + ONSET_TOLERANCE_S) seg++;
     const sg = segs[seg];
-    if (a < sg.startS - ONSET_TOLERANCE_S || b > segEnd(sg) + ONSET_TOLERANCE_S) {
+    if (a < sg.startS - ONSET_TOLERANCE_S || b > segmentEnd(sg, d) + ONSET_TOLERANCE_S) {
       if (sg === last && b > endS + ONSET_TOLERANCE_S && a >= sg.startS - ONSET_TOLERANCE_S) {
         yield { epoch: e, onsetS: a, data: null, atDigitalLimits: null, dropReason: 'end' };
         return;
@@ -498,9 +556,9 @@ async function* readEpochs(
     // Sample range of each signal inside the segment; an EDF+D segment onset off the epoch grid is snapped to the nearest sample.
     let rFirst = Infinity;
     let rLast = -Infinity;
-    for (let k = 0; k < chosen.length; k++) {
-      const spr = chosen[k].samplesPerRecord;
-      const s0 = Math.min(Math.max(0, Math.round((a - sg.startS) * chosen[k].fsHz)), sg.nRecords * spr - perEpoch[k]);
+    for (let k = 0; k < plan.n; k++) {
+      const spr = plan.samplesPerRecord[k];
+      const s0 = Math.min(Math.max(0, Math.round((a - sg.startS) * plan.fsHz[k])), sg.nRecords * spr - perEpoch[k]);
       startSample[k] = s0;
       rFirst = Math.min(rFirst, Math.floor(s0 / spr));
       rLast = Math.max(rLast, Math.floor((s0 + perEpoch[k] - 1) / spr));
@@ -509,8 +567,8 @@ async function* readEpochs(
     // Records outer, signals inner: every record is fetched once, in file order.
     for (let rr = rFirst; rr <= rLast; rr++) {
       const r = sg.firstRecord + rr;
-      await ensure(r);
-      decodeRecord(chunkI16, (r - chunkStart) * recWords, rr, chosen, wordOffset, startSample, perEpoch, scale, out, limits);
+      if (!chunks.holds(r)) await chunks.load(r);
+      decodeRecord(chunks.words, (r - chunks.first) * recWords, rr, plan, out, limits);
     }
     yield { epoch: e, onsetS: a, data: out, atDigitalLimits: limits, dropReason: null };
   }
