@@ -18,6 +18,7 @@ import { IngestPool, WorkerTaskError } from './pool.ts';
 import { openStore } from './store/database.ts';
 import { DiskFullError, isDiskFull } from './store/errors.ts';
 import { cohortQualityPass } from './store/merge.ts';
+import { runIdentity } from './store/identity.ts';
 import { sortSpectra } from './store/spectra-order.ts';
 
 export type { ShardSpec as Shard } from './cohort/shard.ts';
@@ -65,14 +66,12 @@ export async function runIngest(
   progress?: (e: IngestEvent) => void,
 ): Promise<IngestSummary> {
   const params = resolveIngestParams(options.params);
-  // the workers start first: their start (loading the pipeline's modules) overlaps the discovery and the store's opening
+  // the workers start first: their start (loading the pipeline's modules) overlaps the discovery
   const pool = new IngestPool(options.jobs);
   let cohort: Awaited<ReturnType<typeof discoverCohort>>;
-  let store: Awaited<ReturnType<typeof openStore>>;
   try {
     // rows that cannot be ingested on their own (duplicate subject, file missing or not a regular file) fail alone
     cohort = await discoverCohort(cohortPathOrBidsFolder, { rowProblems: 'per-recording' });
-    store = await openStore(outDb, { create: true });
   } catch (e) {
     await pool.close();
     throw e;
@@ -80,15 +79,24 @@ export async function runIngest(
   const shard = options.shard ?? null;
   // a stable 1/N share by sorted subject, session and path (ingest/cohort/shard.ts)
   const recordings = shard ? selectShard(cohort.recordings, shard.k, shard.n) : cohort.recordings;
+  // the run is named by its parameters (beginRun derives the same id), so the workers can take
+  // their first recordings while the store opens: each hashes its file, then waits for the store
+  // to say whether that recording is stored already
+  const runId = runIdentity(params).runId;
+  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0 };
+  const opened = openStore(outDb, { create: true });
+  const ready = opened.then(async (store) => {
+    const begun = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.k}/${shard.n}` : null });
+    if (begun.runId !== runId) throw new Error(`run id ${begun.runId} from the store, ${runId} from the parameters`);
+    const names = cohort.columns.map((c) => c.name);
+    await store.writeParticipants(names, cohort.participants.map((p) => names.map((n) => p[n] ?? null)));
+    progress?.({ kind: 'start', runId, reused: begun.reused, total: recordings.length });
+    return store;
+  });
   let failure: unknown = null;
   let storedSoFar = 0;
   const diskFull = (e: unknown, during: string) => new DiskFullError(outDb, during, storedSoFar, e);
   try {
-    const { runId, reused } = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.k}/${shard.n}` : null });
-    const names = cohort.columns.map((c) => c.name);
-    await store.writeParticipants(names, cohort.participants.map((p) => names.map((n) => p[n] ?? null)));
-    progress?.({ kind: 'start', runId, reused, total: recordings.length });
-    const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0 };
     // file names relative to the cohort root: no absolute paths (which may name people) in the database
     const shown = (rec: CohortRecording) => path.relative(cohort.root, rec.recordingPath) || path.basename(rec.recordingPath);
     // messages name files relative to the cohort root too
@@ -96,6 +104,7 @@ export async function runIngest(
     // set when the run must stop (disk full): recordings still in flight are neither written nor logged
     let stopped = false;
     const fail = async (rec: CohortRecording, step: string, field: string | null, fullMessage: string) => {
+      const store = await ready;
       if (stopped) return;
       const message = fullMessage.split(rootPrefix).join('');
       summary.failed.push({ file: shown(rec), step, message });
@@ -109,12 +118,14 @@ export async function runIngest(
         // the worker hashes the file and asks here whether that recording is stored (skipped if so)
         bundle = await pool.process(rec, params, runId, {
           onProgress: (p) => progress?.({ kind: 'progress', file: shown(rec), ...p }),
-          isStored: (sha) => store.hasRecording(runId, sha),
+          isStored: async (sha) => (await ready).hasRecording(runId, sha),
         });
       } catch (e) {
+        await ready; // a store that did not open is the error to report, not this recording's
         const step = e instanceof WorkerTaskError ? e.step : 'process';
         return fail(rec, step, e instanceof WorkerTaskError ? e.field : null, (e as Error).message);
       }
+      const store = await ready;
       if (bundle === 'skipped') {
         summary.skipped++;
         storedSoFar++;
@@ -144,9 +155,11 @@ export async function runIngest(
       while (next < recordings.length && !stopped) await one(recordings[next++]);
     });
     // every lane settles before the pool and the store close; the first error is the one reported
-    const ended = await Promise.allSettled(lanes);
+    // (the store's own, when it did not open or begin the run)
+    const ended = await Promise.allSettled([ready, ...lanes]);
     const laneError = ended.find((r): r is PromiseRejectedResult => r.status === 'rejected');
     if (laneError) throw laneError.reason;
+    const store = await ready;
     try {
       // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
       summary.cohortQualityRows = await cohortQualityPass(store);
@@ -162,7 +175,8 @@ export async function runIngest(
   } finally {
     await pool.close();
     // a close that fails (its checkpoint on a full disk) must not hide the first error
-    await store.close().catch((e: unknown) => {
+    const store = await opened.catch(() => null);
+    await store?.close().catch((e: unknown) => {
       if (failure === null) throw isDiskFull(e) ? diskFull(e, 'closing the database (checkpoint)') : e;
     });
   }
