@@ -116,43 +116,55 @@ export class Welch {
   /**
    * Adds each segment's density into sum (length nBins). Returns the number of segments.
    * The same estimate as forEachSegment, formed with less work: segments go through one complex
-   * transform in pairs (RealFftPower.pairTransform), an odd last one paired with zeros; the mean
-   * is removed by zeroing the DC bin of the raw transform, and the periodic Hann window is applied
-   * in frequency as the exact 3-tap convolution X_w[k] = ½X[k] − ¼X[k−1] − ¼X[k+1] (indices
-   * mod n; Harris 1978, Proc. IEEE 66:51–83).
+   * transform in pairs (RealFftPower.pairTransform), an odd last one paired with zeros, windowed
+   * as they are copied in; the segment mean is removed afterwards in frequency, where it touches
+   * three bins only: FFT((x − m)·w) = FFT(x·w) − m·W, and the periodic Hann window's transform W
+   * is n/2 at bin 0, −n/4 at bins 1 and n − 1, and 0 elsewhere (Harris 1978, Proc. IEEE 66:51–83).
    */
   accumulate(x: ArrayLike<number>, start: number, length: number, sum: Float64Array): number {
     const count = this.segmentCount(length);
     const n = this.nPerSeg;
+    const w = this.window;
     const z = this.fft.pairInput();
     const raw = this.segment;
     raw.fill(0);
     for (let s = 0; s < count; s += 2) {
       const oa = start + s * this.step;
       const ob = oa + this.step;
+      let sa = 0;
+      let sb = 0;
       if (s + 1 < count) {
         for (let i = 0; i < n; i++) {
-          z[2 * i] = x[oa + i];
-          z[2 * i + 1] = x[ob + i];
+          const a = x[oa + i];
+          const b = x[ob + i];
+          sa += a;
+          sb += b;
+          z[2 * i] = a * w[i];
+          z[2 * i + 1] = b * w[i];
         }
       } else {
         for (let i = 0; i < n; i++) {
-          z[2 * i] = x[oa + i];
+          const a = x[oa + i];
+          sa += a;
+          z[2 * i] = a * w[i];
           z[2 * i + 1] = 0;
         }
       }
       const y = this.fft.pairTransform();
-      y[0] = 0; // detrend 'constant': the DC bin of a zero-mean segment is 0
-      y[1] = 0;
-      // bins 0 and 1 need indices modulo n; from k = 2 on, k ± 1 and n − k ± 1 stay inside 0 … n−1
-      for (let k = 0; k < Math.min(2, this.nBins); k++) raw[k] += windowedPairPower(y, n, k);
-      for (let k = 2; k < this.nBins; k++) {
+      // detrend 'constant': Z_k −= (m_a + i·m_b)·W_k at k = 0, 1, n − 1
+      const ma = sa / n;
+      const mb = sb / n;
+      y[0] -= ma * (n / 2);
+      y[1] -= mb * (n / 2);
+      y[2] += ma * (n / 4);
+      y[3] += mb * (n / 4);
+      y[2 * n - 2] += ma * (n / 4);
+      y[2 * n - 1] += mb * (n / 4);
+      // |A_k|² + |B_k|² = (|Z_k|² + |Z_{n−k}|²)/2, with Z_n = Z_0
+      raw[0] += y[0] * y[0] + y[1] * y[1];
+      for (let k = 1; k < this.nBins; k++) {
         const m = n - k;
-        const re = 0.5 * y[2 * k] - 0.25 * (y[2 * k - 2] + y[2 * k + 2]);
-        const im = 0.5 * y[2 * k + 1] - 0.25 * (y[2 * k - 1] + y[2 * k + 3]);
-        const re2 = 0.5 * y[2 * m] - 0.25 * (y[2 * m - 2] + y[2 * m + 2]);
-        const im2 = 0.5 * y[2 * m + 1] - 0.25 * (y[2 * m - 1] + y[2 * m + 3]);
-        raw[k] += 0.5 * (re * re + im * im + re2 * re2 + im2 * im2); // |A_k|² + |B_k|²
+        raw[k] += 0.5 * (y[2 * k] * y[2 * k] + y[2 * k + 1] * y[2 * k + 1] + y[2 * m] * y[2 * m] + y[2 * m + 1] * y[2 * m + 1]);
       }
     }
     const evenNyquist = n % 2 === 0 ? n / 2 : -1;
@@ -170,23 +182,6 @@ export class Welch {
     if (count > 0) for (let k = 0; k < this.nBins; k++) out[k] /= count;
     return count;
   }
-}
-
-/**
- * |A_k|² + |B_k|² of the Hann-windowed pair at bin k, from the raw transform y of z = a + i·b:
- * windowed Z_j = ½Z_j − ¼(Z_{j−1} + Z_{j+1}) (indices mod n) at j = k and j = n − k, then
- * (|Z_k|² + |Z_{n−k}|²)/2 (see RealFftPower.pairTransform).
- */
-function windowedPairPower(y: ArrayLike<number>, n: number, k: number): number {
-  let sum = 0;
-  for (const j of [k, (n - k) % n]) {
-    const jm = (j + n - 1) % n;
-    const jp = (j + 1) % n;
-    const re = 0.5 * y[2 * j] - 0.25 * (y[2 * jm] + y[2 * jp]);
-    const im = 0.5 * y[2 * j + 1] - 0.25 * (y[2 * jm + 1] + y[2 * jp + 1]);
-    sum += re * re + im * im;
-  }
-  return 0.5 * sum;
 }
 
 export interface WelchResult {
