@@ -573,7 +573,8 @@ export async function processOpened(
     const onsetS = evenlySpaced(nGrid, epochS);
     const clipped = new Float64Array(selected.length);
     let epochsSeen = 0;
-    const epochSd = selected.map(() => new Float64Array(nGrid).fill(NaN));
+    const epochSd: Float64Array[] = []; // filled by push, not .map(): see readEpochs' epoch buffers
+    for (let c = 0; c < selected.length; c++) epochSd.push(new Float64Array(nGrid).fill(NaN));
     const epochWork: EpochWork = {
       nStored, rejection: params.rejection, bandTable, nBands: bands.length, broadBand, muscleBand, epochSd,
       psd: new Float64Array(Math.max(...[...welchByFs.values()].map((w) => w.nBins))),

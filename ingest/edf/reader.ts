@@ -531,7 +531,10 @@ async function* readEpochs(
   const plan = new DecodePlan(header, chosen, perEpoch);
   const chunks = new RecordChunks(fh, file, header, Math.max(1, Math.floor((opts.chunkBytes ?? DEFAULT_CHUNK_BYTES) / recB)));
 
-  const out = perEpoch.map((n) => new Float32Array(n));
+  // filled by push: an array made by .map() here came out with another hidden class for every
+  // file, and the decode loop's optimised code was thrown away at each new recording
+  const out: Float32Array[] = [];
+  for (const n of perEpoch) out.push(new Float32Array(n));
   const limits = new Int32Array(chosen.length);
   const startSample = plan.startSample;
   const segs = segmentsOf(onsets, gaps);

@@ -279,9 +279,13 @@ export class Rereferencer {
     this.plan = plan;
     this.length = length;
     const copies = plan.reference !== 'recorded';
-    this.out = copies ? plan.outputs.map(() => new Float32Array(length)) : [];
+    // arrays filled by push, not made by .map(): those were seen to come out with another hidden
+    // class per recording, and each new one threw away apply's optimised code
+    this.out = [];
+    if (copies) for (let k = 0; k < plan.outputs.length; k++) this.out.push(new Float32Array(length));
     this.passed = copies ? [] : new Array(plan.outputs.length);
-    this.signalBuf = plan.signals.map(() => new Float64Array(length));
+    this.signalBuf = [];
+    for (let s = 0; s < plan.signals.length; s++) this.signalBuf.push(new Float64Array(length));
   }
 
   /**
