@@ -7,9 +7,9 @@
  * child vector in one block per chunk.
  */
 import duckdb from '@duckdb/node-bindings';
-import { DuckDBDataChunk, timestampValue, type DuckDBConnection, type DuckDBVector } from '@duckdb/node-api';
+import { DuckDBDataChunk, type DuckDBConnection } from '@duckdb/node-api';
 import { StoreError } from './errors.ts';
-import type { ColumnDef, TableDef } from './schema.ts';
+import type { ColumnDef, SqlType, TableDef } from './schema.ts';
 
 export type CellValue = string | number | boolean | Date | Float32Array | null;
 
@@ -39,6 +39,10 @@ export async function appendColumns(
     if (types.length !== table.columns.length) {
       throw new StoreError(`database has ${types.length} columns, schema.ts has ${table.columns.length}`, { table: table.name });
     }
+    table.columns.forEach((def, c) => {
+      if (types[c].typeId !== TYPE_ID[def.type]) throw new StoreError(`database column is ${types[c].toString()}, schema.ts says ${def.type}`, { table: table.name, column: def.name });
+    });
+    const encoded = new Map<string, Uint8Array>();
     const chunkRows = duckdb.vector_size();
     for (let start = 0; start < rowCount; start += chunkRows) {
       const n = Math.min(chunkRows, rowCount - start);
@@ -46,7 +50,7 @@ export async function appendColumns(
       for (let c = 0; c < table.columns.length; c++) {
         const def = table.columns[c];
         if (def.type === 'FLOAT[]') fillFloatList(chunk, c, def, table.name, start, n, getters[c]);
-        else fillScalar(chunk.getColumnVector(c), def, table.name, start, n, getters[c]);
+        else fillScalar(duckdb.data_chunk_get_vector(chunk.chunk, c), def, table.name, start, n, getters[c], encoded);
       }
       appender.appendDataChunk(chunk);
     }
@@ -63,54 +67,116 @@ export async function appendColumns(
   appender.closeSync();
 }
 
+/** DuckDB type id (duckdb.h duckdb_type) of each schema type; JSON is a VARCHAR with an alias. */
+const TYPE_ID: Record<SqlType, number> = { VARCHAR: 17, JSON: 17, INTEGER: 4, DOUBLE: 11, FLOAT: 10, BOOLEAN: 1, TIMESTAMP: 12, 'FLOAT[]': 24 };
+
+/**
+ * One scalar column of a chunk: each value checked, then numbers, booleans and timestamps copied
+ * into the vector in one block, strings assigned one by one from UTF-8 bytes encoded once per
+ * distinct string (`encoded`, shared by the columns of one append), nulls cleared in the
+ * validity mask (DuckDB's: bit i of little-endian 64-bit words, 1 = valid).
+ */
 function fillScalar(
-  vector: DuckDBVector,
+  vector: duckdb.Vector,
   def: ColumnDef,
   table: string,
   start: number,
   n: number,
   get: (row: number) => CellValue,
+  encoded: Map<string, Uint8Array>,
 ): void {
-  for (let i = 0; i < n; i++) {
-    const row = start + i;
-    const value = get(row);
-    if (value === null || value === undefined) {
-      if (def.notNull) throw new StoreError('null in a NOT NULL column', { table, column: def.name, row });
-      vector.setItem(i, null);
-      continue;
-    }
-    vector.setItem(i, checked(value, def, table, row) as never);
-  }
-  vector.flush();
-}
-
-function checked(value: CellValue, def: ColumnDef, table: string, row: number): unknown {
-  const where = { table, column: def.name, row };
+  const valid = new Uint8Array(Math.ceil(n / 64) * 8).fill(0xff);
+  let nulls = 0;
+  let block: Int32Array | Float64Array | Float32Array | Uint8Array | BigInt64Array | null = null;
   switch (def.type) {
     case 'VARCHAR':
     case 'JSON':
-      if (typeof value !== 'string') throw new StoreError(`expected a string, got ${describe(value)}`, where);
-      return value;
-    case 'INTEGER':
-      if (typeof value !== 'number' || !Number.isInteger(value) || Math.abs(value) > 2 ** 31 - 1) {
-        throw new StoreError(`expected a 32-bit integer, got ${describe(value)}`, where);
+      for (let i = 0; i < n; i++) {
+        const v = get(start + i);
+        if (v === null || v === undefined) {
+          nulls += markNull(valid, i, def, table, start + i);
+          continue;
+        }
+        if (typeof v !== 'string') wrongValue(def, table, start + i, 'a string', v);
+        let bytes = encoded.get(v as string);
+        if (bytes === undefined) encoded.set(v as string, (bytes = UTF8.encode(v as string)));
+        duckdb.vector_assign_string_element_len(vector, i, bytes);
       }
-      return value;
+      break;
+    case 'INTEGER': {
+      const a = (block = new Int32Array(n));
+      for (let i = 0; i < n; i++) {
+        const v = get(start + i);
+        if (v === null || v === undefined) {
+          nulls += markNull(valid, i, def, table, start + i);
+          continue;
+        }
+        if (typeof v !== 'number' || !Number.isInteger(v) || Math.abs(v) > 2 ** 31 - 1) wrongValue(def, table, start + i, 'a 32-bit integer', v);
+        a[i] = v as number;
+      }
+      break;
+    }
     case 'DOUBLE':
-    case 'FLOAT':
-      if (typeof value !== 'number' || !Number.isFinite(value)) {
-        throw new StoreError(`expected a finite number (null for missing), got ${describe(value)}`, where);
+    case 'FLOAT': {
+      const a = (block = def.type === 'DOUBLE' ? new Float64Array(n) : new Float32Array(n));
+      for (let i = 0; i < n; i++) {
+        const v = get(start + i);
+        if (v === null || v === undefined) {
+          nulls += markNull(valid, i, def, table, start + i);
+          continue;
+        }
+        if (typeof v !== 'number' || !Number.isFinite(v)) wrongValue(def, table, start + i, 'a finite number (null for missing)', v);
+        a[i] = v as number;
       }
-      return value;
-    case 'BOOLEAN':
-      if (typeof value !== 'boolean') throw new StoreError(`expected a boolean, got ${describe(value)}`, where);
-      return value;
-    case 'TIMESTAMP':
-      if (!(value instanceof Date) || Number.isNaN(value.getTime())) throw new StoreError(`expected a Date, got ${describe(value)}`, where);
-      return timestampValue(BigInt(value.getTime()) * 1000n);
+      break;
+    }
+    case 'BOOLEAN': {
+      const a = (block = new Uint8Array(n));
+      for (let i = 0; i < n; i++) {
+        const v = get(start + i);
+        if (v === null || v === undefined) {
+          nulls += markNull(valid, i, def, table, start + i);
+          continue;
+        }
+        if (typeof v !== 'boolean') wrongValue(def, table, start + i, 'a boolean', v);
+        a[i] = v ? 1 : 0;
+      }
+      break;
+    }
+    case 'TIMESTAMP': {
+      const a = (block = new BigInt64Array(n));
+      for (let i = 0; i < n; i++) {
+        const v = get(start + i);
+        if (v === null || v === undefined) {
+          nulls += markNull(valid, i, def, table, start + i);
+          continue;
+        }
+        if (!(v instanceof Date) || Number.isNaN(v.getTime())) wrongValue(def, table, start + i, 'a Date', v);
+        a[i] = BigInt((v as Date).getTime()) * 1000n; // microseconds since the epoch
+      }
+      break;
+    }
     case 'FLOAT[]':
-      throw new StoreError('list column filled as scalar', where);
+      throw new StoreError('list column filled as scalar', { table, column: def.name });
   }
+  if (block && n > 0) duckdb.copy_data_to_vector(vector, 0, block.buffer as ArrayBuffer, 0, block.byteLength);
+  if (nulls > 0) {
+    duckdb.vector_ensure_validity_writable(vector);
+    duckdb.copy_data_to_vector_validity(vector, 0, valid.buffer, 0, valid.byteLength);
+  }
+}
+
+const UTF8 = new TextEncoder();
+
+/** A null at chunk row i: cleared in the validity mask (returns 1), or an error for a NOT NULL column. */
+function markNull(valid: Uint8Array, i: number, def: ColumnDef, table: string, row: number): number {
+  if (def.notNull) throw new StoreError('null in a NOT NULL column', { table, column: def.name, row });
+  valid[i >> 3] &= ~(1 << (i & 7));
+  return 1;
+}
+
+function wrongValue(def: ColumnDef, table: string, row: number, expected: string, value: CellValue): never {
+  throw new StoreError(`expected ${expected}, got ${describe(value)}`, { table, column: def.name, row });
 }
 
 function describe(value: unknown): string {
