@@ -85,79 +85,25 @@ function fillScalar(
   get: (row: number) => CellValue,
   encoded: Map<string, Uint8Array>,
 ): void {
+  if (def.type === 'FLOAT[]') throw new StoreError('list column filled as scalar', { table, column: def.name });
   const valid = new Uint8Array(Math.ceil(n / 64) * 8).fill(0xff);
   let nulls = 0;
-  let block: Int32Array | Float64Array | Float32Array | Uint8Array | BigInt64Array | null = null;
-  switch (def.type) {
-    case 'VARCHAR':
-    case 'JSON':
-      for (let i = 0; i < n; i++) {
-        const v = get(start + i);
-        if (v === null || v === undefined) {
-          nulls += markNull(valid, i, def, table, start + i);
-          continue;
-        }
-        if (typeof v !== 'string') wrongValue(def, table, start + i, 'a string', v);
-        let bytes = encoded.get(v as string);
-        if (bytes === undefined) encoded.set(v as string, (bytes = UTF8.encode(v as string)));
-        duckdb.vector_assign_string_element_len(vector, i, bytes);
-      }
-      break;
-    case 'INTEGER': {
-      const a = (block = new Int32Array(n));
-      for (let i = 0; i < n; i++) {
-        const v = get(start + i);
-        if (v === null || v === undefined) {
-          nulls += markNull(valid, i, def, table, start + i);
-          continue;
-        }
-        if (typeof v !== 'number' || !Number.isInteger(v) || Math.abs(v) > 2 ** 31 - 1) wrongValue(def, table, start + i, 'a 32-bit integer', v);
-        a[i] = v as number;
-      }
-      break;
+  const block = newBlock(def.type, n); // null for strings
+  for (let i = 0; i < n; i++) {
+    const v = get(start + i);
+    if (v === null || v === undefined) {
+      if (def.notNull) throw new StoreError('null in a NOT NULL column', { table, column: def.name, row: start + i });
+      valid[i >> 3] &= ~(1 << (i & 7));
+      nulls++;
+      continue;
     }
-    case 'DOUBLE':
-    case 'FLOAT': {
-      const a = (block = def.type === 'DOUBLE' ? new Float64Array(n) : new Float32Array(n));
-      for (let i = 0; i < n; i++) {
-        const v = get(start + i);
-        if (v === null || v === undefined) {
-          nulls += markNull(valid, i, def, table, start + i);
-          continue;
-        }
-        if (typeof v !== 'number' || !Number.isFinite(v)) wrongValue(def, table, start + i, 'a finite number (null for missing)', v);
-        a[i] = v as number;
-      }
-      break;
-    }
-    case 'BOOLEAN': {
-      const a = (block = new Uint8Array(n));
-      for (let i = 0; i < n; i++) {
-        const v = get(start + i);
-        if (v === null || v === undefined) {
-          nulls += markNull(valid, i, def, table, start + i);
-          continue;
-        }
-        if (typeof v !== 'boolean') wrongValue(def, table, start + i, 'a boolean', v);
-        a[i] = v ? 1 : 0;
-      }
-      break;
-    }
-    case 'TIMESTAMP': {
-      const a = (block = new BigInt64Array(n));
-      for (let i = 0; i < n; i++) {
-        const v = get(start + i);
-        if (v === null || v === undefined) {
-          nulls += markNull(valid, i, def, table, start + i);
-          continue;
-        }
-        if (!(v instanceof Date) || Number.isNaN(v.getTime())) wrongValue(def, table, start + i, 'a Date', v);
-        a[i] = BigInt((v as Date).getTime()) * 1000n; // microseconds since the epoch
-      }
-      break;
-    }
-    case 'FLOAT[]':
-      throw new StoreError('list column filled as scalar', { table, column: def.name });
+    if (!fits(def.type, v)) throw new StoreError(`expected ${EXPECTED[def.type]}, got ${describe(v)}`, { table, column: def.name, row: start + i });
+    if (block === null) {
+      let bytes = encoded.get(v as string);
+      if (bytes === undefined) encoded.set(v as string, (bytes = UTF8.encode(v as string)));
+      duckdb.vector_assign_string_element_len(vector, i, bytes);
+    } else if (block instanceof BigInt64Array) block[i] = BigInt((v as Date).getTime()) * 1000n; // TIMESTAMP: µs since the epoch
+    else block[i] = v === true ? 1 : v === false ? 0 : (v as number);
   }
   if (block && n > 0) duckdb.copy_data_to_vector(vector, 0, block.buffer as ArrayBuffer, 0, block.byteLength);
   if (nulls > 0) {
@@ -166,18 +112,49 @@ function fillScalar(
   }
 }
 
+/** The vector's data as a typed array of its width (DuckDB: INTEGER int32, DOUBLE/FLOAT, BOOLEAN one byte, TIMESTAMP int64 µs); null for strings. */
+function newBlock(type: SqlType, n: number): Int32Array | Float64Array | Float32Array | Uint8Array | BigInt64Array | null {
+  switch (type) {
+    case 'INTEGER':
+      return new Int32Array(n);
+    case 'DOUBLE':
+      return new Float64Array(n);
+    case 'FLOAT':
+      return new Float32Array(n);
+    case 'BOOLEAN':
+      return new Uint8Array(n);
+    case 'TIMESTAMP':
+      return new BigInt64Array(n);
+    default:
+      return null;
+  }
+}
+
+const EXPECTED: Record<SqlType, string> = {
+  VARCHAR: 'a string', JSON: 'a string', INTEGER: 'a 32-bit integer', DOUBLE: 'a finite number (null for missing)',
+  FLOAT: 'a finite number (null for missing)', BOOLEAN: 'a boolean', TIMESTAMP: 'a Date', 'FLOAT[]': 'a Float32Array',
+};
+
+function fits(type: SqlType, v: CellValue): boolean {
+  switch (type) {
+    case 'VARCHAR':
+    case 'JSON':
+      return typeof v === 'string';
+    case 'INTEGER':
+      return typeof v === 'number' && Number.isInteger(v) && Math.abs(v) <= 2 ** 31 - 1;
+    case 'DOUBLE':
+    case 'FLOAT':
+      return typeof v === 'number' && Number.isFinite(v);
+    case 'BOOLEAN':
+      return typeof v === 'boolean';
+    case 'TIMESTAMP':
+      return v instanceof Date && !Number.isNaN(v.getTime());
+    case 'FLOAT[]':
+      return v instanceof Float32Array;
+  }
+}
+
 const UTF8 = new TextEncoder();
-
-/** A null at chunk row i: cleared in the validity mask (returns 1), or an error for a NOT NULL column. */
-function markNull(valid: Uint8Array, i: number, def: ColumnDef, table: string, row: number): number {
-  if (def.notNull) throw new StoreError('null in a NOT NULL column', { table, column: def.name, row });
-  valid[i >> 3] &= ~(1 << (i & 7));
-  return 1;
-}
-
-function wrongValue(def: ColumnDef, table: string, row: number, expected: string, value: CellValue): never {
-  throw new StoreError(`expected ${expected}, got ${describe(value)}`, { table, column: def.name, row });
-}
 
 function describe(value: unknown): string {
   if (value instanceof Float32Array) return `Float32Array(${value.length})`;
