@@ -252,34 +252,6 @@ interface PlanState {
   outputs: OutputState[];
 }
 
-/**
- * A fresh OutputState. Built here, not as an object literal inside processOpened's closures: a
- * literal there gets a new hidden class for every recording, and the worker's optimised code for
- * epochOfPlan and finishOutput, specialised to the last one, would be thrown away each time.
- */
-function outputState(channel: string, welch: Welch, length: number, nGrid: number, nStored: number, nBands: number, recorded: boolean): OutputState {
-  return {
-    channel,
-    welch,
-    length,
-    spectra: new Float32Array(nGrid * nStored),
-    hasData: new Uint8Array(nGrid),
-    tdReason: new Array(nGrid).fill(null),
-    tdValue: new Float64Array(nGrid),
-    logBroadband: new Float64Array(nGrid).fill(NaN),
-    logMuscle: new Float64Array(nGrid).fill(NaN),
-    bandPower: new Float32Array(nGrid * nBands),
-    fullSum: recorded ? new Float64Array(welch.nBins) : null,
-    fullCount: 0,
-    clean: null,
-  };
-}
-
-/** A fresh PlanState (see outputState for why it is built here). */
-function planState(plan: ReferencePlan, epochS: number, outputs: OutputState[]): PlanState {
-  return { plan, rereferencer: new Rereferencer(plan, plan.fsHz ? Math.round(plan.fsHz * epochS) : 0), outputs };
-}
-
 /** What every epoch of one recording shares: the stored range, rejection rules, band tables and scratch. */
 interface EpochWork {
   nStored: number;
@@ -556,16 +528,28 @@ export async function processOpened(
       }
       return w;
     };
-    const states: PlanState[] = plans.map((plan) =>
-      planState(
-        plan,
-        epochS,
-        plan.outputs.map((o) => {
-          const fs = selected[o.source].signal.fsHz;
-          return outputState(plan.reference === 'recorded' ? recordedNames[o.source] : o.channel, welchFor(fs), Math.round(fs * epochS), nGrid, nStored, bands.length, plan.reference === 'recorded');
-        }),
-      ),
-    );
+    const states: PlanState[] = plans.map((plan) => {
+      const outputs = plan.outputs.map((o): OutputState => {
+        const fs = selected[o.source].signal.fsHz;
+        const welch = welchFor(fs);
+        return {
+          channel: plan.reference === 'recorded' ? recordedNames[o.source] : o.channel,
+          welch,
+          length: Math.round(fs * epochS),
+          spectra: new Float32Array(nGrid * nStored),
+          hasData: new Uint8Array(nGrid),
+          tdReason: new Array(nGrid).fill(null),
+          tdValue: new Float64Array(nGrid),
+          logBroadband: new Float64Array(nGrid).fill(NaN),
+          logMuscle: new Float64Array(nGrid).fill(NaN),
+          bandPower: new Float32Array(nGrid * bands.length),
+          fullSum: plan.reference === 'recorded' ? new Float64Array(welch.nBins) : null,
+          fullCount: 0,
+          clean: null,
+        };
+      });
+      return { plan, rereferencer: new Rereferencer(plan, plan.fsHz ? Math.round(plan.fsHz * epochS) : 0), outputs };
+    });
 
     const stages: Stage[] = new Array(nGrid);
     for (let e = 0; e < nGrid; e++) stages[e] = hyp.stages[e] ?? 'unscored';

@@ -370,7 +370,7 @@ function checkEpochOptions(file: string, header: EdfHeader, opts: ReadEpochsOpti
 /**
  * Where and how each requested signal is decoded, in typed arrays (one row per requested signal k):
  * its word offset inside a record, samples per record and per epoch, scaling, and the first sample
- * of the current epoch. Plain numbers only, so the decode loops see the same shapes for every file.
+ * of the current epoch.
  */
 class DecodePlan {
   readonly n: number;
@@ -454,9 +454,8 @@ interface ChunkRead {
 /**
  * The data records of a file, a chunk at a time, through two buffers: while one chunk is decoded
  * the next is read into the other, so the disk read overlaps the caller's work. Own buffers
- * (byteOffset 0), so the Int16Array views are aligned. A class, not closures inside the epoch
- * generator: its methods and the objects they make keep one shape for every file, so a worker's
- * optimised code for them is not thrown away at the next recording.
+ * (byteOffset 0), so the Int16Array views are aligned. A class, not closures made anew in every
+ * call of the epoch generator: V8 optimised such closures again for every recording.
  */
 class RecordChunks {
   /** Samples of the current chunk: record `first` starts at word 0. */
