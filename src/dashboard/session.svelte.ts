@@ -1,5 +1,6 @@
 // The open database, shared by every view.
 import { openPickedFile, openServedDatabase, preloadEngine, type CohortConnection } from './db/connection.ts';
+import type { ReportableResult } from '../core/report/index.ts';
 import { cohortSchema, runs, type CohortSchema, type RunInfo } from './db/queries.ts';
 
 /** Where the dashboard server puts the database, relative to the app (ingest/server/serve.ts). */
@@ -56,6 +57,12 @@ export class Session {
       this.error = err instanceof Error ? err.message : String(err);
       this.status = 'failed';
     }
+  }
+
+  /** What a result records of the database it ran on (the methods report's database line): the file name, not its path. */
+  resultDatabase(runId: string): NonNullable<ReportableResult['database']> {
+    const run = this.runs.find((r) => r.runId === runId);
+    return { file: (this.db?.source ?? 'database').split('/').pop()!, runId, toolVersion: run?.toolVersion ?? '', ingestParameters: run?.parameters ?? null };
   }
 }
 

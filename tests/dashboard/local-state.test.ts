@@ -4,10 +4,11 @@
 import { describe, expect, it } from 'vitest';
 import { exclusionsToTsv, parseExclusionsTsv } from '../../src/core/contrast/exclusions.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
-import { appendLedger, databaseKey, ledgerCounts, loadExclusions, loadLedger, saveExclusions, withExclusion, withoutExclusion } from '../../src/dashboard/db/local-store.ts';
+import { browserLedgerCounts } from '../../src/dashboard/db/ledger-report.ts';
+import { appendLedger, databaseKey, loadExclusions, loadLedger, saveExclusions, withExclusion, withoutExclusion } from '../../src/dashboard/db/local-store.ts';
 import type { RunInfo } from '../../src/dashboard/db/queries.ts';
 import { formatHash, parseHash } from '../../src/dashboard/routes.ts';
-import { contrastFileText, contrastFromParams, paramsFromContrast } from '../../src/dashboard/views/contrast/contrast-params.ts';
+import { contrastFileText, contrastFromParams, paramsFromContrast } from '../../src/dashboard/analysis/contrast-params.ts';
 
 class MemoryStore {
   map = new Map<string, string>();
@@ -49,7 +50,7 @@ describe('per-database lists in browser storage', () => {
   it('counts analyses run and those with a smallest p below 0.05', () => {
     const store = new MemoryStore();
     for (const p of [0.01, 0.2, null, 0.049]) appendLedger(store, 'k', { time: '2026-01-01T00:00:00Z', contrast: {}, smallestP: p, n: {}, exclusions: 0 });
-    expect(ledgerCounts(loadLedger(store, 'k'))).toEqual({ runs: 4, significant: 2 });
+    expect(browserLedgerCounts(loadLedger(store, 'k'))).toEqual({ analyses: 4, significant: 2, byKind: { compare: 4 } });
   });
 });
 

@@ -9,7 +9,8 @@ import { ledgerCounts } from '../../src/core/report/index.ts';
 import { defaultPathChoices, enumeratePaths, type BandCheckResult, type PathDataSet, type PathResult, type SpecificationCurve } from '../../src/core/verdict/index.ts';
 import { bandCheckLedgerEntry, browserLedgerCounts, entryKind } from '../../src/dashboard/db/ledger-report.ts';
 import type { LedgerEntry } from '../../src/dashboard/db/local-store.ts';
-import { bandCheckFromParams, bandFromParams, paramsFromBandCheck, withEdges } from '../../src/dashboard/views/band-check/band-check-params.ts';
+import { bandFromParams, withEdges } from '../../src/dashboard/analysis/band-text.ts';
+import { bandCheckFromParams, paramsFromBandCheck } from '../../src/dashboard/views/band-check/band-check-params.ts';
 import { EFFECTS, effectRows } from '../../src/dashboard/views/band-check/band-check-data.ts';
 import { markdownBlocks, parseResultJson, ResultFileError } from '../../src/dashboard/views/report/report-data.ts';
 import { matrixDots, matrixRows, shareSentence } from '../../src/dashboard/views/robustness/robustness-data.ts';
@@ -30,7 +31,7 @@ describe('band check address bar', () => {
     expect(withEdges(13, 15).name).toBe('fast-sigma');
     expect(withEdges(4.5, 8)).toEqual({ name: 'band', loHz: 4.5, hiHz: 8 });
     expect(() => withEdges(8, 4)).toThrow(/invalid edges 8–4 Hz/);
-    expect(() => bandFromParams({ band: 'theta' })).toThrow(/expected name:lo-hi/);
+    expect(() => bandFromParams({ band: 'theta' })).toThrow(/expected LO-HI or name:LO-HI/);
   });
 });
 

@@ -12,12 +12,15 @@ import {
   withoutExclusion,
   type LedgerEntry,
 } from './local-store.ts';
+import { browserLedgerCounts } from './ledger-report.ts';
 import type { RunInfo } from './queries.ts';
 
 export class DatabaseNotes {
   key: string | null = $state(null);
   exclusions: Exclusion[] = $state.raw([]);
   ledger: LedgerEntry[] = $state.raw([]);
+  /** The ledger's analyses and significant ones, as every view and the methods report state them. */
+  readonly counts = $derived(browserLedgerCounts(this.ledger));
 
   /** Point at the database just opened and read its lists. */
   use(runs: readonly RunInfo[], source: string): void {

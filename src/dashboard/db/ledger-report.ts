@@ -1,7 +1,9 @@
 // The browser ledger (db/local-store.ts, one list per database) as the methods report counts it
-// (src/core/report ledgerCounts), and the ledger entry of a band check. Entries written by the
-// contrast view carry no kind: they are contrasts ('compare', as the command line calls them).
+// (src/core/report ledgerCounts): the one count every view shows; and the ledger entries of a
+// contrast and a band check. Entries without a kind (written before kinds were recorded) are
+// contrasts ('compare', as the command line calls them).
 import { ledgerCounts as reportCounts, type LedgerCounts } from '../../core/report/index.ts';
+import type { CompareResult } from '../../core/contrast/run.ts';
 import type { BandCheckResult } from '../../core/verdict/index.ts';
 import type { LedgerEntry } from './local-store.ts';
 
@@ -26,4 +28,9 @@ export function browserLedgerCounts(entries: readonly LedgerEntry[]): LedgerCoun
 /** The ledger entry of a band check: its contrast with the band, the verdict's smallest adjusted p (as the command line). */
 export function bandCheckLedgerEntry(r: BandCheckResult, exclusions: number, time = new Date().toISOString()): KindedLedgerEntry {
   return { time, kind: 'band-check', contrast: { ...r.contrast, band: r.band }, smallestP: r.p, n: { ...r.n }, exclusions };
+}
+
+/** The ledger entry of a contrast: its contrast JSON and smallest cluster (or TFCE) p. */
+export function contrastLedgerEntry(r: CompareResult, smallestP: number | null, exclusions: number, time = new Date().toISOString()): KindedLedgerEntry {
+  return { time, kind: 'compare', contrast: r.contrast, smallestP, n: { ...r.n }, exclusions };
 }

@@ -91,8 +91,3 @@ export function appendLedger(store: KeyValueStore, dbKey: string, entry: LedgerE
   store.setItem(`${dbKey}:ledger`, JSON.stringify(list));
   return list;
 }
-
-/** "analyses run: N, significant: M" — significant: smallest p below `alpha`. */
-export function ledgerCounts(list: readonly LedgerEntry[], alpha = 0.05): { runs: number; significant: number } {
-  return { runs: list.length, significant: list.filter((e) => e.smallestP !== null && e.smallestP < alpha).length };
-}

@@ -1,63 +1,31 @@
-// The contrast view's data: what the form offers (from the database) and the rows a contrast reads,
-// cached per stage × reference × averaging × measure so repeated runs do not read again.
+// The contrast view's data: the rows a contrast reads, cached per stage × reference × averaging ×
+// measure so repeated runs do not read again, and the tables and maps of its result.
 import type { ContrastData, Exclusion } from '../../../core/contrast/data.ts';
 import type { CompareResult } from '../../../core/contrast/run.ts';
 import type { Contrast } from '../../../core/contrast/spec.ts';
 import type { Row } from '../../db/arrow-rows.ts';
 import { contrastMaxHz, loadContrastData } from '../../db/contrast-data.ts';
-import { participants, type CohortSchema, type RunInfo } from '../../db/queries.ts';
-import { spectraChoices } from '../../db/quality-queries.ts';
+import type { CohortSchema, RunInfo } from '../../db/queries.ts';
 import type { SqlClient } from '../../db/sql-client.ts';
+import type { PromiseCache } from '../../analysis/analysis-run.svelte.ts';
 import type { SpectraRows } from '../spectra/spectra-data.ts';
 import { ALPHA } from './contrast-charts.ts';
 
-export interface FormChoices {
-  /** participants columns: text ones with their values, numeric ones */
-  textColumns: Map<string, string[]>;
-  numericColumns: string[];
-  stages: string[];
-  references: string[];
-  averagings: string[];
-}
-
-export async function loadChoices(db: SqlClient, schema: CohortSchema): Promise<FormChoices> {
-  const p = await participants(db, schema);
-  const textColumns = new Map<string, string[]>();
-  const numericColumns: string[] = [];
-  for (const c of p.columns) {
-    if (c.name === 'subject') continue;
-    const values = p.rows.map((r) => r[c.name]).filter((v) => v !== null);
-    if (values.every((v) => typeof v === 'number')) numericColumns.push(c.name);
-    else textColumns.set(c.name, [...new Set(values.map(String))].sort());
-  }
-  const combos = await spectraChoices(db);
-  const uniq = (k: 'stage' | 'reference' | 'averaging') => [...new Set(combos.map((c) => c[k]))];
-  return { textColumns, numericColumns, stages: uniq('stage'), references: uniq('reference'), averagings: uniq('averaging') };
-}
-
-/** Reads ContrastData once per (stages, reference, averaging, measure, highest frequency read); exclusions applied on each use. */
-export class ContrastDataCache {
-  private cache = new Map<string, Promise<{ runId: string; data: ContrastData }>>();
-
-  constructor(
-    private readonly db: SqlClient,
-    private readonly schema: CohortSchema,
-    private readonly runs: readonly RunInfo[],
-  ) {}
-
-  async get(c: Contrast, exclusions: readonly Exclusion[]): Promise<{ runId: string; data: ContrastData }> {
-    const stages = c.design === 'paired' && c.stages ? c.stages.join(',') : c.stage;
-    const key = [stages, c.reference, c.averaging, c.measure, c.aperiodicMethod, contrastMaxHz(c) ?? 'all'].join('|');
-    let entry = this.cache.get(key);
-    if (entry === undefined) {
-      // log-psd and residual read no bin above fmaxHz: their lists are read cut there
-      entry = loadContrastData(this.db, this.schema, this.runs, c, [], contrastMaxHz(c));
-      entry.catch(() => this.cache.delete(key));
-      this.cache.set(key, entry);
-    }
-    const { runId, data } = await entry;
-    return { runId, data: { ...data, exclusions: [...exclusions] } };
-  }
+/** Reads ContrastData once per (stages, reference, averaging, measure, method, highest frequency read); exclusions applied on each use. */
+export async function readContrastData(
+  db: SqlClient,
+  schema: CohortSchema,
+  runs: readonly RunInfo[],
+  cache: PromiseCache,
+  c: Contrast,
+  exclusions: readonly Exclusion[],
+): Promise<{ runId: string; data: ContrastData }> {
+  const stages = c.design === 'paired' && c.stages ? c.stages.join(',') : c.stage;
+  const maxHz = contrastMaxHz(c);
+  const key = [stages, c.reference, c.averaging, c.measure, c.aperiodicMethod, maxHz ?? 'all'].join('|');
+  // log-psd and residual read no bin above fmaxHz: their lists are read cut there
+  const { runId, data } = await cache.get(key, () => loadContrastData(db, schema, runs, c, [], maxHz));
+  return { runId, data: { ...data, exclusions: [...exclusions] } };
 }
 
 /** Smallest cluster p (or smallest TFCE-corrected p), null when there is none. */

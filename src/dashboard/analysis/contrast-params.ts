@@ -1,13 +1,12 @@
 // A contrast in the address bar: each key of the contrast JSON (src/core/contrast/spec.ts) as one
-// hash parameter, lists joined by ',' and ranges by '-'; parsed back through parseContrast.
-import { parseContrast, type Contrast, type ContrastJson } from '../../../core/contrast/spec.ts';
+// hash parameter, lists joined by ',', ranges by '-' and bands as analysis/band-text.ts writes them;
+// parsed back through parseContrast.
+import { parseContrast, type Contrast, type ContrastJson } from '../../core/contrast/spec.ts';
+import { bandText, parseBandText } from './band-text.ts';
 
 const LIST_KEYS = ['groups', 'stages', 'sessions', 'nuisance'] as const;
 const NUMBER_KEYS = ['fminHz', 'fmaxHz', 'clusterP', 'permutations', 'seed'] as const;
 const TEXT_KEYS = ['design', 'groupColumn', 'covariate', 'session', 'stage', 'reference', 'averaging', 'measure', 'statistic', 'correction', 'bandMethod', 'aperiodicMethod'] as const;
-
-/** Parameters that are not part of the contrast (kept by the view, dropped here). */
-export const VIEW_KEYS = ['run'] as const;
 
 /** The contrast JSON written by a hash's parameters (not yet validated). */
 export function contrastJsonFromParams(params: Readonly<Record<string, string>>): ContrastJson {
@@ -24,11 +23,7 @@ export function contrastJsonFromParams(params: Readonly<Record<string, string>>)
   if (params.channelAverage !== undefined) out.channelAverage = params.channelAverage === 'true';
   if (params.relativeRangeHz !== undefined) out.relativeRangeHz = params.relativeRangeHz.split('-').map(Number);
   if (params.bands !== undefined) {
-    out.bands = params.bands.split(',').map((b) => {
-      const m = /^([^:]+):([\d.]+)-([\d.]+)$/.exec(b);
-      if (!m) throw new Error(`address bar: band ${b} is not name:lo-hi`);
-      return { name: m[1], loHz: Number(m[2]), hiHz: Number(m[3]) };
-    });
+    out.bands = params.bands.split(',').map((b) => parseBandText(b));
   }
   return out as ContrastJson;
 }
@@ -46,7 +41,7 @@ export function paramsFromContrast(c: Contrast): Record<string, string> {
   out.channels = c.channels === 'all' ? 'all' : c.channels.join(',');
   out.channelAverage = String(c.channelAverage);
   out.relativeRangeHz = c.relativeRangeHz.join('-');
-  if (c.bands) out.bands = c.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(',');
+  if (c.bands) out.bands = c.bands.map(bandText).join(',');
   return out;
 }
 
