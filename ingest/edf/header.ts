@@ -385,9 +385,9 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
     throw new EdfFormatError(file, 'duration of a data record', durRaw.trim(), `record duration ${durRaw.trim()} s is not positive although the file has ordinary signals`);
   }
   if (variant.endsWith('+D') && nAnnotation === 0) {
-    throw new EdfFormatError(file, 'reserved', variant, `a ${variant} file needs an "${annotationLabel}" signal for its record onsets, none found`);
+    throw new EdfFormatError(file, 'reserved', variant, `a ${variant} file needs a signal labelled "${annotationLabel}" for its record onsets, none found`);
   }
-  if (variant.endsWith('+C') && nAnnotation === 0) warnings.add('reserved', `${variant} file without an "${annotationLabel}" signal; record onsets taken as k·duration`);
+  if (variant.endsWith('+C') && nAnnotation === 0) warnings.add('reserved', `${variant} file without a signal labelled "${annotationLabel}"; record onsets taken as k·duration`);
 
   // EDF 1992 §2.1/§2.2: the data records follow the header back to back; −1 records = unknown.
   const perRecord = recordBytes(signals, bytesPerSample);

@@ -10,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { EdfFormatError, EdfIoError } from '../../ingest/edf/errors.ts';
 import { parseEdfHeader } from '../../ingest/edf/header.ts';
 import { openEdf } from '../../ingest/edf/reader.ts';
-import { concat, goodEdfPlusSpec, goodRecord, handEdf, makeTmpDir, type HandEdf } from './helpers.ts';
+import { BDF_VERSION, concat, goodBdfPlusSpec, goodBdfRecord, goodEdfPlusSpec, goodRecord, handEdf, makeTmpDir, type HandEdf } from './helpers.ts';
 
 let tmp: ReturnType<typeof makeTmpDir>;
 beforeAll(() => {
@@ -249,7 +249,7 @@ describe('bad-input catalogue (each a real malformed file)', () => {
     h.signals = h.signals.slice(0, 2);
     h.data = new Uint8Array(0);
     h.nRecords = '0';
-    await expectFormatError(save(handEdf(h)), 'reserved', 'EDF+D', /needs an "EDF Annotations" signal/);
+    await expectFormatError(save(handEdf(h)), 'reserved', 'EDF+D', /needs a signal labelled "EDF Annotations"/);
   });
 
   it('EDF+D records that overlap', async () => {
@@ -276,6 +276,87 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   });
 });
 
+describe('BDF/BDF+ catalogue (24-bit; hand-built from goodBdfPlusSpec, 63-byte records)', () => {
+  function bdfVariant(edit: (h: HandEdf) => void): string {
+    const h = goodBdfPlusSpec();
+    edit(h);
+    return save(handEdf(h));
+  }
+
+  it('the good BDF+C base opens cleanly', async () => {
+    const f = await openEdf(bdfVariant(() => undefined));
+    expect([f.header.variant, f.header.bytesPerSample, f.header.nRecords]).toEqual(['BDF+C', 3, 3]);
+    expect(f.warnings).toEqual([]);
+    await f.close();
+  });
+
+  it('digital limit outside 24 bits', async () => {
+    await expectFormatError(bdfVariant((h) => (h.signals[0].dmax = '8388608')), 'digital maximum', '8388608', /outside the 24-bit range -8388608\.\.8388607 of BDF\+C/);
+  });
+
+  it('a 24-bit digital limit in a 16-bit EDF file', async () => {
+    await expectFormatError(variantOf((h) => (h.signals[0].dmin = '-8388608')), 'digital minimum', '-8388608', /16-bit range -32768\.\.32767 of EDF\+C/);
+  });
+
+  it.each([
+    ['an EDF+ mark with the BDF version', (h: HandEdf) => (h.reserved = 'EDF+C'), 'EDF+C', /a mark of EDF files, but the version field is that of BDF/],
+    ['BDF+ neither C nor D', (h: HandEdf) => (h.reserved = 'BDF+X'), 'BDF+X', /neither BDF\+C nor BDF\+D/],
+  ])('reserved field: %s', async (_, edit, value, extra) => {
+    await expectFormatError(bdfVariant(edit), 'reserved', value, extra);
+  });
+
+  it.each([
+    ['a BDF+ mark with the EDF version "0"', 'BDF+C', /a mark of BDF files, but the version field is that of EDF/],
+    ['"24BIT" with the EDF version "0"', '24BIT', /a mark of BDF files/],
+  ])('reserved field: %s', async (_, reserved, extra) => {
+    await expectFormatError(variantOf((h) => (h.reserved = reserved)), 'reserved', reserved, extra);
+  });
+
+  it('BDF+D without a "BDF Annotations" signal', async () => {
+    await expectFormatError(
+      bdfVariant((h) => {
+        h.reserved = 'BDF+D';
+        h.signals = h.signals.slice(0, 2);
+        h.nRecords = '0';
+        h.data = new Uint8Array(0);
+      }),
+      'reserved',
+      'BDF+D',
+      /a BDF\+D file needs a signal labelled "BDF Annotations"/,
+    );
+  });
+
+  it('an "EDF Annotations" signal in a BDF+ file is an ordinary signal (EDFlib writes "BDF Annotations"): BDF+C without annotations', async () => {
+    const f = await openEdf(bdfVariant((h) => (h.signals[2].label = 'EDF Annotations')));
+    expect(f.header.signals[2].isAnnotation).toBe(false);
+    expect(f.warnings).toEqual([{ field: 'reserved', message: 'BDF+C file without a signal labelled "BDF Annotations"; record onsets taken as k·duration' }]);
+    await f.close();
+  });
+
+  it('record count larger than the file holds: counted in 3-byte samples', async () => {
+    const e = await expectFormatError(bdfVariant((h) => (h.nRecords = '4')), 'number of data records', '4');
+    expect(e.message).toContain('189 data bytes hold 3 records of 63 bytes');
+  });
+
+  it('an incomplete last record and a record count of -1', async () => {
+    const f = await openEdf(bdfVariant((h) => {
+      h.nRecords = '-1';
+      h.data = concat([h.data, goodBdfRecord(3, '+1.5\x14\x14\x00').subarray(0, 40)]);
+    }));
+    expect(f.header.nRecords).toBe(3);
+    expect(f.warnings).toEqual([
+      { field: 'number of data records', message: 'is -1 (unknown); 3 records derived from the file size' },
+      { field: 'file', message: 'the last data record is incomplete (40 of 63 bytes) and is ignored' },
+    ]);
+    await f.close();
+  });
+
+  it('a version of 0xFF followed by other text is neither EDF nor BDF', async () => {
+    await expectFormatError(bdfVariant((h) => (h.version = '\xffBIOSEMX')), 'version', 'content withheld', /not an EDF or BDF file/);
+    expect(BDF_VERSION).toBe('\xffBIOSEMI');
+  });
+});
+
 describe('property: mutated headers give a valid header or an EdfFormatError (fast-check)', () => {
   const base = handEdf(goodEdfPlusSpec());
   // Characters EDF header fields are made of, plus a few hostile ones.
@@ -285,8 +366,8 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
     fc.record({ kind: fc.constant('cut' as const), at: fc.integer({ min: 0, max: base.length }), byte: fc.constant(0) }),
   );
 
-  function mutate(muts: { kind: 'set' | 'cut'; at: number; byte: number }[]): Uint8Array {
-    let b: Uint8Array = base.slice();
+  function mutate(muts: { kind: 'set' | 'cut'; at: number; byte: number }[], from: Uint8Array = base): Uint8Array {
+    let b: Uint8Array = from.slice();
     for (const m of muts) {
       if (m.kind === 'set' && m.at < b.length) b[m.at] = m.byte;
       if (m.kind === 'cut') b = b.slice(0, m.at);
@@ -295,7 +376,8 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
   }
 
   function checkValid(h: ReturnType<typeof parseEdfHeader>, bytes: Uint8Array): void {
-    expect(['EDF', 'EDF+C', 'EDF+D']).toContain(h.variant);
+    expect(['EDF', 'EDF+C', 'EDF+D', 'BDF', 'BDF+C', 'BDF+D']).toContain(h.variant);
+    expect(h.bytesPerSample).toBe(h.variant.startsWith('BDF') ? 3 : 2);
     expect(h.startDate).toMatch(/^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d$/);
     expect(h.headerBytes).toBe(256 + 256 * h.signals.length);
     expect(h.signals.length).toBeGreaterThan(0);
@@ -306,7 +388,7 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
       expect(s.physicalMin).not.toBe(s.physicalMax);
       expect(s.samplesPerRecord).toBeGreaterThan(0);
       expect(Number.isFinite(s.gain) && s.gain !== 0).toBe(true);
-      recordBytes += 2 * s.samplesPerRecord;
+      recordBytes += h.bytesPerSample * s.samplesPerRecord;
     }
     expect(h.headerBytes + h.nRecords * recordBytes).toBeLessThanOrEqual(bytes.length);
   }
@@ -334,11 +416,14 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
     expect(rejected).toBeGreaterThan(20);
   });
 
-  // 150 runs of the whole reader on files mutated anywhere (header, samples, annotation bytes).
-  it('openEdf + readEpochs, 150 mutated files', async () => {
+  // 150 runs of the whole reader on EDF+ files, 100 on BDF+ files, mutated anywhere (header, samples, annotation bytes).
+  it.each([
+    ['EDF+C', base, 150, 7],
+    ['BDF+C', handEdf(goodBdfPlusSpec()), 100, 24],
+  ] as const)('openEdf + readEpochs, mutated %s files', async (_, from, numRuns, seed) => {
     await fc.assert(
       fc.asyncProperty(fc.array(mutation, { minLength: 1, maxLength: 4 }), async (muts) => {
-        const path = save(mutate(muts));
+        const path = save(mutate(muts, from));
         try {
           const f = await openEdf(path);
           try {
@@ -351,7 +436,7 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
           if (!(e instanceof EdfFormatError)) throw e;
         }
       }),
-      { numRuns: 150, seed: 7 },
+      { numRuns, seed },
     );
   });
 });
