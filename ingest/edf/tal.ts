@@ -1,4 +1,5 @@
-// Time-stamped annotation lists (TALs) of the "EDF Annotations" signal, EDF+ 2003 §2.2.2:
+// Time-stamped annotation lists (TALs) of the "EDF Annotations" signal (BDF+: "BDF Annotations",
+// the same bytes in 3-byte samples), EDF+ 2003 §2.2.2:
 //   +Onset\x15Duration\x14Text1\x14Text2\x14\x00   (duration and its \x15 optional)
 // TALs never cross a data record; the record's tail after the last TAL is \x00 (§2.2.4).
 import { EdfFormatError, WITHHELD, type EdfErrorPlace } from './errors.ts';
