@@ -4,6 +4,7 @@
  *                                          a `group` column if present; other columns covariates
  *   sub-<label>/[ses-<label>/]eeg/
  *     sub-<label>[_ses-<label>]_task-<label>[_acq-<label>][_run-<index>]_eeg.edf   one recording each
+ *                                          (or _eeg.bdf: BDF/BDF+, read by the same reader)
  *     …_channels.tsv   name, type, units (required, in that order), status (optional)
  *     …_eeg.json       SamplingFrequency, EEGReference, PowerLineFrequency (50, 60 or "n/a")
  *     …_events.tsv     the scoring, in our convention below
@@ -20,7 +21,8 @@
  * Problems are collected and reported together (CohortError) as for the table: missing or
  * malformed participants.tsv, duplicate participant_id, empty group cells, subjects with
  * folders but no participants.tsv row and vice versa, file names that break the BIDS pattern,
- * recordings that are not EDF, missing _eeg.json, malformed sidecars.
+ * recordings that are neither EDF nor BDF, an .edf and a .bdf with the same entities, missing
+ * _eeg.json, malformed sidecars.
  */
 import { readdir, readFile } from 'node:fs/promises';
 import path from 'node:path';
@@ -37,6 +39,8 @@ const BIDS_INDEX = /^\d+$/;
 /** Entities of an EEG file name, in the order BIDS requires. */
 const ENTITY_ORDER = ['sub', 'ses', 'task', 'acq', 'run'] as const;
 const RECORDING_SUFFIX = /_eeg\.([a-z0-9]+)$/i;
+/** Recording formats read (BIDS EEG also allows others that bandwise does not read). */
+const READ_EXTENSIONS = ['edf', 'bdf'];
 
 const eegJsonSchema = z.looseObject({
   SamplingFrequency: z.number({ error: 'SamplingFrequency must be a number (Hz)' }).positive({ error: 'SamplingFrequency must be positive' }).optional(),
@@ -199,9 +203,11 @@ export async function discoverBids(folder: string): Promise<Cohort> {
     subjects.set(m[1], { row, group, covariates });
   });
 
-  // sub-*/[ses-*/]eeg/*_eeg.edf
+  // sub-*/[ses-*/]eeg/*_eeg.edf or *_eeg.bdf
   const recordings: CohortRecording[] = [];
   const withData = new Set<string>();
+  /** folder/stem → the recording file already taken for it (an .edf and a .bdf must not share a name) */
+  const stems = new Map<string, string>();
   for (const entry of await listDir(root)) {
     if (!entry.dir || !entry.name.startsWith('sub-')) continue;
     const subject = entry.name.slice(4);
@@ -227,12 +233,18 @@ export async function discoverBids(folder: string): Promise<Cohort> {
         const m = RECORDING_SUFFIX.exec(f.name);
         if (f.dir || !m || m[1].toLowerCase() === 'json') continue;
         const rel = path.relative(root, path.join(dir, f.name));
-        if (m[1].toLowerCase() !== 'edf') {
-          problems.push({ row: null, column: null, message: `${rel}: only EDF recordings are read (found .${m[1]})` });
+        if (!READ_EXTENSIONS.includes(m[1].toLowerCase())) {
+          problems.push({ row: null, column: null, message: `${rel}: only EDF and BDF recordings are read (found .${m[1]})` });
           continue;
         }
         const parsed = parseRecordingName(f.name, rel, problems);
         if (!parsed) continue;
+        const twin = stems.get(path.join(dir, parsed.stem));
+        if (twin !== undefined) {
+          problems.push({ row: null, column: null, message: `${rel}: ${twin} has the same entities; keep one recording per name` });
+          continue;
+        }
+        stems.set(path.join(dir, parsed.stem), f.name);
         if (parsed.entities.get('sub') !== subject) {
           problems.push({ row: null, column: null, message: `${rel}: sub-${parsed.entities.get('sub')} in the file name, but the folder is sub-${subject}` });
           continue;
@@ -266,7 +278,7 @@ export async function discoverBids(folder: string): Promise<Cohort> {
     }
   }
   for (const [subject, p] of subjects) {
-    if (!withData.has(subject)) problems.push({ row: p.row, column: 'participant_id', message: `participants.tsv: 'sub-${subject}' has no EEG recording (sub-${subject}/[ses-*/]eeg/*_eeg.edf)` });
+    if (!withData.has(subject)) problems.push({ row: p.row, column: 'participant_id', message: `participants.tsv: 'sub-${subject}' has no EEG recording (sub-${subject}/[ses-*/]eeg/*_eeg.edf or .bdf)` });
   }
   if (problems.length) throw new CohortError(folder, problems);
 

@@ -1,5 +1,7 @@
-// Typed errors of the EDF/EDF+ reader and writer. Every message names the file, the header
-// field (or data record) and the offending value, so a cohort run can report it per recording.
+// Typed errors of the EDF/EDF+/BDF reader and writer. Every message names the file, the header
+// field (or data record, annotation list) and the offending value, so a cohort run can report it
+// per recording — except where the value could be identification or annotation free text
+// (names, birth dates): such content is withheld and the place alone is named.
 
 /** Where in the file a format problem sits: a header field, optionally of one signal or record. */
 export interface EdfErrorPlace {
@@ -16,6 +18,22 @@ export function showValue(value: string): string {
     return code <= 0xff ? `\\x${code.toString(16).padStart(2, '0')}` : `\\u${code.toString(16).padStart(4, '0')}`;
   });
   return escaped.length > 100 ? `${escaped.slice(0, 100)}…` : escaped;
+}
+
+/** Stands in for file content a message must not quote. */
+export const WITHHELD = 'content withheld';
+
+// Only digits, signs, dots, commas, colons, spaces and e/E: no name or word can be spelled with them.
+const NUMBER_LIKE = /^[0-9+\-.,: eE]{0,24}$/;
+
+/** A header value as it may appear in a message: quoted when number-like, else withheld. */
+export function quoteValue(value: string): string {
+  return NUMBER_LIKE.test(value) ? `"${value}"` : `the value (letters or other characters; ${WITHHELD})`;
+}
+
+/** The value an error carries: itself when number-like, else WITHHELD. */
+export function safeValue(value: string): string {
+  return NUMBER_LIKE.test(value) ? value : WITHHELD;
 }
 
 function describePlace(field: string, place: EdfErrorPlace): string {

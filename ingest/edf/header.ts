@@ -1,8 +1,11 @@
-// EDF/EDF+ header parser. Field widths and rules follow the EDF specification (Kemp et al.
-// 1992, "A simple format for exchange of digitized polygraphic recordings") and EDF+ (Kemp &
-// Olivan 2003, "European data format 'plus' (EDF+)"). The local patient and recording
-// identification fields are validated and dropped: they never leave this module.
-import { EdfFormatError, showValue, type EdfErrorPlace } from './errors.ts';
+// EDF/EDF+ and BDF/BDF+ header parser. Field widths and rules follow the EDF specification
+// (Kemp et al. 1992, "A simple format for exchange of digitized polygraphic recordings") and EDF+
+// (Kemp & Olivan 2003, "European data format 'plus' (EDF+)"); BDF is the 24-bit variant (BioSemi;
+// no standard body, facts in shared/STANDARDS.md): version 0xFF "BIOSEMI", reserved "24BIT",
+// 3-byte samples; BDF+ as EDFlib writes it ("BDF+C"/"BDF+D", a "BDF Annotations" signal). The
+// local patient and recording identification fields are validated and dropped: they never leave
+// this module, and no message quotes them.
+import { EdfFormatError, quoteValue, safeValue, showValue, WITHHELD, type EdfErrorPlace } from './errors.ts';
 
 /** Fixed part of the header: [name, width in bytes] in file order (EDF 1992 §2.1, 256 bytes). */
 export const FIXED_FIELDS = [
@@ -36,6 +39,29 @@ export const FIXED_HEADER_BYTES = 256;
 export const BYTES_PER_SIGNAL_HEADER = 256;
 /** Label of the annotation signal (EDF+ 2003 §2.2.1). */
 export const ANNOTATION_LABEL = 'EDF Annotations';
+/** Label of the annotation signal of BDF+ (as EDFlib writes it). */
+export const BDF_ANNOTATION_LABEL = 'BDF Annotations';
+/** BDF version field: byte 0xFF, then "BIOSEMI" (read as Latin-1). */
+const BDF_VERSION = '\xffBIOSEMI';
+
+/** 16-bit EDF/EDF+ or 24-bit BDF/BDF+; +C contiguous, +D discontinuous (EDF+ 2003 §2.1.3.1). */
+export type EdfVariant = 'EDF' | 'EDF+C' | 'EDF+D' | 'BDF' | 'BDF+C' | 'BDF+D';
+
+/**
+ * Something the reader accepted with a compromise (a derived record count, ignored bytes, a
+ * non-standard spelling). `field` names the header field ("file" for the file as a whole,
+ * "annotations" for the annotation signal); the message never quotes identification or
+ * annotation text.
+ */
+export interface EdfWarning {
+  field: string;
+  message: string;
+}
+
+/** True for EDF+ and BDF+ (annotation signal, time-keeping TALs). */
+export function isPlusVariant(variant: EdfVariant): boolean {
+  return variant.length > 3;
+}
 
 export interface EdfSignal {
   index: number;
@@ -58,7 +84,9 @@ export interface EdfSignal {
 }
 
 export interface EdfHeader {
-  variant: 'EDF' | 'EDF+C' | 'EDF+D';
+  variant: EdfVariant;
+  /** Bytes per sample: 2 (EDF, EDF+) or 3 (BDF, BDF+), little-endian two's complement. */
+  bytesPerSample: 2 | 3;
   /** Local start of the recording, 'YYYY-MM-DDTHH:MM:SS' (no time zone: EDF stores none). */
   startDate: string;
   headerBytes: number;
@@ -66,21 +94,21 @@ export interface EdfHeader {
   nRecords: number;
   recordDurationS: number;
   signals: EdfSignal[];
-  warnings: string[];
+  warnings: EdfWarning[];
 }
 
-/** Byte size of one data record: 2 bytes per sample of every signal (EDF 1992 §2.2). */
-export function recordBytes(signals: readonly EdfSignal[]): number {
+/** Byte size of one data record: bytesPerSample bytes per sample of every signal (EDF 1992 §2.2; BDF 3). */
+export function recordBytes(signals: readonly EdfSignal[], bytesPerSample: number): number {
   let n = 0;
-  for (const s of signals) n += 2 * s.samplesPerRecord;
+  for (const s of signals) n += bytesPerSample * s.samplesPerRecord;
   return n;
 }
 
 const INTEGER = /^[+-]?\d+$/;
-// EDF+ 2003 §2.1.3.5: numbers in ASCII, a dot as decimal separator; exponents are tolerated.
+// EDF+ 2003 §2.1.3.5: numbers in ASCII, a dot as decimal separator; exponents are accepted with a warning.
 const DECIMAL = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
-/** Header text as Latin-1 (one char per byte), so every byte stays visible in messages. */
+/** Header text as Latin-1 (one char per byte), so every byte is kept. */
 function latin1(bytes: Uint8Array, start: number, width: number): string {
   let s = '';
   for (let i = start; i < start + width; i++) s += String.fromCharCode(bytes[i]);
@@ -103,15 +131,15 @@ class HeaderCursor {
   /** Integer field (right-trimmed ASCII); field and value named on failure. */
   integer(field: string, raw: string, place: EdfErrorPlace = {}): number {
     const v = raw.trim();
-    if (!INTEGER.test(v)) throw new EdfFormatError(this.file, field, v, `"${showValue(v)}" is not an integer`, place);
+    if (!INTEGER.test(v)) throw new EdfFormatError(this.file, field, safeValue(v), `${quoteValue(v)} is not an integer`, place);
     return Number(v);
   }
 
   decimal(field: string, raw: string, place: EdfErrorPlace = {}): number {
     const v = raw.trim();
-    if (!DECIMAL.test(v)) throw new EdfFormatError(this.file, field, v, `"${showValue(v)}" is not a number`, place);
+    if (!DECIMAL.test(v)) throw new EdfFormatError(this.file, field, safeValue(v), `${quoteValue(v)} is not a number`, place);
     const x = Number(v);
-    if (!Number.isFinite(x)) throw new EdfFormatError(this.file, field, v, `"${showValue(v)}" is not a finite number`, place);
+    if (!Number.isFinite(x)) throw new EdfFormatError(this.file, field, v, `"${v}" is not a finite number`, place);
     return x;
   }
 }
@@ -121,23 +149,80 @@ function isPrintableAscii(s: string): boolean {
   return /^[\x20-\x7e]*$/.test(s);
 }
 
+/** "signal 3" or "signals 1, 2, 5" (1-based), at most ten named. */
+function signalList(indices: number[]): string {
+  if (indices.length === 1) return `signal ${indices[0] + 1}`;
+  const named = indices.slice(0, 10).map((i) => i + 1).join(', ');
+  return `signals ${named}${indices.length > 10 ? ` and ${indices.length - 10} more` : ''}`;
+}
+
+/** The warnings in the order first met; those about signals gathered into one per field and kind, naming the signals. */
+class WarningList {
+  readonly list: EdfWarning[] = [];
+  private readonly bySignal = new Map<string, { warning: EdfWarning; message: string; signals: number[] }>();
+
+  add(field: string, message: string): void {
+    this.list.push({ field, message });
+  }
+
+  signal(field: string, index: number, message: string): void {
+    const key = `${field}\u0000${message}`;
+    let g = this.bySignal.get(key);
+    if (!g) {
+      g = { warning: { field, message }, message, signals: [] };
+      this.bySignal.set(key, g);
+      this.list.push(g.warning);
+    }
+    g.signals.push(index);
+  }
+
+  done(): EdfWarning[] {
+    for (const g of this.bySignal.values()) g.warning.message = `${signalList(g.signals)}: ${g.message}`;
+    return this.list;
+  }
+}
+
 /** Validates one identification field without ever putting its content into a message. */
-function checkIdentification(field: string, raw: string, isPlus: boolean, warnings: string[]): void {
-  if (!isPrintableAscii(raw)) warnings.push(`header field "${field}" holds bytes outside printable ASCII (content withheld)`);
+function checkIdentification(field: string, raw: string, isPlus: boolean, warnings: WarningList): void {
+  if (!isPrintableAscii(raw)) warnings.add(field, 'holds bytes outside printable ASCII (content withheld)');
   // EDF+ 2003 §2.1.3.3/§2.1.3.4: subfields separated by spaces (patient: code sex birthdate name; recording: "Startdate" …).
   if (isPlus) {
     const parts = raw.trim().split(/ +/);
     const need = field === 'local patient identification' ? 4 : 5;
     const ok = field === 'local patient identification' ? parts.length >= need : parts[0] === 'Startdate' && parts.length >= need;
-    if (!ok) warnings.push(`header field "${field}" does not follow the EDF+ subfield layout (content withheld)`);
+    if (!ok) warnings.add(field, 'does not follow the EDF+ subfield layout (content withheld)');
   }
+}
+
+// "µ" spelled in the physical dimension: Latin-1 byte 0xB5, or UTF-8 of MICRO SIGN (C2 B5) or
+// GREEK SMALL LETTER MU (CE BC) read as Latin-1. EDF asks for ASCII ("uV"); STANDARDS.md: treat 0xB5 as µ.
+const MICRO_SPELLINGS: [string, string][] = [
+  ['\xc2\xb5', 'UTF-8 bytes C2 B5 (micro sign)'],
+  ['\xce\xbc', 'UTF-8 bytes CE BC (Greek mu)'],
+  ['\xb5', 'the Latin-1 byte B5'],
+];
+
+/** The physical dimension with a non-ASCII µ read as "µ" (U+00B5), and a warning saying which spelling. */
+function physicalDimension(raw: string, index: number, warnings: WarningList): string {
+  let dim = raw.trim();
+  for (const [bytes, name] of MICRO_SPELLINGS) {
+    if (!dim.startsWith(bytes)) continue;
+    dim = `µ${dim.slice(bytes.length)}`;
+    if (isPrintableAscii(dim.slice(1))) {
+      warnings.signal('physical dimension', index, `"µ" written as ${name} (EDF asks for ASCII, e.g. "uV"); read as µ`);
+      return dim;
+    }
+    break;
+  }
+  if (!isPrintableAscii(raw)) warnings.signal('physical dimension', index, 'holds bytes outside printable ASCII; read as Latin-1 (content withheld)');
+  return raw.trim();
 }
 
 /** EDF 1992 §2.1 dd.mm.yy and hh.mm.ss; EDF+ 2003 §2.1.3.2 year rule: 85–99 → 19yy, 00–84 → 20yy. */
 function parseStart(file: string, dateRaw: string, timeRaw: string): string {
   const date = dateRaw.trim();
   const dm = /^(\d\d)\.(\d\d)\.(\d\d)$/.exec(date);
-  if (!dm) throw new EdfFormatError(file, 'start date', date, `"${showValue(date)}" is not a date of the form dd.mm.yy`);
+  if (!dm) throw new EdfFormatError(file, 'start date', safeValue(date), `${quoteValue(date)} is not a date of the form dd.mm.yy`);
   const day = Number(dm[1]);
   const month = Number(dm[2]);
   const yy = Number(dm[3]);
@@ -148,7 +233,7 @@ function parseStart(file: string, dateRaw: string, timeRaw: string): string {
   }
   const time = timeRaw.trim();
   const tm = /^(\d\d)\.(\d\d)\.(\d\d)$/.exec(time);
-  if (!tm) throw new EdfFormatError(file, 'start time', time, `"${showValue(time)}" is not a time of the form hh.mm.ss`);
+  if (!tm) throw new EdfFormatError(file, 'start time', safeValue(time), `${quoteValue(time)} is not a time of the form hh.mm.ss`);
   const [h, m, s] = [Number(tm[1]), Number(tm[2]), Number(tm[3])];
   if (h > 23 || m > 59 || s > 59) throw new EdfFormatError(file, 'start time', time, `"${time}" is not a time of day`);
   const p2 = (x: number) => String(x).padStart(2, '0');
@@ -156,31 +241,55 @@ function parseStart(file: string, dateRaw: string, timeRaw: string): string {
 }
 
 /**
+ * Variant from the version field (EDF "0", BDF 0xFF "BIOSEMI") and the reserved field (EDF+ 2003
+ * §2.1.3.1: "EDF+C"/"EDF+D"; BDF: "24BIT", BDF+ "BDF+C"/"BDF+D"). Neither field is quoted
+ * whole: the version field of a file that is not EDF can be any text.
+ */
+function parseVariant(file: string, version: string, reserved: string, warnings: WarningList): EdfVariant {
+  const isBdf = version === BDF_VERSION;
+  if (!isBdf && version.trim() !== '0') {
+    throw new EdfFormatError(file, 'version', WITHHELD, `is neither "0" (EDF) nor byte FF and "BIOSEMI" (BDF): not an EDF or BDF file (${WITHHELD})`);
+  }
+  const family = isBdf ? 'BDF' : 'EDF';
+  const mark = reserved.slice(0, 5);
+  if (mark === `${family}+C` || mark === `${family}+D`) return mark as EdfVariant;
+  if (mark.startsWith(`${family}+`)) {
+    throw new EdfFormatError(file, 'reserved', showValue(mark), `starts with "${showValue(mark)}", which is neither ${family}+C nor ${family}+D`);
+  }
+  const other = isBdf ? 'EDF' : 'BDF';
+  if (mark.startsWith(`${other}+`) || (!isBdf && mark === '24BIT')) {
+    throw new EdfFormatError(file, 'reserved', showValue(mark), `starts with "${showValue(mark)}", a mark of ${other} files, but the version field is that of ${family}`);
+  }
+  // BDF (BioSemi): reserved "24BIT"; other text is accepted as plain BDF.
+  if (isBdf && mark !== '24BIT') warnings.add('reserved', 'a BDF file should have "24BIT" here; read as plain BDF (content withheld)');
+  return family;
+}
+
+/**
  * Parses and validates the header. `bytes` must start at file offset 0 and hold at least the
  * whole header (256 + 256·ns bytes) when the file is that long; `fileSizeBytes` is the size of
  * the whole file, used to check (or derive) the number of data records.
- * Throws EdfFormatError for every violation; never returns identification text.
+ * Throws EdfFormatError for every violation; never returns or quotes identification text.
  */
 export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: number): EdfHeader {
-  const warnings: string[] = [];
+  const warnings = new WarningList();
   const available = Math.min(bytes.length, fileSizeBytes);
   if (available < FIXED_HEADER_BYTES) {
     throw new EdfFormatError(file, 'file', String(available), `file is truncated: ${available} bytes, shorter than the 256-byte fixed EDF header`);
   }
   const c = new HeaderCursor(bytes, file);
 
-  // EDF 1992 §2.1: version "0" (8 bytes).
+  // EDF 1992 §2.1: version "0" (8 bytes); BDF: 0xFF "BIOSEMI".
   const version = c.take(8);
-  if (version.trim() !== '0') throw new EdfFormatError(file, 'version', version.trim(), `version "${showValue(version.trim())}" is not "0" (not an EDF file)`);
-
   const reservedAt = 8 + 80 + 80 + 8 + 8 + 8;
   const reserved = latin1(bytes, reservedAt, 44);
-  // EDF+ 2003 §2.1.3.1: reserved field starts with "EDF+C" or "EDF+D"; anything else is plain EDF.
-  const variant: EdfHeader['variant'] = reserved.startsWith('EDF+C') ? 'EDF+C' : reserved.startsWith('EDF+D') ? 'EDF+D' : 'EDF';
-  const isPlus = variant !== 'EDF';
-  if (!isPlus && reserved.startsWith('EDF+')) {
-    throw new EdfFormatError(file, 'reserved', reserved.trim(), `reserved field "${showValue(reserved.trim())}" starts with EDF+ but is neither EDF+C nor EDF+D`);
-  }
+  const variant = parseVariant(file, version, reserved, warnings);
+  const isPlus = isPlusVariant(variant);
+  const bytesPerSample = variant.startsWith('BDF') ? 3 : 2;
+  const annotationLabel = bytesPerSample === 3 ? BDF_ANNOTATION_LABEL : ANNOTATION_LABEL;
+  // EDF 1992 §2.2: 16-bit two's complement samples; BDF: 24-bit.
+  const [digitalLow, digitalHigh] = bytesPerSample === 3 ? [-8388608, 8388607] : [-32768, 32767];
+  if (!isPlus && !isPrintableAscii(reserved)) warnings.add('reserved', 'holds bytes outside printable ASCII (content withheld)');
 
   // EDF 1992 §2.1: local patient / recording identification, 80 bytes each — validated, then dropped.
   checkIdentification('local patient identification', c.take(80), isPlus, warnings);
@@ -198,6 +307,7 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
   const durRaw = c.take(8);
   const recordDurationS = c.decimal('duration of a data record', durRaw);
   if (recordDurationS < 0) throw new EdfFormatError(file, 'duration of a data record', durRaw.trim(), `record duration ${durRaw.trim()} s is negative`);
+  if (/[eE]/.test(durRaw)) warnings.add('duration of a data record', `written with an exponent ("${durRaw.trim()}"; EDF+ asks for plain decimals); read as ${recordDurationS} s`);
   // EDF 1992 §2.1: number of signals ns (4).
   const ns = c.integer('number of signals', c.take(4));
   if (ns <= 0) throw new EdfFormatError(file, 'number of signals', String(ns), `number of signals ${ns} is not positive: a file needs at least one signal`);
@@ -213,7 +323,7 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
 
   // EDF 1992 §2.1: each per-signal field is stored ns times in a row.
   const raw: string[][] = SIGNAL_FIELDS.map(([, width]) => Array.from({ length: ns }, () => c.take(width)));
-  const [labels, transducers, dims, pmins, pmaxs, dmins, dmaxs, prefilters, sprs] = raw;
+  const [labels, transducers, dims, pmins, pmaxs, dmins, dmaxs, prefilters, sprs, signalReserved] = raw;
   const signals: EdfSignal[] = [];
   for (let i = 0; i < ns; i++) {
     const label = labels[i].trim();
@@ -223,9 +333,10 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
     const digitalMin = c.integer('digital minimum', dmins[i], place);
     const digitalMax = c.integer('digital maximum', dmaxs[i], place);
     const samplesPerRecord = c.integer('number of samples in each data record', sprs[i], place);
-    // EDF 1992 §2.2: samples are 16-bit two's complement, so digital limits lie in −32768..32767.
     for (const [field, v] of [['digital minimum', digitalMin], ['digital maximum', digitalMax]] as const) {
-      if (v < -32768 || v > 32767) throw new EdfFormatError(file, field, String(v), `${field} ${v} is outside the 16-bit range −32768..32767`, place);
+      if (v < digitalLow || v > digitalHigh) {
+        throw new EdfFormatError(file, field, String(v), `${field} ${v} is outside the ${8 * bytesPerSample}-bit range ${digitalLow}..${digitalHigh} of ${variant}`, place);
+      }
     }
     // EDF+ 2003 §2.1.3.5: digital maximum must exceed digital minimum.
     if (digitalMin >= digitalMax) {
@@ -238,15 +349,23 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
     if (samplesPerRecord <= 0) {
       throw new EdfFormatError(file, 'number of samples in each data record', String(samplesPerRecord), `number of samples in each data record ${samplesPerRecord} is not positive`, place);
     }
-    // EDF+ 2003 §2.2.1: the annotation signal is labelled exactly "EDF Annotations".
-    const isAnnotation = label === ANNOTATION_LABEL;
-    if (isAnnotation && !isPlus) warnings.push(`signal ${i + 1} is labelled "${ANNOTATION_LABEL}" in a plain EDF file; it is read as an annotation signal`);
+    for (const [field, rawValue] of [['physical minimum', pmins[i]], ['physical maximum', pmaxs[i]]] as const) {
+      if (/[eE]/.test(rawValue)) warnings.signal(field, i, 'written with an exponent (EDF+ asks for plain decimals); read as a number');
+    }
+    // EDF 1992 §2.1: header text is printable ASCII; other bytes are kept as Latin-1, never quoted.
+    if (!isPrintableAscii(labels[i])) warnings.signal('label', i, 'holds bytes outside printable ASCII; read as Latin-1');
+    for (const [field, rawValue] of [['transducer type', transducers[i]], ['prefiltering', prefilters[i]], ['reserved', signalReserved[i]]] as const) {
+      if (!isPrintableAscii(rawValue)) warnings.signal(field, i, 'holds bytes outside printable ASCII (content withheld)');
+    }
+    // EDF+ 2003 §2.2.1: the annotation signal is labelled exactly "EDF Annotations" (BDF+: "BDF Annotations").
+    const isAnnotation = label === annotationLabel;
+    if (isAnnotation && !isPlus) warnings.signal('label', i, `labelled "${annotationLabel}" in a plain ${variant} file; read as an annotation signal`);
     const gain = (physicalMax - physicalMin) / (digitalMax - digitalMin);
     signals.push({
       index: i,
       label,
       transducer: transducers[i].trim(),
-      physicalDimension: dims[i].trim(),
+      physicalDimension: physicalDimension(dims[i], i, warnings),
       physicalMin,
       physicalMax,
       digitalMin,
@@ -265,33 +384,33 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
   if (recordDurationS === 0 && nAnnotation < ns) {
     throw new EdfFormatError(file, 'duration of a data record', durRaw.trim(), `record duration ${durRaw.trim()} s is not positive although the file has ordinary signals`);
   }
-  if (variant === 'EDF+D' && nAnnotation === 0) {
-    throw new EdfFormatError(file, 'reserved', variant, `an EDF+D file needs an "${ANNOTATION_LABEL}" signal for its record onsets, none found`);
+  if (variant.endsWith('+D') && nAnnotation === 0) {
+    throw new EdfFormatError(file, 'reserved', variant, `a ${variant} file needs a signal labelled "${annotationLabel}" for its record onsets, none found`);
   }
-  if (variant === 'EDF+C' && nAnnotation === 0) warnings.push(`EDF+C file without an "${ANNOTATION_LABEL}" signal; record onsets taken as k·duration`);
+  if (variant.endsWith('+C') && nAnnotation === 0) warnings.add('reserved', `${variant} file without a signal labelled "${annotationLabel}"; record onsets taken as k·duration`);
 
   // EDF 1992 §2.1/§2.2: the data records follow the header back to back; −1 records = unknown.
-  const perRecord = recordBytes(signals);
+  const perRecord = recordBytes(signals, bytesPerSample);
   const dataBytes = fileSizeBytes - headerBytes;
   const whole = Math.floor(dataBytes / perRecord);
   const rest = dataBytes - whole * perRecord;
-  if (nRecords === -1) {
-    warnings.push(`number of data records is -1 (unknown); ${whole} records derived from the file size`);
-    nRecords = whole;
-  } else if (nRecords === whole + 1 && rest > 0) {
-    warnings.push(`the last data record is incomplete (${rest} of ${perRecord} bytes) and is ignored`);
-    nRecords = whole;
-  } else if (nRecords !== whole) {
+  const declared = nRecords;
+  if (declared !== -1 && declared !== whole && !(declared === whole + 1 && rest > 0)) {
     throw new EdfFormatError(
       file,
       'number of data records',
-      String(nRecords),
-      `number of data records ${nRecords} disagrees with the file size: ${dataBytes} data bytes hold ${whole} records of ${perRecord} bytes`,
+      String(declared),
+      `number of data records ${declared} disagrees with the file size: ${dataBytes} data bytes hold ${whole} records of ${perRecord} bytes`,
     );
   }
-  if (rest > 0 && warnings.every((w) => !w.startsWith('the last data record'))) {
-    warnings.push(`${rest} bytes after the last complete data record are ignored`);
+  nRecords = whole;
+  if (declared === -1) warnings.add('number of data records', `is -1 (unknown); ${whole} records derived from the file size`);
+  if (rest > 0 && declared === whole) {
+    warnings.add('file', `${rest} bytes after the last data record (less than one ${perRecord}-byte record) are ignored`);
+  } else if (rest > 0) {
+    // a count one beyond the whole records, or an unknown count: the recording stopped inside its last record
+    warnings.add('file', `the last data record is incomplete (${rest} of ${perRecord} bytes) and is ignored`);
   }
 
-  return { variant, startDate, headerBytes, nRecords, recordDurationS, signals, warnings };
+  return { variant, bytesPerSample, startDate, headerBytes, nRecords, recordDurationS, signals, warnings: warnings.done() };
 }

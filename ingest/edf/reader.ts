@@ -1,27 +1,26 @@
-// Streaming EDF/EDF+ reader (Kemp et al. 1992; Kemp & Olivan 2003). Opens a file, parses and
-// validates its header, makes one pass over the annotation signal (positioned reads of just
-// those bytes when records are 16 kB or more; smaller records are read whole in 4-MiB chunks,
-// as the OS reads whole pages anyway), and then hands out whole epochs of physical samples, reading the data records
-// in chunks through one FileHandle so memory stays bounded whatever the file size. On request it
-// also hashes the file (SHA-256), in the annotation pass's own reads when that pass reads every byte.
-import { createHash, type Hash } from 'node:crypto';
+// Streaming EDF/EDF+ and BDF/BDF+ reader (Kemp et al. 1992; Kemp & Olivan 2003; BDF: 24-bit
+// samples, shared/STANDARDS.md). Opens a file, parses and validates its header, makes one pass
+// over the annotation signal (annotation-pass.ts), and then hands out whole epochs of physical
+// samples, reading the data records in chunks through one FileHandle so memory stays bounded
+// whatever the file size. On request it also hashes the file (SHA-256), in the annotation pass's
+// own reads when that pass reads every byte. What it accepts with a compromise (a derived record
+// count, ignored bytes, gaps, snapped segment onsets) it lists in EdfFile.warnings.
+import { createHash } from 'node:crypto';
 import { open, type FileHandle } from 'node:fs/promises';
 import { endianness } from 'node:os';
-import { EdfFormatError, EdfIoError, isEdfError, showValue } from './errors.ts';
-import { parseEdfHeader, recordBytes, FIXED_HEADER_BYTES, BYTES_PER_SIGNAL_HEADER, type EdfHeader, type EdfSignal } from './header.ts';
-import { parseTals, type EdfAnnotation } from './tal.ts';
+import { DEFAULT_CHUNK_BYTES, readAnnotationSignals } from './annotation-pass.ts';
+import { DecodePlan, decodeRecord, decodeRecord24 } from './decode.ts';
+import { EdfFormatError, EdfIoError, isEdfError } from './errors.ts';
+import { parseEdfHeader, recordBytes, FIXED_HEADER_BYTES, BYTES_PER_SIGNAL_HEADER, type EdfHeader, type EdfSignal, type EdfWarning } from './header.ts';
+import { readFully } from './read-fully.ts';
+import type { EdfAnnotation } from './tal.ts';
 import { hashRestOfFile } from '../file-sha256.ts';
 
 export type { EdfAnnotation } from './tal.ts';
-export type { EdfHeader, EdfSignal } from './header.ts';
+export type { EdfHeader, EdfSignal, EdfVariant, EdfWarning } from './header.ts';
 
 /** Time differences below this are not gaps or overlaps: 100 µs, the annotation time resolution of EDFlib (common practice). */
 export const ONSET_TOLERANCE_S = 1e-4;
-const DEFAULT_CHUNK_BYTES = 4 * 1024 * 1024;
-/** Records whose annotation bytes are fetched by one batch of positioned reads. */
-const ANNOTATION_BATCH_RECORDS = 512;
-/** Records at least this large get positioned reads of their annotation bytes only; smaller ones are read whole. */
-const SLICE_READ_MIN_RECORD_BYTES = 16384;
 
 export interface EdfGap {
   /** 0-based index of the record after which the gap starts. */
@@ -73,24 +72,10 @@ export interface EdfFile {
   durationS: number;
   /** SHA-256 (hex) of the file bytes when opened with { sha256: true }, else null. */
   sha256: string | null;
+  /** header.warnings, then the reader's own (gaps, segment onsets off the sample grid). */
+  warnings: EdfWarning[];
   readEpochs(opts: ReadEpochsOptions): AsyncGenerator<EpochBlock>;
   close(): Promise<void>;
-}
-
-/** Reads exactly `length` bytes at `position` into `target` (offset 0), or reports how many came. */
-async function readFully(fh: FileHandle, file: string, target: Uint8Array, length: number, position: number): Promise<number> {
-  let done = 0;
-  while (done < length) {
-    let n: number;
-    try {
-      ({ bytesRead: n } = await fh.read(target, done, length - done, position + done));
-    } catch (cause) {
-      throw new EdfIoError(file, 'read', cause);
-    }
-    if (n === 0) break;
-    done += n;
-  }
-  return done;
 }
 
 /** Wraps anything unexpected so no raw exception leaves the reader. */
@@ -100,132 +85,19 @@ function wrapUnexpected(file: string, e: unknown): Error {
   return new EdfFormatError(file, 'file', String(e), `unexpected failure while reading: ${e instanceof Error ? e.message : String(e)}`, {}, { cause: e });
 }
 
-interface AnnotationPass {
-  annotations: EdfAnnotation[];
-  /** Onset of each record from its time-keeping TAL, or null when the file has none. */
-  timeKeeping: Float64Array | null;
-  /** True when every data-record byte went into the hash, in file order. */
-  hashed: boolean;
-}
-
-/**
- * One pass over the annotation signal(s): positioned reads of just their bytes, batch by batch,
- * or whole records for small records; those whole-record reads also feed `hash` when given.
- */
-async function readAnnotationSignals(fh: FileHandle, file: string, header: EdfHeader, hash: Hash | null): Promise<AnnotationPass> {
-  const annSignals = header.signals.filter((s) => s.isAnnotation);
-  const annotations: EdfAnnotation[] = [];
-  if (annSignals.length === 0 || header.nRecords === 0) return { annotations, timeKeeping: null, hashed: header.nRecords === 0 };
-  const recB = recordBytes(header.signals);
-  const byteOffset: number[] = []; // byte offset of each signal inside a record (EDF 1992 §2.2)
-  let acc = 0;
-  for (const s of header.signals) {
-    byteOffset.push(acc);
-    acc += 2 * s.samplesPerRecord;
-  }
-  const annBytes = annSignals.reduce((a, s) => a + 2 * s.samplesPerRecord, 0);
-  // Small records are read whole, chunk by chunk: the OS reads whole pages anyway, and one read per tiny record would dominate.
-  const wholeRecords = recB < SLICE_READ_MIN_RECORD_BYTES;
-  // never more records than the file holds: a small file gets a buffer no larger than its data
-  const batch = Math.min(header.nRecords, wholeRecords ? Math.max(1, Math.floor(DEFAULT_CHUNK_BYTES / recB)) : ANNOTATION_BATCH_RECORDS);
-  const buf = new Uint8Array(batch * (wholeRecords ? recB : annBytes));
-  const isPlus = header.variant !== 'EDF';
-  const timeKeeping = new Float64Array(header.nRecords);
-  // annotation signal k of record r (r0 ≤ r < r1) sits at buf[(r − r0)·stride + within[k] …], 2·samplesPerRecord bytes
-  const stride = wholeRecords ? recB : annBytes;
-  const within = new Int32Array(annSignals.length);
-  for (let k = 0, o = 0; k < annSignals.length; o += 2 * annSignals[k].samplesPerRecord, k++) within[k] = wholeRecords ? byteOffset[annSignals[k].index] : o;
-  for (let r0 = 0; r0 < header.nRecords; r0 += batch) {
-    const r1 = Math.min(header.nRecords, r0 + batch);
-    if (wholeRecords) {
-      const want = (r1 - r0) * recB;
-      const got = await readFully(fh, file, buf, want, header.headerBytes + r0 * recB);
-      if (got < want) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r0 + 1}`, { record: r0 });
-      hash?.update(buf.subarray(0, want));
-    } else {
-      // Positioned reads of just the annotation bytes of each record, issued together.
-      const reads: Promise<void>[] = [];
-      for (let r = r0; r < r1; r++) {
-        for (let k = 0; k < annSignals.length; k++) {
-          const sig = annSignals[k];
-          const width = 2 * sig.samplesPerRecord;
-          const start = (r - r0) * stride + within[k];
-          reads.push(
-            readFully(fh, file, buf.subarray(start, start + width), width, header.headerBytes + r * recB + byteOffset[sig.index]).then((got) => {
-              if (got < width) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: record ${r + 1} gave ${got} of ${width} annotation bytes`, { record: r });
-            }),
-          );
-        }
-      }
-      await Promise.all(reads);
-    }
-    talsOfBatch(file, header, annSignals, r0, r1, buf, stride, within, timeKeeping, annotations);
-  }
-  return { annotations, timeKeeping: isPlus ? timeKeeping : null, hashed: wholeRecords };
-}
-
-const nonEmpty = (text: string) => text !== '';
-
-/**
- * The TALs of records r0 … r1 − 1 (annotation signal k of record r at buf[(r − r0)·stride +
- * within[k]]): time-keeping onsets into timeKeeping, the other annotations appended to
- * `annotations`. A plain function, not a loop inside the async pass, so its optimised code
- * serves every batch and every file instead of being compiled again for each call of the pass.
- */
-function talsOfBatch(
-  file: string,
-  header: EdfHeader,
-  annSignals: EdfSignal[],
-  r0: number,
-  r1: number,
-  buf: Uint8Array,
-  stride: number,
-  within: Int32Array,
-  timeKeeping: Float64Array,
-  annotations: EdfAnnotation[],
-): void {
-  const isPlus = header.variant !== 'EDF';
-  for (let r = r0; r < r1; r++) {
-    for (let k = 0; k < annSignals.length; k++) {
-      const sig = annSignals[k];
-      const at = (r - r0) * stride + within[k];
-      const tals = parseTals(buf.subarray(at, at + 2 * sig.samplesPerRecord), file, r, { index: sig.index, label: sig.label });
-      let firstTal = 0;
-      if (k === 0) {
-        // EDF+ 2003 §2.2.4: the first TAL of each record in the first annotation signal is the
-        // time-keeping one: empty first text, onset = the record's start.
-        const tk = tals[0];
-        const isTimeKeeping = tk !== undefined && tk.texts.length > 0 && tk.texts[0] === '';
-        if (isTimeKeeping) {
-          timeKeeping[r] = tk.onsetS;
-          tals[0] = { onsetS: tk.onsetS, durationS: tk.durationS, texts: tk.texts.slice(1) };
-          if (tals[0].texts.length === 0) firstTal = 1;
-        } else if (isPlus) {
-          const seen = tk === undefined ? 'no annotation list' : `a list at onset ${tk.onsetS} with text "${showValue(tk.texts[0] ?? '')}"`;
-          throw new EdfFormatError(file, 'annotations', tk === undefined ? '' : String(tk.onsetS), `${header.variant} record starts with ${seen} instead of a time-keeping TAL (onset, then an empty text)`, { record: r, signal: { index: sig.index, label: sig.label } });
-        }
-      }
-      for (let t = firstTal; t < tals.length; t++) {
-        const texts = tals[t].texts.filter(nonEmpty);
-        if (texts.length > 0) annotations.push({ onsetS: tals[t].onsetS, durationS: tals[t].durationS, texts });
-      }
-    }
-  }
-}
-
-/** Record onsets and gaps: k·duration for EDF, checked for EDF+C, from the time-keeping TALs for EDF+D. */
+/** Record onsets and gaps: k·duration for EDF, checked for EDF+C, from the time-keeping TALs for EDF+D (BDF the same). */
 function recordTiming(file: string, header: EdfHeader, timeKeeping: Float64Array | null): { onsets: Float64Array; gaps: EdfGap[] } {
   const n = header.nRecords;
   const d = header.recordDurationS;
   const onsets = new Float64Array(n);
   const gaps: EdfGap[] = [];
-  if (header.variant !== 'EDF+D') {
+  if (!header.variant.endsWith('+D')) {
     const t0 = timeKeeping ? timeKeeping[0] : 0;
     for (let k = 0; k < n; k++) {
       onsets[k] = t0 + k * d;
       // EDF+ 2003 §2.1.3.1: in EDF+C every record starts where the previous one ended.
       if (timeKeeping && Math.abs(timeKeeping[k] - onsets[k]) > ONSET_TOLERANCE_S) {
-        throw new EdfFormatError(file, 'annotations', String(timeKeeping[k]), `time-keeping onset ${timeKeeping[k]} s breaks the contiguity of an EDF+C file (expected ${onsets[k]} s)`, { record: k });
+        throw new EdfFormatError(file, 'annotations', String(timeKeeping[k]), `time-keeping onset ${timeKeeping[k]} s breaks the contiguity of an ${header.variant} file (expected ${onsets[k]} s)`, { record: k });
       }
     }
     return { onsets, gaps };
@@ -244,14 +116,48 @@ function recordTiming(file: string, header: EdfHeader, timeKeeping: Float64Array
   return { onsets, gaps };
 }
 
+/** Samples closer to the grid than this (in samples) are on it: float rounding of decimal onsets. */
+const ON_GRID_SAMPLES = 1e-6;
+
+/** Warnings about EDF+D timing: the gaps (count, total seconds), and segments whose onset is off the first segment's sample grid. */
+function timingWarnings(header: EdfHeader, onsets: Float64Array, gaps: EdfGap[]): EdfWarning[] {
+  if (gaps.length === 0) return [];
+  let totalS = 0;
+  for (const g of gaps) totalS += g.endS - g.startS;
+  const warnings: EdfWarning[] = [
+    { field: 'annotations', message: `${gaps.length} gap${gaps.length === 1 ? '' : 's'} between data records, ${Number(totalS.toFixed(4))} s in total; epochs that touch a gap are dropped` },
+  ];
+  // readEpochs reads an epoch from sample round((epoch onset − segment onset)·fs): off the grid, that snaps by up to half a sample
+  let offGrid = 0;
+  let worstS = 0;
+  for (const g of gaps) {
+    const dt = onsets[g.afterRecord + 1] - onsets[0];
+    let worst = 0;
+    for (const s of header.signals) {
+      if (s.isAnnotation || !(s.fsHz > 0)) continue;
+      const off = Math.abs(dt * s.fsHz - Math.round(dt * s.fsHz));
+      if (off > ON_GRID_SAMPLES) worst = Math.max(worst, off / s.fsHz);
+    }
+    if (worst > 0) offGrid++;
+    worstS = Math.max(worstS, worst);
+  }
+  if (offGrid > 0) {
+    warnings.push({
+      field: 'annotations',
+      message: `${offGrid} of ${gaps.length} segments after a gap start off the sample grid of the first record (by up to ${Number((worstS * 1000).toFixed(3))} ms); their epochs are read from the nearest sample`,
+    });
+  }
+  return warnings;
+}
+
 export interface OpenEdfOptions {
   /** Hash the file bytes too (EdfFile.sha256). */
   sha256?: boolean;
 }
 
-/** Opens an EDF/EDF+ file. Throws EdfFormatError or EdfIoError, nothing else. */
+/** Opens an EDF/EDF+ or BDF/BDF+ file. Throws EdfFormatError or EdfIoError, nothing else. */
 export async function openEdf(path: string, options: OpenEdfOptions = {}): Promise<EdfFile> {
-  if (endianness() !== 'LE') throw new EdfIoError(path, 'decode', new Error('this reader decodes int16 with the host byte order and needs a little-endian host'));
+  if (endianness() !== 'LE') throw new EdfIoError(path, 'decode', new Error('this reader decodes 16-bit samples with the host byte order and needs a little-endian host'));
   let fh: FileHandle;
   try {
     fh = await open(path, 'r');
@@ -283,7 +189,7 @@ export async function openEdf(path: string, options: OpenEdfOptions = {}): Promi
     if (options.sha256) {
       // any bytes after the last record, or the whole file in a pass of its own when the annotation pass read only parts
       const whole = hash && hashed ? hash : createHash('sha256');
-      await hashRestOfFile(fh, whole, whole === hash ? header.headerBytes + header.nRecords * recordBytes(header.signals) : 0);
+      await hashRestOfFile(fh, whole, whole === hash ? header.headerBytes + header.nRecords * recordBytes(header.signals, header.bytesPerSample) : 0);
       sha256 = whole.digest('hex');
     }
     const { onsets, gaps } = recordTiming(path, header, timeKeeping);
@@ -299,6 +205,7 @@ export async function openEdf(path: string, options: OpenEdfOptions = {}): Promi
       gaps,
       durationS,
       sha256,
+      warnings: [...header.warnings, ...timingWarnings(header, onsets, gaps)],
       readEpochs: (opts) => guarded(path, readEpochs(handle, path, header, onsets, gaps, opts)),
       async close() {
         if (closed) return;
@@ -367,78 +274,6 @@ function checkEpochOptions(file: string, header: EdfHeader, opts: ReadEpochsOpti
   return { chosen, perEpoch };
 }
 
-/**
- * Where and how each requested signal is decoded, in typed arrays (one row per requested signal k):
- * its word offset inside a record, samples per record and per epoch, scaling, and the first sample
- * of the current epoch.
- */
-class DecodePlan {
-  readonly n: number;
-  /** int16 offset of signal k inside a record (EDF 1992 §2.2) */
-  readonly wordOffset: Int32Array;
-  readonly samplesPerRecord: Int32Array;
-  readonly perEpoch: Int32Array;
-  readonly fsHz: Float64Array;
-  readonly physicalMin: Float64Array;
-  readonly digitalMin: Float64Array;
-  readonly digitalMax: Float64Array;
-  /** (pmax − pmin)/(dmax − dmin) */
-  readonly gain: Float64Array;
-  /** first sample of the current epoch, counted from the segment's first record */
-  readonly startSample: Int32Array;
-
-  constructor(header: EdfHeader, chosen: EdfSignal[], perEpoch: number[]) {
-    const n = (this.n = chosen.length);
-    const offsets: number[] = [];
-    let acc = 0;
-    for (const s of header.signals) {
-      offsets.push(acc);
-      acc += s.samplesPerRecord;
-    }
-    this.wordOffset = Int32Array.from(chosen, (s) => offsets[s.index]);
-    this.samplesPerRecord = Int32Array.from(chosen, (s) => s.samplesPerRecord);
-    this.perEpoch = Int32Array.from(perEpoch);
-    this.fsHz = Float64Array.from(chosen, (s) => s.fsHz);
-    this.physicalMin = Float64Array.from(chosen, (s) => s.physicalMin);
-    this.digitalMin = Float64Array.from(chosen, (s) => s.digitalMin);
-    this.digitalMax = Float64Array.from(chosen, (s) => s.digitalMax);
-    this.gain = Float64Array.from(chosen, (s) => (s.physicalMax - s.physicalMin) / (s.digitalMax - s.digitalMin));
-    this.startSample = new Int32Array(n);
-  }
-}
-
-/**
- * Physical values of `count` digital samples src[from …] into dst[to …] (EDF 1992 §2.2 scaling:
- * phys = pmin + (dig − dmin)·(pmax − pmin)/(dmax − dmin), `gain` the last factor). Returns how
- * many were at or beyond the digital limits. A plain function, so the engine optimises the loop
- * fully (it is the inner loop of every ingest; the generator around it is not).
- */
-function decodeSamples(src: Int16Array, from: number, dst: Float32Array, to: number, count: number, pmin: number, dmin: number, dmax: number, gain: number): number {
-  let atLimits = 0;
-  for (let i = 0; i < count; i++) {
-    const v = src[from + i];
-    dst[to + i] = pmin + (v - dmin) * gain;
-    if (v <= dmin || v >= dmax) atLimits++;
-  }
-  return atLimits;
-}
-
-/**
- * Record rr of the current segment (its words from recBase in chunk) into the epoch buffers: for
- * each requested signal k, the samples of the epoch (p.startSample[k], p.perEpoch[k] of them) that
- * fall in this record. A plain function, so its optimised code outlives one generator's run.
- */
-function decodeRecord(chunk: Int16Array, recBase: number, rr: number, p: DecodePlan, out: Float32Array[], limits: Int32Array): void {
-  for (let k = 0; k < p.n; k++) {
-    const spr = p.samplesPerRecord[k];
-    const first = p.startSample[k];
-    const from = Math.max(first, rr * spr);
-    const to = Math.min(first + p.perEpoch[k], (rr + 1) * spr);
-    if (from >= to) continue;
-    limits[k] += decodeSamples(chunk, recBase + p.wordOffset[k] + (from - rr * spr), out[k], from - first, to - from, p.physicalMin[k], p.digitalMin[k], p.digitalMax[k], p.gain[k]);
-  }
-}
-
 /** End of a run of contiguous records, s from the file start. */
 function segmentEnd(g: Segment, recordDurationS: number): number {
   return g.startS + g.nRecords * recordDurationS;
@@ -458,8 +293,10 @@ interface ChunkRead {
  * call of the epoch generator: V8 optimised such closures again for every recording.
  */
 class RecordChunks {
-  /** Samples of the current chunk: record `first` starts at word 0. */
+  /** 16-bit samples of the current chunk (EDF): record `first` starts at word 0. */
   words: Int16Array;
+  /** The same chunk as bytes (BDF decodes its 3-byte samples from these). */
+  bytesNow: Uint8Array;
   first = -1;
   count = 0;
   private readonly bytes: Uint8Array[];
@@ -474,11 +311,13 @@ class RecordChunks {
     private readonly header: EdfHeader,
     private readonly chunkRecords: number,
   ) {
-    this.recB = recordBytes(header.signals);
+    this.recB = recordBytes(header.signals, header.bytesPerSample);
     const buffers = [new ArrayBuffer(chunkRecords * this.recB), new ArrayBuffer(chunkRecords * this.recB)];
     this.bytes = [new Uint8Array(buffers[0]), new Uint8Array(buffers[1])];
-    this.views = [new Int16Array(buffers[0]), new Int16Array(buffers[1])];
+    // whole words only: a BDF chunk can have an odd length (its Int16Array view is unused)
+    this.views = buffers.map((b) => new Int16Array(b, 0, b.byteLength >> 1));
     this.words = this.views[0];
+    this.bytesNow = this.bytes[0];
   }
 
   holds(r: number): boolean {
@@ -499,6 +338,7 @@ class RecordChunks {
     if (got < want) throw new EdfFormatError(this.file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r + 1}`, { record: r });
     this.current = read.into;
     this.words = this.views[read.into];
+    this.bytesNow = this.bytes[read.into];
     this.first = r;
     this.count = read.count;
     if (r + read.count < this.header.nRecords) this.ahead = this.startRead(r + read.count, 1 - read.into);
@@ -525,10 +365,12 @@ async function* readEpochs(
   if (nRec === 0) return;
   const d = header.recordDurationS;
   const epochS = opts.epochS;
-  const recB = recordBytes(header.signals);
-  const recWords = recB / 2;
+  const bps = header.bytesPerSample;
+  const recB = recordBytes(header.signals, bps);
+  const recSamples = recB / bps;
   const plan = new DecodePlan(header, chosen, perEpoch);
-  const chunks = new RecordChunks(fh, file, header, Math.max(1, Math.floor((opts.chunkBytes ?? DEFAULT_CHUNK_BYTES) / recB)));
+  // never more records per chunk than the file holds: a small file gets buffers no larger than its data
+  const chunks = new RecordChunks(fh, file, header, Math.min(nRec, Math.max(1, Math.floor((opts.chunkBytes ?? DEFAULT_CHUNK_BYTES) / recB))));
 
   // filled by push: an array made by .map() here came out with another hidden class for every
   // file, and the decode loop's optimised code was thrown away at each new recording
@@ -570,7 +412,8 @@ async function* readEpochs(
     for (let rr = rFirst; rr <= rLast; rr++) {
       const r = sg.firstRecord + rr;
       if (!chunks.holds(r)) await chunks.load(r);
-      decodeRecord(chunks.words, (r - chunks.first) * recWords, rr, plan, out, limits);
+      if (bps === 2) decodeRecord(chunks.words, (r - chunks.first) * recSamples, rr, plan, out, limits);
+      else decodeRecord24(chunks.bytesNow, (r - chunks.first) * recSamples, rr, plan, out, limits);
     }
     yield { epoch: e, onsetS: a, data: out, atDigitalLimits: limits, dropReason: null };
   }

@@ -1,7 +1,8 @@
-// Time-stamped annotation lists (TALs) of the "EDF Annotations" signal, EDF+ 2003 §2.2.2:
+// Time-stamped annotation lists (TALs) of the "EDF Annotations" signal (BDF+: "BDF Annotations",
+// the same bytes in 3-byte samples), EDF+ 2003 §2.2.2:
 //   +Onset\x15Duration\x14Text1\x14Text2\x14\x00   (duration and its \x15 optional)
 // TALs never cross a data record; the record's tail after the last TAL is \x00 (§2.2.4).
-import { EdfFormatError, showValue } from './errors.ts';
+import { EdfFormatError, WITHHELD, type EdfErrorPlace } from './errors.ts';
 
 export interface EdfAnnotation {
   /** Seconds from the file's start date/time (may be negative, EDF+ §2.2.2). */
@@ -28,14 +29,13 @@ function ascii(bytes: Uint8Array, start: number, end: number): string {
 }
 
 /**
- * Parses the TALs of one record's annotation bytes. `record` (0-based) and `signalLabel` only
- * serve the error message.
+ * Parses the TALs of one record's annotation bytes. `record` (0-based) and `signal` only serve
+ * the error message, which names the list by its position (record, TAL number) and its onset
+ * once that is known to be a number: it never quotes annotation text, nor an onset or duration
+ * field that is not a number (free text may sit there in a broken list).
  */
 export function parseTals(bytes: Uint8Array, file: string, record: number, signal: { index: number; label: string }): Tal[] {
   const place = { record, signal };
-  const fail = (value: string, detail: string): never => {
-    throw new EdfFormatError(file, 'annotations', value, detail, place);
-  };
   const tals: Tal[] = [];
   const n = bytes.length;
   let pos = 0;
@@ -44,35 +44,41 @@ export function parseTals(bytes: Uint8Array, file: string, record: number, signa
     let i = pos;
     while (i < n && bytes[i] !== 0x14 && bytes[i] !== 0x15 && bytes[i] !== 0) i++;
     const onsetText = ascii(bytes, pos, i);
-    if (i >= n) fail(onsetText, `annotation list "${showValue(onsetText)}" runs past the end of the record (TALs must not cross records)`);
-    if (bytes[i] === 0) fail(onsetText, `annotation onset "${showValue(onsetText)}" is not followed by \\x14`);
-    if (!ONSET.test(onsetText)) fail(onsetText, `annotation onset "${showValue(onsetText)}" is not a signed number (only + - . 0-9 allowed)`);
+    const k = tals.length + 1;
+    if (!ONSET.test(onsetText)) {
+      const tail = i >= n ? ' and runs to the end of the record' : '';
+      throw talError(file, place, `TAL ${k}`, `TAL ${k}: the onset (${i - pos} bytes, ${WITHHELD}) is not a signed number (only + - . 0-9 allowed)${tail}`);
+    }
+    if (i >= n) throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: runs past the end of the record (TALs must not cross records)`);
+    if (bytes[i] === 0) throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: the onset is not followed by \\x14`);
     let durationS: number | null = null;
     if (bytes[i] === 0x15) {
       const start = i + 1;
       i = start;
       while (i < n && bytes[i] !== 0x14 && bytes[i] !== 0x15 && bytes[i] !== 0) i++;
       const durText = ascii(bytes, start, i);
-      if (i >= n) fail(durText, `annotation list with duration "${showValue(durText)}" runs past the end of the record (TALs must not cross records)`);
-      if (bytes[i] !== 0x14) fail(durText, `annotation duration "${showValue(durText)}" is not followed by \\x14`);
-      if (!DURATION.test(durText)) fail(durText, `annotation duration "${showValue(durText)}" is not an unsigned number (only . 0-9 allowed)`);
+      if (!DURATION.test(durText)) {
+        throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: the duration (${i - start} bytes, ${WITHHELD}) is not an unsigned number (only . 0-9 allowed)`);
+      }
+      if (i >= n) throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: runs past the end of the record (TALs must not cross records)`);
+      if (bytes[i] !== 0x14) throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: the duration is not followed by \\x14`);
       durationS = Number(durText);
     }
     i++; // past the \x14 after onset/duration
     // Texts, each closed by \x14; the TAL ends with \x00 after the last \x14.
     const texts: string[] = [];
     for (;;) {
-      if (i >= n) fail(onsetText, `annotation list at onset ${onsetText} runs past the end of the record (TALs must not cross records)`);
+      if (i >= n) throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: runs past the end of the record (TALs must not cross records)`);
       if (bytes[i] === 0) break;
       const start = i;
       while (i < n && bytes[i] !== 0x14 && bytes[i] !== 0) i++;
       if (i >= n || bytes[i] === 0) {
-        fail(onsetText, `annotation text at onset ${onsetText} is not closed by \\x14 before the end of the list`);
+        throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: text ${texts.length + 1} is not closed by \\x14 before the end of the list`);
       }
       try {
         texts.push(utf8.decode(bytes.subarray(start, i)));
       } catch (cause) {
-        throw new EdfFormatError(file, 'annotations', onsetText, `annotation text at onset ${onsetText} is not valid UTF-8`, place, { cause });
+        throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: text ${texts.length + 1} is not valid UTF-8 (${WITHHELD})`, cause);
       }
       i++;
     }
@@ -80,6 +86,11 @@ export function parseTals(bytes: Uint8Array, file: string, record: number, signa
     pos = i + 1; // past the closing \x00
   }
   return tals;
+}
+
+/** The error of a broken TAL; `value` is the onset when it is a number, else the TAL's position. */
+function talError(file: string, place: EdfErrorPlace, value: string, detail: string, cause?: unknown): EdfFormatError {
+  return new EdfFormatError(file, 'annotations', value, detail, place, cause === undefined ? undefined : { cause });
 }
 
 /** Formats seconds for a TAL: optional sign, digits, dot, at most 7 decimals (100 ns), no exponent. */

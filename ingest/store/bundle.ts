@@ -23,7 +23,7 @@ export interface RecordingInfo {
   durationS: number;
   /** 'ok' unless something was limited. */
   status: string;
-  edfVariant?: 'EDF' | 'EDF+C' | 'EDF+D' | null;
+  edfVariant?: 'EDF' | 'EDF+C' | 'EDF+D' | 'BDF' | 'BDF+C' | 'BDF+D' | null;
   scoringSource?: string | null;
   epochLengthS?: number | null;
   nEpochs?: number | null;

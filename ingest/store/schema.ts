@@ -68,7 +68,7 @@ export const TABLES: readonly TableDef[] = [
       col('duration_s', 'DOUBLE', 'recorded duration in s (sum of data records)', true),
       col('run_id', 'VARCHAR', 'runs.run_id', true),
       col('status', 'VARCHAR', 'ok, or a short word saying what was limited (e.g. partial-scoring)', true),
-      col('edf_variant', 'VARCHAR', 'EDF, EDF+C or EDF+D'),
+      col('edf_variant', 'VARCHAR', 'EDF, EDF+C, EDF+D, BDF, BDF+C or BDF+D'),
       col('scoring_source', 'VARCHAR', 'where the hypnogram came from: scoring file or edf-annotations'),
       col('epoch_length_s', 'DOUBLE', 'scoring epoch length in s (usually 30)'),
       col('n_channels', 'INTEGER', 'channels stored for this recording'),

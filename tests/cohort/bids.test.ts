@@ -7,6 +7,7 @@ import { cohortError, tempFolder } from './fixtures.ts';
 
 // Layout per the BIDS specification, EEG modality (summarised in shared/STANDARDS.md):
 // sub-<label>/[ses-<label>/]eeg/sub-<label>[_ses-<label>]_task-<label>[_acq-<label>][_run-<index>]_eeg.edf
+// (BIDS EEG allows .edf and .bdf among its data formats; bandwise reads those two)
 // with _eeg.json, _channels.tsv (name, type, units first, in that order), _events.tsv (onset,
 // duration) beside it; participants.tsv with participant_id 'sub-<label>'; TSV missing = n/a.
 
@@ -78,6 +79,30 @@ describe('discoverBids', () => {
     expect(c.recordings[3].bids?.powerLineHz).toBe(60);
     expect((await discoverCohort(t.dir)).recordings).toHaveLength(5);
   });
+
+  it('takes a BDF recording (_eeg.bdf) like an EDF one, with its sidecars', async () => {
+    const b = goodFolder();
+    try {
+      b.put('sub-02/eeg/sub-02_task-sleep_acq-hd_run-3_eeg.bdf', 'x');
+      b.put('sub-02/eeg/sub-02_task-sleep_acq-hd_run-3_eeg.json', eegJson(2048, 'CMS', 50));
+      b.put('sub-02/eeg/sub-02_task-sleep_acq-hd_run-3_events.tsv', 'onset\tduration\tstage\n0\t30\tN2\n');
+      const c = await discoverBids(b.dir);
+      const bdf = c.recordings.find((r) => r.recordingPath.endsWith('.bdf'))!;
+      expect(path.relative(b.dir, bdf.recordingPath)).toBe('sub-02/eeg/sub-02_task-sleep_acq-hd_run-3_eeg.bdf');
+      expect([bdf.subject, bdf.session, bdf.group]).toEqual(['02', null, 'patient']);
+      expect(path.relative(b.dir, bdf.scoringPath!)).toBe('sub-02/eeg/sub-02_task-sleep_acq-hd_run-3_events.tsv');
+      expect(bdf.bids).toEqual({ samplingHz: 2048, reference: 'CMS', powerLineHz: 50, channels: [] });
+      expect(c.recordings).toHaveLength(6);
+      // an .edf and a .bdf with the same entities: one recording per name, the second refused
+      b.put('sub-02/eeg/sub-02_task-sleep_acq-hd_run-3_eeg.edf', 'x');
+      const e = await cohortError(discoverBids(b.dir));
+      expect(e.problems.map((p) => p.message)).toEqual([
+        'sub-02/eeg/sub-02_task-sleep_acq-hd_run-3_eeg.edf: sub-02_task-sleep_acq-hd_run-3_eeg.bdf has the same entities; keep one recording per name',
+      ]);
+    } finally {
+      rmSync(b.dir, { recursive: true, force: true });
+    }
+  });
 });
 
 describe('discoverBids problems', () => {
@@ -92,7 +117,7 @@ describe('discoverBids problems', () => {
     t.put('sub-03/eeg/sub-03_task-sleep_eeg.json', eegJson(256, 'Cz', 50));
     t.put('sub-01/ses-1/eeg/sub-01_task-rest_ses-1_eeg.edf', 'x'); // entity order
     t.put('sub-01/ses-1/eeg/sub-01_ses-2_task-rest_eeg.edf', 'x'); // session mismatch
-    t.put('sub-01/ses-1/eeg/sub-01_ses-1_task-rest_eeg.bdf', 'x'); // not EDF
+    t.put('sub-01/ses-1/eeg/sub-01_ses-1_task-rest_eeg.dat', 'x'); // neither EDF nor BDF
     t.put('sub-01/ses-1/eeg/sub-01_ses-1_task-hum_eeg.edf', 'x');
     t.put('sub-01/ses-1/eeg/sub-01_ses-1_task-hum_eeg.json', eegJson(256, 'Cz', 55 as 50));
     t.put('sub-01/ses-1/eeg/sub-01_ses-1_task-hum_channels.tsv', 'type\tname\tunits\nEEG\tC3\tuV\n');
@@ -104,11 +129,11 @@ describe('discoverBids problems', () => {
       "2|group|participants.tsv: group of 'sub-02' is empty (the table has a group column, so every subject needs one)",
       "3|participant_id|participants.tsv: 'sub-01' is already in row 1",
       "4|participant_id|participants.tsv: participant_id '01x' must be 'sub-<label>' with an alphanumeric label",
-      "5|participant_id|participants.tsv: 'sub-09' has no EEG recording (sub-09/[ses-*/]eeg/*_eeg.edf)",
+      "5|participant_id|participants.tsv: 'sub-09' has no EEG recording (sub-09/[ses-*/]eeg/*_eeg.edf or .bdf)",
       "-|participant_id|folder 'sub-03' has no row in participants.tsv",
       "-|-|sub-01/ses-1/eeg/sub-01_task-rest_ses-1_eeg.edf: entity 'ses' is out of order or repeated (BIDS order: sub, ses, task, acq, run)",
       "-|-|sub-01/ses-1/eeg/sub-01_ses-2_task-rest_eeg.edf: ses-2 in the file name, but the folder is ses-1",
-      '-|-|sub-01/ses-1/eeg/sub-01_ses-1_task-rest_eeg.bdf: only EDF recordings are read (found .bdf)',
+      '-|-|sub-01/ses-1/eeg/sub-01_ses-1_task-rest_eeg.dat: only EDF and BDF recordings are read (found .dat)',
       '-|PowerLineFrequency|sub-01/ses-1/eeg/sub-01_ses-1_task-hum_eeg.json: PowerLineFrequency must be 50, 60 or "n/a"',
       '-|-|sub-01/ses-1/eeg/sub-01_ses-1_task-hum_channels.tsv: the first columns must be name, type, units (BIDS), found type, name, units',
       "-|stage|sub-01/ses-1/eeg/sub-01_ses-1_task-hum_events.tsv: no 'stage' or 'trial_type' column to carry the sleep stages",

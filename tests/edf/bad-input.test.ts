@@ -10,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { EdfFormatError, EdfIoError } from '../../ingest/edf/errors.ts';
 import { parseEdfHeader } from '../../ingest/edf/header.ts';
 import { openEdf } from '../../ingest/edf/reader.ts';
-import { concat, goodEdfPlusSpec, goodRecord, handEdf, makeTmpDir, type HandEdf } from './helpers.ts';
+import { BDF_VERSION, concat, goodBdfPlusSpec, goodBdfRecord, goodEdfPlusSpec, goodRecord, handEdf, makeTmpDir, type HandEdf } from './helpers.ts';
 
 let tmp: ReturnType<typeof makeTmpDir>;
 beforeAll(() => {
@@ -56,6 +56,7 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   it('the good base file itself opens cleanly', async () => {
     const f = await openEdf(save(handEdf(goodEdfPlusSpec())));
     expect(f.header.warnings).toEqual([]);
+    expect(f.warnings).toEqual([]);
     await f.close();
   });
 
@@ -72,27 +73,31 @@ describe('bad-input catalogue (each a real malformed file)', () => {
     expect(e.message).toContain('1024');
   });
 
-  it('version other than "0"', async () => {
-    await expectFormatError(variantOf((h) => (h.version = '1')), 'version', '1');
+  it('version other than "0" (EDF) or 0xFF "BIOSEMI" (BDF): the field is not quoted (a file that is not EDF can start with any text)', async () => {
+    const e = await expectFormatError(variantOf((h) => (h.version = '1')), 'version', 'content withheld', /not an EDF or BDF file/);
+    expect(e.message).not.toMatch(/"1"/);
   });
 
+  // Values made only of digits, signs, dots, commas, colons, spaces and e/E are quoted; others
+  // (which could spell a name) are withheld.
   it.each([
-    ['number of data records', (h: HandEdf) => (h.nRecords = 'three'), 'three'],
+    ['number of data records', (h: HandEdf) => (h.nRecords = 'three'), 'content withheld'],
     ['duration of a data record', (h: HandEdf) => (h.duration = '0,5'), '0,5'],
-    ['number of signals', (h: HandEdf) => (h.ns = 'x3'), 'x3'],
-    ['number of bytes in header', (h: HandEdf) => (h.headerBytes = '1O24'), '1O24'],
+    ['number of signals', (h: HandEdf) => (h.ns = 'x3'), 'content withheld'],
+    ['number of bytes in header', (h: HandEdf) => (h.headerBytes = '1O24'), 'content withheld'],
+    ['number of data records', (h: HandEdf) => (h.nRecords = '1.5'), '1.5'],
   ])('non-numeric fixed field: %s', async (field, edit, value) => {
     await expectFormatError(variantOf(edit), field, value, /not (an integer|a number)/);
   });
 
   it.each([
-    ['physical minimum', 'pmin', '-20a.8'],
-    ['physical maximum', 'pmax', ''],
-    ['digital minimum', 'dmin', '-2048.5'],
-    ['digital maximum', 'dmax', '2k'],
-    ['number of samples in each data record', 'spr', 'four'],
-  ] as const)('non-numeric signal field: %s of signal 1', async (field, key, value) => {
-    const e = await expectFormatError(variantOf((h) => (h.signals[0][key] = value)), field, value);
+    ['physical minimum', 'pmin', '-20a.8', 'content withheld'],
+    ['physical maximum', 'pmax', '', ''],
+    ['digital minimum', 'dmin', '-2048.5', '-2048.5'],
+    ['digital maximum', 'dmax', '2k', 'content withheld'],
+    ['number of samples in each data record', 'spr', 'four', 'content withheld'],
+  ] as const)('non-numeric signal field: %s of signal 1', async (field, key, value, shown) => {
+    const e = await expectFormatError(variantOf((h) => (h.signals[0][key] = value)), field, shown);
     expect(e.message).toContain('signal 1 ("EEG C3-M2")');
   });
 
@@ -147,13 +152,18 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   });
 
   it('a final partial record is tolerated with a warning and ignored', async () => {
-    for (const nRecords of ['3', '4']) {
+    const expected = {
+      '3': { field: 'file', message: '20 bytes after the last data record (less than one 42-byte record) are ignored' },
+      '4': { field: 'file', message: 'the last data record is incomplete (20 of 42 bytes) and is ignored' },
+    };
+    for (const nRecords of ['3', '4'] as const) {
       const h = goodEdfPlusSpec();
       h.nRecords = nRecords;
       h.data = concat([h.data, goodRecord(3, '+1.5\x14\x14\x00').subarray(0, 20)]);
       const f = await openEdf(save(handEdf(h)));
       expect(f.header.nRecords).toBe(3);
-      expect(f.header.warnings.join(' ')).toMatch(/20 (of 42 bytes|bytes after the last complete data record)/);
+      expect(f.header.warnings).toEqual([expected[nRecords]]);
+      expect(f.warnings).toEqual([expected[nRecords]]);
       let epochs = 0;
       for await (const b of f.readEpochs({ signals: [0], epochS: 0.5 })) if (b.data) epochs++;
       expect(epochs).toBe(3);
@@ -164,7 +174,7 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   it('record count -1 is derived from the file size with a warning', async () => {
     const f = await openEdf(variantOf((h) => (h.nRecords = '-1')));
     expect(f.header.nRecords).toBe(3);
-    expect(f.header.warnings.join(' ')).toMatch(/-1 \(unknown\); 3 records derived/);
+    expect(f.header.warnings).toEqual([{ field: 'number of data records', message: 'is -1 (unknown); 3 records derived from the file size' }]);
     await f.close();
   });
 
@@ -186,17 +196,18 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   }
 
   it('annotation onset with a bad character (EDF+ 2003 §2.2.2: only + - . 0-9)', async () => {
-    const e = await expectFormatError(withRecordTal(2, '+1.0\x14\x14\x00+1.2a\x14Spindle\x14\x00'), 'annotations', '+1.2a', /not a signed number/);
+    const e = await expectFormatError(withRecordTal(2, '+1.0\x14\x14\x00+1.2a\x14Spindle\x14\x00'), 'annotations', 'TAL 2', /TAL 2: the onset \(5 bytes, content withheld\) is not a signed number/);
     expect(e.record).toBe(2);
     expect(e.message).toContain('data record 3');
+    expect(e.message).not.toContain('1.2a');
   });
 
   it('annotation onset without a sign', async () => {
-    await expectFormatError(withRecordTal(1, '+0.5\x14\x14\x0012\x14Spindle\x14\x00'), 'annotations', '12', /signed number/);
+    await expectFormatError(withRecordTal(1, '+0.5\x14\x14\x0012\x14Spindle\x14\x00'), 'annotations', 'TAL 2', /signed number/);
   });
 
   it('annotation duration with a sign', async () => {
-    await expectFormatError(withRecordTal(1, '+0.5\x14\x14\x00+0.6\x15-3\x14Spindle\x14\x00'), 'annotations', '-3', /unsigned/);
+    await expectFormatError(withRecordTal(1, '+0.5\x14\x14\x00+0.6\x15-3\x14Spindle\x14\x00'), 'annotations', '+0.6', /TAL 2 at onset \+0\.6: the duration \(2 bytes, content withheld\) is not an unsigned number/);
   });
 
   it('annotation onset not followed by \\x14', async () => {
@@ -227,8 +238,9 @@ describe('bad-input catalogue (each a real malformed file)', () => {
     const h = goodEdfPlusSpec();
     h.reserved = 'EDF+D';
     h.data = concat([0, 1, 2].map((k) => goodRecord(k, `+${k}\x14Event ${k}\x14\x00`)));
-    const e = await expectFormatError(save(handEdf(h)), 'annotations', '0', /EDF\+D record starts with a list at onset 0 with text "Event 0" instead of a time-keeping TAL/);
+    const e = await expectFormatError(save(handEdf(h)), 'annotations', '0', /EDF\+D record starts with TAL 1 at onset 0 instead of a time-keeping TAL/);
     expect(e.record).toBe(0);
+    expect(e.message).not.toContain('Event');
   });
 
   it('EDF+D without any annotation signal', async () => {
@@ -237,7 +249,7 @@ describe('bad-input catalogue (each a real malformed file)', () => {
     h.signals = h.signals.slice(0, 2);
     h.data = new Uint8Array(0);
     h.nRecords = '0';
-    await expectFormatError(save(handEdf(h)), 'reserved', 'EDF+D', /needs an "EDF Annotations" signal/);
+    await expectFormatError(save(handEdf(h)), 'reserved', 'EDF+D', /needs a signal labelled "EDF Annotations"/);
   });
 
   it('EDF+D records that overlap', async () => {
@@ -264,6 +276,87 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   });
 });
 
+describe('BDF/BDF+ catalogue (24-bit; hand-built from goodBdfPlusSpec, 63-byte records)', () => {
+  function bdfVariant(edit: (h: HandEdf) => void): string {
+    const h = goodBdfPlusSpec();
+    edit(h);
+    return save(handEdf(h));
+  }
+
+  it('the good BDF+C base opens cleanly', async () => {
+    const f = await openEdf(bdfVariant(() => undefined));
+    expect([f.header.variant, f.header.bytesPerSample, f.header.nRecords]).toEqual(['BDF+C', 3, 3]);
+    expect(f.warnings).toEqual([]);
+    await f.close();
+  });
+
+  it('digital limit outside 24 bits', async () => {
+    await expectFormatError(bdfVariant((h) => (h.signals[0].dmax = '8388608')), 'digital maximum', '8388608', /outside the 24-bit range -8388608\.\.8388607 of BDF\+C/);
+  });
+
+  it('a 24-bit digital limit in a 16-bit EDF file', async () => {
+    await expectFormatError(variantOf((h) => (h.signals[0].dmin = '-8388608')), 'digital minimum', '-8388608', /16-bit range -32768\.\.32767 of EDF\+C/);
+  });
+
+  it.each([
+    ['an EDF+ mark with the BDF version', (h: HandEdf) => (h.reserved = 'EDF+C'), 'EDF+C', /a mark of EDF files, but the version field is that of BDF/],
+    ['BDF+ neither C nor D', (h: HandEdf) => (h.reserved = 'BDF+X'), 'BDF+X', /neither BDF\+C nor BDF\+D/],
+  ])('reserved field: %s', async (_, edit, value, extra) => {
+    await expectFormatError(bdfVariant(edit), 'reserved', value, extra);
+  });
+
+  it.each([
+    ['a BDF+ mark with the EDF version "0"', 'BDF+C', /a mark of BDF files, but the version field is that of EDF/],
+    ['"24BIT" with the EDF version "0"', '24BIT', /a mark of BDF files/],
+  ])('reserved field: %s', async (_, reserved, extra) => {
+    await expectFormatError(variantOf((h) => (h.reserved = reserved)), 'reserved', reserved, extra);
+  });
+
+  it('BDF+D without a "BDF Annotations" signal', async () => {
+    await expectFormatError(
+      bdfVariant((h) => {
+        h.reserved = 'BDF+D';
+        h.signals = h.signals.slice(0, 2);
+        h.nRecords = '0';
+        h.data = new Uint8Array(0);
+      }),
+      'reserved',
+      'BDF+D',
+      /a BDF\+D file needs a signal labelled "BDF Annotations"/,
+    );
+  });
+
+  it('an "EDF Annotations" signal in a BDF+ file is an ordinary signal (EDFlib writes "BDF Annotations"): BDF+C without annotations', async () => {
+    const f = await openEdf(bdfVariant((h) => (h.signals[2].label = 'EDF Annotations')));
+    expect(f.header.signals[2].isAnnotation).toBe(false);
+    expect(f.warnings).toEqual([{ field: 'reserved', message: 'BDF+C file without a signal labelled "BDF Annotations"; record onsets taken as k·duration' }]);
+    await f.close();
+  });
+
+  it('record count larger than the file holds: counted in 3-byte samples', async () => {
+    const e = await expectFormatError(bdfVariant((h) => (h.nRecords = '4')), 'number of data records', '4');
+    expect(e.message).toContain('189 data bytes hold 3 records of 63 bytes');
+  });
+
+  it('an incomplete last record and a record count of -1', async () => {
+    const f = await openEdf(bdfVariant((h) => {
+      h.nRecords = '-1';
+      h.data = concat([h.data, goodBdfRecord(3, '+1.5\x14\x14\x00').subarray(0, 40)]);
+    }));
+    expect(f.header.nRecords).toBe(3);
+    expect(f.warnings).toEqual([
+      { field: 'number of data records', message: 'is -1 (unknown); 3 records derived from the file size' },
+      { field: 'file', message: 'the last data record is incomplete (40 of 63 bytes) and is ignored' },
+    ]);
+    await f.close();
+  });
+
+  it('a version of 0xFF followed by other text is neither EDF nor BDF', async () => {
+    await expectFormatError(bdfVariant((h) => (h.version = '\xffBIOSEMX')), 'version', 'content withheld', /not an EDF or BDF file/);
+    expect(BDF_VERSION).toBe('\xffBIOSEMI');
+  });
+});
+
 describe('property: mutated headers give a valid header or an EdfFormatError (fast-check)', () => {
   const base = handEdf(goodEdfPlusSpec());
   // Characters EDF header fields are made of, plus a few hostile ones.
@@ -273,8 +366,8 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
     fc.record({ kind: fc.constant('cut' as const), at: fc.integer({ min: 0, max: base.length }), byte: fc.constant(0) }),
   );
 
-  function mutate(muts: { kind: 'set' | 'cut'; at: number; byte: number }[]): Uint8Array {
-    let b: Uint8Array = base.slice();
+  function mutate(muts: { kind: 'set' | 'cut'; at: number; byte: number }[], from: Uint8Array = base): Uint8Array {
+    let b: Uint8Array = from.slice();
     for (const m of muts) {
       if (m.kind === 'set' && m.at < b.length) b[m.at] = m.byte;
       if (m.kind === 'cut') b = b.slice(0, m.at);
@@ -283,7 +376,8 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
   }
 
   function checkValid(h: ReturnType<typeof parseEdfHeader>, bytes: Uint8Array): void {
-    expect(['EDF', 'EDF+C', 'EDF+D']).toContain(h.variant);
+    expect(['EDF', 'EDF+C', 'EDF+D', 'BDF', 'BDF+C', 'BDF+D']).toContain(h.variant);
+    expect(h.bytesPerSample).toBe(h.variant.startsWith('BDF') ? 3 : 2);
     expect(h.startDate).toMatch(/^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d$/);
     expect(h.headerBytes).toBe(256 + 256 * h.signals.length);
     expect(h.signals.length).toBeGreaterThan(0);
@@ -294,7 +388,7 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
       expect(s.physicalMin).not.toBe(s.physicalMax);
       expect(s.samplesPerRecord).toBeGreaterThan(0);
       expect(Number.isFinite(s.gain) && s.gain !== 0).toBe(true);
-      recordBytes += 2 * s.samplesPerRecord;
+      recordBytes += h.bytesPerSample * s.samplesPerRecord;
     }
     expect(h.headerBytes + h.nRecords * recordBytes).toBeLessThanOrEqual(bytes.length);
   }
@@ -322,11 +416,14 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
     expect(rejected).toBeGreaterThan(20);
   });
 
-  // 150 runs of the whole reader on files mutated anywhere (header, samples, annotation bytes).
-  it('openEdf + readEpochs, 150 mutated files', async () => {
+  // 150 runs of the whole reader on EDF+ files, 100 on BDF+ files, mutated anywhere (header, samples, annotation bytes).
+  it.each([
+    ['EDF+C', base, 150, 7],
+    ['BDF+C', handEdf(goodBdfPlusSpec()), 100, 24],
+  ] as const)('openEdf + readEpochs, mutated %s files', async (_, from, numRuns, seed) => {
     await fc.assert(
       fc.asyncProperty(fc.array(mutation, { minLength: 1, maxLength: 4 }), async (muts) => {
-        const path = save(mutate(muts));
+        const path = save(mutate(muts, from));
         try {
           const f = await openEdf(path);
           try {
@@ -339,7 +436,7 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
           if (!(e instanceof EdfFormatError)) throw e;
         }
       }),
-      { numRuns: 150, seed: 7 },
+      { numRuns, seed },
     );
   });
 });

@@ -145,3 +145,53 @@ export function goodRecord(r: number, tal: string): Uint8Array {
   const [a, b] = goodDigital(r);
   return concat([int16le(a), int16le(b), talBytes(tal, 30)]);
 }
+
+/** BDF version field: byte 0xFF then "BIOSEMI" (handEdf writes header text as Latin-1, one byte per char). */
+export const BDF_VERSION = '\xffBIOSEMI';
+
+/** Little-endian 24-bit two's-complement bytes (BDF: 3-byte samples, least significant byte first). */
+export function int24le(values: ArrayLike<number>): Uint8Array {
+  const out = new Uint8Array(values.length * 3);
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i] & 0xffffff;
+    out[3 * i] = v & 0xff;
+    out[3 * i + 1] = (v >> 8) & 0xff;
+    out[3 * i + 2] = v >> 16;
+  }
+  return out;
+}
+
+/** Digital sample values of goodBdfPlusSpec's record r, spanning the 24-bit range: signal 0 (4 per record), signal 1 (2). */
+export function goodDigital24(r: number): [number[], number[]] {
+  return [[r * 100003 + 1, -r * 70001 - 2, 8388607 - r, -8388608 + r], [r * 7 - 8000000, 8388607 - 2 * r]];
+}
+
+/** One record of goodBdfPlusSpec's layout with a given annotation text (\x00-padded to 45 bytes = 15 samples of 3 bytes). */
+export function goodBdfRecord(r: number, tal: string): Uint8Array {
+  const [a, b] = goodDigital24(r);
+  return concat([int24le(a), int24le(b), talBytes(tal, 45)]);
+}
+
+/**
+ * goodEdfPlusSpec as BDF+C: version 0xFF "BIOSEMI", reserved "BDF+C", 24-bit digital limits,
+ * 3-byte samples, and a "BDF Annotations" signal of 15 samples (45 bytes) per 0.5-s record.
+ * Signal 0 has gain 1 and offset 0 (physical = digital); signal 1 spans ±1000 µV.
+ */
+export function goodBdfPlusSpec(nRecords = 3): HandEdf {
+  const h = goodEdfPlusSpec(nRecords);
+  const records: Uint8Array[] = [];
+  for (let r = 0; r < nRecords; r++) {
+    records.push(goodBdfRecord(r, r === 1 ? `+${r * 0.5}\x14\x14\x00+0.75\x150.25\x14Arousal\x14\x00` : `+${r * 0.5}\x14\x14\x00`));
+  }
+  return {
+    ...h,
+    version: BDF_VERSION,
+    reserved: 'BDF+C',
+    signals: [
+      { ...h.signals[0], pmin: '-8388608', pmax: '8388607', dmin: '-8388608', dmax: '8388607' },
+      { ...h.signals[1], pmin: '-1000', pmax: '1000', dmin: '-8388608', dmax: '8388607' },
+      { label: 'BDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-8388608', dmax: '8388607', spr: '15' },
+    ],
+    data: concat(records),
+  };
+}

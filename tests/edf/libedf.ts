@@ -12,7 +12,7 @@ export interface RefSignal {
   pmax: number;
   dmin: number;
   dmax: number;
-  /** Samples per 1-s record (libedf's default record duration) = Hz. */
+  /** Sampling rate, Hz; fs·record duration samples per record. */
   fs: number;
   /** C expression of the sample value, in terms of the sample index `i` (int) and time `t` (s). */
   expr: string;
@@ -30,19 +30,34 @@ function cString(s: string): string {
   return `"${[...Buffer.from(s, 'utf8')].map((b) => `\\${b.toString(8).padStart(3, '0')}`).join('')}"`;
 }
 
-/** C source of a writer: EDF+ file at argv[1], the exact double values at argv[2] (per signal, all samples, float64 LE). */
-export function writerSource(signals: RefSignal[], annotations: RefAnnotation[], seconds: number, patientName: string): string {
+export interface WriterOptions {
+  /** edflib.h EDFLIB_FILETYPE_EDFPLUS (16-bit, default) or EDFLIB_FILETYPE_BDFPLUS (24-bit). */
+  fileType?: 'EDFLIB_FILETYPE_EDFPLUS' | 'EDFLIB_FILETYPE_BDFPLUS';
+  /** Data record duration in seconds (default 1, libedf's default); set with edf_set_datarecord_duration in units of 10 µs. */
+  recordS?: number;
+}
+
+/**
+ * C source of a writer: EDF+ (or BDF+) file at argv[1], the exact double values at argv[2] (per
+ * signal, all samples, float64 LE). `seconds` must be a whole number of records.
+ */
+export function writerSource(signals: RefSignal[], annotations: RefAnnotation[], seconds: number, patientName: string, options: WriterOptions = {}): string {
   const n = signals.length;
+  const recordS = options.recordS ?? 1;
+  const nRecords = Math.round(seconds / recordS);
+  const spr = signals.map((s) => s.fs * recordS);
+  if (!spr.every(Number.isInteger) || Math.abs(nRecords * recordS - seconds) > 1e-9) throw new Error('fs·recordS and seconds/recordS must be whole numbers');
   const setup = signals
     .map(
       (s, k) => `
-  if (edf_set_samplefrequency(h, ${k}, ${s.fs}) || edf_set_physical_maximum(h, ${k}, ${s.pmax}) ||
+  if (edf_set_samplefrequency(h, ${k}, ${spr[k]}) || edf_set_physical_maximum(h, ${k}, ${s.pmax}) ||
       edf_set_physical_minimum(h, ${k}, ${s.pmin}) || edf_set_digital_maximum(h, ${k}, ${s.dmax}) ||
       edf_set_digital_minimum(h, ${k}, ${s.dmin}) || edf_set_label(h, ${k}, ${cString(s.label)}) ||
       edf_set_physical_dimension(h, ${k}, ${cString(s.dim)})) { fprintf(stderr, "set signal ${k}\\n"); return 3; }`,
     )
     .join('');
   const fsList = signals.map((s) => s.fs).join(', ');
+  const sprList = spr.join(', ');
   const exprs = signals.map((s, k) => `    case ${k}: return ${s.expr};`).join('\n');
   const annots = annotations
     .map((a) => `  if (edfwrite_annotation_utf8(h, ${a.onset100us}LL, ${a.duration100us}LL, ${cString(a.text)})) { fprintf(stderr, "annotation\\n"); return 5; }`)
@@ -58,20 +73,22 @@ ${exprs}
 }
 int main(int argc, char **argv) {
   const int fs[${n}] = { ${fsList} };
-  int h = edfopen_file_writeonly(argv[1], EDFLIB_FILETYPE_EDFPLUS, ${n});
+  const int spr[${n}] = { ${sprList} };
+  int h = edfopen_file_writeonly(argv[1], ${options.fileType ?? 'EDFLIB_FILETYPE_EDFPLUS'}, ${n});
   if (h < 0) { fprintf(stderr, "open %d\\n", h); return 2; }
+  if (${Math.round(recordS * 1e5)} != 100000 && edf_set_datarecord_duration(h, ${Math.round(recordS * 1e5)})) return 3;
   if (edf_set_startdatetime(h, 2003, 4, 5, 22, 30, 15)) return 3;
   if (edf_set_patientname(h, ${cString(patientName)})) return 3;
   if (edf_set_birthdate(h, 1952, 2, 29)) return 3;${setup}
   FILE *raw = fopen(argv[2], "wb");
   if (!raw) return 4;
-  double buf[4096];
+  static double buf[${Math.max(...spr)}];
   for (int k = 0; k < ${n}; k++)
     for (int i = 0; i < fs[k] * ${seconds}; i++) { double v = value(k, i, (double)i / fs[k]); fwrite(&v, sizeof v, 1, raw); }
   fclose(raw);
-  for (int r = 0; r < ${seconds}; r++)
+  for (int r = 0; r < ${nRecords}; r++)
     for (int k = 0; k < ${n}; k++) {
-      for (int j = 0; j < fs[k]; j++) { int i = r * fs[k] + j; buf[j] = value(k, i, (double)i / fs[k]); }
+      for (int j = 0; j < spr[k]; j++) { int i = r * spr[k] + j; buf[j] = value(k, i, (double)i / fs[k]); }
       if (edfwrite_physical_samples(h, buf)) { fprintf(stderr, "write\\n"); return 5; }
     }
 ${annots}

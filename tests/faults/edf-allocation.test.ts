@@ -3,7 +3,8 @@
 // tests/edf/bad-input.test.ts (valid structure or EdfFormatError) with hostile *declarations*:
 // record counts, samples per record, signal counts and header sizes far beyond what the bytes
 // hold (EDF 1992 §2.1 fields: 8-character record count, 4-character signal count, 8-character
-// samples per record; §2.2: 2 bytes per sample, records back to back after the header).
+// samples per record; §2.2: 2 bytes per sample, records back to back after the header), for EDF
+// and for BDF (3 bytes per sample; version 0xFF "BIOSEMI", shared/STANDARDS.md).
 //
 // How allocation is checked: while a case runs, the typed-array constructors (Uint8Array,
 // Int8Array, Uint16Array, Int16Array, Float32Array, Float64Array), ArrayBuffer and Buffer.alloc /
@@ -12,7 +13,7 @@
 // parser's own `new Uint8Array(n)` goes through the wrapper; Node's internal buffers do not, and
 // are not ours). The bound asserted for every case, in bytes:
 //   - a Float64Array (the per-record onset tables, 8 bytes per data record) holds at most one
-//     entry per 2 bytes of the file (a record carries at least one 2-byte sample);
+//     entry per 2 bytes of the file (a record carries at least one sample of 2 or 3 bytes);
 //   - every other allocation is at most the file's size.
 // Neither depends on a declared count: a header declaring 99,999,999 records must not allocate
 // in proportion to that. Sizes: 3,000 header cases + 2,000 TAL cases in memory, 300 files
@@ -25,7 +26,7 @@ import { EdfFormatError, EdfIoError } from '../../ingest/edf/errors.ts';
 import { parseEdfHeader } from '../../ingest/edf/header.ts';
 import { openEdf } from '../../ingest/edf/reader.ts';
 import { parseTals } from '../../ingest/edf/tal.ts';
-import { concat, handEdf, int16le, makeTmpDir, talBytes, type HandEdf } from '../edf/helpers.ts';
+import { BDF_VERSION, concat, handEdf, int16le, int24le, makeTmpDir, talBytes, type HandEdf } from '../edf/helpers.ts';
 
 interface Alloc {
   kind: string;
@@ -107,6 +108,8 @@ interface Declared {
   plus: 'EDF+C' | 'EDF+D' | '';
   dataBytes: number;
   annotationSignal: boolean;
+  /** BDF (24-bit) instead of EDF: version 0xFF "BIOSEMI", BDF+C/BDF+D/24BIT, 3-byte samples. */
+  bdf?: boolean;
   /** Declare what the bytes really hold (record count, no ns/header-size override), so valid files occur too. */
   consistent?: boolean;
 }
@@ -120,6 +123,7 @@ const declared: fc.Arbitrary<Declared> = fc.record({
   plus: fc.constantFrom('EDF+C' as const, 'EDF+D' as const, '' as const),
   dataBytes: fc.integer({ min: 0, max: 3000 }),
   annotationSignal: fc.boolean(),
+  bdf: fc.boolean(),
   consistent: fc.boolean(),
 });
 
@@ -131,10 +135,12 @@ function hostileFile(declaredHeader: Declared): Uint8Array {
   const step = Number(d.duration) || 0;
   // samples per record as declared when small (so consistent files are valid), else 1
   const perSignal = d.spr.map((x) => (Number.isInteger(Number(x)) && Number(x) >= 1 && Number(x) <= 64 ? Number(x) : 1));
+  const bps = d.bdf ? 3 : 2;
+  const samples = d.bdf ? int24le : int16le;
   const records: Uint8Array[] = [];
   let whole = 0;
   for (let r = 0, n = 0; n < d.dataBytes; r++) {
-    const rec = concat([...perSignal.map((k) => int16le(new Array<number>(k).fill(7))), ...(d.annotationSignal ? [talBytes(`+${+(r * step).toFixed(7)}\x14\x14\x00`, 16)] : [])]);
+    const rec = concat([...perSignal.map((k) => samples(new Array<number>(k).fill(7))), ...(d.annotationSignal ? [talBytes(`+${+(r * step).toFixed(7)}\x14\x14\x00`, 8 * bps)] : [])]);
     records.push(rec);
     n += rec.length;
     if (n <= d.dataBytes) whole = r + 1;
@@ -143,11 +149,13 @@ function hostileFile(declaredHeader: Declared): Uint8Array {
   if (d.consistent) {
     d = { ...d, nRecords: String(whole), ns: null, headerBytes: null, spr: perSignal.map(String), duration: step > 0 ? d.duration : '1' };
   }
-  const signals: HandEdf['signals'] = d.spr.map((spr, i) => ({ label: `EEG C${i + 3}`, dim: 'uV', pmin: '-3200', pmax: '3200', dmin: '-32768', dmax: '32767', spr }));
-  if (d.annotationSignal) signals.push({ label: 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-32768', dmax: '32767', spr: '8' });
+  const [dmin, dmax] = d.bdf ? ['-8388608', '8388607'] : ['-32768', '32767'];
+  const signals: HandEdf['signals'] = d.spr.map((spr, i) => ({ label: `EEG C${i + 3}`, dim: 'uV', pmin: '-3200', pmax: '3200', dmin, dmax, spr }));
+  if (d.annotationSignal) signals.push({ label: d.bdf ? 'BDF Annotations' : 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin, dmax, spr: '8' });
   return handEdf({
     patient: 'X X X X', recording: 'Startdate 01-JAN-2020 X X X', date: '01.01.20', time: '22.00.00',
-    reserved: d.plus, nRecords: d.nRecords, duration: d.duration, signals, data,
+    ...(d.bdf ? { version: BDF_VERSION } : {}),
+    reserved: d.bdf ? (d.plus === '' ? '24BIT' : d.plus.replace('EDF', 'BDF')) : d.plus, nRecords: d.nRecords, duration: d.duration, signals, data,
     ...(d.ns !== null ? { ns: d.ns } : {}), ...(d.headerBytes !== null ? { headerBytes: d.headerBytes } : {}),
   });
 }
@@ -179,6 +187,7 @@ describe('allocation stays within the file whatever the header declares', () => 
 
   it('parseEdfHeader: 3,000 hostile declarations (in memory): a valid header or EdfFormatError, allocations within the file', async () => {
     let valid = 0;
+    let validBdf = 0;
     let rejected = 0;
     let worst = 0;
     const reasons = new Map<string, number>();
@@ -193,7 +202,9 @@ describe('allocation stays within the file whatever the header declares', () => 
         } else {
           const h = r.value!;
           // what was accepted is backed by the bytes (EDF 1992 §2.1–2.2)
-          expect(h.headerBytes + h.nRecords * h.signals.reduce((a, s) => a + 2 * s.samplesPerRecord, 0)).toBeLessThanOrEqual(bytes.length);
+          expect(h.headerBytes + h.nRecords * h.signals.reduce((a, s) => a + h.bytesPerSample * s.samplesPerRecord, 0)).toBeLessThanOrEqual(bytes.length);
+          expect(h.variant.startsWith('BDF')).toBe(d.bdf === true);
+          if (d.bdf) validBdf++;
           valid++;
         }
         expect(overBound(r.allocs, bytes.length), JSON.stringify(d)).toBeNull();
@@ -202,6 +213,7 @@ describe('allocation stays within the file whatever the header declares', () => 
       { numRuns: 3000, seed: 8128 },
     );
     expect(valid).toBeGreaterThan(50);
+    expect(validBdf).toBeGreaterThan(25); // BDF headers are exercised on the accepting side too
     expect(rejected).toBeGreaterThan(500);
     console.log(`header fuzz: ${valid} valid, ${rejected} rejected; largest allocation ${worst.toFixed(3)} × the file size; consistent declarations rejected for ${JSON.stringify(Object.fromEntries(reasons))}`);
   }, 60_000);

@@ -42,10 +42,10 @@ type Expected = { step: string; field: string | null; message: RegExp };
 const FAILS: Record<string, Expected> = {
   'truncated.edf': { step: 'open', field: 'file', message: /^truncated\.edf: file is truncated: 600 bytes, shorter than its 1536-byte header$/ },
   'header-size.edf': { step: 'open', field: 'number of bytes in header', message: /number of bytes in header 1000 disagrees with 256 \+ 256·5 signals = 1536/ },
-  'non-numeric.edf': { step: 'open', field: 'physical maximum', message: /signal 2 \("EEG C4"\): "32OO" is not a number/ },
+  'non-numeric.edf': { step: 'open', field: 'physical maximum', message: /signal 2 \("EEG C4"\): the value \(letters or other characters; content withheld\) is not a number/ },
   'digital-limits.edf': { step: 'open', field: 'digital minimum', message: /signal 3 \("EEG M1"\): digital minimum 100 is not below digital maximum 100/ },
   'past-end.edf': { step: 'open', field: 'number of data records', message: /number of data records 400 disagrees with the file size: 321600 data bytes hold 300 records of 1072 bytes/ },
-  'annotation-garbage.edf': { step: 'open', field: 'annotations', message: /data record 4, field "annotations" .*: annotation onset "\+\+3" is not a signed number/ },
+  'annotation-garbage.edf': { step: 'open', field: 'annotations', message: /data record 4, field "annotations" .*: TAL 1: the onset \(3 bytes, content withheld\) is not a signed number/ },
   'scored-long.edf': { step: 'scoring', field: null, message: /^long\.txt: .*scoring runs past the recording end \(300 s\) at epochs 10–13/s },
   'scored-unknown.edf': { step: 'scoring', field: null, message: /^unknown\.txt: .*unknown stage label 'N5' \(line 5\) at epoch 4 .*unknown stage label 'deep' \(line 8\) at epoch 7/s },
   'duplicate.edf': { step: 'cohort', field: 'subject', message: /^cohort table row 16, column 'subject': subject 'g02' \(no session\) is already in row 2$/ },
