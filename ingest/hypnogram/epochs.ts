@@ -23,7 +23,7 @@
  */
 import type { Stage } from '../../src/core/stages.ts';
 import { isStage } from '../../src/core/stages.ts';
-import { looksLikeStageLabel, stageFromLabel } from '../../src/core/hypnogram/labels.ts';
+import { looksLikeStageLabel, stageFromLabel, type LabelMap } from '../../src/core/hypnogram/labels.ts';
 import { nameOfLabel, textHash } from './names.ts';
 import type { Hypnogram, ScoringOptions, ScoringProblem, ScoringWarning } from './types.ts';
 import { ScoringError, describeEpochs, resolveEpochS } from './types.ts';
@@ -66,6 +66,15 @@ function listSome(items: string[], max = 3): string {
 const unique = (epochs: number[]) => [...new Set(epochs)].sort((a, b) => a - b);
 const seconds = (s: number) => String(Math.round(s * 1000) / 1000);
 
+/** Throws a ScoringError naming every entry of a label map that maps to something that is not a stage. */
+export function checkLabelMap(labelMap: LabelMap | undefined, file: string): void {
+  const problems: ScoringProblem[] = [];
+  for (const [label, stage] of Object.entries(labelMap ?? {})) {
+    if (!isStage(stage)) problems.push({ kind: 'label-map', epochs: [], message: `label map: '${label}' maps to '${String(stage)}', which is not one of W, N1, N2, N3, R, unscored` });
+  }
+  if (problems.length) throw new ScoringError(file, problems);
+}
+
 export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx: IntervalContext, options: ScoringOptions = {}): Hypnogram {
   const epochS = resolveEpochS(options, ctx.file);
   const problems: ScoringProblem[] = [];
@@ -73,10 +82,7 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
   const say = (epochs: number[]) => describeEpochs(epochs, epochS);
   const labelMap = options.labelMap;
 
-  for (const [label, stage] of Object.entries(labelMap ?? {})) {
-    if (!isStage(stage)) problems.push({ kind: 'label-map', epochs: [], message: `label map: '${label}' maps to '${String(stage)}', which is not one of W, N1, N2, N3, R, unscored` });
-  }
-  if (problems.length) throw new ScoringError(ctx.file, problems);
+  checkLabelMap(labelMap, ctx.file);
   const name = (label: string) => nameOfLabel(label, labelMap);
 
   const recDur = options.recordingDurationS ?? null;

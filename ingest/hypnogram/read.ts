@@ -1,5 +1,5 @@
 /**
- * One entry point for a scoring file, chosen by extension: .edf → EDF+ annotations,
+ * One entry point for a scoring file, chosen by extension: .edf/.bdf → EDF+/BDF+ annotations,
  * .tsv/.csv → table, .txt → one label per epoch; any other name is a table when its first line
  * names an 'onset' column, else a per-epoch text file.
  */
@@ -13,7 +13,7 @@ import type { Hypnogram } from './types.ts';
 
 export async function readScoring(file: string, options: EdfScoringOptions = {}): Promise<Hypnogram> {
   const ext = path.extname(file).toLowerCase();
-  if (ext === '.edf') return readScoringEdf(file, options);
+  if (ext === '.edf' || ext === '.bdf') return readScoringEdf(file, options);
   const text = await readScoringFile(file);
   if (ext === '.tsv' || ext === '.csv') return scoringFromTableText(text, file, options);
   if (ext === '.txt') return scoringFromText(text, file, options);
