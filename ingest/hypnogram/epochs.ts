@@ -170,7 +170,7 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
   for (const [label, b] of unknown.map) {
     const message = `unknown stage label (${textHash(label)}, ${b.detail}${b.epochs.length > 1 ? ' and others' : ''}) at ${say(b.epochs)}`;
     if ((options.unknownAs ?? 'error') === 'error') {
-      problems.push({ kind: 'unknown-label', epochs: b.epochs, message: `${message}; add it to the label map or treat unknown labels as unscored` });
+      problems.push({ kind: 'unknown-label', epochs: b.epochs, message: `${message}; add it to a label map (--label-map) or score unknown labels as unscored (--unknown-as-unscored)` });
     } else {
       warnings.push({ kind: 'unknown-label', epochs: b.epochs, message: `${message} scored as unscored` });
     }
