@@ -30,7 +30,7 @@ import { Irasa, IRASA_FACTORS } from '../src/core/spectrum/irasa.ts';
 import { SCORED_STAGES, type Stage } from '../src/core/stages.ts';
 import type { CohortRecording } from './cohort/types.ts';
 import { openEdf, type EdfFile, type EdfSignal } from './edf/reader.ts';
-import { readScoring, scoringFromAnnotations, type Hypnogram } from './hypnogram/index.ts';
+import { DEFAULT_SCORING_PARAMS, scoringForRecording, type RecordingScoring, type ScoringParams } from './hypnogram/index.ts';
 import type {
   AperiodicRow, BandPowerBlock, ChannelRow, EpochRejection, PeakRow, QualityRowIn, RecordingBundle, SpectrumRow,
 } from './store/bundle.ts';
@@ -71,6 +71,8 @@ export interface IngestParams {
   irasa: { resamplingFactors?: number[] } | null;
   /** Thresholds of the per-recording quality metrics (src/core/quality; defaults there). */
   quality: QualityParams;
+  /** Scoring: label map, unknown labels, trimming outside the recording, lights texts (ingest/hypnogram/recording.ts). */
+  scoring: ScoringParams;
 }
 
 export interface QualityParams {
@@ -120,6 +122,7 @@ export const DEFAULT_INGEST_PARAMS: Readonly<IngestParams> = {
     aperiodicMinR2: 0.9,
     exponentRange: [0, 4],
   },
+  scoring: DEFAULT_SCORING_PARAMS,
 };
 
 /** Fills defaults; the result is plain JSON (it identifies the run). */
@@ -129,6 +132,7 @@ export function resolveIngestParams(partial: Partial<IngestParams> = {}): Ingest
     ...structuredClone(partial),
     rejection: { ...DEFAULT_REJECTION, ...(partial.rejection ?? {}) },
     quality: { ...DEFAULT_INGEST_PARAMS.quality, ...(partial.quality ?? {}) },
+    scoring: { ...structuredClone(DEFAULT_SCORING_PARAMS as ScoringParams), ...structuredClone(partial.scoring ?? {}) },
   };
   if (p.references.includes('bipolar') && p.bipolarPairs.length === 0) {
     throw new PipelineError('parameters', null, 'references', "reference 'bipolar' needs bipolar pairs (e.g. F3-C3)");
@@ -211,15 +215,9 @@ function selectChannels(edf: EdfFile, rec: CohortRecording, params: IngestParams
   return out;
 }
 
-async function readHypnogram(edf: EdfFile, rec: CohortRecording, params: IngestParams): Promise<Hypnogram> {
+async function readHypnogram(edf: EdfFile, rec: CohortRecording, params: IngestParams): Promise<RecordingScoring> {
   try {
-    if (rec.scoringPath) {
-      const separate = path.extname(rec.scoringPath).toLowerCase() === '.edf';
-      return await readScoring(rec.scoringPath, { epochS: params.epochS, recordingDurationS: edf.durationS, separateAnnotationFile: separate });
-    }
-    const startS = edf.recordOnsetsS.length ? edf.recordOnsetsS[0] : 0;
-    const annotations = edf.annotations.map((a) => ({ ...a, onsetS: a.onsetS - startS }));
-    return scoringFromAnnotations(annotations, edf.file, `annotations:${path.basename(edf.file)}`, { epochS: params.epochS, recordingDurationS: edf.durationS });
+    return await scoringForRecording(edf, rec, { ...params.scoring, epochS: params.epochS });
   } catch (e) {
     throw new PipelineError('scoring', rec.scoringPath ?? edf.file, null, e instanceof Error ? e.message : String(e), { cause: e });
   }
@@ -497,7 +495,8 @@ export async function processOpened(
   const file = rec.recordingPath;
   const edf = opened.edf;
   try {
-    const hyp = await readHypnogram(edf, rec, params);
+    const scoring = await readHypnogram(edf, rec, params);
+    const hyp = scoring.hypnogram;
     const epochS = hyp.epochS;
     const selected = selectChannels(edf, rec, params);
     const { plans, skips } = planReferences(selected.map((s) => s.montage), { references: params.references, bipolarPairs: params.bipolarPairs });
@@ -667,7 +666,7 @@ export async function processOpened(
       }
     }
 
-    const arch = sleepArchitecture(stages, epochS);
+    const arch = sleepArchitecture(stages, epochS, scoring.lights);
     const channels: ChannelRow[] = selected.map((s) => {
       const pos = electrodePosition(s.montage.electrode ?? '');
       return {
@@ -684,6 +683,8 @@ export async function processOpened(
         status: 'ok', edfVariant: edf.header.variant, scoringSource: hyp.source, epochLengthS: epochS, nEpochs: nGrid,
         nEpochsDropped: nDropped, tstMin: arch.totalSleepTimeMin, sePct: arch.sleepEfficiencyPct, solMin: arch.sleepOnsetLatencyMin,
         stageMin: arch.minutesPerStage,
+        scoringShiftS: scoring.shiftS, lightsOffS: scoring.lights.offS, lightsOnS: scoring.lights.onS, lightsSource: scoring.lights.source,
+        trtMin: arch.totalRecordingTimeMin, wasoMin: arch.wasoMin, remLatencyMin: arch.remLatencyMin,
       },
       channels,
       epochs: { onsetS, stage: stages, dropReason },

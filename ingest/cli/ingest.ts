@@ -11,6 +11,7 @@ import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
 import { REFERENCE_KINDS, type ReferenceKind } from '../../src/core/montage/reference.ts';
 import { parseBand } from '../../src/core/spectrum/bands.ts';
+import { readLabelMap } from '../hypnogram/label-map.ts';
 import { parseShard, runIngest, type IngestEvent } from '../ingest.ts';
 import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../pipeline.ts';
 
@@ -59,6 +60,11 @@ interface Flags {
   irasa?: boolean;
   lineFreq?: number;
   quiet?: boolean;
+  labelMap?: string;
+  unknownAsUnscored?: boolean;
+  trimScoring?: boolean;
+  lightsOffTexts: string[];
+  lightsOnTexts: string[];
 }
 
 export function register(program: Command): void {
@@ -98,6 +104,11 @@ export function register(program: Command): void {
     .option('--no-fit', 'skip the aperiodic and peak fits')
     .option('--irasa', 'also estimate the aperiodic component by IRASA (Wen & Liu 2016) from the clean epochs\' time series, stored with method irasa (a second read of each recording; slower)')
     .option('--line-freq <Hz>', 'power-line frequency for the mains-hum metric, 50 or 60 (default: BIDS sidecar, else detected)', num('line-freq', (x) => x === 50 || x === 60))
+    .option('--label-map <file.tsv>', 'stage-label map: a TSV with columns label and stage (W, N1, N2, N3, R or unscored); its labels take precedence over the built-in ones')
+    .option('--unknown-as-unscored', 'score the epochs of a stage label that is neither built in nor in the label map as unscored, with a warning (default: refuse the recording)')
+    .option('--trim-scoring', 'drop scored stages that lie before the recording start or past its end, with a warning (default: refuse the recording, as such scoring is likely misaligned); unscored labels there are always dropped')
+    .option('--lights-off-texts <list>', 'comma-separated annotation texts that mark lights off, matched ignoring case and spaces', list, D.scoring.lightsOffTexts)
+    .option('--lights-on-texts <list>', 'comma-separated annotation texts that mark lights on, matched ignoring case and spaces', list, D.scoring.lightsOnTexts)
     .option('--quiet', 'no progress bars (they are off anyway when stdout is not a terminal)')
     .addHelpText('after', '\nA research tool, not a diagnostic device. No EDF patient or recording identification is stored.')
     .action(async (cohort: string, flags: Flags, cmd: Command) => {
@@ -128,6 +139,13 @@ function toParams(f: Flags): Partial<IngestParams> {
     fit: f.fit === false ? null : { fitRangeHz: f.fitRange, aperiodicForm: f.knee ? 'knee' : 'power-law' },
     irasa: f.irasa ? {} : null,
     quality: { ...D.quality, lineHz: (f.lineFreq as 50 | 60 | undefined) ?? null },
+    scoring: {
+      labelMap: f.labelMap ? readLabelMap(f.labelMap) : {},
+      unknownAs: f.unknownAsUnscored ? 'unscored' : 'error',
+      trimScoredOutside: Boolean(f.trimScoring),
+      lightsOffTexts: f.lightsOffTexts,
+      lightsOnTexts: f.lightsOnTexts,
+    },
   };
 }
 

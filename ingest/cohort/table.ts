@@ -1,8 +1,9 @@
 /**
  * A cohort table (TSV or CSV), one row per recording (shared/DESIGN.md, "The cohort table"):
  * `subject`, `session` (optional), `group` (optional), `recording` (EDF path), `scoring`
- * (optional path; else the EDF+ annotations), then covariate columns kept typed. These column
- * names are matched case-insensitively; covariate names are kept as written. Paths are relative
+ * (optional path; else the EDF+ annotations), `lights_off` and `lights_on` (optional, per
+ * recording: a local clock time HH:MM or HH:MM:SS, or seconds from the recording start), then
+ * covariate columns kept typed. These column names are matched case-insensitively; covariate names are kept as written. Paths are relative
  * to the table's folder. 'n/a' and empty cells are missing.
  *
  * Every problem is collected and reported together (CohortError): unreadable file, missing
@@ -19,12 +20,24 @@
 import { readFile, stat } from 'node:fs/promises';
 import path from 'node:path';
 import { z } from 'zod';
-import { cellValue, detectDelimiter, parseDelimited } from './delimited.ts';
+import { cellValue, detectDelimiter, parseDelimited, parseNumber } from './delimited.ts';
 import { columnKind, typedValue } from './typed-columns.ts';
-import type { Cohort, CohortProblem, CohortRecording, ColumnKind } from './types.ts';
+import type { Cohort, CohortProblem, CohortRecording, ColumnKind, LightsCell } from './types.ts';
 import { CohortError } from './types.ts';
 
-const RESERVED = ['subject', 'session', 'group', 'recording', 'scoring'] as const;
+const RESERVED = ['subject', 'session', 'group', 'recording', 'scoring', 'lights_off', 'lights_on'] as const;
+const LIGHTS = ['lights_off', 'lights_on'] as const;
+
+/** A lights cell: 'HH:MM' or 'HH:MM:SS' (24-hour local clock) or seconds (≥ 0) from the recording start; undefined when it is neither. */
+function lightsCell(text: string): LightsCell | undefined {
+  const m = /^(\d{1,2}):(\d\d)(?::(\d\d(?:\.\d+)?))?$/.exec(text.trim());
+  if (m) {
+    const [h, mi, s] = [Number(m[1]), Number(m[2]), Number(m[3] ?? 0)];
+    return h < 24 && mi < 60 && s < 60 ? { clockS: h * 3600 + mi * 60 + s } : undefined;
+  }
+  const x = parseNumber(text);
+  return x !== null && x >= 0 ? { fromStartS: x } : undefined;
+}
 const REQUIRED = ['subject', 'recording'] as const;
 
 function rowSchema(hasGroup: boolean) {
@@ -121,6 +134,15 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
       if (!perRecording) problems.push(p);
       else rec.problem ??= { column: p.column, message: `cohort table row ${p.row}, column '${p.column}': ${p.message}` };
     };
+    if (LIGHTS.some((n) => col(n) >= 0)) {
+      const [off, on] = LIGHTS.map((n) => {
+        const text = at(r.cells, n);
+        const cell = text === null ? null : lightsCell(text);
+        if (cell === undefined) rowProblem({ row, column: n, message: `'${text}' is neither a clock time (HH:MM or HH:MM:SS, 24-hour) nor seconds (≥ 0) from the recording start` });
+        return cell ?? null;
+      });
+      rec.lights = { off, on };
+    }
 
     const key = `${v.subject}\u0000${v.session ?? ''}`;
     const first = pairRow.get(key);

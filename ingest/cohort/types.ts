@@ -15,6 +15,9 @@ export interface BidsRecordingInfo {
   channels: BidsChannel[];
 }
 
+/** A lights time from the cohort table: a local clock time (s after midnight) or seconds from the recording start. */
+export type LightsCell = { clockS: number } | { fromStartS: number };
+
 export interface CohortRecording {
   /** 1-based data row of the table (or of participants.tsv for BIDS), for messages. */
   row: number;
@@ -26,6 +29,8 @@ export interface CohortRecording {
   /** Absolute path, or null: the scoring is the recording's EDF+ annotations. */
   scoringPath: string | null;
   covariates: Record<string, number | string | null>;
+  /** The cohort table's `lights_off` / `lights_on` cells, when it has those columns. */
+  lights?: { off: LightsCell | null; on: LightsCell | null };
   bids?: BidsRecordingInfo;
   /**
    * Set only when the table was read with `rowProblems: 'per-recording'`: this row cannot be

@@ -15,6 +15,7 @@
 import { copyFile, link, mkdir, readdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { openEdf } from '../edf/reader.ts';
+import { edfStartSeconds } from '../hypnogram/clock.ts';
 import { readScoring } from '../hypnogram/read.ts';
 import type { ScoringOptions, ScoringWarning } from '../hypnogram/types.ts';
 import { BIDS_LABEL } from './bids.ts';
@@ -120,9 +121,10 @@ export async function writeBidsCopy(cohort: Cohort, outFolder: string, options: 
 
     if (r.scoringPath !== null) {
       const edf = await openEdf(r.recordingPath);
-      const recordingDurationS = edf.durationS;
+      // an EDF+/BDF+ scoring file is placed on the recording by absolute time (tables and text ignore `recording`)
+      const recording = { startS: edfStartSeconds(edf), durationS: edf.durationS };
       await edf.close();
-      const hyp = await readScoring(r.scoringPath, { ...options.scoring, recordingDurationS, separateAnnotationFile: true });
+      const hyp = await readScoring(r.scoringPath, { ...options.scoring, recordingDurationS: recording.durationS, recording });
       scoringWarnings.push({ row: r.row, warnings: hyp.warnings });
       const rows = ['onset\tduration\tstage'];
       for (let k = 0; k < hyp.stages.length; ) {

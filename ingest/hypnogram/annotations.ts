@@ -1,7 +1,9 @@
 /**
  * Scoring from EDF+ annotations (Kemp & Olivan 2003: TALs with onset, optional duration and texts).
  * Each text of an annotation is read as a stage label; texts that are not stage labels
- * ('Arousal', 'Lights off') are other events, ignored and listed in a warning. A stage
+ * ('Arousal') are other events, ignored and listed in a warning by onset and a short hash of
+ * the text, never the text itself (names.ts). Lights off/on texts are taken out before (edf.ts,
+ * lights.ts). Onsets are seconds from the recording start (already shifted). A stage
  * annotation without duration scores one epoch; one with a duration fills every epoch it spans.
  * Empty texts (the time-keeping TAL of each data record) are not annotations and are skipped.
  */

@@ -2,8 +2,11 @@ export type { Hypnogram, ScoringOptions, ScoringProblem, ScoringWarning } from '
 export { ScoringError } from './types.ts';
 export type { EdfAnnotation } from './annotations.ts';
 export { scoringFromAnnotations } from './annotations.ts';
-export type { EdfScoringOptions } from './edf.ts';
+export type { EdfScoring, EdfScoringOptions, RecordingPlace } from './edf.ts';
 export { readScoringEdf, scoringFromOpenEdf } from './edf.ts';
 export { readScoringTable, scoringFromTableText } from './table.ts';
 export { readScoringText, scoringFromText } from './text.ts';
 export { readScoring } from './read.ts';
+export type { Lights, LightsMarks, LightsTexts } from './lights.ts';
+export type { RecordingScoring, ScoringParams } from './recording.ts';
+export { DEFAULT_SCORING_PARAMS, scoringForRecording } from './recording.ts';

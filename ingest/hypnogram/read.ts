@@ -1,5 +1,5 @@
 /**
- * One entry point for a scoring file, chosen by extension: .edf → EDF+ annotations,
+ * One entry point for a scoring file, chosen by extension: .edf/.bdf → EDF+/BDF+ annotations,
  * .tsv/.csv → table, .txt → one label per epoch; any other name is a table when its first line
  * names an 'onset' column, else a per-epoch text file.
  */

@@ -1,7 +1,14 @@
 import type { Stage } from '../../src/core/stages.ts';
 import type { LabelMap } from '../../src/core/hypnogram/labels.ts';
 
-/** A note about the scoring that did not stop it; `epochs` are 0-based epoch indices. */
+/**
+ * A note about the scoring that did not stop it; `epochs` are 0-based epoch indices (negative:
+ * epochs before the recording start). Kinds: 'scoring-starts-late', 'scoring-ends-early', 'gap'
+ * (epochs without any scoring; the hypnogram is then `partial`), 'trimmed-unscored',
+ * 'trimmed-scored' (epochs outside the recording dropped), 'truncated' (partial last epoch
+ * dropped), 'ignored-events', 'unknown-label' (scored as unscored), 'scoring-shift-snapped',
+ * 'lights-*' (see lights.ts). Messages never quote annotation free text (names.ts).
+ */
 export interface ScoringWarning {
   kind: string;
   epochs: number[];
@@ -15,6 +22,8 @@ export interface Hypnogram {
   /** Where the scoring came from, e.g. 'annotations:night.edf' or 'table:night.tsv'. */
   source: string;
   warnings: ScoringWarning[];
+  /** Some epochs of the recording have no scoring at all (it starts late, ends early or has gaps). */
+  partial: boolean;
 }
 
 export interface ScoringOptions {
@@ -30,9 +39,15 @@ export interface ScoringOptions {
    * end is caught. Without it the hypnogram ends with the last scored epoch.
    */
   recordingDurationS?: number | null;
+  /**
+   * Scored stages before the recording start or past its end: false (default) refuses the
+   * scoring (likely misaligned); true drops them with a 'trimmed-scored' warning. Unscored
+   * labels there are always dropped, with a 'trimmed-unscored' warning.
+   */
+  trimScoredOutside?: boolean;
 }
 
-/** One problem of a scoring file; `epochs` are 0-based epoch indices (may be empty). */
+/** One problem of a scoring file; `epochs` are 0-based epoch indices (may be empty; negative: before the recording start). */
 export interface ScoringProblem {
   kind: string;
   epochs: number[];

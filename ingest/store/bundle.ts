@@ -33,6 +33,16 @@ export interface RecordingInfo {
   solMin?: number | null;
   /** Minutes per stage (W, N1, N2, N3, R, unscored). */
   stageMin?: Partial<Record<Stage, number>> | null;
+  /** s added to an EDF+/BDF+ scoring's onsets to place it on the recording; null for a table or text scoring. */
+  scoringShiftS?: number | null;
+  /** Lights off/on, s from the recording start; null when not found. */
+  lightsOffS?: number | null;
+  lightsOnS?: number | null;
+  /** annotation, table, table+annotation or none. */
+  lightsSource?: string | null;
+  trtMin?: number | null;
+  wasoMin?: number | null;
+  remLatencyMin?: number | null;
 }
 
 export interface ChannelRow {

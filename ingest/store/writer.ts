@@ -332,6 +332,13 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     r_min: () => stageMin.R ?? null,
     unscored_min: () => stageMin.unscored ?? null,
     ingested_at: () => new Date(),
+    scoring_shift_s: () => rec.scoringShiftS ?? null,
+    lights_off_s: () => rec.lightsOffS ?? null,
+    lights_on_s: () => rec.lightsOnS ?? null,
+    lights_source: () => rec.lightsSource ?? null,
+    trt_min: () => rec.trtMin ?? null,
+    waso_min: () => rec.wasoMin ?? null,
+    rem_latency_min: () => rec.remLatencyMin ?? null,
   });
 
   const ch = b.channels;

@@ -118,4 +118,32 @@ describe('readCohortTable', () => {
     const nothing = await cohortError(discoverCohort(path.join(dir, 'nowhere')));
     expect(nothing.message).toContain('no cohort table or BIDS folder here: ENOENT');
   });
+
+  it('reads lights_off / lights_on per recording as clock times or seconds from the recording start (our convention, README)', async () => {
+    const table = put(
+      'lights.tsv',
+      [
+        'subject	recording	Lights_Off	lights_on	age',
+        'A01	edf/a1.edf	22:47	06:30:15	30',
+        'A02	edf/a2.edf	900	n/a	31',
+        'B07	edf/b1.edf		28800.5	32',
+      ].join('\n'),
+    );
+    const c = await readCohortTable(table);
+    // per recording, not participant covariates
+    expect(c.columns.map((x) => x.name)).toEqual(['subject', 'age']);
+    expect(c.recordings.map((r) => r.lights)).toEqual([
+      { off: { clockS: 22 * 3600 + 47 * 60 }, on: { clockS: 6 * 3600 + 30 * 60 + 15 } },
+      { off: { fromStartS: 900 }, on: null },
+      { off: null, on: { fromStartS: 28800.5 } },
+    ]);
+    const bad = await cohortError(readCohortTable(put('lights-bad.tsv', 'subject\trecording\tlights_off\tlights_on\nA01\tedf/a1.edf\t25:00\t-3\n')));
+    expect(bad.problems).toEqual([
+      { row: 1, column: 'lights_off', message: "'25:00' is neither a clock time (HH:MM or HH:MM:SS, 24-hour) nor seconds (≥ 0) from the recording start" },
+      { row: 1, column: 'lights_on', message: "'-3' is neither a clock time (HH:MM or HH:MM:SS, 24-hour) nor seconds (≥ 0) from the recording start" },
+    ]);
+    // with per-recording problems, the row is kept with its problem (ingest records it and goes on)
+    const kept = await readCohortTable(put('lights-bad2.tsv', 'subject\trecording\tlights_off\nA01\tedf/a1.edf\tlate\nA02\tedf/a2.edf\t22:00\n'), { rowProblems: 'per-recording' });
+    expect(kept.recordings.map((r) => r.problem?.column ?? null)).toEqual(['lights_off', null]);
+  });
 });

@@ -96,7 +96,9 @@ describe('writeBidsCopy', () => {
     // The same stages from both layouts, read against the 240-s recordings.
     for (let i = 0; i < table.recordings.length; i++) {
       const t = table.recordings[i];
-      const fromTable = await readScoring(t.scoringPath ?? t.recordingPath, { recordingDurationS: 240, separateAnnotationFile: t.scoringPath !== null });
+      // the recordings and the annotation scoring file all start 2020-01-01 22:00:00 (libedf.ts)
+      const recording = { startS: Date.UTC(2020, 0, 1, 22) / 1000, durationS: 240 };
+      const fromTable = await readScoring(t.scoringPath ?? t.recordingPath, { recordingDurationS: 240, ...(t.scoringPath !== null ? { recording } : {}) });
       const br = bids.recordings[i];
       const fromBids = await readScoring(br.scoringPath ?? br.recordingPath, { recordingDurationS: 240 });
       expect(fromBids.stages, t.subject).toEqual(fromTable.stages);
@@ -104,7 +106,7 @@ describe('writeBidsCopy', () => {
     }
     const s01b = await readScoring(bids.recordings[1].scoringPath!, { recordingDurationS: 240 });
     expect(s01b.stages).toEqual(['W', 'W', 'N1', 'N2', 'N3', 'N3', 'unscored', 'unscored']);
-    expect(s01b.warnings.map((w) => [w.kind, w.epochs])).toEqual([['gap', [6, 7]]]);
+    expect(s01b.warnings.map((w) => [w.kind, w.epochs])).toEqual([['scoring-ends-early', [6, 7]]]);
     expect(result.scoringWarnings.find((w) => w.row === 4)?.warnings.map((w) => w.kind)).toEqual(['ignored-events']);
   });
 

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import { scoringFromAnnotations } from '../../ingest/hypnogram/annotations.ts';
 import type { EdfAnnotation } from '../../ingest/hypnogram/annotations.ts';
@@ -9,6 +10,8 @@ import { ScoringError } from '../../ingest/hypnogram/types.ts';
 function score(annotations: EdfAnnotation[], options: Parameters<typeof scoringFromAnnotations>[3] = {}) {
   return scoringFromAnnotations(annotations, 'night.edf', 'annotations:night.edf', options);
 }
+/** Messages name a text that is not a stage label by the first 8 hex digits of its SHA-256 (node:crypto). */
+const hash8 = (text: string) => `text #${createHash('sha256').update(text, 'utf8').digest('hex').slice(0, 8)}`;
 function scoringError(f: () => unknown): ScoringError {
   try {
     f();
@@ -36,13 +39,15 @@ describe('scoring from EDF+ annotations', () => {
     expect(h.source).toBe('annotations:night.edf');
     expect(h.stages).toEqual(['W', 'W', 'N1', 'N2', 'N2', 'N2', 'unscored']);
     const byKind = (k: string) => h.warnings.filter((w) => w.kind === k);
-    expect(byKind('ignored-events').map((w) => [w.epochs, w.message.includes('Arousal') || w.message.includes('Lights off')])).toEqual([
+    // named by hash and onset, never by their text
+    expect(byKind('ignored-events').map((w) => [w.epochs, w.message.startsWith(hash8('Lights off')) || w.message.startsWith(hash8('Arousal'))])).toEqual([
       [[0], true],
       [[1], true],
     ]);
-    expect(byKind('gap')).toHaveLength(1);
-    expect(byKind('gap')[0].epochs).toEqual([6]);
-    expect(byKind('gap')[0].message).toContain('epoch 6 (180–210 s)');
+    expect(byKind('scoring-ends-early')).toHaveLength(1);
+    expect(byKind('scoring-ends-early')[0].epochs).toEqual([6]);
+    expect(byKind('scoring-ends-early')[0].message).toContain('epoch 6 (180–210 s)');
+    expect(h.partial).toBe(true);
   });
 
   it('rejects scoring whole epochs past the recording end, naming the epochs and label', () => {
@@ -50,6 +55,7 @@ describe('scoring from EDF+ annotations', () => {
     expect(e.file).toBe('night.edf');
     expect(e.epochs).toEqual([4, 5]);
     expect(e.message).toMatch(/past the recording end \(120 s\) at epochs 4–5 \(120–180 s\): 'N3'/);
+    expect(e.problems.map((p) => p.kind)).toEqual(['past-end']);
   });
 
   it('drops only a partial last epoch, with a warning', () => {
@@ -67,6 +73,7 @@ describe('scoring from EDF+ annotations', () => {
   it('rejects overlaps naming the epochs and both labels', () => {
     const e = scoringError(() => score([{ onsetS: 0, durationS: 90, texts: ['Sleep stage 2'] }, { onsetS: 60, durationS: 60, texts: ['Sleep stage 3'] }]));
     expect(e.epochs).toEqual([2]);
+    // recognised stage labels may be shown
     expect(e.message).toContain("overlapping scoring at epoch 2 (60–90 s): 'Sleep stage 2' (annotation at 0 s) and 'Sleep stage 3' (annotation at 60 s)");
   });
 
@@ -89,10 +96,11 @@ describe('scoring from EDF+ annotations', () => {
     ];
     const e = scoringError(() => score(anns));
     expect(e.epochs).toEqual([1]);
-    expect(e.message).toContain("unknown stage label 'Sleep stage X' (annotation at 30 s) at epoch 1 (30–60 s)");
+    expect(e.message).toContain(`unknown stage label (${hash8('Sleep stage X')}, annotation at 30 s) at epoch 1 (30–60 s)`);
+    expect(e.message).not.toContain('Sleep stage X');
     const h = score(anns, { unknownAs: 'unscored' });
     expect(h.stages).toEqual(['W', 'unscored', 'unscored']);
-    expect(h.warnings.find((w) => w.kind === 'unknown-label')?.message).toContain("'Sleep stage X'");
+    expect(h.warnings.find((w) => w.kind === 'unknown-label')?.message).toContain(hash8('Sleep stage X'));
     const mapped = score(anns, { labelMap: { 'sleep stage x': 'N2' } });
     expect(mapped.stages).toEqual(['W', 'N2', 'N2']);
     expect(mapped.warnings).toEqual([]);
@@ -103,8 +111,9 @@ describe('scoring from EDF+ annotations', () => {
     expect(e.problems).toHaveLength(2);
     expect(e.message).toMatch(/2 scoring problems/);
     const none = scoringError(() => score([{ onsetS: 0, durationS: null, texts: ['Arousal'] }]));
-    expect(none.message).toContain("no sleep-stage labels found (only other events: 'Arousal')");
+    expect(none.message).toContain('no sleep-stage labels found (only other events: 1 event(s), 1 distinct text(s))');
     expect(scoringError(() => score([{ onsetS: 0, durationS: 30, texts: ['N2'] }], { epochS: 0 })).message).toMatch(/epoch length/);
-    expect(scoringError(() => score([{ onsetS: -30, durationS: 30, texts: ['N2'] }])).message).toMatch(/onset -30 s/);
+    expect(scoringError(() => score([{ onsetS: Number.NaN, durationS: 30, texts: ['N2'] }])).message).toMatch(/onset NaN s is not a number of seconds/);
+    expect(scoringError(() => score([{ onsetS: -30, durationS: 30, texts: ['N2'] }])).problems[0].kind).toBe('before-start');
   });
 });

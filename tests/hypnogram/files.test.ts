@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -14,6 +15,8 @@ function file(name: string, text: string): string {
   writeFileSync(p, text);
   return p;
 }
+/** Messages name a text that is not a stage label by the first 8 hex digits of its SHA-256 (node:crypto). */
+const hash8 = (text: string) => `text #${createHash('sha256').update(text, 'utf8').digest('hex').slice(0, 8)}`;
 async function scoringError(p: Promise<unknown>): Promise<ScoringError> {
   try {
     await p;
@@ -37,11 +40,11 @@ describe('scoring tables (TSV/CSV)', () => {
     const p = file('b.csv', 'onset,duration,trial_type\r\n0,30,"Sleep stage W"\r\n30,30,"Sleep stage 2"\r\n40,0.5,"Arousal, short"\r\n60,30,"Sleep stage ""R"""\r\n');
     // '"Sleep stage ""R"""' unquotes to 'Sleep stage "R"', which looks like a stage label but is unknown.
     const e = await scoringError(readScoringTable(p));
-    expect(e.message).toContain(`unknown stage label 'Sleep stage "R"' (row 4) at epoch 2 (60–90 s)`);
+    expect(e.message).toContain(`unknown stage label (${hash8('Sleep stage "R"')}, row 4) at epoch 2 (60–90 s)`);
     const ok = file('c.csv', 'onset,duration,trial_type\n0,30,"Sleep stage W"\n30,30,"Sleep stage 2"\n40,0.5,"Arousal, short"\n60,30,Sleep stage R\n');
     const h = await readScoringTable(ok);
     expect(h.stages).toEqual(['W', 'N2', 'R']);
-    expect(h.warnings[0].message).toContain("'Arousal, short' is not a stage label: 1 event(s) ignored at epoch 1");
+    expect(h.warnings[0].message).toBe(`${hash8('Arousal, short')} (not a stage label): 1 event(s) ignored at epoch 1 (30–60 s), first at 40 s`);
   });
 
   it('accepts a description column and a missing duration as one epoch; sniffs the delimiter', async () => {
@@ -53,7 +56,8 @@ describe('scoring tables (TSV/CSV)', () => {
     const p = file('e.tsv', 'onset\tduration\tstage\n0\t30\tW\n30\t30\tArousal\n');
     const e = await scoringError(readScoringTable(p));
     expect(e.epochs).toEqual([1]);
-    expect(e.message).toContain("unknown stage label 'Arousal' (row 2) at epoch 1 (30–60 s)");
+    expect(e.message).toContain(`unknown stage label (${hash8('Arousal')}, row 2) at epoch 1 (30–60 s)`);
+    expect(e.message).not.toContain('Arousal');
   });
 
   it('names missing columns, bad numbers and ragged rows', async () => {
@@ -92,11 +96,12 @@ describe('scoring text files (one label per epoch)', () => {
     expect(e7.epochs).toEqual([6]);
   });
 
-  it('scoring that ends early leaves unscored epochs with a gap warning; epoch length configurable', async () => {
+  it('scoring that ends early leaves unscored epochs with a warning and a partial hypnogram; epoch length configurable', async () => {
     const h = await readScoringText(file('e.txt', 'N2\nN2\nR\n'), { recordingDurationS: 100, epochS: 20 });
     expect(h.epochS).toBe(20);
     expect(h.stages).toEqual(['N2', 'N2', 'R', 'unscored', 'unscored']);
-    expect(h.warnings[0]).toEqual({ kind: 'gap', epochs: [3, 4], message: 'no scoring for epochs 3–4 (60–100 s): set to unscored' });
+    expect(h.warnings[0]).toEqual({ kind: 'scoring-ends-early', epochs: [3, 4], message: 'scoring ends early: no scoring for epochs 3–4 (60–100 s) after the last scored epoch; set to unscored' });
+    expect(h.partial).toBe(true);
   });
 });
 
