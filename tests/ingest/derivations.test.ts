@@ -11,6 +11,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { compareDatabase } from '../../ingest/compare.ts';
 import type { CohortRecording } from '../../ingest/cohort/types.ts';
 import { runIngest } from '../../ingest/ingest.ts';
+import { databaseFactsOf } from '../../ingest/report.ts';
+import { methodsReport } from '../../src/core/report/index.ts';
 import { processRecording, resolveIngestParams } from '../../ingest/pipeline.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { electrodePosition } from '../../src/core/montage/positions.ts';
@@ -175,5 +177,20 @@ describe('a cohort mixing AASM exports and monopolar recordings', () => {
     const r = await compareDatabase(db, contrast('contralateral-mastoid'), [], undefined, undefined, { threads: 1 });
     expect(r.n).toEqual({ control: 2, patient: 2 });
     expect(r.exclusions).toEqual([]);
+    // the methods text states what each channel was recorded against, from the labels written above
+    const facts = await databaseFactsOf(db, r.contrast);
+    expect(facts.recordedDerivations).toEqual([
+      { channel: 'C3', referenceElectrode: null, recordings: 2 },
+      { channel: 'C3', referenceElectrode: 'M2', recordings: 2 },
+      { channel: 'C4', referenceElectrode: null, recordings: 2 },
+      { channel: 'C4', referenceElectrode: 'M1', recordings: 2 },
+      { channel: 'M1', referenceElectrode: null, recordings: 2 },
+      { channel: 'M2', referenceElectrode: null, recordings: 2 },
+      { channel: 'Pz', referenceElectrode: 'M1', recordings: 2 },
+      { channel: 'Pz-Oz', referenceElectrode: 'Oz', recordings: 2 },
+    ]);
+    expect(methodsReport(r, facts, null).markdown).toContain(
+      'C3 against the common reference (none named in the label) in 2 recordings and M2 in 2 recordings; C4 against the common reference (none named in the label) in 2 recordings and M1 in 2 recordings. A channel recorded against the contralateral mastoid',
+    );
   });
 });
