@@ -2,7 +2,7 @@
  * Reads what a contrast needs from a bandwise database (Node's DuckDB) into the pure form of
  * src/core/contrast, and runs it (its permutations on several threads when it is large).
  */
-import { openStore, listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, type Store } from './store/index.ts';
+import { openStore, listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, readRecordedReferences, type Store } from './store/index.ts';
 import type { Contrast } from '../src/core/contrast/spec.ts';
 import type { ContrastData, Exclusion, SpectrumRow } from '../src/core/contrast/data.ts';
 import { measureNeeds } from '../src/core/contrast/measure.ts';
@@ -69,7 +69,9 @@ export async function loadContrastData(store: Store, c: Contrast, exclusions: Ex
   if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
   const table = await readParticipants(store);
   const participants = table.rows.map((r) => Object.fromEntries(table.columns.map((col, i) => [col.name, r[i]])));
-  return { runId: run.runId, runParameters: run.parameters, toolVersion: run.toolVersion, data: { spectra: { ...axis, rows }, aperiodic, peaks, participants, exclusions } };
+  // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)
+  const recordedReferences = c.reference === 'recorded' ? await readRecordedReferences(store, run.runId) : undefined;
+  return { runId: run.runId, runParameters: run.parameters, toolVersion: run.toolVersion, data: { spectra: { ...axis, rows }, aperiodic, peaks, participants, exclusions, recordedReferences } };
 }
 
 export interface CompareRun extends CompareResult {

@@ -10,8 +10,8 @@
  */
 import path from 'node:path';
 import { sleepArchitecture } from '../src/core/hypnogram/architecture.ts';
-import { parseChannelLabel } from '../src/core/montage/labels.ts';
-import { electrodePosition } from '../src/core/montage/positions.ts';
+import { ChannelSelectionError, selectChannels as selectChannelList } from '../src/core/montage/channel-selection.ts';
+import { channelPosition } from '../src/core/montage/positions.ts';
 import { planReferences, Rereferencer, type MontageChannel, type ReferenceKind, type ReferencePlan } from '../src/core/montage/reference.ts';
 import { DEFAULT_REJECTION, spectralOutliers, timeDomainCheck, type RejectionOptions } from '../src/core/quality/epoch-rejection.ts';
 import { aperiodicQuality } from '../src/core/quality/aperiodic-quality.ts';
@@ -134,9 +134,6 @@ export function resolveIngestParams(partial: Partial<IngestParams> = {}): Ingest
     quality: { ...DEFAULT_INGEST_PARAMS.quality, ...(partial.quality ?? {}) },
     scoring: { ...structuredClone(DEFAULT_SCORING_PARAMS as ScoringParams), ...structuredClone(partial.scoring ?? {}) },
   };
-  if (p.references.includes('bipolar') && p.bipolarPairs.length === 0) {
-    throw new PipelineError('parameters', null, 'references', "reference 'bipolar' needs bipolar pairs (e.g. F3-C3)");
-  }
   return p;
 }
 
@@ -161,16 +158,6 @@ export interface PipelineProgress {
   total: number;
 }
 
-/** Multiplier from a physical dimension to µV, or null when it is not a voltage. Empty → µV (assumed). */
-export function toMicrovolts(dimension: string): number | null {
-  const d = dimension.trim();
-  if (d === '' || /^(µ|μ|u)V$/i.test(d)) return 1;
-  if (d === 'mV') return 1e3;
-  if (d === 'V') return 1e6;
-  if (d === 'nV') return 1e-3;
-  return null;
-}
-
 interface Selected {
   signal: EdfSignal;
   montage: MontageChannel;
@@ -178,41 +165,17 @@ interface Selected {
   toUv: number;
 }
 
-const matches = (list: string[], s: EdfSignal, electrode: string) =>
-  list.some((x) => x.trim().toUpperCase() === s.label.trim().toUpperCase() || x.trim().toUpperCase() === electrode.toUpperCase());
-
+/** The analysed signals and their stored names (src/core/montage/channel-selection.ts). */
 function selectChannels(edf: EdfFile, rec: CohortRecording, params: IngestParams): Selected[] {
-  const bids = new Map((rec.bids?.channels ?? []).map((c) => [c.name.trim().toUpperCase(), c]));
-  const out: Selected[] = [];
-  for (const s of edf.header.signals) {
-    if (s.isAnnotation) continue;
-    const parsed = parseChannelLabel(s.label, s.physicalDimension);
-    const b = bids.get(s.label.trim().toUpperCase());
-    // BIDS _channels.tsv: its type overrides the label's; status 'bad' leaves the channel out
-    const type = b?.type ? b.type.toUpperCase() : parsed.type;
-    if (b?.status === 'bad') continue;
-    const wanted = params.includeChannels.length > 0 ? matches(params.includeChannels, s, parsed.electrode) : params.channelTypes.includes(type);
-    if (!wanted || matches(params.excludeChannels, s, parsed.electrode)) continue;
-    const toUv = toMicrovolts(s.physicalDimension);
-    if (toUv === null) {
-      throw new PipelineError('channels', edf.file, 'physical dimension', `channel "${s.label}" has unit "${s.physicalDimension}", not a voltage`);
-    }
-    if (!(s.fsHz > 0)) throw new PipelineError('channels', edf.file, 'samples per record', `channel "${s.label}" has sampling rate ${s.fsHz} Hz`);
-    out.push({ signal: s, montage: { ...parsed, type, fsHz: s.fsHz }, name: parsed.electrode, toUv });
+  const signals = edf.header.signals.filter((s) => !s.isAnnotation);
+  try {
+    return selectChannelList(signals, rec.bids?.channels ?? [], params).map((c) => ({
+      signal: signals.find((s) => s.index === c.index)!, montage: c.montage, name: c.name, toUv: c.toUv,
+    }));
+  } catch (e) {
+    if (e instanceof ChannelSelectionError) throw new PipelineError('channels', edf.file, e.field, e.message, { cause: e });
+    throw e;
   }
-  if (out.length === 0) {
-    throw new PipelineError('channels', edf.file, 'label', `no channel selected (types ${params.channelTypes.join(', ')}${params.includeChannels.length ? `, include ${params.includeChannels.join(', ')}` : ''})`);
-  }
-  // Two channels with the same electrode (e.g. C3-M2 and C3-M1): name both by the derivation.
-  const count = new Map<string, number>();
-  for (const c of out) count.set(c.name, (count.get(c.name) ?? 0) + 1);
-  for (const c of out) if (count.get(c.name)! > 1 && c.montage.reference) c.name = `${c.montage.electrode}-${c.montage.reference}`;
-  const seen = new Set<string>();
-  for (const c of out) {
-    if (seen.has(c.name)) throw new PipelineError('channels', edf.file, 'label', `two channels are both "${c.name}"; exclude one of them`);
-    seen.add(c.name);
-  }
-  return out;
 }
 
 async function readHypnogram(edf: EdfFile, rec: CohortRecording, params: IngestParams): Promise<RecordingScoring> {
@@ -668,7 +631,7 @@ export async function processOpened(
 
     const arch = sleepArchitecture(stages, epochS, scoring.lights);
     const channels: ChannelRow[] = selected.map((s) => {
-      const pos = electrodePosition(s.montage.electrode ?? '');
+      const pos = channelPosition(s.name);
       return {
         channel: s.name, type: s.montage.type, unit: 'µV', fsHz: s.signal.fsHz, prefilter: s.signal.prefilter.trim() || null,
         x: pos?.x ?? null, y: pos?.y ?? null, z: pos?.z ?? null, label: s.signal.label.trim(), referenceElectrode: s.montage.reference,

@@ -66,7 +66,19 @@ export async function databaseFacts(store: Store, file: string, c: Contrast, run
     channelsPerRecording: { min: Number(ch[0]?.lo ?? 0), max: Number(ch[0]?.hi ?? 0) },
     epochs: stages,
     fitRangesHz: await storedFitRanges(store, run.runId, stage, c.reference, c.averaging, c.aperiodicMethod),
+    recordedDerivations: await recordedDerivations(store, run.runId),
   };
+}
+
+/** The EEG channels of a run as recorded: each reference a label names, with its number of recordings. */
+export async function recordedDerivations(store: Store, runId: string): Promise<NonNullable<DatabaseFacts['recordedDerivations']>> {
+  const r = await rows(
+    store,
+    `SELECT c.channel, c.reference_electrode, count(DISTINCT c.recording_id) AS n FROM channels c JOIN recordings r USING (recording_id)
+      WHERE r.run_id = $1 AND c.type = 'EEG' GROUP BY 1, 2 ORDER BY 1, 2 NULLS FIRST`,
+    [runId],
+  );
+  return r.map((x) => ({ channel: String(x.channel), referenceElectrode: x.reference_electrode === null ? null : String(x.reference_electrode), recordings: Number(x.n) }));
 }
 
 /** Opens the database read-only and gathers its facts. */

@@ -252,3 +252,16 @@ export async function readPeaks(store: Store, q: Omit<SpectraQuery, 'channels'> 
     bandwidthHz: Number(r.bandwidth_hz),
   }));
 }
+
+/** What each stored channel of a run was recorded against, as its label names it (channels.reference_electrode). */
+export async function readRecordedReferences(store: Store, runId: string): Promise<{ subject: string; session: string | null; channel: string; referenceElectrode: string | null }[]> {
+  const rows = await query(
+    store,
+    `SELECT r.subject, r.session, c.channel, c.reference_electrode
+       FROM channels c JOIN recordings r USING (recording_id)
+      WHERE r.run_id = $1
+      ORDER BY r.subject, r.session NULLS FIRST, c.recording_id, c.channel`,
+    [runId],
+  );
+  return rows.map((r) => ({ subject: str(r.subject), session: strOrNull(r.session), channel: str(r.channel), referenceElectrode: strOrNull(r.reference_electrode) }));
+}

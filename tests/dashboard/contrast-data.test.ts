@@ -67,6 +67,9 @@ describe('contrast data over duckdb-wasm equals the command line loader', () => 
       expect(a.spectra.rows.map(plain)).toEqual(b.spectra.rows.map(plain));
       expect(a.aperiodic).toEqual(b.aperiodic);
       expect(a.peaks).toEqual(b.peaks);
+      // each stored channel's recorded reference, read by both engines (reference 'recorded' here)
+      expect(b.recordedReferences!.length).toBeGreaterThan(0);
+      expect(a.recordedReferences).toEqual(b.recordedReferences);
       const bySubject = (x: typeof a.participants) => [...x].sort((p, q) => String(p.subject).localeCompare(String(q.subject)));
       expect(bySubject(a.participants)).toEqual(bySubject(b.participants));
       // the fixture's fits are stored under another method name than 'fit': both loaders find none,

@@ -121,6 +121,9 @@ describe('band check, robustness and report data over duckdb-wasm equal the comm
     const ours = await databaseFacts(client, `http://127.0.0.1:1/data/${file.split('/').pop()}`, runList, sigma);
     expect(ours).toEqual(theirs);
     expect(ours.recordings).toBe(36); // demo-cohort/participants.tsv lists 36 participants, one recording each
+    // demo-cohort/scenario.json: 13 EEG channels, every one recorded against the electrode labelled REF
+    const demoChannels = ['C3', 'C4', 'Cz', 'F3', 'F4', 'Fz', 'M1', 'M2', 'O1', 'O2', 'P3', 'P4', 'Pz'];
+    expect(ours.recordedDerivations).toEqual(demoChannels.map((channel) => ({ channel, referenceElectrode: 'REF', recordings: 36 })));
     expect(await storedFitRanges(client, ours.runId, 'N2', 'recorded', 'mean', 'fit')).toEqual(ours.fitRangesHz);
   });
 });

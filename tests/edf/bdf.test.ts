@@ -302,7 +302,7 @@ describe('a separate scoring file can be BDF+', () => {
     const exe = compileWithLibedf(tmp.dir, 'scoring_bdf', writerSource([{ label: 'Pleth', dim: '', pmin: -1, pmax: 1, dmin: -8388608, dmax: 8388607, fs: 1, expr: '0' }], stages, 240, 'X', { fileType: 'EDFLIB_FILETYPE_BDFPLUS' }));
     const path = join(tmp.dir, 'scoring.bdf');
     execFileSync(exe, [path, join(tmp.dir, 'scoring.raw')]);
-    const h = await readScoring(path, { separateAnnotationFile: true, recordingDurationS: 240 });
+    const h = await readScoring(path);
     expect(h.stages).toEqual(['W', 'W', 'N1', 'N2', 'N2', 'N3', 'R', 'R']);
     expect(h.source).toBe('annotations:scoring.bdf');
   });

@@ -7,7 +7,7 @@ import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openEdf, type EdfFile } from '../../ingest/edf/reader.ts';
-import { toMicrovolts } from '../../ingest/pipeline.ts';
+import { toMicrovolts } from '../../src/core/montage/channel-selection.ts';
 import { concat, goodBdfPlusSpec, goodEdfPlusSpec, goodRecord, handEdf, int16le, makeTmpDir, type HandEdf } from './helpers.ts';
 
 let tmp: ReturnType<typeof makeTmpDir>;

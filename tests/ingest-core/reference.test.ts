@@ -46,11 +46,12 @@ describe('planReferences', () => {
     expect(rec.LOC).toBeDefined(); // recorded keeps every given channel
   });
 
-  it('skips mastoid and average references for derivations against different references', () => {
+  it('skips linked mastoids and average for derivations against different references; AASM derivations are the contralateral-mastoid reference', () => {
     const deriv = ['EEG F4-M1', 'EEG C4-M1', 'EEG O2-M1', 'EEG C3-M2'].map((l) => ch(l));
     const { plans, skips } = planReferences(deriv, { references: ['recorded', 'linked-mastoids', 'average', 'contralateral-mastoid'] });
-    expect(plans.map((p) => p.reference)).toEqual(['recorded']);
-    expect(skips.map((s) => s.reference)).toEqual(['linked-mastoids', 'average', 'contralateral-mastoid']);
+    expect(plans.map((p) => p.reference)).toEqual(['recorded', 'contralateral-mastoid']);
+    expect(plans[1].outputs.map((o) => o.channel)).toEqual(['F4', 'C4', 'O2', 'C3']);
+    expect(skips.map((s) => s.reference)).toEqual(['linked-mastoids', 'average']);
     for (const s of skips) expect(s.reason).toMatch(/different references/);
   });
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { electrodePosition, projectToDisk } from '../../src/core/montage/positions.ts';
+import { channelPosition, electrodePosition, pairPositions, projectToDisk } from '../../src/core/montage/positions.ts';
 
 // The 19 electrodes of the 10-20 system (Jasper 1958; 10-10 names per ACNS guideline 2016).
 const TEN_TWENTY = ['Fp1', 'Fp2', 'F7', 'F3', 'Fz', 'F4', 'F8', 'T7', 'C3', 'Cz', 'C4', 'T8', 'P7', 'P3', 'Pz', 'P4', 'P8', 'O1', 'O2'];
@@ -49,5 +49,31 @@ describe('10-10 positions', () => {
     const t8 = projectToDisk(electrodePosition('T8')!);
     expect(t8.x).toBeCloseTo(1, 12);
     expect(Math.hypot(fpz.x, fpz.y)).toBeCloseTo(1, 12);
+  });
+});
+
+describe('channelPosition and pairPositions', () => {
+  // 10-20 rule (Jasper 1958): along the nasion–inion arc Fpz, Fz, Cz, Pz, Oz lie at 10, 30, 50,
+  // 70 and 90 %; the 10-10 extension puts POz at 80 %. So the arc midpoint of Fpz–Cz is Fz and
+  // that of Pz–Oz is POz.
+  it('a scalp pair sits halfway between its electrodes on the sphere', () => {
+    for (const [pair, mid] of [['Fpz-Cz', 'Fz'], ['Pz-Oz', 'POz'], ['Cz-Fpz', 'Fz']]) {
+      const p = channelPosition(pair)!;
+      const q = electrodePosition(mid)!;
+      expect([p.x, p.y, p.z].map((v) => Number(v.toFixed(12)))).toEqual([q.x, q.y, q.z].map((v) => Number(v.toFixed(12))));
+    }
+  });
+  it('an electrode against a mastoid, ear lobe or unnamed reference sits at the electrode', () => {
+    expect(channelPosition('C3-M2')).toEqual(electrodePosition('C3'));
+    expect(channelPosition('C3-A2')).toEqual(electrodePosition('C3'));
+    expect(channelPosition('C3-REF')).toEqual(electrodePosition('C3'));
+    expect(channelPosition('C3')).toEqual(electrodePosition('C3'));
+    expect(channelPosition('LOC')).toBeUndefined();
+    expect(channelPosition('E1-M2')).toBeUndefined();
+  });
+  it('pairPositions gives both ends of a scalp pair only', () => {
+    expect(pairPositions('Pz-Oz')).toEqual([electrodePosition('Pz'), electrodePosition('Oz')]);
+    expect(pairPositions('C3-M2')).toBeNull();
+    expect(pairPositions('C3')).toBeNull();
   });
 });

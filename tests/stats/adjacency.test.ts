@@ -52,6 +52,16 @@ print(json.dumps(sorted(edges)))`,
     expect(delaunayNeighbours(['Cz'])).toEqual([[]]);
   });
 
+  it('places scalp pairs halfway between their electrodes and refuses two channels at one site', () => {
+    // 10-20 midline (Jasper 1958): Fpz 10 %, Fz 30 %, Cz 50 %, Pz 70 %, Oz 90 % of nasion–inion,
+    // 45° per 20 % on the idealised sphere (positions.ts). Fpz-Cz sits at Fz, 45° from Cz: chord
+    // 2·sin 22.5° = 0.765; Pz-Oz sits at POz, 67.5° from Cz: chord 2·sin 33.75° = 1.111
+    expect(edgeSet(distanceNeighbours(['Fpz-Cz', 'Cz', 'Pz-Oz'], 0.8))).toEqual(['0-1']);
+    expect(edgeSet(distanceNeighbours(['Fpz-Cz', 'Cz', 'Pz-Oz'], 1.12))).toEqual(['0-1', '1-2']);
+    // C3-M2 and C3-M1 are both measured at C3
+    expect(() => delaunayNeighbours(['C3-M2', 'C3-M1', 'C4'])).toThrow('channels "C3-M2" and "C3-M1" sit at one position; give a neighbour table instead');
+  });
+
   it('parses a neighbour TSV, symmetrises it and fails on malformed lines', () => {
     const text = 'channel\tneighbours\nC3\tCz, F3\nCz\tC4\n# comment\n\nF3\tFz\n';
     const nb = parseNeighbourTsv(text, ['C3', 'Cz', 'C4', 'F3']);

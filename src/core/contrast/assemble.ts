@@ -6,6 +6,7 @@
 import type { Contrast } from './spec.ts';
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from './data.ts';
 import { measureLayout, measureValues, type MeasureLayout } from './measure.ts';
+import { mixedRecordedReferences } from './recorded-references.ts';
 import type { ContrastInput, Design } from '../stats/index.ts';
 import type { Stage } from '../stages.ts';
 
@@ -174,6 +175,13 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
       continue;
     }
     kept.push(cand);
+  }
+
+  // 'recorded' spectra of one channel recorded against different references are not pooled
+  if (c.reference === 'recorded' && data.recordedReferences) {
+    const used = kept.flatMap((k) => conds.map((d) => ({ subject: k.subject, session: d.session ?? sessionsOf.get(k.subject)!.values().next().value ?? null })));
+    const mixed = mixedRecordedReferences(channels, used, data.recordedReferences);
+    if (mixed) throw new ContrastDataError(mixed);
   }
 
   const n = kept.length;

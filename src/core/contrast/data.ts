@@ -53,6 +53,14 @@ export interface Exclusion {
   reason: string;
 }
 
+/** What a stored channel was recorded against, as its EDF label names it (channels.reference_electrode; null: none named). */
+export interface RecordedReference {
+  subject: string;
+  session: string | null;
+  channel: string;
+  referenceElectrode: string | null;
+}
+
 export interface ContrastData {
   spectra: CohortSpectra;
   aperiodic: AperiodicRow[];
@@ -60,4 +68,6 @@ export interface ContrastData {
   /** one row per subject; values typed as stored (numbers for numeric columns) */
   participants: Record<string, string | number | null>[];
   exclusions: Exclusion[];
+  /** for a contrast on the 'recorded' reference: each channel's recorded reference (absent: not checked) */
+  recordedReferences?: RecordedReference[];
 }

@@ -1,6 +1,8 @@
 /**
  * Channel neighbour graphs for spatial clustering: neighbours[c] lists the indices of the
  * channels adjacent to channel c in the given channel list; always symmetric, never self-loops.
+ * Positions by channel name (channelPosition): an electrode at its 10-10 site, a scalp pair
+ * (Pz-Oz) halfway between its electrodes, an electrode against a mastoid (C3-M2) at the electrode.
  * - delaunayNeighbours: Delaunay triangulation (d3-delaunay) of the 2-D scalp projection of the
  *   10-10 positions, optionally pruning edges longer than maxDistance (chord on the unit sphere).
  * - distanceNeighbours: every pair closer than maxDistance (chord on the unit sphere; 1 unit ≈
@@ -10,7 +12,7 @@
  * frequency only): pass null as the graph.
  */
 import { Delaunay } from 'd3-delaunay';
-import { electrodePosition, projectToDisk, type Position3 } from './positions.ts';
+import { channelPosition, projectToDisk, type Position3 } from './positions.ts';
 
 export class AdjacencyError extends Error {
   constructor(
@@ -25,7 +27,7 @@ export class AdjacencyError extends Error {
 
 function positionsOf(channels: string[]): Position3[] {
   return channels.map((name) => {
-    const p = electrodePosition(name);
+    const p = channelPosition(name);
     if (!p) throw new AdjacencyError(`channel "${name}" has no 10-10 position; give a neighbour table instead`, 'channel', name);
     return p;
   });
@@ -61,6 +63,12 @@ export function delaunayNeighbours(channels: string[], options: { maxDistance?: 
   const n = channels.length;
   if (n < 2) return symmetric(n, []);
   const flat = pos.map(projectToDisk);
+  // a triangulation leaves a repeated point without neighbours: say so instead
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < i; j++) {
+      if (chord(pos[i], pos[j]) < 1e-9) throw new AdjacencyError(`channels "${channels[j]}" and "${channels[i]}" sit at one position; give a neighbour table instead`, 'channel', channels[i]);
+    }
+  }
   const delaunay = Delaunay.from(flat, (p) => p.x, (p) => p.y);
   const pairs: [number, number][] = [];
   for (let i = 0; i < n; i++) {

@@ -2,6 +2,7 @@
 // EDF+ 2003 §2.1.3.7 recommends "Type Sensor" labels such as "EEG Fpz-Cz"; electrode names
 // follow the 10-20/10-10 system (ACNS guideline 2016), mastoids M1/M2, older earlobes A1/A2.
 // Pure: no I/O.
+import { isScalpSite } from './positions.ts';
 
 export type ChannelType = 'EEG' | 'EOG' | 'EMG' | 'ECG' | 'RESP' | 'MISC';
 
@@ -97,4 +98,78 @@ export function parseChannelLabel(label: string, physicalDimension?: string): Ch
     else type = 'MISC';
   }
   return { raw, type, electrode, reference };
+}
+
+/** Mastoids M1/M2 and the older ear-lobe names A1/A2, by the mastoid whose side they share. */
+export const MASTOIDS: Readonly<Record<string, 'M1' | 'M2'>> = { M1: 'M1', A1: 'M1', M2: 'M2', A2: 'M2' };
+
+/** 'left' for odd numbers, 'right' for even, 'midline' for z, null when not a lateral 10-10 name (M1/A1 left, M2/A2 right). */
+export function hemisphere(electrode: string): 'left' | 'right' | 'midline' | null {
+  const e = electrode.trim().toUpperCase();
+  if (MASTOIDS[e]) return MASTOIDS[e] === 'M1' ? 'left' : 'right';
+  if (/Z$/.test(e)) return 'midline';
+  const m = /(\d+)$/.exec(e);
+  if (!m) return null;
+  return Number(m[1]) % 2 === 1 ? 'left' : 'right';
+}
+
+/**
+ * What an EEG channel is recorded against, read from its label (electrode and reference as
+ * parseChannelLabel splits them). 10-20 sides (ACNS guideline 2016): odd left, even right, z
+ * midline; M1/A1 left, M2/A2 right. Rules (ours where the trade has no spelling):
+ *  - common: no reference in the label ("C3"), or the words REF/Reference ("C3-REF"): the
+ *    amplifier's common reference, its site not named.
+ *  - contralateral-mastoid: a lateral scalp electrode against the mastoid or ear lobe of the
+ *    other side (C3-M2, C4-M1, older C3-A2): the AASM derivations F4-M1, C4-M1, O2-M1 and
+ *    backups F3-M2, C3-M2, O1-M2 (AASM Manual for the Scoring of Sleep, v2.x).
+ *  - ipsilateral-mastoid (C3-M1) and midline-mastoid (Pz-M1): one mastoid, no standard scheme.
+ *  - linked-mastoids: a scalp electrode against both mastoids or both ear lobes, spelled with
+ *    both names: M1M2, M1+M2, A1A2, A1+A2 (either order). Abbreviations without a standard
+ *    spelling (LE, "linked") are not guessed: they are 'other'.
+ *  - bipolar: both electrodes 10-10 scalp sites (Fpz-Cz, Pz-Oz, C3-Cz).
+ *  - other: anything else (a mastoid or eye electrode against something, AVG, LE…).
+ */
+export type DerivationKind = 'common' | 'contralateral-mastoid' | 'ipsilateral-mastoid' | 'midline-mastoid' | 'linked-mastoids' | 'bipolar' | 'other';
+
+export interface Derivation {
+  kind: DerivationKind;
+  /** What the channel is referred to: null for the common reference; M1, M2, A1, A2; M1+M2 or A1+A2; a scalp electrode (Oz); else the label's text (AVG). */
+  referredTo: string | null;
+}
+
+const COMMON_WORDS = /^(REF|REFERENCE)$/i;
+const LINKED = /^(M1\+?M2|M2\+?M1|A1\+?A2|A2\+?A1)$/i;
+
+/**
+ * The reference a label names, in one spelling for comparisons: null for the common reference
+ * (none named, REF, Reference), M1+M2 / A1+A2 for linked mastoids / ear lobes, the 10-10
+ * spelling of an electrode, else the text in capitals.
+ */
+export function referenceKey(reference: string | null): string | null {
+  if (reference === null) return null;
+  const r = reference.trim();
+  if (r === '' || COMMON_WORDS.test(r)) return null;
+  if (LINKED.test(r)) return r.toUpperCase().startsWith('A') ? 'A1+A2' : 'M1+M2';
+  return canonicalElectrode(r) ?? r.toUpperCase();
+}
+
+/** Classifies an EEG derivation from its electrode and reference (see DerivationKind). */
+export function classifyDerivation(electrode: string, reference: string | null): Derivation {
+  const referredTo = referenceKey(reference);
+  if (referredTo === null) return { kind: 'common', referredTo };
+  if (!isScalpSite(electrode)) return { kind: 'other', referredTo };
+  if (referredTo === 'M1+M2' || referredTo === 'A1+A2') return { kind: 'linked-mastoids', referredTo };
+  const mastoid = MASTOIDS[referredTo];
+  if (mastoid) {
+    const side = hemisphere(electrode);
+    if (side === 'midline') return { kind: 'midline-mastoid', referredTo };
+    return { kind: side === hemisphere(mastoid) ? 'ipsilateral-mastoid' : 'contralateral-mastoid', referredTo };
+  }
+  if (isScalpSite(referredTo)) return { kind: 'bipolar', referredTo };
+  return { kind: 'other', referredTo };
+}
+
+/** The stored channel name: both electrodes of a scalp-to-scalp derivation (Pz-Oz), else the electrode (C3). */
+export function derivationName(electrode: string, derivation: Derivation): string {
+  return derivation.kind === 'bipolar' ? `${electrode}-${derivation.referredTo}` : electrode;
 }

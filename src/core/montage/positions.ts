@@ -90,6 +90,41 @@ export function electrodePosition(name: string): Position3 | undefined {
 }
 
 /**
+ * Position of a stored channel by its name: an electrode (C3) at its 10-10 position; a
+ * scalp-to-scalp pair (Pz-Oz) at the midpoint of its two electrodes on the sphere (the chord
+ * midpoint pushed out to the unit sphere, i.e. halfway along the great circle: Fpz-Cz at Fz,
+ * Pz-Oz at POz, as the 10-20 rule spaces them); an electrode against a mastoid, ear lobe or any
+ * non-scalp reference (C3-M2) at the electrode. Undefined when the first part has no position.
+ */
+export function channelPosition(name: string): Position3 | undefined {
+  const whole = electrodePosition(name);
+  if (whole) return whole;
+  const m = /^\s*([A-Za-z0-9]+)\s*-\s*(\S.*?)\s*$/.exec(name);
+  if (!m) return undefined;
+  const a = electrodePosition(m[1]);
+  if (!a) return undefined;
+  const b = isScalpSite(m[2]) ? electrodePosition(m[2]) : undefined;
+  if (!b) return a;
+  const mid = { x: (a.x + b.x) / 2, y: (a.y + b.y) / 2, z: (a.z + b.z) / 2 };
+  const r = Math.hypot(mid.x, mid.y, mid.z);
+  // opposite electrodes have no unique midpoint (never a pair of one cap's sites)
+  if (r < 1e-9) return undefined;
+  return { x: mid.x / r, y: mid.y / r, z: mid.z / r };
+}
+
+/** The two electrode positions of a scalp-to-scalp pair name (Pz-Oz), or null when the name is not one. */
+export function pairPositions(name: string): [Position3, Position3] | null {
+  const m = /^\s*([A-Za-z0-9]+)\s*-\s*([A-Za-z0-9]+)\s*$/.exec(name);
+  if (!m || !isScalpSite(m[1]) || !isScalpSite(m[2])) return null;
+  return [electrodePosition(m[1])!, electrodePosition(m[2])!];
+}
+
+/** True for a 10-10 scalp site (mastoids M1/M2 and ear lobes A1/A2 are reference sites, not scalp). */
+export function isScalpSite(name: string): boolean {
+  return !/^(M|A)[12]$/i.test(name.trim()) && electrodePosition(name) !== undefined;
+}
+
+/**
  * Azimuthal equidistant projection for scalp maps: the vertex at (0, 0), the equator on the
  * unit circle, nose up (+y), right ear +x (common practice for topographic plots).
  */

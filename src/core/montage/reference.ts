@@ -4,30 +4,45 @@
  * A recording is planned once (`planReferences`), then each epoch is re-referenced into reused
  * Float32Array buffers (`Rereferencer.apply`). Every output channel is
  *   out[t] = x_source[t] − r[t],   r[t] = Σ_j w_j · x_j[t]   (one reference signal per plan entry)
- * so a common average costs one pass over the scalp channels per epoch, not one per output.
+ * so a common average costs one pass over the scalp channels per epoch, not one per output; an
+ * output without a reference signal is the channel as recorded.
  *
  * What the montage supports is decided from the channel labels (their parsed electrode and
- * reference, src/core/montage/labels.ts):
+ * reference, and what that derivation is: classifyDerivation in src/core/montage/labels.ts):
  *  - monopolar: every selected EEG channel has the same reference (all unnamed, e.g. "EEG C3", or
  *    all "-REF", or all "-M2"). Such a montage supports every reference below; a mastoid or scalp
  *    electrode that *is* the common reference has the signal 0 against it (its potential relative
  *    to itself), so "C3-M2, M1-M2" still gives linked mastoids: C3 − 0.5·M1.
- *  - derivations against different references (e.g. "C3-M2", "C4-M1"): the common reference is
- *    unknown, so linked mastoids, contralateral mastoid and average are skipped with a reason —
- *    never faked from the derivations.
+ *  - derivations against different references (e.g. "C3-M2", "C4-M1", "Pz-Oz"): the common
+ *    reference is unknown, so nothing is computed across channels of different references. A
+ *    derivation that already is a reference scheme is stored under it as recorded: C3-M2, C4-M1,
+ *    C3-A2 (the AASM derivations) under contralateral-mastoid; C3-M1M2 under linked-mastoids;
+ *    a scalp-to-scalp pair (Pz-Oz) under bipolar. Average is skipped with a reason — never faked
+ *    from the derivations.
  * Rules (common practice; choices of ours are marked):
- *  - linked-mastoids: ch − (M1 + M2)/2 (A1/A2 accepted for M1/M2). Outputs: the EEG scalp channels.
+ *  - linked-mastoids: ch − (M1 + M2)/2 (A1/A2 accepted for M1/M2). Outputs: the EEG scalp
+ *    channels. Without both mastoids against the common reference: the channels recorded
+ *    against linked mastoids, as recorded.
  *  - contralateral-mastoid: left-hemisphere (odd-numbered) ch − M2, right (even) ch − M1
  *    (AASM derivations C4-M1, C3-M2). Midline (z) channels have no contralateral side: our rule
  *    leaves them out of this reference (they remain in 'recorded' and 'linked-mastoids').
+ *    Without both mastoids against the common reference: the channels recorded against the
+ *    contralateral mastoid, as recorded.
  *  - average: ch − mean over the EEG scalp channels (type EEG with a 10-10 position; mastoids,
  *    EOG, EMG, ECG and unknown sites excluded); a scalp electrode that is the common reference
  *    enters the mean as 0. Our rule: at least 3 scalp sites, otherwise skipped.
- *  - recorded: every given channel as stored, named by its electrode (or its label if none).
- *  - bipolar: user-given pairs "F3-C3" = F3 − C3, both against the same reference.
- * Channels combined must share one sampling rate; otherwise the reference is skipped.
+ *  - recorded: every given channel as stored, named by its electrode (or its label if none); an
+ *    EEG scalp-to-scalp derivation by both electrodes (Pz-Oz).
+ *  - bipolar: the scalp-to-scalp derivations as recorded, and user-given pairs "F3-C3" = F3 − C3,
+ *    both against the same reference (a pair recorded as such is not computed again).
+ * A derivation stored under a reference keeps the first channel of a name (C3-M2 before a later
+ * C3-A2, which is skipped with a reason). Channels combined must share one sampling rate;
+ * otherwise the reference is skipped.
  */
-import { electrodePosition } from './positions.ts';
+import { classifyDerivation, derivationName, hemisphere, MASTOIDS, type DerivationKind } from './labels.ts';
+import { isScalpSite } from './positions.ts';
+
+export { hemisphere };
 
 export type ReferenceKind = 'recorded' | 'linked-mastoids' | 'contralateral-mastoid' | 'average' | 'bipolar';
 
@@ -84,7 +99,7 @@ export interface ReferenceSkip {
 
 export interface ReferenceRequest {
   references: readonly ReferenceKind[];
-  /** Bipolar pairs "A-B" (electrode names), required when 'bipolar' is requested. */
+  /** Bipolar pairs "A-B" (electrode names) to compute for 'bipolar', besides the scalp-to-scalp derivations recorded as such. */
   bipolarPairs?: readonly string[];
 }
 
@@ -92,25 +107,12 @@ export class ReferencePlanError extends Error {
   override name = 'ReferencePlanError';
 }
 
-const MASTOIDS: Record<string, 'M1' | 'M2'> = { M1: 'M1', A1: 'M1', M2: 'M2', A2: 'M2' };
-
 const norm = (s: string | null) => (s == null ? null : s.trim().toUpperCase());
 
-/** 'left' for odd numbers, 'right' for even, 'midline' for z, null when not a lateral 10-10 name. */
-export function hemisphere(electrode: string): 'left' | 'right' | 'midline' | null {
-  const e = electrode.trim().toUpperCase();
-  if (MASTOIDS[e]) return MASTOIDS[e] === 'M1' ? 'left' : 'right';
-  if (/Z$/.test(e)) return 'midline';
-  const m = /(\d+)$/.exec(e);
-  if (!m) return null;
-  return Number(m[1]) % 2 === 1 ? 'left' : 'right';
-}
-
-/** True for a scalp site of the 10-10 system (mastoids and ear lobes excluded). */
-function isScalp(electrode: string | null): boolean {
-  if (!electrode) return false;
-  const e = electrode.toUpperCase();
-  return !MASTOIDS[e] && electrodePosition(e) !== undefined;
+/** Name of a channel as recorded: both electrodes of an EEG scalp-to-scalp derivation (Pz-Oz), else the electrode, else the label. */
+function recordedName(c: MontageChannel): string {
+  if (!c.electrode) return c.raw.trim();
+  return c.type.toUpperCase() === 'EEG' ? derivationName(c.electrode, classifyDerivation(c.electrode, c.reference)) : c.electrode;
 }
 
 /**
@@ -136,7 +138,10 @@ export function planReferences(
     const key = MASTOIDS[e] ?? e;
     if (!byElectrode.has(key)) byElectrode.set(key, i);
   }
-  const notMonopolar = `channels are stored as derivations against different references (${[...refs].map((r) => r ?? 'none').join(', ')}); the common reference is unknown`;
+  // the references as the labels spell them, the first spelling of each
+  const spelled = new Map<string | null, string>();
+  for (const { c } of eeg) if (!spelled.has(norm(c.reference))) spelled.set(norm(c.reference), c.reference?.trim() ?? 'none');
+  const notMonopolar = `channels are stored as derivations against different references (${[...spelled.values()].join(', ')}); the common reference is unknown`;
   /** Index of an electrode, 'zero' when it is the common reference, undefined when missing. */
   const locate = (electrode: string): number | 'zero' | undefined => {
     const e = MASTOIDS[electrode.toUpperCase()] ?? electrode.toUpperCase();
@@ -148,14 +153,31 @@ export function planReferences(
     const rates = new Set(indices.map((i) => channels[i].fsHz));
     return rates.size === 1 ? [...rates][0] : null;
   };
-  const scalp = eeg.filter(({ c }) => isScalp(c.electrode));
+  const scalp = eeg.filter(({ c }) => isScalpSite(c.electrode!));
+  const kinds = channels.map((c) => (c.type.toUpperCase() === 'EEG' && c.electrode ? classifyDerivation(c.electrode, c.reference) : null));
+  /** The EEG channels recorded as a derivation of one kind, as pass-through outputs; the first of a name is kept, later ones skipped with a reason. */
+  const stored = (kind: DerivationKind & ReferenceKind): PlannedOutput[] => {
+    const outputs: PlannedOutput[] = [];
+    for (const { c, i } of eeg) {
+      const d = kinds[i]!;
+      if (d.kind !== kind) continue;
+      const channel = derivationName(c.electrode!, d);
+      const first = outputs.find((o) => o.channel === channel);
+      if (first) {
+        skips.push({ reference: kind, reason: `${c.electrode}-${c.reference}: ${channel} is already stored from ${channels[first.source].electrode}-${channels[first.source].reference}` });
+        continue;
+      }
+      outputs.push({ channel, source: i, signal: -1, referredTo: d.referredTo });
+    }
+    return outputs;
+  };
 
   for (const reference of new Set(request.references)) {
     if (reference === 'recorded') {
       plans.push({
         reference,
         // every selected channel as stored (EOG/EMG too, if the caller selected them)
-        outputs: channels.map((c, i) => ({ channel: c.electrode ?? c.raw.trim(), source: i, signal: -1, referredTo: c.reference })),
+        outputs: channels.map((c, i) => ({ channel: recordedName(c), source: i, signal: -1, referredTo: c.reference })),
         signals: [],
         fsHz: channels.length > 0 ? fsOf(channels.map((_, i) => i)) : null,
       });
@@ -163,14 +185,25 @@ export function planReferences(
     }
     if (reference === 'bipolar') {
       const pairs = request.bipolarPairs ?? [];
-      if (pairs.length === 0) {
-        skips.push({ reference, reason: 'no bipolar pairs were given' });
+      const plan: ReferencePlan = { reference, outputs: [], signals: [], fsHz: null };
+      // scalp-to-scalp derivations as recorded (Pz-Oz), then the pairs asked for
+      for (const o of stored('bipolar')) {
+        const fs = channels[o.source].fsHz;
+        if (plan.fsHz != null && plan.fsHz !== fs) {
+          skips.push({ reference, reason: `${o.channel}: recorded at ${fs} Hz, other bipolar channels at ${plan.fsHz} Hz` });
+          continue;
+        }
+        plan.fsHz = fs;
+        plan.outputs.push(o);
+      }
+      if (pairs.length === 0 && plan.outputs.length === 0) {
+        skips.push({ reference, reason: 'no bipolar pairs were given and no scalp-to-scalp derivation is recorded' });
         continue;
       }
-      const plan: ReferencePlan = { reference, outputs: [], signals: [], fsHz: null };
       for (const pair of pairs) {
         const m = /^\s*([A-Za-z0-9]+)\s*-\s*([A-Za-z0-9]+)\s*$/.exec(pair);
         if (!m) throw new ReferencePlanError(`invalid bipolar pair '${pair}' (expected e.g. 'F3-C3')`);
+        if (plan.outputs.some((o) => o.channel.toUpperCase() === `${m[1]}-${m[2]}`.toUpperCase())) continue; // recorded as such
         const a = locate(m[1]);
         const b = locate(m[2]);
         if (a === undefined || b === undefined) {
@@ -202,18 +235,29 @@ export function planReferences(
       if (plan.outputs.length > 0) plans.push(plan);
       continue;
     }
+    const m1 = monopolar ? locate('M1') : undefined;
+    const m2 = monopolar ? locate('M2') : undefined;
+    if ((reference === 'linked-mastoids' || reference === 'contralateral-mastoid') && (m1 === undefined || m2 === undefined)) {
+      // not computable: the derivations recorded against this scheme, as recorded
+      const outputs = stored(reference);
+      const fs = fsOf(outputs.map((o) => o.source));
+      if (outputs.length > 0 && fs != null) {
+        plans.push({ reference, outputs, signals: [], fsHz: fs });
+        continue;
+      }
+      if (outputs.length > 0) skips.push({ reference, reason: 'the derivations recorded against this reference have different sampling rates' });
+      else if (!monopolar) skips.push({ reference, reason: notMonopolar });
+      else {
+        const missing = [m1 === undefined ? 'M1/A1' : null, m2 === undefined ? 'M2/A2' : null].filter(Boolean).join(' and ');
+        skips.push({ reference, reason: `mastoid ${missing} not recorded` });
+      }
+      continue;
+    }
     if (!monopolar) {
       skips.push({ reference, reason: notMonopolar });
       continue;
     }
-    if (reference === 'linked-mastoids' || reference === 'contralateral-mastoid') {
-      const m1 = locate('M1');
-      const m2 = locate('M2');
-      if (m1 === undefined || m2 === undefined) {
-        const missing = [m1 === undefined ? 'M1/A1' : null, m2 === undefined ? 'M2/A2' : null].filter(Boolean).join(' and ');
-        skips.push({ reference, reason: `mastoid ${missing} not recorded` });
-        continue;
-      }
+    if ((reference === 'linked-mastoids' || reference === 'contralateral-mastoid') && m1 !== undefined && m2 !== undefined) {
       const plan: ReferencePlan = { reference, outputs: [], signals: [], fsHz: null };
       const signalOf = (parts: (number | 'zero')[]): ReferenceSignal => {
         const idx = parts.filter((p): p is number => p !== 'zero');
@@ -242,7 +286,7 @@ export function planReferences(
       continue;
     }
     // average
-    const zeroScalp = commonRef != null && isScalp(commonRef) && !byElectrode.has(commonRef) ? 1 : 0;
+    const zeroScalp = commonRef != null && isScalpSite(commonRef) && !byElectrode.has(commonRef) ? 1 : 0;
     const nSites = scalp.length + zeroScalp;
     if (nSites < 3) {
       skips.push({ reference, reason: `average reference needs at least 3 scalp EEG sites, found ${nSites}` });

@@ -36,6 +36,14 @@ export interface DatabaseFacts {
   epochs: StageEpochCounts[];
   /** distinct aperiodic fit ranges stored for the analysis' stage, reference and averaging */
   fitRangesHz: [number, number][];
+  /** the EEG channels as recorded: the reference each label names (channels.reference_electrode, null: none) and in how many recordings */
+  recordedDerivations?: RecordedDerivation[];
+}
+
+export interface RecordedDerivation {
+  channel: string;
+  referenceElectrode: string | null;
+  recordings: number;
 }
 
 export interface LedgerCounts {

@@ -13,6 +13,7 @@ import type { ScalarTest } from '../verdict/scalar-test.ts';
 import { fmt } from '../verdict/rules.ts';
 import { ingestParameterFacts, type DatabaseFacts, type IngestParameterFacts, type LedgerCounts } from './facts.ts';
 import { REFERENCE_LIST, type ReferenceKey } from './references.ts';
+import { referenceKey } from '../montage/labels.ts';
 
 export type ReportableResult = (CompareResult | BandCheckResult) & { database?: { file: string; runId: string; toolVersion: string; ingestParameters: unknown } };
 
@@ -29,6 +30,8 @@ export interface MethodsParameters {
   exclusions: Exclusion[];
   statistics: Record<string, unknown>;
   ledger: LedgerCounts | null;
+  /** the analysis' EEG channels as recorded (the reference each label names), when the facts hold them */
+  recordedDerivations?: DatabaseFacts['recordedDerivations'];
   references: string[];
   note: string;
 }
@@ -104,6 +107,40 @@ function spectralSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFa
     `The epoch spectra of a stage were combined by ${avg}; a stage with fewer than ${f.minEpochs} clean epochs was flagged. ` +
     `Spectra were stored for these references: ${refsText}${bipolar}. This analysis used the reference ${REFERENCE_WORDS[c.reference] ?? c.reference} and the ${c.averaging} over epochs of stage ${stagesOf(c).join(' and ')}.`
   );
+}
+
+// How the analysis' reference was obtained from channels recorded as derivations (planReferences, src/core/montage/reference.ts).
+const DERIVATION_RULES: Record<string, string> = {
+  recorded: "The 'recorded' spectra of a channel were pooled only where every recording named the same reference for it.",
+  'linked-mastoids': 'A channel recorded against both mastoids (a label such as C3-M1M2) was used as recorded; a channel recorded against a common reference was referred to the mean of M1 and M2.',
+  'contralateral-mastoid': 'A channel recorded against the contralateral mastoid (the AASM derivations, e.g. C3-M2 and C4-M1) was used as recorded; a channel recorded against a common reference was referred to the contralateral mastoid (left − M2, right − M1).',
+  average: 'The common average was computed only in recordings whose EEG channels share one reference.',
+  bipolar: 'A scalp-to-scalp derivation stored in a file (e.g. Pz-Oz) was used as recorded; other pairs were computed as the difference of two channels recorded against the same reference.',
+};
+
+/** The derivations the analysed channels were recorded as (from the EDF labels) and how the reference was obtained from them. */
+function derivationText(facts: DatabaseFacts | null, c: Contrast, channels: string[]): string | null {
+  const all = facts?.recordedDerivations;
+  if (!all || all.length === 0) return null;
+  const wanted = new Set(channels);
+  // per channel: reference (one spelling) → recordings
+  const byChannel = new Map<string, Map<string, number>>();
+  for (const d of all) {
+    if (wanted.size > 0 && !wanted.has(d.channel)) continue;
+    const ref = referenceKey(d.referenceElectrode) ?? 'the common reference (none named in the label)';
+    if (!byChannel.has(d.channel)) byChannel.set(d.channel, new Map());
+    const refs = byChannel.get(d.channel)!;
+    refs.set(ref, (refs.get(ref) ?? 0) + d.recordings);
+  }
+  if (byChannel.size === 0) return null;
+  const parts = [...byChannel].map(([ch, refs]) => `${ch} against ${list([...refs].map(([r, n]) => `${r} in ${n} recording${n === 1 ? '' : 's'}`))}`);
+  return `EEG channels as recorded (the reference named in each EDF channel label): ${parts.join('; ')}. ${DERIVATION_RULES[c.reference] ?? ''}`.trim();
+}
+
+/** The channel names an analysis used: the contrast's list, or the result's (none for an average over all: every channel). */
+function analysedChannels(c: Contrast, resultChannels: string[]): string[] {
+  if (c.channels !== 'all') return c.channels;
+  return c.channelAverage ? [] : resultChannels;
 }
 
 const stagesOf = (c: Contrast): string[] => (c.design === 'paired' && c.stages ? [...c.stages] : [c.stage]);
@@ -270,9 +307,12 @@ export function methodsReport(result: ReportableResult, facts: DatabaseFacts | n
   const usesFit = isBand || ['residual', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center'].includes(c.measure);
   const n = isBand ? (result as BandCheckResult).n : (result as CompareResult).n;
   const stats = isBand ? bandStatistics(result as BandCheckResult, refs) : compareStatistics(result as CompareResult, refs);
+  const channels = analysedChannels(c, isBand ? (result as BandCheckResult).channels : (result as CompareResult).statistics.channels);
+  const derivations = derivationText(facts, c, channels);
   const parts: string[] = [`# Methods${isBand ? `: band check of ${(result as BandCheckResult).band.name}` : ''}`, `*${RESEARCH_NOTE}*`];
   if (f) {
     parts.push('## Recordings and spectra', spectralSection(f, c, facts, refs));
+    if (derivations) parts.push(derivations);
     parts.push('## Epoch rejection', rejectionSection(f, c, facts, refs));
     const ap = aperiodicSection(f, facts, c, usesFit, refs);
     if (ap) parts.push('## Aperiodic model', ap);
@@ -298,6 +338,7 @@ export function methodsReport(result: ReportableResult, facts: DatabaseFacts | n
     exclusions: result.exclusions,
     statistics: stats.json,
     ledger,
+    ...(facts?.recordedDerivations ? { recordedDerivations: facts.recordedDerivations.filter((d) => channels.length === 0 || channels.includes(d.channel)) } : {}),
     references: keys.map((k) => REFERENCE_LIST[k]),
     note: RESEARCH_NOTE,
   };

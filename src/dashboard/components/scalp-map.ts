@@ -1,7 +1,8 @@
 // Scalp maps: electrode positions projected onto the disk (src/core/montage/positions.ts) and a
-// value between electrodes by inverse-distance weighting, drawn with Observable Plot.
+// value between electrodes by inverse-distance weighting, drawn with Observable Plot. A scalp
+// pair (Pz-Oz) is drawn at its midpoint, with a line between its two electrodes.
 import * as Plot from '@observablehq/plot';
-import { electrodePosition, projectToDisk, type Position3 } from '../../core/montage/positions.ts';
+import { channelPosition, pairPositions, projectToDisk, type Position3 } from '../../core/montage/positions.ts';
 
 export interface MapElectrode {
   channel: string;
@@ -9,22 +10,30 @@ export interface MapElectrode {
   x: number;
   y: number;
   value: number;
+  /** a scalp pair's two electrodes on the disk (Pz and Oz for Pz-Oz) */
+  pair?: { x1: number; y1: number; x2: number; y2: number };
 }
 
 /** Largest disk radius drawn; electrodes below it (mastoids, ear lobes) are left off the map. */
 export const MAP_RADIUS = 1.05;
 
-/** Disk positions of the channels that have one: stored x, y, z when given, else the 10-10 table. */
+/** Disk positions of the channels that have one: stored x, y, z when given, else from the name (10-10 table; a scalp pair at its midpoint). */
 export function mapElectrodes(
   values: readonly { channel: string; value: number; position?: Position3 | null }[],
 ): MapElectrode[] {
   const out: MapElectrode[] = [];
   for (const v of values) {
-    const p = v.position ?? electrodePosition(v.channel);
+    const p = v.position ?? channelPosition(v.channel);
     if (!p || !Number.isFinite(v.value)) continue;
     const d = projectToDisk(p);
     if (Math.hypot(d.x, d.y) > MAP_RADIUS) continue;
-    out.push({ channel: v.channel, x: d.x, y: d.y, value: v.value });
+    const ends = pairPositions(v.channel);
+    if (!ends) {
+      out.push({ channel: v.channel, x: d.x, y: d.y, value: v.value });
+      continue;
+    }
+    const [a, b] = ends.map(projectToDisk);
+    out.push({ channel: v.channel, x: d.x, y: d.y, value: v.value, pair: { x1: a.x, y1: a.y, x2: b.x, y2: b.y } });
   }
   return out;
 }
@@ -98,6 +107,7 @@ export function scalpMapPlot(electrodes: readonly MapElectrode[], o: ScalpMapOpt
     marks: [
       Plot.raster({ x1: -1, x2: 1, y1: -1, y2: 1, fill: (x: number, y: number) => inverseDistance(electrodes, x, y), pixelSize: 3, interpolate: null }),
       Plot.line(outline, { x: 'x', y: 'y', z: 'part', stroke: '#1d232b', strokeWidth: 1.5 }),
+      Plot.link(electrodes.filter((e) => e.pair), { x1: (e: MapElectrode) => e.pair!.x1, y1: (e: MapElectrode) => e.pair!.y1, x2: (e: MapElectrode) => e.pair!.x2, y2: (e: MapElectrode) => e.pair!.y2, stroke: '#1d232b', strokeWidth: 1, strokeDasharray: '3,2' }),
       Plot.dot(electrodes, { x: 'x', y: 'y', r: 4.5, fill: 'value', stroke: (e: MapElectrode) => (marked.has(e.channel) ? 'white' : '#1d232b'), strokeWidth: (e: MapElectrode) => (marked.has(e.channel) ? 2.5 : 0.8) }),
       Plot.text(electrodes, { x: 'x', y: 'y', text: 'channel', dy: -10, fontSize: 10, fill: '#1d232b', stroke: 'white', strokeWidth: 3, paintOrder: 'stroke' }),
     ],

@@ -1,6 +1,6 @@
 // What a contrast reads, over duckdb-wasm: the dashboard's twin of ingest/compare.ts
 // (loadContrastData), filling src/core/contrast's ContrastData the same way, row for row.
-import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from '../../core/contrast/data.ts';
+import type { AperiodicRow, ContrastData, Exclusion, PeakRow, RecordedReference, SpectrumRow } from '../../core/contrast/data.ts';
 import { measureNeeds } from '../../core/contrast/measure.ts';
 import type { Contrast } from '../../core/contrast/spec.ts';
 import type { Stage } from '../../core/stages.ts';
@@ -174,6 +174,26 @@ export async function contrastPeaks(db: SqlClient, q: SpectraKey, method: string
   }));
 }
 
+/** What each stored channel of a run was recorded against, as its label names it (channels.reference_electrode). */
+export async function contrastRecordedReferences(db: SqlClient, runId: string): Promise<RecordedReference[]> {
+  const t = await db.query(
+    `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, c.channel::VARCHAR AS channel, c.reference_electrode::VARCHAR AS reference_electrode
+     FROM ${COHORT}.channels c JOIN ${COHORT}.recordings r USING (recording_id)
+     WHERE r.run_id = ${literal(runId)}
+     ORDER BY r.subject, r.session NULLS FIRST, c.recording_id, c.channel`,
+  );
+  const subject = stringColumn(t, 'subject');
+  const channel = stringColumn(t, 'channel');
+  const session = t.getChild('session')!;
+  const reference = t.getChild('reference_electrode')!;
+  return subject.map((s, i) => ({
+    subject: s,
+    session: (session.get(i) as string | null) ?? null,
+    channel: channel[i],
+    referenceElectrode: (reference.get(i) as string | null) ?? null,
+  }));
+}
+
 /** The participants table as the contrast reads it: numbers for numeric columns, text otherwise. */
 export async function contrastParticipants(db: SqlClient, schema: CohortSchema): Promise<ContrastData['participants']> {
   const p = await participants(db, schema);
@@ -199,7 +219,7 @@ export async function loadContrastData(
   // all queries issued together (duckdb-wasm runs them one after another in its worker, without
   // waits between); rows joined with concat, not push(...rows), which overflows the call stack
   // at cohort size (10⁵ rows)
-  const [perStage, participantRows] = await Promise.all([
+  const [perStage, participantRows, recordedReferences] = await Promise.all([
     Promise.all(
       stages.map((stage) => {
         const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
@@ -211,6 +231,8 @@ export async function loadContrastData(
       }),
     ),
     contrastParticipants(db, schema),
+    // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)
+    c.reference === 'recorded' ? contrastRecordedReferences(db, run.runId) : Promise.resolve(undefined),
   ]);
   let axis = { freqStartHz: 0, freqStepHz: 0, nBins: 0 };
   for (const [m] of perStage) {
@@ -226,6 +248,6 @@ export async function loadContrastData(
   if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
   return {
     runId: run.runId,
-    data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions] },
+    data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences },
   };
 }

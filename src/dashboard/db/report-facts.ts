@@ -61,6 +61,18 @@ export async function stageEpochCounts(db: SqlClient, runId: string): Promise<Da
   });
 }
 
+/** The EEG channels of a run as recorded: each reference a label names, with its number of recordings. */
+export async function recordedDerivations(db: SqlClient, runId: string): Promise<NonNullable<DatabaseFacts['recordedDerivations']>> {
+  const rows = tableToRows(
+    await db.query(
+      `SELECT c.channel::VARCHAR AS channel, c.reference_electrode::VARCHAR AS reference_electrode, count(DISTINCT c.recording_id)::DOUBLE AS n
+       FROM ${COHORT}.channels c JOIN ${COHORT}.recordings r USING (recording_id)
+       WHERE r.run_id = ${literal(runId)} AND c.type = 'EEG' GROUP BY 1, 2 ORDER BY 1, 2 NULLS FIRST`,
+    ),
+  );
+  return rows.map((x) => ({ channel: String(x.channel), referenceElectrode: x.reference_electrode === null || x.reference_electrode === undefined ? null : String(x.reference_electrode), recordings: Number(x.n) }));
+}
+
 /** Everything a methods report states about the database, for the analysis' stage, reference and averaging. */
 export async function databaseFacts(db: SqlClient, source: string, runs: readonly RunInfo[], c: Contrast): Promise<DatabaseFacts> {
   const run = chooseRun(runs);
@@ -75,5 +87,6 @@ export async function databaseFacts(db: SqlClient, source: string, runs: readonl
     channelsPerRecording: await channelsPerRecording(db, run.runId),
     epochs: await stageEpochCounts(db, run.runId),
     fitRangesHz: await storedFitRanges(db, run.runId, stage, c.reference, c.averaging, c.aperiodicMethod),
+    recordedDerivations: await recordedDerivations(db, run.runId),
   };
 }
