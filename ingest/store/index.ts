@@ -5,4 +5,4 @@ export type * from './bundle.ts';
 export { DatabaseBusyError, DiskFullError, StoreError } from './errors.ts';
 export { canonicalJson, recordingIdFor, runIdentity } from './identity.ts';
 export { TABLES, TABLE_NAMES, type TableDef, type ColumnDef } from './schema.ts';
-export * from './read.ts';
+export * from '../../src/analysis/store-read.ts';

@@ -24,7 +24,7 @@ import { mkdtempSync, rmSync, statfsSync, statSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import path from 'node:path';
 import { syntheticSpec } from '../../src/core/simulate/synthetic-database.ts';
-import { writeSyntheticDatabase, type SyntheticWriteResult } from '../../ingest/store/synthetic.ts';
+import { writeSyntheticDatabase, type SyntheticWriteResult } from '../../src/simulation/synthetic-store.ts';
 import { cachedSyntheticDatabase, cachedSyntheticPath } from './synthetic-cache.ts';
 
 interface Point {

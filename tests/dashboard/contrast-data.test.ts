@@ -6,7 +6,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { loadContrastData as loadCli } from '../../ingest/compare.ts';
+import { loadContrastData as loadCli } from '../../src/analysis/compare-runner.ts';
 import { openStore } from '../../ingest/store/index.ts';
 import { compare } from '../../src/core/contrast/run.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';

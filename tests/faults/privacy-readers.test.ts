@@ -11,8 +11,8 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, w
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ensureDashboardBuilt } from '../../ingest/dashboard.ts';
-import { DATABASE_URL_PATH, startDashboardServer } from '../../ingest/server/serve.ts';
+import { ensureDashboardBuilt } from '../../src/server/launcher.ts';
+import { DATABASE_URL_PATH, startDashboardServer } from '../../src/server/serve.ts';
 import { faultEdfBytes, STAGES_10 } from './fixture.ts';
 import { run } from './helpers.ts';
 

@@ -9,8 +9,8 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_SCENARIO, scenarioStamp } from '../../ingest/simulate/index.ts';
-import { runIngest } from '../../ingest/ingest.ts';
+import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_SCENARIO, scenarioStamp } from '../../src/simulation/index.ts';
+import { runIngest } from '../../ingest/run.ts';
 import { resolveIngestParams } from '../../ingest/pipeline.ts';
 import { runIdentity } from '../../ingest/store/identity.ts';
 

@@ -5,7 +5,7 @@
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
-import { writeEdfFile, type EdfWriteSignal } from '../../ingest/edf/writer.ts';
+import { writeEdfFile, type EdfWriteSignal } from '../../src/simulation/edf-writer.ts';
 import { Random } from '../../src/core/stats/random.ts';
 import type { Stage } from '../../src/core/stages.ts';
 

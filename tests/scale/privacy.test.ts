@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { writeEdfFile } from '../../ingest/edf/writer.ts';
+import { writeEdfFile } from '../../src/simulation/edf-writer.ts';
 import { mergeShards } from '../../ingest/store/merge.ts';
 import { TABLES } from '../../ingest/store/schema.ts';
 import { Random } from '../../src/core/stats/random.ts';

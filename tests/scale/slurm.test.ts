@@ -3,10 +3,10 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { runIngest } from '../../ingest/ingest.ts';
+import { runIngest } from '../../ingest/run.ts';
 import { openStore } from '../../ingest/store/database.ts';
 import { cohortQualityPass } from '../../ingest/store/merge.ts';
-import { shellQuote, writeClusterScripts } from '../../ingest/slurm/script.ts';
+import { shellQuote, writeClusterScripts } from '../../src/cluster/slurm-script.ts';
 import { compareDatabases, firstBitDifference, queryRows, spectraBits, writeSmallCohort } from './helpers.ts';
 import { startSlurm, waitFor, type SlurmCluster } from './slurm-harness.ts';
 

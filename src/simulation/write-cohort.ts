@@ -6,9 +6,9 @@
  */
 import { mkdir, readFile, writeFile } from 'node:fs/promises';
 import path from 'node:path';
-import { listSubjects, MODEL_TEXT, NightGenerator, planNight, type CohortTruth, type NightPlan, type Scenario } from '../../src/core/simulate/index.ts';
-import { EdfWriter, type EdfWriteSpec } from '../edf/writer.ts';
-import { parseScenario, ScenarioFileError } from './schema.ts';
+import { listSubjects, MODEL_TEXT, NightGenerator, planNight, type CohortTruth, type NightPlan, type Scenario } from '../core/simulate/index.ts';
+import { EdfWriter, type EdfWriteSpec } from './edf-writer.ts';
+import { parseScenario, ScenarioFileError } from './scenario-schema.ts';
 
 /** Physical range of every EEG signal, µV: with digital −32768 … 32767 one step is 0.1 µV. */
 export const PHYSICAL_MIN_UV = -3276.8;

@@ -2,9 +2,9 @@
 // cohort generator and the benchmarks. The header is written at open with "-1" data records
 // (EDF 1992 §2.1: unknown while recording) and the real count is filled in by close().
 import { open, type FileHandle } from 'node:fs/promises';
-import { EdfFormatError, EdfIoError } from './errors.ts';
-import { ANNOTATION_LABEL, FIXED_FIELDS, SIGNAL_FIELDS } from './header.ts';
-import { encodeTal } from './tal.ts';
+import { EdfFormatError, EdfIoError } from '../../ingest/edf/errors.ts';
+import { ANNOTATION_LABEL, FIXED_FIELDS, SIGNAL_FIELDS } from '../../ingest/edf/header.ts';
+import { encodeTal } from '../../ingest/edf/tal.ts';
 
 export interface EdfWriteSignal {
   label: string;

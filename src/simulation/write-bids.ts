@@ -14,12 +14,12 @@
  */
 import { copyFile, link, mkdir, readdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
-import { openEdf } from '../edf/reader.ts';
-import { readScoring } from '../hypnogram/read.ts';
-import type { ScoringOptions, ScoringWarning } from '../hypnogram/types.ts';
-import { BIDS_LABEL } from './bids.ts';
-import type { BidsChannel, Cohort, CohortProblem, CohortRecording } from './types.ts';
-import { CohortError } from './types.ts';
+import { openEdf } from '../../ingest/edf/reader.ts';
+import { readScoring } from '../../ingest/hypnogram/read.ts';
+import type { ScoringOptions, ScoringWarning } from '../../ingest/hypnogram/types.ts';
+import { BIDS_LABEL } from '../../ingest/cohort/bids.ts';
+import type { BidsChannel, Cohort, CohortProblem, CohortRecording } from '../../ingest/cohort/types.ts';
+import { CohortError } from '../../ingest/cohort/types.ts';
 
 /** BIDS version the layout follows (from memory of the specification's releases; confirm). */
 export const BIDS_VERSION = '1.9.0';

@@ -5,9 +5,9 @@
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { startDashboardServer } from './server/serve.ts';
+import { startDashboardServer } from './serve.ts';
 
-const repo = fileURLToPath(new URL('..', import.meta.url));
+const repo = fileURLToPath(new URL('../..', import.meta.url));
 export const APP_DIR = path.join(repo, 'dist', 'dashboard');
 
 export async function ensureDashboardBuilt(rebuild = false, log: (s: string) => void = () => {}): Promise<string> {

@@ -7,15 +7,15 @@
 import { writeFileSync, readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
-import type { Contrast } from '../../src/core/contrast/spec.ts';
-import type { Exclusion } from '../../src/core/contrast/data.ts';
-import { parseExclusionsTsv } from '../../src/core/contrast/exclusions.ts';
-import { DEFAULT_BANDS, SIGMA_PRESETS, checkBand, BandError, type Band } from '../../src/core/spectrum/bands.ts';
-import { bandCheck, type BandCheckOptions, type BandCheckResult } from '../../src/core/verdict/index.ts';
-import { openStore, readPeaks, type Store } from '../store/index.ts';
-import { loadContrastData, type LoadedContrast } from '../compare.ts';
-import { storedFitRanges } from '../report.ts';
-import { appendLedger } from '../ledger.ts';
+import type { Contrast } from '../core/contrast/spec.ts';
+import type { Exclusion } from '../core/contrast/data.ts';
+import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
+import { DEFAULT_BANDS, SIGMA_PRESETS, checkBand, BandError, type Band } from '../core/spectrum/bands.ts';
+import { bandCheck, type BandCheckOptions, type BandCheckResult } from '../core/verdict/index.ts';
+import { openStore, readPeaks, type Store } from '../../ingest/store/index.ts';
+import { loadContrastData, type LoadedContrast } from '../analysis/compare-runner.ts';
+import { storedFitRanges } from '../analysis/report-facts.ts';
+import { appendLedger } from '../analysis/ledger.ts';
 import { reportUserError } from './user-errors.ts';
 import { addContrastOptions, contrastOrExit, type Flags } from './compare.ts';
 

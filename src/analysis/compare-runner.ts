@@ -2,15 +2,15 @@
  * Reads what a contrast needs from a bandwise database (Node's DuckDB) into the pure form of
  * src/core/contrast, and runs it (its permutations on several threads when it is large).
  */
-import { openStore, listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, type Store } from './store/index.ts';
-import type { Contrast } from '../src/core/contrast/spec.ts';
-import type { ContrastData, Exclusion, SpectrumRow } from '../src/core/contrast/data.ts';
-import { measureNeeds } from '../src/core/contrast/measure.ts';
-import { assembleContrast, type AssembledContrast } from '../src/core/contrast/assemble.ts';
-import type { CompareResult } from '../src/core/contrast/run.ts';
-import type { ProgressCallback } from '../src/core/stats/index.ts';
+import { openStore, listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, type Store } from '../../ingest/store/index.ts';
+import type { Contrast } from '../core/contrast/spec.ts';
+import type { ContrastData, Exclusion, SpectrumRow } from '../core/contrast/data.ts';
+import { measureNeeds } from '../core/contrast/measure.ts';
+import { assembleContrast, type AssembledContrast } from '../core/contrast/assemble.ts';
+import type { CompareResult } from '../core/contrast/run.ts';
+import type { ProgressCallback } from '../core/stats/index.ts';
 import { compareOnThreads, defaultThreads, sharedAssembly } from './compare-threads.ts';
-import type { Stage } from '../src/core/stages.ts';
+import type { Stage } from '../core/stages.ts';
 
 export interface LoadedContrast {
   runId: string;

@@ -2,7 +2,7 @@
 import type { Command } from 'commander';
 import cliProgress from 'cli-progress';
 import path from 'node:path';
-import { ScenarioFileError, writeSimulatedCohort } from '../simulate/index.ts';
+import { ScenarioFileError, writeSimulatedCohort } from '../simulation/index.ts';
 
 const HELP = `
 Generates synthetic sleep EEG with a known ground truth, one night per subject, from a scenario

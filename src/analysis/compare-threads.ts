@@ -11,10 +11,10 @@
  */
 import { availableParallelism } from 'node:os';
 import { MessageChannel, Worker, receiveMessageOnPort, type MessagePort } from 'node:worker_threads';
-import type { AssembledContrast } from '../src/core/contrast/assemble.ts';
-import { finishCompare, permutationShare, prepareAssembled, type CompareResult } from '../src/core/contrast/run.ts';
-import type { Contrast } from '../src/core/contrast/spec.ts';
-import { ContrastInputError, concatNullMaxima, runPermutations, type Matrix, type NullMaxima, type ProgressCallback } from '../src/core/stats/index.ts';
+import type { AssembledContrast } from '../core/contrast/assemble.ts';
+import { finishCompare, permutationShare, prepareAssembled, type CompareResult } from '../core/contrast/run.ts';
+import type { Contrast } from '../core/contrast/spec.ts';
+import { ContrastInputError, concatNullMaxima, runPermutations, type Matrix, type NullMaxima, type ProgressCallback } from '../core/stats/index.ts';
 import type { CompareWorkReply, CompareWorkRequest } from './compare-worker.ts';
 
 const BOOTSTRAP = new URL('./compare-worker-bootstrap.mjs', import.meta.url);

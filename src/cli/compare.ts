@@ -5,11 +5,11 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import cliProgress from 'cli-progress';
-import { MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../../src/core/contrast/spec.ts';
-import { parseExclusionsTsv } from '../../src/core/contrast/exclusions.ts';
-import { BandError, parseBand } from '../../src/core/spectrum/bands.ts';
-import { compareDatabase, type CompareRun } from '../compare.ts';
-import { appendLedger } from '../ledger.ts';
+import { MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../core/contrast/spec.ts';
+import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
+import { BandError, parseBand } from '../core/spectrum/bands.ts';
+import { compareDatabase, type CompareRun } from '../analysis/compare-runner.ts';
+import { appendLedger } from '../analysis/ledger.ts';
 import { reportUserError } from './user-errors.ts';
 
 const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);

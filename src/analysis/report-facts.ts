@@ -4,11 +4,11 @@
  * the stored aperiodic fit ranges; and reads the ledger counts.
  */
 import type { DuckDBValue } from '@duckdb/node-api';
-import { openStore, type Store } from './store/index.ts';
-import { chooseRun } from './compare.ts';
+import { openStore, type Store } from '../../ingest/store/index.ts';
+import { chooseRun } from './compare-runner.ts';
 import { readLedger } from './ledger.ts';
-import { ledgerCounts, type DatabaseFacts, type LedgerCounts } from '../src/core/report/facts.ts';
-import type { Contrast } from '../src/core/contrast/spec.ts';
+import { ledgerCounts, type DatabaseFacts, type LedgerCounts } from '../core/report/facts.ts';
+import type { Contrast } from '../core/contrast/spec.ts';
 
 async function rows(store: Store, sql: string, values: DuckDBValue[]): Promise<Record<string, unknown>[]> {
   return store.exclusive(async () => (await store.connection.runAndReadAll(sql, values)).getRowObjectsJS());

@@ -4,9 +4,9 @@
  * support (ContrastInputError, ContrastDataError). The commands print them as one plain line,
  * without a stack trace, and exit with status 1; anything else is a bug and keeps its trace.
  */
-import { ContrastDataError } from '../../src/core/contrast/assemble.ts';
-import { ContrastInputError } from '../../src/core/stats/contrast.ts';
-import { StoreError } from '../store/errors.ts';
+import { ContrastDataError } from '../core/contrast/assemble.ts';
+import { ContrastInputError } from '../core/stats/contrast.ts';
+import { StoreError } from '../../ingest/store/errors.ts';
 
 export function isUserError(e: unknown): e is Error {
   return e instanceof StoreError || e instanceof ContrastInputError || e instanceof ContrastDataError;

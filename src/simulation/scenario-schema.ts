@@ -3,7 +3,7 @@
  * checkScenario (names that must exist). Errors name the file, the field path and the value.
  */
 import { z } from 'zod';
-import { checkScenario, ScenarioError, type Scenario } from '../../src/core/simulate/index.ts';
+import { checkScenario, ScenarioError, type Scenario } from '../core/simulate/index.ts';
 
 const stage = z.enum(['W', 'N1', 'N2', 'N3', 'R']);
 const positive = z.number().positive();

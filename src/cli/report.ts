@@ -6,9 +6,9 @@
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import type { Command } from 'commander';
-import { methodsReport, type ReportableResult } from '../../src/core/report/index.ts';
-import { databaseFactsOf, ledgerCountsOf } from '../report.ts';
-import { appendLedger } from '../ledger.ts';
+import { methodsReport, type ReportableResult } from '../core/report/index.ts';
+import { databaseFactsOf, ledgerCountsOf } from '../analysis/report-facts.ts';
+import { appendLedger } from '../analysis/ledger.ts';
 import { reportUserError } from './user-errors.ts';
 
 interface ReportFlags {

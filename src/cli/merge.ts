@@ -4,7 +4,7 @@
  * the cohort-level quality pass. Exit status 0 merged, 1 refused or failed (nothing written).
  */
 import { Command } from 'commander';
-import { mergeShards } from '../store/merge.ts';
+import { mergeShards } from '../../ingest/store/merge.ts';
 
 interface Flags {
   out: string;

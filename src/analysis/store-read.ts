@@ -4,10 +4,10 @@
  * beside it, ready for src/core/stats.
  */
 import type { DuckDBListVector, DuckDBValue } from '@duckdb/node-api';
-import type { Averaging, Reference } from './bundle.ts';
-import { StoreError } from './errors.ts';
-import type { Store } from './writer.ts';
-import type { Stage } from '../../src/core/stages.ts';
+import type { Averaging, Reference } from '../../ingest/store/bundle.ts';
+import { StoreError } from '../../ingest/store/errors.ts';
+import type { Store } from '../../ingest/store/writer.ts';
+import type { Stage } from '../core/stages.ts';
 
 export interface RunInfo {
   runId: string;

@@ -1,7 +1,7 @@
 /** `bandwise dashboard <cohort.duckdb> [--port P]`: the dashboard on 127.0.0.1 for one database. */
 import { Command, InvalidArgumentError } from 'commander';
-import { serveDashboard } from '../dashboard.ts';
-import { openStore } from '../store/database.ts';
+import { serveDashboard } from '../server/launcher.ts';
+import { openStore } from '../../ingest/store/database.ts';
 import { reportUserError } from './user-errors.ts';
 
 export function register(program: Command): void {

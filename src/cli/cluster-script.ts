@@ -5,7 +5,7 @@
  */
 import path from 'node:path';
 import { Command, InvalidArgumentError } from 'commander';
-import { writeClusterScripts } from '../slurm/script.ts';
+import { writeClusterScripts } from '../cluster/slurm-script.ts';
 
 interface Flags {
   out: string;

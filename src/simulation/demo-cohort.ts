@@ -8,8 +8,8 @@ import { createHash } from 'node:crypto';
 import { access, readFile, rm, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { listSubjects } from '../../src/core/simulate/index.ts';
-import { loadScenario, recordingName, scoringName, writeSimulatedCohort, type SimulatedCohortFiles, type SimulateProgress } from './write.ts';
+import { listSubjects } from '../core/simulate/index.ts';
+import { loadScenario, recordingName, scoringName, writeSimulatedCohort, type SimulatedCohortFiles, type SimulateProgress } from './write-cohort.ts';
 
 /** Raise when the generator's output changes for the same scenario. */
 export const GENERATOR_VERSION = 1;

@@ -9,10 +9,10 @@
 import { availableParallelism } from 'node:os';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
-import { REFERENCE_KINDS, type ReferenceKind } from '../../src/core/montage/reference.ts';
-import { parseBand } from '../../src/core/spectrum/bands.ts';
-import { parseShard, runIngest, type IngestEvent } from '../ingest.ts';
-import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../pipeline.ts';
+import { REFERENCE_KINDS, type ReferenceKind } from '../core/montage/reference.ts';
+import { parseBand } from '../core/spectrum/bands.ts';
+import { parseShard, runIngest, type IngestEvent } from '../../ingest/run.ts';
+import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../../ingest/pipeline.ts';
 
 export const EXIT_OK = 0;
 export const EXIT_FATAL = 1;

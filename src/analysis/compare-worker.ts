@@ -7,10 +7,10 @@
  * synchronously while it computes its own share).
  */
 import { parentPort, type MessagePort } from 'node:worker_threads';
-import type { AssembledContrast } from '../src/core/contrast/assemble.ts';
-import { permutationShare, prepareAssembled } from '../src/core/contrast/run.ts';
-import type { Contrast } from '../src/core/contrast/spec.ts';
-import { ContrastInputError, runPermutations, type NullMaxima } from '../src/core/stats/index.ts';
+import type { AssembledContrast } from '../core/contrast/assemble.ts';
+import { permutationShare, prepareAssembled } from '../core/contrast/run.ts';
+import type { Contrast } from '../core/contrast/spec.ts';
+import { ContrastInputError, runPermutations, type NullMaxima } from '../core/stats/index.ts';
 
 export interface CompareWorkRequest {
   contrast: Contrast;
@@ -26,7 +26,7 @@ export type CompareWorkReply =
   /** field and value are set for a ContrastInputError (rebuilt with its type in the main thread) */
   | { kind: 'error'; name: string; message: string; stack?: string; field?: string; value?: unknown };
 
-if (!parentPort) throw new Error('ingest/compare-worker.ts must run in a worker thread');
+if (!parentPort) throw new Error('src/analysis/compare-worker.ts must run in a worker thread');
 const port = parentPort;
 const post = (m: CompareWorkReply) => port.postMessage(m);
 

@@ -13,14 +13,14 @@
  */
 import { existsSync, statSync } from 'node:fs';
 import { createHash } from 'node:crypto';
-import { electrodePosition } from '../../src/core/montage/positions.ts';
-import { drawRecording, syntheticParticipant, type SyntheticCohortSpec, type SyntheticRecording } from '../../src/core/simulate/synthetic-database.ts';
-import { appendColumns } from './chunks.ts';
-import { openStore } from './database.ts';
-import { sortSpectra } from './spectra-order.ts';
-import { StoreError } from './errors.ts';
-import { recordingIdFor } from './identity.ts';
-import { tableDef } from './schema.ts';
+import { electrodePosition } from '../core/montage/positions.ts';
+import { drawRecording, syntheticParticipant, type SyntheticCohortSpec, type SyntheticRecording } from '../core/simulate/synthetic-database.ts';
+import { appendColumns } from '../../ingest/store/chunks.ts';
+import { openStore } from '../../ingest/store/database.ts';
+import { sortSpectra } from '../../ingest/store/spectra-order.ts';
+import { StoreError } from '../../ingest/store/errors.ts';
+import { recordingIdFor } from '../../ingest/store/identity.ts';
+import { tableDef } from '../../ingest/store/schema.ts';
 
 export interface SyntheticWriteOptions {
   /** Recordings per transaction (default 100: 32,000 spectra rows at 64 channels × 5 stages). */
