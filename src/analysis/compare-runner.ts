@@ -2,7 +2,8 @@
  * Reads what a contrast needs from a bandwise database (Node's DuckDB) into the pure form of
  * src/core/contrast, and runs it (its permutations on several threads when it is large).
  */
-import { openStore, listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, type Store } from '../../ingest/store/index.ts';
+import { openStore, type Store } from '../../ingest/store/index.ts';
+import { listRuns, readSpectra, readAperiodic, readPeaks, readParticipants } from './store-read.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
 import type { ContrastData, Exclusion, SpectrumRow } from '../core/contrast/data.ts';
 import { measureNeeds } from '../core/contrast/measure.ts';

@@ -12,12 +12,13 @@ import type { Exclusion } from '../core/contrast/data.ts';
 import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
 import { DEFAULT_BANDS, SIGMA_PRESETS, checkBand, BandError, type Band } from '../core/spectrum/bands.ts';
 import { bandCheck, type BandCheckOptions, type BandCheckResult } from '../core/verdict/index.ts';
-import { openStore, readPeaks, type Store } from '../../ingest/store/index.ts';
+import { openStore, type Store } from '../../ingest/store/index.ts';
+import { readPeaks } from '../analysis/store-read.ts';
 import { loadContrastData, type LoadedContrast } from '../analysis/compare-runner.ts';
 import { storedFitRanges } from '../analysis/report-facts.ts';
 import { appendLedger } from '../analysis/ledger.ts';
+import { addContrastOptions, contrastOrExit, type Flags } from './contrast-options.ts';
 import { reportUserError } from './user-errors.ts';
-import { addContrastOptions, contrastOrExit, type Flags } from './compare.ts';
 
 /** "sigma", "12-16" or "spindles:12.5-15" → a band (named presets: DEFAULT_BANDS, SIGMA_PRESETS). */
 export function parseBandArgument(text: string): Band {

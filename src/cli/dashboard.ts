@@ -1,6 +1,6 @@
 /** `bandwise dashboard <cohort.duckdb> [--port P]`: the dashboard on 127.0.0.1 for one database. */
 import { Command, InvalidArgumentError } from 'commander';
-import { serveDashboard } from '../server/launcher.ts';
+import { serveDashboard, waitForSignal } from '../server/launcher.ts';
 import { openStore } from '../../ingest/store/database.ts';
 import { reportUserError } from './user-errors.ts';
 
@@ -33,12 +33,4 @@ export function register(program: Command): void {
       await waitForSignal();
       await server.close();
     });
-}
-
-export function waitForSignal(): Promise<void> {
-  return new Promise((resolve) => {
-    const done = () => resolve();
-    process.once('SIGINT', done);
-    process.once('SIGTERM', done);
-  });
 }

@@ -11,10 +11,9 @@ import { runIngest } from '../../ingest/run.ts';
 import { compareDatabase } from '../analysis/compare-runner.ts';
 import { parseContrast, type ContrastJson } from '../core/contrast/spec.ts';
 import { RESEARCH_NOTE } from '../core/contrast/run.ts';
-import { serveDashboard } from '../server/launcher.ts';
-import { waitForSignal } from './dashboard.ts';
+import { serveDashboard, waitForSignal } from '../server/launcher.ts';
 import { bandCheckDatabase } from './band-check.ts';
-import { writeReport } from './report.ts';
+import { writeReport } from '../analysis/write-report.ts';
 import { appendLedger } from '../analysis/ledger.ts';
 
 export const DEMO_DATABASE = path.join(DEMO_DIR, 'demo.duckdb');

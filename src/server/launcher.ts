@@ -24,3 +24,12 @@ export async function serveDashboard(dbPath: string, port?: number, rebuild = fa
   const appDir = await ensureDashboardBuilt(rebuild, log);
   return startDashboardServer({ dbPath: path.resolve(dbPath), appDir, port });
 }
+
+/** Resolves on Ctrl-C (SIGINT) or SIGTERM: the end of serving. */
+export function waitForSignal(): Promise<void> {
+  return new Promise((resolve) => {
+    const done = () => resolve();
+    process.once('SIGINT', done);
+    process.once('SIGTERM', done);
+  });
+}
