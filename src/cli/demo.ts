@@ -12,7 +12,7 @@ import { compareDatabase } from '../analysis/compare-runner.ts';
 import { parseContrast, type ContrastJson } from '../core/contrast/spec.ts';
 import { RESEARCH_NOTE } from '../core/contrast/run.ts';
 import { serveDashboard, waitForSignal } from '../server/launcher.ts';
-import { bandCheckDatabase } from './band-check.ts';
+import { bandCheckDatabase } from '../analysis/band-check-runner.ts';
 import { writeReport } from '../analysis/write-report.ts';
 import { appendLedger } from '../analysis/ledger.ts';
 

@@ -5,7 +5,7 @@
 // robustness results from src/core/verdict. 200 permutations per test (the equality of the two
 // loaders does not depend on the count; kept small for time).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { loadBandCheckData as loadCli } from '../../src/cli/band-check.ts';
+import { loadBandCheckData as loadCli } from '../../src/analysis/band-check-runner.ts';
 import { databaseFacts as factsCli } from '../../src/analysis/report-facts.ts';
 import { openStore } from '../../ingest/store/index.ts';
 import type { ContrastData } from '../../src/core/contrast/data.ts';

@@ -17,7 +17,7 @@ import { register as registerBandCheck } from '../../src/cli/band-check.ts';
 import { register as registerReport } from '../../src/cli/report.ts';
 import { readLedger } from '../../src/analysis/ledger.ts';
 import { openStore } from '../../ingest/store/index.ts';
-import type { BandCheckRun } from '../../src/cli/band-check.ts';
+import type { BandCheckRun } from '../../src/analysis/band-check-runner.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 
 let db = '';
