@@ -14,7 +14,7 @@ import { MessageChannel, Worker, receiveMessageOnPort, type MessagePort } from '
 import type { AssembledContrast } from '../core/contrast/assemble.ts';
 import { finishCompare, permutationShare, prepareAssembled, type CompareResult } from '../core/contrast/run.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
-import { ContrastInputError, concatNullMaxima, runPermutations, type Matrix, type NullMaxima, type ProgressCallback } from '../core/stats/index.ts';
+import { PermutationTestInputError, concatNullMaxima, runPermutations, type Matrix, type NullMaxima, type ProgressCallback } from '../core/stats/index.ts';
 import type { CompareWorkReply, CompareWorkRequest } from './compare-worker.ts';
 
 const BOOTSTRAP = new URL('./compare-worker-bootstrap.mjs', import.meta.url);
@@ -46,8 +46,8 @@ export function sharedAssembly(a: AssembledContrast): AssembledContrast {
 }
 
 function workerError(m: Extract<CompareWorkReply, { kind: 'error' }>): Error {
-  const e = m.name === 'ContrastInputError' ? new ContrastInputError(m.message, m.field!, m.value) : new Error(m.message);
-  if (m.name !== 'ContrastInputError') e.name = m.name;
+  const e = m.name === 'PermutationTestInputError' ? new PermutationTestInputError(m.message, m.field!, m.value) : new Error(m.message);
+  if (m.name !== 'PermutationTestInputError') e.name = m.name;
   if (m.stack) e.stack = m.stack;
   return e;
 }

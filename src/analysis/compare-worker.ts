@@ -10,7 +10,7 @@ import { parentPort, type MessagePort } from 'node:worker_threads';
 import type { AssembledContrast } from '../core/contrast/assemble.ts';
 import { permutationShare, prepareAssembled } from '../core/contrast/run.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
-import { ContrastInputError, runPermutations, type NullMaxima } from '../core/stats/index.ts';
+import { PermutationTestInputError, runPermutations, type NullMaxima } from '../core/stats/index.ts';
 
 export interface CompareWorkRequest {
   contrast: Contrast;
@@ -23,7 +23,7 @@ export interface CompareWorkRequest {
 
 export type CompareWorkReply =
   | { kind: 'nulls'; part: number; nulls: NullMaxima }
-  /** field and value are set for a ContrastInputError (rebuilt with its type in the main thread) */
+  /** field and value are set for a PermutationTestInputError (rebuilt with its type in the main thread) */
   | { kind: 'error'; name: string; message: string; stack?: string; field?: string; value?: unknown };
 
 if (!parentPort) throw new Error('src/analysis/compare-worker.ts must run in a worker thread');
@@ -47,7 +47,7 @@ port.on('message', (req: CompareWorkRequest) => {
     const err = e instanceof Error ? e : new Error(String(e));
     post({
       kind: 'error', name: err.name, message: err.message, stack: err.stack,
-      ...(err instanceof ContrastInputError ? { field: err.field, value: err.value } : {}),
+      ...(err instanceof PermutationTestInputError ? { field: err.field, value: err.value } : {}),
     });
   } finally {
     req.progress.close();

@@ -1,10 +1,11 @@
 /**
- * One contrast end to end: check the input, build the design's point statistic, the point graph
- * and the permutation scheme (prepareContrast), run the permutations (permutation-engine.ts),
- * and turn observed maps and null maxima into the JSON-able result (finishContrast).
+ * One permutation test over channels × frequencies, end to end: check the input, build the
+ * design's point statistic, the point graph and the permutation scheme (preparePermutationTest),
+ * run the permutations (permutation-engine.ts), and turn observed maps and null maxima into the
+ * JSON-able result (finishPermutationTest).
  * Types and conventions are documented in index.ts.
  */
-import type { ContrastInput, ContrastOptions, ContrastResult, ClusterResult, Design, EffectResult, Matrix, StatisticName } from './index.ts';
+import type { PermutationTestInput, PermutationTestOptions, PermutationTestResult, ClusterResult, Design, EffectResult, Matrix, StatisticName } from './index.ts';
 import type { PointStatistic } from './point-statistic.ts';
 import { TwoGroupT } from './two-group-t.ts';
 import { OneSampleT } from './one-sample-t.ts';
@@ -19,19 +20,19 @@ import { correlationEffect, hedgesGOneSample, hedgesGTwoGroups, type EffectSize 
 import { permutationP, runPermutations, type NullMaxima, type PermutationTest, type ProgressCallback } from './permutation-engine.ts';
 import { delaunayNeighbours } from '../montage/adjacency.ts';
 
-export class ContrastInputError extends Error {
+export class PermutationTestInputError extends Error {
   constructor(
     message: string,
     readonly field: string,
     readonly value: unknown,
   ) {
     super(message);
-    this.name = 'ContrastInputError';
+    this.name = 'PermutationTestInputError';
   }
 }
 
-export interface PreparedContrast {
-  input: ContrastInput;
+export interface PreparedPermutationTest {
+  input: PermutationTestInput;
   statistic: StatisticName;
   test: PermutationTest;
   nSubjects: number;
@@ -46,7 +47,7 @@ export interface PreparedContrast {
 }
 
 function fail(field: string, value: unknown, message: string): never {
-  throw new ContrastInputError(`${field}: ${message}`, field, value);
+  throw new PermutationTestInputError(`${field}: ${message}`, field, value);
 }
 
 function checkFinite(field: string, values: ArrayLike<number>, length: number): void {
@@ -54,7 +55,7 @@ function checkFinite(field: string, values: ArrayLike<number>, length: number): 
   for (let i = 0; i < length; i++) if (!Number.isFinite(values[i])) fail(`${field}[${i}]`, values[i], 'not a finite number');
 }
 
-function checkMatrix(field: string, data: Matrix, input: ContrastInput): number {
+function checkMatrix(field: string, data: Matrix, input: PermutationTestInput): number {
   const P = input.channels.length * input.freqsHz.length;
   if (!(data instanceof Float32Array || data instanceof Float64Array)) fail(field, typeof data, 'expected a Float32Array or Float64Array');
   if (data.length % P !== 0) fail(field, data.length, `length is not a multiple of channels × bins = ${P}`);
@@ -77,7 +78,7 @@ function checkNuisance(design: { nuisance?: { name: string; values: ArrayLike<nu
   });
 }
 
-function buildKernel(input: ContrastInput, n: number, P: number, statistic: StatisticName | undefined): { kernel: PointStatistic; statistic: StatisticName; labels?: Uint8Array; d?: Float64Array } {
+function buildKernel(input: PermutationTestInput, n: number, P: number, statistic: StatisticName | undefined): { kernel: PointStatistic; statistic: StatisticName; labels?: Uint8Array; d?: Float64Array } {
   const design: Design = input.design;
   const data = input.data;
   switch (design.kind) {
@@ -131,7 +132,7 @@ function buildKernel(input: ContrastInput, n: number, P: number, statistic: Stat
   }
 }
 
-function tfceParameters(option: ContrastOptions['tfce']): TfceParameters | null {
+function tfceParameters(option: PermutationTestOptions['tfce']): TfceParameters | null {
   if (!option) return null;
   const p = { ...TFCE_DEFAULTS, ...(option === true ? {} : option) };
   for (const key of ['E', 'H', 'dh'] as const) if (!(p[key] > 0)) fail(`options.tfce.${key}`, p[key], 'must be positive');
@@ -139,7 +140,7 @@ function tfceParameters(option: ContrastOptions['tfce']): TfceParameters | null 
 }
 
 /** Checks the input and builds everything a permutation run needs (deterministic: same input → same object). */
-export function prepareContrast(input: ContrastInput, options: ContrastOptions = {}): PreparedContrast {
+export function preparePermutationTest(input: PermutationTestInput, options: PermutationTestOptions = {}): PreparedPermutationTest {
   const { channels, freqsHz } = input;
   if (!Array.isArray(channels) || channels.length === 0) fail('channels', channels, 'at least one channel is needed');
   if (new Set(channels).size !== channels.length) fail('channels', channels, 'channel names must be unique');
@@ -199,7 +200,7 @@ export function prepareContrast(input: ContrastInput, options: ContrastOptions =
 }
 
 /** Observed maps plus the null maxima of all permutations [0, count) → the result. */
-export function finishContrast(prepared: PreparedContrast, nulls: NullMaxima): ContrastResult {
+export function finishPermutationTest(prepared: PreparedPermutationTest, nulls: NullMaxima): PermutationTestResult {
   const { input, test, stat, df, effect } = prepared;
   const { scheme } = test;
   if (nulls.from !== 0 || nulls.to !== scheme.count) throw new RangeError(`null maxima cover [${nulls.from}, ${nulls.to}), expected [0, ${scheme.count})`);
@@ -231,7 +232,7 @@ export function finishContrast(prepared: PreparedContrast, nulls: NullMaxima): C
   const design = input.design;
   const kernelDf = test.kernel.df;
   const perPointDf = prepared.statistic === 'welch-t';
-  const result: ContrastResult = {
+  const result: PermutationTestResult = {
     design: design.kind,
     statistic: prepared.statistic,
     nSubjects: prepared.nSubjects,
@@ -276,9 +277,9 @@ function effectResult(e: EffectSize): EffectResult {
   return { kind: e.kind, value: Array.from(e.value), ciLow: Array.from(e.ciLow), ciHigh: Array.from(e.ciHigh), level: e.level, difference: e.difference ? Array.from(e.difference) : null };
 }
 
-/** The whole contrast on one thread. onProgress(done, total) is called as permutations finish. */
-export function runContrast(input: ContrastInput, options: ContrastOptions = {}, onProgress?: ProgressCallback): ContrastResult {
-  const prepared = prepareContrast(input, options);
+/** The whole test on one thread. onProgress(done, total) is called as permutations finish. */
+export function runPermutationTest(input: PermutationTestInput, options: PermutationTestOptions = {}, onProgress?: ProgressCallback): PermutationTestResult {
+  const prepared = preparePermutationTest(input, options);
   const nulls = runPermutations(prepared.test, { from: 0, to: prepared.test.scheme.count }, onProgress);
-  return finishContrast(prepared, nulls);
+  return finishPermutationTest(prepared, nulls);
 }
