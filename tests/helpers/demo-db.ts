@@ -17,7 +17,7 @@ import { runIdentity } from '../../ingest/store/identity.ts';
 const repo = fileURLToPath(new URL('../..', import.meta.url));
 const tmp = path.join(repo, 'tests', '.tmp');
 
-/** Hash of the code that writes the database (src/core and ingest), so a code change rebuilds it. */
+/** Hash of the code that writes the database (src/core, src/simulation and ingest), so a code change rebuilds it. */
 function codeHash(): string {
   const h = createHash('sha256');
   const walk = (dir: string) => {
@@ -28,6 +28,7 @@ function codeHash(): string {
     }
   };
   walk(path.join(repo, 'src', 'core'));
+  walk(path.join(repo, 'src', 'simulation'));
   walk(path.join(repo, 'ingest'));
   return h.digest('hex').slice(0, 8);
 }
