@@ -8,25 +8,14 @@ import { writeFileSync, readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
 import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
-import { DEFAULT_BANDS, SIGMA_PRESETS, checkBand, BandError, type Band } from '../core/spectrum/bands.ts';
+import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
 import { bandCheckDatabase, type BandCheckRun } from '../analysis/band-check-runner.ts';
 import { appendLedger } from '../analysis/ledger.ts';
-import { addContrastOptions, contrastOrExit, type Flags } from './contrast-options.ts';
+import { addContrastOptions, contrastOrExit, inputOrExit, type Flags } from './contrast-options.ts';
 import { reportUserError } from './user-errors.ts';
 
-/** "sigma", "12-16" or "spindles:12.5-15" → a band (named presets: DEFAULT_BANDS, SIGMA_PRESETS). */
-export function parseBandArgument(text: string): Band {
-  const preset = [...DEFAULT_BANDS, ...SIGMA_PRESETS].find((b) => b.name === text.trim());
-  if (preset) return { ...preset };
-  const m = /^\s*(?:([A-Za-z][\w-]*)\s*:)?\s*([\d.]+)\s*-\s*([\d.]+)\s*$/.exec(text);
-  if (!m) throw new BandError(`invalid band '${text}' (expected LO-HI in Hz, name:LO-HI, or one of ${[...DEFAULT_BANDS, ...SIGMA_PRESETS].map((b) => b.name).join(', ')})`);
-  const lo = Number(m[2]);
-  const hi = Number(m[3]);
-  return checkBand({ name: m[1] ?? `${lo}–${hi} Hz`, loHz: lo, hiHz: hi });
-}
-
 interface BandFlags extends Omit<Flags, 'band'> {
-  band: Band;
+  band: string;
   out: string;
   alpha?: number;
   flankWidth?: number;
@@ -36,14 +25,6 @@ const positive = (name: string) => (v: string) => {
   const x = Number(v);
   if (!(Number.isFinite(x) && x > 0)) throw new InvalidArgumentError(`invalid ${name}: ${v}`);
   return x;
-};
-
-const bandArg = (v: string) => {
-  try {
-    return parseBandArgument(v);
-  } catch (e) {
-    throw new InvalidArgumentError((e as Error).message);
-  }
 };
 
 export function register(program: Command): void {
@@ -58,12 +39,14 @@ export function register(program: Command): void {
         'the sentence that explains it. The decision rules are in the README. A research tool: results are not a diagnosis.',
     )
     .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
-    .requiredOption('--band <band>', 'the band: LO-HI in Hz (e.g. 12-16), name:LO-HI, or a preset (delta, theta, alpha, sigma, beta, slow-sigma, fast-sigma)', bandArg)
+    .requiredOption('--band <band>', `the band: ${BAND_SYNTAX}`)
     .requiredOption('--out <file>', 'result JSON to write')
     .option('--alpha <a>', 'level of every test and of the verdict\'s correction (default 0.05)', positive('--alpha'))
     .option('--flank-width <hz>', 'width of each flank, Hz (default: the band\'s width)', positive('--flank-width'));
   addContrastOptions(command, { bandMeasures: false });
   command.action(async (database: string, flags: BandFlags) => {
+    const band = inputOrExit(() => parseBand(flags.band));
+    if (!band) return;
     const contrast = contrastOrExit({ ...flags, band: undefined });
     if (!contrast) return;
     const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
@@ -71,7 +54,7 @@ export function register(program: Command): void {
     let started = false;
     let result: BandCheckRun;
     try {
-      result = await bandCheckDatabase(database, contrast, flags.band, exclusions, {
+      result = await bandCheckDatabase(database, contrast, band, exclusions, {
         alpha: flags.alpha,
         flankWidthHz: flags.flankWidth,
         onProgress: (step, done, total) => {

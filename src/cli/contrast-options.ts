@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import { MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../core/contrast/spec.ts';
-import { BandError, parseBand } from '../core/spectrum/bands.ts';
+import { BAND_SYNTAX, BandError, parseBand } from '../core/spectrum/bands.ts';
 
 const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);
 const pair = (name: string) => (v: string): [string, string] => {
@@ -92,12 +92,12 @@ export function contrastFromFlags(f: Flags): ContrastJson {
 }
 
 /**
- * The contrast the flags describe, or null after printing why it is invalid (exit status 2: bad
- * input, nothing read). Shared by compare and band-check.
+ * The value read, or null after printing why the input is invalid: a contrast key, its JSON file
+ * or a band (exit status 2: bad input, nothing read). Shared by compare and band-check.
  */
-export function contrastOrExit(flags: Flags): Contrast | null {
+export function inputOrExit<T>(read: () => T): T | null {
   try {
-    return parseContrast(contrastFromFlags(flags));
+    return read();
   } catch (e) {
     if (e instanceof ContrastSpecError || e instanceof SyntaxError || e instanceof BandError) {
       console.error(e.message);
@@ -106,6 +106,11 @@ export function contrastOrExit(flags: Flags): Contrast | null {
     }
     throw e;
   }
+}
+
+/** The contrast the flags describe, or null after printing why it is invalid (exit status 2). */
+export function contrastOrExit(flags: Flags): Contrast | null {
+  return inputOrExit(() => parseContrast(contrastFromFlags(flags)));
 }
 
 /**
@@ -145,6 +150,6 @@ export function addContrastOptions(command: Command, o: { bandMeasures: boolean 
     .option('--permutations <n>', 'permutations (default 1000; exact enumeration when fewer relabellings exist)', num('--permutations'))
     .option('--seed <n>', 'seed of the permutation generator (default 1)', num('--seed'))
     .option('--quiet', 'no progress bar');
-  if (o.bandMeasures) command.option('--band <name:lo-hi...>', 'band(s) for band-power and peak measures, e.g. sigma:12-16');
+  if (o.bandMeasures) command.option('--band <band...>', `band(s) for band-power and peak measures: ${BAND_SYNTAX}`);
   return command;
 }

@@ -10,7 +10,7 @@ import { availableParallelism } from 'node:os';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
 import { REFERENCE_KINDS, type ReferenceKind } from '../core/montage/reference.ts';
-import { parseBand } from '../core/spectrum/bands.ts';
+import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
 import { parseShard, runIngest, type IngestEvent } from '../../ingest/run.ts';
 import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../../ingest/pipeline.ts';
 
@@ -91,7 +91,7 @@ export function register(program: Command): void {
     .option('--broadband <LO-HI>', 'broadband power range for the outlier rule, Hz', range('broadband'), D.rejection.broadbandHz)
     .option('--muscle <LO-HI>', 'high-frequency (muscle) range for the outlier rule, Hz', range('muscle'), D.rejection.muscleHz)
     .option('--min-epochs <n>', 'flag stages with fewer clean epochs (10 = 5 min of 30-s epochs)', num('min-epochs', (x) => Number.isInteger(x) && x >= 1), D.minEpochs)
-    .option('--band <name:LO-HI...>', `epoch band powers, repeatable (default ${D.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(' ')})`)
+    .option('--band <band...>', `epoch band powers, repeatable: ${BAND_SYNTAX} (default ${D.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(' ')})`)
     .option('--band-method <mean|integral>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²)', D.bandMethod)
     .option('--fit-range <LO-HI>', 'aperiodic fit range, Hz', range('fit-range'), D.fit!.fitRangeHz)
     .option('--knee', 'fit the aperiodic knee (default: plain power law, knee 0)', false)
