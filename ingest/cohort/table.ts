@@ -1,5 +1,5 @@
 /**
- * A cohort table (TSV or CSV), one row per recording (shared/DESIGN.md, "The cohort table"):
+ * A cohort table (TSV or CSV), one row per recording (docs/design.md, "The cohort table"):
  * `subject`, `session` (optional), `group` (optional), `recording` (EDF path), `scoring`
  * (optional path; else the EDF+ annotations), then covariate columns kept typed. These column
  * names are matched case-insensitively; covariate names are kept as written. Paths are relative

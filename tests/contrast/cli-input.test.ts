@@ -31,7 +31,7 @@ describe('compare and band-check refuse bad contrast input with exit status 2', 
 });
 
 // One band grammar for both commands (README "compare": LO-HI in Hz, name:LO-HI or a preset name;
-// DESIGN.md's synopsis `band-check … --band LO-HI`): the same text is accepted or refused alike.
+// docs/design.md's synopsis `band-check … --band LO-HI`): the same text is accepted or refused alike.
 describe('compare and band-check read --band with one grammar', () => {
   const run = (command: string, band: string) => cli([command, path.join(dir, 'missing.duckdb'), '--groups', 'control,patient', '--band', band, '--out', path.join(dir, 'out.json')]);
   const PRESETS = 'delta, theta, alpha, sigma, beta, broadband, slow-sigma, fast-sigma';

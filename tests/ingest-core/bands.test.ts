@@ -66,7 +66,7 @@ print(json.dumps(out))`,
   });
 
   it('one grammar: LO-HI, name:LO-HI and the preset names', () => {
-    // LO-HI in Hz as the command line's synopsis writes it (DESIGN.md: `band-check … --band LO-HI`)
+    // LO-HI in Hz as the command line's synopsis writes it (docs/design.md: `band-check … --band LO-HI`)
     expect(parseBand('12-16')).toEqual({ name: '12–16 Hz', loHz: 12, hiHz: 16 });
     expect(parseBand(' 0.5 - 4 ')).toEqual({ name: '0.5–4 Hz', loHz: 0.5, hiHz: 4 });
     expect(parseBand('fast spindles: 12.5-15')).toEqual({ name: 'fast spindles', loHz: 12.5, hiHz: 15 });

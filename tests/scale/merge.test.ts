@@ -50,7 +50,7 @@ describe('mergeShards', () => {
       expect(d.rowsB, d.table).toBe(d.rowsA);
     }
     const byTable = Object.fromEntries(diff.map((d) => [d.table, d.rowsA]));
-    // 5 channels × 5 stages × 2 averagings per recording (DESIGN.md: mean and median stored)
+    // 5 channels × 5 stages × 2 averagings per recording (docs/design.md: mean and median stored)
     expect(byTable.spectra).toBe(6 * 5 * 5 * 2);
     expect(byTable.participants).toBe(6);
     expect(byTable.runs).toBe(1);

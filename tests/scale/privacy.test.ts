@@ -1,4 +1,4 @@
-// Health-data rule (house rules; DESIGN.md "recordings … never any EDF patient or recording
+// Health-data rule (house rules; docs/design.md "recordings … never any EDF patient or recording
 // identification text"): a fake patient name, birth date, patient code and hospital planted in
 // the EDF header's identification fields (EDF+ 2003 §2.1.3.3–4: "code sex birthdate name" and
 // "Startdate date admincode technician equipment") must appear nowhere in what ingest writes:

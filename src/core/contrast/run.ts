@@ -1,6 +1,6 @@
 /**
  * Runs a contrast end to end on the rows it reads and returns the compare result JSON
- * (DESIGN.md: the contrast, the n per group, the exclusions, and the clusters with sign, mass, p,
+ * (docs/design.md: the contrast, the n per group, the exclusions, and the clusters with sign, mass, p,
  * frequency range and channels; signs are groups[1] minus groups[0]).
  */
 import type { Contrast } from './spec.ts';

@@ -1,6 +1,6 @@
 /**
  * The contrast: one defined comparison, as JSON. The dashboard saves it and `bandwise compare`
- * reads it; the keys are a public interface (DESIGN.md). Differences and signs are always
+ * reads it; the keys are a public interface (docs/design.md). Differences and signs are always
  * groups[1] minus groups[0] (paired: second minus first).
  */
 import { z } from 'zod';
