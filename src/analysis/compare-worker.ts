@@ -1,5 +1,5 @@
 /**
- * One permutation thread of `bandwise compare` (ingest/compare-threads.ts starts them; the main
+ * One permutation thread of `bandwise compare` (src/analysis/compare-threads.ts starts them; the main
  * thread runs part 0 itself and finishes): given the assembled contrast (its subjects × points
  * matrix in a SharedArrayBuffer, so every thread reads the one copy), it prepares the statistics
  * (src/core/contrast/run.ts prepareAssembled), runs its permutationShare and posts the null

@@ -1,5 +1,5 @@
 /**
- * The bandwise command line. Each subcommand lives in its own file under ingest/cli/ and adds
+ * The bandwise command line. Each subcommand lives in its own file under src/cli/ and adds
  * itself to the program through register(program).
  */
 import { Command } from 'commander';

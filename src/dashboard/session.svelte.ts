@@ -2,7 +2,7 @@
 import { openPickedFile, openServedDatabase, preloadEngine, type CohortConnection } from './db/connection.ts';
 import { cohortSchema, runs, type CohortSchema, type RunInfo } from './db/queries.ts';
 
-/** Where the dashboard server puts the database, relative to the app (ingest/server/serve.ts). */
+/** Where the dashboard server puts the database, relative to the app (src/server/serve.ts). */
 export const SERVED_DATABASE = 'data/cohort.duckdb';
 
 export type SessionStatus = 'idle' | 'opening' | 'ready' | 'failed';

@@ -1,5 +1,5 @@
 /**
- * A synthetic database (src/core/simulate/synthetic-database.ts drawn, ingest/store/synthetic.ts
+ * A synthetic database (src/core/simulate/synthetic-database.ts drawn, src/simulation/synthetic-store.ts
  * written) built once into os.tmpdir()/bandwise-synthetic under a name holding its parameters
  * and a hash of the generator's code, and reused while that code is unchanged (a .done folder
  * marks a complete build). The same names as tests/bench/dashboard-scale.bench.ts uses, so the

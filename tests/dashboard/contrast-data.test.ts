@@ -1,5 +1,5 @@
 // The dashboard's contrast loader (duckdb-wasm, the browser's engine) against the command line's
-// (ingest/compare.ts over @duckdb/node-api, another DuckDB build) on the fixture database: the same
+// (src/analysis/compare-runner.ts over @duckdb/node-api, another DuckDB build) on the fixture database: the same
 // ContrastData row for row, and the same compare() result. Also the quality screen's queries
 // against node-api's reading of the same tables.
 import { mkdtempSync, rmSync } from 'node:fs';

@@ -1,4 +1,4 @@
-// Test entry with the commands the fault tests run (the same register() functions ingest/cli/main.ts wires; fewer modules to load per child).
+// Test entry with the commands the fault tests run (the same register() functions src/cli/main.ts wires; fewer modules to load per child).
 import { Command } from 'commander';
 import { register as ingest } from '../../src/cli/ingest.ts';
 import { register as compare } from '../../src/cli/compare.ts';

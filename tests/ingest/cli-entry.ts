@@ -1,4 +1,4 @@
-// Test entry for the ingest command alone (the lead wires register() into ingest/cli/main.ts).
+// Test entry for the ingest command alone (the lead wires register() into src/cli/main.ts).
 import { Command } from 'commander';
 import { register } from '../../src/cli/ingest.ts';
 

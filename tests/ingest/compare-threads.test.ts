@@ -1,4 +1,4 @@
-// `bandwise compare` with its permutations on worker threads (ingest/compare-threads.ts, the
+// `bandwise compare` with its permutations on worker threads (src/analysis/compare-threads.ts, the
 // matrix shared through a SharedArrayBuffer) gives the single-thread compare() of
 // src/core/contrast/run.ts on the same rows exactly (JSON equal): a groups design with cluster
 // mass on 1, 2 and 3 threads (3 does not divide the 301 permutations evenly), one with TFCE and a

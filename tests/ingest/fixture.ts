@@ -1,5 +1,5 @@
 /**
- * A small invented cohort for the ingest tests: EDF+C files written by ingest/edf/writer.ts with
+ * A small invented cohort for the ingest tests: EDF+C files written by src/simulation/edf-writer.ts with
  * stage annotations every 30 s, and a cohort.tsv. Signals are AR(1) background noise (a 1/f-like
  * low-pass spectrum) plus a 13.5-Hz "spindle" sine in N2, seeded, so the content is known.
  */

@@ -1,4 +1,4 @@
-// Test entry with the commands of the scale tests (the lead wires register() into ingest/cli/main.ts).
+// Test entry with the commands of the scale tests (the lead wires register() into src/cli/main.ts).
 import { Command } from 'commander';
 import { register as ingest } from '../../src/cli/ingest.ts';
 import { register as merge } from '../../src/cli/merge.ts';
