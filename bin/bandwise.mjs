@@ -3,4 +3,4 @@
 import { register } from 'tsx/esm/api';
 
 register();
-await import('../ingest/cli/main.ts');
+await import('../src/cli/main.ts');

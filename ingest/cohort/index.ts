@@ -5,5 +5,3 @@ export { discoverBids } from './bids.ts';
 export { discoverCohort } from './discover.ts';
 export type { ContrastColumns, ContrastColumnCounts } from './contrast-columns.ts';
 export { checkContrastColumns } from './contrast-columns.ts';
-export type { EegSidecar, WriteBidsOptions, WriteBidsResult } from './write-bids.ts';
-export { writeBidsCopy } from './write-bids.ts';

@@ -1,5 +1,5 @@
 /**
- * A cohort table (TSV or CSV), one row per recording (shared/DESIGN.md, "The cohort table"):
+ * A cohort table (TSV or CSV), one row per recording (docs/design.md, "The cohort table"):
  * `subject`, `session` (optional), `group` (optional), `recording` (EDF path), `scoring`
  * (optional path; else the EDF+ annotations), `lights_off` and `lights_on` (optional, per
  * recording: a local clock time HH:MM or HH:MM:SS, or seconds from the recording start), then

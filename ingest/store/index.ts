@@ -1,8 +1,7 @@
-/** The DuckDB store (Node only): open/create, the single writer, the bundle it takes, named reads. */
+/** The DuckDB store (Node only): open/create, the single writer, the bundle it takes (reads for analyses: src/analysis/store-read.ts). */
 export { openStore, readHeaderStorageNumber, STORAGE_COMPATIBILITY, MAX_READABLE_STORAGE_NUMBER, type OpenOptions } from './database.ts';
 export { Store, type BeginRunOptions, type CohortQualityRow, type IngestErrorIn, type ParticipantValue } from './writer.ts';
 export type * from './bundle.ts';
 export { DatabaseBusyError, DiskFullError, StoreError } from './errors.ts';
 export { canonicalJson, recordingIdFor, runIdentity } from './identity.ts';
 export { TABLES, TABLE_NAMES, type TableDef, type ColumnDef } from './schema.ts';
-export * from './read.ts';

@@ -1,5 +1,5 @@
 /**
- * The database schema: every table of ../../shared/DESIGN.md ("The database") with exactly its
+ * The database schema: every table of docs/design.md ("The database") with exactly its
  * names and columns, plus added columns (added freely, none renamed). The names are a public
  * interface — Python, R and DuckDB users open the file directly.
  *

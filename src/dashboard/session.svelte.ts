@@ -3,7 +3,7 @@ import { openPickedFile, openServedDatabase, preloadEngine, type CohortConnectio
 import type { ReportableResult } from '../core/report/index.ts';
 import { cohortSchema, runs, type CohortSchema, type RunInfo } from './db/queries.ts';
 
-/** Where the dashboard server puts the database, relative to the app (ingest/server/serve.ts). */
+/** Where the dashboard server puts the database, relative to the app (src/server/serve.ts). */
 export const SERVED_DATABASE = 'data/cohort.duckdb';
 
 export type SessionStatus = 'idle' | 'opening' | 'ready' | 'failed';

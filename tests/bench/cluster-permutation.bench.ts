@@ -20,7 +20,7 @@
  *   precomputed adjacency lists; early exit when none passes; no allocation per permutation.
  * Run alone: npx tsx -e "import('./tests/bench/cluster-permutation.bench.ts').then(m=>m.run()).then(r=>console.log(JSON.stringify(r)))"
  */
-import { prepareContrast, runPermutations } from '../../src/core/stats/index.ts';
+import { preparePermutationTest, runPermutations } from '../../src/core/stats/index.ts';
 import { relabelling } from '../../src/core/stats/relabelling.ts';
 import { Random } from '../../src/core/stats/random.ts';
 import { gridNoise } from '../stats/grid-noise.ts';
@@ -69,7 +69,7 @@ async function one(label: string, channels: string[], nSubjects: number): Promis
   const P = channels.length * BINS;
   const freqsHz = Array.from({ length: BINS }, (_, i) => 0.5 + 0.5 * i);
   // the input builds its own Delaunay graph; the noise generator uses the same graph
-  const probe = prepareContrast(
+  const probe = preparePermutationTest(
     { channels, freqsHz, data: new Float64Array(3 * P).map(() => rng.normal()), design: { kind: 'one-sample' } },
     { permutations: 1 },
   );
@@ -81,7 +81,7 @@ async function one(label: string, channels: string[], nSubjects: number): Promis
   const options = { permutations: PERMUTATIONS, seed: 1, statistic: 'welch-t' as const };
 
   const p0 = performance.now();
-  const prepared = prepareContrast(input, options);
+  const prepared = preparePermutationTest(input, options);
   const prepareS = (performance.now() - p0) / 1000;
   const c0 = process.cpuUsage();
   const t0 = performance.now();

@@ -1,6 +1,6 @@
 // Dashboard at scale (issue 6, Performance): a synthetic database of 2,000 recordings × 64
 // channels × 5 stages × 181 bins (spectra drawn from the model by src/core/simulate/
-// synthetic-database.ts and written by ingest/store/synthetic.ts, no EDF) is served with the
+// synthetic-database.ts and written by src/simulation/synthetic-store.ts, no EDF) is served with the
 // e2e harness; the contrast view is opened from its address-bar parameters (run=1: the view
 // runs the contrast on opening): groups control vs patient, N2, all 64 channels × 0.5–30 Hz
 // log10 PSD, Welch t, cluster mass, 1000 permutations. Targets: open → result under 15 s, memory

@@ -6,7 +6,7 @@ import { mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { openEdf } from '../../ingest/edf/reader.ts';
-import { EdfWriter } from '../../ingest/edf/writer.ts';
+import { EdfWriter } from '../../src/simulation/edf-writer.ts';
 
 const CHANNELS = 19;
 const FS_HZ = 256;

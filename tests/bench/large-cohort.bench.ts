@@ -1,6 +1,6 @@
 /**
  * Large cohorts: building a synthetic spectral database (src/core/simulate/synthetic-database.ts
- * drawn, ingest/store/synthetic.ts written; reference 'recorded', averaging 'mean') and how its
+ * drawn, src/simulation/synthetic-store.ts written; reference 'recorded', averaging 'mean') and how its
  * cost grows with recordings, channels and frequency bins (three sizes each, in one run), then
  * the full 10,000 recordings × 64 channels × 5 stages × 181 bins (3.2 M spectra rows), built once
  * into os.tmpdir()/bandwise-synthetic and reused while the generator is unchanged
@@ -24,7 +24,7 @@ import { mkdtempSync, rmSync, statfsSync, statSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import path from 'node:path';
 import { syntheticSpec } from '../../src/core/simulate/synthetic-database.ts';
-import { writeSyntheticDatabase, type SyntheticWriteResult } from '../../ingest/store/synthetic.ts';
+import { writeSyntheticDatabase, type SyntheticWriteResult } from '../../src/simulation/synthetic-store.ts';
 import { cachedSyntheticDatabase, cachedSyntheticPath } from './synthetic-cache.ts';
 
 interface Point {

@@ -11,7 +11,7 @@
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { edgeVariants, enumeratePaths, runPaths, type PathChoices, type PathDataSet } from '../../src/core/verdict/index.ts';
 import { openStore } from '../../ingest/store/index.ts';
-import { loadBandCheckData } from '../../ingest/cli/band-check.ts';
+import { loadBandCheckData } from '../../src/analysis/band-check-runner.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 
 export async function run(): Promise<Record<string, unknown>> {

@@ -6,7 +6,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { NightGenerator, planNight } from '../../src/core/simulate/index.ts';
-import { DEMO_SCENARIO, loadScenario, writeNightEdf } from '../../ingest/simulate/index.ts';
+import { DEMO_SCENARIO, loadScenario, writeNightEdf } from '../../src/simulation/index.ts';
 
 function timed(fn: () => void): { wallS: number; cpuS: number } {
   const t0 = performance.now();

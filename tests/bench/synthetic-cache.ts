@@ -1,5 +1,5 @@
 /**
- * A synthetic database (src/core/simulate/synthetic-database.ts drawn, ingest/store/synthetic.ts
+ * A synthetic database (src/core/simulate/synthetic-database.ts drawn, src/simulation/synthetic-store.ts
  * written) built once into os.tmpdir()/bandwise-synthetic under a name holding its parameters
  * and a hash of the generator's code, and reused while that code is unchanged (a .done folder
  * marks a complete build). The same names as tests/bench/dashboard-scale.bench.ts uses, so the
@@ -9,11 +9,11 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { writeSyntheticDatabase } from '../../ingest/store/synthetic.ts';
+import { writeSyntheticDatabase } from '../../src/simulation/synthetic-store.ts';
 import type { SyntheticCohortSpec } from '../../src/core/simulate/synthetic-database.ts';
 
 const repo = path.resolve(import.meta.dirname, '../..');
-const GENERATOR = ['src/core/simulate/synthetic-database.ts', 'src/core/simulate/spectrum.ts', 'ingest/store/synthetic.ts', 'ingest/store/schema.ts', 'ingest/store/spectra-order.ts', 'ingest/store/database.ts'];
+const GENERATOR = ['src/core/simulate/synthetic-database.ts', 'src/core/simulate/spectrum.ts', 'src/simulation/synthetic-store.ts', 'ingest/store/schema.ts', 'ingest/store/spectra-order.ts', 'ingest/store/database.ts'];
 
 function generatorHash(): string {
   const h = createHash('sha256');

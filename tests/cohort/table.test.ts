@@ -5,7 +5,7 @@ import { readCohortTable } from '../../ingest/cohort/table.ts';
 import { discoverCohort } from '../../ingest/cohort/discover.ts';
 import { cohortError, tempFolder } from './fixtures.ts';
 
-// The cohort-table columns are fixed in shared/DESIGN.md ("The cohort table"); missing values
+// The cohort-table columns are fixed in docs/design.md ("The cohort table"); missing values
 // are 'n/a' or empty as in BIDS tabular files (BIDS specification, common principles).
 
 const { dir, put } = tempFolder('bw-cohort-table-');

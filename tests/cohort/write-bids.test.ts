@@ -3,7 +3,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { discoverBids } from '../../ingest/cohort/bids.ts';
 import { readCohortTable } from '../../ingest/cohort/table.ts';
-import { writeBidsCopy } from '../../ingest/cohort/write-bids.ts';
+import { writeBidsCopy } from '../../src/simulation/write-bids.ts';
 import { readScoring } from '../../ingest/hypnogram/read.ts';
 import { writeEdfWithLibedf } from '../hypnogram/libedf.ts';
 import { cohortError, tempFolder } from './fixtures.ts';

@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoDatabase } from '../helpers/demo-db.ts';
-import { readLedger } from '../../ingest/ledger.ts';
+import { readLedger } from '../../src/analysis/ledger.ts';
 
 // `bandwise compare` end to end on the demo cohort (planted: demo-cohort/scenario.json, "effects"):
 // patients have a broadband aperiodic offset +0.15 log10 and half the fast-spindle amplitude in N2

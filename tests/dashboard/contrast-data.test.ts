@@ -1,12 +1,12 @@
 // The dashboard's contrast loader (duckdb-wasm, the browser's engine) against the command line's
-// (ingest/compare.ts over @duckdb/node-api, another DuckDB build) on the fixture database: the same
+// (src/analysis/compare-runner.ts over @duckdb/node-api, another DuckDB build) on the fixture database: the same
 // ContrastData row for row, and the same compare() result. Also the quality screen's queries
 // against node-api's reading of the same tables.
 import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { loadContrastData as loadCli } from '../../ingest/compare.ts';
+import { loadContrastData as loadCli } from '../../src/analysis/compare-runner.ts';
 import { openStore } from '../../ingest/store/index.ts';
 import { compare } from '../../src/core/contrast/run.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';

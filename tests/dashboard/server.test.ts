@@ -8,7 +8,7 @@ import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startDashboardServer, type DashboardServer, type RequestLogEntry } from '../../ingest/server/serve.ts';
+import { startDashboardServer, type DashboardServer, type RequestLogEntry } from '../../src/server/serve.ts';
 
 interface Reply {
   status: number;

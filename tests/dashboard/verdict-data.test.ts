@@ -1,12 +1,12 @@
 // The dashboard's band check, robustness and report loaders (duckdb-wasm, the browser's engine)
-// against the command line's (ingest/cli/band-check.ts loadBandCheckData and ingest/report.ts
+// against the command line's (src/analysis/band-check-runner.ts loadBandCheckData and src/analysis/report-facts.ts
 // databaseFacts over @duckdb/node-api, another DuckDB build) on the shared demo database
 // (tests/helpers/demo-db.ts): the same rows, the same facts, and the same band check and
 // robustness results from src/core/verdict. 200 permutations per test (the equality of the two
 // loaders does not depend on the count; kept small for time).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { loadBandCheckData as loadCli } from '../../ingest/cli/band-check.ts';
-import { databaseFacts as factsCli } from '../../ingest/report.ts';
+import { loadBandCheckData as loadCli } from '../../src/analysis/band-check-runner.ts';
+import { databaseFacts as factsCli } from '../../src/analysis/report-facts.ts';
 import { openStore } from '../../ingest/store/index.ts';
 import type { ContrastData } from '../../src/core/contrast/data.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
@@ -110,7 +110,7 @@ describe('band check, robustness and report data over duckdb-wasm equal the comm
     expect(a.paths).toEqual(b.paths);
   });
 
-  it('database facts for the methods report equal ingest/report.ts databaseFacts', async () => {
+  it('database facts for the methods report equal src/analysis/report-facts.ts databaseFacts', async () => {
     const store = await openStore(file, { readOnly: true });
     let theirs;
     try {

@@ -31,7 +31,11 @@ describe('band check address bar', () => {
     expect(withEdges(13, 15).name).toBe('fast-sigma');
     expect(withEdges(4.5, 8)).toEqual({ name: 'band', loHz: 4.5, hiHz: 8 });
     expect(() => withEdges(8, 4)).toThrow(/invalid edges 8–4 Hz/);
-    expect(() => bandFromParams({ band: 'theta' })).toThrow(/expected LO-HI or name:LO-HI/);
+    // the address bar reads bands with the one band grammar of the commands (bands.ts parseBand)
+    expect(bandFromParams({ band: 'theta' })).toEqual({ name: 'theta', loHz: 4, hiHz: 8 });
+    expect(bandFromParams({ band: '12-16' })).toEqual({ name: '12–16 Hz', loHz: 12, hiHz: 16 });
+    expect(bandCheckFromParams(paramsFromBandCheck(contrast, bandFromParams({ band: '12-16' }))).band).toEqual({ name: '12–16 Hz', loHz: 12, hiHz: 16 });
+    expect(() => bandFromParams({ band: 'theta 4-8' })).toThrow(/invalid band 'theta 4-8': expected LO-HI in Hz/);
   });
 });
 

@@ -1,4 +1,4 @@
-// End to end in Debian's chromium: the built app, served by ingest/server on the fixture
+// End to end in Debian's chromium: the built app, served by src/server on the fixture
 // database, opens it with duckdb-wasm over HTTP range requests (RFC 9110 §14: every GET of the
 // database must be a 206 partial response) and shows the cohort view. Expected group sizes come
 // from the fixture's participant list. Fails on any console error and on any request that

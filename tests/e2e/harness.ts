@@ -7,7 +7,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { build } from 'vite';
-import { startDashboardServer, type DashboardServer, type RequestLogEntry } from '../../ingest/server/serve.ts';
+import { startDashboardServer, type DashboardServer, type RequestLogEntry } from '../../src/server/serve.ts';
 
 const repo = fileURLToPath(new URL('../../', import.meta.url));
 export const CHROMIUM = '/usr/bin/chromium';

@@ -6,7 +6,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openEdf, type EdfFile } from '../../ingest/edf/reader.ts';
-import { EdfWriter, type EdfWriteSpec } from '../../ingest/edf/writer.ts';
+import { EdfWriter, type EdfWriteSpec } from '../../src/simulation/edf-writer.ts';
 import { compileWithLibedf, parseReaderOutput, READER_SOURCE, writerSource, type RefAnnotation, type RefSignal } from './libedf.ts';
 import { makeTmpDir } from './helpers.ts';
 

@@ -8,7 +8,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { FIXED_FIELDS, SIGNAL_FIELDS } from '../../ingest/edf/header.ts';
 import { openEdf } from '../../ingest/edf/reader.ts';
-import { EdfWriter, formatHeaderNumber, writeEdfFile, type EdfWriteSpec } from '../../ingest/edf/writer.ts';
+import { EdfWriter, formatHeaderNumber, writeEdfFile, type EdfWriteSpec } from '../../src/simulation/edf-writer.ts';
 import { makeTmpDir } from './helpers.ts';
 
 // Widths copied from the EDF 1992 header table (the specification, not our code).

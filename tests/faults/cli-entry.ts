@@ -1,9 +1,9 @@
-// Test entry with the commands the fault tests run (the same register() functions ingest/cli/main.ts wires; fewer modules to load per child).
+// Test entry with the commands the fault tests run (the same register() functions src/cli/main.ts wires; fewer modules to load per child).
 import { Command } from 'commander';
-import { register as ingest } from '../../ingest/cli/ingest.ts';
-import { register as compare } from '../../ingest/cli/compare.ts';
-import { register as report } from '../../ingest/cli/report.ts';
-import { register as dashboard } from '../../ingest/cli/dashboard.ts';
+import { register as ingest } from '../../src/cli/ingest.ts';
+import { register as compare } from '../../src/cli/compare.ts';
+import { register as report } from '../../src/cli/report.ts';
+import { register as dashboard } from '../../src/cli/dashboard.ts';
 
 const program = new Command().name('bandwise');
 ingest(program);

@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DATABASE_URL_PATH, startDashboardServer } from '../../ingest/server/serve.ts';
+import { DATABASE_URL_PATH, startDashboardServer } from '../../src/server/serve.ts';
 import { faultEdfBytes, STAGES_10 } from './fixture.ts';
 import { cli, dumpAll, run } from './helpers.ts';
 

@@ -2,7 +2,7 @@
 // recordings and one bad input per case, ingested by the real `bandwise ingest` in a child
 // process that obeys file modes (as root: without CAP_DAC_OVERRIDE and CAP_DAC_READ_SEARCH, so a
 // mode-000 file is really refused; plain root reads anything). Every failing case must be in ingest_errors with file, step and message; the good
-// recordings stored whole; the exit status 3 ("some recordings failed", ingest/cli/ingest.ts and
+// recordings stored whole; the exit status 3 ("some recordings failed", src/cli/ingest.ts and
 // the README). Then a full disk: a 1-MiB tmpfs (or, where mount is not allowed, a file size limit
 // on the child) as the database's home.
 // Outside sources: the EDF header rules (Kemp et al. 1992 §2.1: header = 256 + 256·ns bytes,

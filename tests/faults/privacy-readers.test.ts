@@ -1,4 +1,4 @@
-// Health-data rule (house rules; DESIGN.md: EDF patient and recording identification is never
+// Health-data rule (house rules; docs/design.md: EDF patient and recording identification is never
 // stored, logged or shown), on the reading side. tests/scale/privacy.test.ts covers the database
 // bytes, every table value and the ingest output; here a planted fake patient name, birth date,
 // patient code, clinic and technician (EDF+ 2003 §2.1.3.3–4 subfields) must appear in nothing the
@@ -11,8 +11,8 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, w
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ensureDashboardBuilt } from '../../ingest/dashboard.ts';
-import { DATABASE_URL_PATH, startDashboardServer } from '../../ingest/server/serve.ts';
+import { ensureDashboardBuilt } from '../../src/server/launcher.ts';
+import { DATABASE_URL_PATH, startDashboardServer } from '../../src/server/serve.ts';
 import { faultEdfBytes, STAGES_10 } from './fixture.ts';
 import { run } from './helpers.ts';
 

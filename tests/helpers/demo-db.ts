@@ -9,15 +9,15 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_SCENARIO, scenarioStamp } from '../../ingest/simulate/index.ts';
-import { runIngest } from '../../ingest/ingest.ts';
+import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_SCENARIO, scenarioStamp } from '../../src/simulation/index.ts';
+import { runIngest } from '../../ingest/run.ts';
 import { resolveIngestParams } from '../../ingest/pipeline.ts';
 import { runIdentity } from '../../ingest/store/identity.ts';
 
 const repo = fileURLToPath(new URL('../..', import.meta.url));
 const tmp = path.join(repo, 'tests', '.tmp');
 
-/** Hash of the code that writes the database (src/core and ingest), so a code change rebuilds it. */
+/** Hash of the code that writes the database (src/core, src/simulation and ingest), so a code change rebuilds it. */
 function codeHash(): string {
   const h = createHash('sha256');
   const walk = (dir: string) => {
@@ -28,6 +28,7 @@ function codeHash(): string {
     }
   };
   walk(path.join(repo, 'src', 'core'));
+  walk(path.join(repo, 'src', 'simulation'));
   walk(path.join(repo, 'ingest'));
   return h.digest('hex').slice(0, 8);
 }

@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CohortRecording } from '../../ingest/cohort/types.ts';
 import { openEdf } from '../../ingest/edf/reader.ts';
 import { DEFAULT_SCORING_PARAMS, scoringForRecording } from '../../ingest/hypnogram/recording.ts';
-import { runIngest, type IngestSummary } from '../../ingest/ingest.ts';
+import { runIngest, type IngestSummary } from '../../ingest/run.ts';
 import { resolveIngestParams } from '../../ingest/pipeline.ts';
 import type { Stage } from '../../src/core/stages.ts';
 import { writeLibedf, type LibedfAnnotation } from './libedf.ts';

@@ -64,4 +64,22 @@ print(json.dumps(out))`,
     expect(() => parseBand('x:8-4')).toThrow(/invalid edges 8–4 Hz/);
     expect(() => new BandPowerTable([{ name: 'gamma', loHz: 60, hiHz: 80 }], 0, 0.25, 181)).toThrow(/gamma/);
   });
+
+  it('one grammar: LO-HI, name:LO-HI and the preset names', () => {
+    // LO-HI in Hz as the command line's synopsis writes it (docs/design.md: `band-check … --band LO-HI`)
+    expect(parseBand('12-16')).toEqual({ name: '12–16 Hz', loHz: 12, hiHz: 16 });
+    expect(parseBand(' 0.5 - 4 ')).toEqual({ name: '0.5–4 Hz', loHz: 0.5, hiHz: 4 });
+    expect(parseBand('fast spindles: 12.5-15')).toEqual({ name: 'fast spindles', loHz: 12.5, hiHz: 15 });
+    // preset edges are common practice in sleep EEG (bands.ts header), not a standard
+    expect(parseBand('sigma')).toEqual({ name: 'sigma', loHz: 12, hiHz: 16 });
+    expect(parseBand('fast-sigma')).toEqual({ name: 'fast-sigma', loHz: 13, hiHz: 15 });
+    expect(parseBand('theta')).toEqual({ name: 'theta', loHz: 4, hiHz: 8 });
+    // a preset is a copy: changing it does not change the next parse
+    parseBand('alpha').hiHz = 99;
+    expect(parseBand('alpha').hiHz).toBe(12);
+    expect(() => parseBand('gamma')).toThrow(/^invalid band 'gamma': expected LO-HI in Hz \(e\.g\. 12-16\), name:LO-HI, or a preset: delta, theta, alpha, sigma, beta, broadband, slow-sigma, fast-sigma$/);
+    expect(() => parseBand('8-4')).toThrow(/^band '8–4 Hz': invalid edges 8–4 Hz$/);
+    expect(() => parseBand(' :8-12')).toThrow(/band without a name/);
+    expect(() => parseBand('a:b:8-12')).toThrow(/invalid band 'a:b:8-12'/);
+  });
 });

@@ -4,10 +4,10 @@ import path from 'node:path';
 import { DuckDBInstance, type DuckDBConnection } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readCohortTable } from '../../ingest/cohort/table.ts';
-import { writeBidsCopy } from '../../ingest/cohort/write-bids.ts';
-import { runIngest, type IngestSummary } from '../../ingest/ingest.ts';
+import { writeBidsCopy } from '../../src/simulation/write-bids.ts';
+import { runIngest, type IngestSummary } from '../../ingest/run.ts';
 import type { IngestParams } from '../../ingest/pipeline.ts';
-import { writeSimulatedCohort } from '../../ingest/simulate/write.ts';
+import { writeSimulatedCohort } from '../../src/simulation/write-cohort.ts';
 import { quoteIdent, TABLE_NAMES } from '../../ingest/store/schema.ts';
 
 // Issue 3, "Done when": `bandwise ingest` on the demo cohort and on a BIDS-laid-out copy of it

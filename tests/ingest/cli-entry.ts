@@ -1,6 +1,6 @@
-// Test entry for the ingest command alone (the lead wires register() into ingest/cli/main.ts).
+// Test entry for the ingest command alone (the lead wires register() into src/cli/main.ts).
 import { Command } from 'commander';
-import { register } from '../../ingest/cli/ingest.ts';
+import { register } from '../../src/cli/ingest.ts';
 
 const program = new Command().name('bandwise');
 register(program);

@@ -1,22 +1,22 @@
-// `bandwise compare` with its permutations on worker threads (ingest/compare-threads.ts, the
+// `bandwise compare` with its permutations on worker threads (src/analysis/compare-threads.ts, the
 // matrix shared through a SharedArrayBuffer) gives the single-thread compare() of
 // src/core/contrast/run.ts on the same rows exactly (JSON equal): a groups design with cluster
 // mass on 1, 2 and 3 threads (3 does not divide the 301 permutations evenly), one with TFCE and a
-// paired design (its second matrix shared too) on 2; a ContrastInputError of the statistics reaches
+// paired design (its second matrix shared too) on 2; a PermutationTestInputError of the statistics reaches
 // the caller with its type and message. Size: a synthetic database of 24 recordings × 6 channels
 // × 5 stages × 61 bins (0–15 Hz), contrasts on 1–12 Hz with 301 permutations.
 import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { compareDatabase, loadContrastData } from '../../ingest/compare.ts';
+import { compareDatabase, loadContrastData } from '../../src/analysis/compare-runner.ts';
 import { openStore } from '../../ingest/store/index.ts';
-import { writeSyntheticDatabase } from '../../ingest/store/synthetic.ts';
+import { writeSyntheticDatabase } from '../../src/simulation/synthetic-store.ts';
 import type { ContrastData, Exclusion } from '../../src/core/contrast/data.ts';
 import { compare } from '../../src/core/contrast/run.ts';
 import { parseContrast, type Contrast } from '../../src/core/contrast/spec.ts';
 import { syntheticSpec } from '../../src/core/simulate/synthetic-database.ts';
-import { ContrastInputError } from '../../src/core/stats/index.ts';
+import { PermutationTestInputError } from '../../src/core/stats/index.ts';
 
 describe('compare on worker threads', () => {
   let dir: string;
@@ -62,7 +62,7 @@ describe('compare on worker threads', () => {
     });
   }
 
-  it('a ContrastInputError of the statistics reaches the caller typed, the workers stopped', async () => {
+  it('a PermutationTestInputError of the statistics reaches the caller typed, the workers stopped', async () => {
     const c = parseContrast(contrasts['groups, cluster mass']);
     // every patient (odd recordings) but one left out: the statistics refuse a group of one
     const exclusions: Exclusion[] = Array.from({ length: 11 }, (_, i) => ({ subject: '', channel: null, reason: 'test' }));
@@ -75,9 +75,9 @@ describe('compare on worker threads', () => {
     } catch (e) {
       expected = e;
     }
-    expect(expected).toBeInstanceOf(ContrastInputError);
+    expect(expected).toBeInstanceOf(PermutationTestInputError);
     const threaded = compareDatabase(file, c, exclusions, undefined, undefined, { threads: 2 });
-    await expect(threaded).rejects.toBeInstanceOf(ContrastInputError);
+    await expect(threaded).rejects.toBeInstanceOf(PermutationTestInputError);
     await expect(threaded).rejects.toThrow((expected as Error).message);
   });
 });

@@ -3,8 +3,8 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { runIngest } from '../../ingest/ingest.ts';
-import { writeSimulatedCohort } from '../../ingest/simulate/write.ts';
+import { runIngest } from '../../ingest/run.ts';
+import { writeSimulatedCohort } from '../../src/simulation/write-cohort.ts';
 
 // The demo scenario (demo-cohort/scenario.json, invented) cut to 5 controls + 5 patients, one hour
 // each, two of them at 128 Hz and the rest at 256 Hz, artifacts left out; its ground-truth JSON

@@ -1,11 +1,11 @@
 /**
- * A small invented cohort for the ingest tests: EDF+C files written by ingest/edf/writer.ts with
+ * A small invented cohort for the ingest tests: EDF+C files written by src/simulation/edf-writer.ts with
  * stage annotations every 30 s, and a cohort.tsv. Signals are AR(1) background noise (a 1/f-like
  * low-pass spectrum) plus a 13.5-Hz "spindle" sine in N2, seeded, so the content is known.
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
-import { writeEdfFile, type EdfWriteSignal } from '../../ingest/edf/writer.ts';
+import { writeEdfFile, type EdfWriteSignal } from '../../src/simulation/edf-writer.ts';
 import { Random } from '../../src/core/stats/random.ts';
 import type { Stage } from '../../src/core/stages.ts';
 

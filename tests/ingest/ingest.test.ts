@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { runIngest } from '../../ingest/ingest.ts';
+import { runIngest } from '../../ingest/run.ts';
 import { writeFixtureCohort } from './fixture.ts';
 
 // An invented cohort of 4 recordings (8 EEG channels at 128 Hz, 36 min each) into a real DuckDB file.

@@ -3,7 +3,7 @@ import { mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { clusterScripts, ClusterScriptError, shellQuote } from '../../ingest/slurm/script.ts';
+import { clusterScripts, ClusterScriptError, shellQuote } from '../../src/cluster/slurm-script.ts';
 
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-cluster-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));

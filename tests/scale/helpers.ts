@@ -1,5 +1,5 @@
 /**
- * Helpers of the scale tests: a small invented cohort (EDF+C files by ingest/edf/writer.ts
+ * Helpers of the scale tests: a small invented cohort (EDF+C files by src/simulation/edf-writer.ts
  * through the ingest tests' fixture writer) and a table-by-table comparison of two databases.
  */
 import { mkdirSync, writeFileSync } from 'node:fs';

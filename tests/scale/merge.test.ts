@@ -4,7 +4,7 @@ import path from 'node:path';
 import { spawnSync } from 'node:child_process';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseShard, runIngest } from '../../ingest/ingest.ts';
+import { parseShard, runIngest } from '../../ingest/run.ts';
 import { openStore, readHeaderStorageNumber } from '../../ingest/store/database.ts';
 import { cohortQualityPass, MergeError, mergeShards, parameterDifferences } from '../../ingest/store/merge.ts';
 import { runPython } from '../helpers/python.ts';
@@ -50,7 +50,7 @@ describe('mergeShards', () => {
       expect(d.rowsB, d.table).toBe(d.rowsA);
     }
     const byTable = Object.fromEntries(diff.map((d) => [d.table, d.rowsA]));
-    // 5 channels × 5 stages × 2 averagings per recording (DESIGN.md: mean and median stored)
+    // 5 channels × 5 stages × 2 averagings per recording (docs/design.md: mean and median stored)
     expect(byTable.spectra).toBe(6 * 5 * 5 * 2);
     expect(byTable.participants).toBe(6);
     expect(byTable.runs).toBe(1);

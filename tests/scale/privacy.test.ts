@@ -1,4 +1,4 @@
-// Health-data rule (house rules; DESIGN.md "recordings … never any EDF patient or recording
+// Health-data rule (house rules; docs/design.md "recordings … never any EDF patient or recording
 // identification text"): a fake patient name, birth date, patient code and hospital planted in
 // the EDF header's identification fields (EDF+ 2003 §2.1.3.3–4: "code sex birthdate name" and
 // "Startdate date admincode technician equipment") must appear nowhere in what ingest writes:
@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { writeEdfFile } from '../../ingest/edf/writer.ts';
+import { writeEdfFile } from '../../src/simulation/edf-writer.ts';
 import { mergeShards } from '../../ingest/store/merge.ts';
 import { TABLES } from '../../ingest/store/schema.ts';
 import { Random } from '../../src/core/stats/random.ts';

@@ -1,6 +1,6 @@
 // Runs the dashboard server in its own process (so the load test can read the server's own RSS):
 // argv db-file app-folder; prints {"url", "pid"} as one JSON line; exits on SIGTERM.
-import { startDashboardServer } from '../../ingest/server/serve.ts';
+import { startDashboardServer } from '../../src/server/serve.ts';
 
 const [dbPath, appDir] = process.argv.slice(2);
 let served = 0;

@@ -1,4 +1,4 @@
-// The dashboard server (ingest/server/serve.ts) under load and bad input, in its own process,
+// The dashboard server (src/server/serve.ts) under load and bad input, in its own process,
 // on 127.0.0.1 only. Range semantics: RFC 9110 §14 (single byte ranges, 206/416); the request
 // line and header syntax: RFC 9112 §2–3 (Node's HTTP parser answers 400 / 431 itself).
 // Complements tests/dashboard/server.test.ts (traversal spellings, methods, Host check).

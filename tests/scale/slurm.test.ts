@@ -3,10 +3,10 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { runIngest } from '../../ingest/ingest.ts';
+import { runIngest } from '../../ingest/run.ts';
 import { openStore } from '../../ingest/store/database.ts';
 import { cohortQualityPass } from '../../ingest/store/merge.ts';
-import { shellQuote, writeClusterScripts } from '../../ingest/slurm/script.ts';
+import { shellQuote, writeClusterScripts } from '../../src/cluster/slurm-script.ts';
 import { compareDatabases, firstBitDifference, queryRows, spectraBits, writeSmallCohort } from './helpers.ts';
 import { startSlurm, waitFor, type SlurmCluster } from './slurm-harness.ts';
 
@@ -17,7 +17,7 @@ import { startSlurm, waitFor, type SlurmCluster } from './slurm-harness.ts';
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-slurm-'));
 const at = (f: string) => path.join(dir, f);
 const repo = path.resolve(import.meta.dirname, '../..');
-// the real commands; bin/bandwise.mjs reaches them once the lead registers them in ingest/cli/main.ts
+// the real commands; bin/bandwise.mjs reaches them once the lead registers them in src/cli/main.ts
 const bandwise = [process.execPath, path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/cli-entry.ts')].map(shellQuote).join(' ');
 let cluster: SlurmCluster | null = null;
 let table = '';

@@ -3,7 +3,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { readHeaderStorageNumber } from '../../ingest/store/database.ts';
-import { writeSyntheticDatabase } from '../../ingest/store/synthetic.ts';
+import { writeSyntheticDatabase } from '../../src/simulation/synthetic-store.ts';
 import { drawRecording, STAGE_MODELS, syntheticSpec } from '../../src/core/simulate/synthetic-database.ts';
 import { runPython } from '../helpers/python.ts';
 import { queryRows } from './helpers.ts';

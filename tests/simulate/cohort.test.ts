@@ -12,7 +12,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { NightGenerator, planNight, type Scenario } from '../../src/core/simulate/index.ts';
 import { openEdf } from '../../ingest/edf/reader.ts';
 import { readScoringTable } from '../../ingest/hypnogram/table.ts';
-import { DEMO_DIR, ensureCohort, loadScenario, participantsTsv, ScenarioFileError, writeSimulatedCohort } from '../../ingest/simulate/index.ts';
+import { DEMO_DIR, ensureCohort, loadScenario, participantsTsv, ScenarioFileError, writeSimulatedCohort } from '../../src/simulation/index.ts';
 import { baseScenario } from './scenarios.ts';
 
 const scenario: Scenario = baseScenario({

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import binomialQuantile from '@stdlib/stats-base-dists-binomial-quantile';
-import { runContrast } from '../../src/core/stats/index.ts';
+import { runPermutationTest } from '../../src/core/stats/index.ts';
 import { delaunayNeighbours } from '../../src/core/montage/adjacency.ts';
 import { Random } from '../../src/core/stats/random.ts';
 import { gridNoise } from './grid-noise.ts';
@@ -23,7 +23,7 @@ describe('family-wise error under the null', () => {
     let tfceHits = 0;
     for (let d = 0; d < datasets; d++) {
       const data = gridNoise(32, channels.length, nFreqs, neighbours, rng);
-      const r = runContrast({ channels, freqsHz, data, design: { kind: 'groups', group } }, { permutations: 500, seed: 1000 + d, tfce: true });
+      const r = runPermutationTest({ channels, freqsHz, data, design: { kind: 'groups', group } }, { permutations: 500, seed: 1000 + d, tfce: true });
       if (r.clusters.some((c) => c.p <= 0.05)) clusterHits++;
       if (r.tfce!.pCorrected.some((p) => p <= 0.05)) tfceHits++;
     }
@@ -50,7 +50,7 @@ describe('a planted effect', () => {
     for (const c of plantedChannels) for (let f = 20; f <= 30; f++) planted.add(c * nFreqs + f);
     const P = channels.length * nFreqs;
     for (let s = 16; s < 32; s++) for (const p of planted) data[s * P + p] += 1.6;
-    const r = runContrast({ channels, freqsHz, data, design: { kind: 'groups', group, groupNames: ['control', 'patient'] } }, { permutations: 1000, seed: 5, tfce: true });
+    const r = runPermutationTest({ channels, freqsHz, data, design: { kind: 'groups', group, groupNames: ['control', 'patient'] } }, { permutations: 1000, seed: 5, tfce: true });
     const best = r.clusters[0];
     console.log(`planted effect: best cluster p = ${best.p}, ${best.fminHz}–${best.fmaxHz} Hz, channels ${best.channels.join(',')}, ${best.points.length} points`);
     expect(best.p).toBeLessThanOrEqual(0.01);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { prepareContrast, runPermutations, type ContrastInput, type ContrastOptions } from '../../src/core/stats/index.ts';
+import { preparePermutationTest, runPermutations, type PermutationTestInput, type PermutationTestOptions } from '../../src/core/stats/index.ts';
 import { relabelling } from '../../src/core/stats/relabelling.ts';
 import { Random } from '../../src/core/stats/random.ts';
 import { delaunayNeighbours } from '../../src/core/montage/adjacency.ts';
@@ -23,7 +23,7 @@ const second = Float64Array.from(data, (x, i) => x + 0.3 * rng.normal() + (i % P
 const group = Array.from({ length: n }, (_, s) => (s < 12 ? 0 : 1));
 const covariate = Array.from({ length: n }, (_, s) => s + rng.normal() * 3);
 
-const designs: { name: string; kind: string; input: ContrastInput; options: ContrastOptions }[] = [
+const designs: { name: string; kind: string; input: PermutationTestInput; options: PermutationTestOptions }[] = [
   { name: 'welch', kind: 'welch', input: { channels, freqsHz, data, design: { kind: 'groups', group } }, options: {} },
   { name: 'student', kind: 'student', input: { channels, freqsHz, data, design: { kind: 'groups', group } }, options: { statistic: 'student-t' } },
   { name: 'paired', kind: 'paired', input: { channels, freqsHz, data, design: { kind: 'paired', second } }, options: {} },
@@ -38,7 +38,7 @@ describe('null maxima equal a numpy/scipy implementation on the same relabelling
     let edges: Int32Array | null = null;
     const thresholds: Record<string, number> = {};
     for (const d of designs) {
-      const prepared = prepareContrast(d.input, { ...d.options, permutations: m, seed: 9 });
+      const prepared = preparePermutationTest(d.input, { ...d.options, permutations: m, seed: 9 });
       edges = prepared.test.edges;
       thresholds[d.name] = prepared.test.threshold;
       ours[d.name] = Array.from(runPermutations(prepared.test, { from: 0, to: m }).cluster!);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { concatNullMaxima, prepareContrast, runContrast, runPermutations } from '../../src/core/stats/index.ts';
+import { concatNullMaxima, preparePermutationTest, runPermutationTest, runPermutations } from '../../src/core/stats/index.ts';
 import { binomial, makeScheme, relabelling } from '../../src/core/stats/relabelling.ts';
 import { Random } from '../../src/core/stats/random.ts';
 
@@ -61,7 +61,7 @@ describe('exact permutation p-values on a tiny design', () => {
     const base = [0, 1, 2, 10, 11, 12];
     const data = new Float64Array(6 * 3);
     for (let s = 0; s < 6; s++) for (let f = 0; f < 3; f++) data[s * 3 + f] = base[s] + 5 * f;
-    const r = runContrast(
+    const r = runPermutationTest(
       { channels: ['Cz'], freqsHz: [1, 2, 3], data, design: { kind: 'groups', group: [0, 0, 0, 1, 1, 1] } },
       { permutations: 1000, tfce: true },
     );
@@ -75,7 +75,7 @@ describe('exact permutation p-values on a tiny design', () => {
     expect(r.tfce!.pCorrected).toEqual([0.1, 0.1, 0.1]);
     expect(r.pValueRule).toMatch(/exact/);
     // cluster size as the statistic: the same two relabellings give a 3-point cluster
-    const bySize = runContrast(
+    const bySize = runPermutationTest(
       { channels: ['Cz'], freqsHz: [1, 2, 3], data, design: { kind: 'groups', group: [0, 0, 0, 1, 1, 1] } },
       { permutations: 1000, clusterMeasure: 'size' },
     );
@@ -91,7 +91,7 @@ describe('exact permutation p-values on a tiny design', () => {
     // reach the observed |mass|: p = 2/16 = 0.125.
     const first = new Float64Array([0, 0, 0, 0]);
     const second = new Float64Array([1.0, 1.1, 1.2, 1.3]);
-    const r = runContrast({ channels: ['Cz'], freqsHz: [12], data: first, design: { kind: 'paired', second } }, { permutations: 100 });
+    const r = runPermutationTest({ channels: ['Cz'], freqsHz: [12], data: first, design: { kind: 'paired', second } }, { permutations: 100 });
     expect(r.exact).toBe(true);
     expect(r.permutations).toBe(16);
     expect(r.clusters[0].p).toBe(2 / 16);
@@ -109,18 +109,18 @@ describe('splitting permutations over ranges', () => {
     for (let s = 10; s < n; s++) for (let p = 0; p < 20; p++) data[s * P + p] += 0.8;
     const input = { channels, freqsHz, data, design: { kind: 'groups' as const, group: Array.from({ length: n }, (_, s) => (s < 10 ? 0 : 1)) } };
     const options = { permutations: 300, seed: 11, tfce: true };
-    const whole = prepareContrast(input, options);
+    const whole = preparePermutationTest(input, options);
     const all = runPermutations(whole.test, { from: 0, to: 300 });
     // the second thread prepares its own copy from the same input
-    const other = prepareContrast(input, options);
+    const other = preparePermutationTest(input, options);
     const parts = [runPermutations(other.test, { from: 170, to: 300 }), runPermutations(whole.test, { from: 0, to: 170 })];
     const joined = concatNullMaxima(parts);
     expect([...joined.cluster!]).toEqual([...all.cluster!]);
     expect([...joined.tfce!]).toEqual([...all.tfce!]);
     expect(new Set(all.cluster).size).toBeGreaterThan(50); // the null maxima really vary
     const progress: [number, number][] = [];
-    const once = runContrast(input, options, (done, total) => progress.push([done, total]));
-    expect(JSON.stringify(runContrast(input, options))).toBe(JSON.stringify(once));
+    const once = runPermutationTest(input, options, (done, total) => progress.push([done, total]));
+    expect(JSON.stringify(runPermutationTest(input, options))).toBe(JSON.stringify(once));
     expect(progress[progress.length - 1]).toEqual([300, 300]);
     expect(progress.length).toBeGreaterThan(10);
     expect(() => concatNullMaxima([parts[0]])).not.toThrow();

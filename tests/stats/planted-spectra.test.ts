@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runContrast } from '../../src/core/stats/index.ts';
+import { runPermutationTest } from '../../src/core/stats/index.ts';
 import { simulateSpectrum } from '../../src/core/simulate/index.ts';
 import { Random } from '../../src/core/stats/random.ts';
 import { aperiodicLog10 } from '../../src/core/spectrum/aperiodic-model.ts';
@@ -38,7 +38,7 @@ describe('planted effect in simulated spectra', () => {
       });
     }
     const group = Array.from({ length: n }, (_, s) => (s < 20 ? 0 : 1));
-    const r = runContrast({ channels, freqsHz, data, design: { kind: 'groups', group, groupNames: ['control', 'patient'] } }, { permutations: 1000, seed: 3 });
+    const r = runPermutationTest({ channels, freqsHz, data, design: { kind: 'groups', group, groupNames: ['control', 'patient'] } }, { permutations: 1000, seed: 3 });
     const significant = r.clusters.filter((c) => c.p <= 0.05);
     console.log(`simulated spindle reduction: ${significant.map((c) => `sign ${c.sign}, p ${c.p.toFixed(4)}, ${c.fminHz}–${c.fmaxHz} Hz, ${c.channels.join(',')}`).join('; ')}`);
     expect(significant.length).toBe(1);

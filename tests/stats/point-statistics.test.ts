@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runContrast, type ContrastResult } from '../../src/core/stats/index.ts';
+import { runPermutationTest, type PermutationTestResult } from '../../src/core/stats/index.ts';
 import { Random } from '../../src/core/stats/random.ts';
 import { runPython } from '../helpers/python.ts';
 
@@ -104,7 +104,7 @@ const quick = { clusterMeasure: 'none' as const, permutations: 10 };
 
 describe('point statistics equal scipy.stats', () => {
   it('Welch t, Welch–Satterthwaite df and p (ttest_ind, equal_var=False), group 1 minus group 0', () => {
-    const r = runContrast({ channels, freqsHz, data: first, design: { kind: 'groups', group } }, quick);
+    const r = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group } }, quick);
     expect(r.statistic).toBe('welch-t');
     close(r.stat, ref.welch.t, 't');
     close(r.df as number[], ref.welch.df, 'df');
@@ -113,24 +113,24 @@ describe('point statistics equal scipy.stats', () => {
   });
 
   it('pooled-variance Student t (ttest_ind, equal_var=True)', () => {
-    const r = runContrast({ channels, freqsHz, data: first, design: { kind: 'groups', group } }, { ...quick, statistic: 'student-t' });
+    const r = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group } }, { ...quick, statistic: 'student-t' });
     close(r.stat, ref.student.t, 't');
     close(r.df as number, ref.student.df, 'df');
     close(r.pUncorrected, ref.student.p, 'p');
   });
 
   it('paired t of second − first (ttest_rel) and one-sample t (ttest_1samp)', () => {
-    const paired = runContrast({ channels, freqsHz, data: first, design: { kind: 'paired', second } }, quick);
+    const paired = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'paired', second } }, quick);
     close(paired.stat, ref.paired.t, 't');
     close(paired.df as number, ref.paired.df, 'df');
     close(paired.pUncorrected, ref.paired.p, 'p');
-    const one = runContrast({ channels, freqsHz, data: first, design: { kind: 'one-sample' } }, quick);
+    const one = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'one-sample' } }, quick);
     close(one.stat, ref.one.t, 't');
     close(one.pUncorrected, ref.one.p, 'p');
   });
 
   it('Pearson r and p (pearsonr), t = r√((n−2)/(1−r²)), Fisher-z interval', () => {
-    const r = runContrast({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate } }, quick);
+    const r = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate } }, quick);
     close(r.effect.value, ref.pearson.r, 'r');
     close(r.pUncorrected, ref.pearson.p, 'p');
     close(r.stat, ref.pearson.r.map((x) => x * Math.sqrt((n - 2) / (1 - x * x))), 't');
@@ -140,7 +140,7 @@ describe('point statistics equal scipy.stats', () => {
   });
 
   it('Spearman rho with tied values (spearmanr, ties averaged)', () => {
-    const r = runContrast({ channels, freqsHz, data: tied, design: { kind: 'covariate', covariate: tiedCovariate } }, { ...quick, statistic: 'spearman' });
+    const r = runPermutationTest({ channels, freqsHz, data: tied, design: { kind: 'covariate', covariate: tiedCovariate } }, { ...quick, statistic: 'spearman' });
     close(r.effect.value, ref.spearman.r, 'rho');
     close(r.pUncorrected, ref.spearman.p, 'p');
   });
@@ -150,28 +150,28 @@ describe('point statistics equal scipy.stats', () => {
       { name: 'z1', values: nuisance1 },
       { name: 'z2', values: nuisance2 },
     ];
-    const cov: ContrastResult = runContrast({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate, nuisance } }, quick);
+    const cov: PermutationTestResult = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate, nuisance } }, quick);
     expect(cov.statistic).toBe('linear-model-t');
     expect(cov.df).toBe(n - 4);
     close(cov.stat, ref.lmCov.t, 't');
     close(cov.pUncorrected, ref.lmCov.p, 'p');
     close(cov.effect.difference!, ref.lmCov.beta, 'beta');
     close(cov.effect.value, ref.lmCov.partial, 'partial r');
-    const grp = runContrast({ channels, freqsHz, data: first, design: { kind: 'groups', group, nuisance } }, quick);
+    const grp = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group, nuisance } }, quick);
     close(grp.stat, ref.lmGroup.t, 't');
     close(grp.pUncorrected, ref.lmGroup.p, 'p');
     close(grp.effect.difference!, ref.lmGroup.beta, 'adjusted difference');
   });
 
   it("Hedges' g with the Hedges & Olkin interval and the mean difference", () => {
-    const r = runContrast({ channels, freqsHz, data: first, design: { kind: 'groups', group } }, quick);
+    const r = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group } }, quick);
     expect(r.effect.kind).toBe('hedges-g');
     close(r.effect.value, ref.hedges.g, 'g');
     close(r.effect.ciLow, ref.hedges.lo, 'lo');
     close(r.effect.ciHigh, ref.hedges.hi, 'hi');
     close(r.effect.difference!, ref.hedges.diff, 'difference');
     // paired: g of the differences with J = 1 − 3/(4(n − 1) − 1) and var ≈ 1/n + g²/(2n)
-    const paired = runContrast({ channels, freqsHz, data: first, design: { kind: 'paired', second } }, quick);
+    const paired = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'paired', second } }, quick);
     close(paired.effect.value, ref.hedgesPaired.g, 'paired g');
     close(paired.effect.ciLow, ref.hedgesPaired.lo, 'paired lo');
     close(paired.effect.ciHigh, ref.hedgesPaired.hi, 'paired hi');
@@ -181,9 +181,9 @@ describe('point statistics equal scipy.stats', () => {
   it('fails loudly on bad input, naming the field', () => {
     const bad = Float64Array.from(first);
     bad[3 * P + 4] = NaN;
-    expect(() => runContrast({ channels, freqsHz, data: bad, design: { kind: 'groups', group } }, quick)).toThrow(/subject row 3, channel C4, 10.5 Hz/);
-    expect(() => runContrast({ channels, freqsHz, data: first, design: { kind: 'groups', group: group.map((g) => g * 2) } }, quick)).toThrow(/design.group\[6\]/);
-    expect(() => runContrast({ channels, freqsHz, data: first.subarray(1), design: { kind: 'one-sample' } }, quick)).toThrow(/multiple of channels × bins/);
-    expect(() => runContrast({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate, nuisance: [{ name: 'dup', values: covariate }] } }, quick)).toThrow(/collinear/);
+    expect(() => runPermutationTest({ channels, freqsHz, data: bad, design: { kind: 'groups', group } }, quick)).toThrow(/subject row 3, channel C4, 10.5 Hz/);
+    expect(() => runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group: group.map((g) => g * 2) } }, quick)).toThrow(/design.group\[6\]/);
+    expect(() => runPermutationTest({ channels, freqsHz, data: first.subarray(1), design: { kind: 'one-sample' } }, quick)).toThrow(/multiple of channels × bins/);
+    expect(() => runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate, nuisance: [{ name: 'dup', values: covariate }] } }, quick)).toThrow(/collinear/);
   });
 });

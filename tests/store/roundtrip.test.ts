@@ -8,7 +8,7 @@
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openStore } from '../../ingest/store/database.ts';
-import { listRecordings, listRuns, readAperiodic, readParticipants, readSpectra } from '../../ingest/store/read.ts';
+import { listRecordings, listRuns, readAperiodic, readParticipants, readSpectra } from '../../src/analysis/store-read.ts';
 import type { Store } from '../../ingest/store/writer.ts';
 import type { RecordingBundle } from '../../ingest/store/bundle.ts';
 import { makeBundle, type BundleSize } from './make-bundle.ts';

@@ -1,5 +1,5 @@
 /**
- * The database names are a public interface fixed in /work/shared/DESIGN.md, section
+ * The database names are a public interface fixed in the design notes (docs/design.md), section
  * "The database". The expected tables and columns are parsed from that file (outside this
  * module), and checked against the tables DuckDB actually created.
  */
@@ -10,9 +10,9 @@ import { openStore } from '../../ingest/store/database.ts';
 import { TABLE_NAMES, TABLES } from '../../ingest/store/schema.ts';
 import { sql, tempDir } from './helpers.ts';
 
-const DESIGN = '/work/shared/DESIGN.md';
+const DESIGN = join(import.meta.dirname, '..', '..', 'docs', 'design.md');
 
-/** Tables and columns as written in DESIGN.md: `name(col, col TYPE, …)`. */
+/** Tables and columns as written in docs/design.md: `name(col, col TYPE, …)`. */
 function designTables(): Map<string, { name: string; type: string | null }[]> {
   const text = readFileSync(DESIGN, 'utf8');
   const section = text.slice(text.indexOf('## The database'), text.indexOf('## The command line')).replace(/\s+/g, ' ');
@@ -31,12 +31,12 @@ function designTables(): Map<string, { name: string; type: string | null }[]> {
   return out;
 }
 
-describe('schema names equal DESIGN.md', () => {
+describe('schema names equal docs/design.md', () => {
   const design = designTables();
   const { dir, cleanup } = tempDir();
   afterAll(cleanup);
 
-  it('parses the twelve tables DESIGN.md lists', () => {
+  it('parses the twelve tables docs/design.md lists', () => {
     expect([...design.keys()].sort()).toEqual(
       ['aperiodic', 'channels', 'epoch_band_power', 'epoch_rejections', 'epochs', 'ingest_errors',
         'participants', 'peaks', 'quality', 'recordings', 'runs', 'spectra'],

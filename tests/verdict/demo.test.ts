@@ -13,11 +13,11 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Command } from 'commander';
-import { register as registerBandCheck } from '../../ingest/cli/band-check.ts';
-import { register as registerReport } from '../../ingest/cli/report.ts';
-import { readLedger } from '../../ingest/ledger.ts';
+import { register as registerBandCheck } from '../../src/cli/band-check.ts';
+import { register as registerReport } from '../../src/cli/report.ts';
+import { readLedger } from '../../src/analysis/ledger.ts';
 import { openStore } from '../../ingest/store/index.ts';
-import type { BandCheckRun } from '../../ingest/cli/band-check.ts';
+import type { BandCheckRun } from '../../src/analysis/band-check-runner.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 
 let db = '';

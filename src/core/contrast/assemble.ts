@@ -7,7 +7,7 @@ import type { Contrast } from './spec.ts';
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from './data.ts';
 import { measureLayout, measureValues, type MeasureLayout } from './measure.ts';
 import { mixedRecordedReferences } from './recorded-references.ts';
-import type { ContrastInput, Design } from '../stats/index.ts';
+import type { PermutationTestInput, Design } from '../stats/index.ts';
 import type { Stage } from '../stages.ts';
 
 export interface Participation {
@@ -17,7 +17,7 @@ export interface Participation {
 }
 
 export interface AssembledContrast {
-  input: ContrastInput;
+  input: PermutationTestInput;
   layout: MeasureLayout;
   /** subjects in the analysis, in the row order of input.data */
   subjects: Participation[];
@@ -203,7 +203,7 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
   }
   if (design.kind !== 'paired' && design.nuisance && design.nuisance.length === 0) delete design.nuisance;
   const pointChannels = c.channelAverage ? [`mean(${channels.join(',')})`] : channels;
-  const input: ContrastInput = {
+  const input: PermutationTestInput = {
     channels: pointChannels,
     freqsHz: layout.freqsHz,
     data: data0,

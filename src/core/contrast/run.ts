@@ -1,14 +1,14 @@
 /**
  * Runs a contrast end to end on the rows it reads and returns the compare result JSON
- * (DESIGN.md: the contrast, the n per group, the exclusions, and the clusters with sign, mass, p,
+ * (docs/design.md: the contrast, the n per group, the exclusions, and the clusters with sign, mass, p,
  * frequency range and channels; signs are groups[1] minus groups[0]).
  */
 import type { Contrast } from './spec.ts';
 import type { ContrastData, Exclusion } from './data.ts';
 import { assembleContrast, type AssembledContrast, type Participation } from './assemble.ts';
 import {
-  finishContrast, prepareContrast, runPermutations,
-  type ContrastOptions, type ContrastResult, type NullMaxima, type PermutationRange, type PreparedContrast, type ProgressCallback,
+  finishPermutationTest, preparePermutationTest, runPermutations,
+  type PermutationTestOptions, type PermutationTestResult, type NullMaxima, type PermutationRange, type PreparedPermutationTest, type ProgressCallback,
 } from '../stats/index.ts';
 
 export const RESEARCH_NOTE = 'bandwise is a research tool. Its results are not a diagnosis and must not be used for clinical decisions.';
@@ -32,10 +32,10 @@ export interface CompareResult {
   subjects: Participation[];
   exclusions: Exclusion[];
   clusters: CompareCluster[];
-  statistics: ContrastResult;
+  statistics: PermutationTestResult;
 }
 
-export function statsOptions(c: Contrast): ContrastOptions {
+export function statsOptions(c: Contrast): PermutationTestOptions {
   return {
     statistic: c.statistic,
     permutations: c.permutations,
@@ -50,7 +50,7 @@ export function statsOptions(c: Contrast): ContrastOptions {
 export interface PreparedCompare {
   contrast: Contrast;
   assembled: AssembledContrast;
-  prepared: PreparedContrast;
+  prepared: PreparedPermutationTest;
 }
 
 export function prepareCompare(c: Contrast, data: ContrastData): PreparedCompare {
@@ -61,7 +61,7 @@ export function prepareCompare(c: Contrast, data: ContrastData): PreparedCompare
 export function prepareAssembled(c: Contrast, assembled: AssembledContrast): PreparedCompare {
   const options = statsOptions(c);
   options.frequencyAdjacency = assembled.layout.frequencyAdjacency;
-  return { contrast: c, assembled, prepared: prepareContrast(assembled.input, options) };
+  return { contrast: c, assembled, prepared: preparePermutationTest(assembled.input, options) };
 }
 
 /** The permutations [from, to) of part `index` of `parts` equal shares of `count` (split over threads). */
@@ -72,7 +72,7 @@ export function permutationShare(count: number, index: number, parts: number): P
 /** The result from the prepared contrast and the null maxima of all its permutations. */
 export function finishCompare(p: PreparedCompare, nulls: NullMaxima): CompareResult {
   const { contrast: c, assembled: a } = p;
-  const statistics = finishContrast(p.prepared, nulls);
+  const statistics = finishPermutationTest(p.prepared, nulls);
   return {
     kind: 'compare',
     note: RESEARCH_NOTE,

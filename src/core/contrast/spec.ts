@@ -1,13 +1,25 @@
 /**
  * The contrast: one defined comparison, as JSON. The dashboard saves it and `bandwise compare`
- * reads it; the keys are a public interface (DESIGN.md). Differences and signs are always
+ * reads it; the keys are a public interface (docs/design.md). Differences and signs are always
  * groups[1] minus groups[0] (paired: second minus first).
  */
 import { z } from 'zod';
+import { BandError, parseBand, type Band } from '../spectrum/bands.ts';
 
 const stage = z.enum(['W', 'N1', 'N2', 'N3', 'R']);
 const hz = z.number().finite().nonnegative();
-const band = z.object({ name: z.string().min(1), loHz: hz, hiHz: hz }).refine((b) => b.hiHz > b.loHz, { message: 'hiHz must exceed loHz' });
+const bandObject = z.object({ name: z.string().min(1), loHz: hz, hiHz: hz }).refine((b) => b.hiHz > b.loHz, { message: 'hiHz must exceed loHz' });
+/** A band as {name, loHz, hiHz} or as text in the one band grammar (bands.ts parseBand: "12-16", "sigma:12-16", "sigma"). */
+const band = z.union([z.string(), bandObject]).transform((b, ctx): Band => {
+  if (typeof b !== 'string') return b;
+  try {
+    return parseBand(b);
+  } catch (e) {
+    if (!(e instanceof BandError)) throw e;
+    ctx.addIssue({ code: 'custom', message: e.message });
+    return z.NEVER;
+  }
+});
 
 export const MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center'] as const;
 export type MeasureName = (typeof MEASURES)[number];

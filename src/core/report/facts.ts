@@ -1,6 +1,6 @@
 /**
  * What a methods report needs besides the result: facts about the database the result was
- * computed from (gathered by ingest/report.ts in Node, by the dashboard's queries in the
+ * computed from (gathered by src/analysis/report-facts.ts in Node, by the dashboard's queries in the
  * browser) and the ledger counts. Plain JSON.
  */
 

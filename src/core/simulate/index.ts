@@ -1,4 +1,4 @@
-/** Synthetic sleep EEG with known ground truth (pure; the Node glue is ingest/simulate/). */
+/** Synthetic sleep EEG with known ground truth (pure; the Node glue is src/simulation/). */
 export type {
   ArtifactSpec, BackgroundSource, BackgroundSpec, BurstRhythm, CovariateSpec, EffectSpec, GroupSpec,
   HypnogramSpec, NarrowbandRhythm, ReferenceSpec, RhythmSpec, Scenario, ScoredStage, StageAperiodic, VariabilitySpec,

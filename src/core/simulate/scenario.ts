@@ -1,6 +1,6 @@
 /**
  * The scenario of a simulated cohort: everything the generator needs, as a plain JSON-able
- * object (validated by the Node glue in ingest/simulate/; the core takes the parsed object).
+ * object (validated by the Node glue in src/simulation/; the core takes the parsed object).
  *
  * Physical picture (documented in the ground truth too):
  *   V_e(t) = Σ_s g_s(e)·S_s(t) + N_e(t) + Σ_r g_r(e)·R_r(t)      potential at electrode e (µV)

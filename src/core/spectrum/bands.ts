@@ -47,11 +47,25 @@ export function checkBand(band: Band): Band {
   return band;
 }
 
-/** Parses "name:lo-hi" (e.g. "sigma:11-16") into a band. */
+/** Every named band parseBand knows (DEFAULT_BANDS, then SIGMA_PRESETS). */
+export const NAMED_BANDS: readonly Band[] = [...DEFAULT_BANDS, ...SIGMA_PRESETS];
+
+/** The band grammar in words, for help texts and error messages. */
+export const BAND_SYNTAX = `LO-HI in Hz (e.g. 12-16), name:LO-HI, or a preset: ${NAMED_BANDS.map((b) => b.name).join(', ')}`;
+
+/**
+ * The one band grammar of every command, the contrast JSON and the band check's address bar:
+ * "LO-HI" in Hz (e.g. "12-16", named "12–16 Hz"), "name:LO-HI" (e.g. "spindles:12.5-15"; the name
+ * is any text without a colon), or the name of a preset (NAMED_BANDS, e.g. "sigma").
+ */
 export function parseBand(text: string): Band {
-  const m = /^\s*([A-Za-z][\w-]*)\s*:\s*([\d.]+)\s*-\s*([\d.]+)\s*$/.exec(text);
-  if (!m) throw new BandError(`invalid band '${text}' (expected name:lo-hi in Hz, e.g. sigma:12-16)`);
-  return checkBand({ name: m[1], loHz: Number(m[2]), hiHz: Number(m[3]) });
+  const preset = NAMED_BANDS.find((b) => b.name === text.trim());
+  if (preset) return { ...preset };
+  const m = /^\s*(?:([^:]+?)\s*:)?\s*([\d.]+)\s*-\s*([\d.]+)\s*$/.exec(text);
+  if (!m) throw new BandError(`invalid band '${text}': expected ${BAND_SYNTAX}`);
+  const lo = Number(m[2]);
+  const hi = Number(m[3]);
+  return checkBand({ name: m[1] === undefined ? `${lo}–${hi} Hz` : m[1].trim(), loHz: lo, hiHz: hi });
 }
 
 /** First and last bin index (inclusive) with loHz ≤ f ≤ hiHz, or null when no bin falls inside. */

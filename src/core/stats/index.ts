@@ -3,10 +3,11 @@
  * permutation (Maris & Oostenveld 2007) and TFCE (Smith & Nichols 2009). Pure computation — no
  * I/O — so it runs in Node (command line) and in a browser Web Worker (dashboard).
  *
- * One call: runContrast(input, options, onProgress?) → ContrastResult (JSON-able).
- * Split over threads: prepareContrast(input, options) on every thread (deterministic), each thread
- * runPermutations(prepared.test, {from, to}), then finishContrast(prepared, concatNullMaxima(parts))
- * — identical to runContrast for the same seed, because permutation i depends only on (seed, i).
+ * One call: runPermutationTest(input, options, onProgress?) → PermutationTestResult (JSON-able).
+ * Split over threads: preparePermutationTest(input, options) on every thread (deterministic), each
+ * thread runPermutations(prepared.test, {from, to}), then
+ * finishPermutationTest(prepared, concatNullMaxima(parts)) — identical to runPermutationTest for
+ * the same seed, because permutation i depends only on (seed, i).
  *
  * Data layout: `data` is a subjects × points matrix, row-major, with points = channels × frequency
  * bins and point index = channel·nFreqs + bin (channel-major), i.e. data[s·P + c·F + f].
@@ -79,7 +80,7 @@ export interface CovariateDesign {
 
 export type Design = GroupsDesign | PairedDesign | OneSampleDesign | CovariateDesign;
 
-export interface ContrastInput {
+export interface PermutationTestInput {
   /** channel names, in the order of the point layout */
   channels: string[];
   /** frequency of each bin, Hz, ascending */
@@ -97,7 +98,7 @@ export interface ContrastInput {
 
 export type StatisticName = 'welch-t' | 'student-t' | 'paired-t' | 'one-sample-t' | 'pearson' | 'spearman' | 'linear-model-t';
 
-export interface ContrastOptions {
+export interface PermutationTestOptions {
   /** groups: 'welch-t' (default) or 'student-t'; covariate: 'pearson' (default) or 'spearman';
    * with nuisance covariates only 'linear-model-t' (the default then) */
   statistic?: StatisticName;
@@ -144,7 +145,7 @@ export interface EffectResult {
   difference: number[] | null;
 }
 
-export interface ContrastResult {
+export interface PermutationTestResult {
   design: Design['kind'];
   statistic: StatisticName;
   nSubjects: number;
@@ -177,7 +178,7 @@ export interface ContrastResult {
   pValueRule: string;
 }
 
-export { runContrast, prepareContrast, finishContrast, ContrastInputError, type PreparedContrast } from './contrast.ts';
+export { runPermutationTest, preparePermutationTest, finishPermutationTest, PermutationTestInputError, type PreparedPermutationTest } from './permutation-test.ts';
 export { runPermutations, concatNullMaxima, permutationP, type NullMaxima, type PermutationRange, type PermutationTest, type ProgressCallback } from './permutation-engine.ts';
 export { tCdf, tQuantile, normalQuantile, twoTailedP, twoTailedCriticalT, fisherZ, fisherZInverse, correlationToT } from './distributions.ts';
 export { TFCE_DEFAULTS, type TfceParameters } from './tfce.ts';

@@ -9,7 +9,7 @@ import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData, Exclusion } from '../contrast/data.ts';
 import { compare, RESEARCH_NOTE, type CompareCluster } from '../contrast/run.ts';
 import { bandBins, checkBand, type Band } from '../spectrum/bands.ts';
-import type { ContrastResult } from '../stats/index.ts';
+import type { PermutationTestResult } from '../stats/index.ts';
 import { assembleAveraged, combine, reduce, rowMean, runScalarTest, type ScalarTest, type ScalarValues } from './scalar-test.ts';
 import { decideVerdict, describeTest, type DirectionWords, type FamilyStep, type Verdict } from './rules.ts';
 import { bandCheckFigure, type BandCheckFigure } from './figure.ts';
@@ -236,7 +236,7 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
   );
 
   const exclusions = uniqueBySubject([...Object.values(tests).flatMap((x) => x?.excluded ?? []), ...fw.exclusions]);
-  const figure = bandCheckFigure(c, data, band, flanks, options.fitRangeHz, fw.statistics as ContrastResult);
+  const figure = bandCheckFigure(c, data, band, flanks, options.fitRangeHz, fw.statistics as PermutationTestResult);
   return {
     kind: 'band-check',
     note: RESEARCH_NOTE,

@@ -7,7 +7,7 @@
 import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData } from '../contrast/data.ts';
 import type { Band } from '../spectrum/bands.ts';
-import type { ContrastResult } from '../stats/index.ts';
+import type { PermutationTestResult } from '../stats/index.ts';
 import { assembleAveraged } from './scalar-test.ts';
 
 export interface FigureSeries {
@@ -34,7 +34,7 @@ export interface BandCheckFigure {
   clusters: { sign: 1 | -1; p: number; fminHz: number; fmaxHz: number }[];
 }
 
-export function bandCheckFigure(c: Contrast, data: ContrastData, band: Band, flanks: { lower: Band | null; upper: Band | null }, fitRangeHz: [number, number], fw: ContrastResult): BandCheckFigure {
+export function bandCheckFigure(c: Contrast, data: ContrastData, band: Band, flanks: { lower: Band | null; upper: Band | null }, fitRangeHz: [number, number], fw: PermutationTestResult): BandCheckFigure {
   const axis = data.spectra;
   const fminHz = Math.max(c.fminHz, axis.freqStartHz > 0 ? axis.freqStartHz : axis.freqStepHz);
   const logPsd = assembleAveraged(c, data, { measure: 'log-psd', fminHz, fmaxHz: c.fmaxHz });

@@ -1,6 +1,6 @@
 /**
  * One number per subject (a band summary of a measure, averaged over the channel set), tested
- * with the statistics engine's permutation machinery (runContrast), as a single point.
+ * with the statistics engine's permutation machinery (runPermutationTest), as a single point.
  *
  * A single point has no neighbours, so its only possible cluster is the point itself: with a
  * cluster-forming threshold next to zero (two-tailed p just below 1), the cluster mass is the
@@ -15,7 +15,7 @@
 import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData, Exclusion } from '../contrast/data.ts';
 import { assembleContrast, type AssembledContrast, type Participation } from '../contrast/assemble.ts';
-import { prepareContrast, runContrast, type ContrastInput, type Design, type ProgressCallback, type StatisticName } from '../stats/index.ts';
+import { preparePermutationTest, runPermutationTest, type PermutationTestInput, type Design, type ProgressCallback, type StatisticName } from '../stats/index.ts';
 
 /** Two-tailed cluster-forming p that makes the threshold |t| ≈ 1e-9: every non-zero t is its own cluster. */
 const ONE_POINT_CLUSTER_P = 1 - 1e-9;
@@ -155,14 +155,14 @@ export interface ScalarTestOptions {
   onProgress?: ProgressCallback;
 }
 
-function scalarInput(v: ScalarValues): ContrastInput {
+function scalarInput(v: ScalarValues): PermutationTestInput {
   return { channels: ['value'], freqsHz: [0], data: v.values, design: subsetDesign(v.design, v.rows, v.second), channelNeighbours: null };
 }
 
 /** The effect size of one value per subject with its interval, without permutations. */
 export function scalarEffect(v: ScalarValues, o: Pick<ScalarTestOptions, 'statistic' | 'confidenceLevel'>): Pick<ScalarTest, 'effectKind' | 'effect' | 'ciLow' | 'ciHigh' | 'level' | 'n'> {
   const input = scalarInput(v);
-  const e = prepareContrast(input, { statistic: o.statistic, permutations: 1, clusterMeasure: 'none', confidenceLevel: o.confidenceLevel }).effect;
+  const e = preparePermutationTest(input, { statistic: o.statistic, permutations: 1, clusterMeasure: 'none', confidenceLevel: o.confidenceLevel }).effect;
   return { effectKind: e.kind, effect: e.value[0], ciLow: e.ciLow[0], ciHigh: e.ciHigh[0], level: e.level, n: nPerGroup(input.design, v.values.length) };
 }
 
@@ -170,7 +170,7 @@ export function scalarEffect(v: ScalarValues, o: Pick<ScalarTestOptions, 'statis
 export function runScalarTest(v: ScalarValues, o: ScalarTestOptions): ScalarTest {
   const input = scalarInput(v);
   const design = input.design;
-  const r = runContrast(input, {
+  const r = runPermutationTest(input, {
     statistic: o.statistic,
     permutations: o.permutations,
     seed: o.seed,

@@ -1,7 +1,6 @@
-// One band grammar for every form and address key: `LO-HI` or `name:LO-HI` in Hz (as
-// `bandwise band-check --band`). Edges without a name take the name of the preset with those edges,
-// else the plain name "band"; the address always holds `name:LO-HI`.
-import { DEFAULT_BANDS, SIGMA_PRESETS, BandError, checkBand, type Band } from '../../core/spectrum/bands.ts';
+// One band grammar for every form, address key and command: `LO-HI`, `name:LO-HI` (Hz) or a preset
+// name, parsed by src/core/spectrum/bands.ts parseBand; the address always holds `name:LO-HI`.
+import { DEFAULT_BANDS, SIGMA_PRESETS, checkBand, parseBand, type Band } from '../../core/spectrum/bands.ts';
 import { DEFAULT_BAND } from './defaults.ts';
 
 /** Named bands offered as presets (edges stay editable). */
@@ -13,13 +12,9 @@ export function withEdges(loHz: number, hiHz: number): Band {
   return checkBand(preset ? { ...preset } : { name: 'band', loHz, hiHz });
 }
 
-/** Parses `LO-HI` or `name:LO-HI` (Hz); throws naming the text. */
+/** Parses a band with the commands' one grammar (src/core/spectrum/bands.ts parseBand); throws naming the text. */
 export function parseBandText(text: string): Band {
-  const m = /^\s*(?:([A-Za-z][\w-]*)\s*:)?\s*(\d+(?:\.\d+)?)\s*-\s*(\d+(?:\.\d+)?)\s*$/.exec(text);
-  if (!m) throw new BandError(`invalid band '${text}' (expected LO-HI or name:LO-HI in Hz, e.g. 12-16 or sigma:12-16)`);
-  const loHz = Number(m[2]);
-  const hiHz = Number(m[3]);
-  return m[1] === undefined ? withEdges(loHz, hiHz) : checkBand({ name: m[1], loHz, hiHz });
+  return parseBand(text);
 }
 
 /** The address form of a band: `name:LO-HI`. */

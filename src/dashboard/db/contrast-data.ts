@@ -1,4 +1,4 @@
-// What a contrast reads, over duckdb-wasm: the dashboard's twin of ingest/compare.ts
+// What a contrast reads, over duckdb-wasm: the dashboard's twin of src/analysis/compare-runner.ts
 // (loadContrastData), filling src/core/contrast's ContrastData the same way, row for row.
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, RecordedReference, SpectrumRow } from '../../core/contrast/data.ts';
 import { measureNeeds } from '../../core/contrast/measure.ts';

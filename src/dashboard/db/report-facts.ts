@@ -1,5 +1,5 @@
 // The database facts a methods report states (src/core/report DatabaseFacts), over duckdb-wasm:
-// the dashboard's twin of ingest/report.ts (databaseFacts), query for query.
+// the dashboard's twin of src/analysis/report-facts.ts (databaseFacts), query for query.
 import type { Contrast } from '../../core/contrast/spec.ts';
 import type { DatabaseFacts } from '../../core/report/index.ts';
 import { tableToRows } from './arrow-rows.ts';

@@ -1,5 +1,5 @@
 // What a band check and a robustness run read, over duckdb-wasm: the dashboard's twin of
-// ingest/cli/band-check.ts (loadBandCheckData) and of the row sets the robustness bench loads,
+// src/analysis/band-check-runner.ts (loadBandCheckData) and of the row sets the robustness bench loads,
 // built on the contrast loader (db/contrast-data.ts) so the rows are those of a compare run.
 import type { AperiodicRow, ContrastData, Exclusion } from '../../core/contrast/data.ts';
 import type { Contrast } from '../../core/contrast/spec.ts';

@@ -1,0 +1,82 @@
+/**
+ * `bandwise band-check <cohort.duckdb> (--contrast contrast.json | options) --band LO-HI --out result.json`
+ * Is a band effect band-specific, or a broadband aperiodic change seen through the band? Runs the
+ * band check of src/core/verdict on the contrast's channels (averaged) and writes the verdict
+ * with every effect, its interval and p, and the sentence behind it.
+ */
+import { writeFileSync, readFileSync } from 'node:fs';
+import { Command, InvalidArgumentError } from 'commander';
+import cliProgress from 'cli-progress';
+import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
+import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
+import { bandCheckDatabase, type BandCheckRun } from '../analysis/band-check-runner.ts';
+import { appendLedger } from '../analysis/ledger.ts';
+import { addContrastOptions, contrastOrExit, inputOrExit, type Flags } from './contrast-options.ts';
+import { reportUserError } from './user-errors.ts';
+
+interface BandFlags extends Omit<Flags, 'band'> {
+  band: string;
+  out: string;
+  alpha?: number;
+  flankWidth?: number;
+}
+
+const positive = (name: string) => (v: string) => {
+  const x = Number(v);
+  if (!(Number.isFinite(x) && x > 0)) throw new InvalidArgumentError(`invalid ${name}: ${v}`);
+  return x;
+};
+
+export function register(program: Command): void {
+  const command = program
+    .command('band-check')
+    .summary('is a band effect band-specific, or a broadband aperiodic change? (verdict with the numbers behind it)')
+    .description(
+      'For a band, a stage and the contrast\'s channels (averaged), tests with the same permutation machinery as ' +
+        'compare: the raw band power, the aperiodic offset and exponent, the periodic band power (residual above the ' +
+        'aperiodic fit) and peak height, the flanks just below and above the band, relative power, and the frequency-wise ' +
+        'cluster test; then gives a verdict (band-specific, broadband-offset, exponent-change, mixed, no-evidence) with ' +
+        'the sentence that explains it. The decision rules are in the README. A research tool: results are not a diagnosis.',
+    )
+    .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
+    .requiredOption('--band <band>', `the band: ${BAND_SYNTAX}`)
+    .requiredOption('--out <file>', 'result JSON to write')
+    .option('--alpha <a>', 'level of every test and of the verdict\'s correction (default 0.05)', positive('--alpha'))
+    .option('--flank-width <hz>', 'width of each flank, Hz (default: the band\'s width)', positive('--flank-width'));
+  addContrastOptions(command, { bandMeasures: false });
+  command.action(async (database: string, flags: BandFlags) => {
+    const band = inputOrExit(() => parseBand(flags.band));
+    if (!band) return;
+    const contrast = contrastOrExit({ ...flags, band: undefined });
+    if (!contrast) return;
+    const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
+    const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'band check {bar} {value}/{total} tests | {step}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
+    let started = false;
+    let result: BandCheckRun;
+    try {
+      result = await bandCheckDatabase(database, contrast, band, exclusions, {
+        alpha: flags.alpha,
+        flankWidthHz: flags.flankWidth,
+        onProgress: (step, done, total) => {
+          if (!bar) return;
+          if (!started) {
+            bar.start(total, 0, { step });
+            started = true;
+          }
+          bar.update(done, { step });
+        },
+      }, flags.run);
+    } catch (e) {
+      bar?.stop();
+      if (reportUserError('band-check', e)) return;
+      throw e;
+    }
+    bar?.stop();
+    writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
+    // the ledger records the band with the contrast
+    if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p });
+    console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}`);
+    console.log(result.sentence);
+    console.log(`wrote ${flags.out}`);
+  });
+}

@@ -1,0 +1,155 @@
+/**
+ * The options that define a contrast on the command line (and the contrast JSON they override),
+ * shared by the commands that run one (compare, band-check).
+ */
+import { readFileSync } from 'node:fs';
+import { Command, InvalidArgumentError, Option } from 'commander';
+import { MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../core/contrast/spec.ts';
+import { BAND_SYNTAX, BandError, parseBand } from '../core/spectrum/bands.ts';
+
+const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);
+const pair = (name: string) => (v: string): [string, string] => {
+  const parts = list(v);
+  if (parts.length !== 2) throw new InvalidArgumentError(`${name} needs two values separated by a comma, got "${v}"`);
+  return [parts[0], parts[1]];
+};
+const num = (name: string) => (v: string) => {
+  const x = Number(v);
+  if (!Number.isFinite(x)) throw new InvalidArgumentError(`invalid ${name}: ${v}`);
+  return x;
+};
+
+export interface Flags {
+  threads?: number;
+  contrast?: string;
+  out: string;
+  tsv?: string;
+  pointsTsv?: string;
+  exclusions?: string;
+  run?: string;
+  ledger?: string | false;
+  quiet?: boolean;
+  design?: string;
+  groupColumn?: string;
+  groups?: [string, string];
+  stages?: [string, string];
+  sessions?: [string, string];
+  session?: string;
+  covariate?: string;
+  nuisance?: string[];
+  stage?: string;
+  reference?: string;
+  averaging?: string;
+  channels?: string[];
+  channelAverage?: boolean;
+  fmin?: number;
+  fmax?: number;
+  measure?: string;
+  relativeRange?: [string, string];
+  band?: string[];
+  bandMethod?: string;
+  aperiodicMethod?: string;
+  statistic?: string;
+  correction?: string;
+  clusterP?: number;
+  permutations?: number;
+  seed?: number;
+}
+
+/** Builds the contrast JSON from the file (if any) with the command-line options on top. */
+export function contrastFromFlags(f: Flags): ContrastJson {
+  const base = (f.contrast ? JSON.parse(readFileSync(f.contrast, 'utf8')) : {}) as Record<string, unknown>;
+  const set = (k: string, v: unknown) => {
+    if (v !== undefined) base[k] = v;
+  };
+  set('design', f.design);
+  set('groupColumn', f.groupColumn);
+  set('groups', f.groups);
+  set('stages', f.stages);
+  set('sessions', f.sessions);
+  set('session', f.session);
+  set('covariate', f.covariate);
+  set('nuisance', f.nuisance);
+  set('stage', f.stage);
+  set('reference', f.reference);
+  set('averaging', f.averaging);
+  set('channels', f.channels && f.channels.length === 1 && f.channels[0] === 'all' ? 'all' : f.channels);
+  set('channelAverage', f.channelAverage);
+  set('fminHz', f.fmin);
+  set('fmaxHz', f.fmax);
+  set('measure', f.measure);
+  set('relativeRangeHz', f.relativeRange?.map(Number));
+  set('bands', f.band?.map(parseBand));
+  set('bandMethod', f.bandMethod);
+  set('aperiodicMethod', f.aperiodicMethod);
+  set('statistic', f.statistic);
+  set('correction', f.correction);
+  set('clusterP', f.clusterP);
+  set('permutations', f.permutations);
+  set('seed', f.seed);
+  if (base.design === undefined) base.design = 'groups';
+  return base as ContrastJson;
+}
+
+/**
+ * The value read, or null after printing why the input is invalid: a contrast key, its JSON file
+ * or a band (exit status 2: bad input, nothing read). Shared by compare and band-check.
+ */
+export function inputOrExit<T>(read: () => T): T | null {
+  try {
+    return read();
+  } catch (e) {
+    if (e instanceof ContrastSpecError || e instanceof SyntaxError || e instanceof BandError) {
+      console.error(e.message);
+      process.exitCode = 2;
+      return null;
+    }
+    throw e;
+  }
+}
+
+/** The contrast the flags describe, or null after printing why it is invalid (exit status 2). */
+export function contrastOrExit(flags: Flags): Contrast | null {
+  return inputOrExit(() => parseContrast(contrastFromFlags(flags)));
+}
+
+/**
+ * The options that define a contrast, plus exclusions, run, ledger and progress, shared by the
+ * commands that run one (compare, band-check). bandMeasures adds --band for band-power and peak
+ * measures (band-check has its own --band, the band it checks).
+ */
+export function addContrastOptions(command: Command, o: { bandMeasures: boolean }): Command {
+  command
+    .option('--contrast <file>', 'contrast JSON (the format the dashboard saves)')
+    .option('--exclusions <file>', 'TSV of subjects/channels to leave out (subject, channel, reason), as the dashboard exports it')
+    .option('--run <id>', 'ingest run to read (default: the most recent finished run)')
+    .option('--ledger <file>', 'ledger file (JSON lines) this analysis is appended to, so reports can count every analysis run (default: <database>.ledger.jsonl)')
+    .option('--no-ledger', 'do not record this analysis in the ledger')
+    .addOption(new Option('--design <kind>', 'groups, paired or covariate (default groups)').choices(['groups', 'paired', 'covariate']))
+    .option('--group-column <name>', 'participants column holding the groups (default group)')
+    .option('--groups <a,b>', 'the two groups; differences are b minus a', pair('--groups'))
+    .option('--stages <a,b>', 'paired design over two stages of each recording, e.g. N2,N3', pair('--stages'))
+    .option('--sessions <a,b>', 'paired design over two sessions of each subject', pair('--sessions'))
+    .option('--session <label>', 'the session to use when subjects have several')
+    .option('--covariate <name>', 'numeric participants column to correlate with (covariate design)')
+    .option('--nuisance <names>', 'numeric participants columns to adjust for (Freedman–Lane permutation), comma-separated', list)
+    .addOption(new Option('--stage <stage>', 'sleep stage (default N2)').choices(['W', 'N1', 'N2', 'N3', 'R']))
+    .addOption(new Option('--reference <ref>', 'reference of the spectra (default recorded)').choices([...REFERENCES]))
+    .addOption(new Option('--averaging <how>', 'epoch averaging of the spectra (default mean)').choices(['mean', 'median']))
+    .option('--channels <names>', 'comma-separated channels, or all (default all)', list)
+    .option('--channel-average', 'average the measure over the channels (frequency-only clusters)')
+    .option('--fmin <hz>', 'lowest frequency, Hz (default 1)', num('--fmin'))
+    .option('--fmax <hz>', 'highest frequency, Hz (default 30)', num('--fmax'))
+    .addOption(new Option('--measure <name>', 'measure (default log-psd)').choices([...MEASURES]))
+    .option('--relative-range <lo,hi>', 'denominator range of relative measures, Hz (default 0.5,45)', pair('--relative-range'))
+    .addOption(new Option('--band-method <m>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²) (default mean)').choices(['mean', 'integral']))
+    .addOption(new Option('--aperiodic-method <m>', 'aperiodic estimate for residual/offset/exponent measures (default fit)').choices(['fit', 'irasa']))
+    .addOption(new Option('--statistic <name>', 'point statistic (default: welch-t for groups, paired-t, pearson for covariates)').choices(['welch-t', 'student-t', 'paired-t', 'pearson', 'spearman', 'linear-model-t']))
+    .addOption(new Option('--correction <name>', 'multiple-comparison correction (default cluster-mass)').choices(['cluster-mass', 'cluster-size', 'tfce', 'none']))
+    .option('--cluster-p <p>', 'two-tailed cluster-forming p (default 0.05)', num('--cluster-p'))
+    .option('--permutations <n>', 'permutations (default 1000; exact enumeration when fewer relabellings exist)', num('--permutations'))
+    .option('--seed <n>', 'seed of the permutation generator (default 1)', num('--seed'))
+    .option('--quiet', 'no progress bar');
+  if (o.bandMeasures) command.option('--band <band...>', `band(s) for band-power and peak measures: ${BAND_SYNTAX}`);
+  return command;
+}

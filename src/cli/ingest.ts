@@ -1,0 +1,205 @@
+/**
+ * `bandwise ingest <cohort.tsv|cohort.csv|bids-folder> --out cohort.duckdb …`
+ *
+ * Exit status: 0 every recording done or already stored; 3 some recordings failed (they are in
+ * ingest_errors, the others are stored); 1 nothing could be done (bad cohort, unwritable
+ * database, every recording failed) or the run had to stop (the disk holding the database is
+ * full: what was stored is kept, a rerun resumes).
+ */
+import { availableParallelism } from 'node:os';
+import { Command, InvalidArgumentError } from 'commander';
+import cliProgress from 'cli-progress';
+import { REFERENCE_KINDS, type ReferenceKind } from '../core/montage/reference.ts';
+import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
+import { readLabelMap } from '../../ingest/hypnogram/label-map.ts';
+import { parseShard, runIngest, type IngestEvent } from '../../ingest/run.ts';
+import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../../ingest/pipeline.ts';
+
+export const EXIT_OK = 0;
+export const EXIT_FATAL = 1;
+export const EXIT_PARTLY_FAILED = 3;
+
+const D = DEFAULT_INGEST_PARAMS;
+const num = (name: string, check: (x: number) => boolean) => (v: string) => {
+  const x = Number(v);
+  if (!Number.isFinite(x) || !check(x)) throw new InvalidArgumentError(`invalid ${name}: ${v}`);
+  return x;
+};
+const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);
+const range = (name: string) => (v: string): [number, number] => {
+  const m = /^([\d.]+)-([\d.]+)$/.exec(v.trim());
+  if (!m || !(Number(m[2]) > Number(m[1]))) throw new InvalidArgumentError(`invalid ${name}: ${v} (expected LO-HI in Hz)`);
+  return [Number(m[1]), Number(m[2])];
+};
+
+interface Flags {
+  out: string;
+  jobs: number;
+  shard?: string;
+  epoch: number;
+  segment: number;
+  overlap: number;
+  maxFreq: number;
+  channelTypes: string[];
+  include: string[];
+  exclude: string[];
+  reference: string[];
+  bipolar: string[];
+  maxPeakToPeak: number;
+  flatSd: number;
+  flatRun: number;
+  outlierZ: number;
+  broadband: [number, number];
+  muscle: [number, number];
+  minEpochs: number;
+  band?: string[];
+  bandMethod: 'mean' | 'integral';
+  fitRange: [number, number];
+  knee: boolean;
+  fit: boolean;
+  irasa?: boolean;
+  lineFreq?: number;
+  quiet?: boolean;
+  labelMap?: string;
+  unknownAsUnscored?: boolean;
+  trimScoring?: boolean;
+  lightsOffTexts: string[];
+  lightsOnTexts: string[];
+}
+
+export function register(program: Command): void {
+  program
+    .command('ingest')
+    .summary('turn a cohort (table or BIDS folder) into the spectral database')
+    .description(
+      'Turn a cohort (TSV/CSV table or BIDS folder) into the spectral database: per channel and stage Welch ' +
+        'spectra (µV²/Hz), aperiodic fits, epoch band powers and quality metrics. Resumable: recordings already ' +
+        'stored with the same parameters are skipped. Exit status 0 all done, 3 some recordings failed (see ' +
+        'ingest_errors), 1 nothing done or the run had to stop (disk full: what was stored is kept, a rerun resumes).',
+    )
+    .argument('<cohort>', 'cohort table (.tsv/.csv) or BIDS folder')
+    .requiredOption('--out <file>', 'database file to create or extend (DuckDB)')
+    .option('--jobs <n>', 'worker threads, one recording each (default: one per core)', num('jobs', (x) => Number.isInteger(x) && x >= 1), availableParallelism())
+    .option('--shard <K/N>', 'process only shard K of N (K from 1): the recordings sorted by subject, session and path, every N-th from the K-th; merge the shard files later')
+    .option('--epoch <s>', 'scoring epoch length, s', num('epoch', (x) => x > 0), D.epochS)
+    .option('--segment <s>', 'Welch segment length, s (frequency step 1/segment Hz)', num('segment', (x) => x > 0), D.segmentS)
+    .option('--overlap <fraction>', 'Welch segment overlap, 0 ≤ f < 1', num('overlap', (x) => x >= 0 && x < 1), D.overlap)
+    .option('--max-freq <Hz>', 'highest stored frequency, Hz (lowered to Nyquist when that is lower)', num('max-freq', (x) => x > 0), D.maxFreqHz)
+    .option('--channel-types <list>', 'channel types selected when no --include is given', list, D.channelTypes)
+    .option('--include <labels>', 'comma-separated labels or electrode names to take, whatever their type', list, [])
+    .option('--exclude <labels>', 'comma-separated labels or electrode names to leave out', list, [])
+    .option('--reference <list>', `references to compute: ${REFERENCE_KINDS.join(', ')}`, list, D.references)
+    .option('--bipolar <pairs>', "bipolar pairs for --reference bipolar, e.g. 'F3-C3,C4-P4'", list, [])
+    .option('--max-peak-to-peak <µV>', 'reject an epoch above this peak-to-peak amplitude, µV (common practice)', num('max-peak-to-peak', (x) => x > 0), D.rejection.maxPeakToPeakUv)
+    .option('--flat-sd <µV>', 'reject an epoch whose SD is below this, µV', num('flat-sd', (x) => x >= 0), D.rejection.flatSdUv)
+    .option('--flat-run <s>', 'reject an epoch holding one value this long, s', num('flat-run', (x) => x > 0), D.rejection.flatRunS)
+    .option('--outlier-z <z>', 'reject epochs whose log broadband or muscle-range power has a modified z above this within stage and channel (Iglewicz & Hoaglin 1993)', num('outlier-z', (x) => x > 0), D.rejection.outlierZ)
+    .option('--broadband <LO-HI>', 'broadband power range for the outlier rule, Hz', range('broadband'), D.rejection.broadbandHz)
+    .option('--muscle <LO-HI>', 'high-frequency (muscle) range for the outlier rule, Hz', range('muscle'), D.rejection.muscleHz)
+    .option('--min-epochs <n>', 'flag stages with fewer clean epochs (10 = 5 min of 30-s epochs)', num('min-epochs', (x) => Number.isInteger(x) && x >= 1), D.minEpochs)
+    .option('--band <band...>', `epoch band powers, repeatable: ${BAND_SYNTAX} (default ${D.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(' ')})`)
+    .option('--band-method <mean|integral>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²)', D.bandMethod)
+    .option('--fit-range <LO-HI>', 'aperiodic fit range, Hz', range('fit-range'), D.fit!.fitRangeHz)
+    .option('--knee', 'fit the aperiodic knee (default: plain power law, knee 0)', false)
+    .option('--no-fit', 'skip the aperiodic and peak fits')
+    .option('--irasa', 'also estimate the aperiodic component by IRASA (Wen & Liu 2016) from the clean epochs\' time series, stored with method irasa (a second read of each recording; slower)')
+    .option('--line-freq <Hz>', 'power-line frequency for the mains-hum metric, 50 or 60 (default: BIDS sidecar, else detected)', num('line-freq', (x) => x === 50 || x === 60))
+    .option('--label-map <file.tsv>', 'stage-label map: a TSV with columns label and stage (W, N1, N2, N3, R or unscored); its labels take precedence over the built-in ones')
+    .option('--unknown-as-unscored', 'score the epochs of a stage label that is neither built in nor in the label map as unscored, with a warning (default: refuse the recording)')
+    .option('--trim-scoring', 'drop scored stages that lie before the recording start or past its end, with a warning (default: refuse the recording, as such scoring is likely misaligned); unscored labels there are always dropped')
+    .option('--lights-off-texts <list>', 'comma-separated annotation texts that mark lights off, matched ignoring case and spaces', list, D.scoring.lightsOffTexts)
+    .option('--lights-on-texts <list>', 'comma-separated annotation texts that mark lights on, matched ignoring case and spaces', list, D.scoring.lightsOnTexts)
+    .option('--quiet', 'no progress bars (they are off anyway when stdout is not a terminal)')
+    .addHelpText('after', '\nA research tool, not a diagnostic device. No EDF patient or recording identification is stored.')
+    .action(async (cohort: string, flags: Flags, cmd: Command) => {
+      const code = await ingestCommand(cohort, flags, cmd);
+      process.exitCode = code;
+    });
+}
+
+function toParams(f: Flags): Partial<IngestParams> {
+  for (const r of f.reference) {
+    if (!REFERENCE_KINDS.includes(r as ReferenceKind)) throw new InvalidArgumentError(`invalid reference: ${r} (one of ${REFERENCE_KINDS.join(', ')})`);
+  }
+  if (f.bandMethod !== 'mean' && f.bandMethod !== 'integral') throw new InvalidArgumentError(`invalid band method: ${f.bandMethod}`);
+  return {
+    epochS: f.epoch,
+    segmentS: f.segment,
+    overlap: f.overlap,
+    maxFreqHz: f.maxFreq,
+    channelTypes: f.channelTypes.map((t) => t.toUpperCase()),
+    includeChannels: f.include,
+    excludeChannels: f.exclude,
+    references: f.reference as ReferenceKind[],
+    bipolarPairs: f.bipolar,
+    rejection: { maxPeakToPeakUv: f.maxPeakToPeak, flatSdUv: f.flatSd, flatRunS: f.flatRun, outlierZ: f.outlierZ, broadbandHz: f.broadband, muscleHz: f.muscle },
+    minEpochs: f.minEpochs,
+    bands: f.band ? (Array.isArray(f.band) ? f.band : [f.band]).map(parseBand) : D.bands,
+    bandMethod: f.bandMethod,
+    fit: f.fit === false ? null : { fitRangeHz: f.fitRange, aperiodicForm: f.knee ? 'knee' : 'power-law' },
+    irasa: f.irasa ? {} : null,
+    quality: { ...D.quality, lineHz: (f.lineFreq as 50 | 60 | undefined) ?? null },
+    scoring: {
+      labelMap: f.labelMap ? readLabelMap(f.labelMap) : {},
+      unknownAs: f.unknownAsUnscored ? 'unscored' : 'error',
+      trimScoredOutside: Boolean(f.trimScoring),
+      lightsOffTexts: f.lightsOffTexts,
+      lightsOnTexts: f.lightsOnTexts,
+    },
+  };
+}
+
+async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<number> {
+  let params: Partial<IngestParams>;
+  let shard = null;
+  try {
+    params = toParams(f);
+    shard = f.shard ? parseShard(f.shard) : null;
+  } catch (e) {
+    cmd.error(`bandwise ingest: ${(e as Error).message}`, { exitCode: EXIT_FATAL });
+  }
+  const tty = Boolean(process.stdout.isTTY) && !f.quiet;
+  const bars = tty
+    ? new cliProgress.MultiBar(
+        { format: '{name} |{bar}| {value}/{total} {unit} · {rate} · ETA {eta_formatted}', hideCursor: true, clearOnComplete: false, etaBuffer: 20 },
+        cliProgress.Presets.shades_classic,
+      )
+    : null;
+  let overall: cliProgress.SingleBar | null = null;
+  const current = new Map<string, cliProgress.SingleBar>();
+  const t0 = Date.now();
+  let samples = 0;
+  const rate = () => `${(samples / Math.max(1e-3, (Date.now() - t0) / 1000) / 1e6).toFixed(2)} M channel-samples/s`;
+  const onEvent = (e: IngestEvent) => {
+    if (!bars) return;
+    if (e.kind === 'start') overall = bars.create(e.total, 0, { name: 'recordings', unit: 'recordings', rate: '' });
+    else if (e.kind === 'progress') {
+      let bar = current.get(e.file);
+      if (!bar) current.set(e.file, (bar = bars.create(e.total, 0, { name: e.file.slice(-24).padEnd(24), unit: 'epochs', rate: '' })));
+      bar.setTotal(e.total);
+      bar.update(e.done, { unit: e.step === 'read' ? 'epochs' : 'channels', rate: e.step });
+    } else {
+      samples += e.channelSamples ?? 0;
+      const bar = current.get(e.file);
+      if (bar) {
+        bars.remove(bar);
+        current.delete(e.file);
+      }
+      overall?.increment(1, { rate: rate() });
+      if (e.state === 'failed') bars.log(`failed: ${e.file}: ${e.message}\n`);
+    }
+  };
+  try {
+    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard }, onEvent);
+    bars?.stop();
+    const secs = (Date.now() - t0) / 1000;
+    console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, in ${secs.toFixed(1)} s`);
+    for (const x of summary.failed) console.log(`  failed ${x.file} at ${x.step}: ${x.message}`);
+    if (summary.failed.length === 0) return EXIT_OK;
+    return summary.done + summary.skipped > 0 ? EXIT_PARTLY_FAILED : EXIT_FATAL;
+  } catch (e) {
+    bars?.stop();
+    console.error(`bandwise ingest: ${(e as Error).message}`);
+    return EXIT_FATAL;
+  }
+}

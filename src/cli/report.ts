@@ -1,0 +1,41 @@
+/**
+ * `bandwise report <result.json> --out methods.md [--json parameters.json] [--database db] [--ledger file]`
+ * Writes the methods text of a saved compare or band-check result, with every parameter, from the
+ * result and (when the database is at hand) the facts stored in it.
+ */
+import type { Command } from 'commander';
+import { ReportFileError, writeReport, type ReportOptions } from '../analysis/write-report.ts';
+import { reportUserError } from './user-errors.ts';
+
+export function register(program: Command): void {
+  program
+    .command('report')
+    .summary('write the methods text (Markdown) and its parameters (JSON) for a saved result')
+    .description(
+      'Writes the methods of a compare or band-check result in plain scientific English: spectral parameters ' +
+        '(window, segment, overlap, averaging, frequency resolution, references), epoch rejection rules with the share ' +
+        'rejected, the aperiodic model and fit range, exclusions with reasons, design, statistic, correction, threshold, ' +
+        'permutations and seed, the ledger counts, and the references of the methods used; plus a JSON of the parameters.',
+    )
+    .argument('<result>', 'result JSON written by `bandwise compare` or `bandwise band-check`')
+    .requiredOption('--out <file>', 'methods text to write (Markdown)')
+    .option('--json <file>', 'parameters JSON to write (default: the --out name with .json)')
+    .option('--database <file>', 'the database the result came from (default: the result\'s database file, if it lies beside the result)')
+    .option('--ledger <file>', 'ledger file to count analyses from (default: <database>.ledger.jsonl)')
+    .option('--no-ledger', 'neither count nor record in a ledger')
+    .option('--run <id>', 'ingest run (default: the result\'s run)')
+    .action(async (resultFile: string, flags: ReportOptions) => {
+      try {
+        const r = await writeReport(resultFile, flags);
+        console.log(`wrote ${flags.out} and ${r.jsonFile}${r.database ? '' : ' (no database: spectral facts from the result only)'}`);
+      } catch (e) {
+        if (e instanceof ReportFileError) {
+          console.error(e.message);
+          process.exitCode = 2;
+          return;
+        }
+        if (reportUserError('report', e)) return;
+        throw e;
+      }
+    });
+}
