@@ -125,12 +125,12 @@ describe('BandFields', () => {
     expect(offered).toEqual([...DEFAULT_BANDS.filter((b) => b.name !== 'broadband'), ...SIGMA_PRESETS].map((b) => b.name));
   });
 
-  it('takes LO-HI or name:LO-HI; edges of a preset take its name; anything else is refused with the text named', async () => {
+  it('takes LO-HI or name:LO-HI; edges of a preset take its name; a preset name is its band; anything else is refused with the text named', async () => {
     const form = formAt('#/band-check?band=theta:4-8&run=1');
     render(BandFields, { form, testPrefix: 'bc' });
     expect(field('bc-band-preset').value).toBe('theta');
     await fireEvent.change(field('bc-band'), { target: { value: '11-15' } });
-    expect(params().band).toBe('band:11-15');
+    expect(params().band).toBe('11–15 Hz:11-15'); // named as the commands name plain edges (bands.ts parseBand)
     expect(params().run).toBeUndefined();
     expect(field('bc-band-preset').value).toBe('');
     await fireEvent.change(field('bc-band'), { target: { value: '13-15' } });
@@ -139,8 +139,8 @@ describe('BandFields', () => {
     expect(params().band).toBe('spindle:11.5-15.5');
     await fireEvent.change(field('bc-band'), { target: { value: '16-12' } });
     expect(screen.getByTestId('bc-band-error').textContent).toMatch(/invalid edges 16–12 Hz/);
-    await fireEvent.change(field('bc-band'), { target: { value: 'theta' } });
-    expect(screen.getByTestId('bc-band-error').textContent).toMatch(/invalid band 'theta' \(expected LO-HI or name:LO-HI/);
+    await fireEvent.change(field('bc-band'), { target: { value: 'theta 4-8' } });
+    expect(screen.getByTestId('bc-band-error').textContent).toMatch(/invalid band 'theta 4-8': expected LO-HI/);
     expect(params().band).toBe('spindle:11.5-15.5');
     await fireEvent.change(field('bc-band-preset'), { target: { value: 'alpha' } });
     expect(params().band).toBe('alpha:8-12');

@@ -14,7 +14,10 @@ export function withEdges(loHz: number, hiHz: number): Band {
 
 /** Parses a band with the commands' one grammar (src/core/spectrum/bands.ts parseBand); throws naming the text. */
 export function parseBandText(text: string): Band {
-  return parseBand(text);
+  const band = parseBand(text);
+  // plain edges that are a preset's take the preset's name, as a preset chosen from the list would
+  const preset = /:/.test(text) ? undefined : BAND_PRESETS.find((b) => b.loHz === band.loHz && b.hiHz === band.hiHz);
+  return preset ? { ...preset } : band;
 }
 
 /** The address form of a band: `name:LO-HI`. */
