@@ -9,7 +9,7 @@ const stage = z.enum(['W', 'N1', 'N2', 'N3', 'R']);
 const hz = z.number().finite().nonnegative();
 const band = z.object({ name: z.string().min(1), loHz: hz, hiHz: hz }).refine((b) => b.hiHz > b.loHz, { message: 'hiHz must exceed loHz' });
 
-export const MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center'] as const;
+export const MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center', 'peak-width'] as const;
 export type MeasureName = (typeof MEASURES)[number];
 
 export const REFERENCES = ['recorded', 'linked-mastoids', 'contralateral-mastoid', 'average', 'bipolar'] as const;

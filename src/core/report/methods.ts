@@ -267,7 +267,7 @@ export function methodsReport(result: ReportableResult, facts: DatabaseFacts | n
   const ingestRaw = facts?.ingestParameters ?? result.database?.ingestParameters;
   const f = ingestRaw === undefined ? null : ingestParameterFacts(ingestRaw);
   const isBand = result.kind === 'band-check';
-  const usesFit = isBand || ['residual', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center'].includes(c.measure);
+  const usesFit = isBand || ['residual', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center', 'peak-width'].includes(c.measure);
   const n = isBand ? (result as BandCheckResult).n : (result as CompareResult).n;
   const stats = isBand ? bandStatistics(result as BandCheckResult, refs) : compareStatistics(result as CompareResult, refs);
   const parts: string[] = [`# Methods${isBand ? `: band check of ${(result as BandCheckResult).band.name}` : ''}`, `*${RESEARCH_NOTE}*`];
