@@ -7,4 +7,4 @@ export { decideVerdict, bonferroni, describeTest, formatHz, VERDICTS, type Verdi
 export { peakValues, type PeakCenterSummary, type PeakGroupMean, type PeakValues } from './peak-center.ts';
 export { runScalarTest, scalarEffect, combine, assembleAveraged, rowMean, type ScalarTest, type ScalarValues } from './scalar-test.ts';
 export { bandCheckFigure, type BandCheckFigure, type FigureSeries } from './figure.ts';
-export { runPaths, enumeratePaths, pathDataNeeds, defaultPathChoices, edgeVariants, availableFitRanges, PathError, type PathChoices, type PathDataSet, type PathMeasure, type PathResult, type PathSpec, type PathRunOptions, type PathTest, type SpecificationCurve } from './paths.ts';
+export { runPaths, enumeratePaths, PATH_DECISIONS, type PathDecision, type PathFrequency, pathDataNeeds, defaultPathChoices, edgeVariants, availableFitRanges, PathError, type PathChoices, type PathDataSet, type PathMeasure, type PathResult, type PathSpec, type PathRunOptions, type PathTest, type SpecificationCurve } from './paths.ts';
