@@ -19,6 +19,7 @@ import { ClusterWork, findClusters, type Cluster } from './clusters.ts';
 import { TFCE_DEFAULTS, TfceWork, tfceScores, type TfceParameters } from './tfce.ts';
 import { twoTailedCriticalT, twoTailedP } from './distributions.ts';
 import { correlationEffect, hedgesGOneSample, hedgesGTwoGroups, type EffectSize } from './effect-size.ts';
+import { hedgesGOneSampleMissing, hedgesGTwoGroupsMissing } from './effect-size-missing.ts';
 import { permutationP, runPermutations, type NullMaxima, type PermutationTest, type ProgressCallback } from './permutation-engine.ts';
 import { delaunayNeighbours } from '../montage/adjacency.ts';
 
@@ -209,9 +210,9 @@ export function prepareContrast(input: ContrastInput, options: ContrastOptions =
     const r = stat.map((t) => t / Math.sqrt(t * t + kernel.df));
     effect = correlationEffect('partial-r', r, Float64Array.from(kernel.beta), n, n - 2 - kernel.df, level); // n − 2 − df = number of nuisance covariates
   } else if (labels) {
-    effect = hedgesGTwoGroups(input.data, n, P, labels, level);
+    effect = missing ? hedgesGTwoGroupsMissing(input.data, n, P, labels, level) : hedgesGTwoGroups(input.data, n, P, labels, level);
   } else {
-    effect = hedgesGOneSample(d!, n, P, level);
+    effect = missing ? hedgesGOneSampleMissing(d!, n, P, level) : hedgesGOneSample(d!, n, P, level);
   }
   if (missing) {
     // points left out: no statistic, p or effect (stat stays 0 for the clusters; reported as null)

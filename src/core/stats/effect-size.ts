@@ -23,40 +23,32 @@ export interface EffectSize {
   difference: Float64Array | null;
 }
 
-function zCrit(level: number): number {
+export function zCrit(level: number): number {
   if (!(level > 0 && level < 1)) throw new RangeError(`confidence level must lie in (0, 1), got ${level}`);
   return normalQuantile(1 - (1 - level) / 2);
 }
 
-/** Hedges' g of group 1 minus group 0 per point, labels 0/1 per subject; NaN values (missing) are skipped, n per point. */
+/** Hedges' g of group 1 minus group 0 per point, labels 0/1 per subject. */
 export function hedgesGTwoGroups(data: ArrayLike<number>, nSubjects: number, nPoints: number, labels: Uint8Array, level: number): EffectSize {
   const P = nPoints;
   const sum = [new Float64Array(P), new Float64Array(P)];
-  const count = [new Float64Array(P), new Float64Array(P)];
+  const count = [0, 0];
   for (let s = 0; s < nSubjects; s++) {
     const g = labels[s];
-    for (let p = 0; p < P; p++) {
-      const x = data[s * P + p];
-      if (Number.isNaN(x)) continue;
-      sum[g][p] += x;
-      count[g][p]++;
-    }
+    count[g]++;
+    for (let p = 0; p < P; p++) sum[g][p] += data[s * P + p];
   }
   const ss = new Float64Array(P);
   for (let s = 0; s < nSubjects; s++) {
     const g = labels[s];
-    for (let p = 0; p < P; p++) {
-      const x = data[s * P + p];
-      if (!Number.isNaN(x)) ss[p] += (x - sum[g][p] / count[g][p]) ** 2;
-    }
+    for (let p = 0; p < P; p++) ss[p] += (data[s * P + p] - sum[g][p] / count[g]) ** 2;
   }
+  const [n0, n1] = count;
+  const n = n0 + n1;
+  const J = 1 - 3 / (4 * n - 9);
   const z = zCrit(level);
   const out = emptyEffect('hedges-g', P, level);
   for (let p = 0; p < P; p++) {
-    const n0 = count[0][p];
-    const n1 = count[1][p];
-    const n = n0 + n1;
-    const J = 1 - 3 / (4 * n - 9);
     const diff = sum[1][p] / n1 - sum[0][p] / n0;
     const sp = Math.sqrt(ss[p] / (n - 2));
     const g = sp > 0 ? (J * diff) / sp : 0;
@@ -69,30 +61,18 @@ export function hedgesGTwoGroups(data: ArrayLike<number>, nSubjects: number, nPo
   return out;
 }
 
-/** Hedges' g of one sample (or of paired differences) against zero per point; NaN values (missing) are skipped, n per point. */
+/** Hedges' g of one sample (or of paired differences) against zero per point. */
 export function hedgesGOneSample(d: ArrayLike<number>, nSubjects: number, nPoints: number, level: number): EffectSize {
   const P = nPoints;
-  const count = new Float64Array(P);
-  for (let s = 0; s < nSubjects; s++) for (let p = 0; p < P; p++) if (!Number.isNaN(d[s * P + p])) count[p]++;
+  const n = nSubjects;
   const mean = new Float64Array(P);
-  for (let s = 0; s < nSubjects; s++) {
-    for (let p = 0; p < P; p++) {
-      const x = d[s * P + p];
-      if (!Number.isNaN(x)) mean[p] += x / count[p];
-    }
-  }
+  for (let s = 0; s < n; s++) for (let p = 0; p < P; p++) mean[p] += d[s * P + p] / n;
   const ss = new Float64Array(P);
-  for (let s = 0; s < nSubjects; s++) {
-    for (let p = 0; p < P; p++) {
-      const x = d[s * P + p];
-      if (!Number.isNaN(x)) ss[p] += (x - mean[p]) ** 2;
-    }
-  }
+  for (let s = 0; s < n; s++) for (let p = 0; p < P; p++) ss[p] += (d[s * P + p] - mean[p]) ** 2;
+  const J = 1 - 3 / (4 * (n - 1) - 1);
   const z = zCrit(level);
   const out = emptyEffect('hedges-g', P, level);
   for (let p = 0; p < P; p++) {
-    const n = count[p];
-    const J = 1 - 3 / (4 * (n - 1) - 1);
     const sd = Math.sqrt(ss[p] / (n - 1));
     const g = sd > 0 ? (J * mean[p]) / sd : 0;
     const se = Math.sqrt(1 / n + (g * g) / (2 * n));
@@ -119,6 +99,6 @@ export function correlationEffect(kind: 'r' | 'partial-r', r: ArrayLike<number>,
   return out;
 }
 
-function emptyEffect(kind: EffectSize['kind'], P: number, level: number): EffectSize {
+export function emptyEffect(kind: EffectSize['kind'], P: number, level: number): EffectSize {
   return { kind, value: new Float64Array(P), ciLow: new Float64Array(P), ciHigh: new Float64Array(P), level, difference: new Float64Array(P) };
 }
