@@ -34,7 +34,7 @@ export function register(program: Command): void {
     .description(
       'For a band, a stage and the contrast\'s channels (averaged), tests with the same permutation machinery as ' +
         'compare: the raw band power, the aperiodic offset and exponent, the periodic band power (residual above the ' +
-        'aperiodic fit) and peak height, the flanks just below and above the band, relative power, and the frequency-wise ' +
+        'aperiodic fit), the centre, height and width of the highest fitted peak in the band, the flanks just below and above the band, relative power, and the frequency-wise ' +
         'cluster test; then gives a verdict (band-specific, broadband-offset, exponent-change, mixed, no-evidence) with ' +
         'the sentence that explains it. The decision rules are in the README. A research tool: results are not a diagnosis.',
     )
@@ -75,7 +75,7 @@ export function register(program: Command): void {
     writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
     // the ledger records the band with the contrast
     if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p });
-    console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}`);
+    console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}${result.periodicKind ? ` (${result.periodicKind})` : ''}`);
     console.log(result.sentence);
     console.log(`wrote ${flags.out}`);
   });

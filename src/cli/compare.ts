@@ -87,6 +87,7 @@ export function register(program: Command): void {
       const n = Object.entries(result.n).map(([k, v]) => `${k} ${v}`).join(', ');
       const best = result.clusters[0];
       console.log(`${result.measure}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${best.sign > 0 ? '+' : '−'}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
+      for (const note of result.notes) console.log(note);
       console.log(`wrote ${flags.out}`);
     });
 }

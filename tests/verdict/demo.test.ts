@@ -54,6 +54,15 @@ describe('band check on the demo cohort', () => {
     expect(t.tests.offset.effect).toBeGreaterThan(0); // planted: patients' offset +0.15 log10
     expect(s.verdict).toBe('band-specific');
     expect(s.tests.periodic.effect).toBeLessThan(0); // planted: patients' fast spindles at half amplitude
+    // the spindles' frequency is not changed in the scenario: a power change, no shift named
+    expect(s.periodicKind).toBe('power');
+    expect(s.family.find((f) => f.test === 'peakCenter')!.passed).toBe(false);
+    expect(s.sentence).not.toContain('peak is');
+    // planted fast-spindle centre 13.5 Hz (between-subject SD 2.5 %): each group's mean fitted centre within 0.3 Hz
+    for (const m of s.peakCenter.means) expect(Math.abs(m.centerHz - 13.5), m.name).toBeLessThan(0.3);
+    // N2 has no theta rhythm in the scenario: no fitted theta peaks, the centre test says it could not run
+    expect(t.tests.peakCenter).toBeNull();
+    expect(t.peakCenter.skipped).toMatch(/^too few subjects with a fitted peak in theta 4–8 Hz/);
     expect(s.channels).toEqual(['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz']);
     expect(s.fitRangeHz).toEqual([1, 40]); // the stored fit range (ingest default)
     expect(readLedger(ledger).map((e) => e.kind)).toEqual(['band-check', 'band-check']);

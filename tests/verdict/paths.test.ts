@@ -59,6 +59,34 @@ describe('robustness paths', () => {
     expect(fw.test).toBe('frequency-wise');
   });
 
+  it('decides on power only or on power and the peak centre (Bonferroni ×2); the centre test is the band check\'s', () => {
+    const shifted = simulateCohort('shift-1hz', 4);
+    const own: PathDataSet[] = [{ reference: 'recorded', averaging: 'mean', fitRangeHz: FIT_RANGE_HZ, data: shifted }];
+    const choices = { ...defaultPathChoices(contrast, sigma, own), measures: ['residual' as const], decisions: ['power' as const, 'power-and-frequency' as const] };
+    expect(enumeratePaths(choices)).toHaveLength(3 * 2); // 3 band edges × 2 decisions
+    const curve = runPaths(contrast, sigma, choices, own);
+    const check = bandCheck(contrast, sigma, shifted, { fitRangeHz: FIT_RANGE_HZ });
+    const path = (decision: string) => curve.paths.find((p) => p.decision === decision && p.band.loHz === 12 && p.band.hiHz === 16)!;
+    const power = path('power');
+    const both = path('power-and-frequency');
+    expect(power.frequency).toBeUndefined();
+    expect(power.p).toBe(check.tests.periodic.p);
+    expect(both.effect).toBe(power.effect); // the curve shows the power effect
+    expect(both.frequency!.effect).toBeCloseTo(check.tests.peakCenter!.effect, 12);
+    expect(both.frequency!.p).toBe(check.tests.peakCenter!.p);
+    expect(both.frequency!.withoutPeak).toEqual(check.peakCenter.withoutPeak);
+    expect(both.p).toBeCloseTo(Math.min(1, 2 * Math.min(power.p, both.frequency!.p)), 12);
+    expect(both.description).toContain('decided on power and the peak centre (Bonferroni ×2)');
+    // the planted 1-Hz slowing: every path that decides on the centre too is significant
+    for (const p of curve.paths.filter((x) => x.decision === 'power-and-frequency' && x.band.loHz < 13)) expect(p.significant && p.frequency!.differenceHz! < -0.5).toBe(true);
+    // in 13–15 Hz the patients' slowed peaks (≈ 12.5 Hz) fall outside the band: too few for the centre test, which says so and counts as p = 1
+    const narrow = curve.paths.find((x) => x.decision === 'power-and-frequency' && x.band.loHz === 13)!;
+    expect(narrow.frequency!.skipped).toMatch(/^too few subjects with a fitted peak in sigma 13–15 Hz \(control \d+, patient [01];/);
+    expect(narrow.p).toBeCloseTo(Math.min(1, 2 * curve.paths.find((x) => x.decision === 'power' && x.band.loHz === 13)!.p), 12);
+    const noPeaks: PathDataSet[] = [{ ...own[0], data: { ...shifted, peaks: [] } }];
+    expect(() => runPaths(contrast, sigma, choices, noPeaks)).toThrow(/no fitted peaks in the data set for reference recorded, averaging mean/);
+  });
+
   it('refuses a fit range or reference that is not stored, naming what is', () => {
     const choices = { ...defaultPathChoices(contrast, sigma, sets), fitRangesHz: [[2, 30]] as [number, number][] };
     expect(() => runPaths(contrast, sigma, choices, sets)).toThrow(PathError);

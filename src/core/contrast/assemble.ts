@@ -127,13 +127,16 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
 
   // values per candidate, written straight into the subjects × points matrices (one per
   // condition) at the next kept row; a subject with any channel missing or flagged is left out,
-  // with the reason, and its row is reused
+  // with the reason, and its row is reused. A measure that may be missing per channel × point
+  // (layout.missingAllowed: no peak in the band) writes NaN there instead, and its channel
+  // average is the mean over the channels with a value (NaN when none has one).
   const P = layout.freqsHz.length;
   const nCh = c.channelAverage ? 1 : channels.length;
   const width = nCh * P;
   const matrices = conds.map(() => new Float64Array(candidates.length * width));
   const kept: typeof candidates = [];
   const scratch = new Float64Array(P);
+  const present = new Int32Array(P); // channels with a value per point (channel average of a measure that may be missing)
   for (const cand of candidates) {
     let reason: { channel: string | null; text: string } | null = null;
     const onlySession = sessionsOf.get(cand.subject)!.values().next().value ?? null;
@@ -142,6 +145,7 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
       const session = cond.session ?? onlySession;
       const values = matrices[di].subarray(kept.length * width, (kept.length + 1) * width);
       values.fill(0);
+      present.fill(0);
       for (let ci = 0; ci < channels.length && !reason; ci++) {
         const ch = channels[ci];
         const k = key(cand.subject, session, ch, cond.stage);
@@ -160,6 +164,14 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
           break;
         }
         for (let j = 0; j < P; j++) {
+          if (layout.missingAllowed) {
+            const v = scratch[j];
+            if (c.channelAverage && !Number.isNaN(v)) {
+              values[j] += v;
+              present[j]++;
+            } else if (!c.channelAverage) values[ci * P + j] = v;
+            continue;
+          }
           if (!Number.isFinite(scratch[j])) {
             reason = { channel: ch, text: `${cond.name}, ${ch}: measure is not finite at ${layout.freqsHz[j]} Hz` };
             break;
@@ -169,6 +181,8 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
           else values[ci * P + j] = scratch[j];
         }
       }
+      // mean over the channels with a value
+      if (layout.missingAllowed && c.channelAverage) for (let j = 0; j < P; j++) values[j] = present[j] > 0 ? values[j] / present[j] : NaN;
     }
     if (reason) {
       excluded.push({ subject: cand.subject, channel: reason.channel, reason: reason.text });
@@ -209,6 +223,7 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
     data: data0,
     design,
     ...(c.channelAverage || channels.length < 2 ? { channelNeighbours: null } : {}),
+    ...(layout.missingAllowed ? { allowMissing: true } : {}),
   };
   return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels };
 }

@@ -23,11 +23,15 @@ export interface MeasureLayout {
   bands: Band[];
   /** whether neighbouring points are neighbours in frequency (clusters may extend along them) */
   frequencyAdjacency: boolean;
+  /** whether a value may be missing (NaN) for one channel × point of a subject (no peak in the band) */
+  missingAllowed: boolean;
   description: string;
 }
 
 const SPECTRAL: readonly MeasureName[] = ['log-psd', 'relative', 'residual'];
-const BANDED: readonly MeasureName[] = ['band-power', 'relative-band-power', 'peak-height', 'peak-center'];
+const BANDED: readonly MeasureName[] = ['band-power', 'relative-band-power', 'peak-height', 'peak-center', 'peak-width'];
+/** measures of the highest fitted peak in a band that have no value where the band holds no peak */
+const MAY_BE_MISSING: readonly MeasureName[] = ['peak-center', 'peak-width'];
 
 export function measureLayout(c: Contrast, axis: FrequencyAxis): MeasureLayout {
   const [rlo, rhi] = c.relativeRangeHz;
@@ -43,7 +47,7 @@ export function measureLayout(c: Contrast, axis: FrequencyAxis): MeasureLayout {
       relative: `log10 relative PSD: PSD divided by the power integrated over ${rlo}–${rhi} Hz (trapezoid), 1/Hz`,
       residual: `residual spectrum: log10 PSD minus the aperiodic fit (${c.aperiodicMethod})`,
     }[c.measure as 'log-psd' | 'relative' | 'residual'];
-    return { freqsHz: bins.map((k) => axis.freqStartHz + k * axis.freqStepHz), bins, bands: [], frequencyAdjacency: true, description };
+    return { freqsHz: bins.map((k) => axis.freqStartHz + k * axis.freqStepHz), bins, bands: [], frequencyAdjacency: true, missingAllowed: false, description };
   }
   if (BANDED.includes(c.measure)) {
     const bands = [...(c.bands ?? [])].sort((a, b) => a.loHz + a.hiHz - (b.loHz + b.hiHz));
@@ -54,21 +58,23 @@ export function measureLayout(c: Contrast, axis: FrequencyAxis): MeasureLayout {
       'band-power': `log10 band power (${c.bandMethod === 'mean' ? 'mean density, µV²/Hz' : 'trapezoid integral, µV²'}) in ${names}`,
       'relative-band-power': `log10 relative band power: integral over the band divided by the integral over ${rlo}–${rhi} Hz (trapezoid), in ${names}`,
       'peak-height': `height of the highest fitted peak centred in the band (log10 above the aperiodic fit; 0 where no peak was found), in ${names}`,
-      'peak-center': `centre frequency (Hz) of the highest fitted peak centred in the band (subjects without a peak left out), in ${names}`,
-    }[c.measure as 'band-power' | 'relative-band-power' | 'peak-height' | 'peak-center'];
-    return { freqsHz: centres, bins: [], bands, frequencyAdjacency: false, description };
+      'peak-center': `centre frequency (Hz) of the highest fitted peak centred in the band (missing for a channel without a peak there: each point uses the subjects with a value${c.channelAverage ? '; a channel average is the mean over the channels with a peak' : ''}), in ${names}`,
+      'peak-width': `full width at half maximum (Hz) of the highest fitted peak centred in the band (missing for a channel without a peak there: each point uses the subjects with a value${c.channelAverage ? '; a channel average is the mean over the channels with a peak' : ''}), in ${names}`,
+    }[c.measure as 'band-power' | 'relative-band-power' | 'peak-height' | 'peak-center' | 'peak-width'];
+    return { freqsHz: centres, bins: [], bands, frequencyAdjacency: false, missingAllowed: MAY_BE_MISSING.includes(c.measure), description };
   }
   const description = {
     offset: `aperiodic offset (log10 µV²/Hz, ${c.aperiodicMethod})`,
     exponent: `aperiodic exponent (${c.aperiodicMethod})`,
     knee: `aperiodic knee (${c.aperiodicMethod})`,
   }[c.measure as 'offset' | 'exponent' | 'knee'];
-  return { freqsHz: [0], bins: [], bands: [], frequencyAdjacency: false, description };
+  return { freqsHz: [0], bins: [], bands: [], frequencyAdjacency: false, missingAllowed: false, description };
 }
 
 /**
- * Writes the measure's values for one channel into out[0 … layout.freqsHz.length − 1].
- * Returns null on success, or the reason the values cannot be computed (missing fit, no peak…).
+ * Writes the measure's values for one channel into out[0 … layout.freqsHz.length − 1] (NaN for a
+ * missing value where layout.missingAllowed: no peak in that band). Returns null on success, or
+ * the reason the values cannot be computed (missing fit…).
  */
 export function measureValues(
   c: Contrast,
@@ -108,13 +114,13 @@ export function measureValues(
     }
     case 'peak-height':
     case 'peak-center':
+    case 'peak-width':
       for (let i = 0; i < layout.bands.length; i++) {
-        const b = layout.bands[i];
-        let best: PeakRow | undefined;
-        for (const p of peaks) if (p.centerHz >= b.loHz && p.centerHz <= b.hiHz && (!best || p.height > best.height)) best = p;
+        const best = highestPeak(peaks, layout.bands[i]);
+        // no peak: height 0 (nothing above the aperiodic fit); centre and width do not exist (missing)
         if (c.measure === 'peak-height') out[i] = best ? best.height : 0;
-        else if (best) out[i] = best.centerHz;
-        else return `no peak in ${b.name} ${b.loHz}–${b.hiHz} Hz`;
+        else if (c.measure === 'peak-center') out[i] = best ? best.centerHz : NaN;
+        else out[i] = best ? best.bandwidthHz : NaN;
       }
       return null;
     case 'offset':
@@ -128,10 +134,17 @@ export function measureValues(
   }
 }
 
+/** The highest fitted peak centred in the band (edges included), or undefined. */
+export function highestPeak(peaks: readonly PeakRow[], b: Band): PeakRow | undefined {
+  let best: PeakRow | undefined;
+  for (const p of peaks) if (p.centerHz >= b.loHz && p.centerHz <= b.hiHz && (!best || p.height > best.height)) best = p;
+  return best;
+}
+
 /** Whether the measure needs aperiodic fits or peaks from the database. */
 export function measureNeeds(measure: MeasureName): { aperiodic: boolean; peaks: boolean } {
   return {
     aperiodic: measure === 'residual' || measure === 'offset' || measure === 'exponent' || measure === 'knee',
-    peaks: measure === 'peak-height' || measure === 'peak-center',
+    peaks: measure === 'peak-height' || measure === 'peak-center' || measure === 'peak-width',
   };
 }

@@ -33,6 +33,21 @@ export interface CompareResult {
   exclusions: Exclusion[];
   clusters: CompareCluster[];
   statistics: PermutationTestResult;
+  /** measures that may be missing per channel × point (peak centre, peak width): the values each point rests on; null otherwise */
+  valuesPerPoint: PointValues[] | null;
+  /** points left out for too few values, in words (empty when none) */
+  notes: string[];
+}
+
+export interface PointValues {
+  channel: string;
+  /** the point's frequency, Hz (band measures: the band centre) */
+  freqHz: number;
+  /** band name of a band measure, else null */
+  band: string | null;
+  /** values per group (or pairs, or subjects) */
+  n: Record<string, number>;
+  leftOut: boolean;
 }
 
 export function statsOptions(c: Contrast): PermutationTestOptions {
@@ -69,6 +84,31 @@ export function permutationShare(count: number, index: number, parts: number): P
   return { from: Math.floor((count * index) / parts), to: Math.floor((count * (index + 1)) / parts) };
 }
 
+/** Values per point and the notes on points left out (measures that may be missing). */
+function pointValues(a: AssembledContrast, s: PermutationTestResult): { valuesPerPoint: PointValues[] | null; notes: string[] } {
+  const m = s.missing;
+  if (!m) return { valuesPerPoint: null, notes: [] };
+  const F = s.freqsHz.length;
+  const names = m.nPerPoint.length === 2 ? (s.groupNames ?? ['group 0', 'group 1']) : [s.design === 'paired' ? 'pairs' : 'subjects'];
+  const leftOut = new Set(m.leftOut);
+  const points: PointValues[] = s.channels.flatMap((channel, ci) =>
+    s.freqsHz.map((freqHz, f) => {
+      const p = ci * F + f;
+      const b = a.layout.bands[f];
+      return { channel, freqHz, band: b ? `${b.name} ${b.loHz}–${b.hiHz} Hz` : null, n: Object.fromEntries(names.map((g, k) => [g, m.nPerPoint[k][p]])), leftOut: leftOut.has(p) };
+    }),
+  );
+  const notes: string[] = [];
+  for (let f = 0; f < F; f++) {
+    const out = points.filter((q, i) => i % F === f && q.leftOut);
+    if (out.length === 0) continue;
+    const where = out[0].band ?? `${out[0].freqHz} Hz`;
+    const list = out.map((q) => `${q.channel} (${Object.entries(q.n).map(([g, k]) => `${g} ${k}`).join(', ')})`).join(', ');
+    notes.push(`${where}: ${out.length} channel${out.length === 1 ? '' : 's'} left out for too few values (a point needs ${m.minimum}): ${list}`);
+  }
+  return { valuesPerPoint: points, notes };
+}
+
 /** The result from the prepared contrast and the null maxima of all its permutations. */
 export function finishCompare(p: PreparedCompare, nulls: NullMaxima): CompareResult {
   const { contrast: c, assembled: a } = p;
@@ -83,6 +123,7 @@ export function finishCompare(p: PreparedCompare, nulls: NullMaxima): CompareRes
     exclusions: a.excluded,
     clusters: statistics.clusters.map((k) => ({ sign: k.sign, mass: k.mass, size: k.size, p: k.p, fminHz: k.fminHz, fmaxHz: k.fmaxHz, channels: k.channels })),
     statistics,
+    ...pointValues(a, statistics),
   };
 }
 

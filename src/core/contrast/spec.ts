@@ -21,7 +21,7 @@ const band = z.union([z.string(), bandObject]).transform((b, ctx): Band => {
   }
 });
 
-export const MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center'] as const;
+export const MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center', 'peak-width'] as const;
 export type MeasureName = (typeof MEASURES)[number];
 
 export const REFERENCES = ['recorded', 'linked-mastoids', 'contralateral-mastoid', 'average', 'bipolar'] as const;

@@ -235,8 +235,8 @@ function compareResults(r: CompareResult): string {
   return `${r.clusters.length} cluster${r.clusters.length === 1 ? '' : 's'} formed, ${sig.length} with p < 0.05${r.clusters.length > 10 ? ' (the 10 smallest p shown)' : ''}:\n\n${lines.join('\n')}`;
 }
 
-function testLine(name: string, t: ScalarTest | null): string {
-  if (!t) return `- ${name}: not computed (no room inside the fit range)`;
+function testLine(name: string, t: ScalarTest | null | undefined, missing = 'no room inside the fit range'): string {
+  if (!t) return `- ${name}: not computed (${missing})`;
   const e = t.effectKind === 'hedges-g' ? 'g' : t.effectKind;
   const d = t.difference !== null ? `, difference ${g3(t.difference)}` : '';
   return `- ${name} — ${t.measure}: ${e} = ${fmt(t.effect)} [${fmt(t.ciLow)}, ${fmt(t.ciHigh)}]${d}, t = ${fmt(t.t)}, p = ${g3(t.p)} (${Object.entries(t.n).map(([k, v]) => `${k} ${v}`).join(', ')})`;
@@ -255,9 +255,9 @@ function bandStatistics(r: BandCheckResult, refs: Set<ReferenceKey>): { text: st
   const text =
     `The band check asked whether an effect in ${r.band.name} (${r.band.loHz}–${r.band.hiHz} Hz), in the average over ${r.channels.length === 1 ? 'channel' : 'channels'} ${r.channels.join(', ')}, is band-specific or a broadband aperiodic change. ` +
     `Each of the following was computed per subject and tested on its own with ${STATISTIC_WORDS[t.raw.statistic] ?? t.raw.statistic} and a two-tailed permutation test of |t| (${permutationText(t.raw, relabellingWord(c))}; p = (1 + number of permutations with |t*| ≥ |t|)/(1 + permutations), Phipson & Smyth 2010): ` +
-    `log10 band power (${c.bandMethod === 'mean' ? 'mean density' : 'trapezoid integral'}); the aperiodic offset and exponent; the residual averaged over the band's bins (periodic power); the height of the highest fitted peak in the band (0 where none); the aperiodic component averaged over the band; ` +
+    `log10 band power (${c.bandMethod === 'mean' ? 'mean density' : 'trapezoid integral'}); the aperiodic offset and exponent; the residual averaged over the band's bins (periodic power); the height of the highest fitted peak in the band (0 where none); the centre frequency and the full width at half maximum of that peak (Hz; mean over the channels with a peak in the band; subjects without one on any channel left out of these two tests only${r.peakCenter ? `: ${Object.entries(r.peakCenter.withoutPeak).map(([k, v]) => `${k} ${v}`).join(', ')}` : ''}); the aperiodic component averaged over the band; ` +
     `log10 power in flanks of ${r.flanks.widthHz} Hz just below (${L ? `${L.loHz}–${L.hiHz} Hz` : 'none'}) and above (${U ? `${U.loHz}–${U.hiHz} Hz` : 'none'}) the band${r.flanks.note ? ` (${r.flanks.note})` : ''} and their difference (upper minus lower); and log10 relative band power (band integral over the integral across ${hz(r.normalisation.denominatorHz)}). ` +
-    `The verdict rests on the periodic, offset and exponent tests, Bonferroni-corrected at α = ${r.alpha} (each passes at p ≤ ${g3(r.alpha / 3)}); the aperiodic level in the band, the flanks and their difference tell the kinds of a passing aperiodic effect apart (rules in the bandwise README). ` +
+    `The verdict rests on ${r.family.length === 4 ? 'four tests — the periodic power, the peak centre (a shift of the peak is a band-specific change), the offset and the exponent —' : 'the periodic, offset and exponent tests,'} Bonferroni-corrected at α = ${r.alpha} (each passes at p ≤ ${g3(r.alpha / r.family.length)}); the aperiodic level in the band, the flanks and their difference tell the kinds of a passing aperiodic effect apart (rules in the bandwise README). ` +
     `To show how far the effect extends, log10 PSD over ${c.fminHz}–${c.fmaxHz} Hz was tested at every frequency with cluster-based permutation (Maris & Oostenveld 2007; |t| above ${g3(fw.threshold.t)}, two-tailed p = ${c.clusterP} with ${fw.threshold.df} degrees of freedom; ${pRule(t.raw)}). ` +
     `Effect sizes are ${t.raw.effectKind === 'hedges-g' ? "Hedges' g with a large-sample interval (Hedges & Olkin 1985)" : 'correlations with a Fisher z interval (Fisher 1921)'} at the ${g3(t.raw.level * 100)} % level.`;
   const json = { statistic: t.raw.statistic, permutations: t.raw.permutations, exact: t.raw.exact, seed: r.seed, alpha: r.alpha, decisionCorrection: 'bonferroni', family: r.family, flanks: r.flanks, relativeDenominatorHz: r.normalisation.denominatorHz, frequencyWise: { correction: c.correction, clusterP: c.clusterP, threshold: fw.threshold, clusterMeasure: fw.clusterMeasure, pValueRule: fw.pValueRule, fminHz: c.fminHz, fmaxHz: c.fmaxHz }, effectSize: t.raw.effectKind, confidenceLevel: t.raw.level, channels: r.channels };
@@ -272,6 +272,8 @@ function bandResults(r: BandCheckResult): string {
     testLine('aperiodic exponent', t.exponent),
     testLine('periodic band effect', t.periodic),
     testLine('peak height', t.peakHeight),
+    testLine('peak centre', t.peakCenter, r.peakCenter?.skipped ?? 'not part of this result'),
+    testLine('peak width', t.peakWidth, r.peakCenter?.skipped ?? 'not part of this result'),
     testLine('aperiodic level in the band', t.aperiodicInBand),
     testLine('lower flank', t.lowerFlank),
     testLine('upper flank', t.upperFlank),
@@ -279,9 +281,12 @@ function bandResults(r: BandCheckResult): string {
     testLine('relative band power', t.relative),
   ];
   const presence = Object.entries(r.peakPresence).map(([k, v]) => `${k} ${(100 * v).toFixed(0)} %`).join(', ');
+  const centres = r.peakCenter?.means.map((m) => `${m.name} ${m.centerHz.toFixed(2)} Hz (width ${m.widthHz.toFixed(2)} Hz, n = ${m.n})`).join(', ');
+  const kind = r.periodicKind ? ` Periodic change: ${r.periodicKind}.` : '';
   return (
-    `Verdict: **${r.verdict}** (rule ${r.rule}). ${r.sentence}\n\n${lines.join('\n')}\n\n` +
+    `Verdict: **${r.verdict}** (rule ${r.rule}).${kind} ${r.sentence}\n\n${lines.join('\n')}\n\n` +
     (presence ? `Subjects with a fitted peak in the band on at least one channel: ${presence}.\n\n` : '') +
+    (centres ? `Mean centre of the highest fitted peak in the band: ${centres}. ${r.peakCenter!.note}\n\n` : '') +
     `Frequency-wise: ${r.frequencyWise.extent}.` +
     (r.normalisation.note ? `\n\n${r.normalisation.note}` : '')
   );
@@ -304,7 +309,7 @@ export function methodsReport(result: ReportableResult, facts: DatabaseFacts | n
   const ingestRaw = facts?.ingestParameters ?? result.database?.ingestParameters;
   const f = ingestRaw === undefined ? null : ingestParameterFacts(ingestRaw);
   const isBand = result.kind === 'band-check';
-  const usesFit = isBand || ['residual', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center'].includes(c.measure);
+  const usesFit = isBand || ['residual', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center', 'peak-width'].includes(c.measure);
   const n = isBand ? (result as BandCheckResult).n : (result as CompareResult).n;
   const stats = isBand ? bandStatistics(result as BandCheckResult, refs) : compareStatistics(result as CompareResult, refs);
   const channels = analysedChannels(c, isBand ? (result as BandCheckResult).channels : (result as CompareResult).statistics.channels);

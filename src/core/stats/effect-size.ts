@@ -23,7 +23,7 @@ export interface EffectSize {
   difference: Float64Array | null;
 }
 
-function zCrit(level: number): number {
+export function zCrit(level: number): number {
   if (!(level > 0 && level < 1)) throw new RangeError(`confidence level must lie in (0, 1), got ${level}`);
   return normalQuantile(1 - (1 - level) / 2);
 }
@@ -99,6 +99,6 @@ export function correlationEffect(kind: 'r' | 'partial-r', r: ArrayLike<number>,
   return out;
 }
 
-function emptyEffect(kind: EffectSize['kind'], P: number, level: number): EffectSize {
+export function emptyEffect(kind: EffectSize['kind'], P: number, level: number): EffectSize {
   return { kind, value: new Float64Array(P), ciLow: new Float64Array(P), ciHigh: new Float64Array(P), level, difference: new Float64Array(P) };
 }

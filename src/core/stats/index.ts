@@ -35,6 +35,12 @@
  * A point whose standard error is 0 (no variance) gets t = 0; a correlation of exactly ±1 gives
  * t = ±Infinity (null in JSON).
  *
+ * Missing values (input.allowMissing): NaN in `data` marks a subject without a value at that
+ * point; each point's statistic and effect use the subjects with a value there (missing.ts),
+ * for two groups (welch-t, student-t), paired-t and one-sample-t. A point with too few values
+ * is left out: null statistic, p and effect, never in a cluster; result.missing says how many
+ * values each point rests on. Data without a NaN take the complete-data kernels unchanged.
+ *
  * Memory: the two-group statistic keeps subset-sum tables of up to 160 MB (two-group-t.ts), at
  * least twice the data size.
  */
@@ -94,6 +100,8 @@ export interface PermutationTestInput {
    * null: no spatial adjacency (frequency-only clusters, e.g. a channel average).
    */
   channelNeighbours?: number[][] | null;
+  /** NaN in `data` (and design.second) marks a missing value, omitted per point (default: NaN is an error) */
+  allowMissing?: boolean;
 }
 
 export type StatisticName = 'welch-t' | 'student-t' | 'paired-t' | 'one-sample-t' | 'pearson' | 'spearman' | 'linear-model-t';
@@ -176,6 +184,17 @@ export interface PermutationTestResult {
   channelNeighbours: number[][] | null;
   /** the p-value rule, in words, for the methods text */
   pValueRule: string;
+  /** only when the data had missing values: how many values each point rests on, and the points left out */
+  missing?: MissingResult;
+}
+
+export interface MissingResult {
+  /** values per point: [group 0, group 1] for two groups, else one row (subjects, or pairs) */
+  nPerPoint: number[][];
+  /** indices of the points left out (too few values): null statistic, p and effect */
+  leftOut: number[];
+  /** the minimum a point needs, in words */
+  minimum: string;
 }
 
 export { runPermutationTest, preparePermutationTest, finishPermutationTest, PermutationTestInputError, type PreparedPermutationTest } from './permutation-test.ts';

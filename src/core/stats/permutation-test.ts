@@ -1,8 +1,7 @@
 /**
- * One permutation test over channels × frequencies, end to end: check the input, build the
- * design's point statistic, the point graph and the permutation scheme (preparePermutationTest),
- * run the permutations (permutation-engine.ts), and turn observed maps and null maxima into the
- * JSON-able result (finishPermutationTest).
+ * One contrast end to end: check the input, build the design's point statistic, the point graph
+ * and the permutation scheme (preparePermutationTest), run the permutations (permutation-engine.ts),
+ * and turn observed maps and null maxima into the JSON-able result (finishPermutationTest).
  * Types and conventions are documented in index.ts.
  */
 import type { PermutationTestInput, PermutationTestOptions, PermutationTestResult, ClusterResult, Design, EffectResult, Matrix, StatisticName } from './index.ts';
@@ -11,12 +10,16 @@ import { TwoGroupT } from './two-group-t.ts';
 import { OneSampleT } from './one-sample-t.ts';
 import { CorrelationT } from './correlation-t.ts';
 import { LinearModelT } from './linear-model-t.ts';
+import { TwoGroupTMissing } from './two-group-t-missing.ts';
+import { OneSampleTMissing } from './one-sample-t-missing.ts';
+import { countValues, minimumText, type MissingSummary } from './missing.ts';
 import { makeScheme } from './relabelling.ts';
 import { pointGraphEdges } from './point-graph.ts';
 import { ClusterWork, findClusters, type Cluster } from './clusters.ts';
 import { TFCE_DEFAULTS, TfceWork, tfceScores, type TfceParameters } from './tfce.ts';
 import { twoTailedCriticalT, twoTailedP } from './distributions.ts';
 import { correlationEffect, hedgesGOneSample, hedgesGTwoGroups, type EffectSize } from './effect-size.ts';
+import { hedgesGOneSampleMissing, hedgesGTwoGroupsMissing } from './effect-size-missing.ts';
 import { permutationP, runPermutations, type NullMaxima, type PermutationTest, type ProgressCallback } from './permutation-engine.ts';
 import { delaunayNeighbours } from '../montage/adjacency.ts';
 
@@ -44,6 +47,8 @@ export interface PreparedPermutationTest {
   clusterP: number;
   frequencyAdjacency: boolean;
   channelNeighbours: number[][] | null;
+  /** values per point and the points left out, when the data hold missing values (NaN) */
+  missing: MissingSummary | null;
 }
 
 function fail(field: string, value: unknown, message: string): never {
@@ -55,20 +60,26 @@ function checkFinite(field: string, values: ArrayLike<number>, length: number): 
   for (let i = 0; i < length; i++) if (!Number.isFinite(values[i])) fail(`${field}[${i}]`, values[i], 'not a finite number');
 }
 
-function checkMatrix(field: string, data: Matrix, input: PermutationTestInput): number {
+/** Subjects (rows) of a matrix; NaN is allowed as a missing value when `allowMissing`, ±Infinity never. */
+function checkMatrix(field: string, data: Matrix, input: PermutationTestInput): { n: number; missing: boolean } {
   const P = input.channels.length * input.freqsHz.length;
   if (!(data instanceof Float32Array || data instanceof Float64Array)) fail(field, typeof data, 'expected a Float32Array or Float64Array');
   if (data.length % P !== 0) fail(field, data.length, `length is not a multiple of channels × bins = ${P}`);
   const n = data.length / P;
+  let missing = false;
   for (let i = 0; i < data.length; i++) {
     if (!Number.isFinite(data[i])) {
+      if (input.allowMissing && Number.isNaN(data[i])) {
+        missing = true;
+        continue;
+      }
       const s = Math.floor(i / P);
       const p = i % P;
       const F = input.freqsHz.length;
       fail(field, data[i], `subject row ${s}, channel ${input.channels[Math.floor(p / F)]}, ${input.freqsHz[p % F]} Hz is not a finite number`);
     }
   }
-  return n;
+  return { n, missing };
 }
 
 function checkNuisance(design: { nuisance?: { name: string; values: ArrayLike<number> }[] }, n: number): ArrayLike<number>[] {
@@ -78,9 +89,16 @@ function checkNuisance(design: { nuisance?: { name: string; values: ArrayLike<nu
   });
 }
 
-function buildKernel(input: PermutationTestInput, n: number, P: number, statistic: StatisticName | undefined): { kernel: PointStatistic; statistic: StatisticName; labels?: Uint8Array; d?: Float64Array } {
+function buildKernel(
+  input: PermutationTestInput,
+  n: number,
+  P: number,
+  statistic: StatisticName | undefined,
+  dataMissing: boolean,
+): { kernel: PointStatistic; statistic: StatisticName; labels?: Uint8Array; d?: Float64Array; missing: MissingSummary | null } {
   const design: Design = input.design;
   const data = input.data;
+  const noMissing = (what: string) => fail('data', 'NaN', `missing values per point are supported for two groups (welch-t, student-t), paired-t and one-sample-t, not for ${what}: every subject needs a value at every point`);
   switch (design.kind) {
     case 'groups': {
       checkFinite('design.group', design.group, n);
@@ -96,40 +114,54 @@ function buildKernel(input: PermutationTestInput, n: number, P: number, statisti
       const nuisance = checkNuisance(design, n);
       if (nuisance.length > 0) {
         if (statistic !== undefined && statistic !== 'linear-model-t') fail('options.statistic', statistic, 'with nuisance covariates the statistic is linear-model-t');
-        return { kernel: new LinearModelT(data, n, P, labels, nuisance), statistic: 'linear-model-t', labels };
+        if (dataMissing) noMissing('a linear model with nuisance covariates');
+        return { kernel: new LinearModelT(data, n, P, labels, nuisance), statistic: 'linear-model-t', labels, missing: null };
       }
       const chosen = statistic ?? 'welch-t';
       if (chosen !== 'welch-t' && chosen !== 'student-t') fail('options.statistic', chosen, 'a groups design uses welch-t or student-t');
-      return { kernel: new TwoGroupT(data, n, P, labels, chosen === 'welch-t' ? 'welch' : 'pooled'), statistic: chosen, labels };
+      const variance = chosen === 'welch-t' ? 'welch' : 'pooled';
+      if (dataMissing) {
+        const missing = countValues(data, n, P, labels);
+        return { kernel: new TwoGroupTMissing(data, n, P, labels, variance, missing.keep), statistic: chosen, labels, missing };
+      }
+      return { kernel: new TwoGroupT(data, n, P, labels, variance), statistic: chosen, labels, missing: null };
     }
     case 'paired': {
-      const n2 = checkMatrix('design.second', design.second, input);
-      if (n2 !== n) fail('design.second', n2, `the second condition has ${n2} subjects, the first ${n}`);
+      const second = checkMatrix('design.second', design.second, input);
+      if (second.n !== n) fail('design.second', second.n, `the second condition has ${second.n} subjects, the first ${n}`);
       if (statistic !== undefined && statistic !== 'paired-t') fail('options.statistic', statistic, 'a paired design uses paired-t');
       const d = new Float64Array(n * P);
-      // within-subject differences, second − first
+      // within-subject differences, second − first (NaN where either is missing)
       for (let i = 0; i < d.length; i++) d[i] = design.second[i] - data[i];
-      return { kernel: new OneSampleT(d, n, P), statistic: 'paired-t', d };
+      return { ...oneSampleKernel(d, n, P, dataMissing || second.missing), statistic: 'paired-t', d };
     }
     case 'one-sample': {
       if (statistic !== undefined && statistic !== 'one-sample-t') fail('options.statistic', statistic, 'a one-sample design uses one-sample-t');
       const d = Float64Array.from(data);
-      return { kernel: new OneSampleT(d, n, P), statistic: 'one-sample-t', d };
+      return { ...oneSampleKernel(d, n, P, dataMissing), statistic: 'one-sample-t', d };
     }
     case 'covariate': {
       checkFinite('design.covariate', design.covariate, n);
+      if (dataMissing) noMissing('a covariate design');
       const nuisance = checkNuisance(design, n);
       if (nuisance.length > 0) {
         if (statistic !== undefined && statistic !== 'linear-model-t') fail('options.statistic', statistic, 'with nuisance covariates the statistic is linear-model-t');
-        return { kernel: new LinearModelT(data, n, P, design.covariate, nuisance), statistic: 'linear-model-t' };
+        return { kernel: new LinearModelT(data, n, P, design.covariate, nuisance), statistic: 'linear-model-t', missing: null };
       }
       const chosen = statistic ?? 'pearson';
       if (chosen !== 'pearson' && chosen !== 'spearman') fail('options.statistic', chosen, 'a covariate design uses pearson or spearman');
-      return { kernel: new CorrelationT(data, n, P, design.covariate, chosen), statistic: chosen };
+      return { kernel: new CorrelationT(data, n, P, design.covariate, chosen), statistic: chosen, missing: null };
     }
     default:
       return fail('design.kind', (design as { kind: unknown }).kind, 'expected groups, paired, one-sample or covariate');
   }
+}
+
+/** The one-sample kernel of the values (or paired differences) d: complete data, or with missing values per point. */
+function oneSampleKernel(d: Float64Array, n: number, P: number, anyMissing: boolean): { kernel: PointStatistic; missing: MissingSummary | null } {
+  if (!anyMissing) return { kernel: new OneSampleT(d, n, P), missing: null };
+  const missing = countValues(d, n, P, null);
+  return { kernel: new OneSampleTMissing(d, n, P, missing.keep), missing };
 }
 
 function tfceParameters(option: PermutationTestOptions['tfce']): TfceParameters | null {
@@ -149,7 +181,7 @@ export function preparePermutationTest(input: PermutationTestInput, options: Per
     if (!Number.isFinite(freqsHz[f]) || (f > 0 && !(freqsHz[f] > freqsHz[f - 1]))) fail(`freqsHz[${f}]`, freqsHz[f], 'frequencies must be finite and ascending');
   }
   const P = channels.length * freqsHz.length;
-  const n = checkMatrix('data', input.data, input);
+  const { n, missing: dataMissing } = checkMatrix('data', input.data, input);
   if (n < 3) fail('data', n, 'at least 3 subjects are needed');
   const permutations = options.permutations ?? 1000;
   const seed = options.seed ?? 1;
@@ -163,8 +195,9 @@ export function preparePermutationTest(input: PermutationTestInput, options: Per
   const level = options.confidenceLevel ?? 0.95;
   if (!(level > 0 && level < 1)) fail('options.confidenceLevel', level, 'must lie in (0, 1)');
 
-  const { kernel, statistic, labels, d } = buildKernel(input, n, P, options.statistic);
+  const { kernel, statistic, labels, d, missing } = buildKernel(input, n, P, options.statistic, dataMissing);
   if (kernel.df < 1) fail('data', n, `too few subjects for ${statistic}: ${kernel.df} degrees of freedom`);
+  if (missing && !missing.keep.includes(1)) fail('data', missing.missing, `no point has ${minimumText(missing.counts.length === 2)}: every point has too many missing values`);
   const stat = new Float64Array(P);
   const df = new Float64Array(P);
   kernel.compute(kernel.observedRelabelling(), stat, df);
@@ -177,9 +210,16 @@ export function preparePermutationTest(input: PermutationTestInput, options: Per
     const r = stat.map((t) => t / Math.sqrt(t * t + kernel.df));
     effect = correlationEffect('partial-r', r, Float64Array.from(kernel.beta), n, n - 2 - kernel.df, level); // n − 2 − df = number of nuisance covariates
   } else if (labels) {
-    effect = hedgesGTwoGroups(input.data, n, P, labels, level);
+    effect = missing ? hedgesGTwoGroupsMissing(input.data, n, P, labels, level) : hedgesGTwoGroups(input.data, n, P, labels, level);
   } else {
-    effect = hedgesGOneSample(d!, n, P, level);
+    effect = missing ? hedgesGOneSampleMissing(d!, n, P, level) : hedgesGOneSample(d!, n, P, level);
+  }
+  if (missing) {
+    // points left out: no statistic, p or effect (stat stays 0 for the clusters; reported as null)
+    for (let p = 0; p < P; p++) {
+      if (missing.keep[p] === 1) continue;
+      for (const a of [effect.value, effect.ciLow, effect.ciHigh, effect.difference]) if (a) a[p] = NaN;
+    }
   }
 
   let channelNeighbours: number[][] | null;
@@ -196,7 +236,7 @@ export function preparePermutationTest(input: PermutationTestInput, options: Per
     tfceScore = new Float64Array(P);
     tfceScores(stat, tfce, new TfceWork(P, edges), tfceScore);
   }
-  return { input, statistic, test, nSubjects: n, stat, df, effect, observedClusters, tfceScore, clusterP, frequencyAdjacency, channelNeighbours };
+  return { input, statistic, test, nSubjects: n, stat, df, effect, observedClusters, tfceScore, clusterP, frequencyAdjacency, channelNeighbours, missing };
 }
 
 /** Observed maps plus the null maxima of all permutations [0, count) → the result. */
@@ -231,7 +271,9 @@ export function finishPermutationTest(prepared: PreparedPermutationTest, nulls: 
 
   const design = input.design;
   const kernelDf = test.kernel.df;
-  const perPointDf = prepared.statistic === 'welch-t';
+  const missing = prepared.missing;
+  const perPointDf = prepared.statistic === 'welch-t' || missing !== null;
+  const reported = missing ? stat.map((t, p) => (missing.keep[p] === 1 ? t : NaN)) : stat;
   const result: PermutationTestResult = {
     design: design.kind,
     statistic: prepared.statistic,
@@ -241,9 +283,9 @@ export function finishPermutationTest(prepared: PreparedPermutationTest, nulls: 
     nuisance: design.kind === 'groups' || design.kind === 'covariate' ? (design.nuisance ?? []).map((c) => c.name) : [],
     channels: [...input.channels],
     freqsHz: [...input.freqsHz],
-    stat: Array.from(stat),
+    stat: Array.from(reported),
     df: perPointDf ? Array.from(df) : kernelDf,
-    pUncorrected: Array.from(stat, (t, p) => twoTailedP(t, df[p])),
+    pUncorrected: Array.from(reported, (t, p) => (Number.isNaN(t) ? NaN : twoTailedP(t, df[p]))),
     effect: effectResult(effect),
     clusterMeasure: measure,
     clusters,
@@ -262,6 +304,11 @@ export function finishPermutationTest(prepared: PreparedPermutationTest, nulls: 
     for (let s = 0; s < prepared.nSubjects; s++) n1 += design.group[s];
     result.nPerGroup = [prepared.nSubjects - n1, n1];
   }
+  if (missing) {
+    const leftOut: number[] = [];
+    missing.keep.forEach((k, p) => k === 0 && leftOut.push(p));
+    result.missing = { nPerPoint: missing.counts.map((c) => Array.from(c)), leftOut, minimum: minimumText(missing.counts.length === 2) };
+  }
   if (test.tfce && prepared.tfceScore) {
     const score = prepared.tfceScore;
     result.tfce = {
@@ -277,7 +324,7 @@ function effectResult(e: EffectSize): EffectResult {
   return { kind: e.kind, value: Array.from(e.value), ciLow: Array.from(e.ciLow), ciHigh: Array.from(e.ciHigh), level: e.level, difference: e.difference ? Array.from(e.difference) : null };
 }
 
-/** The whole test on one thread. onProgress(done, total) is called as permutations finish. */
+/** The whole contrast on one thread. onProgress(done, total) is called as permutations finish. */
 export function runPermutationTest(input: PermutationTestInput, options: PermutationTestOptions = {}, onProgress?: ProgressCallback): PermutationTestResult {
   const prepared = preparePermutationTest(input, options);
   const nulls = runPermutations(prepared.test, { from: 0, to: prepared.test.scheme.count }, onProgress);

@@ -11,8 +11,9 @@ import { compare, RESEARCH_NOTE, type CompareCluster } from '../contrast/run.ts'
 import { bandBins, checkBand, type Band } from '../spectrum/bands.ts';
 import type { PermutationTestResult } from '../stats/index.ts';
 import { assembleAveraged, combine, reduce, rowMean, runScalarTest, type ScalarTest, type ScalarValues } from './scalar-test.ts';
-import { decideVerdict, describeTest, type DirectionWords, type FamilyStep, type Verdict } from './rules.ts';
+import { decideVerdict, describeTest, type DirectionWords, type FamilyStep, type PeriodicKind, type Verdict } from './rules.ts';
 import { bandCheckFigure, type BandCheckFigure } from './figure.ts';
+import { peakValues, type PeakCenterSummary } from './peak-center.ts';
 
 export class BandCheckError extends Error {
   override name = 'BandCheckError';
@@ -40,6 +41,10 @@ export interface BandCheckTests {
   periodic: ScalarTest;
   /** highest fitted peak in the band, 0 where none, averaged over the channels */
   peakHeight: ScalarTest;
+  /** centre (Hz) of the highest fitted peak in the band, mean over the channels with one; subjects without a peak left out (null: too few with one) */
+  peakCenter: ScalarTest | null;
+  /** full width at half maximum (Hz) of that peak, the same way (reported, does not decide) */
+  peakWidth: ScalarTest | null;
   /** fitted aperiodic component averaged over the band's bins (helper of the rules) */
   aperiodicInBand: ScalarTest;
   lowerFlank: ScalarTest | null;
@@ -82,9 +87,13 @@ export interface BandCheckResult {
   tests: BandCheckTests;
   /** share of subjects per group (or condition) with a fitted peak in the band on at least one channel */
   peakPresence: Record<string, number>;
+  /** the frequency test's subjects: with and without a peak per group, mean centre and width per group, and how missing peaks are treated */
+  peakCenter: PeakCenterSummary;
   frequencyWise: FrequencyWise;
   normalisation: { denominatorHz: [number, number]; note: string | null };
   verdict: Verdict;
+  /** band-specific and mixed verdicts: which periodic tests passed (power, frequency-shift, power-and-frequency-shift); else null */
+  periodicKind: PeriodicKind | null;
   rule: string;
   sentence: string;
   family: FamilyStep[];
@@ -167,6 +176,7 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
   const so = { statistic: c.statistic, permutations, seed: c.seed };
 
   const bandText = `${band.name} ${band.loHz}–${band.hiHz} Hz`;
+  const peaks = peakValues(c, data, band, c.channels === 'all' ? 'the channels' : c.channels.join(', '));
   const power = `log10 band power (${c.bandMethod === 'mean' ? 'mean density, µV²/Hz' : 'trapezoid integral, µV²'})`;
   const first = (r: Float64Array) => r[0];
   const steps: { name: keyof BandCheckTests; values: () => ScalarValues | null }[] = [
@@ -175,6 +185,8 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
     { name: 'exponent', values: () => reduce(`aperiodic exponent, fit ${fitLo}–${fitHi} Hz`, assembleAveraged(c, data, { measure: 'exponent' }), first) },
     { name: 'periodic', values: () => reduce(`residual (log10 PSD minus the aperiodic fit) averaged over ${bandText}`, assembleAveraged(c, data, { measure: 'residual', fminHz: band.loHz, fmaxHz: band.hiHz }), rowMean) },
     { name: 'peakHeight', values: () => reduce(`height of the highest fitted peak in ${bandText} (log10 above the aperiodic fit, 0 where none)`, assembleAveraged(c, data, { measure: 'peak-height', bands: [band] }), first) },
+    { name: 'peakCenter', values: () => peaks.center },
+    { name: 'peakWidth', values: () => peaks.width },
     {
       name: 'aperiodicInBand',
       values: () =>
@@ -201,10 +213,10 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
   ];
   const total = steps.length + 1;
   const tests = {} as Record<keyof BandCheckTests, ScalarTest | null>;
-  const peakValues: { values?: ScalarValues } = {};
+  const heightValues: { values?: ScalarValues } = {};
   steps.forEach((s, i) => {
     const v = s.values();
-    if (s.name === 'peakHeight' && v) peakValues.values = v;
+    if (s.name === 'peakHeight' && v) heightValues.values = v;
     tests[s.name] = v ? runScalarTest(v, so) : null;
     options.onProgress?.(s.name, i + 1, total);
   });
@@ -229,14 +241,23 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
   };
 
   const decision = decideVerdict(
-    { periodic: t.periodic, offset: t.offset, exponent: t.exponent, aperiodicInBand: t.aperiodicInBand, lowerFlank: t.lowerFlank, upperFlank: t.upperFlank, tilt: t.tilt },
+    {
+      periodic: t.periodic,
+      peakCenter: { test: t.peakCenter, means: peaks.summary.means, withoutPeak: peaks.summary.withoutPeak, skipped: peaks.summary.skipped },
+      offset: t.offset,
+      exponent: t.exponent,
+      aperiodicInBand: t.aperiodicInBand,
+      lowerFlank: t.lowerFlank,
+      upperFlank: t.upperFlank,
+      tilt: t.tilt,
+    },
     band.name,
     directionWords(c),
     alpha,
   );
 
   const exclusions = uniqueBySubject([...Object.values(tests).flatMap((x) => x?.excluded ?? []), ...fw.exclusions]);
-  const figure = bandCheckFigure(c, data, band, flanks, options.fitRangeHz, fw.statistics as PermutationTestResult);
+  const figure = bandCheckFigure(c, data, band, flanks, options.fitRangeHz, fw.statistics as PermutationTestResult, peaks.summary.means);
   return {
     kind: 'band-check',
     note: RESEARCH_NOTE,
@@ -249,10 +270,12 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
     seed: c.seed,
     flanks: { lower: flanks.lower, upper: flanks.upper, widthHz, note: flanks.note },
     tests: t,
-    peakPresence: peakPresence(peakValues.values),
+    peakPresence: peakPresence(heightValues.values),
+    peakCenter: peaks.summary,
     frequencyWise,
     normalisation: { denominatorHz: [...c.relativeRangeHz], note: normalisationNote(t.raw, t.relative, c.relativeRangeHz, alpha) },
     verdict: decision.verdict,
+    periodicKind: decision.periodicKind,
     rule: decision.rule,
     sentence: decision.sentence,
     family: decision.family,

@@ -1,7 +1,8 @@
 /**
  * Figure data of a band check, for the dashboard to draw (no drawing here): each group's (or
  * condition's) mean log10 spectrum with its mean aperiodic fit, the mean residual spectrum, the
- * band and its flanks, and the frequency-wise effect sizes with the clusters.
+ * band and its flanks, the mean centre of the band's highest fitted peak per group (or
+ * condition), and the frequency-wise effect sizes with the clusters.
  * Means are over subjects of the channel-averaged values, in log10 units.
  */
 import type { Contrast } from '../contrast/spec.ts';
@@ -9,6 +10,7 @@ import type { ContrastData } from '../contrast/data.ts';
 import type { Band } from '../spectrum/bands.ts';
 import type { PermutationTestResult } from '../stats/index.ts';
 import { assembleAveraged } from './scalar-test.ts';
+import type { PeakGroupMean } from './peak-center.ts';
 
 export interface FigureSeries {
   /** group name, condition name, or "all subjects" */
@@ -29,12 +31,22 @@ export interface BandCheckFigure {
   lowerFlank: Band | null;
   upperFlank: Band | null;
   fitRangeHz: [number, number];
+  /** mean centre and width (Hz) of the highest fitted peak in the band per series (names as in `series`), over the subjects with a peak */
+  peakCenters: PeakGroupMean[];
   /** frequency-wise effect per bin of the cluster test (its own frequencies) */
   effect: { freqsHz: number[]; kind: string; value: number[]; ciLow: number[]; ciHigh: number[] };
   clusters: { sign: 1 | -1; p: number; fminHz: number; fmaxHz: number }[];
 }
 
-export function bandCheckFigure(c: Contrast, data: ContrastData, band: Band, flanks: { lower: Band | null; upper: Band | null }, fitRangeHz: [number, number], fw: PermutationTestResult): BandCheckFigure {
+export function bandCheckFigure(
+  c: Contrast,
+  data: ContrastData,
+  band: Band,
+  flanks: { lower: Band | null; upper: Band | null },
+  fitRangeHz: [number, number],
+  fw: PermutationTestResult,
+  peakCenters: PeakGroupMean[],
+): BandCheckFigure {
   const axis = data.spectra;
   const fminHz = Math.max(c.fminHz, axis.freqStartHz > 0 ? axis.freqStartHz : axis.freqStepHz);
   const logPsd = assembleAveraged(c, data, { measure: 'log-psd', fminHz, fmaxHz: c.fmaxHz });
@@ -79,6 +91,8 @@ export function bandCheckFigure(c: Contrast, data: ContrastData, band: Band, fla
     lowerFlank: flanks.lower,
     upperFlank: flanks.upper,
     fitRangeHz: [...fitRangeHz],
+    // a paired design's series are "all subjects, <condition>"; the peak means are per condition
+    peakCenters: peakCenters.map((m) => ({ ...m, name: design.kind === 'paired' ? `all subjects, ${m.name}` : m.name })),
     effect: { freqsHz: fw.freqsHz, kind: fw.effect.kind, value: fw.effect.value, ciLow: fw.effect.ciLow, ciHigh: fw.effect.ciHigh },
     clusters: fw.clusters.map((k) => ({ sign: k.sign, p: k.p, fminHz: k.fminHz, fmaxHz: k.fmaxHz })),
   };

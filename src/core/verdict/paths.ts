@@ -23,14 +23,25 @@
  *    band mean of the same spectral measure (no summary choice then: log10 of each bin).
  * Only the rows differ by reference, averaging and fit range: the caller passes one data set
  * for each.
+ *
+ * Decision (choices.decisions, default power only): 'power' decides a path on its power measure
+ * alone; 'power-and-frequency' also tests the centre of the band's highest fitted peak (the band
+ * check's frequency test, peak-center.ts, on the same data set and band edges) and decides on
+ * both, Bonferroni-corrected: p = min(1, 2·min(p_power, p_centre)). The curve's effect stays the
+ * power measure's; the centre's effect is reported beside it. A data set without fitted peaks
+ * cannot decide on frequency.
  */
 import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData } from '../contrast/data.ts';
 import { checkBand, type Band, type BandMethod } from '../spectrum/bands.ts';
 import { compare } from '../contrast/run.ts';
 import { assembleAveraged, reduce, rowMean, runScalarTest, scalarEffect, type ScalarTest } from './scalar-test.ts';
+import { peakValues } from './peak-center.ts';
 
 export type PathMeasure = 'absolute' | 'relative' | 'residual';
+/** what a path is decided on: its power measure, or that and the peak centre (Bonferroni over the two) */
+export type PathDecision = 'power' | 'power-and-frequency';
+export const PATH_DECISIONS: readonly PathDecision[] = ['power', 'power-and-frequency'];
 export type Averaging = 'mean' | 'median';
 
 /** Rows of one (reference, averaging) as stored, with the fit range of their aperiodic fits. */
@@ -54,6 +65,8 @@ export interface PathChoices {
   fitRangesHz: [number, number][];
   /** band edge variants (edgeVariants gives ±1 Hz) */
   bands: Band[];
+  /** what each path is decided on (default ['power']) */
+  decisions?: PathDecision[];
 }
 
 export interface PathSpec {
@@ -65,8 +78,23 @@ export interface PathSpec {
   summary: BandMethod | null;
   fitRangeHz: [number, number] | null;
   band: Band;
+  decision: PathDecision;
   /** the path's measure in words */
   description: string;
+}
+
+/** The peak-centre test of a path decided on power and frequency. */
+export interface PathFrequency {
+  effect: number;
+  ciLow: number;
+  ciHigh: number;
+  /** group 1 − group 0 mean centre, Hz (null for a correlation, or when not tested) */
+  differenceHz: number | null;
+  p: number;
+  n: Record<string, number>;
+  withoutPeak: Record<string, number>;
+  /** why the test did not run (too few subjects with a peak); it then counts as p = 1 */
+  skipped: string | null;
 }
 
 export interface PathResult extends PathSpec {
@@ -74,9 +102,12 @@ export interface PathResult extends PathSpec {
   ciLow: number;
   ciHigh: number;
   effectKind: ScalarTest['effectKind'];
+  /** the power test's p ('power'), or the Bonferroni-adjusted p over power and centre ('power-and-frequency') */
   p: number;
   significant: boolean;
   n: Record<string, number>;
+  /** the peak-centre test (only on 'power-and-frequency' paths) */
+  frequency?: PathFrequency;
   /** position on the curve, 1 = smallest effect */
   rank: number;
 }
@@ -130,6 +161,9 @@ export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summ
   const out: PathSpec[] = [];
   for (const k of ['measures', 'references', 'averagings', 'bands'] as const) if (choices[k].length === 0) throw new PathError(`choices.${k}: at least one value is needed`);
   for (const band of choices.bands) checkBand(band);
+  const decisions = choices.decisions ?? ['power'];
+  if (decisions.length === 0) throw new PathError('choices.decisions: at least one value is needed');
+  for (const d of decisions) if (!PATH_DECISIONS.includes(d)) throw new PathError(`choices.decisions: ${d} is not one of ${PATH_DECISIONS.join(', ')}`);
   for (const measure of choices.measures) {
     const denominators: ([number, number] | null)[] = measure === 'relative' ? choices.relativeDenominatorsHz : [null];
     const summaries: (BandMethod | null)[] = measure === 'absolute' && test === 'band-summary' ? choices.summaries : [null];
@@ -142,7 +176,8 @@ export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summ
         for (const denominatorHz of denominators)
           for (const summary of summaries)
             for (const fitRangeHz of fitRanges)
-              for (const band of choices.bands) {
+              for (const band of choices.bands)
+              for (const decision of decisions) {
                 const edges = `${band.loHz}–${band.hiHz} Hz`;
                 const description =
                   measure === 'absolute'
@@ -150,7 +185,8 @@ export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summ
                     : measure === 'relative'
                       ? test === 'band-summary' ? `log10 relative band power ${edges} / ${denominatorHz![0]}–${denominatorHz![1]} Hz` : `log10 relative PSD (over the ${denominatorHz![0]}–${denominatorHz![1]} Hz integral) at each bin of ${edges}`
                       : `residual ${test === 'band-summary' ? 'averaged over' : 'at each bin of'} ${edges} (fit ${fitRangeHz![0]}–${fitRangeHz![1]} Hz)`;
-                out.push({ id: out.length + 1, measure, denominatorHz, reference, averaging, summary, fitRangeHz, band, description: `${description}; ${reference}, ${averaging}` });
+                const decided = decision === 'power' ? '' : '; decided on power and the peak centre (Bonferroni ×2)';
+                out.push({ id: out.length + 1, measure, denominatorHz, reference, averaging, summary, fitRangeHz, band, decision, description: `${description}; ${reference}, ${averaging}${decided}` });
               }
   }
   return out;
@@ -225,6 +261,16 @@ export function defaultPathChoices(c: Contrast, band: Band, sets: readonly PathD
   };
 }
 
+/** The peak-centre test of a path (the band check's frequency test on the path's rows and band). */
+function frequencyTest(c: Contrast, p: PathSpec, data: ContrastData, so: { statistic: Contrast['statistic']; permutations: number; seed: number }): PathFrequency {
+  const base = { ...c, reference: p.reference as Contrast['reference'], averaging: p.averaging };
+  const v = peakValues(base, data, p.band, c.channels === 'all' ? 'the channels' : c.channels.join(', '));
+  const s = v.summary;
+  if (!v.center) return { effect: NaN, ciLow: NaN, ciHigh: NaN, differenceHz: null, p: 1, n: s.withPeak, withoutPeak: s.withoutPeak, skipped: s.skipped };
+  const t = runScalarTest(v.center, so);
+  return { effect: t.effect, ciLow: t.ciLow, ciHigh: t.ciHigh, differenceHz: t.difference, p: t.p, n: t.n, withoutPeak: s.withoutPeak, skipped: null };
+}
+
 /** Runs every path and returns the specification curve; `band` is the band as given (its variants are in choices.bands). */
 export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoices, sets: readonly PathDataSet[], options: PathRunOptions = {}): SpecificationCurve {
   const alpha = options.alpha ?? 0.05;
@@ -236,19 +282,38 @@ export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoice
     const stored = availableFitRanges(sets);
     if (stored.length < 2) notes.push(`aperiodic fit range not varied: the database stores ${stored.length === 0 ? 'no fit' : `one fit range (${stored[0][0]}–${stored[0][1]} Hz)`}`);
   }
+  const so = { statistic: contrastBase.statistic, permutations, seed: contrastBase.seed };
+  // a path decided on both shares its power test with its power-only twin, and its centre test with every path of the same data set and band
+  const powerTests = new Map<string, Pick<ScalarTest, 'effect' | 'ciLow' | 'ciHigh' | 'effectKind' | 'p' | 'n'>>();
+  const frequencyTests = new Map<PathDataSet, Map<string, PathFrequency>>();
   const results: PathResult[] = specs.map((p, i) => {
-    const data = findSet(sets, p).data;
-    const so = { statistic: contrastBase.statistic, permutations, seed: contrastBase.seed };
-    let t: Pick<ScalarTest, 'effect' | 'ciLow' | 'ciHigh' | 'effectKind' | 'p' | 'n'>;
-    if (test === 'band-summary') t = runScalarTest(pathValues(contrastBase, p, data), so);
-    else {
-      const fc = spectralContrast(contrastBase, p, permutations);
-      const clusters = compare(fc, data).clusters;
-      const mean = reduce(p.description, assembleAveraged(fc, data, {}), rowMean);
-      t = { ...scalarEffect(mean, so), p: clusters.length > 0 ? Math.min(...clusters.map((k) => k.p)) : 1 };
+    const set = findSet(sets, p);
+    const data = set.data;
+    const powerKey = JSON.stringify([p.measure, p.denominatorHz, p.reference, p.averaging, p.summary, p.fitRangeHz, p.band]);
+    let t = powerTests.get(powerKey);
+    if (!t) {
+      if (test === 'band-summary') t = runScalarTest(pathValues(contrastBase, p, data), so);
+      else {
+        const fc = spectralContrast(contrastBase, p, permutations);
+        const clusters = compare(fc, data).clusters;
+        const mean = reduce(p.description, assembleAveraged(fc, data, {}), rowMean);
+        t = { ...scalarEffect(mean, so), p: clusters.length > 0 ? Math.min(...clusters.map((k) => k.p)) : 1 };
+      }
+      powerTests.set(powerKey, t);
     }
+    let frequency: PathFrequency | null = null;
+    if (p.decision === 'power-and-frequency') {
+      if (data.peaks.length === 0) throw new PathError(`no fitted peaks in the data set for reference ${p.reference}, averaging ${p.averaging}: a path decided on frequency needs the stored peaks`);
+      const byBand = frequencyTests.get(set) ?? new Map<string, PathFrequency>();
+      frequencyTests.set(set, byBand);
+      const bandKey = `${p.band.loHz}-${p.band.hiHz}`;
+      frequency = byBand.get(bandKey) ?? frequencyTest(contrastBase, p, data, so);
+      byBand.set(bandKey, frequency);
+    }
+    // Bonferroni over the two tests of a path decided on power and frequency
+    const pathP = frequency ? Math.min(1, 2 * Math.min(t.p, frequency.p)) : t.p;
     options.onProgress?.(i + 1, specs.length);
-    return { ...p, effect: t.effect, ciLow: t.ciLow, ciHigh: t.ciHigh, effectKind: t.effectKind, p: t.p, significant: t.p < alpha, n: t.n, rank: 0 };
+    return { ...p, effect: t.effect, ciLow: t.ciLow, ciHigh: t.ciHigh, effectKind: t.effectKind, p: pathP, significant: pathP < alpha, n: t.n, ...(frequency ? { frequency } : {}), rank: 0 };
   });
   results.sort((a, b) => a.effect - b.effect || a.id - b.id);
   results.forEach((r, i) => (r.rank = i + 1));

@@ -1,6 +1,8 @@
 // Plot options of the band check figure: each group's (or condition's) mean log10 spectrum with
 // its mean aperiodic fit, the mean residual spectra, and the frequency-wise effect size with its
-// clusters; the band and its flanks shaded in every panel (data: src/core/verdict bandCheckFigure).
+// clusters; the band and its flanks shaded in every panel, and each group's mean centre of the
+// band's highest fitted peak as a dotted vertical line in its colour on the spectra and residual
+// panels (data: src/core/verdict bandCheckFigure).
 import * as Plot from '@observablehq/plot';
 import type { BandCheckFigure } from '../../../core/verdict/index.ts';
 import type { Band } from '../../../core/spectrum/bands.ts';
@@ -34,6 +36,24 @@ function shadeMarks(fig: BandCheckFigure, labels: boolean): Plot.Markish[] {
 
 const seriesLabel = (s: BandCheckFigure['series'][number]) => `${s.name} (n = ${s.n})`;
 
+interface CentreMark {
+  series: string;
+  centerHz: number;
+  text: string;
+}
+
+/** Each series' mean peak centre in its colour (results saved before the frequency test have none). */
+function centreMarks(fig: BandCheckFigure, labels: boolean): Plot.Markish[] {
+  const rows: CentreMark[] = [];
+  for (const m of fig.peakCenters ?? []) {
+    const s = fig.series.find((x) => x.name === m.name);
+    if (s) rows.push({ series: seriesLabel(s), centerHz: m.centerHz, text: `${m.centerHz.toFixed(2)} Hz` });
+  }
+  const marks: Plot.Markish[] = [Plot.ruleX(rows, { x: 'centerHz', stroke: 'series', strokeWidth: 1.4, strokeDasharray: '2,3' })];
+  if (labels) marks.push(Plot.text(rows, { x: 'centerHz', text: 'text', fill: 'series', frameAnchor: 'bottom', dy: -4, rotate: -90, textAnchor: 'start', fontSize: 10 }));
+  return marks;
+}
+
 function colour(fig: BandCheckFigure): Plot.ScaleOptions {
   const domain = fig.series.map(seriesLabel);
   return { domain, range: GROUP_COLORS.slice(0, domain.length), legend: 'ramp', label: null };
@@ -58,6 +78,7 @@ export function spectraPanel(fig: BandCheckFigure): Plot.PlotOptions {
       ...shadeMarks(fig, true),
       Plot.line(rows, { x: 'f', y: 'psd', stroke: 'series', strokeWidth: 1.8 }),
       Plot.line(rows, { x: 'f', y: 'fit', stroke: 'series', strokeWidth: 1.2, strokeDasharray: '5,3' }),
+      ...centreMarks(fig, true),
     ],
   };
 }
@@ -71,7 +92,7 @@ export function residualPanel(fig: BandCheckFigure): Plot.PlotOptions {
     x: x(fig, null),
     y: { label: 'mean residual (log10)', grid: true },
     color: { ...colour(fig), legend: false },
-    marks: [...shadeMarks(fig, false), Plot.ruleY([0], { stroke: '#888' }), Plot.line(rows, { x: 'f', y: 'residual', stroke: 'series', strokeWidth: 1.8 })],
+    marks: [...shadeMarks(fig, false), Plot.ruleY([0], { stroke: '#888' }), Plot.line(rows, { x: 'f', y: 'residual', stroke: 'series', strokeWidth: 1.8 }), ...centreMarks(fig, false)],
   };
 }
 

@@ -8,7 +8,7 @@ export const EFFECT_COLUMNS: readonly DataColumn[] = [
   { key: 'ci_high', label: 'CI high', digits: 2 },
   { key: 't', label: 't', digits: 2 },
   { key: 'p', label: 'p', digits: 4 },
-  { key: 'p_adjusted', label: 'p (Bonferroni ×3)', digits: 4 },
+  { key: 'p_adjusted', label: 'p (Bonferroni-adjusted)', digits: 4 },
   { key: 'decides', label: 'Decides the verdict' },
   { key: 'difference', label: 'Difference', digits: 3 },
   { key: 'kind', label: 'Size' },
