@@ -33,8 +33,9 @@ describe('band check address bar', () => {
     expect(() => withEdges(8, 4)).toThrow(/invalid edges 8–4 Hz/);
     // the address bar reads bands with the one band grammar of the commands (bands.ts parseBand)
     expect(bandFromParams({ band: 'theta' })).toEqual({ name: 'theta', loHz: 4, hiHz: 8 });
-    expect(bandFromParams({ band: '12-16' })).toEqual({ name: '12–16 Hz', loHz: 12, hiHz: 16 });
-    expect(bandCheckFromParams(paramsFromBandCheck(contrast, bandFromParams({ band: '12-16' }))).band).toEqual({ name: '12–16 Hz', loHz: 12, hiHz: 16 });
+    expect(bandFromParams({ band: '12-16' })).toEqual(sigma); // plain edges of a preset take its name
+    expect(bandFromParams({ band: '11-15' })).toEqual({ name: '11–15 Hz', loHz: 11, hiHz: 15 });
+    expect(bandCheckFromParams(paramsFromBandCheck(contrast, bandFromParams({ band: '11-15' }))).band).toEqual({ name: '11–15 Hz', loHz: 11, hiHz: 15 });
     expect(() => bandFromParams({ band: 'theta 4-8' })).toThrow(/invalid band 'theta 4-8': expected LO-HI in Hz/);
   });
 });
