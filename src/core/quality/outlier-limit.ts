@@ -105,10 +105,13 @@ const cache = new Map<string, number>();
  */
 export function outlierCriticalZ(n: number, z0: number): number {
   if (!Number.isInteger(n) || n < 5) throw new Error(`invalid number of epochs for the outlier limit: ${n} (at least 5)`);
+  // z ≤ 2/1.4826 between the regions of the derivation: it holds for limits of 2 and more
+  if (!(z0 >= 2)) throw new Error(`invalid outlier z: ${z0} (at least 2; 2 already removes 4.6 % of clean epochs)`);
   const key = `${n}|${z0}`;
   const hit = cache.get(key);
   if (hit !== undefined) return hit;
   const target = outlierRate(z0);
+  if (target === 0) return Infinity; // z0 beyond ~38: 2Φ(−z0) underflows, the rule removes nothing
   const terms = conditionalTerms(n);
   // Newton on y = ln c for ln P(e^y) = ln target (nearly linear in y), kept inside a bracket
   // [lo, hi] that shrinks with every step and bisected when a step would leave it
