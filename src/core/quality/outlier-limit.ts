@@ -8,7 +8,10 @@
  * 1.7 % at n = 10, 1.1 % at n = 14, 0.27 % at n = 40 and 0.11 % at n = 100 instead of 0.047 %
  * (measured here and in the tests). The limit c_n used instead solves
  *   P(z > c_n) = 2Φ(−z0)   for one value of a Gaussian sample of n (any mean and SD),
- * so the stated rate holds at every n.
+ * so the stated rate holds at every n. (A small-sample consistency factor for the MAD, about
+ * n/(n − 0.8) for n > 9 (Croux & Rousseeuw 1992, from memory), corrects the MAD's mean, not its
+ * spread: with it the plain cut still removes 18× the stated share at n = 14, measured with
+ * numpy; c_n makes it unnecessary.)
  *
  * Computing c_n. Let r be the other n − 1 values. As x moves out past the others the median and
  * the MAD stop depending on it: they become m₊, s₊ = median and 1.4826·MAD of r ∪ {+∞} (and m₋,
