@@ -14,12 +14,14 @@ import { ChannelSelectionError, selectChannels as selectChannelList } from '../s
 import { channelPosition } from '../src/core/montage/positions.ts';
 import { planReferences, Rereferencer, type MontageChannel, type ReferenceKind, type ReferencePlan } from '../src/core/montage/reference.ts';
 import { DEFAULT_REJECTION, spectralOutliers, timeDomainCheck, type RejectionOptions } from '../src/core/quality/epoch-rejection.ts';
+import { hannBinCovariance, samplingFloors } from '../src/core/quality/log-power-spread.ts';
 import { aperiodicQuality } from '../src/core/quality/aperiodic-quality.ts';
 import { cleanEpochs } from '../src/core/quality/clean-epochs.ts';
 import { clipping } from '../src/core/quality/clipping.ts';
 import { flatChannel } from '../src/core/quality/flat-channel.ts';
 import { DEFAULT_MAINS_HUM, mainsHum } from '../src/core/quality/mains-hum.ts';
 import { DEFAULT_NARROW_SPIKE, narrowSpikes } from '../src/core/quality/narrow-spikes.ts';
+import { outlierShare } from '../src/core/quality/outlier-share.ts';
 import { rejectedFraction } from '../src/core/quality/rejected-fraction.ts';
 import type { QualityRow } from '../src/core/quality/row.ts';
 import { fitSpectrum, type SpectrumFitOptions } from '../src/core/spectrum/aperiodic-fit.ts';
@@ -310,7 +312,10 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
   const q = params.quality;
   const eligible = new Uint8Array(nGrid);
   for (let e = 0; e < nGrid; e++) eligible[e] = out.hasData[e] && out.tdReason[e] === null ? 1 : 0;
-  const outliers = spectralOutliers(out.logBroadband, out.logMuscle, stageIdx, eligible, params.rejection.outlierZ);
+  const welch = out.welch;
+  const K = welch.segmentCount(out.length);
+  const floors = samplingFloors(out.spectra, w.nStored, w.step, stageIdx, eligible, SCORED_STAGES.length, params.rejection, hannBinCovariance(welch.nPerSeg, welch.step, K));
+  const outliers = spectralOutliers(out.logBroadband, out.logMuscle, stageIdx, eligible, params.rejection.outlierZ, floors);
   const clean = eligible.slice();
   const outlierReason = new Map<number, string>();
   for (const r of outliers) {
@@ -332,8 +337,6 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
       block.power.push(out.bandPower[e * w.nBands + b]);
     }
   }
-  const welch = out.welch;
-  const K = welch.segmentCount(out.length);
   const nu = welchDegreesOfFreedom(K, hannWindow(welch.nPerSeg), welch.step);
   for (let si = 0; si < SCORED_STAGES.length; si++) {
     const stage = SCORED_STAGES[si];
@@ -342,16 +345,19 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
     if (reference === 'recorded') {
       const cell = { channel: out.channel, stage };
       let nStage = 0;
+      let nJudged = 0;
       const byReason: Record<string, number> = {};
       for (let e = 0; e < nGrid; e++) {
         if (!out.hasData[e] || stageIdx[e] !== si) continue;
         nStage++;
+        nJudged += eligible[e];
         const why = out.tdReason[e] ?? (clean[e] ? null : outlierReason.get(e));
         if (why) byReason[why] = (byReason[why] ?? 0) + 1;
       }
       if (nStage > 0) {
         w.quality.push(qualityIn(rejectedFraction(cell, nStage, byReason, { maxFraction: q.rejectedMaxFraction, minEpochs: params.minEpochs }), reference));
         w.quality.push(qualityIn(cleanEpochs(cell, rows.length, { minEpochs: params.minEpochs }, nStage), reference));
+        w.quality.push(qualityIn(outlierShare(cell, nJudged, byReason, { outlierZ: params.rejection.outlierZ }), reference));
       }
     }
     const avg = averageStage(out.spectra, w.nStored, rows, nu, params.minEpochs);

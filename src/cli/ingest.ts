@@ -93,7 +93,7 @@ export function register(program: Command): void {
     .option('--max-peak-to-peak <µV>', 'reject an epoch above this peak-to-peak amplitude, µV (common practice)', num('max-peak-to-peak', (x) => x > 0), D.rejection.maxPeakToPeakUv)
     .option('--flat-sd <µV>', 'reject an epoch whose SD is below this, µV', num('flat-sd', (x) => x >= 0), D.rejection.flatSdUv)
     .option('--flat-run <s>', 'reject an epoch holding one value this long, s', num('flat-run', (x) => x > 0), D.rejection.flatRunS)
-    .option('--outlier-z <z>', 'reject epochs whose log broadband or muscle-range power has a modified z above this within stage and channel (Iglewicz & Hoaglin 1993)', num('outlier-z', (x) => x > 0), D.rejection.outlierZ)
+    .option('--outlier-z <z>', 'reject epochs whose log broadband or muscle-range power stands out within stage and channel as a modified z above this would with many epochs (Iglewicz & Hoaglin 1993); short stages get a higher limit so each rule removes 2Φ(−z) of clean epochs (0.047 % at 3.5); at least 2', num('outlier-z', (x) => x >= 2), D.rejection.outlierZ)
     .option('--broadband <LO-HI>', 'broadband power range for the outlier rule, Hz', range('broadband'), D.rejection.broadbandHz)
     .option('--muscle <LO-HI>', 'high-frequency (muscle) range for the outlier rule, Hz', range('muscle'), D.rejection.muscleHz)
     .option('--min-epochs <n>', 'flag stages with fewer clean epochs (10 = 5 min of 30-s epochs)', num('min-epochs', (x) => Number.isInteger(x) && x >= 1), D.minEpochs)

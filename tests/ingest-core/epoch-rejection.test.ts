@@ -68,4 +68,30 @@ print(json.dumps((numpy.abs(v - numpy.median(v)) / median_abs_deviation(v, scale
     // epochs outside any group (stage index −1) are never judged
     expect(spectralOutliers(broad, muscle, new Int32Array(n).fill(-1), eligible)).toEqual([]);
   });
+
+  it('does not reject when the MAD collapses by chance below the sampling spread (issue 24)', () => {
+    // 14 epochs: eight within ±0.003 of the median, six 0.04 away (MAD ≈ 0.003). A plain cut at
+    // 3.5 rejects the six (z ≈ 9); c_14 ≈ 6.7 alone still rejects them (0.04 > 6.7·1.4826·0.003);
+    // with the sampling sd σ_s = 0.0186 of log10 25–45 Hz power (white-ish noise, 30-s epochs,
+    // log-power-spread.ts) nothing within 3.5·σ_s = 0.065 goes. A 0.5 jump (×3 power) still goes.
+    const near = [0, 0.001, -0.001, 0.002, -0.002, 0.003, -0.003, 0.0005];
+    const far = [0.04, -0.04, 0.04, -0.04, 0.04, -0.04];
+    const muscle = Float64Array.from([...near, ...far], (d) => 1 + d);
+    const broad = Float64Array.from(muscle, (m) => m + 1);
+    const group = new Int32Array(14);
+    const eligible = new Uint8Array(14).fill(1);
+    const plain = modifiedZ(muscle, Int32Array.from({ length: 14 }, (_, i) => i));
+    expect(plain.filter((z) => z > 3.5).length).toBe(6);
+    expect(spectralOutliers(broad, muscle, group, eligible, 3.5).length).toBe(6);
+    const floors = { broadband: [0.0186], muscle: [0.0186] };
+    expect(spectralOutliers(broad, muscle, group, eligible, 3.5, floors)).toEqual([]);
+    muscle[13] = 1.5;
+    expect(spectralOutliers(broad, muscle, group, eligible, 3.5, floors).map((r) => [r.epoch, r.reason])).toEqual([[13, 'muscle-outlier']]);
+  });
+
+  it('leaves groups under five epochs alone and rejects a smaller minimum', () => {
+    const v = Float64Array.from([1, 1.01, 0.99, 9]);
+    expect(spectralOutliers(v, v, new Int32Array(4), new Uint8Array(4).fill(1))).toEqual([]);
+    expect(() => spectralOutliers(v, v, new Int32Array(4), new Uint8Array(4).fill(1), 3.5, null, 3)).toThrow(/minimum group size: 3/);
+  });
 });

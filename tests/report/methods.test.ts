@@ -33,7 +33,9 @@ describe('methods report', () => {
   it('states the spectral, rejection and ledger facts with the shares computed from the counts', () => {
     const text = methodsReport(check, FACTS, LEDGER).markdown;
     // 1300/52000 = 2.5 %; all stages (1300 + 260)/(52000 + 26000) = 2.0 % (by hand)
-    expect(text).toContain('In N2, 1300 of 52000 channel-epochs (2.5 %) were rejected (amplitude 400, broadband-outlier 700, muscle-outlier 200)');
+    // chance per outlier rule 2Φ(−3.5)·52000 = 4.6526e-4·52000 = 24.2 (scipy.stats.norm.sf, by hand)
+    expect(text).toContain('In N2, 1300 of 52000 channel-epochs (2.5 %) were rejected (amplitude 400, broadband-outlier 700, muscle-outlier 200; chance under Gaussian scatter: at most 24.2 per outlier rule)');
+    expect(text).toContain('each outlier rule is expected to remove 0.047 % of clean channel-epochs, the two together at most 0.093 %');
     expect(text).toContain('1560 of 78000 channel-epochs (2.0 %)');
     // frequency resolution 1/segment length (Welch 1967): 1/4 s = 0.25 Hz
     expect(text).toContain('4-s Hann-windowed segments overlapping by 50 %');

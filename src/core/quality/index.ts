@@ -9,3 +9,6 @@ export * from './cohort-distance.ts';
 export * from './aperiodic-quality.ts';
 export * from './clean-epochs.ts';
 export * from './cell-score.ts';
+export * from './outlier-share.ts';
+export * from './outlier-limit.ts';
+export * from './log-power-spread.ts';

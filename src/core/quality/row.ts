@@ -16,7 +16,8 @@ export type QualityMetric =
   | 'cohort-distance'
   | 'aperiodic-r2'
   | 'aperiodic-exponent'
-  | 'clean-epochs';
+  | 'clean-epochs'
+  | 'outlier-share';
 
 export interface QualityRow {
   channel: string | null;

@@ -14,6 +14,7 @@ import { fmt } from '../verdict/rules.ts';
 import { ingestParameterFacts, type DatabaseFacts, type IngestParameterFacts, type LedgerCounts } from './facts.ts';
 import { REFERENCE_LIST, type ReferenceKey } from './references.ts';
 import { referenceKey } from '../montage/labels.ts';
+import { outlierRate } from '../quality/outlier-limit.ts';
 
 export type ReportableResult = (CompareResult | BandCheckResult) & { database?: { file: string; runId: string; toolVersion: string; ingestParameters: unknown } };
 
@@ -147,15 +148,19 @@ const stagesOf = (c: Contrast): string[] => (c.design === 'paired' && c.stages ?
 
 function rejectionSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFacts | null, refs: Set<ReferenceKey>): string {
   refs.add('iglewicz1993');
+  refs.add('welch1967');
   const r = f.rejection;
+  const rate = outlierRate(r.outlierZ);
   let s =
     `An epoch was rejected for a channel when its peak-to-peak amplitude exceeded ${r.maxPeakToPeakUv} µV; when its standard deviation was below ${r.flatSdUv} µV or one value repeated for at least ${r.flatRunS} s (flat); ` +
-    `or when its log10 power over ${hz(r.broadbandHz)} (broadband) or over ${hz(r.muscleHz)} (muscle range) was an outlier among the epochs of the same stage and channel, with a modified z-score |x − median|/(1.4826·MAD) above ${r.outlierZ} (Iglewicz & Hoaglin 1993).`;
+    `or when its log10 power over ${hz(r.broadbandHz)} (broadband) or over ${hz(r.muscleHz)} (muscle range) was an outlier among the n epochs of the same stage and channel: |x − median| above both c_n·1.4826·MAD (modified z-score, Iglewicz & Hoaglin 1993; c_n chosen by simulation so that n Gaussian values lose the share 2Φ(−${r.outlierZ}) = ${(100 * rate).toFixed(3)} % at every n, where a fixed cut at ${r.outlierZ} loses far more when n is small) ` +
+    `and ${r.outlierZ} sampling SDs of the log10 band power implied by the Welch estimate (equivalent degrees of freedom of the band, Welch 1967). ` +
+    `Under Gaussian scatter each outlier rule is expected to remove ${(100 * rate).toFixed(3)} % of clean channel-epochs, the two together at most ${(200 * rate).toFixed(3)} %.`;
   if (facts && facts.epochs.length > 0) {
     const used = facts.epochs.filter((e) => stagesOf(c).includes(e.stage));
     const all = facts.epochs.reduce((a, e) => ({ n: a.n + e.channelEpochs, k: a.k + e.rejected }), { n: 0, k: 0 });
     const reasons = (e: { byReason: Record<string, number> }) => Object.entries(e.byReason).sort().map(([k, v]) => `${k} ${v}`).join(', ') || 'none';
-    for (const e of used) s += ` In ${e.stage}, ${e.rejected} of ${e.channelEpochs} channel-epochs (${pct(e.rejected, e.channelEpochs)}) were rejected (${reasons(e)}).`;
+    for (const e of used) s += ` In ${e.stage}, ${e.rejected} of ${e.channelEpochs} channel-epochs (${pct(e.rejected, e.channelEpochs)}) were rejected (${reasons(e)}; chance under Gaussian scatter: at most ${g3(rate * e.channelEpochs)} per outlier rule).`;
     s += ` Over all stages, ${all.k} of ${all.n} channel-epochs (${pct(all.k, all.n)}) were rejected.`;
   }
   return s;
