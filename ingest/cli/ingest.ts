@@ -57,7 +57,7 @@ interface Flags {
   knee: boolean;
   fit: boolean;
   irasa?: boolean;
-  lineFreq?: number;
+  mainsHz?: number;
   quiet?: boolean;
 }
 
@@ -97,7 +97,7 @@ export function register(program: Command): void {
     .option('--knee', 'fit the aperiodic knee (default: plain power law, knee 0)', false)
     .option('--no-fit', 'skip the aperiodic and peak fits')
     .option('--irasa', 'also estimate the aperiodic component by IRASA (Wen & Liu 2016) from the clean epochs\' time series, stored with method irasa (a second read of each recording; slower)')
-    .option('--line-freq <Hz>', 'power-line frequency for the mains-hum metric, 50 or 60 (default: BIDS sidecar, else detected)', num('line-freq', (x) => x === 50 || x === 60))
+    .option('--mains-hz <Hz>', 'power-line frequency, 50 or 60: the mains-hum metric\'s line and the only line left out of the narrow-spike search (default: both left out, the metric\'s line from the BIDS sidecar, else detected)', num('mains-hz', (x) => x === 50 || x === 60))
     .option('--quiet', 'no progress bars (they are off anyway when stdout is not a terminal)')
     .addHelpText('after', '\nA research tool, not a diagnostic device. No EDF patient or recording identification is stored.')
     .action(async (cohort: string, flags: Flags, cmd: Command) => {
@@ -127,7 +127,7 @@ function toParams(f: Flags): Partial<IngestParams> {
     bandMethod: f.bandMethod,
     fit: f.fit === false ? null : { fitRangeHz: f.fitRange, aperiodicForm: f.knee ? 'knee' : 'power-law' },
     irasa: f.irasa ? {} : null,
-    quality: { ...D.quality, lineHz: (f.lineFreq as 50 | 60 | undefined) ?? null },
+    quality: { ...D.quality, mainsHz: f.mainsHz ? [f.mainsHz as 50 | 60] : D.quality.mainsHz },
   };
 }
 

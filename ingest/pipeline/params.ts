@@ -50,8 +50,14 @@ export interface QualityParams {
   clippingMaxFraction: number;
   /** Flat channel below this robust SD, µV (default 2); the SD is the median of the epoch SDs. */
   flatMinSdUv: number;
-  /** Power-line frequency, Hz; null = the BIDS sidecar's, else detected (default null). */
-  lineHz: 50 | 60 | null;
+  /**
+   * Power-line frequencies that may be present, Hz (default [50, 60]). One given: the mains-hum
+   * metric's line; both: the line is the BIDS sidecar's, else detected. Each is left out of the
+   * narrow-spike search (± mainsHalfWidthHz), as it has its own metric.
+   */
+  mainsHz: (50 | 60)[];
+  /** Half-width of each mains line left out of the narrow-spike search, Hz (default 2). */
+  mainsHalfWidthHz: number;
   /** Flag mains hum above this ratio, dB (default 6). */
   mainsThresholdDb: number;
   /** Narrow spikes: minimum excess, log10 units (default 0.5), widest narrow width, Hz (default 0.75). */
@@ -84,7 +90,8 @@ export const DEFAULT_INGEST_PARAMS: Readonly<IngestParams> = {
   quality: {
     clippingMaxFraction: 0.001,
     flatMinSdUv: 2,
-    lineHz: null,
+    mainsHz: [50, 60],
+    mainsHalfWidthHz: 2,
     mainsThresholdDb: DEFAULT_MAINS_HUM.thresholdDb,
     narrowHeightLog10: DEFAULT_NARROW_SPIKE.heightLog10,
     narrowMaxWidthHz: DEFAULT_NARROW_SPIKE.maxWidthHz,
@@ -105,5 +112,10 @@ export function resolveIngestParams(partial: Partial<IngestParams> = {}): Ingest
   if (p.references.includes('bipolar') && p.bipolarPairs.length === 0) {
     throw new PipelineError('parameters', null, 'references', "reference 'bipolar' needs bipolar pairs (e.g. F3-C3)");
   }
+  const { mainsHz, mainsHalfWidthHz } = p.quality;
+  if (mainsHz.length === 0 || mainsHz.some((f) => f !== 50 && f !== 60) || new Set(mainsHz).size !== mainsHz.length) {
+    throw new PipelineError('parameters', null, 'quality.mainsHz', `mains frequencies must be 50, 60 or both, got [${mainsHz.join(', ')}]`);
+  }
+  if (!(mainsHalfWidthHz > 0)) throw new PipelineError('parameters', null, 'quality.mainsHalfWidthHz', `mains half-width must be positive, got ${mainsHalfWidthHz} Hz`);
   return p;
 }

@@ -58,7 +58,9 @@ export function recordingQuality(
 ): QualityRowIn[] {
   const q = params.quality;
   const quality: QualityRowIn[] = [];
-  const lineHz = q.lineHz ?? (rec.bids?.powerLineHz === 50 || rec.bids?.powerLineHz === 60 ? rec.bids.powerLineHz : null);
+  const given = q.mainsHz.length === 1 ? q.mainsHz[0] : null;
+  const lineHz = given ?? (rec.bids?.powerLineHz === 50 || rec.bids?.powerLineHz === 60 ? rec.bids.powerLineHz : null);
+  const excludeHz = q.mainsHz.map((f): [number, number] => [f - q.mainsHalfWidthHz, f + q.mainsHalfWidthHz]);
   for (const m of measures) {
     const cell = { channel: m.channel, stage: null };
     const sel = selected.find((s) => s.name === m.channel)!;
@@ -70,9 +72,9 @@ export function recordingQuality(
       // a known line the spectrum cannot reach (60 Hz at fs 128) is not assessable: pass null
       const reach = f[f.length - 1] >= (lineHz ?? 0) + DEFAULT_MAINS_HUM.outerHz;
       quality.push(qualityIn(mainsHum(cell, f, m.fullSpectrum, { ...DEFAULT_MAINS_HUM, lineHz: reach ? lineHz : null, thresholdDb: q.mainsThresholdDb }), 'recorded'));
-      // the mains lines (50/60 ± 2 Hz) have their own metric and are left out of the spike search
+      // the mains lines (quality.mainsHz ± mainsHalfWidthHz) have their own metric and are left out of the spike search
       const spikes = narrowSpikes(cell, f, m.fullSpectrum, {
-        ...DEFAULT_NARROW_SPIKE, heightLog10: q.narrowHeightLog10, maxWidthHz: q.narrowMaxWidthHz, excludeHz: [[48, 52], [58, 62]],
+        ...DEFAULT_NARROW_SPIKE, heightLog10: q.narrowHeightLog10, maxWidthHz: q.narrowMaxWidthHz, excludeHz,
       });
       quality.push(qualityIn(spikes, 'recorded'));
     }
