@@ -11,13 +11,13 @@
 import { planReferences } from '../src/core/montage/reference.ts';
 import { SCORED_STAGES, type Stage } from '../src/core/stages.ts';
 import type { CohortRecording } from './cohort/types.ts';
-import type { RecordingBundle } from './store/bundle.ts';
+import type { RecordingBundle, WarningRow } from './store/bundle.ts';
 import { runIdentity } from './store/identity.ts';
 import { assembleBundle, channelRows } from './pipeline/assemble-bundle.ts';
 import { selectChannels } from './pipeline/channels.ts';
 import { epochPass, planStates } from './pipeline/epoch-pass.ts';
 import type { PipelineProgress } from './pipeline/error.ts';
-import { evenlySpaced, recordingGrid } from './pipeline/grid.ts';
+import { channelNote, evenlySpaced, frequencyGrid, type FrequencyGrid } from './pipeline/grid.ts';
 import { irasaPass } from './pipeline/irasa-pass.ts';
 import { openRecording, type OpenedRecording } from './pipeline/open.ts';
 import type { IngestParams } from './pipeline/params.ts';
@@ -62,36 +62,43 @@ export async function processOpened(
     const { plans, skips } = planReferences(selected.map((s) => s.montage), { references: params.references, bipolarPairs: params.bipolarPairs });
     const recordedNames = selected.map((s) => s.name);
 
-    // ---- the epoch grid and one read: per epoch, plan and output, spectra and rejection measures ----
-    const grid = recordingGrid(selected.map((s) => s.signal.fsHz), params);
+    // ---- each sampling rate's frequency grid (stored range, bands, rules, fit range up to its Nyquist) ----
+    const warnings: WarningRow[] = [];
+    const grids = new Map<number, FrequencyGrid>();
+    const gridOf = (fs: number) => {
+      let g = grids.get(fs);
+      if (!g) grids.set(fs, (g = frequencyGrid(fs, params, file)));
+      return g;
+    };
+    for (const s of selected) for (const note of gridOf(s.signal.fsHz).notes) warnings.push(channelNote(s.name, s.signal.fsHz, note));
+
+    // ---- one read: per epoch, plan and output, spectra and rejection measures ----
     const nGrid = Math.max(0, Math.ceil(edf.durationS / epochS - 1e-6));
-    const states = planStates(plans, selected, recordedNames, grid, nGrid, epochS, params, file);
+    const states = planStates(plans, selected, recordedNames, gridOf, nGrid, epochS);
     const stages: Stage[] = new Array(nGrid);
     for (let e = 0; e < nGrid; e++) stages[e] = hyp.stages[e] ?? 'unscored';
     const onsetS = evenlySpaced(nGrid, epochS);
-    const read = await epochPass(edf, selected, states, grid, nGrid, epochS, params, onProgress ? (done) => onProgress({ step: 'read', done, total: nGrid }) : null);
+    const read = await epochPass(edf, selected, states, nGrid, epochS, onProgress ? (done: number) => onProgress({ step: 'read', done, total: nGrid }) : null);
     onProgress?.({ step: 'read', done: nGrid, total: nGrid });
 
     // ---- per reference and channel: outliers within stage, stage averages, fits ----
     const stageIdx = Int32Array.from(stages, (s) => SCORED_STAGES.indexOf(s as (typeof SCORED_STAGES)[number]));
-    const rows: FinishWork = {
-      params, stageIdx, nGrid, nStored: grid.nStored, nBands: grid.bands.length, step: grid.step, freqs: evenlySpaced(grid.nStored, grid.step),
-      fitRange: params.fit ? [params.fit.fitRangeHz[0], Math.min(params.fit.fitRangeHz[1], grid.storedMaxHz)] : null,
-      rejections: [], spectra: [], aperiodic: [], peaks: [], quality: [],
-    };
-    const bandPowers = stagePass(states, rows, grid.bands.map((b) => b.name), (done, total) => onProgress?.({ step: 'spectra', done, total }));
+    const rows: FinishWork = { params, stageIdx, nGrid, rejections: [], spectra: [], aperiodic: [], peaks: [], quality: [] };
+    const bandPowers = stagePass(states, rows, params.bands.map((b) => b.name), (done, total) => onProgress?.({ step: 'spectra', done, total }));
     if (params.irasa) {
       onProgress?.({ step: 'irasa', done: 0, total: nGrid });
-      rows.aperiodic.push(...(await irasaPass(edf, selected.map((s) => s.signal.index), selected.map((s) => s.toUv), states, stageIdx, epochS, params, rows.fitRange, nGrid, (d) => onProgress?.({ step: 'irasa', done: d, total: nGrid }))));
+      const irasa = await irasaPass(edf, selected.map((s) => s.signal.index), selected.map((s) => s.toUv), states, stageIdx, epochS, params, nGrid, (d) => onProgress?.({ step: 'irasa', done: d, total: nGrid }));
+      rows.aperiodic.push(...irasa.rows);
+      warnings.push(...irasa.notes);
     }
 
     // ---- per recorded channel: clipping, flat channel, mains hum, narrow spikes ----
-    const measures = channelMeasures(selected, states, read, grid.step, epochS);
+    const measures = channelMeasures(selected, states, read, 1 / params.segmentS, epochS);
     rows.quality.push(...recordingQuality(measures, selected, rec, params, read.epochsSeen, epochS));
 
     return assembleBundle({
       runId, rec, opened, hyp, epochS, stages, onsetS, dropReason: read.dropReason, channels: channelRows(selected),
-      rows, bandPowers, referenceSkips: skips, measures,
+      rows, bandPowers, referenceSkips: skips, measures, warnings,
     });
   } finally {
     await edf.close();

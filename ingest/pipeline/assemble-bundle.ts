@@ -6,7 +6,7 @@ import type { ReferenceSkip } from '../../src/core/montage/reference.ts';
 import type { Stage } from '../../src/core/stages.ts';
 import type { CohortRecording } from '../cohort/types.ts';
 import type { Hypnogram } from '../hypnogram/index.ts';
-import type { BandPowerBlock, ChannelRow, RecordingBundle } from '../store/bundle.ts';
+import type { BandPowerBlock, ChannelRow, RecordingBundle, WarningRow } from '../store/bundle.ts';
 import type { Selected } from './channels.ts';
 import type { OpenedRecording } from './open.ts';
 import type { ChannelMeasures } from './recording-quality.ts';
@@ -39,6 +39,7 @@ export interface RecordingParts {
   bandPowers: BandPowerBlock[];
   referenceSkips: ReferenceSkip[];
   measures: ChannelMeasures[];
+  warnings: WarningRow[];
 }
 
 export function assembleBundle(p: RecordingParts): RecordingBundle & { measures: ChannelMeasures[] } {
@@ -62,6 +63,7 @@ export function assembleBundle(p: RecordingParts): RecordingBundle & { measures:
     peaks: p.rows.peaks,
     quality: p.rows.quality,
     referenceSkips: p.referenceSkips,
+    warnings: p.warnings,
     measures: p.measures,
   };
 }

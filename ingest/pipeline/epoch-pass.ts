@@ -4,28 +4,27 @@
  * powers, the epoch band powers and (recorded reference) the running full-range sum.
  */
 import { Rereferencer, type ReferencePlan } from '../../src/core/montage/reference.ts';
-import { timeDomainCheck, type RejectionOptions } from '../../src/core/quality/epoch-rejection.ts';
-import type { BandPowerTable } from '../../src/core/spectrum/bands.ts';
-import { Welch } from '../../src/core/spectrum/welch.ts';
+import { timeDomainCheck } from '../../src/core/quality/epoch-rejection.ts';
 import type { EdfFile } from '../edf/reader.ts';
 import type { Selected } from './channels.ts';
 import { PipelineError } from './error.ts';
 import type { FrequencyGrid } from './grid.ts';
-import type { IngestParams } from './params.ts';
 
 /** Per output channel of one reference: everything kept per epoch. */
 export interface OutputState {
   channel: string;
-  welch: Welch;
+  /** The grid of the channel's sampling rate: its Welch estimator, stored range, bands and rules. */
+  grid: FrequencyGrid;
   /** Samples per epoch. */
   length: number;
-  /** Per-epoch stored-range PSD, row e, µV²/Hz. */
+  /** Per-epoch stored-range PSD, row e, µV²/Hz (grid.nStored bins a row). */
   spectra: Float32Array;
   hasData: Uint8Array;
   tdReason: Array<'amplitude' | 'flat' | null>;
   tdValue: Float64Array;
   logBroadband: Float64Array;
   logMuscle: Float64Array;
+  /** Per epoch, the powers of the grid's bands (grid.bandIdx). */
   bandPower: Float32Array;
   /** Mean full-range PSD over time-domain-clean epochs (recorded reference only), µV²/Hz. */
   fullSum: Float64Array | null;
@@ -40,14 +39,8 @@ export interface PlanState {
   outputs: OutputState[];
 }
 
-/** What every epoch of one recording shares: the stored range, rejection rules, band tables and scratch. */
+/** What every epoch of one recording shares: scratch and the recorded channels' epoch SDs. */
 interface EpochWork {
-  nStored: number;
-  rejection: RejectionOptions;
-  bandTable: BandPowerTable;
-  nBands: number;
-  broadBand: BandPowerTable;
-  muscleBand: BandPowerTable;
   /** per recorded channel, per epoch: SD in µV */
   epochSd: Float64Array[];
   psd: Float64Array;
@@ -61,22 +54,26 @@ interface EpochWork {
  */
 function epochOfPlan(st: PlanState, data: Float32Array[], e: number, w: EpochWork): void {
   const signals = st.rereferencer.apply(data);
-  const { psd, one, nStored } = w;
+  const { psd, one } = w;
   for (let o = 0; o < st.outputs.length; o++) {
     const out = st.outputs[o];
+    const g = out.grid;
+    const nStored = g.nStored;
+    const nBands = g.bandIdx.length;
     const x = signals[o];
-    const td = timeDomainCheck(x, 0, out.length, out.welch.fsHz, w.rejection);
+    const td = timeDomainCheck(x, 0, out.length, g.fsHz, g.rejection);
     if (st.plan.reference === 'recorded') w.epochSd[st.plan.outputs[o].source][e] = td.sdUv;
     out.hasData[e] = 1;
     out.tdReason[e] = td.reason;
     out.tdValue[e] = td.value ?? NaN;
-    out.welch.mean(x, 0, out.length, psd);
+    g.welch.mean(x, 0, out.length, psd);
     out.spectra.set(psd.subarray(0, nStored), e * nStored);
-    w.broadBand.compute(psd, one);
-    out.logBroadband[e] = Math.log10(one[0]);
-    w.muscleBand.compute(psd, one);
-    out.logMuscle[e] = Math.log10(one[0]);
-    w.bandTable.compute(psd.subarray(0, nStored), out.bandPower.subarray(e * w.nBands, (e + 1) * w.nBands));
+    // a rule the channel cannot reach gets a constant: its modified z is 0, so it never rejects
+    if (g.broadBand) g.broadBand.compute(psd, one);
+    out.logBroadband[e] = g.broadBand ? Math.log10(one[0]) : 0;
+    if (g.muscleBand) g.muscleBand.compute(psd, one);
+    out.logMuscle[e] = g.muscleBand ? Math.log10(one[0]) : 0;
+    g.bandTable.compute(psd.subarray(0, nStored), out.bandPower.subarray(e * nBands, (e + 1) * nBands));
     if (out.fullSum && td.reason === null) {
       const full = out.fullSum;
       for (let b = 0; b < full.length; b++) full[b] += psd[b];
@@ -85,64 +82,31 @@ function epochOfPlan(st: PlanState, data: Float32Array[], e: number, w: EpochWor
   }
 }
 
-/**
- * Welch estimators kept across recordings (per sampling rate and parameters): their FFT tables
- * and buffers are built once per worker, not once per recording. Each call of Welch.mean is
- * synchronous, so recordings processed concurrently in one thread can share one.
- */
-const welchCache = new Map<string, Welch>();
-
-function sharedWelch(fsHz: number, segmentS: number, overlap: number, maxFreqHz: number): Welch {
-  const key = `${fsHz}|${segmentS}|${overlap}|${maxFreqHz}`;
-  let w = welchCache.get(key);
-  if (!w) {
-    w = new Welch(fsHz, { segmentS, overlap, maxFreqHz });
-    welchCache.set(key, w);
-  }
-  return w;
-}
-
-/** Per reference plan and output channel, the buffers of nGrid epochs the pass fills. */
+/** Per reference plan and output channel, the buffers of nGrid epochs the pass fills; gridOf(fs) gives each channel's grid. */
 export function planStates(
   plans: readonly ReferencePlan[],
   selected: readonly Selected[],
   recordedNames: readonly string[],
-  grid: FrequencyGrid,
+  gridOf: (fsHz: number) => FrequencyGrid,
   nGrid: number,
   epochS: number,
-  params: IngestParams,
-  file: string,
 ): PlanState[] {
-  const { nStored, fullMaxHz, bands } = grid;
-  const welchByFs = new Map<number, Welch>();
-  const welchFor = (fs: number) => {
-    let w = welchByFs.get(fs);
-    if (!w) {
-      try {
-        w = sharedWelch(fs, params.segmentS, params.overlap, fullMaxHz);
-      } catch (e) {
-        throw new PipelineError('spectra', file, 'segment length', (e as Error).message, { cause: e });
-      }
-      welchByFs.set(fs, w);
-    }
-    return w;
-  };
   return plans.map((plan) => {
     const outputs = plan.outputs.map((o): OutputState => {
       const fs = selected[o.source].signal.fsHz;
-      const welch = welchFor(fs);
+      const grid = gridOf(fs);
       return {
         channel: plan.reference === 'recorded' ? recordedNames[o.source] : o.channel,
-        welch,
+        grid,
         length: Math.round(fs * epochS),
-        spectra: new Float32Array(nGrid * nStored),
+        spectra: new Float32Array(nGrid * grid.nStored),
         hasData: new Uint8Array(nGrid),
         tdReason: new Array(nGrid).fill(null),
         tdValue: new Float64Array(nGrid),
         logBroadband: new Float64Array(nGrid).fill(NaN),
         logMuscle: new Float64Array(nGrid).fill(NaN),
-        bandPower: new Float32Array(nGrid * bands.length),
-        fullSum: plan.reference === 'recorded' ? new Float64Array(welch.nBins) : null,
+        bandPower: new Float32Array(nGrid * grid.bandIdx.length),
+        fullSum: plan.reference === 'recorded' ? new Float64Array(grid.welch.nBins) : null,
         fullCount: 0,
         clean: null,
       };
@@ -168,10 +132,8 @@ export async function epochPass(
   edf: EdfFile,
   selected: readonly Selected[],
   states: readonly PlanState[],
-  grid: FrequencyGrid,
   nGrid: number,
   epochS: number,
-  params: IngestParams,
   onEpoch: ((done: number) => void) | null,
 ): Promise<EpochPassResult> {
   const dropReason: (string | null)[] = new Array(nGrid).fill(null);
@@ -180,8 +142,8 @@ export async function epochPass(
   const epochSd: Float64Array[] = []; // filled by push, not .map(): see readEpochs' epoch buffers
   for (let c = 0; c < selected.length; c++) epochSd.push(new Float64Array(nGrid).fill(NaN));
   const epochWork: EpochWork = {
-    nStored: grid.nStored, rejection: params.rejection, bandTable: grid.bandTable, nBands: grid.bands.length, broadBand: grid.broadBand, muscleBand: grid.muscleBand, epochSd,
-    psd: new Float64Array(Math.max(...states.flatMap((st) => st.outputs.map((o) => o.welch.nBins)))),
+    epochSd,
+    psd: new Float64Array(Math.max(...states.flatMap((st) => st.outputs.map((o) => o.grid.welch.nBins)))),
     one: new Float64Array(1),
   };
 

@@ -22,12 +22,6 @@ export interface FinishWork {
   /** per epoch: index into SCORED_STAGES, −1 when not a scored sleep/wake stage */
   stageIdx: Int32Array;
   nGrid: number;
-  nStored: number;
-  nBands: number;
-  /** frequency step of the stored bins, Hz */
-  step: number;
-  freqs: Float64Array;
-  fitRange: [number, number] | null;
   rejections: EpochRejection[];
   spectra: SpectrumRow[];
   aperiodic: AperiodicRow[];
@@ -67,16 +61,18 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
     if (out.hasData[e] && reason) w.rejections.push({ channel: out.channel, reference, epoch: e, reason, value: Number.isFinite(out.tdValue[e]) ? out.tdValue[e] : null });
   }
   for (const r of outliers) w.rejections.push({ channel: out.channel, reference, epoch: r.epoch, reason: r.reason, value: r.value });
+  const grid = out.grid;
+  const nBands = grid.bandIdx.length;
   for (let e = 0; e < nGrid; e++) {
     if (!out.hasData[e]) continue;
-    for (let b = 0; b < w.nBands; b++) {
+    for (let b = 0; b < nBands; b++) {
       block.channelIdx.push(oi);
       block.epoch.push(e);
-      block.bandIdx.push(b);
-      block.power.push(out.bandPower[e * w.nBands + b]);
+      block.bandIdx.push(grid.bandIdx[b]);
+      block.power.push(out.bandPower[e * nBands + b]);
     }
   }
-  const welch = out.welch;
+  const welch = grid.welch;
   const K = welch.segmentCount(out.length);
   const nu = welchDegreesOfFreedom(K, hannWindow(welch.nPerSeg), welch.step);
   for (let si = 0; si < SCORED_STAGES.length; si++) {
@@ -98,27 +94,32 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
         w.quality.push(qualityIn(cleanEpochs(cell, rows.length, { minEpochs: params.minEpochs }, nStage), reference));
       }
     }
-    const avg = averageStage(out.spectra, w.nStored, rows, nu, params.minEpochs);
+    const avg = averageStage(out.spectra, grid.nStored, rows, nu, params.minEpochs);
     if (!avg) continue;
     for (const averaging of ['mean', 'median'] as const) {
       const power = Float32Array.from(averaging === 'mean' ? avg.mean : avg.median);
       w.spectra.push({
         channel: out.channel, stage, reference, averaging, nEpochs: avg.nEpochs, nSegments: avg.nEpochs * K,
-        freqStartHz: 0, freqStepHz: w.step, power, flagged: avg.flagged, flagReason: avg.flagReason,
+        freqStartHz: 0, freqStepHz: grid.step, power, flagged: avg.flagged, flagReason: avg.flagReason,
       });
-      if (w.fitRange) fitOne(power, { channel: out.channel, stage, reference, averaging }, w);
+      if (grid.fitRange) fitOne(power, grid.freqs, grid.fitRange, { channel: out.channel, stage, reference, averaging }, w);
     }
   }
 }
 
 /** The aperiodic fit of one stage average (with its peaks and fit-quality rows), or a row of empty values when it cannot be fitted. */
-function fitOne(power: Float32Array, key: Pick<AperiodicRow, 'channel' | 'stage' | 'reference' | 'averaging'>, w: FinishWork): void {
+function fitOne(
+  power: Float32Array,
+  freqs: Float64Array,
+  fitRange: [number, number],
+  key: Pick<AperiodicRow, 'channel' | 'stage' | 'reference' | 'averaging'>,
+  w: FinishWork,
+): void {
   const q = w.params.quality;
-  const fitRange = w.fitRange!;
   const { fitRangeHz: _r, ...fitOptions } = w.params.fit!;
   let fitQ: { r2: number | null; exponent: number | null } = { r2: null, exponent: null };
   try {
-    const fit = fitSpectrum(w.freqs, power, { ...fitOptions, fitRangeHz: fitRange });
+    const fit = fitSpectrum(freqs, power, { ...fitOptions, fitRangeHz: fitRange });
     w.aperiodic.push({ ...key, method: fit.method, fitLoHz: fit.fitLoHz, fitHiHz: fit.fitHiHz, offset: fit.offset, exponent: fit.exponent, knee: fit.knee, r2: fit.r2, rmse: fit.rmse, nPeaks: fit.peaks.length });
     for (const p of fit.peaks) w.peaks.push({ ...key, method: fit.method, centerHz: p.centerHz, height: p.height, bandwidthHz: p.bandwidthHz });
     fitQ = fit;

@@ -147,6 +147,19 @@ export interface ReferenceSkip {
   reason: string;
 }
 
+/**
+ * Something read or computed with a compromise (warnings table): a gap, a derived record count, a
+ * converted unit, partial scoring, a band a channel cannot reach. The message never quotes EDF
+ * annotation text or header identification; it names fields, channels, epochs and times.
+ */
+export interface WarningRow {
+  /** Pipeline step that noticed it: open, read, scoring, channels, spectra, fit, irasa. */
+  step: string;
+  /** Header field, parameter or channel concerned, null if none. */
+  field: string | null;
+  message: string;
+}
+
 export interface RecordingBundle {
   runId: string;
   recording: RecordingInfo;
@@ -159,4 +172,6 @@ export interface RecordingBundle {
   peaks: PeakRow[];
   quality: QualityRowIn[];
   referenceSkips: ReferenceSkip[];
+  /** Compromises of this recording, written in its transaction (omit or [] for none). */
+  warnings?: WarningRow[];
 }
