@@ -21,7 +21,7 @@ export interface RecordingInfo {
   /** SHA-256 of the EDF file bytes, 64 lowercase hex digits. */
   fileSha256: string;
   durationS: number;
-  /** 'ok' unless something was limited. */
+  /** ok, ok-with-warnings, partial-scoring, partial-data or partial-data-and-scoring (see schema.ts). */
   status: string;
   edfVariant?: 'EDF' | 'EDF+C' | 'EDF+D' | null;
   scoringSource?: string | null;
@@ -38,7 +38,10 @@ export interface RecordingInfo {
 export interface ChannelRow {
   channel: string;
   type: string;
+  /** Unit of the stored samples and physical limits (µV). */
   unit: string | null;
+  /** Physical dimension as recorded in the EDF header (uV, mV, …), null when empty. */
+  recordedUnit?: string | null;
   fsHz: number;
   prefilter: string | null;
   /** Unit-sphere position (10-10 system), null if unknown. */
@@ -47,6 +50,7 @@ export interface ChannelRow {
   z: number | null;
   label?: string | null;
   referenceElectrode?: string | null;
+  /** EDF physical minimum and maximum, in `unit` (scaled like the samples). */
   physicalMin?: number | null;
   physicalMax?: number | null;
   digitalMin?: number | null;
