@@ -1,6 +1,7 @@
 /**
  * One recording end to end (Node), in the order of the data flow:
- * open → scoring → channels → references → epoch pass → stage pass → fits → quality → bundle.
+ * open → scoring → channels → references → frequency grids → epoch pass → stage pass (fits) →
+ * IRASA (on request) → quality → warnings and status → bundle.
  *
  * Streaming: the EDF is read epoch by epoch into the reader's reused buffers; per epoch and
  * channel only the stored-range spectrum (default 0–45 Hz, Float32) and a few numbers are kept,
@@ -24,6 +25,7 @@ import type { IngestParams } from './pipeline/params.ts';
 import { channelMeasures, recordingQuality, type ChannelMeasures } from './pipeline/recording-quality.ts';
 import { readHypnogram } from './pipeline/scoring.ts';
 import { stagePass, type FinishWork } from './pipeline/stage-pass.ts';
+import { readWarnings, recordingStatus, scoringWarnings, unitWarnings } from './pipeline/warnings.ts';
 
 export { bundleTransferList } from './pipeline/assemble-bundle.ts';
 export { toMicrovolts } from './pipeline/channels.ts';
@@ -61,9 +63,10 @@ export async function processOpened(
     const selected = selectChannels(edf, rec, params);
     const { plans, skips } = planReferences(selected.map((s) => s.montage), { references: params.references, bipolarPairs: params.bipolarPairs });
     const recordedNames = selected.map((s) => s.name);
+    const nGrid = Math.max(0, Math.ceil(edf.durationS / epochS - 1e-6));
+    const warnings: WarningRow[] = [...readWarnings(edf), ...scoringWarnings(hyp, nGrid), ...unitWarnings(selected)];
 
     // ---- each sampling rate's frequency grid (stored range, bands, rules, fit range up to its Nyquist) ----
-    const warnings: WarningRow[] = [];
     const grids = new Map<number, FrequencyGrid>();
     const gridOf = (fs: number) => {
       let g = grids.get(fs);
@@ -73,7 +76,6 @@ export async function processOpened(
     for (const s of selected) for (const note of gridOf(s.signal.fsHz).notes) warnings.push(channelNote(s.name, s.signal.fsHz, note));
 
     // ---- one read: per epoch, plan and output, spectra and rejection measures ----
-    const nGrid = Math.max(0, Math.ceil(edf.durationS / epochS - 1e-6));
     const states = planStates(plans, selected, recordedNames, gridOf, nGrid, epochS);
     const stages: Stage[] = new Array(nGrid);
     for (let e = 0; e < nGrid; e++) stages[e] = hyp.stages[e] ?? 'unscored';
@@ -97,7 +99,7 @@ export async function processOpened(
     rows.quality.push(...recordingQuality(measures, selected, rec, params, read.epochsSeen, epochS));
 
     return assembleBundle({
-      runId, rec, opened, hyp, epochS, stages, onsetS, dropReason: read.dropReason, channels: channelRows(selected),
+      runId, rec, opened, hyp, status: recordingStatus(edf, hyp, warnings), epochS, stages, onsetS, dropReason: read.dropReason, channels: channelRows(selected),
       rows, bandPowers, referenceSkips: skips, measures, warnings,
     });
   } finally {

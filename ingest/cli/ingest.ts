@@ -175,7 +175,7 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
     const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard }, onEvent);
     bars?.stop();
     const secs = (Date.now() - t0) / 1000;
-    console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, in ${secs.toFixed(1)} s`);
+    console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, ${summary.warnings} warning${summary.warnings === 1 ? '' : 's'} (table warnings), in ${secs.toFixed(1)} s`);
     for (const x of summary.failed) console.log(`  failed ${x.file} at ${x.step}: ${x.message}`);
     if (summary.failed.length === 0) return EXIT_OK;
     return summary.done + summary.skipped > 0 ? EXIT_PARTLY_FAILED : EXIT_FATAL;

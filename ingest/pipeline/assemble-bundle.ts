@@ -10,16 +10,17 @@ import type { BandPowerBlock, ChannelRow, RecordingBundle, WarningRow } from '..
 import type { Selected } from './channels.ts';
 import type { OpenedRecording } from './open.ts';
 import type { ChannelMeasures } from './recording-quality.ts';
+import type { RecordingStatus } from './warnings.ts';
 import type { FinishWork } from './stage-pass.ts';
 
-/** The channels rows: every selected channel, its unit µV (the samples were scaled to µV). */
+/** The channels rows: every selected channel in µV like its samples (physical limits scaled too), with the unit as recorded. */
 export function channelRows(selected: readonly Selected[]): ChannelRow[] {
   return selected.map((s) => {
     const pos = electrodePosition(s.montage.electrode ?? '');
     return {
       channel: s.name, type: s.montage.type, unit: 'µV', fsHz: s.signal.fsHz, prefilter: s.signal.prefilter.trim() || null,
       x: pos?.x ?? null, y: pos?.y ?? null, z: pos?.z ?? null, label: s.signal.label.trim(), referenceElectrode: s.montage.reference,
-      physicalMin: s.signal.physicalMin, physicalMax: s.signal.physicalMax, digitalMin: s.signal.digitalMin, digitalMax: s.signal.digitalMax,
+      physicalMin: s.signal.physicalMin * s.toUv, physicalMax: s.signal.physicalMax * s.toUv, recordedUnit: s.signal.physicalDimension.trim() || null, digitalMin: s.signal.digitalMin, digitalMax: s.signal.digitalMax,
     };
   });
 }
@@ -30,6 +31,7 @@ export interface RecordingParts {
   rec: CohortRecording;
   opened: OpenedRecording;
   hyp: Hypnogram;
+  status: RecordingStatus;
   epochS: number;
   stages: Stage[];
   onsetS: Float64Array;
@@ -50,7 +52,7 @@ export function assembleBundle(p: RecordingParts): RecordingBundle & { measures:
     runId: p.runId,
     recording: {
       subject: p.rec.subject, session: p.rec.session, fileName: path.basename(p.rec.recordingPath), fileSha256: p.opened.sha256, durationS: edf.durationS,
-      status: 'ok', edfVariant: edf.header.variant, scoringSource: p.hyp.source, epochLengthS: p.epochS, nEpochs: p.stages.length,
+      status: p.status, edfVariant: edf.header.variant, scoringSource: p.hyp.source, epochLengthS: p.epochS, nEpochs: p.stages.length,
       nEpochsDropped: nDropped, tstMin: arch.totalSleepTimeMin, sePct: arch.sleepEfficiencyPct, solMin: arch.sleepOnsetLatencyMin,
       stageMin: arch.minutesPerStage,
     },
