@@ -36,6 +36,16 @@ export interface DatabaseFacts {
   epochs: StageEpochCounts[];
   /** distinct aperiodic fit ranges stored for the analysis' stage, reference and averaging */
   fitRangesHz: [number, number][];
+  /** what the ingest kept in its warnings table for the run */
+  warnings: WarningFacts;
+}
+
+/** The run's warnings table rows per step, and its recordings per status (recordings.status). */
+export interface WarningFacts {
+  /** warning rows per step (open, read, scoring, channels, spectra, fit, irasa) */
+  byStep: Record<string, number>;
+  /** recordings per status: ok, ok-with-warnings, partial-scoring, partial-data, partial-data-and-scoring */
+  recordingsByStatus: Record<string, number>;
 }
 
 export interface LedgerCounts {
