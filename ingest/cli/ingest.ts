@@ -78,7 +78,7 @@ export function register(program: Command): void {
     .option('--epoch <s>', 'scoring epoch length, s', num('epoch', (x) => x > 0), D.epochS)
     .option('--segment <s>', 'Welch segment length, s (frequency step 1/segment Hz)', num('segment', (x) => x > 0), D.segmentS)
     .option('--overlap <fraction>', 'Welch segment overlap, 0 ≤ f < 1', num('overlap', (x) => x >= 0 && x < 1), D.overlap)
-    .option('--max-freq <Hz>', 'highest stored frequency, Hz (lowered to Nyquist when that is lower)', num('max-freq', (x) => x > 0), D.maxFreqHz)
+    .option('--max-freq <Hz>', 'highest stored frequency, Hz (each channel at most to its own Nyquist frequency)', num('max-freq', (x) => x > 0), D.maxFreqHz)
     .option('--channel-types <list>', 'channel types selected when no --include is given', list, D.channelTypes)
     .option('--include <labels>', 'comma-separated labels or electrode names to take, whatever their type', list, [])
     .option('--exclude <labels>', 'comma-separated labels or electrode names to leave out', list, [])

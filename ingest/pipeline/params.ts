@@ -16,7 +16,7 @@ export interface IngestParams {
   segmentS: number;
   /** Welch overlap, fraction of a segment (default 0.5). */
   overlap: number;
-  /** Highest stored frequency, Hz (default 45; lowered to the Nyquist frequency when that is lower). */
+  /** Highest stored frequency, Hz (default 45); each channel at most its own Nyquist frequency (ingest/pipeline/grid.ts). */
   maxFreqHz: number;
   /** Highest frequency of the full-range spectrum used for the mains-hum metric, Hz (default 70). */
   qualityMaxFreqHz: number;
