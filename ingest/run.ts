@@ -51,6 +51,8 @@ export interface IngestSummary {
   failed: IngestFailure[];
   /** Rows written by the cohort-level quality pass (robust distance from the cohort median). */
   cohortQualityRows: number;
+  /** Rows of the warnings table for this run (its recordings stored now or earlier). */
+  warnings: number;
 }
 
 export { parseShard } from './cohort/shard.ts';
@@ -83,7 +85,7 @@ export async function runIngest(
   // their first recordings while the store opens: each hashes its file, then waits for the store
   // to say whether that recording is stored already
   const runId = runIdentity(params).runId;
-  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0 };
+  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0, warnings: 0 };
   const opened = openStore(outDb, { create: true });
   const ready = opened.then(async (store) => {
     const begun = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.k}/${shard.n}` : null });
@@ -164,6 +166,7 @@ export async function runIngest(
       // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
       summary.cohortQualityRows = await cohortQualityPass(store);
       await sortSpectra(store); // rows of this and earlier runs in (stage, reference, averaging, recording, channel) order
+      summary.warnings = await store.warningCount(runId);
       await store.finishRun(runId);
     } catch (e) {
       throw isDiskFull(e) ? diskFull(e, 'finishing the run (cohort quality pass, spectra order, checkpoint)') : e;

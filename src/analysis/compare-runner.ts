@@ -39,7 +39,7 @@ export async function loadContrastData(store: Store, c: Contrast, exclusions: Ex
   const peaks: ContrastData['peaks'] = [];
   for (const stage of stages) {
     const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
-    const m = await readSpectra(store, q);
+    const m = await readSpectra(store, { ...q, channels: c.channels === 'all' ? undefined : c.channels });
     if (m.nBins > 0) {
       if (axis.nBins > 0 && (axis.nBins !== m.nBins || axis.freqStepHz !== m.freqStepHz)) throw new Error('stages have different frequency axes');
       axis = { freqStartHz: m.freqStartHz, freqStepHz: m.freqStepHz, nBins: m.nBins };

@@ -1,13 +1,13 @@
 /**
  * Gathers the database facts a methods report states (src/core/report): the run and its
- * parameters, recordings, sampling rates, channel counts, epochs and rejections per stage, and
- * the stored aperiodic fit ranges; and reads the ledger counts.
+ * parameters, recordings, sampling rates, channel counts, epochs and rejections per stage, the
+ * stored aperiodic fit ranges, and the warnings and recording statuses; and reads the ledger counts.
  */
 import type { DuckDBValue } from '@duckdb/node-api';
 import { openStore, type Store } from '../../ingest/store/index.ts';
 import { chooseRun } from './compare-runner.ts';
 import { readLedger } from './ledger.ts';
-import { ledgerCounts, type DatabaseFacts, type LedgerCounts } from '../core/report/facts.ts';
+import { ledgerCounts, type DatabaseFacts, type LedgerCounts, type WarningFacts } from '../core/report/facts.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
 
 async function rows(store: Store, sql: string, values: DuckDBValue[]): Promise<Record<string, unknown>[]> {
@@ -24,6 +24,17 @@ export async function storedFitRanges(store: Store, runId: string, stage: string
     [runId, stage, reference, averaging, method],
   );
   return r.map((x) => [Number(x.fit_lo_hz), Number(x.fit_hi_hz)]);
+}
+
+/** The run's warnings table rows per step and its recordings per status (a database written before the warnings table has none). */
+export async function warningFacts(store: Store, runId: string): Promise<WarningFacts> {
+  const table = await rows(store, "SELECT count(*) AS n FROM duckdb_tables() WHERE database_name = current_database() AND table_name = 'warnings'", []);
+  const steps = Number(table[0].n) > 0 ? await rows(store, 'SELECT step, count(*) AS n FROM warnings WHERE run_id = $1 GROUP BY step ORDER BY step', [runId]) : [];
+  const status = await rows(store, 'SELECT status, count(*) AS n FROM recordings WHERE run_id = $1 GROUP BY status ORDER BY status', [runId]);
+  return {
+    byStep: Object.fromEntries(steps.map((r) => [String(r.step), Number(r.n)])),
+    recordingsByStatus: Object.fromEntries(status.map((r) => [String(r.status), Number(r.n)])),
+  };
 }
 
 export async function databaseFacts(store: Store, file: string, c: Contrast, runId?: string): Promise<DatabaseFacts> {
@@ -67,6 +78,7 @@ export async function databaseFacts(store: Store, file: string, c: Contrast, run
     epochs: stages,
     fitRangesHz: await storedFitRanges(store, run.runId, stage, c.reference, c.averaging, c.aperiodicMethod),
     recordedDerivations: await recordedDerivations(store, run.runId),
+    warnings: await warningFacts(store, run.runId),
   };
 }
 

@@ -111,16 +111,27 @@ export async function listRecordings(store: Store, runId: string): Promise<Recor
   }));
 }
 
+/**
+ * Spectra of one (run, stage, reference, averaging), optionally of some channels only. Channels
+ * of one recording can have different lengths (each is stored up to its own Nyquist frequency,
+ * so a 20-Hz EMG stops at 10 Hz beside 0–45-Hz EEG): a row shorter than the longest of its
+ * recording is left out, as a channel that does not reach the recording's frequency range. Rows
+ * of different recordings must then share one axis, else the read is refused.
+ */
 export async function readSpectra(store: Store, q: SpectraQuery): Promise<SpectraMatrix> {
   // Streamed chunk by chunk; the FLOAT[] lists are copied straight from DuckDB's flat child
   // vector into one Float32Array (no JS array per row: 640,000 rows × 181 values at cohort scale).
-  const where = `r.run_id = $1 AND s.stage = $2 AND s.reference = $3 AND s.averaging = $4`;
+  const only = q.channels ? ` AND s.channel IN (${q.channels.length ? q.channels.map((c) => `'${c.replaceAll("'", "''")}'`).join(', ') : 'NULL'})` : '';
   const values: DuckDBValue[] = [q.runId, q.stage, q.reference, q.averaging];
+  // the longest list of each recording, by a join on the keys (a window over the rows would hold the lists twice)
+  const rowsSql = (cols: string) => `SELECT ${cols} FROM spectra s JOIN recordings r USING (recording_id)
+        JOIN (SELECT recording_id, max(n_bins) AS longest FROM spectra s WHERE s.stage = $2 AND s.reference = $3 AND s.averaging = $4${only} GROUP BY recording_id) m USING (recording_id)
+        WHERE r.run_id = $1 AND s.stage = $2 AND s.reference = $3 AND s.averaging = $4${only} AND s.n_bins = m.longest`;
   return store.exclusive(async () => {
     const head = (await store.connection.runAndReadAll(
-      `SELECT count(*) AS n, min(s.freq_start_hz) AS f0, max(s.freq_start_hz) AS f0b, min(s.freq_step_hz) AS df, max(s.freq_step_hz) AS dfb,
-              min(s.n_bins) AS nb, max(s.n_bins) AS nbb
-         FROM spectra s JOIN recordings r USING (recording_id) WHERE ${where}`,
+      `SELECT count(*) AS n, min(freq_start_hz) AS f0, max(freq_start_hz) AS f0b, min(freq_step_hz) AS df, max(freq_step_hz) AS dfb,
+              min(n_bins) AS nb, max(n_bins) AS nbb
+         FROM (${rowsSql('s.freq_start_hz, s.freq_step_hz, s.n_bins')})`,
       values,
     )).getRowObjectsJS()[0];
     const total = Number(head.n);
@@ -134,15 +145,12 @@ export async function readSpectra(store: Store, q: SpectraQuery): Promise<Spectr
         { table: 'spectra' },
       );
     }
-    const wanted = q.channels ? new Set(q.channels) : null;
     const out: SpectraMatrix = {
       freqStartHz, freqStepHz, nBins, recordingIds: [], subjects: [], sessions: [], channels: [],
       nEpochs: new Int32Array(total), flagged: new Uint8Array(total), flagReasons: [], power: new Float32Array(total * nBins),
     };
     const result = await store.connection.stream(
-      `SELECT s.recording_id, r.subject, r.session, s.channel, s.n_epochs, s.flagged, s.flag_reason, s.power
-         FROM spectra s JOIN recordings r USING (recording_id)
-        WHERE ${where}
+      `${rowsSql('s.recording_id, r.subject, r.session, s.channel, s.n_epochs, s.flagged, s.flag_reason, s.power')}
         ORDER BY r.subject, r.session NULLS FIRST, s.recording_id, s.channel`,
       values,
     );
@@ -152,12 +160,10 @@ export async function readSpectra(store: Store, q: SpectraQuery): Promise<Spectr
       const list = chunk.getColumnVector(7) as DuckDBListVector;
       const child = list.childVector;
       for (let i = 0; i < chunk.rowCount; i++) {
-        const ch = String(channel.getItem(i));
-        if (wanted && !wanted.has(ch)) continue;
         out.recordingIds.push(String(rid.getItem(i)));
         out.subjects.push(String(subject.getItem(i)));
         out.sessions.push(strOrNull(session.getItem(i)));
-        out.channels.push(ch);
+        out.channels.push(String(channel.getItem(i)));
         out.nEpochs[row] = Number(nEpochs.getItem(i));
         out.flagged[row] = flagged.getItem(i) ? 1 : 0;
         out.flagReasons.push(strOrNull(reason.getItem(i)));
@@ -167,10 +173,6 @@ export async function readSpectra(store: Store, q: SpectraQuery): Promise<Spectr
         row++;
       }
     }
-    // a channel filter keeps fewer rows than counted
-    out.nEpochs = out.nEpochs.subarray(0, row);
-    out.flagged = out.flagged.subarray(0, row);
-    out.power = out.power.subarray(0, row * nBins);
     return out;
   });
 }

@@ -58,7 +58,7 @@ interface Flags {
   knee: boolean;
   fit: boolean;
   irasa?: boolean;
-  lineFreq?: number;
+  mainsHz?: number;
   quiet?: boolean;
   labelMap?: string;
   unknownAsUnscored?: boolean;
@@ -84,7 +84,7 @@ export function register(program: Command): void {
     .option('--epoch <s>', 'scoring epoch length, s', num('epoch', (x) => x > 0), D.epochS)
     .option('--segment <s>', 'Welch segment length, s (frequency step 1/segment Hz)', num('segment', (x) => x > 0), D.segmentS)
     .option('--overlap <fraction>', 'Welch segment overlap, 0 ≤ f < 1', num('overlap', (x) => x >= 0 && x < 1), D.overlap)
-    .option('--max-freq <Hz>', 'highest stored frequency, Hz (lowered to Nyquist when that is lower)', num('max-freq', (x) => x > 0), D.maxFreqHz)
+    .option('--max-freq <Hz>', 'highest stored frequency, Hz (each channel at most to its own Nyquist frequency)', num('max-freq', (x) => x > 0), D.maxFreqHz)
     .option('--channel-types <list>', 'channel types selected when no --include is given', list, D.channelTypes)
     .option('--include <labels>', 'comma-separated labels or electrode names to take, whatever their type', list, [])
     .option('--exclude <labels>', 'comma-separated labels or electrode names to leave out', list, [])
@@ -103,7 +103,7 @@ export function register(program: Command): void {
     .option('--knee', 'fit the aperiodic knee (default: plain power law, knee 0)', false)
     .option('--no-fit', 'skip the aperiodic and peak fits')
     .option('--irasa', 'also estimate the aperiodic component by IRASA (Wen & Liu 2016) from the clean epochs\' time series, stored with method irasa (a second read of each recording; slower)')
-    .option('--line-freq <Hz>', 'power-line frequency for the mains-hum metric, 50 or 60 (default: BIDS sidecar, else detected)', num('line-freq', (x) => x === 50 || x === 60))
+    .option('--mains-hz <Hz>', 'power-line frequency, 50 or 60: the mains-hum metric\'s line and the only line left out of the narrow-spike search (default: both left out, the metric\'s line from the BIDS sidecar, else detected)', num('mains-hz', (x) => x === 50 || x === 60))
     .option('--label-map <file.tsv>', 'stage-label map: a TSV with columns label and stage (W, N1, N2, N3, R or unscored); its labels take precedence over the built-in ones')
     .option('--unknown-as-unscored', 'score the epochs of a stage label that is neither built in nor in the label map as unscored, with a warning (default: refuse the recording)')
     .option('--trim-scoring', 'drop scored stages that lie before the recording start or past its end, with a warning (default: refuse the recording, as such scoring is likely misaligned); unscored labels there are always dropped')
@@ -138,7 +138,7 @@ function toParams(f: Flags): Partial<IngestParams> {
     bandMethod: f.bandMethod,
     fit: f.fit === false ? null : { fitRangeHz: f.fitRange, aperiodicForm: f.knee ? 'knee' : 'power-law' },
     irasa: f.irasa ? {} : null,
-    quality: { ...D.quality, lineHz: (f.lineFreq as 50 | 60 | undefined) ?? null },
+    quality: { ...D.quality, mainsHz: f.mainsHz ? [f.mainsHz as 50 | 60] : D.quality.mainsHz },
     scoring: {
       labelMap: f.labelMap ? readLabelMap(f.labelMap) : {},
       unknownAs: f.unknownAsUnscored ? 'unscored' : 'error',
@@ -193,7 +193,7 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
     const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard }, onEvent);
     bars?.stop();
     const secs = (Date.now() - t0) / 1000;
-    console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, in ${secs.toFixed(1)} s`);
+    console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, ${summary.warnings} warning${summary.warnings === 1 ? '' : 's'} (table warnings), in ${secs.toFixed(1)} s`);
     for (const x of summary.failed) console.log(`  failed ${x.file} at ${x.step}: ${x.message}`);
     if (summary.failed.length === 0) return EXIT_OK;
     return summary.done + summary.skipped > 0 ? EXIT_PARTLY_FAILED : EXIT_FATAL;

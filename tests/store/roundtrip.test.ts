@@ -63,6 +63,18 @@ describe('round trip of a recording bundle', () => {
     expect(await count(store, 'peaks', where, [recordingId])).toBe(1);
     expect(await count(store, 'quality', where, [recordingId])).toBe(1);
     expect(await count(store, 'reference_skips', where, [recordingId])).toBe(1);
+    expect(await count(store, 'warnings', where, [recordingId])).toBe(2);
+  });
+
+  it('warnings come back with their run, recording, file and step, and the channels with the unit as recorded', async () => {
+    const w = await sql(store, 'SELECT run_id, recording_id, file, step, field, message, logged_at FROM warnings ORDER BY step');
+    expect(w.map((r) => [r.run_id, r.recording_id, r.file, r.step, r.field, r.message])).toEqual(
+      bundle.warnings!.map((x) => [runId, recordingId, 'rec-7.edf', x.step, x.field, x.message]).sort((a, b) => String(a[3]).localeCompare(String(b[3]))),
+    );
+    expect(w[0].logged_at).toBeInstanceOf(Date);
+    expect(await store.warningCount(runId)).toBe(2);
+    const ch = await sql(store, "SELECT unit, recorded_unit, physical_min FROM channels WHERE channel = 'E1'");
+    expect(ch).toEqual([{ unit: 'uV', recorded_unit: 'mV', physical_min: -500 }]);
   });
 
   it('spectra come back bit-equal through readSpectra, for every stage × reference × averaging', async () => {

@@ -19,6 +19,8 @@ export interface SpectraKey {
   stage: Stage;
   reference: string;
   averaging: string;
+  /** Only these channels (contrastSpectra; default all). */
+  channels?: readonly string[];
 }
 
 /** Below this many stored values (4 MB) the power lists come in one result, not a stream (which costs a connection and several round trips to the engine). */
@@ -35,9 +37,14 @@ export async function contrastSpectra(
   q: SpectraKey,
   maxHz?: number,
 ): Promise<{ freqStartHz: number; freqStepHz: number; nBins: number; rows: SpectrumRow[] }> {
+  // a channel shorter than the longest of its recording's requested channels (stored to a lower
+  // Nyquist frequency) is left out, as src/analysis/store-read.ts readSpectra does; `cell` names columns
+  // only spectra has, so it reads the same inside and outside the join
+  const only = q.channels ? ` AND channel IN (${q.channels.length ? q.channels.map(literal).join(', ') : 'NULL'})` : '';
+  const cell = `stage = ${literal(q.stage)} AND reference = ${literal(q.reference)} AND averaging = ${literal(q.averaging)}${only}`;
   const from = `FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
-     WHERE r.run_id = ${literal(q.runId)} AND s.stage = ${literal(q.stage)}
-       AND s.reference = ${literal(q.reference)} AND s.averaging = ${literal(q.averaging)}`;
+       JOIN (SELECT recording_id, max(n_bins) AS longest FROM ${COHORT}.spectra WHERE ${cell} GROUP BY recording_id) m USING (recording_id)
+     WHERE r.run_id = ${literal(q.runId)} AND ${cell} AND s.n_bins = m.longest`;
   // the keys, with the count that decides how the lists are read
   const t = await db.query(
     `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, s.recording_id::VARCHAR AS recording_id,
@@ -224,7 +231,7 @@ export async function loadContrastData(
       stages.map((stage) => {
         const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
         return Promise.all([
-          contrastSpectra(db, q, maxHz),
+          contrastSpectra(db, { ...q, channels: c.channels === 'all' ? undefined : c.channels }, maxHz),
           needs.aperiodic ? contrastAperiodic(db, q, c.aperiodicMethod) : Promise.resolve([]),
           needs.peaks ? contrastPeaks(db, q, c.aperiodicMethod) : Promise.resolve([]),
         ]);

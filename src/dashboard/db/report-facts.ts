@@ -1,7 +1,7 @@
 // The database facts a methods report states (src/core/report DatabaseFacts), over duckdb-wasm:
 // the dashboard's twin of src/analysis/report-facts.ts (databaseFacts), query for query.
 import type { Contrast } from '../../core/contrast/spec.ts';
-import type { DatabaseFacts } from '../../core/report/index.ts';
+import type { DatabaseFacts, WarningFacts } from '../../core/report/index.ts';
 import { tableToRows } from './arrow-rows.ts';
 import { chooseRun } from './contrast-data.ts';
 import type { RunInfo } from './queries.ts';
@@ -73,6 +73,21 @@ export async function recordedDerivations(db: SqlClient, runId: string): Promise
   return rows.map((x) => ({ channel: String(x.channel), referenceElectrode: x.reference_electrode === null || x.reference_electrode === undefined ? null : String(x.reference_electrode), recordings: Number(x.n) }));
 }
 
+/** The run's warnings table rows per step and its recordings per status (a database written before the warnings table has none). */
+export async function warningFacts(db: SqlClient, runId: string): Promise<WarningFacts> {
+  const [t] = tableToRows(await db.query(`SELECT count(*)::DOUBLE AS n FROM duckdb_tables() WHERE database_name = ${literal(COHORT)} AND table_name = 'warnings'`));
+  const steps = Number(t.n) > 0
+    ? tableToRows(await db.query(`SELECT step::VARCHAR AS step, count(*)::DOUBLE AS n FROM ${COHORT}.warnings WHERE run_id = ${literal(runId)} GROUP BY step ORDER BY step`))
+    : [];
+  const status = tableToRows(
+    await db.query(`SELECT status::VARCHAR AS status, count(*)::DOUBLE AS n FROM ${COHORT}.recordings WHERE run_id = ${literal(runId)} GROUP BY status ORDER BY status`),
+  );
+  return {
+    byStep: Object.fromEntries(steps.map((r) => [String(r.step), Number(r.n)])),
+    recordingsByStatus: Object.fromEntries(status.map((r) => [String(r.status), Number(r.n)])),
+  };
+}
+
 /** Everything a methods report states about the database, for the analysis' stage, reference and averaging. */
 export async function databaseFacts(db: SqlClient, source: string, runs: readonly RunInfo[], c: Contrast): Promise<DatabaseFacts> {
   const run = chooseRun(runs);
@@ -88,5 +103,6 @@ export async function databaseFacts(db: SqlClient, source: string, runs: readonl
     epochs: await stageEpochCounts(db, run.runId),
     fitRangesHz: await storedFitRanges(db, run.runId, stage, c.reference, c.averaging, c.aperiodicMethod),
     recordedDerivations: await recordedDerivations(db, run.runId),
+    warnings: await warningFacts(db, run.runId),
   };
 }

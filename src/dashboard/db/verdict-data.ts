@@ -112,7 +112,7 @@ export async function loadPathDataSets(
   const sets: PathDataSet[] = [];
   for (const { reference, averaging } of needs) {
     const q = { runId: run.runId, stage: c.stage, reference, averaging };
-    const spectra = await contrastSpectra(db, q);
+    const spectra = await contrastSpectra(db, { ...q, channels: c.channels === 'all' ? undefined : c.channels });
     if (spectra.rows.length === 0) throw new Error(`no ${c.stage} spectra with reference ${reference} and averaging ${averaging} in run ${run.runId}`);
     const ranges = await storedFitRanges(db, run.runId, c.stage, reference, averaging, c.aperiodicMethod);
     const base = { spectra, peaks: [], participants: people, exclusions: [...exclusions] };

@@ -1,0 +1,132 @@
+// Readers of the spectra table when channels of one recording have different lengths (each stored
+// up to its own Nyquist frequency): the contrast loaders of the command line (ingest/compare.ts →
+// ingest/store/read.ts) and of the dashboard (src/dashboard/db/contrast-data.ts, duckdb-wasm), the
+// dashboard's spectra view, and the report facts of both sides. Four invented subjects, each a
+// libedf-written recording with EEG at 256 Hz and EMG at 1, 20, 64 and 512 Hz (tests/ingest/mixed-rates.ts).
+import { writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { DuckDBInstance } from '@duckdb/node-api';
+import { assembleContrast } from '../../src/core/contrast/assemble.ts';
+import { parseContrast } from '../../src/core/contrast/spec.ts';
+import { methodsReport } from '../../src/core/report/index.ts';
+import { loadContrastData as loadInBrowser } from '../../src/dashboard/db/contrast-data.ts';
+import { cohortSchema, runs } from '../../src/dashboard/db/queries.ts';
+import { databaseFacts as factsInBrowser } from '../../src/dashboard/db/report-facts.ts';
+import { loadSpectraRows } from '../../src/dashboard/views/spectra/spectra-data.ts';
+import { compareDatabase, loadContrastData } from '../../src/analysis/compare-runner.ts';
+import { runIngest } from '../../ingest/run.ts';
+import { databaseFacts } from '../../src/analysis/report-facts.ts';
+import { openStore } from '../../ingest/store/database.ts';
+import { readSpectra } from '../../src/analysis/store-read.ts';
+import { makeTmpDir } from '../edf/helpers.ts';
+import { wasmClientFor } from '../dashboard/wasm-client.ts';
+import { writeMixedRates } from './mixed-rates.ts';
+
+const SUBJECTS = [['s1', 'control'], ['s2', 'control'], ['s3', 'patient'], ['s4', 'patient']];
+let tmp: ReturnType<typeof makeTmpDir>;
+let db: string;
+let client: Awaited<ReturnType<typeof wasmClientFor>>;
+/** Every stored N2/recorded/mean list, by recording and channel, as node-api reads it. */
+const stored = new Map<string, number[]>();
+
+const contrast = (over: Record<string, unknown>) => parseContrast({
+  design: 'groups', groupColumn: 'group', groups: ['control', 'patient'], stage: 'N2', reference: 'recorded', averaging: 'mean',
+  channels: 'all', fminHz: 1, fmaxHz: 30, measure: 'log-psd', statistic: 'welch-t', correction: 'cluster-mass', clusterP: 0.05, permutations: 20, seed: 1, ...over,
+});
+
+beforeAll(async () => {
+  tmp = makeTmpDir('mixed-readers');
+  SUBJECTS.forEach(([s], i) => writeMixedRates(tmp.dir, s, i));
+  const table = path.join(tmp.dir, 'cohort.tsv');
+  writeFileSync(table, ['subject\tgroup\trecording', ...SUBJECTS.map(([s, g]) => `${s}\t${g}\t${s}.edf`)].join('\n') + '\n');
+  db = path.join(tmp.dir, 'mixed.duckdb');
+  const summary = await runIngest(table, db, { jobs: 2, params: { channelTypes: ['EEG', 'EMG'], minEpochs: 2 } });
+  expect(summary.failed).toEqual([]);
+  const inst = await DuckDBInstance.create(db, { access_mode: 'READ_ONLY' });
+  const c = await inst.connect();
+  const r = await c.runAndReadAll("SELECT recording_id, channel, power FROM spectra WHERE stage = 'N2' AND reference = 'recorded' AND averaging = 'mean'");
+  for (const [id, ch, p] of r.getRowsJson()) stored.set(`${id}|${ch}`, (p as number[]).map(Number));
+  c.closeSync();
+  inst.closeSync();
+  client = await wasmClientFor(db);
+}, 240_000);
+afterAll(() => {
+  client?.close();
+  tmp?.cleanup();
+});
+
+describe('spectra of one recording with different lengths', () => {
+  it('are stored per channel to its own Nyquist frequency', () => {
+    const lengths = new Map<string, number>();
+    for (const [k, p] of stored) lengths.set(k.split('|')[1], p.length);
+    // 0.25-Hz bins: 0–45 Hz = 181, 0–32 Hz (64 Hz) = 129, 0–10 Hz (20 Hz) = 41, 0–0.5 Hz (1 Hz) = 3
+    expect(Object.fromEntries([...lengths].sort())).toEqual({ C3: 181, C4: 181, Chin: 41, Fast: 181, Leg: 129, Slow: 3 });
+  });
+
+  it('the command line reads the channels that reach the recording\'s range, or the channels asked for', async () => {
+    const store = await openStore(db, { readOnly: true });
+    try {
+      const all = await readSpectra(store, { runId: (await runs(client))[0].runId, stage: 'N2', reference: 'recorded', averaging: 'mean' });
+      expect(all.nBins).toBe(181);
+      expect([...new Set(all.channels)].sort()).toEqual(['C3', 'C4', 'Fast']);
+      expect(all.channels.length).toBe(12);
+      for (let r = 0; r < all.channels.length; r++) expect(Array.from(all.power.subarray(r * 181, (r + 1) * 181))).toEqual(stored.get(`${all.recordingIds[r]}|${all.channels[r]}`));
+      const chin = await readSpectra(store, { runId: all.recordingIds.length ? (await runs(client))[0].runId : '', stage: 'N2', reference: 'recorded', averaging: 'mean', channels: ['Chin'] });
+      expect([chin.nBins, chin.channels]).toEqual([41, ['Chin', 'Chin', 'Chin', 'Chin']]);
+      expect(Array.from(chin.power.subarray(0, 41))).toEqual(stored.get(`${chin.recordingIds[0]}|Chin`));
+    } finally {
+      await store.close();
+    }
+  });
+
+  it('a contrast over all channels reads the EEG and the fast EMG; over the EEG, and over the 20-Hz EMG alone on its own range, it runs; both sides load the same', async () => {
+    const runList = await runs(client);
+    const schema = await cohortSchema(client);
+    for (const c of [contrast({}), contrast({ channels: ['C3', 'C4'] }), contrast({ channels: ['Chin'], fmaxHz: 8 })]) {
+      const store = await openStore(db, { readOnly: true });
+      let cli;
+      try {
+        cli = await loadContrastData(store, c, []);
+      } finally {
+        await store.close();
+      }
+      const web = await loadInBrowser(client, schema, runList, c, []);
+      expect(web.data.spectra.nBins).toBe(cli.data.spectra.nBins);
+      const key = (r: { subject: string; channel: string }) => `${r.subject}|${r.channel}`;
+      expect(web.data.spectra.rows.map(key).sort()).toEqual(cli.data.spectra.rows.map(key).sort());
+      const assembled = assembleContrast(c, cli.data);
+      expect(assembled.channels).toEqual(c.channels === 'all' ? ['C3', 'C4', 'Fast'] : c.channels);
+      expect(assembled.nPerGroup).toEqual({ control: 2, patient: 2 });
+      // (an EMG channel has no 10-10 position, so a cluster statistic over all channels needs a neighbour table: not run here)
+      if (c.channels === 'all') continue;
+      const result = await compareDatabase(db, c, [], undefined, undefined, { threads: 1 });
+      expect(result.n).toEqual({ control: 2, patient: 2 });
+    }
+  });
+
+  it('the dashboard\'s spectra view loads them', async () => {
+    const rows = await loadSpectraRows(client, await cohortSchema(client), await runs(client), { stage: 'N2', reference: 'recorded', averaging: 'mean' });
+    expect(rows.nBins).toBe(181);
+    expect(rows.channels.sort()).toEqual(['C3', 'C4', 'Fast']);
+  });
+
+  it('the report facts of both sides agree, and the methods text states the fit ranges, the Nyquist rule and the warnings', async () => {
+    const c = contrast({ channels: ['C3', 'C4'] });
+    const store = await openStore(db, { readOnly: true });
+    let cli;
+    try {
+      cli = await databaseFacts(store, db, c);
+    } finally {
+      await store.close();
+    }
+    const web = await factsInBrowser(client, db, await runs(client), c);
+    expect(web).toEqual(cli);
+    expect(cli.samplingRatesHz).toEqual([1, 20, 64, 256, 512]);
+    expect(cli.fitRangesHz).toEqual([[1, 10], [1, 32], [1, 40]]); // Chin, Leg, the rest; the 1-Hz channel has none
+    expect(cli.warnings.recordingsByStatus).toEqual({ 'ok-with-warnings': 4 });
+    const text = methodsReport(await compareDatabase(db, c, [], undefined, undefined, { threads: 1 }), cli, null).markdown;
+    expect(text).toContain('each channel at most up to its own Nyquist frequency');
+    expect(text).toContain('None of the 4 recordings is partial and 4 are complete with warnings.');
+  });
+});
