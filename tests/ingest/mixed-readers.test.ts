@@ -1,6 +1,6 @@
 // Readers of the spectra table when channels of one recording have different lengths (each stored
-// up to its own Nyquist frequency): the contrast loaders of the command line (ingest/compare.ts →
-// ingest/store/read.ts) and of the dashboard (src/dashboard/db/contrast-data.ts, duckdb-wasm), the
+// up to its own Nyquist frequency): the contrast loaders of the command line (src/analysis/compare-runner.ts →
+// src/analysis/store-read.ts) and of the dashboard (src/dashboard/db/contrast-data.ts, duckdb-wasm), the
 // dashboard's spectra view, and the report facts of both sides. Four invented subjects, each a
 // libedf-written recording with EEG at 256 Hz and EMG at 1, 20, 64 and 512 Hz (tests/ingest/mixed-rates.ts).
 import { writeFileSync } from 'node:fs';
