@@ -69,5 +69,7 @@ for (const [file, out] of Object.entries(node.metafile.outputs)) {
 }
 chmodSync(path.join(cliDir, 'bandwise.js'), 0o755);
 
-await buildApp({ configFile: path.join(root, 'vite.config.ts'), logLevel: 'warn' });
+// configLoader 'runner': Vite reads vite.config.ts without writing a bundled copy into node_modules
+// (a change there makes every later npm command in the clone re-read the whole tree)
+await buildApp({ configFile: path.join(root, 'vite.config.ts'), configLoader: 'runner', logLevel: 'warn' });
 console.log(`built ${path.relative(root, cliDir)}/ and dist/dashboard/`);
