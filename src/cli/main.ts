@@ -13,6 +13,8 @@ import { register as registerDemo } from './demo.ts';
 import { register as registerBandCheck } from './band-check.ts';
 import { register as registerReport } from './report.ts';
 import { register as registerClusterScript } from './cluster-script.ts';
+import { register as registerPower } from './power.ts';
+import { register as registerDeviation } from './deviation.ts';
 
 const pkg = JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string };
 
@@ -31,6 +33,8 @@ registerMerge(program);
 registerCompare(program);
 registerBandCheck(program);
 registerReport(program);
+registerPower(program);
+registerDeviation(program);
 registerDashboard(program);
 registerClusterScript(program);
 registerSimulate(program);

@@ -1,0 +1,24 @@
+/**
+ * `bandwise deviation` on a database: reads the stage's spectra (and aperiodic fits or peaks when
+ * the measure needs them) and the participants (compare-runner.ts's reader, with the measure
+ * part of the settings as a contrast), then scores every subject (src/core/planning deviation).
+ */
+import { openStore } from '../../ingest/store/index.ts';
+import type { Exclusion } from '../core/contrast/data.ts';
+import { deviation, measureContrast, type DeviationResult, type DeviationSpec } from '../core/planning/index.ts';
+import { loadContrastData } from './compare-runner.ts';
+
+export interface DeviationRun extends DeviationResult {
+  database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown };
+}
+
+export async function deviationDatabase(dbPath: string, spec: DeviationSpec, exclusions: Exclusion[], runId?: string): Promise<DeviationRun> {
+  const store = await openStore(dbPath, { readOnly: true });
+  let loaded;
+  try {
+    loaded = await loadContrastData(store, measureContrast(spec), exclusions, runId);
+  } finally {
+    await store.close();
+  }
+  return { ...deviation(spec, loaded.data), database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } };
+}
