@@ -90,7 +90,7 @@ export function register(program: Command): void {
       const channels = !flags.channels || (flags.channels.length === 1 && flags.channels[0] === 'all') ? 'all' : flags.channels;
       const plan: PowerPlan = { referenceGroup: flags.referenceGroup, effect: flags.effect, band, channels, nPerGroup: flags.n, simulations: flags.simulations, seed: flags.seed, alpha: flags.alpha };
       try {
-        checkPowerPlan(plan);
+        checkPowerPlan(contrast, plan);
       } catch (e) {
         if (!(e instanceof PlanningInputError)) throw e;
         console.error(`bandwise power: ${e.message}`);

@@ -69,11 +69,19 @@ export interface PreparedPower {
   plantedFreqsHz: number[];
 }
 
-/** Checks a plan's own values (before any data is read); throws PlanningInputError naming the bad one. */
-export function checkPowerPlan(p: PowerPlan): void {
+/**
+ * Checks a plan and what it asks of the contrast before any data is read: a groups design, a
+ * measure with a planting rule, a band exactly when the measure has a frequency axis, and the
+ * plan's own values. Throws PlanningInputError naming the bad value.
+ */
+export function checkPowerPlan(c: Contrast, p: PowerPlan): void {
   const bad = (what: string, v: unknown) => {
     throw new PlanningInputError(`invalid ${what}: ${Array.isArray(v) ? v.join(',') : String(v)}`);
   };
+  if (c.design !== 'groups') throw new PlanningInputError(`power simulates two groups: the contrast must be a groups design, not ${c.design}`);
+  plantingRule(c.measure);
+  if (measureTakesBand(c.measure) && p.band === null) throw new PlanningInputError(`measure ${c.measure} needs the band to plant the effect in (--band LO-HI)`);
+  if (!measureTakesBand(c.measure) && p.band !== null) throw new PlanningInputError(`measure ${c.measure} has no frequency axis: give no band`);
   if (!p.referenceGroup) bad('reference group', p.referenceGroup);
   if (!Number.isFinite(p.effect)) bad('effect', p.effect);
   if (p.nPerGroup.length === 0 || !p.nPerGroup.every((n) => Number.isInteger(n) && n >= 2)) bad('subjects per group (whole numbers ≥ 2)', p.nPerGroup);
@@ -85,10 +93,7 @@ export function checkPowerPlan(p: PowerPlan): void {
 
 /** The reference group's rows and everything each simulation shares. Throws PlanningInputError for a plan the contrast cannot take. */
 export function preparePower(c: Contrast, plan: PowerPlan, data: ContrastData): PreparedPower {
-  checkPowerPlan(plan);
-  if (c.design !== 'groups') throw new PlanningInputError(`power simulates two groups: the contrast must be a groups design, not ${c.design}`);
-  plantingRule(c.measure);
-  if (!measureTakesBand(c.measure) && plan.band !== null) throw new PlanningInputError(`measure ${c.measure} has no frequency axis: give no band`);
+  checkPowerPlan(c, plan);
   // the reference group alone: both "groups" of the assembly are the reference group
   const assembled = assembleContrast({ ...c, groups: [plan.referenceGroup, plan.referenceGroup] }, data);
   const N = assembled.subjects.length;
