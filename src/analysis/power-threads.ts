@@ -3,8 +3,9 @@
  * spread over the threads — job j to thread j mod T — rather than one simulation's permutations:
  * a simulated study is a small contrast (2n subjects; well under compare's threshold for
  * splitting permutations, compare-threads.ts), whose permutations split over threads would make
- * every thread prepare the same statistics and wait for the others once per simulation, while
- * whole simulations need no exchange but their outcomes. The reference rows go to shared memory
+ * every thread prepare the same statistics and wait for the others once per simulation (measured
+ * at load 14 on 2 cores: one 13-channel contrast through compareOnThreads took 3.6 s wall on two
+ * threads, 0.34 s on one), while whole simulations need no exchange but their outcomes. The reference rows go to shared memory
  * once. The main thread only collects outcomes and reports progress; with one thread everything
  * runs here and no worker starts.
  */

@@ -22,9 +22,9 @@ interface PowerFlags {
   band?: string;
   channels?: string[];
   n: number[];
-  simulations: number;
-  seed: number;
-  alpha: number;
+  simulations?: number;
+  seed?: number;
+  alpha?: number;
   out: string;
   tsv?: string;
   exclusions?: string;
@@ -73,9 +73,9 @@ export function register(program: Command): void {
     .option('--band <band>', `band the effect is planted in (not for offset and exponent): ${BAND_SYNTAX}`)
     .option('--channels <names>', 'comma-separated channels the effect is planted in, or all (default all of the contrast\'s)', list)
     .requiredOption('--n <sizes>', 'subjects per group, comma-separated (one power estimate each)', sizes)
-    .option('--simulations <k>', 'simulations per n (default 200)', whole('--simulations', 1), 200)
-    .option('--seed <s>', 'seed of the draws and of every simulation\'s permutations (default 1)', whole('--seed', -(2 ** 31)), 1)
-    .option('--alpha <a>', 'significance level of the contrast\'s p-values (default 0.05)', number('--alpha'), 0.05)
+    .option('--simulations <k>', 'simulations per n (default 200)', whole('--simulations', 1))
+    .option('--seed <s>', 'seed of the draws and of every simulation\'s permutations (default 1)', whole('--seed', -(2 ** 31)))
+    .option('--alpha <a>', 'significance level of the contrast\'s p-values (default 0.05)', number('--alpha'))
     .requiredOption('--out <file>', 'result JSON to write')
     .option('--tsv <file>', 'the power curve as TSV')
     .option('--exclusions <file>', 'TSV of subjects/channels to leave out (subject, channel, reason), as the dashboard exports it')
@@ -88,7 +88,7 @@ export function register(program: Command): void {
       const band = flags.band === undefined ? null : inputOrExit(() => parseBand(flags.band!));
       if (flags.band !== undefined && !band) return;
       const channels = !flags.channels || (flags.channels.length === 1 && flags.channels[0] === 'all') ? 'all' : flags.channels;
-      const plan: PowerPlan = { referenceGroup: flags.referenceGroup, effect: flags.effect, band, channels, nPerGroup: flags.n, simulations: flags.simulations, seed: flags.seed, alpha: flags.alpha };
+      const plan: PowerPlan = { referenceGroup: flags.referenceGroup, effect: flags.effect, band, channels, nPerGroup: flags.n, simulations: flags.simulations ?? 200, seed: flags.seed ?? 1, alpha: flags.alpha ?? 0.05 };
       try {
         checkPowerPlan(contrast, plan);
       } catch (e) {
