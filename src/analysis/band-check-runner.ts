@@ -10,6 +10,9 @@ import { openStore, type Store } from '../../ingest/store/index.ts';
 import { readPeaks } from './store-read.ts';
 import { loadContrastData, type LoadedContrast } from './compare-runner.ts';
 import { storedFitRanges } from './report-facts.ts';
+import { keepSubjects } from '../core/confirmation/part-data.ts';
+import { bandCheckOnPart } from '../core/confirmation/part-result.ts';
+import type { PartFields } from '../core/confirmation/stamp.ts';
 
 export interface BandCheckData extends LoadedContrast {
   fitRangeHz: [number, number];
@@ -22,7 +25,7 @@ export async function loadBandCheckData(store: Store, c: Contrast, exclusions: E
   const ranges: [number, number][] = [];
   for (const stage of stages) {
     const q = { runId: loaded.runId, stage, reference: c.reference, averaging: c.averaging, method: c.aperiodicMethod };
-    for (const p of await readPeaks(store, q)) {
+    for (const p of keepSubjects(await readPeaks(store, q), loaded.view)) {
       loaded.data.peaks.push({ subject: p.subject, session: p.session, channel: p.channel, stage, centerHz: p.centerHz, height: p.height, bandwidthHz: p.bandwidthHz });
     }
     for (const r of await storedFitRanges(store, loaded.runId, stage, c.reference, c.averaging, c.aperiodicMethod)) {
@@ -34,7 +37,7 @@ export async function loadBandCheckData(store: Store, c: Contrast, exclusions: E
   return { ...loaded, fitRangeHz: ranges[0] };
 }
 
-export interface BandCheckRun extends BandCheckResult {
+export interface BandCheckRun extends BandCheckResult, PartFields {
   database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown };
 }
 
@@ -43,7 +46,7 @@ export async function bandCheckDatabase(dbPath: string, c: Contrast, band: Band,
   try {
     const loaded = await loadBandCheckData(store, c, exclusions, runId);
     const result = bandCheck(c, band, loaded.data, { ...options, fitRangeHz: loaded.fitRangeHz });
-    return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } };
+    return bandCheckOnPart({ ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } }, loaded.view);
   } finally {
     await store.close();
   }

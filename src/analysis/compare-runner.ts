@@ -12,12 +12,19 @@ import type { CompareResult } from '../core/contrast/run.ts';
 import type { ProgressCallback } from '../core/stats/index.ts';
 import { compareOnThreads, defaultThreads, sharedAssembly } from './compare-threads.ts';
 import type { Stage } from '../core/stages.ts';
+import { partData, type PartView } from '../core/confirmation/part-data.ts';
+import { compareOnPart } from '../core/confirmation/part-result.ts';
+import type { Part } from '../core/confirmation/split.ts';
+import type { PartFields } from '../core/confirmation/stamp.ts';
+import { partView } from './part-view.ts';
 
 export interface LoadedContrast {
   runId: string;
   runParameters: unknown;
   toolVersion: string;
   data: ContrastData;
+  /** the part of the split the rows are restricted to (null: no split, every subject) */
+  view: PartView | null;
 }
 
 /** The run a contrast reads: the one given, or the only/most recent finished one. */
@@ -29,8 +36,11 @@ export async function chooseRun(store: Store, runId?: string): Promise<{ runId: 
   return { runId: chosen.runId, parameters: chosen.parameters, toolVersion: chosen.toolVersion };
 }
 
-export async function loadContrastData(store: Store, c: Contrast, exclusions: Exclusion[], runId?: string): Promise<LoadedContrast> {
+/** The contrast's rows; while a split exists, only those of `part` (the exploration part unless a confirmation asks for the other). */
+export async function loadContrastData(store: Store, c: Contrast, exclusions: Exclusion[], runId?: string, part: Part = 'exploration'): Promise<LoadedContrast> {
   const run = await chooseRun(store, runId);
+  const view = await partView(store, part);
+  if (view === null && part === 'confirmation') throw new Error('the database holds no split, so it has no confirmation part');
   const stages: Stage[] = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
   const needs = measureNeeds(c.measure);
   const rows: SpectrumRow[] = [];
@@ -72,16 +82,19 @@ export async function loadContrastData(store: Store, c: Contrast, exclusions: Ex
   const participants = table.rows.map((r) => Object.fromEntries(table.columns.map((col, i) => [col.name, r[i]])));
   // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)
   const recordedReferences = c.reference === 'recorded' ? await readRecordedReferences(store, run.runId) : undefined;
-  return { runId: run.runId, runParameters: run.parameters, toolVersion: run.toolVersion, data: { spectra: { ...axis, rows }, aperiodic, peaks, participants, exclusions, recordedReferences } };
+  const data = partData(c, { spectra: { ...axis, rows }, aperiodic, peaks, participants, exclusions, recordedReferences }, view);
+  return { runId: run.runId, runParameters: run.parameters, toolVersion: run.toolVersion, data, view };
 }
 
-export interface CompareRun extends CompareResult {
+export interface CompareRun extends CompareResult, PartFields {
   database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown };
 }
 
 export interface CompareOptions {
   /** threads for the permutations (default: the machine's cores for a large contrast, else 1; see compare-threads.ts) */
   threads?: number;
+  /** the part of the split to read (default exploration; a split's confirmation part only for bandwise confirm) */
+  part?: Part;
 }
 
 /**
@@ -89,11 +102,11 @@ export interface CompareOptions {
  * than one, the assembly's matrices are in shared memory); the rows read and the unshared
  * matrices are garbage once this returns.
  */
-async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId: string | undefined, threads: number | undefined): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
+async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId: string | undefined, threads: number | undefined, part: Part | undefined): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
   const store = await openStore(dbPath, { readOnly: true });
   let loaded: LoadedContrast;
   try {
-    loaded = await loadContrastData(store, c, exclusions, runId);
+    loaded = await loadContrastData(store, c, exclusions, runId, part);
   } finally {
     // closed before the permutations, so DuckDB's cached pages are not held during them
     await store.close();
@@ -111,7 +124,7 @@ async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[
  */
 export async function compareDatabase(dbPath: string, c: Contrast, exclusions: Exclusion[], onProgress?: ProgressCallback, runId?: string, options: CompareOptions = {}): Promise<CompareRun> {
   if (options.threads !== undefined && !(Number.isInteger(options.threads) && options.threads >= 1)) throw new RangeError(`invalid number of threads: ${options.threads}`);
-  const { info, assembled, threads } = await loadAssembled(dbPath, c, exclusions, runId, options.threads);
+  const { info, assembled, threads } = await loadAssembled(dbPath, c, exclusions, runId, options.threads, options.part);
   const result = await compareOnThreads(c, assembled, threads, onProgress);
-  return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters } };
+  return compareOnPart({ ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters } }, info.view);
 }

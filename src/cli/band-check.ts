@@ -13,6 +13,7 @@ import { bandCheckDatabase, type BandCheckRun } from '../analysis/band-check-run
 import { appendLedger } from '../analysis/ledger.ts';
 import { addContrastOptions, contrastOrExit, inputOrExit, type Flags } from './contrast-options.ts';
 import { reportUserError } from './user-errors.ts';
+import { partLine } from './part-line.ts';
 
 interface BandFlags extends Omit<Flags, 'band'> {
   band: string;
@@ -74,9 +75,11 @@ export function register(program: Command): void {
     bar?.stop();
     writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
     // the ledger records the band with the contrast
-    if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p });
+    if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p, part: result.part, split: result.split });
     console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}${result.periodicKind ? ` (${result.periodicKind})` : ''}`);
     console.log(result.sentence);
+    const part = partLine(result);
+    if (part) console.log(part);
     console.log(`wrote ${flags.out}`);
   });
 }

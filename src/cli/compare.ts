@@ -10,6 +10,7 @@ import { compareDatabase, type CompareRun } from '../analysis/compare-runner.ts'
 import { appendLedger } from '../analysis/ledger.ts';
 import { addContrastOptions, contrastOrExit, type Flags } from './contrast-options.ts';
 import { reportUserError } from './user-errors.ts';
+import { partLine } from './part-line.ts';
 
 const threadCount = (v: string) => {
   const x = Number(v);
@@ -88,6 +89,8 @@ export function register(program: Command): void {
       const best = result.clusters[0];
       console.log(`${result.measure}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${best.sign > 0 ? '+' : '−'}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
       for (const note of result.notes) console.log(note);
+      const part = partLine(result);
+      if (part) console.log(part);
       console.log(`wrote ${flags.out}`);
     });
 }

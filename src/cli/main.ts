@@ -13,6 +13,9 @@ import { register as registerDemo } from './demo.ts';
 import { register as registerBandCheck } from './band-check.ts';
 import { register as registerReport } from './report.ts';
 import { register as registerClusterScript } from './cluster-script.ts';
+import { register as registerSplit } from './split.ts';
+import { register as registerLock } from './lock.ts';
+import { register as registerConfirm } from './confirm.ts';
 
 const pkg = JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string };
 
@@ -31,6 +34,9 @@ registerMerge(program);
 registerCompare(program);
 registerBandCheck(program);
 registerReport(program);
+registerSplit(program);
+registerLock(program);
+registerConfirm(program);
 registerDashboard(program);
 registerClusterScript(program);
 registerSimulate(program);
