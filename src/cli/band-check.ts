@@ -13,7 +13,7 @@ import { bandCheckDatabase, type BandCheckRun } from '../analysis/band-check-run
 import { appendLedger } from '../analysis/ledger.ts';
 import { addContrastOptions, contrastOrExit, inputOrExit, type Flags } from './contrast-options.ts';
 import { reportUserError } from './user-errors.ts';
-import { partLine } from './part-line.ts';
+import { partLine } from '../core/confirmation/methods-text.ts';
 
 interface BandFlags extends Omit<Flags, 'band'> {
   band: string;

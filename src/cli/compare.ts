@@ -10,7 +10,7 @@ import { compareDatabase, type CompareRun } from '../analysis/compare-runner.ts'
 import { appendLedger } from '../analysis/ledger.ts';
 import { addContrastOptions, contrastOrExit, type Flags } from './contrast-options.ts';
 import { reportUserError } from './user-errors.ts';
-import { partLine } from './part-line.ts';
+import { partLine } from '../core/confirmation/methods-text.ts';
 
 const threadCount = (v: string) => {
   const x = Number(v);

@@ -42,6 +42,12 @@ export const VIEWS: readonly ViewInfo[] = [
     summary: 'The same contrast over every combination of analysis choices, as a specification curve.',
     ready: true,
   },
+  {
+    id: 'workflow',
+    label: 'Split and plans',
+    summary: 'The exploration/confirmation split (blinded or not), the locked analysis plans and their confirmations, and the command of each step.',
+    ready: true,
+  },
   { id: 'report', label: 'Methods report', summary: 'Every spectral and statistical parameter written out as methods text.', ready: true },
 ];
 

@@ -2,6 +2,7 @@
 import { openPickedFile, openServedDatabase, preloadEngine, type CohortConnection } from './db/connection.ts';
 import type { ReportableResult } from '../core/report/index.ts';
 import { cohortSchema, runs, type CohortSchema, type RunInfo } from './db/queries.ts';
+import { NO_WORKFLOW, workflowOf, type WorkflowState } from './db/workflow-queries.ts';
 
 /** Where the dashboard server puts the database, relative to the app (src/server/serve.ts). */
 export const SERVED_DATABASE = 'data/cohort.duckdb';
@@ -14,6 +15,8 @@ export class Session {
   db: CohortConnection | null = $state.raw(null);
   schema: CohortSchema | null = $state.raw(null);
   runs: RunInfo[] = $state.raw([]);
+  /** the split, its exploration part (groups coded while blinded) and the plans; read before any view shows */
+  workflow: WorkflowState = $state.raw(NO_WORKFLOW);
   /** Bumped on every open, so views reload their data. */
   generation = $state(0);
 
@@ -45,6 +48,7 @@ export class Session {
       schema.value.require('runs', 'run_id', 'parameters');
       if (runList.status === 'rejected') throw runList.reason;
       this.runs = runList.value;
+      this.workflow = await workflowOf(db, schema.value);
       performance.mark('bandwise:database-open');
       this.schema = schema.value;
       this.db = db;
@@ -54,6 +58,7 @@ export class Session {
       this.db = null;
       this.schema = null;
       this.runs = [];
+      this.workflow = NO_WORKFLOW;
       this.error = err instanceof Error ? err.message : String(err);
       this.status = 'failed';
     }

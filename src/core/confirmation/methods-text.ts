@@ -67,3 +67,11 @@ export function partParagraph(r: PartFields & { contrast: Contrast; clusters?: C
   s += ' (The ledger lists what the command line ran with a ledger; the dashboard keeps its own list in the browser and, while a split exists, reads the exploration part only.)';
   return s;
 }
+
+/** One line on the part of the split a result used (null without a split): the command line prints it, the views show it. */
+export function partLine(r: PartFields): string | null {
+  if (!r.part || !r.split) return null;
+  const s = r.split;
+  const total = s.subjects.exploration + s.subjects.confirmation;
+  return `${r.part} part of split ${s.id} (${s.subjects[r.part]} of ${total} subjects)${r.blinded ? '; groups blinded, group sizes pooled' : ''}`;
+}

@@ -24,17 +24,23 @@ export function keepSubjects<T extends { subject: string }>(rows: readonly T[], 
   return view === null ? [...rows] : rows.filter((r) => view.subjects.has(r.subject));
 }
 
+/** The participants rows of the part's subjects, the blinded column coded. */
+export function partParticipants<R extends Record<string, string | number | boolean | null>>(rows: readonly R[], view: PartView | null): R[] {
+  if (view === null) return [...rows];
+  const own = rows.filter((p) => view.subjects.has(String(p.subject)));
+  return view.blinding ? blindRows(own, view.blinding) : own;
+}
+
 /** The contrast's rows restricted to the part, the blinded column coded; refuses real group names while blinded. */
 export function partData(c: Contrast, data: ContrastData, view: PartView | null): ContrastData {
   if (view === null) return data;
   requireCodedGroups(c, view.blinding);
-  const participants = data.participants.filter((p) => view.subjects.has(String(p.subject)));
   return {
     ...data,
     spectra: { ...data.spectra, rows: keepSubjects(data.spectra.rows, view) },
     aperiodic: keepSubjects(data.aperiodic, view),
     peaks: keepSubjects(data.peaks, view),
-    participants: view.blinding ? blindRows(participants, view.blinding) : participants,
+    participants: partParticipants(data.participants, view),
     recordedReferences: data.recordedReferences && keepSubjects(data.recordedReferences, view),
   };
 }

@@ -7,6 +7,8 @@ import type { Stage } from '../../core/stages.ts';
 import { listColumnRowsInto, numberColumn, stringColumn } from './arrow-rows.ts';
 import { participants, type CohortSchema, type RunInfo } from './queries.ts';
 import { COHORT, literal, resultBatches, type SqlClient } from './sql-client.ts';
+import { partData } from '../../core/confirmation/part-data.ts';
+import { workflowOf } from './workflow-queries.ts';
 
 /** The run a contrast reads: the most recent finished one, else the last one (as the command line). */
 export function chooseRun(runs: readonly RunInfo[]): RunInfo {
@@ -219,7 +221,7 @@ export async function loadContrastData(
   // all queries issued together (duckdb-wasm runs them one after another in its worker, without
   // waits between); rows joined with concat, not push(...rows), which overflows the call stack
   // at cohort size (10⁵ rows)
-  const [perStage, participantRows, recordedReferences] = await Promise.all([
+  const [perStage, participantRows, recordedReferences, { view }] = await Promise.all([
     Promise.all(
       stages.map((stage) => {
         const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
@@ -233,6 +235,7 @@ export async function loadContrastData(
     contrastParticipants(db, schema),
     // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)
     c.reference === 'recorded' ? contrastRecordedReferences(db, run.runId) : Promise.resolve(undefined),
+    workflowOf(db, schema),
   ]);
   let axis = { freqStartHz: 0, freqStepHz: 0, nBins: 0 };
   for (const [m] of perStage) {
@@ -248,6 +251,7 @@ export async function loadContrastData(
   if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
   return {
     runId: run.runId,
-    data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences },
+    // while a split exists, the exploration part only (groups coded while blinded)
+    data: partData(c, { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences }, view),
   };
 }

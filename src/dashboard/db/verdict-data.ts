@@ -11,6 +11,8 @@ import { numberColumn, stringColumn } from './arrow-rows.ts';
 import { chooseRun, contrastParticipants, contrastPeaks, contrastSpectra, loadContrastData } from './contrast-data.ts';
 import type { CohortSchema, RunInfo } from './queries.ts';
 import { COHORT, literal, type SqlClient } from './sql-client.ts';
+import { keepSubjects, partData } from '../../core/confirmation/part-data.ts';
+import { workflowOf } from './workflow-queries.ts';
 
 const sameRange = (a: readonly number[], b: readonly number[]) => a[0] === b[0] && a[1] === b[1];
 
@@ -58,7 +60,7 @@ export async function loadBandCheckData(db: SqlClient, schema: CohortSchema, run
   const ranges: [number, number][] = [];
   for (const stage of stages) {
     const q = { runId: loaded.runId, stage, reference: c.reference, averaging: c.averaging };
-    loaded.data.peaks.push(...(await contrastPeaks(db, q, c.aperiodicMethod)));
+    loaded.data.peaks.push(...keepSubjects(await contrastPeaks(db, q, c.aperiodicMethod), (await workflowOf(db, schema)).view));
     for (const r of await storedFitRanges(db, loaded.runId, stage, c.reference, c.averaging, c.aperiodicMethod)) {
       if (!ranges.some((x) => sameRange(x, r))) ranges.push(r);
     }
@@ -109,15 +111,17 @@ export async function loadPathDataSets(
   if (c.design === 'paired' && c.stages) throw new Error('a robustness run takes one stage; paired stages are not supported here (choose a groups or covariate design)');
   const run = chooseRun(runs);
   const people = await contrastParticipants(db, schema);
+  const { view } = await workflowOf(db, schema);
   const sets: PathDataSet[] = [];
   for (const { reference, averaging } of needs) {
     const q = { runId: run.runId, stage: c.stage, reference, averaging };
     const spectra = await contrastSpectra(db, q);
     if (spectra.rows.length === 0) throw new Error(`no ${c.stage} spectra with reference ${reference} and averaging ${averaging} in run ${run.runId}`);
     const ranges = await storedFitRanges(db, run.runId, c.stage, reference, averaging, c.aperiodicMethod);
-    const base = { spectra, peaks: [], participants: people, exclusions: [...exclusions] };
-    if (ranges.length === 0) sets.push({ reference, averaging, fitRangeHz: null, data: { ...base, aperiodic: [] } });
-    for (const r of ranges) sets.push({ reference, averaging, fitRangeHz: r, data: { ...base, aperiodic: await aperiodicInFitRange(db, q, c.aperiodicMethod, r) } });
+    // while a split exists, the exploration part only (groups coded while blinded)
+    const base = partData(c, { spectra, peaks: [], participants: people, exclusions: [...exclusions], aperiodic: [] }, view);
+    if (ranges.length === 0) sets.push({ reference, averaging, fitRangeHz: null, data: base });
+    for (const r of ranges) sets.push({ reference, averaging, fitRangeHz: r, data: { ...base, aperiodic: keepSubjects(await aperiodicInFitRange(db, q, c.aperiodicMethod, r), view) } });
   }
   return sets;
 }
