@@ -29,6 +29,6 @@ describe('hash routes', () => {
       expect(v.summary.length).toBeGreaterThan(10);
     }
     // the seven views of issues 6 and 7, all built
-    expect(VIEWS.filter((v) => v.ready).map((v) => v.id)).toEqual(['cohort', 'quality', 'spectra', 'contrast', 'band-check', 'robustness', 'report']);
+    expect(VIEWS.filter((v) => v.ready).map((v) => v.id)).toEqual(['cohort', 'quality', 'spectra', 'contrast', 'band-check', 'robustness', 'workflow', 'report']);
   });
 });
