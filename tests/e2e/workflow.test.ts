@@ -1,20 +1,22 @@
 // End to end in Debian's chromium on a copy of the demo database (18 controls, 18 patients) after
-// `bandwise split --blind` and `bandwise lock` and one confirmation, written by the command line's
+// `bandwise split --blind`, `bandwise lock` and `bandwise confirm`, run through the command line's
 // code: the "Split and plans" view shows the state (split, blinding, the plan and its confirmation)
 // and the command of each step; the quality screen keeps every subject; every analysis view reads
 // the exploration part and says so; and, blinded, no view
 // shows a real group name or a count per coded group: the text of every view visited
 // (document.body.textContent, hidden parts and figure labels included), the address, and the files
-// the views export (contrast JSON, band-check result JSON, methods Markdown). Fails on any console
-// error. Screenshots: test-output/e2e/{workflow,workflow-contrast}.png.
-import { copyFileSync, mkdirSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
+// the views export (contrast JSON, band-check result JSON, methods Markdown); the methods report
+// view reads the confirmation's result JSON. Fails on any console error. Screenshots: test-output/e2e/{workflow,workflow-contrast}.png.
+import { copyFileSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openStore } from '../../ingest/store/index.ts';
+import { confirmPlan } from '../../src/analysis/confirm-plan.ts';
+import type { CompareRun } from '../../src/analysis/compare-runner.ts';
 import { lockPlan } from '../../src/analysis/lock-plan.ts';
 import { makeSplit, type SplitOutcome } from '../../src/analysis/make-split.ts';
-import { insertConfirmation } from '../../src/analysis/split-store.ts';
+import { readConfirmations } from '../../src/analysis/split-store.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 import { countsIn, perGroupNumbers, realNames } from '../confirmation/leaks.ts';
@@ -31,16 +33,21 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
   let s: DashboardSession;
   let split: SplitOutcome;
   let planId: string;
+  let confirmation: CompareRun;
+  let confirmedAt: string;
 
   beforeAll(async () => {
     dir = mkdtempSync(path.join(os.tmpdir(), 'bandwise-e2e-workflow-'));
     const db = path.join(dir, 'cohort.duckdb');
     copyFileSync(await demoDatabase(), db);
     split = await makeSplit(db, { fraction: 0.5, seed: 11, stratify: ['group'], blindColumn: 'group', replace: false }, null);
-    planId = (await lockPlan(db, [parseContrast({ design: 'groups', groups: ['group A', 'group B'], stage: 'N2', measure: 'residual' })], [], undefined, null)).plan.id;
-    const store = await openStore(db);
+    planId = (await lockPlan(db, [parseContrast({ design: 'groups', groups: ['group A', 'group B'], stage: 'N2', measure: 'residual', permutations: 200 })], [], undefined, null)).plan.id;
+    // the confirmation as `bandwise confirm` runs it (200 permutations keep it short)
+    [confirmation] = await confirmPlan(db, planId, { ledger: path.join(dir, 'ledger.jsonl') });
+    writeFileSync(path.join(dir, 'confirmation.json'), JSON.stringify(confirmation));
+    const store = await openStore(db, { readOnly: true });
     try {
-      await insertConfirmation(store, planId, '2026-02-01T10:00:00.000Z');
+      confirmedAt = (await readConfirmations(store))[0].time;
     } finally {
       await store.close();
     }
@@ -71,11 +78,12 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     await page.getByTestId('plans').locator('tbody tr').first().waitFor();
     const row = await page.getByTestId('plans').locator('tbody tr').first().evaluate((tr) => Array.from(tr.querySelectorAll('td'), (td) => td.textContent?.trim() ?? ''));
     expect(row[0]).toBe(planId);
-    expect(row).toContain('2026-02-01T10:00:00.000Z');
+    expect(row).toContain(confirmedAt);
     expect(row[4]).toContain('group B − group A (group), N2, residual');
     const steps = await page.getByTestId('workflow-steps').innerText();
     expect(steps).toContain(`bandwise confirm cohort.duckdb --plan ${planId} --out confirmation.json`);
     expect(steps).toContain('bandwise lock cohort.duckdb --contrast contrast.json --exclusions exclusions.tsv');
+    expect(steps).toContain('load confirmation.json there');
     await blinded('workflow view');
     await page.screenshot({ path: path.join(OUTPUT, 'workflow.png'), fullPage: true });
   });
@@ -174,6 +182,24 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     for (const x of n) expect(x).toMatch(/^both groups \d+$/);
     expect(await page.getByTestId('result-part').innerText()).toContain('groups blinded, group sizes pooled');
     await blinded('robustness view');
+  });
+
+  it('the methods report view reads the confirmation result: the plan, its hash and lock time, the groups unblinded', async () => {
+    const { page } = s;
+    await page.goto(`${s.server.url}#/report`);
+    await page.getByTestId('report-view').waitFor({ timeout: 60_000 });
+    await page.getByTestId('load-result').setInputFiles(path.join(dir, 'confirmation.json'));
+    await page.getByTestId('methods-text').waitFor({ timeout: 60_000 });
+    const methods = await page.getByTestId('methods-text').innerText();
+    const p = confirmation.plan!;
+    expect(p).toMatchObject({ id: planId, confirmationRun: 1 });
+    expect(methods).toContain(`This is the confirmatory analysis of plan ${planId}, locked at ${p.lockedAt} (SHA-256 of the plan's canonical JSON: ${p.hash})`);
+    expect(methods).toContain('before this analysis of the confirmation part');
+    // the plan named the codes; the confirmation says which real group each was
+    const [a, b] = confirmation.contrast.groups!;
+    expect([a, b].sort()).toEqual(REAL);
+    expect(methods).toContain(`they were unblinded for this analysis: ${p.lockedContrast.groups![0]} is ${a} and ${p.lockedContrast.groups![1]} is ${b}`);
+    expect(methods).toContain('records no analysis that included confirmation-part subjects before the plan was locked');
   });
 
   it('no console error, no request off this machine', () => {

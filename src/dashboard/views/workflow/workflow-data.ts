@@ -71,7 +71,7 @@ export function workflowSteps(w: WorkflowState, db: string, seed: number): Workf
     },
     {
       title: '5. Report',
-      text: 'The methods text names the plan, its hash and lock time, and says whether the confirmation was the first and whether the confirmation part had been looked at before the lock.',
+      text: 'The methods text names the plan, its hash and lock time, and says whether the confirmation was the first and whether the confirmation part had been looked at before the lock. The Methods report view shows it too: load confirmation.json there.',
       command: 'bandwise report confirmation.json --out methods.md',
       done: false,
     },
