@@ -67,6 +67,8 @@ describe('the workflow in the dashboard (duckdb-wasm) on a blinded split', () =>
     expect(rows[0]).toMatchObject({ plan: planId, split: `${split.split.stamp.id} (current)`, confirmations: 1 });
     const steps = workflowSteps(w, 'cohort.duckdb', 20260203);
     expect(steps.map((s) => s.done)).toEqual([true, true, true, true, false]);
+    // the view adds " — done" after a done step's title; its text does not say it again
+    expect(steps.filter((s) => s.done).map((s) => s.text.startsWith('Done'))).toEqual([false, false, false, false]);
     expect(steps[3].command).toBe(`bandwise confirm cohort.duckdb --plan ${planId} --out confirmation.json`);
   });
 

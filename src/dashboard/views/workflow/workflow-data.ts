@@ -46,7 +46,7 @@ export function workflowSteps(w: WorkflowState, db: string, seed: number): Workf
     {
       title: '1. Split the subjects',
       text: w.split
-        ? 'Done. A second split is refused unless replaced knowingly (--replace); the command then lists what ran on the old one.'
+        ? 'A second split is refused unless replaced knowingly (--replace); the command then lists what ran on the old one.'
         : 'Draws the exploration and confirmation parts from a seed, stratified by group; --blind codes the groups while exploring.',
       command: w.split ? null : `bandwise split ${db} --fraction 0.5 --seed ${seed} --blind`,
       done: w.split !== null,
