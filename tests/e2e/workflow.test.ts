@@ -5,7 +5,8 @@
 // the exploration part and says so; and, blinded, no view
 // shows a real group name or a count per coded group: the text of every view visited
 // (document.body.textContent, hidden parts and figure labels included), the address, and the files
-// the views export (contrast JSON, band-check result JSON, methods Markdown); the methods report
+// the views export (contrast JSON, band-check result JSON, robustness curve JSON, methods Markdown and
+// parameters JSON); the methods report
 // view reads the confirmation's result JSON. Fails on any console error. Screenshots: test-output/e2e/{workflow,workflow-contrast}.png.
 import { copyFileSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
@@ -167,6 +168,11 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     const markdown = readFileSync(await md.path(), 'utf8');
     expect(realNames(markdown, REAL)).toEqual([]);
     expect(countsIn(markdown, CODES)).toEqual([]);
+    const [pj] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-parameters').click()]);
+    const parameters = JSON.parse(readFileSync(await pj.path(), 'utf8'));
+    expect(parameters.split).toMatchObject({ part: 'exploration', blinded: true });
+    expect(perGroupNumbers(parameters, CODES)).toEqual([]);
+    expect(realNames(JSON.stringify(parameters), REAL)).toEqual([]);
     await blinded('methods report view');
   });
 
@@ -182,6 +188,11 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     for (const x of n) expect(x).toMatch(/^both groups \d+$/);
     expect(await page.getByTestId('result-part').innerText()).toContain('groups blinded, group sizes pooled');
     await blinded('robustness view');
+    const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId('save-robustness').click()]);
+    const curve = JSON.parse(readFileSync(await dl.path(), 'utf8'));
+    expect(curve.paths.length).toBeGreaterThanOrEqual(n.length);
+    expect(perGroupNumbers(curve, CODES)).toEqual([]);
+    expect(realNames(JSON.stringify(curve), REAL)).toEqual([]);
   });
 
   it('the methods report view reads the confirmation result: the plan, its hash and lock time, the groups unblinded', async () => {
