@@ -9,7 +9,6 @@
  * and a half-written transaction is never committed) writes only what is missing.
  */
 import { selectShard, type ShardSpec } from './cohort/shard.ts';
-import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { discoverCohort } from './cohort/discover.ts';
 import type { CohortRecording } from './cohort/types.ts';
@@ -20,6 +19,8 @@ import { DiskFullError, isDiskFull } from './store/errors.ts';
 import { cohortQualityPass } from './store/merge.ts';
 import { runIdentity } from './store/identity.ts';
 import { sortSpectra } from './store/spectra-order.ts';
+// as a module, so the build copies the version into dist/ (no path from ingest/ to it holds there)
+import { version } from '../package.json';
 
 export type { ShardSpec as Shard } from './cohort/shard.ts';
 
@@ -51,12 +52,14 @@ export interface IngestSummary {
   failed: IngestFailure[];
   /** Rows written by the cohort-level quality pass (robust distance from the cohort median). */
   cohortQualityRows: number;
+  /** Rows of the warnings table for this run (its recordings stored now or earlier). */
+  warnings: number;
 }
 
 export { parseShard } from './cohort/shard.ts';
 
 function packageVersion(): string {
-  return (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
+  return version;
 }
 
 export async function runIngest(
@@ -83,7 +86,7 @@ export async function runIngest(
   // their first recordings while the store opens: each hashes its file, then waits for the store
   // to say whether that recording is stored already
   const runId = runIdentity(params).runId;
-  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0 };
+  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0, warnings: 0 };
   const opened = openStore(outDb, { create: true });
   const ready = opened.then(async (store) => {
     const begun = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.k}/${shard.n}` : null });
@@ -164,6 +167,7 @@ export async function runIngest(
       // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
       summary.cohortQualityRows = await cohortQualityPass(store);
       await sortSpectra(store); // rows of this and earlier runs in (stage, reference, averaging, recording, channel) order
+      summary.warnings = await store.warningCount(runId);
       await store.finishRun(runId);
     } catch (e) {
       throw isDiskFull(e) ? diskFull(e, 'finishing the run (cohort quality pass, spectra order, checkpoint)') : e;

@@ -11,8 +11,11 @@ import { BlindingError, requireCodedGroups, unblindContrast } from '../core/conf
 import { planId, type PlanContent, type StoredPlan } from '../core/confirmation/plan.ts';
 import { SplitError } from '../core/confirmation/split.ts';
 import type { LooksBeforeLock } from '../core/confirmation/stamp.ts';
-import { chooseRun } from './compare-runner.ts';
-import { readParticipants } from './store-read.ts';
+import type { Row } from '../queries/client.ts';
+import { participants } from '../queries/cohort.ts';
+import { chooseRun, runs } from '../queries/runs.ts';
+import { cohortSchema } from '../queries/schema.ts';
+import { storeClient } from './store-client.ts';
 import { ensureSplitTables, insertPlan, readCurrentSplit, readPlan, type StoredSplit } from './split-store.ts';
 import { appendLedger } from './ledger.ts';
 import { looksAtConfirmation } from './confirm-history.ts';
@@ -31,9 +34,9 @@ export function splitBlinding(split: StoredSplit) {
 }
 
 /** Each contrast must name participants columns and groups the database holds (groups of a blinded split by their codes, as while exploring). */
-function checkContrasts(contrasts: readonly Contrast[], table: { columns: { name: string }[]; rows: (string | number | null)[][] }, split: StoredSplit): void {
+function checkContrasts(contrasts: readonly Contrast[], table: { columns: { name: string }[]; rows: Row[] }, split: StoredSplit): void {
   const names = table.columns.map((c) => c.name);
-  const values = (col: string) => new Set(table.rows.map((r) => r[names.indexOf(col)]).filter((v) => v !== null).map(String));
+  const values = (col: string) => new Set(table.rows.map((r) => r[col]).filter((v) => v !== null).map(String));
   contrasts.forEach((c, i) => {
     const where = `contrast ${i + 1}`;
     const used = [...(c.design === 'groups' ? [c.groupColumn] : []), ...(c.design === 'covariate' ? [c.covariate!] : []), ...c.nuisance];
@@ -54,8 +57,10 @@ export async function lockPlan(dbPath: string, contrasts: Contrast[], exclusions
   try {
     const split = await readCurrentSplit(store);
     if (split === null) throw new SplitError('the database holds no split: make one first (bandwise split), then lock the plan you explored on its exploration part');
-    const run = await chooseRun(store, runId);
-    checkContrasts(contrasts, await readParticipants(store), split);
+    const db = storeClient(store);
+    const schema = await cohortSchema(db);
+    const run = chooseRun(await runs(db), runId);
+    checkContrasts(contrasts, await participants(db, schema), split);
     const s = split.stamp;
     const content: PlanContent = { format: 1, runId: run.runId, contrasts, exclusions, split: { id: s.id, seed: s.seed, fraction: s.fraction, stratify: s.stratify, blindColumn: s.blindColumn } };
     const canonical = canonicalJson(content);

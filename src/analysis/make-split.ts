@@ -9,7 +9,9 @@ import { canonicalJson, sha256Hex } from '../../ingest/store/identity.ts';
 import { drawGroupCodes, labelsTellGroups } from '../core/confirmation/blinding.ts';
 import { drawSplit, stratumOf, SplitError, checkSplitSettings, type Part, type SplitSettings } from '../core/confirmation/split.ts';
 import type { StoredPlan } from '../core/confirmation/plan.ts';
-import { readParticipants } from './store-read.ts';
+import { participants } from '../queries/cohort.ts';
+import { cohortSchema, groupingColumns } from '../queries/schema.ts';
+import { storeClient } from './store-client.ts';
 import { ensureSplitTables, readConfirmations, readCurrentSplit, readPlans, writeSplit, type StoredSplit } from './split-store.ts';
 import { appendLedger, readLedger } from './ledger.ts';
 
@@ -43,10 +45,13 @@ export interface SplitOutcome {
 
 /** The database's participants as rows keyed by column, with the names of the text columns. */
 async function participantRows(store: Store): Promise<{ rows: Record<string, string | number | null>[]; columns: string[]; text: string[] }> {
-  const t = await readParticipants(store);
+  const db = storeClient(store);
+  const schema = await cohortSchema(db);
+  const t = schema.has('participants', 'subject') ? await participants(db, schema) : { columns: [], rows: [] };
   if (t.rows.length === 0) throw new SplitError('the database has no participants table (or it is empty): a split needs the subjects');
-  const columns = t.columns.map((c) => c.name);
-  return { rows: t.rows.map((r) => Object.fromEntries(columns.map((c, i) => [c, r[i]]))), columns, text: t.columns.filter((c) => c.type === 'VARCHAR').map((c) => c.name) };
+  // booleans as their text, as the contrasts read them
+  const rows = t.rows.map((r) => Object.fromEntries(Object.entries(r).map(([k, v]) => [k, typeof v === 'boolean' ? String(v) : v])));
+  return { rows, columns: t.columns.map((c) => c.name), text: groupingColumns(schema) };
 }
 
 function replacedSummary(old: StoredSplit, plans: StoredPlan[], confirmations: { planId: string }[], ledgerFile: string | null, dbName: string): ReplacedSplit {

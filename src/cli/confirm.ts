@@ -38,7 +38,6 @@ function summary(r: CompareRun): string {
 export function register(program: Command): void {
   program
     .command('confirm')
-    .summary('run a locked plan once on the held-out confirmation part, unblinded')
     .description(
       'Runs the contrasts of a locked plan (`bandwise lock`) on the confirmation part of its split with the plan\'s run and ' +
         'exclusions; groups named by their codes are unblinded. Writes the compare result JSON of each contrast with "part" ' +

@@ -25,7 +25,6 @@ const collect = (v: string, prev: string[] = []) => [...prev, v];
 export function register(program: Command): void {
   program
     .command('lock')
-    .summary('fix the analysis plan (contrasts, run, exclusions, split) before the confirmation part is analysed')
     .description(
       'Stores an analysis plan in the database (table analysis_plans) and the ledger: the contrasts (contrast JSON files, ' +
         'defaults filled in), the ingest run, the exclusions and the current split, with the SHA-256 of its canonical JSON ' +

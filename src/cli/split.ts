@@ -6,8 +6,8 @@
  */
 import { Command, InvalidArgumentError } from 'commander';
 import { makeSplit, type SplitOutcome } from '../analysis/make-split.ts';
-import { readParticipants } from '../analysis/store-read.ts';
-import { openStore } from '../../ingest/store/index.ts';
+import { withDatabase } from '../analysis/store-client.ts';
+import { cohortSchema } from '../queries/schema.ts';
 import { reportWorkflowError } from './workflow-errors.ts';
 
 interface SplitFlags {
@@ -33,12 +33,7 @@ const seed = (v: string) => {
 /** The stratifying columns: as given, none for "none", else group when participants has it. */
 async function stratifyColumns(database: string, given: string | undefined): Promise<string[]> {
   if (given !== undefined) return given.trim().toLowerCase() === 'none' ? [] : given.split(',').map((s) => s.trim()).filter(Boolean);
-  const store = await openStore(database, { readOnly: true });
-  try {
-    return (await readParticipants(store)).columns.some((c) => c.name === 'group') ? ['group'] : [];
-  } finally {
-    await store.close();
-  }
+  return withDatabase(database, async (db) => ((await cohortSchema(db)).has('participants', 'group') ? ['group'] : []));
 }
 
 function strataLine(columns: string[], key: string, s: { exploration: number; confirmation: number }): string {
@@ -71,7 +66,6 @@ function print(o: SplitOutcome): void {
 export function register(program: Command): void {
   program
     .command('split')
-    .summary('split the subjects into an exploration part and a held-out confirmation part (optionally blinded)')
     .description(
       'Draws a split of the subjects (participants table) into an exploration part and a confirmation part from a seed, ' +
         'stratified by participants columns: each stratum enters the exploration part in the given fraction, within one subject. ' +
@@ -82,7 +76,7 @@ export function register(program: Command): void {
         'A second split is refused unless --replace is given. The split is stored in the database (table subject_split) and the ledger.',
     )
     .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
-    .option('--fraction <f>', 'share of each stratum in the exploration part, between 0 and 1 (default 0.5)', fraction, 0.5)
+    .option('--fraction <f>', 'share of each stratum in the exploration part, between 0 and 1', fraction, 0.5)
     .requiredOption('--seed <n>', 'seed of the draw (and of the group codes), a whole number from 0 to 2147483647', seed)
     .option('--stratify <columns>', 'participants columns to stratify by, comma-separated, or none (default: group, when the table has it)')
     .option('--blind [column]', 'code the groups of this participants column while exploring (default column: group)')

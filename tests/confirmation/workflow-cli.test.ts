@@ -27,7 +27,7 @@ const CODES = ['group A', 'group B'];
 /** Every output of the session so far: what each command printed, and the files it wrote. */
 const printed: { command: string; text: string }[] = [];
 function cli(args: string[]): { status: number | null; stdout: string; stderr: string } {
-  const r = spawnSync(process.execPath, [path.join(repo, 'bin/bandwise.mjs'), ...args], { encoding: 'utf8', cwd: dir });
+  const r = spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8', cwd: dir });
   printed.push({ command: args.join(' '), text: r.stdout + r.stderr });
   return r;
 }

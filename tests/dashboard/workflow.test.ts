@@ -2,23 +2,24 @@
 // engine), on the fixture database after `split --blind` and `lock` and one confirmation written by
 // the command line's code (@duckdb/node-api): the state it reads equals what the command line
 // stored; every loader the views use (contrast rows, band check and robustness rows, spectra, form
-// choices, cohort) sees the exploration part only, with the groups coded, row for row as the command
-// line's loader; the cohort view leaves the blinded column out and adds each subject's part.
+// choices, cohort) sees the exploration part only, with the groups coded, row for row as over the
+// command line's client; the cohort view leaves the blinded column out and adds each subject's part.
 import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openStore } from '../../ingest/store/index.ts';
-import { loadContrastData as loadCli } from '../../src/analysis/compare-runner.ts';
+import { withDatabase } from '../../src/analysis/store-client.ts';
 import { lockPlan } from '../../src/analysis/lock-plan.ts';
 import { makeSplit, type SplitOutcome } from '../../src/analysis/make-split.ts';
 import { insertConfirmation, readCurrentSplit } from '../../src/analysis/split-store.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { loadChoices } from '../../src/dashboard/analysis/form-choices.ts';
-import { loadContrastData } from '../../src/dashboard/db/contrast-data.ts';
-import { cohortSchema, CohortSchema, runs } from '../../src/dashboard/db/queries.ts';
-import { loadPathDataSets } from '../../src/dashboard/db/verdict-data.ts';
-import { readWorkflow, workflowOf } from '../../src/dashboard/db/workflow-queries.ts';
+import { loadPathDataSets } from '../../src/queries/band-check-data.ts';
+import { loadContrastData } from '../../src/queries/contrast-data.ts';
+import { runs } from '../../src/queries/runs.ts';
+import { cohortSchema, CohortSchema } from '../../src/queries/schema.ts';
+import { readWorkflow, workflowOf } from '../../src/queries/workflow.ts';
 import { chooseGroupColumn, loadCohort } from '../../src/dashboard/views/cohort/cohort-data.ts';
 import { loadSpectraRows } from '../../src/dashboard/views/spectra/spectra-data.ts';
 import { planRows, workflowSteps } from '../../src/dashboard/views/workflow/workflow-data.ts';
@@ -78,13 +79,12 @@ describe('the workflow in the dashboard (duckdb-wasm) on a blinded split', () =>
     expect([w.split, w.view, w.plans]).toEqual([null, null, []]);
   });
 
-  it('contrast rows: the exploration part, coded, row for row as the command line reads them; real group names refused', async () => {
+  it('contrast rows: the exploration part, coded, row for row as the command line\'s client reads them; real group names refused; the confirmation part unblinded', async () => {
     const c = parseContrast({ design: 'groups', groups: ['group A', 'group B'], stage: 'N2', fminHz: 1, fmaxHz: 20 });
     const ours = await loadContrastData(client, schema, await runs(client), c, []);
+    const theirs = await withDatabase(file, async (db) => loadContrastData(db, await cohortSchema(db), await runs(db), c, []));
     const store = await openStore(file, { readOnly: true });
-    let theirs;
     try {
-      theirs = await loadCli(store, c, []);
       expect((await readCurrentSplit(store))!.stamp.id).toBe(split.split.stamp.id);
     } finally {
       await store.close();
@@ -95,6 +95,10 @@ describe('the workflow in the dashboard (duckdb-wasm) on a blinded split', () =>
     expect(ours.data.participants.map((p) => [p.subject, p.group])).toEqual(theirs.data.participants.map((p) => [p.subject, p.group]));
     expect(new Set(ours.data.participants.map((p) => p.group))).toEqual(new Set(['group A', 'group B']));
     await expect(loadContrastData(client, schema, await runs(client), parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2' }), [])).rejects.toThrow('are blinded while exploring');
+    const held = await loadContrastData(client, schema, await runs(client), parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2' }), [], { part: 'confirmation' });
+    expect(held.view).toMatchObject({ part: 'confirmation', blinding: null });
+    expect(new Set(held.data.spectra.rows.map((r) => r.subject))).toEqual(new Set([...split.split.parts].filter(([, p]) => p === 'confirmation').map(([s]) => s)));
+    expect(new Set(held.data.participants.map((p) => p.group))).toEqual(new Set(['control', 'patient']));
   });
 
   it('robustness and spectra rows, and the form\'s group values: the exploration part, coded', async () => {

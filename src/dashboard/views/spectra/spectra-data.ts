@@ -7,12 +7,15 @@ import { parseContrast, type Contrast } from '../../../core/contrast/spec.ts';
 import { aperiodicLog10 } from '../../../core/spectrum/aperiodic-model.ts';
 import { bandPower, type Band } from '../../../core/spectrum/bands.ts';
 import type { Stage } from '../../../core/stages.ts';
-import { chooseRun, contrastAperiodic, contrastParticipants, contrastSpectra } from '../../db/contrast-data.ts';
-import type { CohortSchema, RunInfo } from '../../db/queries.ts';
-import type { SqlClient } from '../../db/sql-client.ts';
+import type { SqlClient } from '../../../queries/client.ts';
+import { contrastParticipants } from '../../../queries/contrast-data.ts';
+import { aperiodicRows } from '../../../queries/fits.ts';
+import { chooseRun, type RunInfo } from '../../../queries/runs.ts';
+import type { CohortSchema } from '../../../queries/schema.ts';
+import { spectraRows } from '../../../queries/spectra.ts';
 import { meanWithInterval, type MeanBand } from './group-mean.ts';
 import { keepSubjects, partParticipants } from '../../../core/confirmation/part-data.ts';
-import { workflowOf } from '../../db/workflow-queries.ts';
+import { workflowOf } from '../../../queries/workflow.ts';
 
 /** What the y axis shows. */
 export type SpectrumMeasure = 'absolute' | 'log10' | 'relative' | 'residual';
@@ -46,7 +49,7 @@ export async function loadSpectraRows(
   const run = chooseRun(runs);
   const q = { runId: run.runId, ...sel };
   // issued together: duckdb-wasm runs them one after another in its worker, without waits between
-  const [s, aperiodic, participants, { view }] = await Promise.all([contrastSpectra(db, q), contrastAperiodic(db, q, 'fit'), contrastParticipants(db, schema), workflowOf(db, schema)]);
+  const [s, aperiodic, participants, { view }] = await Promise.all([spectraRows(db, q), aperiodicRows(db, q, 'fit'), contrastParticipants(db, schema), workflowOf(db, schema)]);
   performance.mark('bandwise:spectra-rows');
   // while a split exists, the exploration part's subjects only (groups coded while blinded)
   const rows = keepSubjects(s.rows, view);

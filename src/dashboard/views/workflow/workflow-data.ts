@@ -2,8 +2,8 @@
 // with the command that does it (the dashboard reads the database read-only; the steps that
 // write — split, lock, confirm — run from the command line).
 import type { Contrast } from '../../../core/contrast/spec.ts';
-import type { Row } from '../../db/arrow-rows.ts';
-import type { WorkflowState } from '../../db/workflow-queries.ts';
+import type { Row } from '../../../queries/client.ts';
+import type { WorkflowState } from '../../../queries/workflow.ts';
 
 /** A contrast in a few words: what is compared, where, on which measure. */
 export function contrastSummary(c: Contrast): string {

@@ -1,15 +1,15 @@
-// The exploration/confirmation workflow as the dashboard reads it (tables subject_split,
+// The exploration/confirmation workflow as the analyses read it (tables subject_split,
 // analysis_plans, plan_confirmations; src/analysis/split-store.ts writes them): the current split,
-// the exploration part every analysis reads (with the group codes while blinded), and the plans
-// with their confirmations. Read once per opened database.
-import type { Contrast } from '../../core/contrast/spec.ts';
-import type { PartView } from '../../core/confirmation/part-data.ts';
-import type { PlanContent } from '../../core/confirmation/plan.ts';
-import type { Part } from '../../core/confirmation/split.ts';
-import type { SplitStamp } from '../../core/confirmation/stamp.ts';
-import { tableToRows } from './arrow-rows.ts';
-import type { CohortSchema } from './queries.ts';
-import { COHORT, type SqlClient } from './sql-client.ts';
+// the part of it an analysis reads (the exploration part, with the group codes while blinded; the
+// confirmation part for a confirmation), and the plans with their confirmations. Read once per
+// opened database.
+import type { Contrast } from '../core/contrast/spec.ts';
+import type { PartView } from '../core/confirmation/part-data.ts';
+import type { PlanContent } from '../core/confirmation/plan.ts';
+import type { Part } from '../core/confirmation/split.ts';
+import type { SplitStamp } from '../core/confirmation/stamp.ts';
+import { COHORT, rowsOf, type SqlClient } from './client.ts';
+import type { CohortSchema } from './schema.ts';
 
 export interface PlanSummary {
   id: string;
@@ -42,12 +42,12 @@ const ISO = (col: string) => `strftime(${col}, '%Y-%m-%dT%H:%M:%S.%gZ') AS ${col
 export async function readWorkflow(db: SqlClient, schema: CohortSchema): Promise<WorkflowState> {
   if (!schema.has('subject_split', 'split_id', 'group_codes') || !schema.has('analysis_plans', 'plan') || !schema.has('plan_confirmations', 'plan_id')) return NO_WORKFLOW;
   const [splitRows, earlier, planRows, confirmationRows] = await Promise.all([
-    db.query(`SELECT split_id, subject, part, seed, fraction, stratify::VARCHAR AS stratify, blind_column, group_codes::VARCHAR AS group_codes, ${ISO('made_at')}
+    db.query(`SELECT split_id, subject, part, seed::DOUBLE AS seed, fraction, stratify::VARCHAR AS stratify, blind_column, group_codes::VARCHAR AS group_codes, ${ISO('made_at')}
               FROM ${COHORT}.subject_split WHERE replaced_at IS NULL ORDER BY subject`),
     db.query(`SELECT count(DISTINCT split_id)::DOUBLE AS n FROM ${COHORT}.subject_split WHERE replaced_at IS NOT NULL`),
     db.query(`SELECT plan_id, sha256, ${ISO('locked_at')}, split_id, run_id, plan::VARCHAR AS plan FROM ${COHORT}.analysis_plans ORDER BY locked_at, plan_id`),
     db.query(`SELECT plan_id, confirmation_run::DOUBLE AS run, ${ISO('confirmed_at')} FROM ${COHORT}.plan_confirmations ORDER BY plan_id, confirmation_run`),
-  ]).then((ts) => ts.map(tableToRows));
+  ]).then((ts) => ts.map(rowsOf));
   const confirmations = confirmationRows.map((r) => ({ planId: String(r.plan_id), run: Number(r.run), time: String(r.confirmed_at) }));
   const plans: PlanSummary[] = planRows.map((r) => {
     const content = JSON.parse(String(r.plan)) as PlanContent;
@@ -98,4 +98,11 @@ export function workflowOf(db: SqlClient, schema: CohortSchema): Promise<Workflo
     cache.set(db, w);
   }
   return w;
+}
+
+/** The part of the current split an analysis reads (null: no split, every subject); only the exploration part is blinded. */
+export function partViewOf(w: WorkflowState, part: Part): PartView | null {
+  if (w.view === null || part === 'exploration') return w.view;
+  const subjects = new Set([...w.parts].filter(([, p]) => p === part).map(([s]) => s));
+  return { split: w.view.split, part, subjects, blinding: null };
 }
