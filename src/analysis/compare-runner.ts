@@ -28,6 +28,11 @@ export interface CompareOptions {
   part?: Part;
 }
 
+/** What a contrast reads from a database file (src/queries/contrast-data.ts over Node's DuckDB), the file closed after. */
+export function readContrast(dbPath: string, c: Contrast, exclusions: readonly Exclusion[], options: { runId?: string; maxHz?: number; part?: Part } = {}): Promise<LoadedContrast> {
+  return withDatabase(dbPath, async (db) => loadContrastData(db, await cohortSchema(db), await runs(db), c, exclusions, options));
+}
+
 /**
  * The run's identity, the assembled contrast and the threads for its permutations (with more
  * than one, the assembly's matrices are in shared memory); the rows read and the unshared
@@ -36,7 +41,7 @@ export interface CompareOptions {
  * highest frequency the measure uses (contrastMaxHz).
  */
 async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId: string | undefined, threads: number | undefined, part: Part | undefined): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
-  const loaded = await withDatabase(dbPath, async (db) => loadContrastData(db, await cohortSchema(db), await runs(db), c, exclusions, { runId, maxHz: contrastMaxHz(c), part }));
+  const loaded = await readContrast(dbPath, c, exclusions, { runId, maxHz: contrastMaxHz(c), part });
   const { data, ...info } = loaded;
   const assembled = assembleContrast(c, data);
   const n = threads ?? defaultThreads(assembled, c.permutations);

@@ -48,6 +48,18 @@ export const VIEWS: readonly ViewInfo[] = [
     summary: 'The exploration/confirmation split (blinded or not), the locked analysis plans and their confirmations, and the command of each step.',
     ready: true,
   },
+  {
+    id: 'power',
+    label: 'Power',
+    summary: 'The power of a whole contrast by simulation from a reference group\'s own spectra, as a curve over subjects per group with intervals.',
+    ready: true,
+  },
+  {
+    id: 'deviation',
+    label: 'Deviation',
+    summary: 'Every subject scored against a reference group per channel and frequency: a map per subject, its spectrum against the reference band, shares per group.',
+    ready: true,
+  },
   { id: 'report', label: 'Methods report', summary: 'Every spectral and statistical parameter written out as methods text.', ready: true },
 ];
 
