@@ -256,6 +256,55 @@ export const TABLES: readonly TableDef[] = [
   },
 ];
 
+/**
+ * Optional tables of the exploration/confirmation workflow (docs/design.md, "Optional"): made by
+ * `bandwise split`, `lock` and `confirm` when first used, never by ingest (src/analysis/split-store.ts).
+ */
+export const CONFIRMATION_TABLES: readonly TableDef[] = [
+  {
+    name: 'subject_split',
+    doc: 'The exploration/confirmation split of the subjects, one row per subject and split; the current split is the one not replaced.',
+    primaryKey: ['split_id', 'subject'],
+    columns: [
+      col('split_id', 'VARCHAR', 'first 12 hex digits of the SHA-256 of the split (settings, time, parts)', true),
+      col('subject', 'VARCHAR', 'participants.subject', true),
+      col('part', 'VARCHAR', 'exploration or confirmation', true),
+      col('seed', 'INTEGER', 'seed of the draw', true),
+      col('fraction', 'DOUBLE', 'share of each stratum in the exploration part', true),
+      col('stratify', 'JSON', 'participants columns the split is stratified by (list)', true),
+      col('blind_column', 'VARCHAR', 'participants column whose values are coded while exploring, NULL when not blinded'),
+      col('group_codes', 'JSON', 'code of each value of blind_column ("group A", …), drawn from the seed; NULL when not blinded'),
+      col('made_at', 'TIMESTAMP', 'UTC time the split was made', true),
+      col('replaced_at', 'TIMESTAMP', 'UTC time a new split replaced it, NULL for the current split'),
+    ],
+  },
+  {
+    name: 'analysis_plans',
+    doc: 'Locked analysis plans: contrasts, ingest run, exclusions and split, fixed before the confirmation part is analysed. Never changed.',
+    primaryKey: ['plan_id'],
+    columns: [
+      col('plan_id', 'VARCHAR', 'first 12 hex digits of sha256', true),
+      col('sha256', 'VARCHAR', 'SHA-256 (hex) of plan', true),
+      col('locked_at', 'TIMESTAMP', 'UTC time the plan was locked', true),
+      col('split_id', 'VARCHAR', 'subject_split.split_id of the split the plan was locked on', true),
+      col('run_id', 'VARCHAR', 'runs.run_id the plan reads', true),
+      col('contrasts', 'JSON', 'the contrast JSONs (defaults filled in), as locked', true),
+      col('exclusions', 'JSON', 'the exclusions (subject, channel, reason), as locked', true),
+      col('plan', 'JSON', 'the canonical plan JSON (keys sorted) the hash is of', true),
+    ],
+  },
+  {
+    name: 'plan_confirmations',
+    doc: 'Each run of a plan on the confirmation part, numbered per plan.',
+    primaryKey: ['plan_id', 'confirmation_run'],
+    columns: [
+      col('plan_id', 'VARCHAR', 'analysis_plans.plan_id', true),
+      col('confirmation_run', 'INTEGER', '1 for the first confirmation of the plan, 2 for the next, …', true),
+      col('confirmed_at', 'TIMESTAMP', 'UTC time of the confirmation', true),
+    ],
+  },
+];
+
 /** All table names of the database, participants included. */
 export const TABLE_NAMES: readonly string[] = [...TABLES.map((t) => t.name), 'participants'];
 

@@ -10,13 +10,15 @@ import { loadBandCheckData } from '../queries/band-check-data.ts';
 import { runs } from '../queries/runs.ts';
 import { cohortSchema } from '../queries/schema.ts';
 import { withDatabase } from './store-client.ts';
+import { bandCheckOnPart } from '../core/confirmation/part-result.ts';
+import type { PartFields } from '../core/confirmation/stamp.ts';
 
-export interface BandCheckRun extends BandCheckResult {
+export interface BandCheckRun extends BandCheckResult, PartFields {
   database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown };
 }
 
 export async function bandCheckDatabase(dbPath: string, c: Contrast, band: Band, exclusions: Exclusion[], options: Omit<BandCheckOptions, 'fitRangeHz'> = {}, runId?: string): Promise<BandCheckRun> {
   const loaded = await withDatabase(dbPath, async (db) => loadBandCheckData(db, await cohortSchema(db), await runs(db), c, exclusions, runId));
   const result = bandCheck(c, band, loaded.data, { ...options, fitRangeHz: loaded.fitRangeHz });
-  return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } };
+  return bandCheckOnPart({ ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } }, loaded.view);
 }

@@ -13,18 +13,23 @@ import { runs } from '../queries/runs.ts';
 import { cohortSchema } from '../queries/schema.ts';
 import { compareOnThreads, defaultThreads, sharedAssembly } from './compare-threads.ts';
 import { withDatabase } from './store-client.ts';
+import { compareOnPart } from '../core/confirmation/part-result.ts';
+import type { Part } from '../core/confirmation/split.ts';
+import type { PartFields } from '../core/confirmation/stamp.ts';
 
-export interface CompareRun extends CompareResult {
+export interface CompareRun extends CompareResult, PartFields {
   database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown };
 }
 
 export interface CompareOptions {
   /** threads for the permutations (default: the machine's cores for a large contrast, else 1; see compare-threads.ts) */
   threads?: number;
+  /** the part of the split to read (default exploration; a split's confirmation part only for bandwise confirm) */
+  part?: Part;
 }
 
 /** What a contrast reads from a database file (src/queries/contrast-data.ts over Node's DuckDB), the file closed after. */
-export function readContrast(dbPath: string, c: Contrast, exclusions: readonly Exclusion[], options: { runId?: string; maxHz?: number } = {}): Promise<LoadedContrast> {
+export function readContrast(dbPath: string, c: Contrast, exclusions: readonly Exclusion[], options: { runId?: string; maxHz?: number; part?: Part } = {}): Promise<LoadedContrast> {
   return withDatabase(dbPath, async (db) => loadContrastData(db, await cohortSchema(db), await runs(db), c, exclusions, options));
 }
 
@@ -35,8 +40,8 @@ export function readContrast(dbPath: string, c: Contrast, exclusions: readonly E
  * DuckDB's cached pages are not held during them; the power lists are read only up to the
  * highest frequency the measure uses (contrastMaxHz).
  */
-async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId: string | undefined, threads: number | undefined): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
-  const loaded = await readContrast(dbPath, c, exclusions, { runId, maxHz: contrastMaxHz(c) });
+async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId: string | undefined, threads: number | undefined, part: Part | undefined): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
+  const loaded = await readContrast(dbPath, c, exclusions, { runId, maxHz: contrastMaxHz(c), part });
   const { data, ...info } = loaded;
   const assembled = assembleContrast(c, data);
   const n = threads ?? defaultThreads(assembled, c.permutations);
@@ -50,7 +55,7 @@ async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[
  */
 export async function compareDatabase(dbPath: string, c: Contrast, exclusions: Exclusion[], onProgress?: ProgressCallback, runId?: string, options: CompareOptions = {}): Promise<CompareRun> {
   if (options.threads !== undefined && !(Number.isInteger(options.threads) && options.threads >= 1)) throw new RangeError(`invalid number of threads: ${options.threads}`);
-  const { info, assembled, threads } = await loadAssembled(dbPath, c, exclusions, runId, options.threads);
+  const { info, assembled, threads } = await loadAssembled(dbPath, c, exclusions, runId, options.threads, options.part);
   const result = await compareOnThreads(c, assembled, threads, onProgress);
-  return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters } };
+  return compareOnPart({ ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters } }, info.view);
 }

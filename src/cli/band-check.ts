@@ -46,6 +46,7 @@ export function register(program: Command): void {
     const { bandCheckDatabase } = await import('../analysis/band-check-runner.ts');
     const { appendLedger } = await import('../analysis/ledger.ts');
     const { reportUserError } = await import('./user-errors.ts');
+    const { partLine } = await import('../core/confirmation/methods-text.ts');
     const band = inputOrExit(() => parseBand(flags.band));
     if (!band) return;
     const contrast = contrastOrExit({ ...flags, band: undefined });
@@ -75,9 +76,11 @@ export function register(program: Command): void {
     bar?.stop();
     writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
     // the ledger records the band with the contrast
-    if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p });
+    if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p, part: result.part, split: result.split });
     console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}${result.periodicKind ? ` (${result.periodicKind})` : ''}`);
     console.log(result.sentence);
+    const part = partLine(result);
+    if (part) console.log(part);
     console.log(`wrote ${flags.out}`);
   });
 }

@@ -60,6 +60,7 @@ export function register(program: Command): void {
       const { compareDatabase } = await import('../analysis/compare-runner.ts');
       const { appendLedger } = await import('../analysis/ledger.ts');
       const { reportUserError } = await import('./user-errors.ts');
+      const { partLine } = await import('../core/confirmation/methods-text.ts');
       const contrast = contrastOrExit(flags);
       if (!contrast) return;
       const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
@@ -89,6 +90,8 @@ export function register(program: Command): void {
       const best = result.clusters[0];
       console.log(`${result.measure}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${best.sign > 0 ? '+' : '−'}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
       for (const note of result.notes) console.log(note);
+      const part = partLine(result);
+      if (part) console.log(part);
       console.log(`wrote ${flags.out}`);
     });
 }

@@ -43,6 +43,12 @@ export const VIEWS: readonly ViewInfo[] = [
     ready: true,
   },
   {
+    id: 'workflow',
+    label: 'Split and plans',
+    summary: 'The exploration/confirmation split (blinded or not), the locked analysis plans and their confirmations, and the command of each step.',
+    ready: true,
+  },
+  {
     id: 'power',
     label: 'Power',
     summary: 'The power of a whole contrast by simulation from a reference group\'s own spectra, as a curve over subjects per group with intervals.',

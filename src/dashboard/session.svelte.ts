@@ -3,6 +3,7 @@ import { openPickedFile, openServedDatabase, preloadEngine, type CohortConnectio
 import type { ReportableResult } from '../core/report/index.ts';
 import { runs, type RunInfo } from '../queries/runs.ts';
 import { cohortSchema, type CohortSchema } from '../queries/schema.ts';
+import { NO_WORKFLOW, workflowOf, type WorkflowState } from '../queries/workflow.ts';
 
 /** Where the dashboard server puts the database, relative to the app (src/server/serve.ts). */
 export const SERVED_DATABASE = 'data/cohort.duckdb';
@@ -15,6 +16,8 @@ export class Session {
   db: CohortConnection | null = $state.raw(null);
   schema: CohortSchema | null = $state.raw(null);
   runs: RunInfo[] = $state.raw([]);
+  /** the split, its exploration part (groups coded while blinded) and the plans; read before any view shows */
+  workflow: WorkflowState = $state.raw(NO_WORKFLOW);
   /** Bumped on every open, so views reload their data. */
   generation = $state(0);
 
@@ -46,6 +49,7 @@ export class Session {
       schema.value.require('runs', 'run_id', 'parameters');
       if (runList.status === 'rejected') throw runList.reason;
       this.runs = runList.value;
+      this.workflow = await workflowOf(db, schema.value);
       performance.mark('bandwise:database-open');
       this.schema = schema.value;
       this.db = db;
@@ -55,6 +59,7 @@ export class Session {
       this.db = null;
       this.schema = null;
       this.runs = [];
+      this.workflow = NO_WORKFLOW;
       this.error = err instanceof Error ? err.message : String(err);
       this.status = 'failed';
     }

@@ -4,12 +4,14 @@
 import type { Exclusion } from '../core/contrast/data.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
 import type { PathDataSet } from '../core/verdict/index.ts';
+import { keepSubjects, partData } from '../core/confirmation/part-data.ts';
 import type { SqlClient } from './client.ts';
 import { contrastParticipants, contrastStages, loadContrastData, type LoadedContrast } from './contrast-data.ts';
 import { aperiodicInFitRange, peakRows, storedFitRanges } from './fits.ts';
 import { chooseRun, type RunInfo } from './runs.ts';
 import type { CohortSchema } from './schema.ts';
 import { spectraRows } from './spectra.ts';
+import { workflowOf } from './workflow.ts';
 
 export interface LoadedBandCheck extends LoadedContrast {
   /** the one aperiodic fit range every stored fit of the analysis uses, Hz */
@@ -30,7 +32,7 @@ export async function loadBandCheckData(
   const ranges: [number, number][] = [];
   for (const stage of stages) {
     const q = { runId: loaded.runId, stage, reference: c.reference, averaging: c.averaging };
-    loaded.data.peaks.push(...(await peakRows(db, q, c.aperiodicMethod)));
+    loaded.data.peaks.push(...keepSubjects(await peakRows(db, q, c.aperiodicMethod), loaded.view));
     for (const r of await storedFitRanges(db, loaded.runId, stage, c.reference, c.averaging, c.aperiodicMethod)) {
       if (!ranges.some((x) => x[0] === r[0] && x[1] === r[1])) ranges.push(r);
     }
@@ -56,15 +58,17 @@ export async function loadPathDataSets(
   if (c.design === 'paired' && c.stages) throw new Error('a robustness run takes one stage; paired stages are not supported here (choose a groups or covariate design)');
   const run = chooseRun(runList);
   const people = await contrastParticipants(db, schema);
+  const { view } = await workflowOf(db, schema);
   const sets: PathDataSet[] = [];
   for (const { reference, averaging } of needs) {
     const q = { runId: run.runId, stage: c.stage, reference, averaging };
     const spectra = await spectraRows(db, { ...q, channels: c.channels === 'all' ? undefined : c.channels });
     if (spectra.rows.length === 0) throw new Error(`no ${c.stage} spectra with reference ${reference} and averaging ${averaging} in run ${run.runId}`);
     const ranges = await storedFitRanges(db, run.runId, c.stage, reference, averaging, c.aperiodicMethod);
-    const base = { spectra, peaks: [], participants: people, exclusions: [...exclusions] };
-    if (ranges.length === 0) sets.push({ reference, averaging, fitRangeHz: null, data: { ...base, aperiodic: [] } });
-    for (const r of ranges) sets.push({ reference, averaging, fitRangeHz: r, data: { ...base, aperiodic: await aperiodicInFitRange(db, q, c.aperiodicMethod, r) } });
+    // while a split exists, the exploration part only (groups coded while blinded)
+    const base = partData(c, { spectra, peaks: [], participants: people, exclusions: [...exclusions], aperiodic: [] }, view);
+    if (ranges.length === 0) sets.push({ reference, averaging, fitRangeHz: null, data: base });
+    for (const r of ranges) sets.push({ reference, averaging, fitRangeHz: r, data: { ...base, aperiodic: keepSubjects(await aperiodicInFitRange(db, q, c.aperiodicMethod, r), view) } });
   }
   return sets;
 }

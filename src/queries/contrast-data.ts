@@ -1,15 +1,19 @@
 // What a contrast reads from the database, in the pure form of src/core/contrast (ContrastData):
-// the one loader of `bandwise compare` (src/analysis/compare-runner.ts) and the dashboard.
+// the one loader of `bandwise compare` (src/analysis/compare-runner.ts) and the dashboard. While a
+// split exists it hands over one part's subjects only (src/core/confirmation/part-data.ts).
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from '../core/contrast/data.ts';
 import { measureNeeds } from '../core/contrast/measure.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
 import type { Stage } from '../core/stages.ts';
+import { partData, type PartView } from '../core/confirmation/part-data.ts';
+import type { Part } from '../core/confirmation/split.ts';
 import type { SqlClient } from './client.ts';
 import { participants } from './cohort.ts';
 import { aperiodicRows, peakRows, recordedReferences } from './fits.ts';
 import { chooseRun, type RunInfo } from './runs.ts';
 import type { CohortSchema } from './schema.ts';
 import { spectraRows } from './spectra.ts';
+import { partViewOf, workflowOf } from './workflow.ts';
 
 /** The rows an analysis read, with the run they came from. */
 export interface LoadedContrast {
@@ -17,6 +21,8 @@ export interface LoadedContrast {
   toolVersion: string;
   runParameters: unknown;
   data: ContrastData;
+  /** the part of the split the rows are restricted to (null: no split, every subject) */
+  view: PartView | null;
 }
 
 /** The stages a contrast reads: its two stages when paired over stages, else its one stage. */
@@ -39,7 +45,9 @@ export async function contrastParticipants(db: SqlClient, schema: CohortSchema):
  * Everything `contrast` needs from the database, with the given exclusion list: the run named
  * (options.runId), else the one chooseRun takes; with options.maxHz the spectra only up to that
  * frequency (contrastMaxHz: what the contrast's own measure reads — not for callers that compute
- * other measures from the same rows).
+ * other measures from the same rows). While a split exists, only the subjects of options.part
+ * (default: the exploration part, its blinded column coded; the confirmation part is for
+ * `bandwise confirm` only).
  */
 export async function loadContrastData(
   db: SqlClient,
@@ -47,9 +55,11 @@ export async function loadContrastData(
   runList: readonly RunInfo[],
   c: Contrast,
   exclusions: readonly Exclusion[],
-  options: { runId?: string; maxHz?: number } = {},
+  options: { runId?: string; maxHz?: number; part?: Part } = {},
 ): Promise<LoadedContrast> {
   const run = chooseRun(runList, options.runId);
+  const view = partViewOf(await workflowOf(db, schema), options.part ?? 'exploration');
+  if (view === null && options.part === 'confirmation') throw new Error('the database holds no split, so it has no confirmation part');
   const stages = contrastStages(c);
   const needs = measureNeeds(c.measure);
   // all queries issued together (duckdb-wasm runs them one after another in its worker, without
@@ -86,6 +96,7 @@ export async function loadContrastData(
     runId: run.runId,
     toolVersion: run.toolVersion,
     runParameters: run.parameters,
-    data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences: references },
+    data: partData(c, { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences: references }, view),
+    view,
   };
 }

@@ -21,12 +21,13 @@ import * as reportFacts from '../../src/queries/report-facts.ts';
 import * as runsModule from '../../src/queries/runs.ts';
 import * as schemaModule from '../../src/queries/schema.ts';
 import * as spectra from '../../src/queries/spectra.ts';
+import * as workflow from '../../src/queries/workflow.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 import { wasmClientFor } from '../dashboard/wasm-client.ts';
 
-const MODULES = { bandCheckData, cohort, contrastData, fits, quality, reportFacts, runsModule, schemaModule, spectra };
+const MODULES = { bandCheckData, cohort, contrastData, fits, quality, reportFacts, runsModule, schemaModule, spectra, workflow };
 /** Exported functions that run no SQL (they choose or compute from what a query returned). */
-const NOT_QUERIES = new Set(['chooseRun', 'binsUpTo', 'contrastMaxHz', 'contrastStages', 'groupingColumns', 'CohortSchema']);
+const NOT_QUERIES = new Set(['chooseRun', 'binsUpTo', 'contrastMaxHz', 'contrastStages', 'groupingColumns', 'CohortSchema', 'partViewOf']);
 
 /** What a query call may use besides its client: read through that same client. */
 interface Context {
@@ -105,6 +106,11 @@ const CALLS: Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>[]
     loadBandCheckData: (db, ctx) => bandCheckData.loadBandCheckData(db, ctx.schema, ctx.runList, sigma, exclusions, ctx.runId),
     loadPathDataSets: (db, ctx) =>
       bandCheckData.loadPathDataSets(db, ctx.schema, ctx.runList, sigma, [{ reference: 'recorded', averaging: 'mean' }, { reference: 'linked-mastoids', averaging: 'median' }], exclusions),
+  },
+  {
+    // the demo has no split: both answer "no split"; the split's own rows over both engines: tests/dashboard/workflow.test.ts
+    readWorkflow: (db, ctx) => workflow.readWorkflow(db, ctx.schema),
+    workflowOf: (db, ctx) => workflow.workflowOf(db, ctx.schema),
   },
 ];
 const calls = Object.assign({}, ...CALLS) as Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>;

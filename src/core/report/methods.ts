@@ -15,8 +15,10 @@ import { ingestParameterFacts, type DatabaseFacts, type IngestParameterFacts, ty
 import { REFERENCE_LIST, type ReferenceKey } from './references.ts';
 import { referenceKey } from '../montage/labels.ts';
 import { outlierRate } from '../quality/outlier-limit.ts';
+import { partParagraph } from '../confirmation/methods-text.ts';
+import type { PartFields } from '../confirmation/stamp.ts';
 
-export type ReportableResult = (CompareResult | BandCheckResult) & { database?: { file: string; runId: string; toolVersion: string; ingestParameters: unknown } };
+export type ReportableResult = (CompareResult | BandCheckResult) & { database?: { file: string; runId: string; toolVersion: string; ingestParameters: unknown } } & PartFields;
 
 export interface MethodsParameters {
   kind: 'compare' | 'band-check';
@@ -33,6 +35,8 @@ export interface MethodsParameters {
   ledger: LedgerCounts | null;
   /** the analysis' EEG channels as recorded (the reference each label names), when the facts hold them */
   recordedDerivations?: DatabaseFacts['recordedDerivations'];
+  /** while a split exists: the part used, the split, the blinding and (a confirmation) the plan */
+  split?: PartFields;
   references: string[];
   note: string;
 }
@@ -306,7 +310,7 @@ function bandResults(r: BandCheckResult): string {
     testLine('relative band power', t.relative),
   ];
   const presence = Object.entries(r.peakPresence).map(([k, v]) => `${k} ${(100 * v).toFixed(0)} %`).join(', ');
-  const centres = r.peakCenter?.means.map((m) => `${m.name} ${m.centerHz.toFixed(2)} Hz (width ${m.widthHz.toFixed(2)} Hz, n = ${m.n})`).join(', ');
+  const centres = r.peakCenter?.means.map((m) => `${m.name} ${m.centerHz.toFixed(2)} Hz (width ${m.widthHz.toFixed(2)} Hz${m.n === null ? '' : `, n = ${m.n}`})`).join(', ');
   const kind = r.periodicKind ? ` Periodic change: ${r.periodicKind}.` : '';
   return (
     `Verdict: **${r.verdict}** (rule ${r.rule}).${kind} ${r.sentence}\n\n${lines.join('\n')}\n\n` +
@@ -350,6 +354,8 @@ export function methodsReport(result: ReportableResult, facts: DatabaseFacts | n
   parts.push('## Subjects and exclusions', exclusionSection(result.exclusions, n));
   parts.push('## Design and statistics', designText(c, n, refs), stats.text);
   parts.push('## Result', isBand ? bandResults(result as BandCheckResult) : compareResults(result as CompareResult));
+  const split = partParagraph(result);
+  if (split) parts.push('## Exploration and confirmation', split);
   parts.push('## Analyses run', ledgerSection(ledger));
   parts.push('## Contrast settings', contrastList(c));
   const keys = [...refs].sort((a, b) => REFERENCE_LIST[a].localeCompare(REFERENCE_LIST[b]));
@@ -369,6 +375,7 @@ export function methodsReport(result: ReportableResult, facts: DatabaseFacts | n
     statistics: stats.json,
     ledger,
     ...(facts?.recordedDerivations ? { recordedDerivations: facts.recordedDerivations.filter((d) => channels.length === 0 || channels.includes(d.channel)) } : {}),
+    ...(result.part ? { split: { part: result.part, split: result.split, blinded: result.blinded, plan: result.plan } } : {}),
     references: keys.map((k) => REFERENCE_LIST[k]),
     note: RESEARCH_NOTE,
   };

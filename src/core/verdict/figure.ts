@@ -15,7 +15,8 @@ import type { PeakGroupMean } from './peak-center.ts';
 export interface FigureSeries {
   /** group name, condition name, or "all subjects" */
   name: string;
-  n: number;
+  /** subjects in the series; null in a blinded exploration (group sizes pooled, src/core/confirmation/blind-results.ts) */
+  n: number | null;
   /** mean log10 PSD (µV²/Hz) per frequency */
   log10Psd: number[];
   /** mean fitted aperiodic component, log10 µV²/Hz */

@@ -25,7 +25,8 @@ const MIN_IN_ALL = 3;
 export interface PeakGroupMean {
   /** group name, condition name, or "all subjects" */
   name: string;
-  n: number;
+  /** subjects in the mean; null in a blinded exploration (group sizes pooled) */
+  n: number | null;
   /** mean centre of the highest fitted peak in the band, Hz */
   centerHz: number;
   /** mean full width at half maximum of that peak, Hz */

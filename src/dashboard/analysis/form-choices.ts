@@ -4,6 +4,8 @@ import type { SqlClient } from '../../queries/client.ts';
 import { participants } from '../../queries/cohort.ts';
 import { spectraChoices } from '../../queries/quality.ts';
 import type { CohortSchema } from '../../queries/schema.ts';
+import { workflowOf } from '../../queries/workflow.ts';
+import { blindRows } from '../../core/confirmation/blinding.ts';
 
 export interface FormChoices {
   /** participants columns: text ones with their values, numeric ones */
@@ -15,12 +17,14 @@ export interface FormChoices {
 }
 
 export async function loadChoices(db: SqlClient, schema: CohortSchema): Promise<FormChoices> {
-  const p = await participants(db, schema);
+  const [p, { view }] = await Promise.all([participants(db, schema), workflowOf(db, schema)]);
+  // while blinded, the group column offers its codes only
+  const rows = view?.blinding ? blindRows(p.rows, view.blinding) : p.rows;
   const textColumns = new Map<string, string[]>();
   const numericColumns: string[] = [];
   for (const c of p.columns) {
     if (c.name === 'subject') continue;
-    const values = p.rows.map((r) => r[c.name]).filter((v) => v !== null);
+    const values = rows.map((r) => r[c.name]).filter((v) => v !== null);
     if (values.every((v) => typeof v === 'number')) numericColumns.push(c.name);
     else textColumns.set(c.name, [...new Set(values.map(String))].sort());
   }

@@ -34,7 +34,7 @@ function shadeMarks(fig: BandCheckFigure, labels: boolean): Plot.Markish[] {
   return marks;
 }
 
-const seriesLabel = (s: BandCheckFigure['series'][number]) => `${s.name} (n = ${s.n})`;
+const seriesLabel = (s: BandCheckFigure['series'][number]) => (s.n === null ? s.name : `${s.name} (n = ${s.n})`);
 
 interface CentreMark {
   series: string;

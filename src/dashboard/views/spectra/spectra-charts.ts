@@ -10,20 +10,23 @@ export interface SpectrumPlotOptions {
   logX: boolean;
   /** frequencies to mark (e.g. a contrast's significant bins), Hz */
   marked?: readonly { fminHz: number; fmaxHz: number; label: string }[];
+  /** name each group's size in the legend (default true; not while the groups are blinded) */
+  sizes?: boolean;
 }
 
 export function groupSpectraPlot(g: GroupSpectra, o: SpectrumPlotOptions): Plot.PlotOptions {
   const rows: { group: string; f: number; mean: number; low: number; high: number }[] = [];
   const fits: { group: string; f: number; fit: number }[] = [];
+  const name = (c: GroupSpectra['groups'][number]) => (o.sizes === false ? c.group : `${c.group} (n = ${c.band.n})`);
   for (const c of g.groups) {
     for (let j = 0; j < g.freqsHz.length; j++) {
       const f = g.freqsHz[j];
       if (o.logX && f <= 0) continue;
-      rows.push({ group: `${c.group} (n = ${c.band.n})`, f, mean: c.band.mean[j], low: c.band.low[j], high: c.band.high[j] });
-      if (c.fit) fits.push({ group: `${c.group} (n = ${c.band.n})`, f, fit: c.fit[j] });
+      rows.push({ group: name(c), f, mean: c.band.mean[j], low: c.band.low[j], high: c.band.high[j] });
+      if (c.fit) fits.push({ group: name(c), f, fit: c.fit[j] });
     }
   }
-  const domain = g.groups.map((c) => `${c.group} (n = ${c.band.n})`);
+  const domain = g.groups.map(name);
   const marks: Plot.Markish[] = [];
   for (const m of o.marked ?? []) {
     marks.push(Plot.rectX([m], { x1: 'fminHz', x2: 'fmaxHz', fill: '#f2d27a', fillOpacity: 0.45 }));

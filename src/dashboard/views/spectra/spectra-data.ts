@@ -14,6 +14,8 @@ import { chooseRun, type RunInfo } from '../../../queries/runs.ts';
 import type { CohortSchema } from '../../../queries/schema.ts';
 import { spectraRows } from '../../../queries/spectra.ts';
 import { meanWithInterval, type MeanBand } from './group-mean.ts';
+import { keepSubjects, partParticipants } from '../../../core/confirmation/part-data.ts';
+import { workflowOf } from '../../../queries/workflow.ts';
 
 /** What the y axis shows. */
 export type SpectrumMeasure = 'absolute' | 'log10' | 'relative' | 'residual';
@@ -47,9 +49,11 @@ export async function loadSpectraRows(
   const run = chooseRun(runs);
   const q = { runId: run.runId, ...sel };
   // issued together: duckdb-wasm runs them one after another in its worker, without waits between
-  const [s, aperiodic, participants] = await Promise.all([spectraRows(db, q), aperiodicRows(db, q, 'fit'), contrastParticipants(db, schema)]);
+  const [s, aperiodic, participants, { view }] = await Promise.all([spectraRows(db, q), aperiodicRows(db, q, 'fit'), contrastParticipants(db, schema), workflowOf(db, schema)]);
   performance.mark('bandwise:spectra-rows');
-  return { runId: run.runId, stage: sel.stage, reference: sel.reference, ...s, aperiodic, participants, channels: [...new Set(s.rows.map((r) => r.channel))] };
+  // while a split exists, the exploration part's subjects only (groups coded while blinded)
+  const rows = keepSubjects(s.rows, view);
+  return { runId: run.runId, stage: sel.stage, reference: sel.reference, ...s, rows, aperiodic: keepSubjects(aperiodic, view), participants: partParticipants(participants, view), channels: [...new Set(rows.map((r) => r.channel))] };
 }
 
 export interface GroupCurve {
