@@ -45,6 +45,11 @@ export function register(program: Command): void {
     .option('--flank-width <hz>', 'width of each flank, Hz (default: the band\'s width)', positive('--flank-width'));
   addContrastOptions(command, { bandMeasures: false });
   command.action(async (database: string, flags: BandFlags) => {
+    if (flags.measure !== undefined) {
+      console.error('bandwise band-check: --measure is not used: the band check tests its own fixed set of measures (README "band-check")');
+      process.exitCode = 2;
+      return;
+    }
     const band = inputOrExit(() => parseBand(flags.band));
     if (!band) return;
     const contrast = contrastOrExit({ ...flags, band: undefined });

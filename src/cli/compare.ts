@@ -6,6 +6,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
 import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
+import { designTitle, signText } from '../core/contrast/labels.ts';
 import { compareDatabase, type CompareRun } from '../analysis/compare-runner.ts';
 import { appendLedger } from '../analysis/ledger.ts';
 import { addContrastOptions, contrastOrExit, type Flags } from './contrast-options.ts';
@@ -86,7 +87,7 @@ export function register(program: Command): void {
       if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, result);
       const n = Object.entries(result.n).map(([k, v]) => `${k} ${v}`).join(', ');
       const best = result.clusters[0];
-      console.log(`${result.measure}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${best.sign > 0 ? '+' : '−'}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
+      console.log(`${result.measure}; ${designTitle(result.contrast)}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${signText(result.contrast, best.sign)}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
       for (const note of result.notes) console.log(note);
       console.log(`wrote ${flags.out}`);
     });

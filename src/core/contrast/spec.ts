@@ -69,6 +69,11 @@ export const contrastSchema = z
     if (c.design === 'groups' && !c.groups) ctx.addIssue({ code: 'custom', path: ['groups'], message: 'a groups design needs "groups": [first, second]' });
     if (c.design === 'paired' && !c.stages === !c.sessions) ctx.addIssue({ code: 'custom', path: ['stages'], message: 'a paired design needs either "stages" or "sessions" (two values)' });
     if (c.design === 'covariate' && !c.covariate) ctx.addIssue({ code: 'custom', path: ['covariate'], message: 'a covariate design needs "covariate": <numeric participants column>' });
+    // a key the design does not use is refused, never silently ignored
+    const others = c.design === 'paired' ? "a paired design compares each subject's two conditions" : 'a covariate design uses every subject with a value of the covariate';
+    if (c.design !== 'groups' && c.groups) ctx.addIssue({ code: 'custom', path: ['groups'], message: `"groups" is used by the groups design only (${others}; leave subjects out with exclusions)` });
+    for (const k of ['stages', 'sessions'] as const) if (c.design !== 'paired' && c[k]) ctx.addIssue({ code: 'custom', path: [k], message: `"${k}" is used by the paired design only` });
+    if (c.design !== 'covariate' && c.covariate) ctx.addIssue({ code: 'custom', path: ['covariate'], message: '"covariate" is used by the covariate design only (nuisance covariates go in "nuisance")' });
     if ((c.measure === 'band-power' || c.measure === 'relative-band-power' || c.measure.startsWith('peak-')) && !(c.bands && c.bands.length > 0)) {
       ctx.addIssue({ code: 'custom', path: ['bands'], message: `measure ${c.measure} needs "bands": [{name, loHz, hiHz}, …]` });
     }

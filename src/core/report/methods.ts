@@ -7,6 +7,7 @@
 import type { Contrast } from '../contrast/spec.ts';
 import type { CompareResult } from '../contrast/run.ts';
 import { RESEARCH_NOTE } from '../contrast/run.ts';
+import { signText } from '../contrast/labels.ts';
 import type { Exclusion } from '../contrast/data.ts';
 import type { BandCheckResult } from '../verdict/band-check.ts';
 import type { ScalarTest } from '../verdict/scalar-test.ts';
@@ -256,7 +257,7 @@ function compareStatistics(r: CompareResult, refs: Set<ReferenceKey>): { text: s
 function compareResults(r: CompareResult): string {
   const sig = r.clusters.filter((k) => k.p < 0.05);
   if (r.clusters.length === 0) return 'No cluster formed.';
-  const lines = r.clusters.slice(0, 10).map((k) => `- ${k.sign > 0 ? 'positive' : 'negative'} cluster, ${k.fminHz}–${k.fmaxHz} Hz, channels ${k.channels.join(', ')}: ${r.contrast.correction === 'cluster-size' ? 'size' : 'mass'} ${g3(r.contrast.correction === 'cluster-size' ? k.size : k.mass)}, p = ${g3(k.p)}`);
+  const lines = r.clusters.slice(0, 10).map((k) => `- ${k.sign > 0 ? 'positive' : 'negative'} cluster (${signText(r.contrast, k.sign)}), ${k.fminHz}–${k.fmaxHz} Hz, channels ${k.channels.join(', ')}: ${r.contrast.correction === 'cluster-size' ? 'size' : 'mass'} ${g3(r.contrast.correction === 'cluster-size' ? k.size : k.mass)}, p = ${g3(k.p)}`);
   return `${r.clusters.length} cluster${r.clusters.length === 1 ? '' : 's'} formed, ${sig.length} with p < 0.05${r.clusters.length > 10 ? ' (the 10 smallest p shown)' : ''}:\n\n${lines.join('\n')}`;
 }
 

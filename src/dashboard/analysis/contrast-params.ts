@@ -25,6 +25,13 @@ export function contrastJsonFromParams(params: Readonly<Record<string, string>>)
   if (params.bands !== undefined) {
     out.bands = params.bands.split(',').map((b) => parseBandText(b));
   }
+  // the form keeps every design's fields in the address; the contrast carries only its design's
+  if ((out.design ?? 'groups') !== 'groups') delete out.groups;
+  if (out.design !== 'paired') {
+    delete out.stages;
+    delete out.sessions;
+  }
+  if (out.design !== 'covariate') delete out.covariate;
   return out as ContrastJson;
 }
 
