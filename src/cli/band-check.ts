@@ -7,7 +7,7 @@
 import { writeFileSync, readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
-import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
+import { parseExclusionsTsv, withExclusions } from '../core/contrast/exclusions.ts';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
 import { bandCheckDatabase, type BandCheckRun } from '../analysis/band-check-runner.ts';
 import { appendLedger } from '../analysis/ledger.ts';
@@ -52,14 +52,15 @@ export function register(program: Command): void {
     }
     const band = inputOrExit(() => parseBand(flags.band));
     if (!band) return;
-    const contrast = contrastOrExit({ ...flags, band: undefined });
-    if (!contrast) return;
-    const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
+    const given = contrastOrExit({ ...flags, band: undefined });
+    if (!given) return;
+    // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran
+    const contrast = flags.exclusions ? withExclusions(given, parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions)) : given;
     const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'band check {bar} {value}/{total} tests | {step}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
     let started = false;
     let result: BandCheckRun;
     try {
-      result = await bandCheckDatabase(database, contrast, band, exclusions, {
+      result = await bandCheckDatabase(database, contrast, band, [], {
         alpha: flags.alpha,
         flankWidthHz: flags.flankWidth,
         onProgress: (step, done, total) => {

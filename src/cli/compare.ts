@@ -5,7 +5,7 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
-import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
+import { parseExclusionsTsv, withExclusions } from '../core/contrast/exclusions.ts';
 import { designTitle, signText } from '../core/contrast/labels.ts';
 import { compareDatabase, type CompareRun } from '../analysis/compare-runner.ts';
 import { appendLedger } from '../analysis/ledger.ts';
@@ -60,14 +60,15 @@ export function register(program: Command): void {
   addContrastOptions(command, { bandMeasures: true });
   command
     .action(async (database: string, flags: Flags) => {
-      const contrast = contrastOrExit(flags);
-      if (!contrast) return;
-      const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
+      const given = contrastOrExit(flags);
+      if (!given) return;
+      // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran
+      const contrast = flags.exclusions ? withExclusions(given, parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions)) : given;
       const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'permutations {bar} {value}/{total} | ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
       let started = false;
       let result: CompareRun;
       try {
-        result = await compareDatabase(database, contrast, exclusions, (done, total) => {
+        result = await compareDatabase(database, contrast, [], (done, total) => {
           if (!bar) return;
           if (!started) {
             bar.start(total, 0);

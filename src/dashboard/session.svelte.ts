@@ -59,10 +59,15 @@ export class Session {
     }
   }
 
+  /** The open database's file name, not its path (as a command line would name it). */
+  get databaseName(): string {
+    return (this.db?.source ?? 'cohort.duckdb').split('/').pop()!;
+  }
+
   /** What a result records of the database it ran on (the methods report's database line): the file name, not its path. */
   resultDatabase(runId: string): NonNullable<ReportableResult['database']> {
     const run = this.runs.find((r) => r.runId === runId);
-    return { file: (this.db?.source ?? 'database').split('/').pop()!, runId, toolVersion: run?.toolVersion ?? '', ingestParameters: run?.parameters ?? null };
+    return { file: this.db ? this.databaseName : 'database', runId, toolVersion: run?.toolVersion ?? '', ingestParameters: run?.parameters ?? null };
   }
 }
 

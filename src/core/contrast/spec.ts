@@ -21,6 +21,11 @@ const band = z.union([z.string(), bandObject]).transform((b, ctx): Band => {
   }
 });
 
+/** A subject, or one channel of it, left out of the contrast, in every stage or one: the contrast carries its exclusions. */
+const exclusion = z
+  .object({ subject: z.string().min(1), channel: z.string().min(1).optional(), stage: stage.optional(), reason: z.string().min(1) })
+  .strict();
+
 export const MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center', 'peak-width'] as const;
 export type MeasureName = (typeof MEASURES)[number];
 
@@ -61,6 +66,8 @@ export const contrastSchema = z
     clusterP: z.number().gt(0).lt(1).default(0.05),
     permutations: z.number().int().positive().default(1000),
     seed: z.number().int().default(1),
+    /** subjects or channels left out (a channel exclusion is missing data for that channel where the design allows it) */
+    exclusions: z.array(exclusion).default([]),
     tfce: z.object({ E: z.number().positive(), H: z.number().positive(), dh: z.number().positive() }).partial().optional(),
   })
   .strict()
@@ -81,6 +88,7 @@ export const contrastSchema = z
 
 export type Contrast = z.output<typeof contrastSchema>;
 export type ContrastJson = z.input<typeof contrastSchema>;
+export type ContrastExclusion = z.output<typeof exclusion>;
 
 export class ContrastSpecError extends Error {
   override name = 'ContrastSpecError';

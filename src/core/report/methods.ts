@@ -206,8 +206,12 @@ function aperiodicSection(f: IngestParameterFacts, facts: DatabaseFacts | null, 
 
 function exclusionSection(ex: Exclusion[], n: Record<string, number>): string {
   const sizes = Object.entries(n).map(([k, v]) => `${k} ${v}`).join(', ');
-  if (ex.length === 0) return `No subject was left out (analysed: ${sizes}).`;
-  return `${ex.length} subject${ex.length === 1 ? ' was' : 's were'} left out (analysed: ${sizes}):\n\n` + ex.map((e) => `- ${e.subject}${e.channel ? ` (${e.channel})` : ''}: ${e.reason}`).join('\n');
+  const line = (e: Exclusion) => `- ${e.subject}${e.channel ? ` (${e.channel}${e.stage ? `, ${e.stage}` : ''})` : e.stage ? ` (${e.stage})` : ''}: ${e.reason}`;
+  const out = ex.filter((e) => !e.subjectStays);
+  const stays = ex.filter((e) => e.subjectStays);
+  const parts = [out.length === 0 ? `No subject was left out (analysed: ${sizes}).` : `${out.length} subject${out.length === 1 ? ' was' : 's were'} left out (analysed: ${sizes}):\n\n${out.map(line).join('\n')}`];
+  if (stays.length > 0) parts.push(`Excluded channels were treated as missing data, the subject kept for its other channels (each point's statistic uses the subjects with a value there):\n\n${stays.map(line).join('\n')}`);
+  return parts.join('\n\n');
 }
 
 function permutationText(p: { permutations: number; exact: boolean; seed: number }, what: string): string {
