@@ -267,3 +267,17 @@ export async function readRecordedReferences(store: Store, runId: string): Promi
   );
   return rows.map((r) => ({ subject: str(r.subject), session: strOrNull(r.session), channel: str(r.channel), referenceElectrode: strOrNull(r.reference_electrode) }));
 }
+
+/** Sleep architecture per subject of a run (mean over the subject's recordings), from the tidy_sleep_architecture view. */
+export async function readSleepArchitecture(store: Store, runId: string): Promise<Map<string, Record<string, number | null>>> {
+  const views = await query(store, "SELECT count(*) AS n FROM duckdb_views() WHERE database_name = current_database() AND view_name = 'tidy_sleep_architecture'");
+  if (Number(views[0].n) === 0) throw new StoreError('this database has no tidy views (written by an earlier bandwise): open it once for writing, e.g. with `bandwise merge` into a new file');
+  const rows = await query(
+    store,
+    `SELECT subject, avg(tst_min) AS tst_min, avg(se_pct) AS se_pct, avg(w_min) AS w_min, avg(n1_min) AS n1_min, avg(n2_min) AS n2_min,
+            avg(n3_min) AS n3_min, avg(r_min) AS r_min, avg(clean_n2_min) AS clean_n2_min
+       FROM tidy_sleep_architecture WHERE run_id = $1 GROUP BY subject ORDER BY subject`,
+    [runId],
+  );
+  return new Map(rows.map((r) => [str(r.subject), Object.fromEntries(Object.entries(r).filter(([k]) => k !== 'subject').map(([k, v]) => [k, numOrNull(v)]))]));
+}

@@ -13,6 +13,7 @@ import { register as registerDemo } from './demo.ts';
 import { register as registerBandCheck } from './band-check.ts';
 import { register as registerReport } from './report.ts';
 import { register as registerClusterScript } from './cluster-script.ts';
+import { register as registerCohortTable } from './cohort-table.ts';
 
 const pkg = JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string };
 
@@ -31,6 +32,7 @@ registerMerge(program);
 registerCompare(program);
 registerBandCheck(program);
 registerReport(program);
+registerCohortTable(program);
 registerDashboard(program);
 registerClusterScript(program);
 registerSimulate(program);
