@@ -281,3 +281,9 @@ export async function readSleepArchitecture(store: Store, runId: string): Promis
   );
   return new Map(rows.map((r) => [str(r.subject), Object.fromEntries(Object.entries(r).filter(([k]) => k !== 'subject').map(([k, v]) => [k, numOrNull(v)]))]));
 }
+
+/** The references a run stored spectra for, sorted. */
+export async function storedReferences(store: Store, runId: string): Promise<string[]> {
+  const rows = await query(store, 'SELECT DISTINCT s.reference FROM spectra s JOIN recordings r USING (recording_id) WHERE r.run_id = $1 ORDER BY 1', [runId]);
+  return rows.map((r) => str(r.reference));
+}
