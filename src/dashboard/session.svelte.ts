@@ -1,6 +1,7 @@
 // The open database, shared by every view.
 import { openPickedFile, openServedDatabase, preloadEngine, type CohortConnection } from './db/connection.ts';
 import type { ReportableResult } from '../core/report/index.ts';
+import { servedDatabaseName } from './db/served-name.ts';
 import { cohortSchema, runs, type CohortSchema, type RunInfo } from './db/queries.ts';
 
 /** Where the dashboard server puts the database, relative to the app (src/server/serve.ts). */
@@ -20,13 +21,15 @@ export class Session {
   /** Open the database served beside the app, if there is one; otherwise stay idle. */
   async openServedIfPresent(): Promise<void> {
     preloadEngine();
-    let served = false;
+    let served: Response | null = null;
     try {
-      served = (await fetch(SERVED_DATABASE, { method: 'HEAD', cache: 'no-store' })).ok;
+      served = await fetch(SERVED_DATABASE, { method: 'HEAD', cache: 'no-store' });
     } catch {
-      served = false;
+      served = null;
     }
-    if (served) await this.open(() => openServedDatabase(SERVED_DATABASE));
+    // the server names the file it serves (its real name, not the URL's)
+    const name = served?.ok ? servedDatabaseName(served.headers.get('Content-Disposition')) : null;
+    if (served?.ok) await this.open(() => openServedDatabase(SERVED_DATABASE, name ?? undefined));
   }
 
   async openFile(file: File): Promise<void> {
@@ -61,7 +64,7 @@ export class Session {
 
   /** The open database's file name, not its path (as a command line would name it). */
   get databaseName(): string {
-    return (this.db?.source ?? 'cohort.duckdb').split('/').pop()!;
+    return this.db?.name ?? 'cohort.duckdb';
   }
 
   /** What a result records of the database it ran on (the methods report's database line): the file name, not its path. */
