@@ -108,6 +108,8 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     const hummed = truth.subjects.find((t) => t.artifacts[0]?.kind === 'mains')!.subject;
     await page.locator(`[data-testid=quality-grid] rect[data-cell="${hummed}|Cz"]`).click();
     await page.getByTestId('cell-spectrum').locator('svg').first().waitFor({ timeout: 30_000 });
+    // the detail opens in view (issue 23): its top lies inside the window
+    expect(await page.getByTestId('cell-detail').evaluate((el) => el.getBoundingClientRect().top >= 0 && el.getBoundingClientRect().top < window.innerHeight)).toBe(true);
     expect(new URL(page.url()).hash).toContain(`subject=${hummed}`);
     expect(await page.getByTestId('cell-reasons').innerText()).toContain('50 Hz');
     await page.getByTestId('cell-band-power').locator('svg').first().waitFor();
