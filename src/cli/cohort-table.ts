@@ -6,11 +6,7 @@
  */
 import { writeFileSync } from 'node:fs';
 import type { Command } from 'commander';
-import { openStore } from '../../ingest/store/index.ts';
-import { chooseRun } from '../analysis/compare-runner.ts';
-import { readParticipants, readSleepArchitecture } from '../analysis/store-read.ts';
-import { cohortTable, cohortTableTsv, type Characteristic } from '../core/report/cohort-table.ts';
-import { reportUserError } from './user-errors.ts';
+import type { Characteristic } from '../core/report/cohort-table.ts';
 
 /** Cohort-table columns that are not characteristics (paths and labels); a text column with more levels than this is not a category. */
 const NOT_CHARACTERISTICS = new Set(['subject', 'session', 'recording', 'scoring']);
@@ -47,37 +43,47 @@ export function register(program: Command): void {
     .option('--out <file>', 'TSV to write (default: standard output)')
     .option('--run <id>', 'ingest run to read (default: the most recent finished run)')
     .action(async (database: string, flags: Flags) => {
-      let tsv: string;
+      // loaded on use: `bandwise --help` reads none of the analysis code
+      const { withDatabase } = await import('../analysis/store-client.ts');
+      const { participants, sleepArchitectureBySubject } = await import('../queries/cohort.ts');
+      const { chooseRun, runs } = await import('../queries/runs.ts');
+      const { cohortSchema } = await import('../queries/schema.ts');
+      const { cohortTable, cohortTableTsv } = await import('../core/report/cohort-table.ts');
+      const { reportUserError } = await import('./user-errors.ts');
+      let tsv: string | null;
       try {
-        const store = await openStore(database, { readOnly: true });
-        try {
-          const run = await chooseRun(store, flags.run);
-          const sleep = await readSleepArchitecture(store, run.runId);
-          const table = await readParticipants(store);
+        tsv = await withDatabase(database, async (db) => {
+          const run = chooseRun(await runs(db), flags.run);
+          const sleep = await sleepArchitectureBySubject(db, run.runId);
+          if (sleep === null) {
+            console.error('bandwise cohort-table: this database has no tidy views (written by an earlier bandwise): merge it into a new file with `bandwise merge`');
+            process.exitCode = 1;
+            return null;
+          }
+          const schema = await cohortSchema(db);
+          const table = schema.columns('participants').length > 0 ? await participants(db, schema) : { columns: [], rows: [] };
           if (table.columns.length > 0 && !table.columns.some((c) => c.name === flags.groupColumn)) {
             console.error(`bandwise cohort-table: no participants column "${flags.groupColumn}" (columns: ${table.columns.map((c) => c.name).join(', ')})`);
             process.exitCode = 2;
-            return;
+            return null;
           }
-          const people = table.rows.map((r) => Object.fromEntries(table.columns.map((c, i) => [c.name, r[i]])));
-          const bySubject = new Map(people.map((p) => [String(p.subject), p]));
-          const characteristics: Characteristic[] = table.columns
+          const bySubject = new Map(table.rows.map((p) => [String(p.subject), p]));
+          const characteristics = table.columns
             .filter((c) => !NOT_CHARACTERISTICS.has(c.name) && c.name !== flags.groupColumn)
-            .filter((c) => c.type === 'DOUBLE' || new Set(people.map((p) => p[c.name]).filter((v) => v !== null)).size <= MAX_LEVELS)
-            .map((c): Characteristic => ({ key: c.name, label: c.name, kind: c.type === 'DOUBLE' ? 'numeric' : 'categorical' }));
+            .map((c): Characteristic => ({ key: c.name, label: c.name, kind: table.rows.some((p) => typeof p[c.name] === 'number') ? 'numeric' : 'categorical' }))
+            .filter((c) => c.kind === 'numeric' || new Set(table.rows.map((p) => p[c.key]).filter((v) => v !== null)).size <= MAX_LEVELS);
           const subjects = [...sleep.entries()].map(([subject, s]) => {
             const p = bySubject.get(subject) ?? {};
             const g = p[flags.groupColumn];
-            return { group: g === null || g === undefined ? null : String(g), values: { ...p, ...s } };
+            return { group: g === null || g === undefined ? null : String(g), values: { ...p, ...s } as Record<string, number | string | null> };
           });
-          tsv = cohortTableTsv(cohortTable(subjects, [...characteristics, ...SLEEP]));
-        } finally {
-          await store.close();
-        }
+          return cohortTableTsv(cohortTable(subjects, [...characteristics, ...SLEEP]));
+        });
       } catch (e) {
         if (reportUserError('cohort-table', e)) return;
         throw e;
       }
+      if (tsv === null) return;
       if (flags.out) {
         writeFileSync(flags.out, tsv);
         console.log(`wrote ${flags.out}`);

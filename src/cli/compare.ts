@@ -4,13 +4,8 @@
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
-import cliProgress from 'cli-progress';
-import { parseExclusionsTsv, withExclusions } from '../core/contrast/exclusions.ts';
-import { designTitle, signText } from '../core/contrast/labels.ts';
-import { compareDatabase, type CompareRun } from '../analysis/compare-runner.ts';
-import { appendLedger } from '../analysis/ledger.ts';
+import type { CompareRun } from '../analysis/compare-runner.ts';
 import { addContrastOptions, contrastOrExit, type Flags } from './contrast-options.ts';
-import { reportUserError } from './user-errors.ts';
 
 const threadCount = (v: string) => {
   const x = Number(v);
@@ -44,7 +39,6 @@ export function pointsTsv(r: CompareRun): string {
 export function register(program: Command): void {
   const command = program
     .command('compare')
-    .summary('run one contrast (groups, paired stages/sessions, covariate) with permutation correction')
     .description(
       'Runs a contrast over channels × frequencies on a bandwise database: a point statistic per channel and ' +
         'frequency (Welch t by default), cluster-based permutation correction (Maris & Oostenveld 2007) or TFCE ' +
@@ -60,6 +54,13 @@ export function register(program: Command): void {
   addContrastOptions(command, { bandMeasures: true });
   command
     .action(async (database: string, flags: Flags) => {
+      // loaded on use: `bandwise --help` reads none of the analysis code
+      const { default: cliProgress } = await import('cli-progress');
+      const { parseExclusionsTsv, withExclusions } = await import('../core/contrast/exclusions.ts');
+      const { designTitle, signText } = await import('../core/contrast/labels.ts');
+      const { compareDatabase } = await import('../analysis/compare-runner.ts');
+      const { appendLedger } = await import('../analysis/ledger.ts');
+      const { reportUserError } = await import('./user-errors.ts');
       const given = contrastOrExit(flags);
       if (!given) return;
       // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran

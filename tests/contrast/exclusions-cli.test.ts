@@ -9,7 +9,8 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeFixtureDb } from '../fixtures/make-fixture-db.ts';
 
-const bin = path.join(import.meta.dirname, '..', '..', 'bin', 'bandwise.mjs');
+// the command from its sources (bin/run-ts.mjs runs src/cli/main.ts through tsx)
+const cli = [path.join(import.meta.dirname, '..', '..', 'bin', 'run-ts.mjs'), path.join(import.meta.dirname, '..', '..', 'src', 'cli', 'main.ts')];
 let dir = '';
 let db = '';
 
@@ -31,7 +32,7 @@ function run(name: string, contrast: object, extra: string[] = []): Result {
   const file = path.join(dir, `${name}.contrast.json`);
   writeFileSync(file, JSON.stringify(contrast));
   const out = path.join(dir, `${name}.json`);
-  execFileSync(process.execPath, [bin, 'compare', db, '--contrast', file, '--out', out, '--no-ledger', '--quiet', ...extra], { encoding: 'utf8' });
+  execFileSync(process.execPath, [...cli, 'compare', db, '--contrast', file, '--out', out, '--no-ledger', '--quiet', ...extra], { encoding: 'utf8' });
   return JSON.parse(readFileSync(out, 'utf8')) as Result;
 }
 

@@ -15,7 +15,8 @@ import { demoDatabase } from '../helpers/demo-db.ts';
 import { buildDashboard, openDashboard, type DashboardSession } from './harness.ts';
 
 const OUTPUT = path.resolve('test-output/e2e');
-const bin = path.resolve('bin/bandwise.mjs');
+// the command from its sources (bin/run-ts.mjs runs src/cli/main.ts through tsx)
+const cli = [path.resolve('bin/run-ts.mjs'), path.resolve('src/cli/main.ts')];
 const BASE = 'design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=30&measure=log-psd&correction=cluster-mass&permutations=200&seed=2';
 
 describe('a contrast with exclusions travels; paired and covariate labels', () => {
@@ -86,7 +87,7 @@ describe('a contrast with exclusions travels; paired and covariate labels', () =
 
     // the command line on the saved JSON
     const out = path.join(dir, 'result.json');
-    execFileSync(process.execPath, [bin, 'compare', demo, '--contrast', saved, '--out', out, '--no-ledger', '--quiet']);
+    execFileSync(process.execPath, [...cli, 'compare', demo, '--contrast', saved, '--out', out, '--no-ledger', '--quiet']);
     const r = JSON.parse(readFileSync(out, 'utf8')) as { n: Record<string, number>; clusters: { p: number; fminHz: number; fmaxHz: number }[] };
     expect(mine.n).toContain(`control ${r.n.control}, patient ${r.n.patient}`);
     // columns: cluster, sign, direction, from, to, channels, mass, points, p, significant

@@ -11,7 +11,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { FIXTURE_PARTICIPANTS, makeFixtureDb } from '../fixtures/make-fixture-db.ts';
 import { runPython } from '../helpers/python.ts';
 
-const bin = path.join(import.meta.dirname, '..', '..', 'bin', 'bandwise.mjs');
+// the command from its sources (bin/run-ts.mjs runs src/cli/main.ts through tsx)
+const cli = [path.join(import.meta.dirname, '..', '..', 'bin', 'run-ts.mjs'), path.join(import.meta.dirname, '..', '..', 'src', 'cli', 'main.ts')];
 let dir = '';
 let db = '';
 let instance: DuckDBInstance;
@@ -78,7 +79,7 @@ describe('tidy views', () => {
 describe('bandwise cohort-table', () => {
   it('writes a Table 1 by group: n, each participants column, total sleep time, minutes per stage, clean N2 minutes', async () => {
     const out = path.join(dir, 'table1.tsv');
-    execFileSync(process.execPath, [bin, 'cohort-table', db, '--out', out], { encoding: 'utf8' });
+    execFileSync(process.execPath, [...cli, 'cohort-table', db, '--out', out], { encoding: 'utf8' });
     const lines = readFileSync(out, 'utf8').trimEnd().split('\n').map((l) => l.split('\t'));
     expect(lines[0]).toEqual(['characteristic', 'control', 'patient', 'all']);
     const row = (name: string) => lines.find((l) => l[0] === name)!.slice(1);
