@@ -35,7 +35,7 @@ WHERE x.last_bin >= x.first_bin`,
   },
   {
     name: 'tidy_aperiodic',
-    doc: 'Aperiodic fits with the subject: aperiodic_offset (log10 µV²/Hz; the aperiodic table\'s offset), exponent, knee, r2, rmse.',
+    doc: "Aperiodic fits with the subject: aperiodic_offset (log10 µV²/Hz; the aperiodic table's offset), exponent, knee, r2, rmse.",
     sql: `SELECT r.run_id, a.recording_id, r.subject, r.session, a.channel, a.stage, a.reference, a.averaging, a.method, a.fit_lo_hz, a.fit_hi_hz,
   a."offset" AS aperiodic_offset, a.exponent, a.knee, a.r2, a.rmse, a.n_peaks
 FROM aperiodic a JOIN recordings r USING (recording_id)`,
@@ -50,7 +50,7 @@ FROM peaks p JOIN recordings r USING (recording_id)`,
     name: 'tidy_sleep_architecture',
     doc:
       'Sleep architecture per recording (AASM; minutes and %), with clean_n2_min: minutes of N2 kept after epoch rejection, the median over ' +
-      'the recording\'s channels (recorded reference, n_epochs × epoch length).',
+      "the recording's channels (recorded reference, n_epochs × epoch length).",
     sql: `SELECT r.run_id, r.recording_id, r.subject, r.session, r.trt_min, r.tst_min, r.se_pct, r.sol_min, r.waso_min, r.rem_latency_min,
   r.w_min, r.n1_min, r.n2_min, r.n3_min, r.r_min, r.unscored_min,
   (SELECT median(s.n_epochs * r.epoch_length_s / 60) FROM spectra s

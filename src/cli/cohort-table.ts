@@ -35,7 +35,7 @@ export function register(program: Command): void {
     .summary('a Table 1 of the cohort by group (n, participants columns, sleep architecture) as TSV')
     .description(
       'Writes the subjects of an ingest run by group as TSV: n; each participants column as mean (SD) (sample SD, n − 1) ' +
-        'or n (%) per level; total sleep time, sleep efficiency and minutes per stage (AASM, mean over a subject\'s recordings); ' +
+        "or n (%) per level; total sleep time, sleep efficiency and minutes per stage (AASM, mean over a subject's recordings); " +
         'clean N2 minutes (N2 kept after epoch rejection, median over channels). Subjects without a recording in the run are not counted.',
     )
     .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
@@ -56,7 +56,9 @@ export function register(program: Command): void {
           const run = chooseRun(await runs(db), flags.run);
           const sleep = await sleepArchitectureBySubject(db, run.runId);
           if (sleep === null) {
-            console.error('bandwise cohort-table: this database has no tidy views (written by an earlier bandwise): merge it into a new file with `bandwise merge`');
+            console.error(
+              'bandwise cohort-table: this database has no tidy views (written by an earlier bandwise): merge it into a new file with `bandwise merge`',
+            );
             process.exitCode = 1;
             return null;
           }
@@ -70,7 +72,11 @@ export function register(program: Command): void {
           const bySubject = new Map(table.rows.map((p) => [String(p.subject), p]));
           const characteristics = table.columns
             .filter((c) => !NOT_CHARACTERISTICS.has(c.name) && c.name !== flags.groupColumn)
-            .map((c): Characteristic => ({ key: c.name, label: c.name, kind: table.rows.some((p) => typeof p[c.name] === 'number') ? 'numeric' : 'categorical' }))
+            .map((c): Characteristic => ({
+              key: c.name,
+              label: c.name,
+              kind: table.rows.some((p) => typeof p[c.name] === 'number') ? 'numeric' : 'categorical',
+            }))
             .filter((c) => c.kind === 'numeric' || new Set(table.rows.map((p) => p[c.key]).filter((v) => v !== null)).size <= MAX_LEVELS);
           const subjects = [...sleep.entries()].map(([subject, s]) => {
             const p = bySubject.get(subject) ?? {};

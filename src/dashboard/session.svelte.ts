@@ -22,7 +22,7 @@ export class Session {
   /** Open the database served beside the app, if there is one; otherwise stay idle. */
   async openServedIfPresent(): Promise<void> {
     preloadEngine();
-    let served: Response | null = null;
+    let served: Response | null;
     try {
       served = await fetch(SERVED_DATABASE, { method: 'HEAD', cache: 'no-store' });
     } catch {

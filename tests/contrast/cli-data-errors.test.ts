@@ -23,8 +23,14 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 describe('a reference that is not stored', () => {
   it.each(['compare', 'band-check'])('%s says so in one line, naming the stored references', (command) => {
     const extra = command === 'band-check' ? ['--band', 'sigma'] : [];
-    const r = spawnSync(process.execPath, [...cli, command, db, '--groups', 'control,patient', '--reference', 'average', '--no-ledger', '--out', path.join(dir, 'out.json'), ...extra], { encoding: 'utf8' });
+    const r = spawnSync(
+      process.execPath,
+      [...cli, command, db, '--groups', 'control,patient', '--reference', 'average', '--no-ledger', '--out', path.join(dir, 'out.json'), ...extra],
+      { encoding: 'utf8' },
+    );
     expect(r.status, r.stderr).toBe(1);
-    expect(r.stderr).toBe(`bandwise ${command}: no N2 spectra with reference average and averaging mean in run run0000000000001 (stored references: recorded)\n`);
+    expect(r.stderr).toBe(
+      `bandwise ${command}: no N2 spectra with reference average and averaging mean in run run0000000000001 (stored references: recorded)\n`,
+    );
   });
 });

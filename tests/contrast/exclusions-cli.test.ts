@@ -48,7 +48,10 @@ describe('exclusions travel with the contrast JSON', () => {
     // sub-02 out; sub-03 stays, its O1 missing
     expect(carried.n).toEqual({ control: 3, patient: 2 });
     expect(carried.contrast.exclusions).toEqual(LIST);
-    expect(carried.exclusions.map((e) => [e.subject, e.channel, e.subjectStays ?? false])).toEqual([['sub-02', null, false], ['sub-03', 'O1', true]]);
+    expect(carried.exclusions.map((e) => [e.subject, e.channel, e.subjectStays ?? false])).toEqual([
+      ['sub-02', null, false],
+      ['sub-03', 'O1', true],
+    ]);
     const tsv = path.join(dir, 'exclusions.tsv');
     writeFileSync(tsv, 'subject\tchannel\treason\nsub-02\tall\tmovement all night\nsub-03\tO1\tmains hum\n');
     const beside = run('beside', base, ['--exclusions', tsv]);

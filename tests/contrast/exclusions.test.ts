@@ -36,11 +36,23 @@ function cohort(): ContrastData {
 
 describe('the contrast JSON carries its exclusions', () => {
   it('validates them: subject and reason required, channel and stage optional, nothing else', () => {
-    const c = parseContrast({ design: 'groups', groups: ['a', 'b'], exclusions: [{ subject: 's01', reason: 'movement' }, { subject: 's02', channel: 'C3', stage: 'N2', reason: 'loose electrode' }] });
-    expect(c.exclusions).toEqual([{ subject: 's01', reason: 'movement' }, { subject: 's02', channel: 'C3', stage: 'N2', reason: 'loose electrode' }]);
+    const c = parseContrast({
+      design: 'groups',
+      groups: ['a', 'b'],
+      exclusions: [
+        { subject: 's01', reason: 'movement' },
+        { subject: 's02', channel: 'C3', stage: 'N2', reason: 'loose electrode' },
+      ],
+    });
+    expect(c.exclusions).toEqual([
+      { subject: 's01', reason: 'movement' },
+      { subject: 's02', channel: 'C3', stage: 'N2', reason: 'loose electrode' },
+    ]);
     expect(parseContrast({ design: 'groups', groups: ['a', 'b'] }).exclusions).toEqual([]);
     expect(() => parseContrast({ design: 'groups', groups: ['a', 'b'], exclusions: [{ subject: 's01' }] })).toThrow(/exclusions\.0\.reason/);
-    expect(() => parseContrast({ design: 'groups', groups: ['a', 'b'], exclusions: [{ subject: 's01', stage: 'N4', reason: 'x' }] })).toThrow(/exclusions\.0\.stage/);
+    expect(() => parseContrast({ design: 'groups', groups: ['a', 'b'], exclusions: [{ subject: 's01', stage: 'N4', reason: 'x' }] })).toThrow(
+      /exclusions\.0\.stage/,
+    );
     expect(() => parseContrast({ design: 'groups', groups: ['a', 'b'], exclusions: [{ subject: 's01', reason: 'x', note: 'y' }] })).toThrow(/exclusions\.0/);
   });
 
@@ -49,7 +61,10 @@ describe('the contrast JSON carries its exclusions', () => {
     const inJson = assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'], exclusions: [{ subject: 's01', reason: 'movement' }] }), data);
     expect(inJson.nPerGroup).toEqual({ a: 5, b: 6 });
     expect(inJson.excluded).toEqual([{ subject: 's01', channel: null, reason: 'excluded: movement' }]);
-    const beside = assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'] }), { ...data, exclusions: [{ subject: 's01', channel: null, reason: 'movement' }] });
+    const beside = assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'] }), {
+      ...data,
+      exclusions: [{ subject: 's01', channel: null, reason: 'movement' }],
+    });
     expect(Array.from(beside.input.data)).toEqual(Array.from(inJson.input.data));
   });
 });
@@ -57,11 +72,21 @@ describe('the contrast JSON carries its exclusions', () => {
 describe('a channel exclusion is missing data for that channel only', () => {
   it('keeps the subject: its other channels count, the excluded channel rests on one subject fewer (scipy nan_policy="omit")', () => {
     const data = cohort();
-    const c = parseContrast({ design: 'groups', groups: ['a', 'b'], fminHz: 2, fmaxHz: 10, permutations: 100, statistic: 'student-t', exclusions: [{ subject: 's01', channel: 'C3', reason: 'loose electrode' }] });
+    const c = parseContrast({
+      design: 'groups',
+      groups: ['a', 'b'],
+      fminHz: 2,
+      fmaxHz: 10,
+      permutations: 100,
+      statistic: 'student-t',
+      exclusions: [{ subject: 's01', channel: 'C3', reason: 'loose electrode' }],
+    });
     const r = compare(c, data);
     expect(r.n).toEqual({ a: 6, b: 6 });
     expect(r.subjects.map((s) => s.subject)).toContain('s01');
-    expect(r.exclusions).toEqual([{ subject: 's01', channel: 'C3', reason: 'excluded: loose electrode (that channel is missing; the subject stays)', subjectStays: true }]);
+    expect(r.exclusions).toEqual([
+      { subject: 's01', channel: 'C3', reason: 'excluded: loose electrode (that channel is missing; the subject stays)', subjectStays: true },
+    ]);
     const full = assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'], fminHz: 2, fmaxHz: 10 }), data);
     const F = full.input.freqsHz.length;
     const ref = runPython<number[]>(
@@ -78,12 +103,21 @@ describe('a channel exclusion is missing data for that channel only', () => {
     // the methods text says so: nobody left out, the channel missing
     const text = methodsReport(r, null, null).markdown;
     expect(text).toContain('No subject was left out (analysed: a 6, b 6).');
-    expect(text).toContain('treated as missing data, the subject kept for its other channels (each point\'s statistic uses the subjects with a value there):\n\n- s01 (C3): excluded: loose electrode');
+    expect(text).toContain(
+      "treated as missing data, the subject kept for its other channels (each point's statistic uses the subjects with a value there):\n\n- s01 (C3): excluded: loose electrode",
+    );
   });
 
   it('in a paired design, a stage-specific channel exclusion leaves that channel missing (scipy ttest_rel nan_policy="omit")', () => {
     const data = cohort();
-    const c = parseContrast({ design: 'paired', stages: ['N2', 'N3'], fminHz: 2, fmaxHz: 6, permutations: 100, exclusions: [{ subject: 's04', channel: 'C4', stage: 'N3', reason: 'electrode off in N3' }] });
+    const c = parseContrast({
+      design: 'paired',
+      stages: ['N2', 'N3'],
+      fminHz: 2,
+      fmaxHz: 6,
+      permutations: 100,
+      exclusions: [{ subject: 's04', channel: 'C4', stage: 'N3', reason: 'electrode off in N3' }],
+    });
     const r = compare(c, data);
     expect(r.n).toEqual({ pairs: 12 });
     const first = assembleContrast(parseContrast({ design: 'paired', stages: ['N2', 'N3'], fminHz: 2, fmaxHz: 6 }), data);
@@ -101,12 +135,22 @@ describe('a channel exclusion is missing data for that channel only', () => {
     const c = parseContrast({ design: 'covariate', covariate: 'age', exclusions: [{ subject: 's03', channel: 'F3', reason: 'hum' }] });
     const a = assembleContrast(c, cohort());
     expect(a.nPerGroup).toEqual({ subjects: 11 });
-    expect(a.excluded).toEqual([{ subject: 's03', channel: 'F3', reason: 'excluded: hum (a covariate design needs a value at every channel, so the subject is left out)' }]);
+    expect(a.excluded).toEqual([
+      { subject: 's03', channel: 'F3', reason: 'excluded: hum (a covariate design needs a value at every channel, so the subject is left out)' },
+    ]);
   });
 
   it('a channel average is the mean over the channels left', () => {
     const data = cohort();
-    const c = parseContrast({ design: 'groups', groups: ['a', 'b'], channels: ['F3', 'C3'], channelAverage: true, fminHz: 4, fmaxHz: 5, exclusions: [{ subject: 's00', channel: 'C3', reason: 'x' }] });
+    const c = parseContrast({
+      design: 'groups',
+      groups: ['a', 'b'],
+      channels: ['F3', 'C3'],
+      channelAverage: true,
+      fminHz: 4,
+      fmaxHz: 5,
+      exclusions: [{ subject: 's00', channel: 'C3', reason: 'x' }],
+    });
     const a = assembleContrast(c, data);
     const f3 = data.spectra.rows.find((r) => r.subject === 's00' && r.channel === 'F3' && r.stage === 'N2')!.power[4];
     expect(a.input.data[0]).toBeCloseTo(Math.log10(f3), 12);
@@ -116,11 +160,16 @@ describe('a channel exclusion is missing data for that channel only', () => {
 describe('stage-specific exclusions', () => {
   it('apply only to the stage they name', () => {
     const data = cohort();
-    const n2 = (stage: 'N2' | 'N3') => assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'], stage: 'N2', exclusions: [{ subject: 's07', stage, reason: 'arousals' }] }), data).nPerGroup;
+    const n2 = (stage: 'N2' | 'N3') =>
+      assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'], stage: 'N2', exclusions: [{ subject: 's07', stage, reason: 'arousals' }] }), data)
+        .nPerGroup;
     expect(n2('N3')).toEqual({ a: 6, b: 6 });
     expect(n2('N2')).toEqual({ a: 6, b: 5 });
     // a paired N2–N3 contrast loses the pair when either stage is excluded
-    const paired = assembleContrast(parseContrast({ design: 'paired', stages: ['N2', 'N3'], exclusions: [{ subject: 's07', stage: 'N3', reason: 'arousals' }] }), data);
+    const paired = assembleContrast(
+      parseContrast({ design: 'paired', stages: ['N2', 'N3'], exclusions: [{ subject: 's07', stage: 'N3', reason: 'arousals' }] }),
+      data,
+    );
     expect(paired.nPerGroup).toEqual({ pairs: 11 });
     expect(paired.excluded).toEqual([{ subject: 's07', channel: null, stage: 'N3', reason: 'excluded: arousals' }]);
   });

@@ -17,13 +17,18 @@ import { buildDashboard, openDashboard, type DashboardSession } from './harness.
 const OUTPUT = path.resolve('test-output/e2e');
 // the command from its sources (bin/run-ts.mjs runs src/cli/main.ts through tsx)
 const cli = [path.resolve('bin/run-ts.mjs'), path.resolve('src/cli/main.ts')];
-const BASE = 'design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=30&measure=log-psd&correction=cluster-mass&permutations=200&seed=2';
+const BASE =
+  'design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=30&measure=log-psd&correction=cluster-mass&permutations=200&seed=2';
 
 describe('a contrast with exclusions travels; paired and covariate labels', () => {
   let dir: string;
   let demo: string;
   let a: DashboardSession;
-  const participants = readFileSync(path.resolve('demo-cohort/participants.tsv'), 'utf8').trim().split('\n').slice(1).map((l) => l.split('\t'));
+  const participants = readFileSync(path.resolve('demo-cohort/participants.tsv'), 'utf8')
+    .trim()
+    .split('\n')
+    .slice(1)
+    .map((l) => l.split('\t'));
 
   beforeAll(async () => {
     demo = await demoDatabase();
@@ -42,7 +47,10 @@ describe('a contrast with exclusions travels; paired and covariate labels', () =
     await page.getByTestId('contrast-result').waitFor({ timeout: 180_000 });
     await page.getByTestId('cluster-table').locator('tbody tr').first().waitFor();
     const n = await page.getByTestId('contrast-n').innerText();
-    const clusters = await page.getByTestId('cluster-table').locator('tbody tr').evaluateAll((trs) => trs.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim() ?? '')));
+    const clusters = await page
+      .getByTestId('cluster-table')
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim() ?? '')));
     return { n, clusters };
   }
 
@@ -96,7 +104,9 @@ describe('a contrast with exclusions travels; paired and covariate labels', () =
 
   it('a paired N2 → N3 contrast is titled and scaled "N3 − N2"; a covariate one "correlation with age, shown as t"', async () => {
     const { page } = a;
-    await page.goto(`${a.server.url}#/contrast?design=paired&stages=N2,N3&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=20&measure=log-psd&correction=cluster-mass&permutations=100&seed=1`);
+    await page.goto(
+      `${a.server.url}#/contrast?design=paired&stages=N2,N3&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=20&measure=log-psd&correction=cluster-mass&permutations=100&seed=1`,
+    );
     await page.getByTestId('run-contrast').click();
     // the page is the same: wait for this result's figure, not the last one
     await expect.poll(async () => (await page.getByTestId('statistic-map').textContent()) ?? '', { timeout: 180_000 }).toContain('N3 − N2, paired');
@@ -104,7 +114,9 @@ describe('a contrast with exclusions travels; paired and covariate labels', () =
     expect(paired).toContain('paired t, N3 − N2');
     expect(paired).not.toMatch(/patient|control/);
     await page.screenshot({ path: path.join(OUTPUT, 'contrast-paired.png'), fullPage: true });
-    await page.goto(`${a.server.url}#/contrast?design=covariate&covariate=age&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=20&measure=log-psd&correction=cluster-mass&permutations=100&seed=1`);
+    await page.goto(
+      `${a.server.url}#/contrast?design=covariate&covariate=age&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=20&measure=log-psd&correction=cluster-mass&permutations=100&seed=1`,
+    );
     await page.getByTestId('run-contrast').click();
     await expect.poll(async () => (await page.getByTestId('statistic-map').textContent()) ?? '', { timeout: 180_000 }).toContain('N2, correlation with age');
     const covariate = await page.getByTestId('statistic-map').textContent();

@@ -34,7 +34,16 @@ export function statisticLabel(c: Contrast, statistic: string): string {
     const from = statistic === 'spearman' ? 'Spearman ρ' : statistic === 'linear-model-t' ? 'a linear model' : 'Pearson r';
     return `${r} with ${c.covariate}${adjusted(c)}, shown as t (from ${from})`;
   }
-  const name = statistic === 'welch-t' ? 'Welch t' : statistic === 'student-t' ? 'Student t' : statistic === 'paired-t' ? 'paired t' : statistic === 'linear-model-t' ? 't (linear model)' : statistic;
+  const name =
+    statistic === 'welch-t'
+      ? 'Welch t'
+      : statistic === 'student-t'
+        ? 'Student t'
+        : statistic === 'paired-t'
+          ? 'paired t'
+          : statistic === 'linear-model-t'
+            ? 't (linear model)'
+            : statistic;
   return `${name}, ${differenceText(c)}${adjusted(c)}`;
 }
 

@@ -48,7 +48,14 @@ export function cohortTable(subjects: readonly CohortSubject[], characteristics:
       rows.push([`${ch.label}, mean (SD)`, ...columns.map((c) => meanSd(c.map((s) => s.values[ch.key] ?? null)))]);
       continue;
     }
-    const levels = [...new Set(subjects.map((s) => s.values[ch.key]).filter((v) => v !== null && v !== undefined).map(String))].sort();
+    const levels = [
+      ...new Set(
+        subjects
+          .map((s) => s.values[ch.key])
+          .filter((v) => v !== null && v !== undefined)
+          .map(String),
+      ),
+    ].sort();
     for (const level of levels) {
       rows.push([
         `${ch.label} = ${level}, n (%)`,
