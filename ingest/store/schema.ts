@@ -9,6 +9,7 @@
  * No table has a column for the EDF "local patient identification" or "local recording
  * identification" header fields: they often hold names and birth dates.
  */
+import { VIEWS, createViewSql } from './views.ts';
 
 /** SQL column types used by the store. FLOAT[] is a variable-length list of 32-bit floats. */
 export type SqlType = 'VARCHAR' | 'INTEGER' | 'DOUBLE' | 'FLOAT' | 'BOOLEAN' | 'FLOAT[]' | 'JSON' | 'TIMESTAMP';
@@ -325,9 +326,9 @@ export function createTableSql(table: TableDef): string {
   return `CREATE TABLE IF NOT EXISTS ${quoteIdent(table.name)} (\n${lines.join(',\n')}\n)`;
 }
 
-/** CREATE statements for all fixed tables (participants is created by participantsCreateSql). */
+/** CREATE statements for all fixed tables (participants is created by participantsCreateSql), then the tidy views (views.ts). */
 export function schemaSql(): string[] {
-  return TABLES.map(createTableSql);
+  return [...TABLES.map(createTableSql), ...VIEWS.map(createViewSql)];
 }
 
 /** participants(subject VARCHAR first, then every other cohort column as DOUBLE or VARCHAR). */

@@ -40,23 +40,29 @@ export function register(program: Command): void {
     .option('--flank-width <hz>', 'width of each flank, Hz (default: the band\'s width)', positive('--flank-width'));
   addContrastOptions(command, { bandMeasures: false });
   command.action(async (database: string, flags: BandFlags) => {
+    if (flags.measure !== undefined) {
+      console.error('bandwise band-check: --measure is not used: the band check tests its own fixed set of measures (README "band-check")');
+      process.exitCode = 2;
+      return;
+    }
     // loaded on use: `bandwise --help` reads none of the analysis code
     const { default: cliProgress } = await import('cli-progress');
-    const { parseExclusionsTsv } = await import('../core/contrast/exclusions.ts');
+    const { parseExclusionsTsv, withExclusions } = await import('../core/contrast/exclusions.ts');
     const { bandCheckDatabase } = await import('../analysis/band-check-runner.ts');
     const { appendLedger } = await import('../analysis/ledger.ts');
     const { reportUserError } = await import('./user-errors.ts');
     const { partLine } = await import('../core/confirmation/methods-text.ts');
     const band = inputOrExit(() => parseBand(flags.band));
     if (!band) return;
-    const contrast = contrastOrExit({ ...flags, band: undefined });
-    if (!contrast) return;
-    const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
+    const given = contrastOrExit({ ...flags, band: undefined });
+    if (!given) return;
+    // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran
+    const contrast = flags.exclusions ? withExclusions(given, parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions)) : given;
     const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'band check {bar} {value}/{total} tests | {step}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
     let started = false;
     let result: BandCheckRun;
     try {
-      result = await bandCheckDatabase(database, contrast, band, exclusions, {
+      result = await bandCheckDatabase(database, contrast, band, [], {
         alpha: flags.alpha,
         flankWidthHz: flags.flankWidth,
         onProgress: (step, done, total) => {

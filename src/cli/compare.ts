@@ -56,19 +56,21 @@ export function register(program: Command): void {
     .action(async (database: string, flags: Flags) => {
       // loaded on use: `bandwise --help` reads none of the analysis code
       const { default: cliProgress } = await import('cli-progress');
-      const { parseExclusionsTsv } = await import('../core/contrast/exclusions.ts');
+      const { parseExclusionsTsv, withExclusions } = await import('../core/contrast/exclusions.ts');
+      const { designTitle, signText } = await import('../core/contrast/labels.ts');
       const { compareDatabase } = await import('../analysis/compare-runner.ts');
       const { appendLedger } = await import('../analysis/ledger.ts');
       const { reportUserError } = await import('./user-errors.ts');
       const { partLine } = await import('../core/confirmation/methods-text.ts');
-      const contrast = contrastOrExit(flags);
-      if (!contrast) return;
-      const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
+      const given = contrastOrExit(flags);
+      if (!given) return;
+      // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran
+      const contrast = flags.exclusions ? withExclusions(given, parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions)) : given;
       const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'permutations {bar} {value}/{total} | ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
       let started = false;
       let result: CompareRun;
       try {
-        result = await compareDatabase(database, contrast, exclusions, (done, total) => {
+        result = await compareDatabase(database, contrast, [], (done, total) => {
           if (!bar) return;
           if (!started) {
             bar.start(total, 0);
@@ -88,7 +90,7 @@ export function register(program: Command): void {
       if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, result);
       const n = Object.entries(result.n).map(([k, v]) => `${k} ${v}`).join(', ');
       const best = result.clusters[0];
-      console.log(`${result.measure}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${best.sign > 0 ? '+' : '−'}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
+      console.log(`${result.measure}; ${designTitle(result.contrast)}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${signText(result.contrast, best.sign)}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
       for (const note of result.notes) console.log(note);
       const part = partLine(result);
       if (part) console.log(part);

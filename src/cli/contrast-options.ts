@@ -121,7 +121,7 @@ export function contrastOrExit(flags: Flags): Contrast | null {
 export function addContrastOptions(command: Command, o: { bandMeasures: boolean }): Command {
   command
     .option('--contrast <file>', 'contrast JSON (the format the dashboard saves)')
-    .option('--exclusions <file>', 'TSV of subjects/channels to leave out (subject, channel, reason), as the dashboard exports it')
+    .option('--exclusions <file>', 'TSV of subjects/channels to leave out (subject, channel, optional stage, reason), as the dashboard exports it; added to the contrast\'s "exclusions"')
     .option('--run <id>', 'ingest run to read (default: the most recent finished run)')
     .option('--ledger <file>', 'ledger file (JSON lines) this analysis is appended to, so reports can count every analysis run (default: <database>.ledger.jsonl)')
     .option('--no-ledger', 'do not record this analysis in the ledger')

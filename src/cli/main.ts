@@ -23,6 +23,7 @@ const COMMANDS: [name: string, summary: string, load: () => Promise<CommandFile>
   ['split', 'split the subjects into an exploration part and a held-out confirmation part (optionally blinded)', () => import('./split.ts')],
   ['lock', 'fix the analysis plan (contrasts, run, exclusions, split) before the confirmation part is analysed', () => import('./lock.ts')],
   ['confirm', 'run a locked plan once on the held-out confirmation part, unblinded', () => import('./confirm.ts')],
+  ['cohort-table', 'a Table 1 of the cohort by group (n, participants columns, sleep architecture) as TSV', () => import('./cohort-table.ts')],
   ['power', "power of a whole contrast by simulation from a reference group's own spectra (study planning)", () => import('./power.ts')],
   ['deviation', 'score every subject against a reference group per channel × frequency (z maps; not a diagnosis)', () => import('./deviation.ts')],
   ['dashboard', 'open the dashboard on a database (served on 127.0.0.1 only)', () => import('./dashboard.ts')],

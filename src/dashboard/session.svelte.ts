@@ -1,6 +1,7 @@
 // The open database, shared by every view.
 import { openPickedFile, openServedDatabase, preloadEngine, type CohortConnection } from './db/connection.ts';
 import type { ReportableResult } from '../core/report/index.ts';
+import { servedDatabaseName } from './db/served-name.ts';
 import { runs, type RunInfo } from '../queries/runs.ts';
 import { cohortSchema, type CohortSchema } from '../queries/schema.ts';
 import { NO_WORKFLOW, workflowOf, type WorkflowState } from '../queries/workflow.ts';
@@ -24,13 +25,15 @@ export class Session {
   /** Open the database served beside the app, if there is one; otherwise stay idle. */
   async openServedIfPresent(): Promise<void> {
     preloadEngine();
-    let served: boolean;
+    let served: Response | null;
     try {
-      served = (await fetch(SERVED_DATABASE, { method: 'HEAD', cache: 'no-store' })).ok;
+      served = await fetch(SERVED_DATABASE, { method: 'HEAD', cache: 'no-store' });
     } catch {
-      served = false;
+      served = null;
     }
-    if (served) await this.open(() => openServedDatabase(SERVED_DATABASE));
+    // the server names the file it serves (its real name, not the URL's)
+    const name = served?.ok ? servedDatabaseName(served.headers.get('Content-Disposition')) : null;
+    if (served?.ok) await this.open(() => openServedDatabase(SERVED_DATABASE, name ?? undefined));
   }
 
   async openFile(file: File): Promise<void> {
@@ -65,10 +68,15 @@ export class Session {
     }
   }
 
+  /** The open database's file name, not its path (as a command line would name it). */
+  get databaseName(): string {
+    return this.db?.name ?? 'cohort.duckdb';
+  }
+
   /** What a result records of the database it ran on (the methods report's database line): the file name, not its path. */
   resultDatabase(runId: string): NonNullable<ReportableResult['database']> {
     const run = this.runs.find((r) => r.runId === runId);
-    return { file: (this.db?.source ?? 'database').split('/').pop()!, runId, toolVersion: run?.toolVersion ?? '', ingestParameters: run?.parameters ?? null };
+    return { file: this.db ? this.databaseName : 'database', runId, toolVersion: run?.toolVersion ?? '', ingestParameters: run?.parameters ?? null };
   }
 }
 

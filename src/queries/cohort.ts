@@ -143,3 +143,23 @@ export async function ingestErrors(db: SqlClient, schema: CohortSchema): Promise
     ),
   );
 }
+
+/** The tidy_sleep_architecture columns a cohort table summarises per subject. */
+export const SLEEP_COLUMNS = ['tst_min', 'se_pct', 'w_min', 'n1_min', 'n2_min', 'n3_min', 'r_min', 'clean_n2_min'] as const;
+
+/**
+ * Sleep architecture per subject of a run (mean over the subject's recordings), from the
+ * tidy_sleep_architecture view (ingest/store/views.ts); null when the database has no tidy views
+ * (written by an earlier bandwise).
+ */
+export async function sleepArchitectureBySubject(db: SqlClient, runId: string): Promise<Map<string, Record<string, number | null>> | null> {
+  const views = rowsOf(await db.query(`SELECT count(*)::DOUBLE AS n FROM duckdb_views() WHERE database_name = ${literal(COHORT)} AND view_name = 'tidy_sleep_architecture'`));
+  if (Number(views[0].n) === 0) return null;
+  const rows = rowsOf(
+    await db.query(
+      `SELECT subject::VARCHAR AS subject, ${SLEEP_COLUMNS.map((c) => `avg(${c})::DOUBLE AS ${c}`).join(', ')}
+       FROM ${COHORT}.tidy_sleep_architecture WHERE run_id = ${literal(runId)} GROUP BY subject ORDER BY subject`,
+    ),
+  );
+  return new Map(rows.map((r) => [String(r.subject), Object.fromEntries(SLEEP_COLUMNS.map((c) => [c, r[c] === null ? null : Number(r[c])]))]));
+}

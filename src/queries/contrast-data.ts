@@ -3,6 +3,7 @@
 // split exists it hands over one part's subjects only (src/core/confirmation/part-data.ts).
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from '../core/contrast/data.ts';
 import { measureNeeds } from '../core/contrast/measure.ts';
+import { ContrastDataError } from '../core/contrast/assemble.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
 import type { Stage } from '../core/stages.ts';
 import { partData, type PartView } from '../core/confirmation/part-data.ts';
@@ -12,7 +13,7 @@ import { participants } from './cohort.ts';
 import { aperiodicRows, peakRows, recordedReferences } from './fits.ts';
 import { chooseRun, type RunInfo } from './runs.ts';
 import type { CohortSchema } from './schema.ts';
-import { spectraRows } from './spectra.ts';
+import { spectraRows, storedReferences } from './spectra.ts';
 import { partViewOf, workflowOf } from './workflow.ts';
 
 /** The rows an analysis read, with the run they came from. */
@@ -91,7 +92,10 @@ export async function loadContrastData(
   const aperiodic: AperiodicRow[] = ([] as AperiodicRow[]).concat(...perStage.map(([, a]) => a));
   const peaks: PeakRow[] = ([] as PeakRow[]).concat(...perStage.map(([, , p]) => p));
   performance.mark('bandwise:contrast-data');
-  if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
+  if (rows.length === 0) {
+    const stored = await storedReferences(db, run.runId);
+    throw new ContrastDataError(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId} (stored references: ${stored.join(', ') || 'none'})`);
+  }
   return {
     runId: run.runId,
     toolVersion: run.toolVersion,

@@ -151,3 +151,12 @@ export async function channelSpectra(db: SqlClient, sel: { channel: string; stag
   }
   return { recordingIds, freqStartHz: n > 0 ? f0[0] : 0, freqStepHz: n > 0 ? df[0] : 0, nBins, power };
 }
+
+/** The references a run stored spectra for, sorted. */
+export async function storedReferences(db: SqlClient, runId: string): Promise<string[]> {
+  const r = await db.query(
+    `SELECT DISTINCT s.reference::VARCHAR AS reference FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
+     WHERE r.run_id = ${literal(runId)} ORDER BY reference`,
+  );
+  return texts(r, 'reference');
+}

@@ -65,6 +65,11 @@ const CONTENT_TYPES: Record<string, string> = {
   '.duckdb': 'application/octet-stream',
 };
 
+/** Percent-encoding of an RFC 5987 ext-value: every byte outside attr-char (RFC 5987 §3.2.1). */
+function rfc5987(text: string): string {
+  return encodeURIComponent(text).replace(/['()*!]/g, (c) => `%${c.charCodeAt(0).toString(16).toUpperCase()}`);
+}
+
 function contentType(file: string): string {
   return CONTENT_TYPES[path.extname(file).toLowerCase()] ?? 'application/octet-stream';
 }
@@ -178,7 +183,9 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     }
     // Vite names files under assets/ by content hash, so they never change under one name.
     const cache = pathOnly.startsWith('/assets/') ? 'public, max-age=31536000, immutable' : 'no-cache';
-    await sendFile(req, res, target.file, target.size, cache);
+    // the database carries its real file name, which the app shows (RFC 6266 §4.3, RFC 5987 ext-value)
+    const named: Record<string, string> = pathOnly === DATABASE_URL_PATH ? { 'Content-Disposition': `inline; filename*=UTF-8''${rfc5987(path.basename(dbFile))}` } : {};
+    await sendFile(req, res, target.file, target.size, cache, named);
   }
 
   async function sendFile(
@@ -187,9 +194,11 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     file: string,
     size: number,
     cacheControl: string,
+    extra: Record<string, string> = {},
   ): Promise<void> {
     const headers = {
       ...SECURITY_HEADERS,
+      ...extra,
       'Cache-Control': cacheControl,
       'Content-Type': contentType(file),
       'Accept-Ranges': 'bytes',

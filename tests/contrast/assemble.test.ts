@@ -96,12 +96,14 @@ describe('assembling a contrast', () => {
     data.spectra.rows = data.spectra.rows.filter((r) => !(r.subject === 's07' && r.channel === 'C4'));
     const a = assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'] }), data);
     expect(a.excluded).toEqual([
-      { subject: 's01', channel: null, reason: 'excluded in the quality screen: movement all night' },
-      { subject: 's02', channel: 'C3', reason: 'excluded in the quality screen: loose electrode' },
+      { subject: 's01', channel: null, reason: 'excluded: movement all night' },
+      { subject: 's02', channel: 'C3', reason: 'excluded: loose electrode (that channel is missing; the subject stays)', subjectStays: true },
       { subject: 's06', channel: 'P3', reason: 'N2 spectrum of P3 flagged: too few clean epochs (4)' },
       { subject: 's07', channel: 'C4', reason: 'no N2 spectrum for C4' },
     ]);
-    expect(a.nPerGroup).toEqual({ a: 3, b: 3 });
+    // s02 stays: its C3 exclusion is missing data for C3 only
+    expect(a.nPerGroup).toEqual({ a: 4, b: 3 });
+    expect(a.input.allowMissing).toBe(true);
     // s03's exclusion names a channel outside the contrast's channels, so s03 stays
     expect(a.subjects.map((s) => s.subject)).toContain('s03');
   });

@@ -56,3 +56,18 @@ describe('compare and band-check read --band with one grammar', () => {
     }
   });
 });
+
+// Options a command or design does not use are refused in one line with exit status 2, never
+// ignored (README "compare"/"band-check"): the band check tests its own fixed measures, and a
+// paired design compares every subject's two stages, so --groups would silently do nothing.
+describe('options that would be ignored are refused', () => {
+  const cases: [string, string[], string][] = [
+    ['band-check', ['--groups', 'control,patient', '--band', 'sigma', '--measure', 'relative'], 'bandwise band-check: --measure is not used: the band check tests its own fixed set of measures (README "band-check")\n'],
+    ['compare', ['--design', 'paired', '--stages', 'N2,N3', '--groups', 'control,patient'], 'invalid contrast:\n  groups: "groups" is used by the groups design only (a paired design compares each subject\'s two conditions; leave subjects out with exclusions)\n'],
+  ];
+  it.each(cases)('%s %j', (command, args, message) => {
+    const r = cli([command, path.join(dir, 'missing.duckdb'), ...args, '--out', path.join(dir, 'out.json')]);
+    expect(r.status, r.stderr).toBe(2);
+    expect(r.stderr).toBe(message);
+  });
+});

@@ -70,6 +70,19 @@ describe('contrast in the address bar', () => {
     }
   });
 
+  it('carries the exclusions, so another browser opening the address runs the same contrast', () => {
+    const c = parseContrast({
+      design: 'groups',
+      groups: ['control', 'patient'],
+      exclusions: [{ subject: 'ctl 04', reason: 'movement, all night: 50% & more' }, { subject: 'pat02', channel: 'C3', stage: 'N2', reason: 'loose electrode' }],
+    });
+    const hash = formatHash({ view: 'contrast', params: { ...paramsFromContrast(c), run: '1' } });
+    expect(contrastFromParams(parseHash(hash).params).exclusions).toEqual(c.exclusions);
+    // a contrast without exclusions writes none; an address without them has none
+    expect(paramsFromContrast(parseContrast({ design: 'groups', groups: ['a', 'b'] })).exclusions).toBe('');
+    expect(() => contrastFromParams({ design: 'groups', groups: 'a,b', exclusions: '[{"subject":' })).toThrow(/address bar: exclusions is not valid JSON/);
+  });
+
   it('names a bad value', () => {
     expect(() => contrastFromParams({ design: 'groups', groups: 'a,b', fminHz: 'x' })).toThrow(/fminHz=x is not a number/);
     expect(() => contrastFromParams({ design: 'groups', groups: 'a,b', fminHz: '40', fmaxHz: '30' })).toThrow(/fmaxHz/);

@@ -9,6 +9,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startDashboardServer, type DashboardServer, type RequestLogEntry } from '../../src/server/serve.ts';
+import { servedDatabaseName } from '../../src/dashboard/db/served-name.ts';
 
 interface Reply {
   status: number;
@@ -222,5 +223,29 @@ describe('dashboard server', () => {
     await expect(startDashboardServer({ dbPath, appDir, port: 70000 })).rejects.toThrow(/port must be an integer/);
     // the port given is taken (by the server under test): EADDRINUSE, no silent fallback
     await expect(startDashboardServer({ dbPath, appDir, port })).rejects.toThrow(/EADDRINUSE/);
+  });
+});
+
+// The dashboard names the served database by its real file name (issue 23: the header showed
+// "cohort.duckdb" for every file): the server sends it as Content-Disposition with an RFC 5987
+// ext-value (RFC 6266 §4.1, §4.3: filename*=UTF-8''<percent-encoded>), and the app reads it back.
+describe('the served database’s file name', () => {
+  it('travels in Content-Disposition and is read back by the app', async () => {
+    const dir = mkdtempSync(path.join(os.tmpdir(), 'bandwise-serve-name-'));
+    const name = 'night study – 2025 "a".duckdb';
+    writeFileSync(path.join(dir, name), Buffer.alloc(10));
+    mkdirSync(path.join(dir, 'app'));
+    writeFileSync(path.join(dir, 'app', 'index.html'), '<!doctype html>');
+    const s = await startDashboardServer({ dbPath: path.join(dir, name), appDir: path.join(dir, 'app') });
+    try {
+      const r = await request(Number(new URL(s.url).port), 'HEAD', '/data/cohort.duckdb');
+      expect(r.headers['content-disposition']).toBe("inline; filename*=UTF-8''night%20study%20%E2%80%93%202025%20%22a%22.duckdb");
+      expect(servedDatabaseName(r.headers['content-disposition'] ?? null)).toBe(name);
+      expect(servedDatabaseName(null)).toBeNull();
+      expect(servedDatabaseName('inline')).toBeNull();
+    } finally {
+      await s.close();
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });

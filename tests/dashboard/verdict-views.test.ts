@@ -13,7 +13,7 @@ import { bandFromParams, withEdges } from '../../src/dashboard/analysis/band-tex
 import { bandCheckFromParams, paramsFromBandCheck } from '../../src/dashboard/views/band-check/band-check-params.ts';
 import { EFFECTS, effectRows } from '../../src/dashboard/views/band-check/band-check-data.ts';
 import { markdownBlocks, parseResultJson, ResultFileError } from '../../src/dashboard/views/report/report-data.ts';
-import { matrixDots, matrixRows, shareSentence } from '../../src/dashboard/views/robustness/robustness-data.ts';
+import { matrixDots, matrixRows, measureSentence, shareSentence } from '../../src/dashboard/views/robustness/robustness-data.ts';
 import { paramsFromChoices, pathChoicesFromParams, RobustnessParamError, toggled } from '../../src/dashboard/views/robustness/robustness-params.ts';
 
 const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'Cz'], permutations: 500, seed: 7 });
@@ -81,6 +81,8 @@ describe('robustness choices', () => {
     expect(dots).toHaveLength(6 * 2); // each path: its measure and its band edges
     expect(dots.filter((d) => d.significant)).toHaveLength(3 * 2); // effects −3, −2 and 2
     expect(shareSentence(curve)).toBe('3 of 6 paths (50 %) have p < 0.05; 2 of them have the sign of the median effect (median g = −0.50).');
+    // effect sizes of different measures are not pooled (issue 23): absolute paths have effects −3, −2, −1, residual ones 0, 1, 2
+    expect(measureSentence(curve)).toBe('By measure — absolute log10 power: 2 of 3 paths with p < 0.05, median g = −2.00; residual: 1 of 3 paths with p < 0.05, median g = 1.00.');
   });
 });
 

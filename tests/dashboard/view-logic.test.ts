@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { Random } from '../../src/core/stats/random.ts';
 import { inverseDistance, mapElectrodes, MAP_RADIUS } from '../../src/dashboard/components/scalp-map.ts';
 import { spectrumQuartiles, quantileSorted } from '../../src/dashboard/views/quality/cohort-band.ts';
-import { buildGrid, RECORDING_COLUMN } from '../../src/dashboard/views/quality/quality-data.ts';
+import { buildGrid, defaultGridStage, RECORDING_COLUMN } from '../../src/dashboard/views/quality/quality-data.ts';
 import { meanWithInterval } from '../../src/dashboard/views/spectra/group-mean.ts';
 import type { QualityRecord } from '../../src/queries/quality.ts';
 import { runPython } from '../helpers/python.ts';
@@ -130,5 +130,15 @@ describe('quality grid', () => {
     expect(cell('s-b', 'O2').worst).toBe('flat-channel');
     expect(cell('s-b', RECORDING_COLUMN).score).toBe(0.1);
     expect(g.cells.find((x) => x.subject === 's-b' && x.channel === 'C3')).toBeUndefined();
+  });
+});
+
+// The quality grid opens on N2, the stage most sleep-spectral analyses use (common practice): on
+// "all stages" N1 rows, rarely clean and not analysed, would paint the grid orange.
+describe('the quality grid’s first stage', () => {
+  it('is N2 when stored, else the first stored stage, else all stages', () => {
+    expect(defaultGridStage(['W', 'N1', 'N2', 'N3', 'R'])).toBe('N2');
+    expect(defaultGridStage(['W', 'R'])).toBe('W');
+    expect(defaultGridStage([])).toBe('all');
   });
 });

@@ -108,6 +108,8 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     const hummed = truth.subjects.find((t) => t.artifacts[0]?.kind === 'mains')!.subject;
     await page.locator(`[data-testid=quality-grid] rect[data-cell="${hummed}|Cz"]`).click();
     await page.getByTestId('cell-spectrum').locator('svg').first().waitFor({ timeout: 30_000 });
+    // the detail opens in view (issue 23): its top lies inside the window
+    expect(await page.getByTestId('cell-detail').evaluate((el) => el.getBoundingClientRect().top >= 0 && el.getBoundingClientRect().top < window.innerHeight)).toBe(true);
     expect(new URL(page.url()).hash).toContain(`subject=${hummed}`);
     expect(await page.getByTestId('cell-reasons').innerText()).toContain('50 Hz');
     await page.getByTestId('cell-band-power').locator('svg').first().waitFor();
@@ -162,12 +164,13 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
       return h.reduce((a, b) => a + b, 0) / h.length >= 0.7;
     });
     expect(planted.sort()).toEqual(['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz']);
-    // columns: cluster, sign, from, to, channels, mass, points, p, significant
-    const spindle = clusters.find((r) => r[1] === '−' && Number(r[7]) < 0.05 && Number(r[2]) <= 13.5 && Number(r[3]) >= 13.5);
+    // columns: cluster, sign, direction, from, to, channels, mass, points, p, significant
+    const spindle = clusters.find((r) => r[1] === '−' && Number(r[8]) < 0.05 && Number(r[3]) <= 13.5 && Number(r[4]) >= 13.5);
     expect(spindle, JSON.stringify(clusters)).toBeDefined();
-    expect(Number(spindle![2])).toBeGreaterThanOrEqual(SIGMA.loHz - 1);
-    expect(Number(spindle![3])).toBeLessThanOrEqual(SIGMA.hiHz + 1);
-    const chans = spindle![4].split(' ');
+    expect(spindle![2]).toBe('patient < control');
+    expect(Number(spindle![3])).toBeGreaterThanOrEqual(SIGMA.loHz - 1);
+    expect(Number(spindle![4])).toBeLessThanOrEqual(SIGMA.hiHz + 1);
+    const chans = spindle![5].split(' ');
     for (const ch of planted) expect(chans).toContain(ch);
     await page.getByTestId('statistic-map').locator('svg').first().waitFor();
     await page.getByTestId('cluster-map-1').locator('svg').first().waitFor();

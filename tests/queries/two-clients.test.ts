@@ -58,6 +58,7 @@ const CALLS: Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>[]
     groupSizes: async (db, ctx) => [await cohort.groupSizes(db, ctx.schema, null), await cohort.groupSizes(db, ctx.schema, 'group'), await cohort.groupSizes(db, ctx.schema, 'sex')],
     recordingsOverview: async (db, ctx) => [await cohort.recordingsOverview(db, ctx.schema, 'group'), await cohort.recordingsOverview(db, ctx.schema, null)],
     ingestErrors: (db, ctx) => cohort.ingestErrors(db, ctx.schema),
+    sleepArchitectureBySubject: (db, ctx) => cohort.sleepArchitectureBySubject(db, ctx.runId),
   },
   {
     spectraRows: async (db, ctx) => [
@@ -67,6 +68,7 @@ const CALLS: Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>[]
       await spectra.spectraRows(db, key('N2', 'average')(ctx)),
     ],
     channelSpectra: (db) => spectra.channelSpectra(db, { channel: 'C3', stage: 'N2', reference: 'recorded', averaging: 'mean' }),
+    storedReferences: (db, ctx) => spectra.storedReferences(db, ctx.runId),
   },
   {
     aperiodicRows: async (db, ctx) => [await fits.aperiodicRows(db, key('N2')(ctx), 'fit'), await fits.aperiodicRows(db, key('R', 'linked-mastoids', 'median')(ctx), 'fit')],

@@ -74,12 +74,21 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
 
   // who takes part, by design
   const participants = new Map(data.participants.map((p) => [String(p.subject), p]));
+  // exclusions the contrast carries and those given beside it (a TSV, a browser's list); one of
+  // another stage, or of a channel the contrast does not use, does not apply
   const userExcluded = new Map<string, Exclusion[]>();
-  for (const e of data.exclusions) {
+  const carried = c.exclusions.map((x): Exclusion => ({ subject: x.subject, channel: x.channel ?? null, ...(x.stage ? { stage: x.stage } : {}), reason: x.reason }));
+  for (const e of [...data.exclusions, ...carried]) {
+    if (e.stage !== undefined && !conds.some((d) => d.stage === e.stage)) continue;
+    if (e.channel !== null && !channels.includes(e.channel)) continue;
     if (!userExcluded.has(e.subject)) userExcluded.set(e.subject, []);
     userExcluded.get(e.subject)!.push(e);
   }
-  const candidates: { subject: string; group: string | null; covariate: number | null; nuisance: number[] }[] = [];
+  // a channel exclusion is missing data for that channel where the statistic allows missing values
+  // (src/core/stats/missing.ts: two groups without nuisance covariates, paired); elsewhere the subject is left out
+  const missingOk = c.design === 'paired' || (c.design === 'groups' && c.nuisance.length === 0 && c.statistic !== 'linear-model-t');
+  const stageOf = (e: Exclusion) => (e.stage ? { stage: e.stage } : {});
+  const candidates: { subject: string; group: string | null; covariate: number | null; nuisance: number[]; channelsOut: Exclusion[] }[] = [];
   for (const subject of [...sessionsOf.keys()].sort()) {
     const p = participants.get(subject);
     let group: string | null = null;
@@ -110,10 +119,15 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
     }
     const own = userExcluded.get(subject) ?? [];
     const whole = own.find((e) => e.channel === null);
-    const channelHit = own.find((e) => e.channel !== null && channels.includes(e.channel));
-    if (whole || channelHit) {
-      const e = whole ?? channelHit!;
-      excluded.push({ subject, channel: e.channel, reason: `excluded in the quality screen: ${e.reason}` });
+    if (whole) {
+      excluded.push({ subject, channel: null, ...stageOf(whole), reason: `excluded: ${whole.reason}` });
+      continue;
+    }
+    const channelsOut = own.filter((e) => e.channel !== null);
+    if (channelsOut.length > 0 && !missingOk) {
+      const e = channelsOut[0];
+      const needs = c.design === 'covariate' ? 'a covariate design' : 'a design with nuisance covariates';
+      excluded.push({ subject, channel: e.channel, ...stageOf(e), reason: `excluded: ${e.reason} (${needs} needs a value at every channel, so the subject is left out)` });
       continue;
     }
     if (c.design !== 'paired' || !c.sessions) {
@@ -122,7 +136,7 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
         throw new ContrastDataError(`subject ${subject} has several sessions (${[...sessions].join(', ')}): say which one with "session"`);
       }
     }
-    candidates.push({ subject, group, covariate, nuisance });
+    candidates.push({ subject, group, covariate, nuisance, channelsOut });
   }
 
   // values per candidate, written straight into the subjects × points matrices (one per
@@ -137,17 +151,30 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
   const kept: typeof candidates = [];
   const scratch = new Float64Array(P);
   const present = new Int32Array(P); // channels with a value per point (channel average of a measure that may be missing)
+  let anyExcludedChannel = false;
   for (const cand of candidates) {
     let reason: { channel: string | null; text: string } | null = null;
     const onlySession = sessionsOf.get(cand.subject)!.values().next().value ?? null;
+    const isOut = (ch: string, stage: Stage) => cand.channelsOut.some((e) => e.channel === ch && (e.stage === undefined || e.stage === stage));
+    let wroteMissing = false;
     for (let di = 0; di < conds.length && !reason; di++) {
       const cond = conds[di];
       const session = cond.session ?? onlySession;
       const values = matrices[di].subarray(kept.length * width, (kept.length + 1) * width);
       values.fill(0);
       present.fill(0);
+      const nLeft = channels.filter((ch) => !isOut(ch, cond.stage)).length;
+      if (nLeft === 0) reason = { channel: null, text: `excluded: every channel of ${cond.name} is on the exclusion list` };
       for (let ci = 0; ci < channels.length && !reason; ci++) {
         const ch = channels[ci];
+        if (isOut(ch, cond.stage)) {
+          // missing data: NaN at the channel's points, or left out of the channel average
+          if (!c.channelAverage) {
+            values.fill(NaN, ci * P, (ci + 1) * P);
+            wroteMissing = true;
+          }
+          continue;
+        }
         const k = key(cand.subject, session, ch, cond.stage);
         const row = spectra.get(k);
         if (!row) {
@@ -177,7 +204,7 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
             break;
           }
           // channel average: mean of the measure over the channels (common practice)
-          if (c.channelAverage) values[j] += scratch[j] / channels.length;
+          if (c.channelAverage) values[j] += scratch[j] / nLeft;
           else values[ci * P + j] = scratch[j];
         }
       }
@@ -188,6 +215,9 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
       excluded.push({ subject: cand.subject, channel: reason.channel, reason: reason.text });
       continue;
     }
+    const stays = c.channelAverage ? 'left out of the channel average; the subject stays' : 'that channel is missing; the subject stays';
+    for (const e of cand.channelsOut) excluded.push({ subject: cand.subject, channel: e.channel, ...stageOf(e), reason: `excluded: ${e.reason} (${stays})`, subjectStays: true });
+    anyExcludedChannel ||= wroteMissing;
     kept.push(cand);
   }
 
@@ -223,7 +253,7 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
     data: data0,
     design,
     ...(c.channelAverage || channels.length < 2 ? { channelNeighbours: null } : {}),
-    ...(layout.missingAllowed ? { allowMissing: true } : {}),
+    ...(layout.missingAllowed || anyExcludedChannel ? { allowMissing: true } : {}),
   };
   return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels };
 }

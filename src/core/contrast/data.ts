@@ -45,12 +45,16 @@ export interface PeakRow {
   bandwidthHz: number;
 }
 
-/** A subject, or one channel of a subject, left out of every contrast, with the reason. */
+/** A subject, or one channel of a subject, left out of a contrast, with the reason. */
 export interface Exclusion {
   subject: string;
   /** null: the whole subject */
   channel: string | null;
+  /** only this stage (absent: every stage) */
+  stage?: Exclude<Stage, 'unscored'>;
   reason: string;
+  /** true: only this channel's values are missing, the subject stays in the analysis */
+  subjectStays?: boolean;
 }
 
 /** What a stored channel was recorded against, as its EDF label names it (channels.reference_electrode; null: none named). */

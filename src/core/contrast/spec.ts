@@ -21,6 +21,11 @@ const band = z.union([z.string(), bandObject]).transform((b, ctx): Band => {
   }
 });
 
+/** A subject, or one channel of it, left out of the contrast, in every stage or one: the contrast carries its exclusions. */
+const exclusion = z
+  .object({ subject: z.string().min(1), channel: z.string().min(1).optional(), stage: stage.optional(), reason: z.string().min(1) })
+  .strict();
+
 export const MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center', 'peak-width'] as const;
 export type MeasureName = (typeof MEASURES)[number];
 
@@ -61,6 +66,8 @@ export const contrastSchema = z
     clusterP: z.number().gt(0).lt(1).default(0.05),
     permutations: z.number().int().positive().default(1000),
     seed: z.number().int().default(1),
+    /** subjects or channels left out (a channel exclusion is missing data for that channel where the design allows it) */
+    exclusions: z.array(exclusion).default([]),
     tfce: z.object({ E: z.number().positive(), H: z.number().positive(), dh: z.number().positive() }).partial().optional(),
   })
   .strict()
@@ -69,6 +76,11 @@ export const contrastSchema = z
     if (c.design === 'groups' && !c.groups) ctx.addIssue({ code: 'custom', path: ['groups'], message: 'a groups design needs "groups": [first, second]' });
     if (c.design === 'paired' && !c.stages === !c.sessions) ctx.addIssue({ code: 'custom', path: ['stages'], message: 'a paired design needs either "stages" or "sessions" (two values)' });
     if (c.design === 'covariate' && !c.covariate) ctx.addIssue({ code: 'custom', path: ['covariate'], message: 'a covariate design needs "covariate": <numeric participants column>' });
+    // a key the design does not use is refused, never silently ignored
+    const others = c.design === 'paired' ? "a paired design compares each subject's two conditions" : 'a covariate design uses every subject with a value of the covariate';
+    if (c.design !== 'groups' && c.groups) ctx.addIssue({ code: 'custom', path: ['groups'], message: `"groups" is used by the groups design only (${others}; leave subjects out with exclusions)` });
+    for (const k of ['stages', 'sessions'] as const) if (c.design !== 'paired' && c[k]) ctx.addIssue({ code: 'custom', path: [k], message: `"${k}" is used by the paired design only` });
+    if (c.design !== 'covariate' && c.covariate) ctx.addIssue({ code: 'custom', path: ['covariate'], message: '"covariate" is used by the covariate design only (nuisance covariates go in "nuisance")' });
     if ((c.measure === 'band-power' || c.measure === 'relative-band-power' || c.measure.startsWith('peak-')) && !(c.bands && c.bands.length > 0)) {
       ctx.addIssue({ code: 'custom', path: ['bands'], message: `measure ${c.measure} needs "bands": [{name, loHz, hiHz}, …]` });
     }
@@ -76,6 +88,7 @@ export const contrastSchema = z
 
 export type Contrast = z.output<typeof contrastSchema>;
 export type ContrastJson = z.input<typeof contrastSchema>;
+export type ContrastExclusion = z.output<typeof exclusion>;
 
 export class ContrastSpecError extends Error {
   override name = 'ContrastSpecError';

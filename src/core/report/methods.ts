@@ -7,6 +7,7 @@
 import type { Contrast } from '../contrast/spec.ts';
 import type { CompareResult } from '../contrast/run.ts';
 import { RESEARCH_NOTE } from '../contrast/run.ts';
+import { signText } from '../contrast/labels.ts';
 import type { Exclusion } from '../contrast/data.ts';
 import type { BandCheckResult } from '../verdict/band-check.ts';
 import type { ScalarTest } from '../verdict/scalar-test.ts';
@@ -209,8 +210,12 @@ function aperiodicSection(f: IngestParameterFacts, facts: DatabaseFacts | null, 
 
 function exclusionSection(ex: Exclusion[], n: Record<string, number>): string {
   const sizes = Object.entries(n).map(([k, v]) => `${k} ${v}`).join(', ');
-  if (ex.length === 0) return `No subject was left out (analysed: ${sizes}).`;
-  return `${ex.length} subject${ex.length === 1 ? ' was' : 's were'} left out (analysed: ${sizes}):\n\n` + ex.map((e) => `- ${e.subject}${e.channel ? ` (${e.channel})` : ''}: ${e.reason}`).join('\n');
+  const line = (e: Exclusion) => `- ${e.subject}${e.channel ? ` (${e.channel}${e.stage ? `, ${e.stage}` : ''})` : e.stage ? ` (${e.stage})` : ''}: ${e.reason}`;
+  const out = ex.filter((e) => !e.subjectStays);
+  const stays = ex.filter((e) => e.subjectStays);
+  const parts = [out.length === 0 ? `No subject was left out (analysed: ${sizes}).` : `${out.length} subject${out.length === 1 ? ' was' : 's were'} left out (analysed: ${sizes}):\n\n${out.map(line).join('\n')}`];
+  if (stays.length > 0) parts.push(`Excluded channels were treated as missing data, the subject kept for its other channels (each point's statistic uses the subjects with a value there):\n\n${stays.map(line).join('\n')}`);
+  return parts.join('\n\n');
 }
 
 function permutationText(p: { permutations: number; exact: boolean; seed: number }, what: string): string {
@@ -260,7 +265,7 @@ function compareStatistics(r: CompareResult, refs: Set<ReferenceKey>): { text: s
 function compareResults(r: CompareResult): string {
   const sig = r.clusters.filter((k) => k.p < 0.05);
   if (r.clusters.length === 0) return 'No cluster formed.';
-  const lines = r.clusters.slice(0, 10).map((k) => `- ${k.sign > 0 ? 'positive' : 'negative'} cluster, ${k.fminHz}–${k.fmaxHz} Hz, channels ${k.channels.join(', ')}: ${r.contrast.correction === 'cluster-size' ? 'size' : 'mass'} ${g3(r.contrast.correction === 'cluster-size' ? k.size : k.mass)}, p = ${g3(k.p)}`);
+  const lines = r.clusters.slice(0, 10).map((k) => `- ${k.sign > 0 ? 'positive' : 'negative'} cluster (${signText(r.contrast, k.sign)}), ${k.fminHz}–${k.fmaxHz} Hz, channels ${k.channels.join(', ')}: ${r.contrast.correction === 'cluster-size' ? 'size' : 'mass'} ${g3(r.contrast.correction === 'cluster-size' ? k.size : k.mass)}, p = ${g3(k.p)}`);
   return `${r.clusters.length} cluster${r.clusters.length === 1 ? '' : 's'} formed, ${sig.length} with p < 0.05${r.clusters.length > 10 ? ' (the 10 smallest p shown)' : ''}:\n\n${lines.join('\n')}`;
 }
 

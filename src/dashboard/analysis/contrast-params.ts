@@ -1,6 +1,6 @@
 // A contrast in the address bar: each key of the contrast JSON (src/core/contrast/spec.ts) as one
-// hash parameter, lists joined by ',', ranges by '-' and bands as analysis/band-text.ts writes them;
-// parsed back through parseContrast.
+// hash parameter, lists joined by ',', ranges by '-', bands as analysis/band-text.ts writes them and
+// the exclusions as JSON text; parsed back through parseContrast.
 import { parseContrast, type Contrast, type ContrastJson } from '../../core/contrast/spec.ts';
 import { bandText, parseBandText } from './band-text.ts';
 
@@ -25,6 +25,20 @@ export function contrastJsonFromParams(params: Readonly<Record<string, string>>)
   if (params.bands !== undefined) {
     out.bands = params.bands.split(',').map((b) => parseBandText(b));
   }
+  if (params.exclusions !== undefined && params.exclusions !== '') {
+    try {
+      out.exclusions = JSON.parse(params.exclusions);
+    } catch {
+      throw new Error('address bar: exclusions is not valid JSON');
+    }
+  }
+  // the form keeps every design's fields in the address; the contrast carries only its design's
+  if ((out.design ?? 'groups') !== 'groups') delete out.groups;
+  if (out.design !== 'paired') {
+    delete out.stages;
+    delete out.sessions;
+  }
+  if (out.design !== 'covariate') delete out.covariate;
   return out as ContrastJson;
 }
 
@@ -42,6 +56,8 @@ export function paramsFromContrast(c: Contrast): Record<string, string> {
   out.channelAverage = String(c.channelAverage);
   out.relativeRangeHz = c.relativeRangeHz.join('-');
   if (c.bands) out.bands = c.bands.map(bandText).join(',');
+  // as JSON text (the address escapes it); empty when none, so a run without exclusions clears them
+  out.exclusions = c.exclusions.length > 0 ? JSON.stringify(c.exclusions) : '';
   return out;
 }
 

@@ -59,16 +59,18 @@ export function preloadEngine(): void {
 export interface CohortConnection extends SqlClient {
   /** Where it came from: the URL or the file name. */
   source: string;
+  /** The database's file name, as the header, the methods text and a command line name it. */
+  name: string;
 }
 
 /** Whether a cohort database has been attached (the first open needs no DETACH). */
 let attachedOnce = false;
 
-async function attach(e: Engine, location: string, source: string): Promise<CohortConnection> {
+async function attach(e: Engine, location: string, source: string, name: string): Promise<CohortConnection> {
   if (attachedOnce) await e.conn.query(`DETACH DATABASE IF EXISTS ${COHORT}`);
   attachedOnce = true;
   await e.conn.query(`ATTACH ${literal(location)} AS ${COHORT} (READ_ONLY)`);
-  return { source, ...arrowClient({ query: (sql: string) => e.conn.query(sql), stream: (sql: string) => streamed(e, sql) }) };
+  return { source, name, ...arrowClient({ query: (sql: string) => e.conn.query(sql), stream: (sql: string) => streamed(e, sql) }) };
 }
 
 /**
@@ -84,10 +86,10 @@ async function* streamed(e: Engine, sql: string): AsyncIterable<RecordBatch> {
   }
 }
 
-/** Attach the database served at `url` (absolute http URL), read with range requests. */
-export async function openServedDatabase(url: string): Promise<CohortConnection> {
+/** Attach the database served at `url` (absolute http URL), read with range requests; `name`: its file name (default: the URL's last part). */
+export async function openServedDatabase(url: string, name?: string): Promise<CohortConnection> {
   const abs = new URL(url, document.baseURI).href;
-  return attach(await getEngine(), abs, abs);
+  return attach(await getEngine(), abs, abs, name ?? abs.split('/').pop()!);
 }
 
 /** Attach a database file the user picked or dropped; nothing is uploaded anywhere. */
@@ -95,5 +97,5 @@ export async function openPickedFile(file: File): Promise<CohortConnection> {
   const e = await getEngine();
   const name = `picked-${Date.now()}-${file.name.replace(/[^A-Za-z0-9._-]/g, '_')}`;
   await e.db.registerFileHandle(name, file, duckdb.DuckDBDataProtocol.BROWSER_FILEREADER, true);
-  return attach(e, name, file.name);
+  return attach(e, name, file.name, file.name);
 }

@@ -4,6 +4,7 @@ import type { DataColumn } from '../../components/table-columns.ts';
 export const CLUSTER_COLUMNS: readonly DataColumn[] = [
   { key: 'cluster', label: 'Cluster' },
   { key: 'sign', label: 'Sign' },
+  { key: 'direction', label: 'Direction' },
   { key: 'fmin_hz', label: 'From (Hz)' },
   { key: 'fmax_hz', label: 'To (Hz)' },
   { key: 'channels', label: 'Channels' },

@@ -2,6 +2,7 @@
 import * as Plot from '@observablehq/plot';
 import type { CompareResult } from '../../../core/contrast/run.ts';
 import type { ClusterResult } from '../../../core/stats/index.ts';
+import { designTitle, statisticLabel } from '../../../core/contrast/labels.ts';
 
 /** Clusters drawn as significant: permutation p below this. */
 export const ALPHA = 0.05;
@@ -31,6 +32,11 @@ function clusterOutline(k: ClusterResult, nFreqs: number, freqs: readonly number
   return segs;
 }
 
+/** The statistic map's title: the data, the design and its direction. */
+export function statisticMapTitle(r: CompareResult): string {
+  return `Statistic over channels and frequencies: ${designTitle(r.contrast)}`;
+}
+
 /** The statistic over channels × frequencies, significant clusters outlined. */
 export function statisticMapPlot(r: CompareResult): Plot.PlotOptions {
   const s = r.statistics;
@@ -57,7 +63,7 @@ export function statisticMapPlot(r: CompareResult): Plot.PlotOptions {
       ticks: s.channels.map((_, i) => i + 0.5),
       tickFormat: (v: number) => s.channels[Math.floor(v)] ?? '',
     },
-    color: { type: 'linear', scheme: 'rdbu', reverse: true, domain: [-m, m], legend: 'ramp', label: `${s.statistic} (${r.contrast.groups ? `${r.contrast.groups[1]} − ${r.contrast.groups[0]}` : 'second − first'})` },
+    color: { type: 'linear', scheme: 'rdbu', reverse: true, domain: [-m, m], legend: 'ramp', label: statisticLabel(r.contrast, s.statistic) },
     marks: [
       Plot.rect(cells, { x1: 'x1', x2: 'x2', y1: 'y1', y2: 'y2', fill: 't', title: (d: (typeof cells)[number]) => `${d.channel} ${d.f} Hz: t = ${d.t.toFixed(2)}` }),
       Plot.link(outlines, { x1: 'x1', x2: 'x2', y1: 'y1', y2: 'y2', stroke: '#111', strokeWidth: 2 }),

@@ -9,6 +9,7 @@ import type { RunInfo } from '../../../queries/runs.ts';
 import type { CohortSchema } from '../../../queries/schema.ts';
 import type { PromiseCache } from '../../analysis/analysis-run.svelte.ts';
 import type { SpectraRows } from '../spectra/spectra-data.ts';
+import { signText } from '../../../core/contrast/labels.ts';
 import { ALPHA } from './contrast-charts.ts';
 
 /** Reads ContrastData once per (stages, reference, averaging, measure, method, highest frequency read); exclusions applied on each use. */
@@ -40,6 +41,7 @@ export function clusterRows(r: CompareResult): Row[] {
   return r.clusters.map((k, i) => ({
     cluster: i + 1,
     sign: k.sign > 0 ? '+' : '−',
+    direction: signText(r.contrast, k.sign),
     fmin_hz: k.fminHz,
     fmax_hz: k.fmaxHz,
     channels: k.channels.join(' '),

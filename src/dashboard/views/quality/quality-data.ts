@@ -76,6 +76,11 @@ export function buildGrid(
   return { channels, metrics, cells };
 }
 
+/** The stage the grid opens on: N2 when stored (the stage spectral analyses use most), else the first stored, else 'all'. */
+export function defaultGridStage(stages: readonly string[]): string {
+  return stages.includes('N2') ? 'N2' : (stages[0] ?? 'all');
+}
+
 /** The grid of one stage: its rows and the rows that are not per stage ('all': every row). */
 export function gridForStage(d: QualityData, stage: string): Pick<QualityData, 'channels' | 'metrics' | 'cells'> {
   if (stage === 'all') return { channels: d.channels, metrics: d.metrics, cells: d.cells };

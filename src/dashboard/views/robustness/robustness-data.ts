@@ -69,6 +69,29 @@ export function shareSentence(curve: SpecificationCurve): string {
   );
 }
 
+/** Median of numbers (mean of the middle two for an even count). */
+function median(x: readonly number[]): number {
+  const s = [...x].sort((a, b) => a - b);
+  const m = Math.floor(s.length / 2);
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+/** The significant paths and the median effect per measure, in one sentence (effects of different measures are not pooled). */
+export function measureSentence(curve: SpecificationCurve): string {
+  const byMeasure = new Map<string, PathResult[]>();
+  for (const p of [...curve.paths].sort((a, b) => a.id - b.id)) {
+    // relative paths of several denominators are one measure
+    const name = p.measure === 'relative' ? 'relative power' : pathChoiceValues(p)[0].value!;
+    byMeasure.set(name, [...(byMeasure.get(name) ?? []), p]);
+  }
+  const parts = [...byMeasure].map(([name, ps]) => {
+    const kind = ps[0].effectKind === 'hedges-g' ? 'g' : ps[0].effectKind;
+    const med = median(ps.map((p) => p.effect)).toFixed(2).replace('-', '−');
+    return `${name}: ${ps.filter((p) => p.significant).length} of ${ps.length} paths with p < ${curve.alpha}, median ${kind} = ${med}`;
+  });
+  return `By measure — ${parts.join('; ')}.`;
+}
+
 /** The table of paths, in curve order. */
 export function pathRows(curve: SpecificationCurve): Row[] {
   return curve.paths.map((p) => ({
