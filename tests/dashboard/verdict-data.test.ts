@@ -2,7 +2,7 @@
 // against the command line's (src/analysis/band-check-runner.ts loadBandCheckData and src/analysis/report-facts.ts
 // databaseFacts over @duckdb/node-api, another DuckDB build) on the shared demo database
 // (tests/helpers/demo-db.ts): the same rows, the same facts, and the same band check and
-// robustness results from src/core/verdict. 200 permutations per test (the equality of the two
+// robustness results from src/core/verdict (the fitted peaks of the robustness row sets too). 200 permutations per test (the equality of the two
 // loaders does not depend on the count; kept small for time).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadBandCheckData as loadCli } from '../../src/analysis/band-check-runner.ts';
@@ -92,7 +92,12 @@ describe('band check, robustness and report data over duckdb-wasm equal the comm
     }
     // the demo stores one fit range per (reference, averaging), so one set each
     expect(sets.map((s) => [s.reference, s.averaging, s.fitRangeHz])).toEqual(theirs.map((s) => [s.reference, s.averaging, s.fitRangeHz]));
-    for (let i = 0; i < sets.length; i++) expectSameData(sets[i].data, theirs[i].data);
+    for (let i = 0; i < sets.length; i++) {
+      expectSameData(sets[i].data, theirs[i].data);
+      // the fitted peaks a path decided on power and frequency needs (the band check's own rows)
+      expect(sets[i].data.peaks).toEqual(theirs[i].data.peaks);
+      expect(sets[i].data.peaks.length).toBeGreaterThan(0);
+    }
     expect(await fitRangeChoices(client, runList, 'N2', 'fit')).toEqual([theirs[0].fitRangeHz]);
     // paths over the recorded/mean set only (the other loaded pair is compared row by row above)
     const choices: PathChoices = {
@@ -108,6 +113,12 @@ describe('band check, robustness and report data over duckdb-wasm equal the comm
     const b = runPaths(sigma, { name: 'sigma', loHz: 12, hiHz: 16 }, choices, theirs);
     expect(a.nPaths).toBe(9); // 3 measures × 3 band edge variants
     expect(a.paths).toEqual(b.paths);
+    // decided on power only and on power and the peak centre: twice the paths, each frequency path with its centre test
+    const both = { ...choices, decisions: ['power', 'power-and-frequency'] as PathChoices['decisions'] };
+    const c = runPaths(sigma, { name: 'sigma', loHz: 12, hiHz: 16 }, both, sets);
+    expect(c.nPaths).toBe(18);
+    expect(c.paths.filter((p) => p.frequency).length).toBe(9);
+    expect(c.paths).toEqual(runPaths(sigma, { name: 'sigma', loHz: 12, hiHz: 16 }, both, theirs).paths);
   });
 
   it('database facts for the methods report equal src/analysis/report-facts.ts databaseFacts', async () => {

@@ -13,7 +13,7 @@ import { bandFromParams, withEdges } from '../../src/dashboard/analysis/band-tex
 import { bandCheckFromParams, paramsFromBandCheck } from '../../src/dashboard/views/band-check/band-check-params.ts';
 import { EFFECTS, effectRows, familyText, peakCentreText, periodicKindText } from '../../src/dashboard/views/band-check/band-check-data.ts';
 import { markdownBlocks, parseResultJson, ResultFileError } from '../../src/dashboard/views/report/report-data.ts';
-import { matrixDots, matrixRows, shareSentence } from '../../src/dashboard/views/robustness/robustness-data.ts';
+import { matrixDots, matrixRows, pathRows, shareSentence } from '../../src/dashboard/views/robustness/robustness-data.ts';
 import { paramsFromChoices, pathChoicesFromParams, RobustnessParamError, toggled } from '../../src/dashboard/views/robustness/robustness-params.ts';
 
 const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'Cz'], permutations: 500, seed: 7 });
@@ -46,7 +46,8 @@ describe('robustness choices', () => {
   it('with no choice keys: every stored value, as src/core/verdict defaultPathChoices; 60 band-summary paths', () => {
     const { choices, test } = pathChoicesFromParams({}, contrast, sigma, stored);
     expect(test).toBe('band-summary');
-    expect(choices).toEqual(defaultPathChoices(contrast, sigma, sets));
+    // decided on power only unless asked (the core's default)
+    expect(choices).toEqual({ ...defaultPathChoices(contrast, sigma, sets), decisions: ['power'] });
     // (absolute × 2 summaries + relative × 2 denominators + residual × 1 fit) × 2 references × 2 averagings × 3 edge variants
     expect(enumeratePaths(choices, test)).toHaveLength((2 + 2 + 1) * 2 * 2 * 3);
     expect(enumeratePaths(choices, 'frequency-wise')).toHaveLength((1 + 2 + 1) * 2 * 2 * 3);
@@ -64,8 +65,36 @@ describe('robustness choices', () => {
     expect(() => pathChoicesFromParams({ fits: '2-30' }, contrast, sigma, stored)).toThrow(/2–30 Hz is not stored \(stored: 1–40 Hz\)/);
     expect(() => pathChoicesFromParams({ denominators: '45-0.5' }, contrast, sigma, stored)).toThrow(/not a range/);
     expect(() => pathChoicesFromParams({ test: 'fast' }, contrast, sigma, stored)).toThrow(/test holds fast/);
+    expect(() => pathChoicesFromParams({ decisions: 'frequency' }, contrast, sigma, stored)).toThrow(/decisions holds frequency; allowed: power, power-and-frequency/);
     expect(toggled(['a', 'c'], 'b', true, ['a', 'b', 'c'])).toEqual(['a', 'b', 'c']);
     expect(toggled(['a', 'b', 'c'], 'a', false, ['a', 'b', 'c'])).toEqual(['b', 'c']);
+  });
+
+  it('decisions: power only, power and frequency, or both (each path once per decision); round-trips through the address bar', () => {
+    const { choices } = pathChoicesFromParams({ measures: 'residual', references: 'recorded', averagings: 'mean', edges: '0', decisions: 'power,power-and-frequency' }, contrast, sigma, stored);
+    expect(choices.decisions).toEqual(['power', 'power-and-frequency']);
+    const specs = enumeratePaths(choices);
+    expect(specs.map((p) => p.decision)).toEqual(['power', 'power-and-frequency']);
+    expect(pathChoicesFromParams(paramsFromChoices(choices, 'band-summary', sigma), contrast, sigma, stored).choices).toEqual(choices);
+    expect(pathChoicesFromParams({ decisions: 'power-and-frequency' }, contrast, sigma, stored).choices.decisions).toEqual(['power-and-frequency']);
+    // the dot matrix gets a row per decision; the table states the centre test of a frequency path
+    const paths: PathResult[] = specs.map((p, i) => ({
+      ...p,
+      effect: -1,
+      ciLow: -1.5,
+      ciHigh: -0.5,
+      effectKind: 'hedges-g',
+      p: i === 0 ? 0.02 : 0.04,
+      significant: true,
+      n: { control: 10, patient: 10 },
+      rank: i + 1,
+      ...(p.decision === 'power-and-frequency' ? { frequency: { effect: -2.5, ciLow: -3.4, ciHigh: -1.6, differenceHz: -0.98, p: 0.002, n: { control: 10, patient: 9 }, withoutPeak: { control: 0, patient: 1 }, skipped: null } } : {}),
+    }));
+    const curve = { paths, nPaths: 2, nSignificant: 2, shareSignificant: 1, nSignificantMajoritySign: 2, medianEffect: -1, alpha: 0.05 } as unknown as SpecificationCurve;
+    expect(matrixRows(curve).rows.map((r) => r.label)).toEqual(['decided on power', 'decided on power and peak centre']);
+    const rows = pathRows(curve);
+    expect(rows[0]).toMatchObject({ decision: 'power', centre_effect: null, centre_difference_hz: null, centre_p: null });
+    expect(rows[1]).toMatchObject({ decision: 'power and peak centre', centre_effect: -2.5, centre_difference_hz: -0.98, centre_p: 0.002, without_peak: 'control 0, patient 1' });
   });
 
   it('dot matrix: one row per value of a varied choice, one dot per path and choice it used; share stated', () => {
@@ -76,7 +105,7 @@ describe('robustness choices', () => {
     const curve = { paths, nPaths: 6, nSignificant: 3, shareSignificant: 3 / 6, nSignificantMajoritySign: 2, medianEffect: -0.5, alpha: 0.05 } as unknown as SpecificationCurve;
     const { rows, fixed } = matrixRows(curve);
     expect(rows.map((r) => r.label)).toEqual(['absolute log10 power', 'residual', 'band 11–17 Hz', 'band 12–16 Hz', 'band 13–15 Hz']);
-    expect(fixed).toEqual(['reference: recorded', 'averaging: mean over epochs', 'summary: mean density', 'fit range: fit 1–40 Hz']);
+    expect(fixed).toEqual(['reference: recorded', 'averaging: mean over epochs', 'summary: mean density', 'decision: decided on power', 'fit range: fit 1–40 Hz']);
     const dots = matrixDots(curve, rows);
     expect(dots).toHaveLength(6 * 2); // each path: its measure and its band edges
     expect(dots.filter((d) => d.significant)).toHaveLength(3 * 2); // effects −3, −2 and 2

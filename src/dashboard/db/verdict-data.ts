@@ -94,9 +94,11 @@ export async function aperiodicInFitRange(db: SqlClient, q: { runId: string; sta
 }
 
 /**
- * The row sets of a robustness run: for each (reference, averaging) the stored spectra of the
- * contrast's stage, and for each fit range stored there one set with the fits of that range
- * (a set without fits when none is stored). Spectra rows are shared between the sets of a pair.
+ * The row sets of a robustness run: for each (reference, averaging) the stored spectra and fitted
+ * peaks of the contrast's stage, and for each fit range stored there one set with the fits of that
+ * range (a set without fits when none is stored). Spectra and peak rows are shared between the
+ * sets of a pair (the peaks table has no fit range: the peaks of the method's fit); a path decided
+ * on power and frequency reads the peaks.
  */
 export async function loadPathDataSets(
   db: SqlClient,
@@ -115,7 +117,8 @@ export async function loadPathDataSets(
     const spectra = await contrastSpectra(db, { ...q, channels: c.channels === 'all' ? undefined : c.channels });
     if (spectra.rows.length === 0) throw new Error(`no ${c.stage} spectra with reference ${reference} and averaging ${averaging} in run ${run.runId}`);
     const ranges = await storedFitRanges(db, run.runId, c.stage, reference, averaging, c.aperiodicMethod);
-    const base = { spectra, peaks: [], participants: people, exclusions: [...exclusions] };
+    const peaks = await contrastPeaks(db, q, c.aperiodicMethod);
+    const base = { spectra, peaks, participants: people, exclusions: [...exclusions] };
     if (ranges.length === 0) sets.push({ reference, averaging, fitRangeHz: null, data: { ...base, aperiodic: [] } });
     for (const r of ranges) sets.push({ reference, averaging, fitRangeHz: r, data: { ...base, aperiodic: await aperiodicInFitRange(db, q, c.aperiodicMethod, r) } });
   }
