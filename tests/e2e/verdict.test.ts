@@ -167,6 +167,28 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
     await page.screenshot({ path: path.join(OUTPUT, 'robustness.png'), fullPage: true });
   });
 
+  it('robustness decided on power and on power and the peak centre: each path twice, the centre test in the table', async () => {
+    const { page } = s;
+    await page.goto(`${s.server.url}#/robustness?${BASE}&channels=${CENTRO_PARIETAL}&band=sigma:12-16&measures=residual&edges=0&decisions=power,power-and-frequency`);
+    await page.getByTestId('robustness-form').waitFor({ timeout: 60_000 });
+    const expected = stored.fits * stored.references * stored.averagings * 2;
+    await expect.poll(() => page.getByTestId('rb-path-count').innerText(), { timeout: 60_000 }).toContain(`${expected} paths × 1000 permutations`);
+    expect(await page.getByTestId('rb-decision-power-and-frequency').isChecked()).toBe(true);
+    await page.getByTestId('run-robustness').click();
+    await page.getByTestId('robustness-decision').waitFor({ timeout: 120_000 });
+    const rows = await page.getByTestId('paths-table').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
+    expect(rows).toHaveLength(expected);
+    // columns: rank, path, choices, effect, CI low, CI high, p, significant, n, decided on, centre effect, centre difference, centre p, without a peak
+    const both = rows.filter((r) => r[9] === 'power and peak centre');
+    expect(both).toHaveLength(expected / 2);
+    for (const r of both) {
+      expect(Number(r[12])).toBeGreaterThanOrEqual(0);
+      // Bonferroni over the two tests of the path (common practice): p = min(1, 2 · min(p_power, p_centre))
+      const twin = rows.find((x) => x[9] === 'power' && x[2] === r[2].replace('; decided on power and the peak centre (Bonferroni ×2)', ''))!;
+      expect(Number(r[6])).toBeCloseTo(Math.min(1, 2 * Math.min(Number(twin[6]), Number(r[12]))), 3);
+    }
+  });
+
   it('logged no console error and sent nothing off the machine', () => {
     expect(s.foreignRequests).toEqual([]);
     expect(s.consoleErrors).toEqual([]);
