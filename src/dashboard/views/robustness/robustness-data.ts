@@ -2,7 +2,7 @@
 // the table of paths (with the peak-centre test of a path decided on power and frequency), and
 // the share of significant paths in words (src/core/verdict runPaths).
 import type { PathResult, SpecificationCurve } from '../../../core/verdict/index.ts';
-import type { Row } from '../../db/arrow-rows.ts';
+import type { Row } from '../../../queries/client.ts';
 
 const hz = (r: readonly number[]) => `${r[0]}–${r[1]} Hz`;
 
