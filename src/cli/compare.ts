@@ -20,7 +20,12 @@ export function clustersTsv(r: CompareRun): string {
   return lines.join('\n') + '\n';
 }
 
-/** Per point statistics as TSV: channel, frequency, t, df, uncorrected p, effect and interval, cluster. */
+/** A number for a TSV field; a missing value (NaN: a point left out for too few values) is NA, as R and pandas read it. */
+const field = (x: number, write: (v: number) => string): string => (Number.isNaN(x) ? 'NA' : write(x));
+const fixed = (k: number) => (v: number) => v.toFixed(k);
+const precise = (k: number) => (v: number) => v.toPrecision(k);
+
+/** Per point statistics as TSV: channel, frequency, t, df, uncorrected p, effect and interval, cluster; missing values NA. */
 export function pointsTsv(r: CompareRun): string {
   const s = r.statistics;
   const F = s.freqsHz.length;
@@ -29,8 +34,8 @@ export function pointsTsv(r: CompareRun): string {
   const lines = [`channel\tfreq_hz\tstat\tdf\tp_uncorrected\t${s.effect.kind}\tci_low\tci_high\tcluster${s.tfce ? '\ttfce\tp_tfce' : ''}`];
   for (let p = 0; p < s.stat.length; p++) {
     const df = Array.isArray(s.df) ? s.df[p] : s.df;
-    const row = [s.channels[Math.floor(p / F)], s.freqsHz[p % F], s.stat[p].toFixed(5), Number(df).toFixed(3), s.pUncorrected[p].toPrecision(5), s.effect.value[p].toFixed(5), s.effect.ciLow[p].toFixed(5), s.effect.ciHigh[p].toFixed(5), clusterOf[p] || ''];
-    if (s.tfce) row.push(s.tfce.score[p].toFixed(4), s.tfce.pCorrected[p].toPrecision(4));
+    const row = [s.channels[Math.floor(p / F)], s.freqsHz[p % F], field(s.stat[p], fixed(5)), field(Number(df), fixed(3)), field(s.pUncorrected[p], precise(5)), field(s.effect.value[p], fixed(5)), field(s.effect.ciLow[p], fixed(5)), field(s.effect.ciHigh[p], fixed(5)), clusterOf[p] || ''];
+    if (s.tfce) row.push(field(s.tfce.score[p], fixed(4)), field(s.tfce.pCorrected[p], precise(4)));
     lines.push(row.join('\t'));
   }
   return lines.join('\n') + '\n';

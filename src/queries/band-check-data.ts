@@ -43,9 +43,11 @@ export async function loadBandCheckData(
 }
 
 /**
- * The row sets of a robustness run: for each (reference, averaging) the stored spectra of the
- * contrast's stage, and for each fit range stored there one set with the fits of that range
- * (a set without fits when none is stored). Spectra rows are shared between the sets of a pair.
+ * The row sets of a robustness run: for each (reference, averaging) the stored spectra and fitted
+ * peaks of the contrast's stage, and for each fit range stored there one set with the fits of that
+ * range (a set without fits when none is stored). Spectra and peak rows are shared between the
+ * sets of a pair (the peaks table has no fit range: the peaks of the method's fit); a path decided
+ * on power and frequency reads the peaks.
  */
 export async function loadPathDataSets(
   db: SqlClient,
@@ -65,8 +67,9 @@ export async function loadPathDataSets(
     const spectra = await spectraRows(db, { ...q, channels: c.channels === 'all' ? undefined : c.channels });
     if (spectra.rows.length === 0) throw new Error(`no ${c.stage} spectra with reference ${reference} and averaging ${averaging} in run ${run.runId}`);
     const ranges = await storedFitRanges(db, run.runId, c.stage, reference, averaging, c.aperiodicMethod);
+    const peaks = await peakRows(db, q, c.aperiodicMethod);
     // while a split exists, the exploration part only (groups coded while blinded)
-    const base = partData(c, { spectra, peaks: [], participants: people, exclusions: [...exclusions], aperiodic: [] }, view);
+    const base = partData(c, { spectra, peaks, participants: people, exclusions: [...exclusions], aperiodic: [] }, view);
     if (ranges.length === 0) sets.push({ reference, averaging, fitRangeHz: null, data: base });
     for (const r of ranges) sets.push({ reference, averaging, fitRangeHz: r, data: { ...base, aperiodic: keepSubjects(await aperiodicInFitRange(db, q, c.aperiodicMethod, r), view) } });
   }

@@ -39,6 +39,7 @@ const effect = z.discriminatedUnion('kind', [
   z.strictObject({ kind: z.literal('offset'), group: z.string(), deltaLog10: z.number(), stages: z.array(stage).optional() }),
   z.strictObject({ kind: z.literal('exponent'), group: z.string(), delta: z.number(), stages: z.array(stage).optional() }),
   z.strictObject({ kind: z.literal('rhythm-amplitude'), group: z.string(), rhythm: z.string(), factor: nonNegative }),
+  z.strictObject({ kind: z.literal('rhythm-frequency'), group: z.string(), rhythm: z.string(), shiftHz: z.number() }),
 ]);
 
 const artifact = z.discriminatedUnion('kind', [

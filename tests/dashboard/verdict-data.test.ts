@@ -2,8 +2,9 @@
 // duckdb-wasm (the browser's engine) against the command line's readings over @duckdb/node-api
 // (another DuckDB build: bandwise band-check's bandCheckDatabase and the report's
 // databaseFactsOf) on the shared demo database (tests/helpers/demo-db.ts): the same band check,
-// robustness row sets equal to the band check's rows for each (reference, averaging), the same
-// facts. 200 permutations per test (the equality does not depend on the count; kept small for time).
+// robustness row sets equal to the band check's rows for each (reference, averaging) (their fitted
+// peaks too, which a path decided on power and frequency reads), the same facts. 200
+// permutations per test (the equality does not depend on the count; kept small for time).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { bandCheckDatabase } from '../../src/analysis/band-check-runner.ts';
 import { databaseFactsOf } from '../../src/analysis/report-facts.ts';
@@ -81,7 +82,12 @@ describe('band check, robustness and report data over duckdb-wasm equal the comm
     });
     // the demo stores one fit range per (reference, averaging), so one set each
     expect(sets.map((s) => [s.reference, s.averaging, s.fitRangeHz])).toEqual(theirs.map((s) => [s.reference, s.averaging, s.fitRangeHz]));
-    for (let i = 0; i < sets.length; i++) expectSameData(sets[i].data, theirs[i].data);
+    for (let i = 0; i < sets.length; i++) {
+      expectSameData(sets[i].data, theirs[i].data);
+      // the fitted peaks a path decided on power and frequency needs (the band check's own rows)
+      expect(sets[i].data.peaks).toEqual(theirs[i].data.peaks);
+      expect(sets[i].data.peaks.length).toBeGreaterThan(0);
+    }
     expect(await fitRangeChoices(client, runList, 'N2', 'fit')).toEqual([theirs[0].fitRangeHz]);
     // paths over the recorded/mean set only (the other loaded pair is compared row by row above)
     const choices: PathChoices = {
@@ -97,6 +103,12 @@ describe('band check, robustness and report data over duckdb-wasm equal the comm
     const b = runPaths(sigma, { name: 'sigma', loHz: 12, hiHz: 16 }, choices, theirs);
     expect(a.nPaths).toBe(9); // 3 measures × 3 band edge variants
     expect(a.paths).toEqual(b.paths);
+    // decided on power only and on power and the peak centre: twice the paths, each frequency path with its centre test
+    const both = { ...choices, decisions: ['power', 'power-and-frequency'] as PathChoices['decisions'] };
+    const c = runPaths(sigma, { name: 'sigma', loHz: 12, hiHz: 16 }, both, sets);
+    expect(c.nPaths).toBe(18);
+    expect(c.paths.filter((p) => p.frequency).length).toBe(9);
+    expect(c.paths).toEqual(runPaths(sigma, { name: 'sigma', loHz: 12, hiHz: 16 }, both, theirs).paths);
   });
 
   it('database facts for the methods report equal those bandwise report gathers (databaseFactsOf)', async () => {

@@ -19,6 +19,8 @@ const OUTPUT = path.resolve('test-output/e2e');
 const BASE = 'design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&permutations=1000&seed=1';
 const CENTRO_PARIETAL = 'C3,C4,Cz,P3,P4,Pz';
 
+const EFFECT_NAMES = ['raw band power', 'aperiodic offset', 'aperiodic exponent', 'periodic residual', 'peak centre frequency', 'peak width', 'peak height', 'aperiodic level in the band', 'lower flank', 'upper flank', 'flank difference (upper − lower)', 'relative band power'];
+
 const count = (t: string) => Number(/run on this database: (\d+)/.exec(t)![1]);
 
 describe('dashboard in chromium on the demo database: band check, robustness, methods report', () => {
@@ -72,9 +74,16 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
     expect(r.sentence).toMatch(/^Broadband offset shift: the aperiodic offset .* is higher in patient than in control/);
     expect(r.after).toBe(r.before + 1);
     const rows = await s.page.getByTestId('effects-table').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
-    expect(rows.map((x) => x[0])).toEqual(['raw band power', 'aperiodic offset', 'aperiodic exponent', 'periodic residual', 'peak height', 'aperiodic level in the band', 'lower flank', 'upper flank', 'flank difference (upper − lower)', 'relative band power']);
-    // Bonferroni over the three deciding tests (common practice): adjusted p = min(1, 3p), shown to 4 decimals
-    for (const x of rows.filter((x) => x[7] === 'yes')) expect(Number(x[6])).toBeCloseTo(Math.min(1, 3 * Number(x[5])), 3);
+    expect(rows.map((x) => x[0])).toEqual(EFFECT_NAMES);
+    // Bonferroni over the four deciding tests (common practice): adjusted p = min(1, 4p), shown to 4 decimals
+    const deciding = rows.filter((x) => x[7] === 'yes');
+    expect(deciding.map((x) => x[0])).toEqual(['aperiodic offset', 'aperiodic exponent', 'periodic residual', 'peak centre frequency']);
+    for (const x of deciding.filter((x) => x[5] !== '–')) expect(Number(x[6])).toBeCloseTo(Math.min(1, 4 * Number(x[5])), 3);
+    // the scenario has no theta rhythm in N2: no fitted theta peaks, so the centre and width tests say why they did not run
+    for (const name of ['peak centre frequency', 'peak width']) expect(rows.find((x) => x[0] === name)!.slice(5, 7)).toEqual(['–', '–']);
+    expect(await s.page.getByTestId('peak-centre').innerText()).toMatch(/Peak centre not tested: too few subjects with a fitted peak in theta 4–8 Hz/);
+    expect(await s.page.getByTestId('verdict-rule').innerText()).toContain('4 tests, Bonferroni-corrected at α = 0.05 (each passes at p ≤ 0.0125)');
+    expect(await s.page.getByTestId('verdict-kind').count()).toBe(0);
     expect(new URL(s.page.url()).hash).toContain('band=theta%3A4-8');
     await s.page.screenshot({ path: path.join(OUTPUT, 'band-check-theta.png'), fullPage: true });
   });
@@ -84,6 +93,18 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
     expect(r.verdict).toBe('band-specific');
     expect(r.sentence).toMatch(/^Band-specific: the periodic sigma power .* is lower in patient than in control/);
     expect(r.after).toBe(r.before + 1);
+    // the scenario halves the spindles' amplitude and leaves their frequency: a power change, no shift
+    expect(await s.page.getByTestId('verdict-kind').innerText()).toBe("In the band's periodic part: a change of the periodic power (no shift of the peak frequency found).");
+    const rows = await s.page.getByTestId('effects-table').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
+    expect(rows.map((x) => x[0])).toEqual(EFFECT_NAMES);
+    const centre = rows.find((x) => x[0] === 'peak centre frequency')!;
+    expect(Number(centre[6])).toBeCloseTo(Math.min(1, 4 * Number(centre[5])), 3);
+    expect(Number(centre[6])).toBeGreaterThan(0.05); // not passing: adjusted p above α
+    expect(Number(rows.find((x) => x[0] === 'peak width')![5])).toBeGreaterThan(0);
+    // planted fast-spindle centre 13.5 Hz in both groups (SD 2.5 % between subjects): each group's mean within 0.3 Hz
+    const means = [...(await s.page.getByTestId('peak-centre').innerText()).matchAll(/(\d+\.\d\d) Hz in (control|patient)/g)];
+    expect(means.map((m) => m[2])).toEqual(['control', 'patient']);
+    for (const m of means) expect(Math.abs(Number(m[1]) - 13.5)).toBeLessThan(0.3);
     expect(await s.page.getByTestId('band-check-n').innerText()).toContain('channels averaged: C3, C4, Cz, P3, P4, Pz');
     await s.page.screenshot({ path: path.join(OUTPUT, 'band-check-sigma.png'), fullPage: true });
   });
@@ -144,6 +165,28 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
     await page.getByTestId('specification-curve').locator('svg').first().waitFor();
     expect(await page.getByTestId('paths-table').locator('tbody tr').count()).toBe(Math.min(expected, 60));
     await page.screenshot({ path: path.join(OUTPUT, 'robustness.png'), fullPage: true });
+  });
+
+  it('robustness decided on power and on power and the peak centre: each path twice, the centre test in the table', async () => {
+    const { page } = s;
+    await page.goto(`${s.server.url}#/robustness?${BASE}&channels=${CENTRO_PARIETAL}&band=sigma:12-16&measures=residual&edges=0&decisions=power,power-and-frequency`);
+    await page.getByTestId('robustness-form').waitFor({ timeout: 60_000 });
+    const expected = stored.fits * stored.references * stored.averagings * 2;
+    await expect.poll(() => page.getByTestId('rb-path-count').innerText(), { timeout: 60_000 }).toContain(`${expected} paths × 1000 permutations`);
+    expect(await page.getByTestId('rb-decision-power-and-frequency').isChecked()).toBe(true);
+    await page.getByTestId('run-robustness').click();
+    await page.getByTestId('robustness-decision').waitFor({ timeout: 120_000 });
+    const rows = await page.getByTestId('paths-table').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
+    expect(rows).toHaveLength(expected);
+    // columns: rank, path, choices, effect, CI low, CI high, p, significant, n, decided on, centre effect, centre difference, centre p, without a peak
+    const both = rows.filter((r) => r[9] === 'power and peak centre');
+    expect(both).toHaveLength(expected / 2);
+    for (const r of both) {
+      expect(Number(r[12])).toBeGreaterThanOrEqual(0);
+      // Bonferroni over the two tests of the path (common practice): p = min(1, 2 · min(p_power, p_centre))
+      const twin = rows.find((x) => x[9] === 'power' && x[2] === r[2].replace('; decided on power and the peak centre (Bonferroni ×2)', ''))!;
+      expect(Number(r[6])).toBeCloseTo(Math.min(1, 2 * Math.min(Number(twin[6]), Number(r[12]))), 3);
+    }
   });
 
   it('logged no console error and sent nothing off the machine', () => {

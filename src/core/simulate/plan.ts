@@ -127,9 +127,10 @@ export function planNight(scenario: Scenario, subjectIndex: number): NightPlan {
   const sources: PlannedSource[] = raw.map((s) => ({ ...s, weight: s.weight / meanW }));
   const electrodeWeight = scenario.background.electrodeWeight / meanW;
 
-  // rhythms: subject's centre and amplitude factor; the offset effect scales rhythm power too
+  // rhythms: subject's centre (moved by a frequency effect) and amplitude factor; the offset effect scales rhythm power too
   const rhythms: PlannedRhythm[] = scenario.rhythms.map((r, i) => {
-    const centerHz = r.centerHz * (1 + v.rhythmFrequencySdFraction * rng.normal());
+    let centerHz = r.centerHz * (1 + v.rhythmFrequencySdFraction * rng.normal());
+    for (const e of effects) if (e.kind === 'rhythm-frequency' && e.rhythm === r.name) centerHz += e.shiftHz;
     let factor = Math.pow(10, v.rhythmAmplitudeSdLog10 * rng.normal());
     for (const e of effects) if (e.kind === 'rhythm-amplitude' && e.rhythm === r.name) factor *= e.factor;
     const base = (st: ScoredStage): number => (r.kind === 'bursts' ? ((r.perMinute[st] ?? 0) > 0 ? r.amplitudeUv : 0) : (r.rmsUv[st] ?? 0));

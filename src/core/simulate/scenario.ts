@@ -91,11 +91,14 @@ export interface VariabilitySpec {
  *   aperiodic part stay as they are (a broadband shift, nothing band-specific).
  * - exponent: the aperiodic exponent + delta in the given stages (a tilt about 1 Hz).
  * - rhythm-amplitude: one rhythm's amplitude × factor (its power × factor²).
+ * - rhythm-frequency: one rhythm's centre frequency moved by shiftHz in every stage (each
+ *   subject's own centre, after its between-subject spread; amplitude and bandwidth unchanged).
  */
 export type EffectSpec =
   | { kind: 'offset'; group: string; deltaLog10: number; stages?: ScoredStage[] }
   | { kind: 'exponent'; group: string; delta: number; stages?: ScoredStage[] }
-  | { kind: 'rhythm-amplitude'; group: string; rhythm: string; factor: number };
+  | { kind: 'rhythm-amplitude'; group: string; rhythm: string; factor: number }
+  | { kind: 'rhythm-frequency'; group: string; rhythm: string; shiftHz: number };
 
 /** Artifacts planted in single subjects; each is written to the ground truth. */
 export type ArtifactSpec =

@@ -80,6 +80,10 @@ export function checkScenario(s: Scenario): void {
     if (e.kind === 'rhythm-amplitude') {
       if (!rhythmNames.has(e.rhythm)) fail(`effects[${i}].rhythm`, e.rhythm, 'no such rhythm');
       if (!(e.factor >= 0)) fail(`effects[${i}].factor`, e.factor, 'must be ≥ 0');
+    } else if (e.kind === 'rhythm-frequency') {
+      const r = s.rhythms.find((x) => x.name === e.rhythm);
+      if (!r) fail(`effects[${i}].rhythm`, e.rhythm, 'no such rhythm');
+      if (!(Number.isFinite(e.shiftHz) && r.centerHz + e.shiftHz > 0)) fail(`effects[${i}].shiftHz`, e.shiftHz, `the shifted centre ${r.centerHz} + shiftHz must be > 0 Hz`);
     }
   });
   s.artifacts.forEach((a, i) => {

@@ -11,4 +11,9 @@ export const PATH_COLUMNS: readonly DataColumn[] = [
   { key: 'p', label: 'p', digits: 4 },
   { key: 'significant', label: 'Significant' },
   { key: 'n', label: 'n' },
+  { key: 'decision', label: 'Decided on' },
+  { key: 'centre_effect', label: 'Peak centre effect size', digits: 2 },
+  { key: 'centre_difference_hz', label: 'Peak centre difference (Hz)', digits: 2 },
+  { key: 'centre_p', label: 'Peak centre p', digits: 4 },
+  { key: 'without_peak', label: 'Without a peak in the band' },
 ];

@@ -1,5 +1,6 @@
 // The specification curve's rows: which choices each path used (the dot matrix under the curve),
-// the table of paths, and the share of significant paths in words (src/core/verdict runPaths).
+// the table of paths (with the peak-centre test of a path decided on power and frequency), and
+// the share of significant paths in words (src/core/verdict runPaths).
 import type { PathResult, SpecificationCurve } from '../../../core/verdict/index.ts';
 import type { Row } from '../../../queries/client.ts';
 
@@ -14,6 +15,7 @@ export function pathChoiceValues(p: PathResult): { choice: string; value: string
     { choice: 'summary', value: p.summary === null ? null : p.summary === 'mean' ? 'mean density' : 'integral' },
     { choice: 'fit range', value: p.fitRangeHz === null ? null : `fit ${hz(p.fitRangeHz)}` },
     { choice: 'band edges', value: `band ${hz([p.band.loHz, p.band.hiHz])}` },
+    { choice: 'decision', value: p.decision === 'power-and-frequency' ? 'decided on power and peak centre' : 'decided on power' },
   ];
 }
 
@@ -92,7 +94,9 @@ export function measureSentence(curve: SpecificationCurve): string {
   return `By measure — ${parts.join('; ')}.`;
 }
 
-/** The table of paths, in curve order. */
+const counts = (n: Record<string, number>) => Object.entries(n).map(([g, k]) => `${g} ${k}`).join(', ');
+
+/** The table of paths, in curve order; a path decided on power and frequency states its peak-centre test. */
 export function pathRows(curve: SpecificationCurve): Row[] {
   return curve.paths.map((p) => ({
     rank: p.rank,
@@ -103,6 +107,11 @@ export function pathRows(curve: SpecificationCurve): Row[] {
     ci_high: p.ciHigh,
     p: p.p,
     significant: p.significant,
-    n: Object.entries(p.n).map(([g, k]) => `${g} ${k}`).join(', '),
+    n: counts(p.n),
+    decision: p.decision === 'power-and-frequency' ? 'power and peak centre' : 'power',
+    centre_effect: p.frequency && Number.isFinite(p.frequency.effect) ? p.frequency.effect : null,
+    centre_difference_hz: p.frequency?.differenceHz ?? null,
+    centre_p: p.frequency ? (p.frequency.skipped ? null : p.frequency.p) : null,
+    without_peak: p.frequency ? (p.frequency.skipped ?? counts(p.frequency.withoutPeak)) : null,
   }));
 }

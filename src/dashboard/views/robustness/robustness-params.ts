@@ -1,9 +1,10 @@
 // A robustness run in the address bar: the band check's keys (contrast + band) plus the choices
-// varied, each a list of the values ticked ('none' for an empty list), and the way each path is
-// tested. An absent key means its default: every value the database stores (defaultPathChoices).
+// varied, each a list of the values ticked ('none' for an empty list), what each path is decided
+// on, and the way each path is tested. An absent key means its default: every value the database
+// stores (defaultPathChoices); decided on power only.
 import type { Contrast } from '../../../core/contrast/spec.ts';
 import type { Band, BandMethod } from '../../../core/spectrum/bands.ts';
-import { edgeVariants, type PathChoices, type PathDataSet, type PathMeasure, type PathTest } from '../../../core/verdict/index.ts';
+import { edgeVariants, PATH_DECISIONS, type PathChoices, type PathDataSet, type PathDecision, type PathMeasure, type PathTest } from '../../../core/verdict/index.ts';
 
 type Averaging = PathDataSet['averaging'];
 
@@ -69,6 +70,7 @@ export function pathChoicesFromParams(params: Readonly<Record<string, string>>, 
       summaries: pick(list(params, 'summaries'), SUMMARIES, SUMMARIES, 'summaries'),
       fitRangesHz,
       bands: params.edges === '0' ? [{ ...band }] : edgeVariants(band),
+      decisions: pick<PathDecision>(list(params, 'decisions'), PATH_DECISIONS, ['power'], 'decisions'),
     },
     test,
   };
@@ -94,6 +96,7 @@ export function paramsFromChoices(choices: PathChoices, test: PathTest, band: Ba
     summaries: listParam(choices.summaries),
     fits: rangesParam(choices.fitRangesHz),
     edges: varied ? '1' : '0',
+    decisions: listParam(choices.decisions ?? ['power']),
     test,
   };
 }
