@@ -40,13 +40,19 @@ const col = (name: string, type: SqlType, doc: string, notNull = false): ColumnD
 const RECORDING_STATUS_DOC =
   'ok, ok-with-warnings, partial-scoring (scoring starts late, ends early or has gaps), partial-data (EDF+D gaps, truncated last record) or partial-data-and-scoring; see warnings';
 
-/** Keys shared by spectra, aperiodic and peaks: one spectrum per recording × channel × stage × reference × averaging. */
+/**
+ * Keys shared by spectra, aperiodic and peaks: one spectrum per recording × channel × stage ×
+ * reference × averaging × estimator. Fits are made per estimator, so aperiodic and peaks carry it
+ * too (IRASA fits, made from the time series, carry 'welch'). quality rows do not: the quality
+ * screen and its fit-quality metrics are computed on the Welch spectra only.
+ */
 const SPECTRUM_KEYS: readonly ColumnDef[] = [
   col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
   col('channel', 'VARCHAR', 'electrode name without type prefix (C3, M1) or bipolar pair (C3-P3)', true),
   col('stage', 'VARCHAR', 'AASM stage label W, N1, N2, N3, R', true),
   col('reference', 'VARCHAR', 'recorded, linked-mastoids, contralateral-mastoid, average or bipolar', true),
   col('averaging', 'VARCHAR', 'mean or median (median bias-corrected) over the stage\'s clean epochs', true),
+  col('estimator', 'VARCHAR', 'welch (Welch 1967) or multitaper (Thomson 1982; NW and K in runs.parameters); rows written before the column existed are welch', true),
 ];
 
 export const TABLES: readonly TableDef[] = [
@@ -152,12 +158,12 @@ export const TABLES: readonly TableDef[] = [
   },
   {
     name: 'spectra',
-    doc: 'Per-stage power spectral density (Welch 1967), µV²/Hz, frequencies freq_start_hz + i·freq_step_hz.',
-    primaryKey: ['recording_id', 'channel', 'stage', 'reference', 'averaging'],
+    doc: 'Per-stage power spectral density (Welch 1967, or multitaper, Thomson 1982: see estimator), µV²/Hz, frequencies freq_start_hz + i·freq_step_hz.',
+    primaryKey: ['recording_id', 'channel', 'stage', 'reference', 'averaging', 'estimator'],
     columns: [
       ...SPECTRUM_KEYS,
       col('n_epochs', 'INTEGER', 'clean epochs averaged', true),
-      col('n_segments', 'INTEGER', 'Welch segments averaged', true),
+      col('n_segments', 'INTEGER', 'segments averaged (each with K tapers for multitaper)', true),
       col('freq_start_hz', 'DOUBLE', 'frequency of the first bin in Hz', true),
       col('freq_step_hz', 'DOUBLE', 'bin spacing in Hz', true),
       col('n_bins', 'INTEGER', 'number of bins (length of power)', true),

@@ -4,7 +4,7 @@
  * beside it, ready for src/core/stats.
  */
 import type { DuckDBListVector, DuckDBValue } from '@duckdb/node-api';
-import type { Averaging, Reference } from '../../ingest/store/bundle.ts';
+import type { Averaging, Estimator, Reference } from '../../ingest/store/bundle.ts';
 import { StoreError } from '../../ingest/store/errors.ts';
 import type { Store } from '../../ingest/store/writer.ts';
 import type { Stage } from '../core/stages.ts';
@@ -33,9 +33,27 @@ export interface SpectraQuery {
   stage: Stage;
   reference: Reference;
   averaging: Averaging;
+  /** Spectral estimator (default 'welch'). */
+  estimator?: Estimator;
   /** Only these channels (default: all). */
   channels?: readonly string[];
 }
+
+/**
+ * The SQL condition on `alias`.estimator for an estimator: a file written before the column
+ * existed holds Welch rows only, so there 'welch' needs no condition and 'multitaper' is refused.
+ */
+async function estimatorCondition(store: Store, alias: string, estimator: Estimator = 'welch'): Promise<string> {
+  let has = withEstimator.get(store);
+  if (has === undefined) {
+    const found = await query(store, "SELECT 1 AS one FROM duckdb_columns() WHERE database_name = current_database() AND table_name = 'spectra' AND column_name = 'estimator'");
+    withEstimator.set(store, (has = found.length > 0));
+  }
+  if (has) return ` AND ${alias}.estimator = '${estimator === 'multitaper' ? 'multitaper' : 'welch'}'`;
+  if (estimator === 'welch') return '';
+  throw new StoreError('this database was written before multitaper spectra existed: it holds Welch spectra only', { table: 'spectra' });
+}
+const withEstimator = new WeakMap<Store, boolean>();
 
 /** Spectra of one (run, stage, reference, averaging), ordered by subject, session, channel. */
 export interface SpectraMatrix {
@@ -123,10 +141,11 @@ export async function readSpectra(store: Store, q: SpectraQuery): Promise<Spectr
   // vector into one Float32Array (no JS array per row: 640,000 rows × 181 values at cohort scale).
   const only = q.channels ? ` AND s.channel IN (${q.channels.length ? q.channels.map((c) => `'${c.replaceAll("'", "''")}'`).join(', ') : 'NULL'})` : '';
   const values: DuckDBValue[] = [q.runId, q.stage, q.reference, q.averaging];
+  const est = await estimatorCondition(store, 's', q.estimator);
   // the longest list of each recording, by a join on the keys (a window over the rows would hold the lists twice)
   const rowsSql = (cols: string) => `SELECT ${cols} FROM spectra s JOIN recordings r USING (recording_id)
-        JOIN (SELECT recording_id, max(n_bins) AS longest FROM spectra s WHERE s.stage = $2 AND s.reference = $3 AND s.averaging = $4${only} GROUP BY recording_id) m USING (recording_id)
-        WHERE r.run_id = $1 AND s.stage = $2 AND s.reference = $3 AND s.averaging = $4${only} AND s.n_bins = m.longest`;
+        JOIN (SELECT recording_id, max(n_bins) AS longest FROM spectra s WHERE s.stage = $2 AND s.reference = $3 AND s.averaging = $4${est}${only} GROUP BY recording_id) m USING (recording_id)
+        WHERE r.run_id = $1 AND s.stage = $2 AND s.reference = $3 AND s.averaging = $4${est}${only} AND s.n_bins = m.longest`;
   return store.exclusive(async () => {
     const head = (await store.connection.runAndReadAll(
       `SELECT count(*) AS n, min(freq_start_hz) AS f0, max(freq_start_hz) AS f0b, min(freq_step_hz) AS df, max(freq_step_hz) AS dfb,
@@ -185,7 +204,7 @@ export async function readAperiodic(
     store,
     `SELECT a.*, r.subject, r.session
        FROM aperiodic a JOIN recordings r USING (recording_id)
-      WHERE r.run_id = $1 AND a.stage = $2 AND a.reference = $3 AND a.averaging = $4
+      WHERE r.run_id = $1 AND a.stage = $2 AND a.reference = $3 AND a.averaging = $4${await estimatorCondition(store, 'a', q.estimator)}
         AND ($5 IS NULL OR a.method = $5)
       ORDER BY r.subject, r.session NULLS FIRST, a.recording_id, a.channel, a.method`,
     [q.runId, q.stage, q.reference, q.averaging, q.method ?? null],
@@ -238,7 +257,7 @@ export async function readPeaks(store: Store, q: Omit<SpectraQuery, 'channels'> 
     store,
     `SELECT p.*, r.subject, r.session
        FROM peaks p JOIN recordings r USING (recording_id)
-      WHERE r.run_id = $1 AND p.stage = $2 AND p.reference = $3 AND p.averaging = $4
+      WHERE r.run_id = $1 AND p.stage = $2 AND p.reference = $3 AND p.averaging = $4${await estimatorCondition(store, 'p', q.estimator)}
         AND ($5 IS NULL OR p.method = $5)
       ORDER BY r.subject, r.session NULLS FIRST, p.recording_id, p.channel, p.center_hz`,
     [q.runId, q.stage, q.reference, q.averaging, q.method ?? null],

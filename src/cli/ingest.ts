@@ -11,6 +11,7 @@ import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
 import { REFERENCE_KINDS, type ReferenceKind } from '../core/montage/reference.ts';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
+import { defaultTaperCount } from '../core/spectrum/multitaper.ts';
 import { readLabelMap } from '../../ingest/hypnogram/label-map.ts';
 import { parseShard, runIngest, type IngestEvent } from '../../ingest/run.ts';
 import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../../ingest/pipeline.ts';
@@ -65,6 +66,9 @@ interface Flags {
   trimScoring?: boolean;
   lightsOffTexts: string[];
   lightsOnTexts: string[];
+  estimator: string[];
+  nw: number;
+  tapers?: number;
 }
 
 export function register(program: Command): void {
@@ -97,6 +101,9 @@ export function register(program: Command): void {
     .option('--broadband <LO-HI>', 'broadband power range for the outlier rule, Hz', range('broadband'), D.rejection.broadbandHz)
     .option('--muscle <LO-HI>', 'high-frequency (muscle) range for the outlier rule, Hz', range('muscle'), D.rejection.muscleHz)
     .option('--min-epochs <n>', 'flag stages with fewer clean epochs (10 = 5 min of 30-s epochs)', num('min-epochs', (x) => Number.isInteger(x) && x >= 1), D.minEpochs)
+    .option('--estimator <list>', 'spectral estimators to store: welch, multitaper (Thomson 1982: Slepian tapers on Welch\'s segments and grid; Welch is always stored, as epoch rejection, band powers and quality use it)', list, ['welch'])
+    .option('--nw <NW>', 'multitaper time-half-bandwidth NW: frequency resolution 2NW/segment Hz (1 Hz for 2 and 4-s segments)', num('nw', (x) => x >= 1), 2)
+    .option('--tapers <K>', 'multitaper number of tapers K (default 2NW − 1)', num('tapers', (x) => Number.isInteger(x) && x >= 1))
     .option('--band <band...>', `epoch band powers, repeatable: ${BAND_SYNTAX} (default ${D.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(' ')})`)
     .option('--band-method <mean|integral>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²)', D.bandMethod)
     .option('--fit-range <LO-HI>', 'aperiodic fit range, Hz', range('fit-range'), D.fit!.fitRangeHz)
@@ -122,7 +129,11 @@ function toParams(f: Flags): Partial<IngestParams> {
     if (!REFERENCE_KINDS.includes(r as ReferenceKind)) throw new InvalidArgumentError(`invalid reference: ${r} (one of ${REFERENCE_KINDS.join(', ')})`);
   }
   if (f.bandMethod !== 'mean' && f.bandMethod !== 'integral') throw new InvalidArgumentError(`invalid band method: ${f.bandMethod}`);
+  for (const e of f.estimator) if (e !== 'welch' && e !== 'multitaper') throw new InvalidArgumentError(`invalid estimator: ${e} (welch or multitaper)`);
+  const tapers = f.tapers ?? defaultTaperCount(f.nw);
+  if (f.estimator.includes('multitaper') && tapers > 2 * f.nw) throw new InvalidArgumentError(`invalid tapers: ${tapers} (at most 2NW = ${2 * f.nw})`);
   return {
+    ...(f.estimator.includes('multitaper') ? { multitaper: { nw: f.nw, k: tapers } } : {}),
     epochS: f.epoch,
     segmentS: f.segment,
     overlap: f.overlap,

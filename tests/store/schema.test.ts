@@ -59,8 +59,8 @@ describe('schema names equal docs/design.md', () => {
       if (!actual.has(t)) actual.set(t, new Map());
       actual.get(t)!.set(String(r.column_name), String(r.data_type));
     }
-    // DESIGN: peaks(… same keys …, center_hz, …) — "same keys" as aperiodic: recording_id, channel, stage, reference, averaging.
-    const peakKeys = ['recording_id', 'channel', 'stage', 'reference', 'averaging'];
+    // DESIGN: peaks(… same keys …, center_hz, …) — "same keys" as aperiodic: recording_id, channel, stage, reference, averaging, estimator.
+    const peakKeys = ['recording_id', 'channel', 'stage', 'reference', 'averaging', 'estimator'];
     for (const [table, cols] of design) {
       const got = actual.get(table);
       expect(got, table).toBeDefined();
