@@ -21,7 +21,7 @@ export async function loadBandCheckData(store: Store, c: Contrast, exclusions: E
   const stages = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
   const ranges: [number, number][] = [];
   for (const stage of stages) {
-    const q = { runId: loaded.runId, stage, reference: c.reference, averaging: c.averaging, method: c.aperiodicMethod };
+    const q = { runId: loaded.runId, stage, reference: c.reference, averaging: c.averaging, estimator: c.estimator, method: c.aperiodicMethod };
     for (const p of await readPeaks(store, q)) {
       loaded.data.peaks.push({ subject: p.subject, session: p.session, channel: p.channel, stage, centerHz: p.centerHz, height: p.height, bandwidthHz: p.bandwidthHz });
     }

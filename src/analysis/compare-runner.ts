@@ -8,7 +8,7 @@ import type { Contrast } from '../core/contrast/spec.ts';
 import type { ContrastData, Exclusion, SpectrumRow } from '../core/contrast/data.ts';
 import { measureNeeds } from '../core/contrast/measure.ts';
 import { assembleContrast, type AssembledContrast } from '../core/contrast/assemble.ts';
-import type { CompareResult } from '../core/contrast/run.ts';
+import { checkBandDefinition, type CompareResult } from '../core/contrast/run.ts';
 import type { ProgressCallback } from '../core/stats/index.ts';
 import { compareOnThreads, defaultThreads, sharedAssembly } from './compare-threads.ts';
 import type { Stage } from '../core/stages.ts';
@@ -32,13 +32,13 @@ export async function chooseRun(store: Store, runId?: string): Promise<{ runId: 
 export async function loadContrastData(store: Store, c: Contrast, exclusions: Exclusion[], runId?: string): Promise<LoadedContrast> {
   const run = await chooseRun(store, runId);
   const stages: Stage[] = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
-  const needs = measureNeeds(c.measure);
+  const needs = measureNeeds(c.measure, c.bandDefinition);
   const rows: SpectrumRow[] = [];
   let axis = { freqStartHz: 0, freqStepHz: 0, nBins: 0 };
   const aperiodic: ContrastData['aperiodic'] = [];
   const peaks: ContrastData['peaks'] = [];
   for (const stage of stages) {
-    const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
+    const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging, estimator: c.estimator };
     const m = await readSpectra(store, { ...q, channels: c.channels === 'all' ? undefined : c.channels });
     if (m.nBins > 0) {
       if (axis.nBins > 0 && (axis.nBins !== m.nBins || axis.freqStepHz !== m.freqStepHz)) throw new Error('stages have different frequency axes');
@@ -67,7 +67,7 @@ export async function loadContrastData(store: Store, c: Contrast, exclusions: Ex
       }
     }
   }
-  if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
+  if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference}, averaging ${c.averaging} and estimator ${c.estimator} in run ${run.runId}`);
   const table = await readParticipants(store);
   const participants = table.rows.map((r) => Object.fromEntries(table.columns.map((col, i) => [col.name, r[i]])));
   // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)
@@ -99,7 +99,7 @@ async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[
     await store.close();
   }
   const { data, ...info } = loaded;
-  const assembled = assembleContrast(c, data);
+  const assembled = assembleContrast(checkBandDefinition(c), data);
   const n = threads ?? defaultThreads(assembled, c.permutations);
   return { info, assembled: n > 1 ? sharedAssembly(assembled) : assembled, threads: n };
 }

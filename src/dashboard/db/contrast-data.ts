@@ -7,6 +7,7 @@ import type { Stage } from '../../core/stages.ts';
 import { listColumnRowsInto, numberColumn, stringColumn } from './arrow-rows.ts';
 import { participants, type CohortSchema, type RunInfo } from './queries.ts';
 import { COHORT, literal, resultBatches, type SqlClient } from './sql-client.ts';
+import { estimatorCondition, storedEstimator } from './estimator.ts';
 
 /** The run a contrast reads: the most recent finished one, else the last one (as the command line). */
 export function chooseRun(runs: readonly RunInfo[]): RunInfo {
@@ -19,6 +20,8 @@ export interface SpectraKey {
   stage: Stage;
   reference: string;
   averaging: string;
+  /** spectral estimator (default welch; null: a database without the column, all Welch — estimator.ts) */
+  estimator?: string | null;
   /** Only these channels (contrastSpectra; default all). */
   channels?: readonly string[];
 }
@@ -41,7 +44,7 @@ export async function contrastSpectra(
   // Nyquist frequency) is left out, as src/analysis/store-read.ts readSpectra does; `cell` names columns
   // only spectra has, so it reads the same inside and outside the join
   const only = q.channels ? ` AND channel IN (${q.channels.length ? q.channels.map(literal).join(', ') : 'NULL'})` : '';
-  const cell = `stage = ${literal(q.stage)} AND reference = ${literal(q.reference)} AND averaging = ${literal(q.averaging)}${only}`;
+  const cell = `stage = ${literal(q.stage)} AND reference = ${literal(q.reference)} AND averaging = ${literal(q.averaging)}${estimatorCondition('estimator', q.estimator)}${only}`;
   const from = `FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
        JOIN (SELECT recording_id, max(n_bins) AS longest FROM ${COHORT}.spectra WHERE ${cell} GROUP BY recording_id) m USING (recording_id)
      WHERE r.run_id = ${literal(q.runId)} AND ${cell} AND s.n_bins = m.longest`;
@@ -130,7 +133,7 @@ export async function contrastAperiodic(db: SqlClient, q: SpectraKey, method: st
             a."offset"::DOUBLE AS "offset", a.exponent::DOUBLE AS exponent, a.knee::DOUBLE AS knee
      FROM ${COHORT}.aperiodic a JOIN ${COHORT}.recordings r USING (recording_id)
      WHERE r.run_id = ${literal(q.runId)} AND a.stage = ${literal(q.stage)} AND a.reference = ${literal(q.reference)}
-       AND a.averaging = ${literal(q.averaging)} AND a.method = ${literal(method)}
+       AND a.averaging = ${literal(q.averaging)} AND a.method = ${literal(method)}${estimatorCondition('a.estimator', q.estimator)}
      ORDER BY r.subject, r.session NULLS FIRST, a.recording_id, a.channel, a.method`,
   );
   const subject = stringColumn(t, 'subject');
@@ -161,7 +164,7 @@ export async function contrastPeaks(db: SqlClient, q: SpectraKey, method: string
             p.center_hz::DOUBLE AS center_hz, p.height::DOUBLE AS height, p.bandwidth_hz::DOUBLE AS bandwidth_hz
      FROM ${COHORT}.peaks p JOIN ${COHORT}.recordings r USING (recording_id)
      WHERE r.run_id = ${literal(q.runId)} AND p.stage = ${literal(q.stage)} AND p.reference = ${literal(q.reference)}
-       AND p.averaging = ${literal(q.averaging)} AND p.method = ${literal(method)}
+       AND p.averaging = ${literal(q.averaging)} AND p.method = ${literal(method)}${estimatorCondition('p.estimator', q.estimator)}
      ORDER BY r.subject, r.session NULLS FIRST, p.recording_id, p.channel, p.center_hz`,
   );
   const subject = stringColumn(t, 'subject');
@@ -222,14 +225,15 @@ export async function loadContrastData(
 ): Promise<{ runId: string; data: ContrastData }> {
   const run = chooseRun(runs);
   const stages: Stage[] = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
-  const needs = measureNeeds(c.measure);
+  const needs = measureNeeds(c.measure, c.bandDefinition);
+  const estimator = storedEstimator(schema, c.estimator);
   // all queries issued together (duckdb-wasm runs them one after another in its worker, without
   // waits between); rows joined with concat, not push(...rows), which overflows the call stack
   // at cohort size (10⁵ rows)
   const [perStage, participantRows, recordedReferences] = await Promise.all([
     Promise.all(
       stages.map((stage) => {
-        const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
+        const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging, estimator };
         return Promise.all([
           contrastSpectra(db, { ...q, channels: c.channels === 'all' ? undefined : c.channels }, maxHz),
           needs.aperiodic ? contrastAperiodic(db, q, c.aperiodicMethod) : Promise.resolve([]),
@@ -252,7 +256,7 @@ export async function loadContrastData(
   const aperiodic: AperiodicRow[] = ([] as AperiodicRow[]).concat(...perStage.map(([, a]) => a));
   const peaks: PeakRow[] = ([] as PeakRow[]).concat(...perStage.map(([, , p]) => p));
   performance.mark('bandwise:contrast-data');
-  if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
+  if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference}, averaging ${c.averaging} and estimator ${c.estimator} in run ${run.runId}`);
   return {
     runId: run.runId,
     data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences },

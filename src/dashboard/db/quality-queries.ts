@@ -3,6 +3,7 @@
 import { listColumnToMatrix, numberColumn, stringColumn, tableToRows, type Row } from './arrow-rows.ts';
 import type { CohortSchema } from './queries.ts';
 import { COHORT, literal, type SqlClient } from './sql-client.ts';
+import { estimatorCondition } from './estimator.ts';
 
 /** One quality row with the recording's subject (quality table, DESIGN.md). */
 export interface QualityRecord {
@@ -84,7 +85,7 @@ export async function spectraChoices(db: SqlClient): Promise<{ stage: string; re
   return rows.map((r) => ({ stage: String(r.stage), reference: String(r.reference), averaging: String(r.averaging), rows: Number(r.n) }));
 }
 
-/** Spectra of one channel × stage × reference × averaging across the cohort, one row per recording. */
+/** Spectra of one channel × stage × reference × averaging (Welch unless told) across the cohort, one row per recording. */
 export interface ChannelSpectra {
   recordingIds: string[];
   freqStartHz: number;
@@ -96,12 +97,12 @@ export interface ChannelSpectra {
 
 export async function channelSpectra(
   db: SqlClient,
-  sel: { channel: string; stage: string; reference: string; averaging: string },
+  sel: { channel: string; stage: string; reference: string; averaging: string; estimator?: string | null },
 ): Promise<ChannelSpectra> {
   const t = await db.query(
     `SELECT recording_id::VARCHAR AS recording_id, freq_start_hz::DOUBLE AS f0, freq_step_hz::DOUBLE AS df, n_bins::DOUBLE AS n_bins, power
      FROM ${COHORT}.spectra
-     WHERE channel = ${literal(sel.channel)} AND stage = ${literal(sel.stage)} AND reference = ${literal(sel.reference)} AND averaging = ${literal(sel.averaging)}
+     WHERE channel = ${literal(sel.channel)} AND stage = ${literal(sel.stage)} AND reference = ${literal(sel.reference)} AND averaging = ${literal(sel.averaging)}${estimatorCondition('estimator', sel.estimator)}
      ORDER BY recording_id`,
   );
   const nb = numberColumn(t, 'n_bins');

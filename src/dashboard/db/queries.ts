@@ -2,6 +2,7 @@
 // Results are plain arrays of rows; big numeric results are typed arrays.
 import { listColumnToMatrix, numberColumn, stringColumn, tableToRows, type Row } from './arrow-rows.ts';
 import { COHORT, ident, literal, type SqlClient } from './sql-client.ts';
+import { estimatorCondition } from './estimator.ts';
 
 
 export interface TableColumn {
@@ -242,6 +243,8 @@ export interface SpectraSelection {
   stage: string;
   reference: string;
   averaging: string;
+  /** default welch; null: a database without the estimator column (estimator.ts) */
+  estimator?: string | null;
 }
 
 /** Spectra of one stage/reference/averaging, rows ordered by recording then channel. */
@@ -260,7 +263,7 @@ export async function spectraMatrix(db: SqlClient, sel: SpectraSelection): Promi
     `SELECT recording_id::VARCHAR AS recording_id, channel::VARCHAR AS channel, freq_start_hz::DOUBLE AS f0,
             freq_step_hz::DOUBLE AS df, n_bins::DOUBLE AS n_bins, power
      FROM ${COHORT}.spectra
-     WHERE stage = ${literal(sel.stage)} AND reference = ${literal(sel.reference)} AND averaging = ${literal(sel.averaging)}
+     WHERE stage = ${literal(sel.stage)} AND reference = ${literal(sel.reference)} AND averaging = ${literal(sel.averaging)}${estimatorCondition('estimator', sel.estimator)}
      ORDER BY recording_id, channel`,
   );
   const f0 = numberColumn(t, 'f0');

@@ -11,16 +11,17 @@ import { numberColumn, stringColumn } from './arrow-rows.ts';
 import { chooseRun, contrastParticipants, contrastPeaks, contrastSpectra, loadContrastData } from './contrast-data.ts';
 import type { CohortSchema, RunInfo } from './queries.ts';
 import { COHORT, literal, type SqlClient } from './sql-client.ts';
+import { estimatorCondition, storedEstimator } from './estimator.ts';
 
 const sameRange = (a: readonly number[], b: readonly number[]) => a[0] === b[0] && a[1] === b[1];
 
-/** Distinct aperiodic fit ranges (Hz) stored for one run × stage × reference × averaging × method, ordered. */
-export async function storedFitRanges(db: SqlClient, runId: string, stage: Stage, reference: string, averaging: string, method: string): Promise<[number, number][]> {
+/** Distinct aperiodic fit ranges (Hz) stored for one run × stage × reference × averaging × method (and estimator), ordered. */
+export async function storedFitRanges(db: SqlClient, runId: string, stage: Stage, reference: string, averaging: string, method: string, estimator?: string | null): Promise<[number, number][]> {
   const t = await db.query(
     `SELECT DISTINCT a.fit_lo_hz::DOUBLE AS lo, a.fit_hi_hz::DOUBLE AS hi
      FROM ${COHORT}.aperiodic a JOIN ${COHORT}.recordings r USING (recording_id)
      WHERE r.run_id = ${literal(runId)} AND a.stage = ${literal(stage)} AND a.reference = ${literal(reference)}
-       AND a.averaging = ${literal(averaging)} AND a.method = ${literal(method)}
+       AND a.averaging = ${literal(averaging)} AND a.method = ${literal(method)}${estimatorCondition('a.estimator', estimator)}
      ORDER BY 1, 2`,
   );
   const lo = numberColumn(t, 'lo');
@@ -56,10 +57,11 @@ export async function loadBandCheckData(db: SqlClient, schema: CohortSchema, run
   const loaded = await loadContrastData(db, schema, runs, { ...c, measure: 'residual' }, exclusions);
   const stages: Stage[] = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
   const ranges: [number, number][] = [];
+  const estimator = storedEstimator(schema, c.estimator);
   for (const stage of stages) {
-    const q = { runId: loaded.runId, stage, reference: c.reference, averaging: c.averaging };
+    const q = { runId: loaded.runId, stage, reference: c.reference, averaging: c.averaging, estimator };
     loaded.data.peaks.push(...(await contrastPeaks(db, q, c.aperiodicMethod)));
-    for (const r of await storedFitRanges(db, loaded.runId, stage, c.reference, c.averaging, c.aperiodicMethod)) {
+    for (const r of await storedFitRanges(db, loaded.runId, stage, c.reference, c.averaging, c.aperiodicMethod, estimator)) {
       if (!ranges.some((x) => sameRange(x, r))) ranges.push(r);
     }
   }
@@ -68,8 +70,8 @@ export async function loadBandCheckData(db: SqlClient, schema: CohortSchema, run
   return { runId: loaded.runId, toolVersion: run.toolVersion, runParameters: run.parameters, data: loaded.data, fitRangeHz: ranges[0] };
 }
 
-/** Aperiodic fits of one run × stage × reference × averaging × method with one fit range. */
-export async function aperiodicInFitRange(db: SqlClient, q: { runId: string; stage: Stage; reference: string; averaging: string }, method: string, fitRangeHz: [number, number]): Promise<AperiodicRow[]> {
+/** Aperiodic fits of one run × stage × reference × averaging × method (and estimator) with one fit range. */
+export async function aperiodicInFitRange(db: SqlClient, q: { runId: string; stage: Stage; reference: string; averaging: string; estimator?: string | null }, method: string, fitRangeHz: [number, number]): Promise<AperiodicRow[]> {
   if (!fitRangeHz.every(Number.isFinite)) throw new Error(`aperiodic fit range ${fitRangeHz.join('–')} Hz is not a pair of numbers`);
   const t = await db.query(
     `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, a.channel::VARCHAR AS channel,
@@ -77,7 +79,7 @@ export async function aperiodicInFitRange(db: SqlClient, q: { runId: string; sta
      FROM ${COHORT}.aperiodic a JOIN ${COHORT}.recordings r USING (recording_id)
      WHERE r.run_id = ${literal(q.runId)} AND a.stage = ${literal(q.stage)} AND a.reference = ${literal(q.reference)}
        AND a.averaging = ${literal(q.averaging)} AND a.method = ${literal(method)}
-       AND a.fit_lo_hz = ${fitRangeHz[0]} AND a.fit_hi_hz = ${fitRangeHz[1]}
+       AND a.fit_lo_hz = ${fitRangeHz[0]} AND a.fit_hi_hz = ${fitRangeHz[1]}${estimatorCondition('a.estimator', q.estimator)}
      ORDER BY r.subject, r.session NULLS FIRST, a.recording_id, a.channel`,
   );
   const subject = stringColumn(t, 'subject');
@@ -94,30 +96,32 @@ export async function aperiodicInFitRange(db: SqlClient, q: { runId: string; sta
 }
 
 /**
- * The row sets of a robustness run: for each (reference, averaging) the stored spectra of the
- * contrast's stage, and for each fit range stored there one set with the fits of that range
- * (a set without fits when none is stored). Spectra rows are shared between the sets of a pair.
+ * The row sets of a robustness run: for each (reference, averaging, estimator) the stored spectra
+ * and fitted peaks of the contrast's stage, and for each fit range stored there one set with the
+ * fits of that range (a set without fits when none is stored). Spectra and peak rows are shared
+ * between the sets of one (reference, averaging, estimator).
  */
 export async function loadPathDataSets(
   db: SqlClient,
   schema: CohortSchema,
   runs: readonly RunInfo[],
   c: Contrast,
-  needs: readonly { reference: string; averaging: Averaging }[],
+  needs: readonly { reference: string; averaging: Averaging; estimator?: PathDataSet['estimator'] }[],
   exclusions: readonly Exclusion[],
 ): Promise<PathDataSet[]> {
   if (c.design === 'paired' && c.stages) throw new Error('a robustness run takes one stage; paired stages are not supported here (choose a groups or covariate design)');
   const run = chooseRun(runs);
   const people = await contrastParticipants(db, schema);
   const sets: PathDataSet[] = [];
-  for (const { reference, averaging } of needs) {
-    const q = { runId: run.runId, stage: c.stage, reference, averaging };
+  for (const { reference, averaging, estimator = 'welch' } of needs) {
+    const q = { runId: run.runId, stage: c.stage, reference, averaging, estimator: storedEstimator(schema, estimator) };
     const spectra = await contrastSpectra(db, { ...q, channels: c.channels === 'all' ? undefined : c.channels });
-    if (spectra.rows.length === 0) throw new Error(`no ${c.stage} spectra with reference ${reference} and averaging ${averaging} in run ${run.runId}`);
-    const ranges = await storedFitRanges(db, run.runId, c.stage, reference, averaging, c.aperiodicMethod);
-    const base = { spectra, peaks: [], participants: people, exclusions: [...exclusions] };
-    if (ranges.length === 0) sets.push({ reference, averaging, fitRangeHz: null, data: { ...base, aperiodic: [] } });
-    for (const r of ranges) sets.push({ reference, averaging, fitRangeHz: r, data: { ...base, aperiodic: await aperiodicInFitRange(db, q, c.aperiodicMethod, r) } });
+    if (spectra.rows.length === 0) throw new Error(`no ${c.stage} spectra with reference ${reference}, averaging ${averaging} and estimator ${estimator} in run ${run.runId}`);
+    const ranges = await storedFitRanges(db, run.runId, c.stage, reference, averaging, c.aperiodicMethod, q.estimator);
+    // fitted peaks (method fit): individual bands and paths decided on frequency use them
+    const base = { spectra, peaks: await contrastPeaks(db, q, 'fit'), participants: people, exclusions: [...exclusions] };
+    if (ranges.length === 0) sets.push({ reference, averaging, estimator, fitRangeHz: null, data: { ...base, aperiodic: [] } });
+    for (const r of ranges) sets.push({ reference, averaging, estimator, fitRangeHz: r, data: { ...base, aperiodic: await aperiodicInFitRange(db, q, c.aperiodicMethod, r) } });
   }
   return sets;
 }

@@ -14,6 +14,7 @@ import {
   type EpochRow,
   type QualityRecord,
 } from '../../db/quality-queries.ts';
+import { storedEstimator } from '../../db/estimator.ts';
 import type { CohortSchema } from '../../db/queries.ts';
 import type { SqlClient } from '../../db/sql-client.ts';
 import { spectrumQuartiles, type SpectrumQuartiles } from './cohort-band.ts';
@@ -136,7 +137,8 @@ export async function loadCellDetail(
   sel: { recordingId: string; subject: string; channel: string; stage: string; reference: string; averaging: string },
 ): Promise<CellDetail> {
   const isChannel = sel.channel !== RECORDING_COLUMN;
-  const all = isChannel ? await channelSpectra(db, sel) : null;
+  // the quality screen reads Welch spectra, as its metrics were computed on them
+  const all = isChannel ? await channelSpectra(db, { ...sel, estimator: storedEstimator(schema, 'welch') }) : null;
   const i = all ? all.recordingIds.indexOf(sel.recordingId) : -1;
   const spectrum = all && i >= 0 ? all.power.slice(i * all.nBins, (i + 1) * all.nBins) : null;
   const cohort = all && all.recordingIds.length > 0 ? spectrumQuartiles(all.power, all.nBins, all.freqStartHz, all.freqStepHz) : null;

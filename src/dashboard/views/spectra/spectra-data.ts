@@ -7,6 +7,7 @@ import { parseContrast, type Contrast } from '../../../core/contrast/spec.ts';
 import { aperiodicLog10 } from '../../../core/spectrum/aperiodic-model.ts';
 import { bandPower, type Band } from '../../../core/spectrum/bands.ts';
 import type { Stage } from '../../../core/stages.ts';
+import { storedEstimator } from '../../db/estimator.ts';
 import { chooseRun, contrastAperiodic, contrastParticipants, contrastSpectra } from '../../db/contrast-data.ts';
 import type { CohortSchema, RunInfo } from '../../db/queries.ts';
 import type { SqlClient } from '../../db/sql-client.ts';
@@ -42,7 +43,8 @@ export async function loadSpectraRows(
   sel: { stage: Stage; reference: string; averaging: string },
 ): Promise<SpectraRows> {
   const run = chooseRun(runs);
-  const q = { runId: run.runId, ...sel };
+  // the spectra view shows the Welch estimate
+  const q = { runId: run.runId, ...sel, estimator: storedEstimator(schema, 'welch') };
   // issued together: duckdb-wasm runs them one after another in its worker, without waits between
   const [s, aperiodic, participants] = await Promise.all([contrastSpectra(db, q), contrastAperiodic(db, q, 'fit'), contrastParticipants(db, schema)]);
   performance.mark('bandwise:spectra-rows');
