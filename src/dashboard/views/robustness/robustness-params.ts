@@ -1,7 +1,7 @@
 // A robustness run in the address bar: the band check's keys (contrast + band) plus the choices
 // varied, each a list of the values ticked ('none' for an empty list), and the way each path is
 // tested. An absent key means its default: every value the database stores (defaultPathChoices).
-import type { Contrast } from '../../../core/contrast/spec.ts';
+import { BAND_DEFINITIONS, type BandDefinition, type Contrast, type EstimatorName } from '../../../core/contrast/spec.ts';
 import type { Band, BandMethod } from '../../../core/spectrum/bands.ts';
 import { edgeVariants, type PathChoices, type PathDataSet, type PathMeasure, type PathTest } from '../../../core/verdict/index.ts';
 
@@ -15,6 +15,8 @@ export const PATH_TESTS: readonly PathTest[] = ['band-summary', 'frequency-wise'
 export interface StoredChoices {
   references: string[];
   averagings: string[];
+  /** spectral estimators stored (Welch first) */
+  estimators: EstimatorName[];
   fitRangesHz: [number, number][];
 }
 
@@ -69,6 +71,9 @@ export function pathChoicesFromParams(params: Readonly<Record<string, string>>, 
       summaries: pick(list(params, 'summaries'), SUMMARIES, SUMMARIES, 'summaries'),
       fitRangesHz,
       bands: params.edges === '0' ? [{ ...band }] : edgeVariants(band),
+      estimators: pick(list(params, 'estimators'), stored.estimators, stored.estimators, 'estimators'),
+      // individual bands need the fitted peaks, stored with the fits
+      bandDefinitions: pick<BandDefinition>(list(params, 'definitions'), BAND_DEFINITIONS, stored.fitRangesHz.length > 0 ? BAND_DEFINITIONS : ['fixed'], 'definitions'),
     },
     test,
   };
@@ -93,6 +98,8 @@ export function paramsFromChoices(choices: PathChoices, test: PathTest, band: Ba
     averagings: listParam(choices.averagings),
     summaries: listParam(choices.summaries),
     fits: rangesParam(choices.fitRangesHz),
+    estimators: listParam(choices.estimators ?? ['welch']),
+    definitions: listParam(choices.bandDefinitions ?? ['fixed']),
     edges: varied ? '1' : '0',
     test,
   };
