@@ -53,6 +53,11 @@ export interface IngestParams {
    * Epoch rejection, band powers and quality stay on Welch.
    */
   multitaper?: MultitaperParams;
+  /**
+   * Each epoch's Welch spectrum of every channel (recorded reference) up to maxHz, log10 power
+   * quantised to 16 bits, in epoch_spectra (ingest/pipeline/epoch-spectra.ts); absent: not stored (default).
+   */
+  epochSpectra?: { maxHz: number };
 }
 
 /** Time-half-bandwidth NW and number of tapers K of the multitaper estimate. */
@@ -137,5 +142,6 @@ export function resolveIngestParams(partial: Partial<IngestParams> = {}): Ingest
     if (!(nw >= 1)) throw new PipelineError('parameters', null, 'multitaper.nw', `time-half-bandwidth NW must be at least 1, got ${nw}`);
     if (!(Number.isInteger(k) && k >= 1 && k <= 2 * nw)) throw new PipelineError('parameters', null, 'multitaper.k', `number of tapers K must be a whole number from 1 to 2NW = ${2 * nw}, got ${k}`);
   }
+  if (p.epochSpectra && !(p.epochSpectra.maxHz > 0)) throw new PipelineError('parameters', null, 'epochSpectra.maxHz', `epoch spectra need a positive top frequency, got ${p.epochSpectra.maxHz} Hz`);
   return p;
 }

@@ -164,6 +164,22 @@ export interface QualityRowIn {
   severity?: number | null;
 }
 
+/**
+ * Each epoch's spectrum of one channel, compact (epoch_spectra; ingest/pipeline/epoch-spectra.ts):
+ * row i is epoch epoch[i], log10 power at bin b = log10Min[i] + levels[i·nBins + b]·log10Step[i].
+ */
+export interface EpochSpectraBlock {
+  channel: string;
+  reference: Reference;
+  freqStartHz: number;
+  freqStepHz: number;
+  nBins: number;
+  epoch: Int32Array;
+  log10Min: Float32Array;
+  log10Step: Float32Array;
+  levels: Uint16Array;
+}
+
 export interface ReferenceSkip {
   reference: Reference;
   reason: string;
@@ -196,4 +212,6 @@ export interface RecordingBundle {
   referenceSkips: ReferenceSkip[];
   /** Compromises of this recording, written in its transaction (omit or [] for none). */
   warnings?: WarningRow[];
+  /** Each epoch's spectrum per channel, when asked for (omit or [] for none). */
+  epochSpectra?: EpochSpectraBlock[];
 }

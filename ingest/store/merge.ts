@@ -50,7 +50,7 @@ export interface MergeSummary {
 }
 
 /** Tables holding one recording's rows (all have recording_id). */
-const RECORDING_TABLES = ['recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'aperiodic', 'peaks', 'quality', 'reference_skips', 'warnings'];
+const RECORDING_TABLES = ['recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'epoch_spectra', 'aperiodic', 'peaks', 'quality', 'reference_skips', 'warnings'];
 
 /** Columns that hold the time a row was written: they differ between runs and are not compared. */
 const TIME_COLUMNS: Record<string, string[]> = { runs: ['started_at', 'finished_at'], recordings: ['ingested_at'], ingest_errors: ['logged_at'], warnings: ['logged_at'] };

@@ -10,8 +10,8 @@
  * identification" header fields: they often hold names and birth dates.
  */
 
-/** SQL column types used by the store. FLOAT[] is a variable-length list of 32-bit floats. */
-export type SqlType = 'VARCHAR' | 'INTEGER' | 'DOUBLE' | 'FLOAT' | 'BOOLEAN' | 'FLOAT[]' | 'JSON' | 'TIMESTAMP';
+/** SQL column types used by the store. FLOAT[] and USMALLINT[] are variable-length lists of 32-bit floats and 16-bit unsigned integers. */
+export type SqlType = 'VARCHAR' | 'INTEGER' | 'DOUBLE' | 'FLOAT' | 'BOOLEAN' | 'FLOAT[]' | 'USMALLINT[]' | 'JSON' | 'TIMESTAMP';
 
 export interface ColumnDef {
   name: string;
@@ -182,6 +182,22 @@ export const TABLES: readonly TableDef[] = [
       col('band', 'VARCHAR', 'band id (its range and method are in runs.parameters)', true),
       col('power', 'FLOAT', 'band power (µV² for an integral, µV²/Hz for a mean density; see runs.parameters)', true),
       col('reference', 'VARCHAR', 'reference of the signal the power was computed on', true),
+    ],
+  },
+  {
+    name: 'epoch_spectra',
+    doc: 'Optional (ingest --epoch-spectra): each epoch\'s Welch spectrum per channel, compact: log10 power at bin b = log10_min + levels[b + 1]·log10_step (error at most log10_step/2).',
+    columns: [
+      col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
+      col('channel', 'VARCHAR', 'channel name', true),
+      col('reference', 'VARCHAR', 'reference of the signal (recorded)', true),
+      col('epoch', 'INTEGER', 'epochs.epoch (epochs without data have no row; rejected ones keep theirs, see epoch_rejections)', true),
+      col('freq_start_hz', 'DOUBLE', 'frequency of the first bin in Hz', true),
+      col('freq_step_hz', 'DOUBLE', 'bin spacing in Hz', true),
+      col('n_bins', 'INTEGER', 'number of bins (length of levels)', true),
+      col('log10_min', 'FLOAT', 'log10 power (µV²/Hz) of level 0', true),
+      col('log10_step', 'FLOAT', 'log10 power per level: (row maximum − minimum)/65535', true),
+      col('levels', 'USMALLINT[]', 'quantised log10 power per bin, 0 … 65535', true),
     ],
   },
   {

@@ -1,8 +1,8 @@
 /**
  * Store: the single writer of the database. Calls are serialised (one at a time on one
  * connection), and each recording is written in ONE transaction — recording row, channels,
- * epochs, rejections, spectra, band powers, aperiodic fits, peaks, quality, reference skips and
- * warnings — so an interrupted or failed write never leaves half a recording.
+ * epochs, rejections, spectra, band powers, epoch spectra, aperiodic fits, peaks, quality,
+ * reference skips and warnings — so an interrupted or failed write never leaves half a recording.
  */
 import type { DuckDBConnection, DuckDBInstance, DuckDBValue } from '@duckdb/node-api';
 import type { RecordingBundle, QualityRowIn } from './bundle.ts';
@@ -418,6 +418,25 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
       band: (i) => indexed(block.bands, block.bandIdx[i], 'band', i),
       power: (i) => block.power[i],
       reference: () => block.reference,
+    });
+  }
+
+  for (const es of b.epochSpectra ?? []) {
+    const n = es.epoch.length;
+    if (es.log10Min.length !== n || es.log10Step.length !== n || es.levels.length !== n * es.nBins) {
+      throw new StoreError(`epoch spectra of ${es.channel}: columns differ in length (epochs ${n}, levels ${es.levels.length} for ${es.nBins} bins a row)`, { table: 'epoch_spectra' });
+    }
+    await appendColumns(c, tableDef('epoch_spectra'), n, {
+      recording_id: () => id,
+      channel: () => es.channel,
+      reference: () => es.reference,
+      epoch: (i) => es.epoch[i],
+      freq_start_hz: () => es.freqStartHz,
+      freq_step_hz: () => es.freqStepHz,
+      n_bins: () => es.nBins,
+      log10_min: (i) => es.log10Min[i],
+      log10_step: (i) => es.log10Step[i],
+      levels: (i) => es.levels.subarray(i * es.nBins, (i + 1) * es.nBins),
     });
   }
 

@@ -69,6 +69,8 @@ interface Flags {
   estimator: string[];
   nw: number;
   tapers?: number;
+  epochSpectra: boolean;
+  epochSpectraMax: number;
 }
 
 export function register(program: Command): void {
@@ -104,6 +106,8 @@ export function register(program: Command): void {
     .option('--estimator <list>', 'spectral estimators to store: welch, multitaper (Thomson 1982: Slepian tapers on Welch\'s segments and grid; Welch is always stored, as epoch rejection, band powers and quality use it)', list, ['welch'])
     .option('--nw <NW>', 'multitaper time-half-bandwidth NW: frequency resolution 2NW/segment Hz (1 Hz for 2 and 4-s segments)', num('nw', (x) => x >= 1), 2)
     .option('--tapers <K>', 'multitaper number of tapers K (default 2NW − 1)', num('tapers', (x) => Number.isInteger(x) && x >= 1))
+    .option('--epoch-spectra', 'also store each epoch\'s Welch spectrum of every channel (recorded reference), log10 power in 16 bits: about 30 kB per channel and recording-hour to 30 Hz before compression (README)', false)
+    .option('--epoch-spectra-max <Hz>', 'highest frequency of the stored epoch spectra, Hz', num('epoch-spectra-max', (x) => x > 0), 30)
     .option('--band <band...>', `epoch band powers, repeatable: ${BAND_SYNTAX} (default ${D.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(' ')})`)
     .option('--band-method <mean|integral>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²)', D.bandMethod)
     .option('--fit-range <LO-HI>', 'aperiodic fit range, Hz', range('fit-range'), D.fit!.fitRangeHz)
@@ -134,6 +138,7 @@ function toParams(f: Flags): Partial<IngestParams> {
   if (f.estimator.includes('multitaper') && tapers > 2 * f.nw) throw new InvalidArgumentError(`invalid tapers: ${tapers} (at most 2NW = ${2 * f.nw})`);
   return {
     ...(f.estimator.includes('multitaper') ? { multitaper: { nw: f.nw, k: tapers } } : {}),
+    ...(f.epochSpectra ? { epochSpectra: { maxHz: f.epochSpectraMax } } : {}),
     epochS: f.epoch,
     segmentS: f.segment,
     overlap: f.overlap,

@@ -43,9 +43,10 @@ describe('schema names equal docs/design.md', () => {
     );
   });
 
-  // DESIGN names the warnings table in words ("a warnings table beside it (recording, step, field, message)")
-  it('has every DESIGN table, plus only reference_skips and warnings', () => {
-    expect(new Set(TABLE_NAMES)).toEqual(new Set([...design.keys(), 'reference_skips', 'warnings']));
+  // DESIGN names the warnings table in words ("a warnings table beside it (recording, step, field, message)"),
+  // and the optional per-epoch spectra ("Optional: per-epoch spectra (compact, `--epoch-spectra`)")
+  it('has every DESIGN table, plus only reference_skips, warnings and epoch_spectra', () => {
+    expect(new Set(TABLE_NAMES)).toEqual(new Set([...design.keys(), 'reference_skips', 'warnings', 'epoch_spectra']));
   });
 
   it('the created database has every DESIGN column under its exact name, with the stated types', async () => {
