@@ -6,7 +6,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { processRecording, resolveIngestParams } from '../../ingest/pipeline.ts';
 import type { CohortRecording } from '../../ingest/cohort/types.ts';
 import { openStore } from '../../ingest/store/database.ts';
-import { readAperiodic, readSpectra } from '../../src/analysis/store-read.ts';
+import { storeClient } from '../../src/analysis/store-client.ts';
+import { aperiodicRows } from '../../src/queries/fits.ts';
+import { spectraRows } from '../../src/queries/spectra.ts';
 import { writeFixtureEdf } from './fixture.ts';
 
 // One invented recording (tests/ingest/fixture.ts): 9 channels, 128 Hz, 48 epochs of 30 s, a
@@ -76,21 +78,22 @@ describe('ingest with multitaper spectra', () => {
   });
 
   it('the database keeps the estimators apart: readers take the estimator, Welch by default', async () => {
-    const db = path.join(dir, 'mt.duckdb');
-    const store = await openStore(db, { create: true });
+    const file = path.join(dir, 'mt.duckdb');
+    const store = await openStore(file, { create: true });
     const { runId } = await store.beginRun('0.1.0', { multitaper: { nw: 2, k: 3 } });
     await store.writeRecording({ ...bundle, runId });
     await store.finishRun(runId);
-    const q = { runId, stage: 'N2' as const, reference: 'recorded' as const, averaging: 'mean' as const };
-    const byDefault = await readSpectra(store, q);
-    const welch = await readSpectra(store, { ...q, estimator: 'welch' });
-    const mt = await readSpectra(store, { ...q, estimator: 'multitaper' });
-    await expect(readAperiodic(store, { ...q, estimator: 'multitaper' })).resolves.toHaveLength(8);
+    const db = storeClient(store);
+    const q = { runId, stage: 'N2' as const, reference: 'recorded', averaging: 'mean' };
+    const byDefault = await spectraRows(db, q);
+    const welch = await spectraRows(db, { ...q, estimator: 'welch' });
+    const mt = await spectraRows(db, { ...q, estimator: 'multitaper' });
+    await expect(aperiodicRows(db, { ...q, estimator: 'multitaper' }, 'fit')).resolves.toHaveLength(8);
     await store.close();
-    const expected = (estimator: string) => bundle.spectra.find((s) => (s.estimator ?? 'welch') === estimator && s.stage === 'N2' && s.averaging === 'mean' && s.channel === byDefault.channels[0])!.power;
-    expect(byDefault.channels.length).toBe(8);
-    expect(Array.from(byDefault.power.subarray(0, byDefault.nBins))).toEqual(Array.from(expected('welch')));
-    expect(Array.from(welch.power.subarray(0, welch.nBins))).toEqual(Array.from(expected('welch')));
-    expect(Array.from(mt.power.subarray(0, mt.nBins))).toEqual(Array.from(expected('multitaper')));
+    const expected = (estimator: string, channel: string) => bundle.spectra.find((s) => (s.estimator ?? 'welch') === estimator && s.stage === 'N2' && s.averaging === 'mean' && s.channel === channel)!.power;
+    expect(byDefault.rows.length).toBe(8);
+    for (const [got, estimator] of [[byDefault, 'welch'], [welch, 'welch'], [mt, 'multitaper']] as const) {
+      for (const row of got.rows) expect(Array.from(row.power), `${estimator} ${row.channel}`).toEqual(Array.from(expected(estimator, row.channel)));
+    }
   });
 });

@@ -1,9 +1,8 @@
-// The spectral estimator in the dashboard's queries: which are stored, and the condition on the
+// The spectral estimator in the named queries: which are stored, and the condition on the
 // estimator column of spectra, aperiodic and peaks. A database written before the column existed
 // holds Welch rows only (docs/design.md), so there 'welch' needs no condition.
-import type { CohortSchema } from './queries.ts';
-import { COHORT, literal, type SqlClient } from './sql-client.ts';
-import { stringColumn } from './arrow-rows.ts';
+import { COHORT, literal, texts, type SqlClient } from './client.ts';
+import type { CohortSchema } from './schema.ts';
 
 /** The estimator to filter on, or null where the database has no estimator column (all Welch); multitaper is refused there. */
 export function storedEstimator(schema: CohortSchema, estimator: string): string | null {
@@ -20,6 +19,6 @@ export function estimatorCondition(column: string, estimator: string | null | un
 /** The estimators the spectra table holds, Welch first. */
 export async function storedEstimators(db: SqlClient, schema: CohortSchema): Promise<string[]> {
   if (!schema.has('spectra', 'estimator')) return ['welch'];
-  const found = stringColumn(await db.query(`SELECT DISTINCT estimator::VARCHAR AS e FROM ${COHORT}.spectra ORDER BY e DESC`), 'e');
+  const found = texts(await db.query(`SELECT DISTINCT estimator::VARCHAR AS e FROM ${COHORT}.spectra ORDER BY e DESC`), 'e');
   return found.length > 0 ? found : ['welch'];
 }
