@@ -37,6 +37,9 @@ describe('band check address bar', () => {
     expect(bandFromParams({ band: '11-15' })).toEqual({ name: '11–15 Hz', loHz: 11, hiHz: 15 });
     expect(bandCheckFromParams(paramsFromBandCheck(contrast, bandFromParams({ band: '11-15' }))).band).toEqual({ name: '11–15 Hz', loHz: 11, hiHz: 15 });
     expect(() => bandFromParams({ band: 'theta 4-8' })).toThrow(/invalid band 'theta 4-8': expected LO-HI in Hz/);
+    // an individual band with its search range and half-width, and the multitaper estimate
+    const individual = parseContrast({ ...contrast, estimator: 'multitaper', bandDefinition: 'individual', peakSearchHz: [11.5, 16], halfWidthHz: 1.5 });
+    expect(bandCheckFromParams(paramsFromBandCheck(individual, sigma)).contrast).toEqual(individual);
   });
 });
 
