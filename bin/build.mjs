@@ -4,6 +4,7 @@
 //   dist/cli/bandwise.js        the command line (src/cli/main.ts), `bin` of package.json
 //   dist/cli/ingest-worker.js   the ingest worker thread (ingest/worker.ts)
 //   dist/cli/compare-worker.js  compare's permutation thread (src/analysis/compare-worker.ts)
+//   dist/cli/power-worker.js    power's simulation thread (src/analysis/power-worker.ts)
 //   dist/cli/*-<hash>.js        code shared by these and the commands' parts loaded on use
 //   dist/dashboard/             the dashboard app (Vite, vite.config.ts)
 // npm packages stay outside the bundle (node_modules; @duckdb/node-api loads its native binding).
@@ -20,7 +21,7 @@ const cliDir = path.join(root, 'dist', 'cli');
 // Source modules that differ in the build: each runs the sources' way (tsx, esbuild at run time,
 // for development and tests) and is replaced in dist/ by its `.built.ts` twin, which starts the
 // prebuilt worker file beside it.
-const BUILT_TWINS = ['ingest/worker-code.ts', 'src/analysis/compare-worker-url.ts'].map((f) => path.join(root, f));
+const BUILT_TWINS = ['ingest/worker-code.ts', 'src/analysis/compare-worker-url.ts', 'src/analysis/power-worker-url.ts'].map((f) => path.join(root, f));
 
 /** esbuild plugin: bundle X.built.ts wherever X.ts (one of BUILT_TWINS) is imported. */
 const builtTwins = {
@@ -40,6 +41,7 @@ const node = await build({
     bandwise: 'src/cli/main.ts',
     'ingest-worker': 'ingest/worker.ts',
     'compare-worker': 'src/analysis/compare-worker.ts',
+    'power-worker': 'src/analysis/power-worker.ts',
   },
   outdir: cliDir,
   // one folder for every file, so paths taken relative to a module (import.meta.url) hold for all

@@ -61,7 +61,7 @@ export async function irasaPass(
       SCORED_STAGES.forEach((stage, g) => {
         const est = estimators[si][oi]?.[g];
         if (!est) return;
-        let fit: ReturnType<Irasa['result']>['fit'] | null = null;
+        let fit: ReturnType<Irasa['result']>['fit'];
         try {
           fit = est.result().fit;
         } catch {

@@ -7,7 +7,6 @@
  */
 import type { EdfFile } from '../edf/reader.ts';
 import type { Hypnogram } from '../hypnogram/index.ts';
-import { describeEpochs } from '../hypnogram/types.ts';
 import type { WarningRow } from '../store/bundle.ts';
 import type { Selected } from './channels.ts';
 
@@ -52,8 +51,4 @@ export function recordingStatus(edf: EdfFile, hyp: Hypnogram, warnings: readonly
   if (data) return 'partial-data';
   if (scoring) return 'partial-scoring';
   return warnings.length > 0 ? 'ok-with-warnings' : 'ok';
-}
-
-function round(s: number): number {
-  return Math.round(s * 1000) / 1000;
 }

@@ -7,6 +7,7 @@
 import type { DuckDBConnection, DuckDBInstance, DuckDBValue } from '@duckdb/node-api';
 import type { RecordingBundle, QualityRowIn } from './bundle.ts';
 import { appendColumns, type CellValue } from './chunks.ts';
+import { appendEpochSpectra } from './epoch-spectra-rows.ts';
 import { StoreError } from './errors.ts';
 import { recordingIdFor, runIdentity } from './identity.ts';
 import { participantsCreateSql, tableDef, type TableDef } from './schema.ts';
@@ -421,24 +422,7 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     });
   }
 
-  for (const es of b.epochSpectra ?? []) {
-    const n = es.epoch.length;
-    if (es.log10Min.length !== n || es.log10Step.length !== n || es.levels.length !== n * es.nBins) {
-      throw new StoreError(`epoch spectra of ${es.channel}: columns differ in length (epochs ${n}, levels ${es.levels.length} for ${es.nBins} bins a row)`, { table: 'epoch_spectra' });
-    }
-    await appendColumns(c, tableDef('epoch_spectra'), n, {
-      recording_id: () => id,
-      channel: () => es.channel,
-      reference: () => es.reference,
-      epoch: (i) => es.epoch[i],
-      freq_start_hz: () => es.freqStartHz,
-      freq_step_hz: () => es.freqStepHz,
-      n_bins: () => es.nBins,
-      log10_min: (i) => es.log10Min[i],
-      log10_step: (i) => es.log10Step[i],
-      levels: (i) => es.levels.subarray(i * es.nBins, (i + 1) * es.nBins),
-    });
-  }
+  await appendEpochSpectra(c, id, b.epochSpectra ?? []);
 
   const ap = b.aperiodic;
   await appendColumns(c, tableDef('aperiodic'), ap.length, {

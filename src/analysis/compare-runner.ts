@@ -23,6 +23,11 @@ export interface CompareOptions {
   threads?: number;
 }
 
+/** What a contrast reads from a database file (src/queries/contrast-data.ts over Node's DuckDB), the file closed after. */
+export function readContrast(dbPath: string, c: Contrast, exclusions: readonly Exclusion[], options: { runId?: string; maxHz?: number } = {}): Promise<LoadedContrast> {
+  return withDatabase(dbPath, async (db) => loadContrastData(db, await cohortSchema(db), await runs(db), c, exclusions, options));
+}
+
 /**
  * The run's identity, the assembled contrast and the threads for its permutations (with more
  * than one, the assembly's matrices are in shared memory); the rows read and the unshared
@@ -31,7 +36,7 @@ export interface CompareOptions {
  * highest frequency the measure uses (contrastMaxHz).
  */
 async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId: string | undefined, threads: number | undefined): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
-  const loaded = await withDatabase(dbPath, async (db) => loadContrastData(db, await cohortSchema(db), await runs(db), c, exclusions, { runId, maxHz: contrastMaxHz(c) }));
+  const loaded = await readContrast(dbPath, c, exclusions, { runId, maxHz: contrastMaxHz(c) });
   const { data, ...info } = loaded;
   const assembled = assembleContrast(checkBandDefinition(c), data);
   const n = threads ?? defaultThreads(assembled, c.permutations);

@@ -21,7 +21,7 @@ export class Session {
   /** Open the database served beside the app, if there is one; otherwise stay idle. */
   async openServedIfPresent(): Promise<void> {
     preloadEngine();
-    let served = false;
+    let served: boolean;
     try {
       served = (await fetch(SERVED_DATABASE, { method: 'HEAD', cache: 'no-store' })).ok;
     } catch {

@@ -63,7 +63,7 @@ describe('compare on worker threads', () => {
   it('a PermutationTestInputError of the statistics reaches the caller typed, the workers stopped', async () => {
     const c = parseContrast(contrasts['groups, cluster mass']);
     // every patient (odd recordings) but one left out: the statistics refuse a group of one
-    const exclusions: Exclusion[] = Array.from({ length: 11 }, (_, i) => ({ subject: '', channel: null, reason: 'test' }));
+    const exclusions: Exclusion[] = Array.from({ length: 11 }, () => ({ subject: '', channel: null, reason: 'test' }));
     const all = await rows(c);
     const patients = [...new Set(all.participants.filter((p) => p.group === 'patient').map((p) => String(p.subject)))].sort();
     patients.slice(1).forEach((s, i) => (exclusions[i].subject = s));

@@ -84,6 +84,7 @@ const CALLS: Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>[]
     channelsPerRecording: (db, ctx) => reportFacts.channelsPerRecording(db, ctx.runId),
     stageEpochCounts: (db, ctx) => reportFacts.stageEpochCounts(db, ctx.runId),
     recordedDerivations: (db, ctx) => reportFacts.recordedDerivations(db, ctx.runId),
+    warningFacts: (db, ctx) => reportFacts.warningFacts(db, ctx.runId),
     databaseFacts: (db, ctx) => reportFacts.databaseFacts(db, '/some/folder/demo.duckdb', ctx.runList, sigma),
   },
   {

@@ -8,6 +8,8 @@ export interface DataColumn {
   label: string;
   /** Decimals for numbers; absent: shown as stored. */
   digits?: number;
+  /** The cell as a link to this address (null: plain text for that row). */
+  href?: (row: Row) => string | null;
 }
 
 export function formatCell(v: Cell | undefined, digits?: number): string {
