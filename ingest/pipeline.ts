@@ -17,6 +17,7 @@ import { runIdentity } from './store/identity.ts';
 import { assembleBundle, channelRows } from './pipeline/assemble-bundle.ts';
 import { selectChannels } from './pipeline/channels.ts';
 import { epochPass, planStates } from './pipeline/epoch-pass.ts';
+import { epochSpectraBlocks } from './pipeline/epoch-spectra.ts';
 import type { PipelineProgress } from './pipeline/error.ts';
 import { channelNote, evenlySpaced, frequencyGrid, type FrequencyGrid } from './pipeline/grid.ts';
 import { irasaPass } from './pipeline/irasa-pass.ts';
@@ -99,10 +100,13 @@ export async function processOpened(
     const measures = channelMeasures(selected, states, read, 1 / params.segmentS, epochS);
     rows.quality.push(...recordingQuality(measures, selected, rec, params, read.epochsSeen, epochS));
 
-    return assembleBundle({
+    const bundle = assembleBundle({
       runId, rec, opened, scoring, status: recordingStatus(edf, hyp, warnings), epochS, stages, onsetS, dropReason: read.dropReason, channels: channelRows(selected),
       rows, bandPowers, referenceSkips: skips, measures, warnings,
     });
+    // each epoch's spectrum, compact, on request (--epoch-spectra)
+    if (params.epochSpectra) bundle.epochSpectra = epochSpectraBlocks(states, params.epochSpectra.maxHz);
+    return bundle;
   } finally {
     await edf.close();
   }

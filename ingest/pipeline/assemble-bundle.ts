@@ -82,5 +82,6 @@ export function bundleTransferList(bundle: RecordingBundle & { measures?: Channe
   for (const s of bundle.spectra) add(s.power);
   for (const b of bundle.bandPowers) [b.channelIdx, b.epoch, b.bandIdx, b.power].forEach(add);
   for (const m of bundle.measures ?? []) add(m.fullSpectrum);
+  for (const b of bundle.epochSpectra ?? []) [b.epoch, b.log10Min, b.log10Step, b.levels].forEach(add);
   return [...buffers];
 }

@@ -1,7 +1,8 @@
 /**
  * The epoch pass: one read of the recording, epoch by epoch; per reference plan and output
  * channel, the time-domain check, the Welch PSD of the stored range, the rejection rules' log
- * powers, the epoch band powers and (recorded reference) the running full-range sum.
+ * powers, the epoch band powers, (recorded reference) the running full-range sum, and, when asked
+ * for, the multitaper PSD of the stored range.
  */
 import { Rereferencer, type ReferencePlan } from '../../src/core/montage/reference.ts';
 import { timeDomainCheck } from '../../src/core/quality/epoch-rejection.ts';
@@ -19,6 +20,8 @@ export interface OutputState {
   length: number;
   /** Per-epoch stored-range PSD, row e, µV²/Hz (grid.nStored bins a row). */
   spectra: Float32Array;
+  /** The same of the multitaper estimate (grid.multitaper), null when not asked for. */
+  mtSpectra: Float32Array | null;
   hasData: Uint8Array;
   tdReason: Array<'amplitude' | 'flat' | null>;
   tdValue: Float64Array;
@@ -44,6 +47,8 @@ interface EpochWork {
   /** per recorded channel, per epoch: SD in µV */
   epochSd: Float64Array[];
   psd: Float64Array;
+  /** scratch of the multitaper estimate */
+  mtPsd: Float64Array;
   one: Float64Array;
 }
 
@@ -74,6 +79,10 @@ function epochOfPlan(st: PlanState, data: Float32Array[], e: number, w: EpochWor
     if (g.muscleBand) g.muscleBand.compute(psd, one);
     out.logMuscle[e] = g.muscleBand ? Math.log10(one[0]) : 0;
     g.bandTable.compute(psd.subarray(0, nStored), out.bandPower.subarray(e * nBands, (e + 1) * nBands));
+    if (g.multitaper && out.mtSpectra) {
+      g.multitaper.mean(x, 0, out.length, w.mtPsd);
+      out.mtSpectra.set(w.mtPsd.subarray(0, nStored), e * nStored);
+    }
     if (out.fullSum && td.reason === null) {
       const full = out.fullSum;
       for (let b = 0; b < full.length; b++) full[b] += psd[b];
@@ -100,6 +109,7 @@ export function planStates(
         grid,
         length: Math.round(fs * epochS),
         spectra: new Float32Array(nGrid * grid.nStored),
+        mtSpectra: grid.multitaper ? new Float32Array(nGrid * grid.nStored) : null,
         hasData: new Uint8Array(nGrid),
         tdReason: new Array(nGrid).fill(null),
         tdValue: new Float64Array(nGrid),
@@ -144,6 +154,7 @@ export async function epochPass(
   const epochWork: EpochWork = {
     epochSd,
     psd: new Float64Array(Math.max(...states.flatMap((st) => st.outputs.map((o) => o.grid.welch.nBins)))),
+    mtPsd: new Float64Array(Math.max(0, ...states.flatMap((st) => st.outputs.map((o) => o.grid.multitaper?.nBins ?? 0)))),
     one: new Float64Array(1),
   };
 

@@ -6,10 +6,11 @@
  */
 import type { RejectionOptions } from '../../src/core/quality/epoch-rejection.ts';
 import { BandPowerTable, bandBins, type Band } from '../../src/core/spectrum/bands.ts';
+import { Multitaper } from '../../src/core/spectrum/multitaper.ts';
 import { Welch } from '../../src/core/spectrum/welch.ts';
 import type { WarningRow } from '../store/bundle.ts';
 import { PipelineError } from './error.ts';
-import type { IngestParams } from './params.ts';
+import type { IngestParams, MultitaperParams } from './params.ts';
 
 export interface FrequencyGrid {
   fsHz: number;
@@ -25,6 +26,8 @@ export interface FrequencyGrid {
   fullMaxHz: number;
   /** Welch estimator of this rate, 0 … fullMaxHz (shared across recordings, see sharedWelch). */
   welch: Welch;
+  /** Multitaper estimator of this rate over the stored range (params.multitaper), null when not asked for; shared like welch. */
+  multitaper: Multitaper | null;
   /** Per band of this grid's table: its index in params.bands. */
   bandIdx: Int32Array;
   bandTable: BandPowerTable;
@@ -96,8 +99,16 @@ export function frequencyGrid(fsHz: number, params: IngestParams, file: string):
   } catch (e) {
     throw new PipelineError('spectra', file, 'segment length', (e as Error).message, { cause: e });
   }
+  let multitaper: Multitaper | null = null;
+  if (params.multitaper) {
+    try {
+      multitaper = sharedMultitaper(fsHz, params.segmentS, params.overlap, params.multitaper, storedMaxHz);
+    } catch (e) {
+      throw new PipelineError('spectra', file, 'multitaper', (e as Error).message, { cause: e });
+    }
+  }
   return {
-    fsHz, step, storedMaxHz, nStored, freqs: evenlySpaced(nStored, step), fullMaxHz, welch,
+    fsHz, step, storedMaxHz, nStored, freqs: evenlySpaced(nStored, step), fullMaxHz, welch, multitaper,
     bandIdx: Int32Array.from(reached), bandTable, rejection, broadBand, muscleBand, fitRange, notes,
   };
 }
@@ -117,6 +128,19 @@ function sharedWelch(fsHz: number, segmentS: number, overlap: number, maxFreqHz:
     welchCache.set(key, w);
   }
   return w;
+}
+
+/** Multitaper estimators kept across recordings, as welchCache: the tapers (an eigenproblem of the segment length) are computed once per worker. */
+const multitaperCache = new Map<string, Multitaper>();
+
+function sharedMultitaper(fsHz: number, segmentS: number, overlap: number, mt: MultitaperParams, maxFreqHz: number): Multitaper {
+  const key = `${fsHz}|${segmentS}|${overlap}|${mt.nw}|${mt.k}|${maxFreqHz}`;
+  let m = multitaperCache.get(key);
+  if (!m) {
+    m = new Multitaper(fsHz, { segmentS, overlap, nw: mt.nw, k: mt.k, maxFreqHz });
+    multitaperCache.set(key, m);
+  }
+  return m;
 }
 
 /** 0, d, 2d, … (n values): epoch onsets, bin frequencies. */

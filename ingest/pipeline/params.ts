@@ -46,6 +46,24 @@ export interface IngestParams {
   quality: QualityParams;
   /** Scoring: label map, unknown labels, trimming outside the recording, lights texts (ingest/hypnogram/recording.ts). */
   scoring: ScoringParams;
+  /**
+   * A multitaper estimate beside Welch's (src/core/spectrum/multitaper.ts), on the same segments
+   * and grid, stored with estimator 'multitaper' with its stage averages and fits; absent: Welch
+   * only (default, and then absent from runs.parameters, so earlier runs keep their identity).
+   * Epoch rejection, band powers and quality stay on Welch.
+   */
+  multitaper?: MultitaperParams;
+  /**
+   * Each epoch's Welch spectrum of every channel (recorded reference) up to maxHz, log10 power
+   * quantised to 16 bits, in epoch_spectra (ingest/pipeline/epoch-spectra.ts); absent: not stored (default).
+   */
+  epochSpectra?: { maxHz: number };
+}
+
+/** Time-half-bandwidth NW and number of tapers K of the multitaper estimate. */
+export interface MultitaperParams {
+  nw: number;
+  k: number;
 }
 
 export interface QualityParams {
@@ -119,5 +137,11 @@ export function resolveIngestParams(partial: Partial<IngestParams> = {}): Ingest
     throw new PipelineError('parameters', null, 'quality.mainsHz', `mains frequencies must be 50, 60 or both, got [${mainsHz.join(', ')}]`);
   }
   if (!(mainsHalfWidthHz > 0)) throw new PipelineError('parameters', null, 'quality.mainsHalfWidthHz', `mains half-width must be positive, got ${mainsHalfWidthHz} Hz`);
+  if (p.multitaper) {
+    const { nw, k } = p.multitaper;
+    if (!(nw >= 1)) throw new PipelineError('parameters', null, 'multitaper.nw', `time-half-bandwidth NW must be at least 1, got ${nw}`);
+    if (!(Number.isInteger(k) && k >= 1 && k <= 2 * nw)) throw new PipelineError('parameters', null, 'multitaper.k', `number of tapers K must be a whole number from 1 to 2NW = ${2 * nw}, got ${k}`);
+  }
+  if (p.epochSpectra && !(p.epochSpectra.maxHz > 0)) throw new PipelineError('parameters', null, 'epochSpectra.maxHz', `epoch spectra need a positive top frequency, got ${p.epochSpectra.maxHz} Hz`);
   return p;
 }

@@ -11,9 +11,9 @@ import { aperiodicQuality } from '../../src/core/quality/aperiodic-quality.ts';
 import { cleanEpochs } from '../../src/core/quality/clean-epochs.ts';
 import { rejectedFraction } from '../../src/core/quality/rejected-fraction.ts';
 import { fitSpectrum } from '../../src/core/spectrum/aperiodic-fit.ts';
-import { averageStage, hannWindow, welchDegreesOfFreedom } from '../../src/core/spectrum/stage-average.ts';
-import { SCORED_STAGES } from '../../src/core/stages.ts';
-import type { AperiodicRow, BandPowerBlock, EpochRejection, PeakRow, QualityRowIn, SpectrumRow } from '../store/bundle.ts';
+import { averageStage, hannWindow, taperDegreesOfFreedom, welchDegreesOfFreedom } from '../../src/core/spectrum/stage-average.ts';
+import { SCORED_STAGES, type Stage } from '../../src/core/stages.ts';
+import type { AperiodicRow, BandPowerBlock, Estimator, EpochRejection, PeakRow, QualityRowIn, SpectrumRow } from '../store/bundle.ts';
 import type { OutputState, PlanState } from './epoch-pass.ts';
 import type { IngestParams } from './params.ts';
 import { qualityIn } from './recording-quality.ts';
@@ -42,7 +42,8 @@ interface BandPowerColumns {
 /**
  * One output channel of one reference, after the read pass: spectral outliers within stage, the
  * rejection rows, its epoch band powers into `block`, the stage averages (mean and median) and,
- * with fits on, their aperiodic fits. A function of its own, like epochOfPlan: a closure made
+ * with fits on, their aperiodic fits — of the Welch estimate and, when asked for, of the
+ * multitaper estimate over the same clean epochs (rejection and quality rows stay on Welch). A function of its own, like epochOfPlan: a closure made
  * anew for every recording would be optimised anew for every recording.
  */
 function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, block: BandPowerColumns, w: FinishWork): void {
@@ -79,6 +80,9 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
     }
   }
   const nu = welchDegreesOfFreedom(K, hannWindow(welch.nPerSeg), welch.step);
+  const mt = grid.multitaper;
+  // 2K degrees of freedom per segment, less for overlapping segments (stage-average.ts)
+  const nuMt = mt && out.mtSpectra ? taperDegreesOfFreedom(K, mt.slepian.tapers, mt.step) : 0;
   for (let si = 0; si < SCORED_STAGES.length; si++) {
     const stage = SCORED_STAGES[si];
     const rows: number[] = [];
@@ -101,16 +105,23 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
         w.quality.push(qualityIn(outlierShare(cell, nJudged, byReason, { outlierZ: params.rejection.outlierZ }), reference));
       }
     }
-    const avg = averageStage(out.spectra, grid.nStored, rows, nu, params.minEpochs);
-    if (!avg) continue;
-    for (const averaging of ['mean', 'median'] as const) {
-      const power = Float32Array.from(averaging === 'mean' ? avg.mean : avg.median);
-      w.spectra.push({
-        channel: out.channel, stage, reference, averaging, nEpochs: avg.nEpochs, nSegments: avg.nEpochs * K,
-        freqStartHz: 0, freqStepHz: grid.step, power, flagged: avg.flagged, flagReason: avg.flagReason,
-      });
-      if (grid.fitRange) fitOne(power, grid.freqs, grid.fitRange, { channel: out.channel, stage, reference, averaging }, w);
-    }
+    storeStage(out, out.spectra, nu, 'welch', stage, reference, rows, K, w);
+    if (out.mtSpectra) storeStage(out, out.mtSpectra, nuMt, 'multitaper', stage, reference, rows, K, w);
+  }
+}
+
+/** The mean and median stage averages of one estimator's epoch spectra, as spectra rows, and their fits. */
+function storeStage(out: OutputState, spectra: Float32Array, nu: number, estimator: Estimator, stage: Stage, reference: ReferenceKind, rows: number[], K: number, w: FinishWork): void {
+  const grid = out.grid;
+  const avg = averageStage(spectra, grid.nStored, rows, nu, w.params.minEpochs);
+  if (!avg) return;
+  for (const averaging of ['mean', 'median'] as const) {
+    const power = Float32Array.from(averaging === 'mean' ? avg.mean : avg.median);
+    w.spectra.push({
+      channel: out.channel, stage, reference, averaging, estimator, nEpochs: avg.nEpochs, nSegments: avg.nEpochs * K,
+      freqStartHz: 0, freqStepHz: grid.step, power, flagged: avg.flagged, flagReason: avg.flagReason,
+    });
+    if (grid.fitRange) fitOne(power, grid.freqs, grid.fitRange, { channel: out.channel, stage, reference, averaging, estimator }, w);
   }
 }
 
@@ -119,7 +130,7 @@ function fitOne(
   power: Float32Array,
   freqs: Float64Array,
   fitRange: [number, number],
-  key: Pick<AperiodicRow, 'channel' | 'stage' | 'reference' | 'averaging'>,
+  key: Pick<AperiodicRow, 'channel' | 'stage' | 'reference' | 'averaging' | 'estimator'>,
   w: FinishWork,
 ): void {
   const q = w.params.quality;
@@ -134,7 +145,8 @@ function fitOne(
     // a spectrum that cannot be fitted keeps a row with empty values; aperiodicQuality flags it
     w.aperiodic.push({ ...key, method: 'fit', fitLoHz: fitRange[0], fitHiHz: fitRange[1], offset: null, exponent: null, knee: null, r2: null, rmse: null, nPeaks: null });
   }
-  if (key.averaging === 'mean') {
+  // fit-quality rows from the Welch fits only: the quality screen reads Welch (one row per metric and cell)
+  if (key.averaging === 'mean' && key.estimator === 'welch') {
     const rows = aperiodicQuality({ channel: key.channel, stage: key.stage }, fitQ, { minR2: q.aperiodicMinR2, exponentRange: q.exponentRange });
     for (const r of rows) w.quality.push(qualityIn(r, key.reference));
   }

@@ -11,6 +11,8 @@ import type { Stage } from '../../src/core/stages.ts';
 
 export type Reference = 'recorded' | 'linked-mastoids' | 'contralateral-mastoid' | 'average' | 'bipolar';
 export type Averaging = 'mean' | 'median';
+/** Spectral estimator of a stored spectrum (and of the fits made on it); rows that do not say are 'welch'. */
+export type Estimator = 'welch' | 'multitaper';
 
 /** recordings row (recording_id, run_id and ingested_at are filled by the store). */
 export interface RecordingInfo {
@@ -91,6 +93,8 @@ export interface SpectrumRow {
   stage: Stage;
   reference: Reference;
   averaging: Averaging;
+  /** default 'welch' */
+  estimator?: Estimator;
   nEpochs: number;
   nSegments: number;
   freqStartHz: number;
@@ -120,6 +124,8 @@ export interface AperiodicRow {
   stage: Stage;
   reference: Reference;
   averaging: Averaging;
+  /** estimator of the spectrum fitted, default 'welch' */
+  estimator?: Estimator;
   method: string;
   fitLoHz: number;
   fitHiHz: number;
@@ -136,6 +142,8 @@ export interface PeakRow {
   stage: Stage;
   reference: Reference;
   averaging: Averaging;
+  /** estimator of the spectrum fitted, default 'welch' */
+  estimator?: Estimator;
   method: string;
   centerHz: number;
   /** Height above the aperiodic fit in log10 power. */
@@ -154,6 +162,22 @@ export interface QualityRowIn {
   reference?: Reference | null;
   /** 0 clean, ≥ 1 flagged (src/core/quality); null if not given. */
   severity?: number | null;
+}
+
+/**
+ * Each epoch's spectrum of one channel, compact (epoch_spectra; ingest/pipeline/epoch-spectra.ts):
+ * row i is epoch epoch[i], log10 power at bin b = log10Min[i] + levels[i·nBins + b]·log10Step[i].
+ */
+export interface EpochSpectraBlock {
+  channel: string;
+  reference: Reference;
+  freqStartHz: number;
+  freqStepHz: number;
+  nBins: number;
+  epoch: Int32Array;
+  log10Min: Float32Array;
+  log10Step: Float32Array;
+  levels: Uint16Array;
 }
 
 export interface ReferenceSkip {
@@ -188,4 +212,6 @@ export interface RecordingBundle {
   referenceSkips: ReferenceSkip[];
   /** Compromises of this recording, written in its transaction (omit or [] for none). */
   warnings?: WarningRow[];
+  /** Each epoch's spectrum per channel, when asked for (omit or [] for none). */
+  epochSpectra?: EpochSpectraBlock[];
 }

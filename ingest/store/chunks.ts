@@ -11,7 +11,7 @@ import { DuckDBDataChunk, type DuckDBConnection } from '@duckdb/node-api';
 import { StoreError } from './errors.ts';
 import type { ColumnDef, SqlType, TableDef } from './schema.ts';
 
-export type CellValue = string | number | boolean | Date | Float32Array | null;
+export type CellValue = string | number | boolean | Date | Float32Array | Uint16Array | null;
 
 /** One value source per column name of the table; every column must be present. */
 export type ColumnSources = Record<string, (row: number) => CellValue>;
@@ -49,7 +49,7 @@ export async function appendColumns(
       const chunk = DuckDBDataChunk.create(types, n);
       for (let c = 0; c < table.columns.length; c++) {
         const def = table.columns[c];
-        if (def.type === 'FLOAT[]') fillFloatList(chunk, c, def, table.name, start, n, getters[c]);
+        if (def.type === 'FLOAT[]' || def.type === 'USMALLINT[]') fillList(chunk, c, def, table.name, start, n, getters[c]);
         else fillScalar(duckdb.data_chunk_get_vector(chunk.chunk, c), def, table.name, start, n, getters[c], encoded);
       }
       appender.appendDataChunk(chunk);
@@ -68,7 +68,7 @@ export async function appendColumns(
 }
 
 /** DuckDB type id (duckdb.h duckdb_type) of each schema type; JSON is a VARCHAR with an alias. */
-const TYPE_ID: Record<SqlType, number> = { VARCHAR: 17, JSON: 17, INTEGER: 4, DOUBLE: 11, FLOAT: 10, BOOLEAN: 1, TIMESTAMP: 12, 'FLOAT[]': 24 };
+const TYPE_ID: Record<SqlType, number> = { VARCHAR: 17, JSON: 17, INTEGER: 4, DOUBLE: 11, FLOAT: 10, BOOLEAN: 1, TIMESTAMP: 12, 'FLOAT[]': 24, 'USMALLINT[]': 24 };
 
 /**
  * One scalar column of a chunk: each value checked, then numbers, booleans and timestamps copied
@@ -85,7 +85,7 @@ function fillScalar(
   get: (row: number) => CellValue,
   encoded: Map<string, Uint8Array>,
 ): void {
-  if (def.type === 'FLOAT[]') throw new StoreError('list column filled as scalar', { table, column: def.name });
+  if (def.type === 'FLOAT[]' || def.type === 'USMALLINT[]') throw new StoreError('list column filled as scalar', { table, column: def.name });
   const valid = new Uint8Array(Math.ceil(n / 64) * 8).fill(0xff);
   let nulls = 0;
   const block = newBlock(def.type, n); // null for strings
@@ -132,7 +132,7 @@ function newBlock(type: SqlType, n: number): Int32Array | Float64Array | Float32
 
 const EXPECTED: Record<SqlType, string> = {
   VARCHAR: 'a string', JSON: 'a string', INTEGER: 'a 32-bit integer', DOUBLE: 'a finite number (null for missing)',
-  FLOAT: 'a finite number (null for missing)', BOOLEAN: 'a boolean', TIMESTAMP: 'a Date', 'FLOAT[]': 'a Float32Array',
+  FLOAT: 'a finite number (null for missing)', BOOLEAN: 'a boolean', TIMESTAMP: 'a Date', 'FLOAT[]': 'a Float32Array', 'USMALLINT[]': 'a Uint16Array',
 };
 
 function fits(type: SqlType, v: CellValue): boolean {
@@ -151,6 +151,8 @@ function fits(type: SqlType, v: CellValue): boolean {
       return v instanceof Date && !Number.isNaN(v.getTime());
     case 'FLOAT[]':
       return v instanceof Float32Array;
+    case 'USMALLINT[]':
+      return v instanceof Uint16Array;
   }
 }
 
@@ -158,11 +160,12 @@ const UTF8 = new TextEncoder();
 
 function describe(value: unknown): string {
   if (value instanceof Float32Array) return `Float32Array(${value.length})`;
+  if (value instanceof Uint16Array) return `Uint16Array(${value.length})`;
   return typeof value === 'string' ? JSON.stringify(value.slice(0, 80)) : String(value);
 }
 
-/** FLOAT[]: list entries (offset, length) per row, then all floats copied into the child vector at once. */
-function fillFloatList(
+/** FLOAT[] and USMALLINT[]: list entries (offset, length) per row, then all values copied into the list's child vector at once. */
+function fillList(
   chunk: DuckDBDataChunk,
   column: number,
   def: ColumnDef,
@@ -171,22 +174,26 @@ function fillFloatList(
   n: number,
   get: (row: number) => CellValue,
 ): void {
-  const lists: Float32Array[] = new Array(n);
+  const floats = def.type === 'FLOAT[]';
+  const lists: (Float32Array | Uint16Array)[] = new Array(n);
   const entries = new BigUint64Array(2 * n);
   let total = 0;
   for (let i = 0; i < n; i++) {
     const value = get(start + i);
     const where = { table, column: def.name, row: start + i };
-    if (!(value instanceof Float32Array)) throw new StoreError(`expected a Float32Array, got ${describe(value)}`, where);
-    for (let k = 0; k < value.length; k++) {
-      if (!Number.isFinite(value[k])) throw new StoreError(`non-finite value ${value[k]} at index ${k}`, where);
+    if (!fits(def.type, value)) throw new StoreError(`expected ${EXPECTED[def.type]}, got ${describe(value)}`, where);
+    const list = value as Float32Array | Uint16Array;
+    if (floats) {
+      for (let k = 0; k < list.length; k++) {
+        if (!Number.isFinite(list[k])) throw new StoreError(`non-finite value ${list[k]} at index ${k}`, where);
+      }
     }
-    lists[i] = value;
+    lists[i] = list;
     entries[2 * i] = BigInt(total);
-    entries[2 * i + 1] = BigInt(value.length);
-    total += value.length;
+    entries[2 * i + 1] = BigInt(list.length);
+    total += list.length;
   }
-  const flat = new Float32Array(total);
+  const flat = floats ? new Float32Array(total) : new Uint16Array(total);
   for (let i = 0, at = 0; i < n; i++) {
     flat.set(lists[i], at);
     at += lists[i].length;
@@ -195,7 +202,6 @@ function fillFloatList(
   duckdb.list_vector_reserve(vector, total);
   duckdb.list_vector_set_size(vector, total);
   const child = duckdb.list_vector_get_child(vector);
-  if (total > 0) duckdb.copy_data_to_vector(child, 0, flat.buffer, 0, flat.byteLength);
+  if (total > 0) duckdb.copy_data_to_vector(child, 0, flat.buffer as ArrayBuffer, 0, flat.byteLength);
   duckdb.copy_data_to_vector(vector, 0, entries.buffer, 0, entries.byteLength);
 }
-

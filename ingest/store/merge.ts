@@ -50,7 +50,7 @@ export interface MergeSummary {
 }
 
 /** Tables holding one recording's rows (all have recording_id). */
-const RECORDING_TABLES = ['recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'aperiodic', 'peaks', 'quality', 'reference_skips', 'warnings'];
+const RECORDING_TABLES = ['recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'epoch_spectra', 'aperiodic', 'peaks', 'quality', 'reference_skips', 'warnings'];
 
 /** Columns that hold the time a row was written: they differ between runs and are not compared. */
 const TIME_COLUMNS: Record<string, string[]> = { runs: ['started_at', 'finished_at'], recordings: ['ingested_at'], ingest_errors: ['logged_at'], warnings: ['logged_at'] };
@@ -335,7 +335,7 @@ async function copyErrors(c: DuckDBConnection, alias: string[]): Promise<void> {
 
 /**
  * The cohort-level quality pass: cohort-distance (src/core/quality/cohort-distance.ts) for every
- * run × channel × stage × reference over the mean-averaged spectra of all its recordings with at
+ * run × channel × stage × reference over the mean-averaged Welch spectra of all its recordings with at
  * least one clean epoch — flagged ones included (e.g. few clean epochs): the screen shows every
  * spectrum, and the median/MAD are robust to a few noisy ones. Spectra with a non-positive bin
  * inside the distance range get no row (log10 is undefined there). Earlier cohort-distance rows
@@ -378,7 +378,7 @@ export async function cohortQualityPass(store: Store): Promise<number> {
     const result = await c.stream(
       `SELECT r.run_id, s.channel, s.stage, s.reference, s.freq_start_hz, s.freq_step_hz, s.n_bins, s.recording_id, s.power
          FROM spectra s JOIN recordings r USING (recording_id)
-        WHERE s.averaging = 'mean' AND s.n_epochs > 0
+        WHERE s.averaging = 'mean' AND s.estimator = 'welch' AND s.n_epochs > 0
         ORDER BY r.run_id, s.channel, s.stage, s.reference, s.freq_start_hz, s.freq_step_hz, s.n_bins, s.recording_id`,
     );
     for await (const batch of result.yieldRowObjectJs()) {

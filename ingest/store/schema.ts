@@ -11,8 +11,8 @@
  */
 import { VIEWS, createViewSql } from './views.ts';
 
-/** SQL column types used by the store. FLOAT[] is a variable-length list of 32-bit floats. */
-export type SqlType = 'VARCHAR' | 'INTEGER' | 'DOUBLE' | 'FLOAT' | 'BOOLEAN' | 'FLOAT[]' | 'JSON' | 'TIMESTAMP';
+/** SQL column types used by the store. FLOAT[] and USMALLINT[] are variable-length lists of 32-bit floats and 16-bit unsigned integers. */
+export type SqlType = 'VARCHAR' | 'INTEGER' | 'DOUBLE' | 'FLOAT' | 'BOOLEAN' | 'FLOAT[]' | 'USMALLINT[]' | 'JSON' | 'TIMESTAMP';
 
 export interface ColumnDef {
   name: string;
@@ -41,13 +41,19 @@ const col = (name: string, type: SqlType, doc: string, notNull = false): ColumnD
 const RECORDING_STATUS_DOC =
   'ok, ok-with-warnings, partial-scoring (scoring starts late, ends early or has gaps), partial-data (EDF+D gaps, truncated last record) or partial-data-and-scoring; see warnings';
 
-/** Keys shared by spectra, aperiodic and peaks: one spectrum per recording × channel × stage × reference × averaging. */
+/**
+ * Keys shared by spectra, aperiodic and peaks: one spectrum per recording × channel × stage ×
+ * reference × averaging × estimator. Fits are made per estimator, so aperiodic and peaks carry it
+ * too (IRASA fits, made from the time series, carry 'welch'). quality rows do not: the quality
+ * screen and its fit-quality metrics are computed on the Welch spectra only.
+ */
 const SPECTRUM_KEYS: readonly ColumnDef[] = [
   col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
   col('channel', 'VARCHAR', 'electrode name without type prefix (C3, M1) or bipolar pair (C3-P3)', true),
   col('stage', 'VARCHAR', 'AASM stage label W, N1, N2, N3, R', true),
   col('reference', 'VARCHAR', 'recorded, linked-mastoids, contralateral-mastoid, average or bipolar', true),
   col('averaging', 'VARCHAR', 'mean or median (median bias-corrected) over the stage\'s clean epochs', true),
+  col('estimator', 'VARCHAR', 'welch (Welch 1967) or multitaper (Thomson 1982; NW and K in runs.parameters); rows written before the column existed are welch', true),
 ];
 
 export const TABLES: readonly TableDef[] = [
@@ -153,12 +159,12 @@ export const TABLES: readonly TableDef[] = [
   },
   {
     name: 'spectra',
-    doc: 'Per-stage power spectral density (Welch 1967), µV²/Hz, frequencies freq_start_hz + i·freq_step_hz.',
-    primaryKey: ['recording_id', 'channel', 'stage', 'reference', 'averaging'],
+    doc: 'Per-stage power spectral density (Welch 1967, or multitaper, Thomson 1982: see estimator), µV²/Hz, frequencies freq_start_hz + i·freq_step_hz.',
+    primaryKey: ['recording_id', 'channel', 'stage', 'reference', 'averaging', 'estimator'],
     columns: [
       ...SPECTRUM_KEYS,
       col('n_epochs', 'INTEGER', 'clean epochs averaged', true),
-      col('n_segments', 'INTEGER', 'Welch segments averaged', true),
+      col('n_segments', 'INTEGER', 'segments averaged (each with K tapers for multitaper)', true),
       col('freq_start_hz', 'DOUBLE', 'frequency of the first bin in Hz', true),
       col('freq_step_hz', 'DOUBLE', 'bin spacing in Hz', true),
       col('n_bins', 'INTEGER', 'number of bins (length of power)', true),
@@ -177,6 +183,22 @@ export const TABLES: readonly TableDef[] = [
       col('band', 'VARCHAR', 'band id (its range and method are in runs.parameters)', true),
       col('power', 'FLOAT', 'band power (µV² for an integral, µV²/Hz for a mean density; see runs.parameters)', true),
       col('reference', 'VARCHAR', 'reference of the signal the power was computed on', true),
+    ],
+  },
+  {
+    name: 'epoch_spectra',
+    doc: 'Optional (ingest --epoch-spectra): each epoch\'s Welch spectrum per channel, compact: log10 power at bin b = log10_min + levels[b + 1]·log10_step (error at most log10_step/2).',
+    columns: [
+      col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
+      col('channel', 'VARCHAR', 'channel name', true),
+      col('reference', 'VARCHAR', 'reference of the signal (recorded)', true),
+      col('epoch', 'INTEGER', 'epochs.epoch (epochs without data have no row; rejected ones keep theirs, see epoch_rejections)', true),
+      col('freq_start_hz', 'DOUBLE', 'frequency of the first bin in Hz', true),
+      col('freq_step_hz', 'DOUBLE', 'bin spacing in Hz', true),
+      col('n_bins', 'INTEGER', 'number of bins (length of levels)', true),
+      col('log10_min', 'FLOAT', 'log10 power (µV²/Hz) of level 0', true),
+      col('log10_step', 'FLOAT', 'log10 power per level: (row maximum − minimum)/65535', true),
+      col('levels', 'USMALLINT[]', 'quantised log10 power per bin, 0 … 65535', true),
     ],
   },
   {

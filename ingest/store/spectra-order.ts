@@ -1,6 +1,6 @@
 /**
- * Stores the spectra table in (stage, reference, averaging, recording_id, channel) order, so a
- * reader that asks for one stage × reference × averaging touches only the row groups holding it:
+ * Stores the spectra table in (stage, reference, averaging, estimator, recording_id, channel) order, so a
+ * reader that asks for one stage × reference × averaging × estimator touches only the row groups holding it:
  * DuckDB keeps min/max per column and row group (zone maps) and skips the others. The dashboard
  * reads the database over HTTP range requests, so skipped row groups are bytes never sent
  * (2,000 recordings × 64 channels × 5 stages, one stage read: 549 → 148 MB).
@@ -18,7 +18,7 @@ import type { Store } from './writer.ts';
 import { createTableSql, quoteIdent, tableDef } from './schema.ts';
 
 /** The stored order of spectra rows. */
-export const SPECTRA_ORDER = ['stage', 'reference', 'averaging', 'recording_id', 'channel'] as const;
+export const SPECTRA_ORDER = ['stage', 'reference', 'averaging', 'estimator', 'recording_id', 'channel'] as const;
 
 const SORTING_TABLE = 'spectra_sorting';
 

@@ -1,12 +1,13 @@
 /**
  * Store: the single writer of the database. Calls are serialised (one at a time on one
  * connection), and each recording is written in ONE transaction — recording row, channels,
- * epochs, rejections, spectra, band powers, aperiodic fits, peaks, quality, reference skips and
- * warnings — so an interrupted or failed write never leaves half a recording.
+ * epochs, rejections, spectra, band powers, epoch spectra, aperiodic fits, peaks, quality,
+ * reference skips and warnings — so an interrupted or failed write never leaves half a recording.
  */
 import type { DuckDBConnection, DuckDBInstance, DuckDBValue } from '@duckdb/node-api';
 import type { RecordingBundle, QualityRowIn } from './bundle.ts';
 import { appendColumns, type CellValue } from './chunks.ts';
+import { appendEpochSpectra } from './epoch-spectra-rows.ts';
 import { StoreError } from './errors.ts';
 import { recordingIdFor, runIdentity } from './identity.ts';
 import { participantsCreateSql, tableDef, type TableDef } from './schema.ts';
@@ -395,6 +396,7 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     stage: (i) => sp[i].stage,
     reference: (i) => sp[i].reference,
     averaging: (i) => sp[i].averaging,
+    estimator: (i) => sp[i].estimator ?? 'welch',
     n_epochs: (i) => sp[i].nEpochs,
     n_segments: (i) => sp[i].nSegments,
     freq_start_hz: (i) => sp[i].freqStartHz,
@@ -420,6 +422,8 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     });
   }
 
+  await appendEpochSpectra(c, id, b.epochSpectra ?? []);
+
   const ap = b.aperiodic;
   await appendColumns(c, tableDef('aperiodic'), ap.length, {
     recording_id: () => id,
@@ -427,6 +431,7 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     stage: (i) => ap[i].stage,
     reference: (i) => ap[i].reference,
     averaging: (i) => ap[i].averaging,
+    estimator: (i) => ap[i].estimator ?? 'welch',
     method: (i) => ap[i].method,
     fit_lo_hz: (i) => ap[i].fitLoHz,
     fit_hi_hz: (i) => ap[i].fitHiHz,
@@ -445,6 +450,7 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     stage: (i) => pk[i].stage,
     reference: (i) => pk[i].reference,
     averaging: (i) => pk[i].averaging,
+    estimator: (i) => pk[i].estimator ?? 'welch',
     method: (i) => pk[i].method,
     center_hz: (i) => pk[i].centerHz,
     height: (i) => pk[i].height,

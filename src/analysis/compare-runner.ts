@@ -6,7 +6,7 @@
 import type { Contrast } from '../core/contrast/spec.ts';
 import type { Exclusion } from '../core/contrast/data.ts';
 import { assembleContrast, type AssembledContrast } from '../core/contrast/assemble.ts';
-import type { CompareResult } from '../core/contrast/run.ts';
+import { checkBandDefinition, type CompareResult } from '../core/contrast/run.ts';
 import type { ProgressCallback } from '../core/stats/index.ts';
 import { contrastMaxHz, loadContrastData, type LoadedContrast } from '../queries/contrast-data.ts';
 import { runs } from '../queries/runs.ts';
@@ -43,7 +43,7 @@ export function readContrast(dbPath: string, c: Contrast, exclusions: readonly E
 async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId: string | undefined, threads: number | undefined, part: Part | undefined): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
   const loaded = await readContrast(dbPath, c, exclusions, { runId, maxHz: contrastMaxHz(c), part });
   const { data, ...info } = loaded;
-  const assembled = assembleContrast(c, data);
+  const assembled = assembleContrast(checkBandDefinition(c), data);
   const n = threads ?? defaultThreads(assembled, c.permutations);
   return { info, assembled: n > 1 ? sharedAssembly(assembled) : assembled, threads: n };
 }

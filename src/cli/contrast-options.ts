@@ -4,7 +4,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError, Option } from 'commander';
-import { MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../core/contrast/spec.ts';
+import { BAND_DEFINITIONS, ESTIMATORS, MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../core/contrast/spec.ts';
 import { BAND_SYNTAX, BandError, parseBand } from '../core/spectrum/bands.ts';
 
 const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);
@@ -40,6 +40,10 @@ export interface Flags {
   stage?: string;
   reference?: string;
   averaging?: string;
+  estimator?: string;
+  bandDefinition?: string;
+  peakSearch?: [string, string];
+  halfWidth?: number;
   channels?: string[];
   channelAverage?: boolean;
   fmin?: number;
@@ -73,6 +77,10 @@ export function contrastFromFlags(f: Flags): ContrastJson {
   set('stage', f.stage);
   set('reference', f.reference);
   set('averaging', f.averaging);
+  set('estimator', f.estimator);
+  set('bandDefinition', f.bandDefinition);
+  set('peakSearchHz', f.peakSearch?.map(Number));
+  set('halfWidthHz', f.halfWidth);
   set('channels', f.channels && f.channels.length === 1 && f.channels[0] === 'all' ? 'all' : f.channels);
   set('channelAverage', f.channelAverage);
   set('fminHz', f.fmin);
@@ -136,6 +144,10 @@ export function addContrastOptions(command: Command, o: { bandMeasures: boolean 
     .addOption(new Option('--stage <stage>', 'sleep stage (default: N2)').choices(['W', 'N1', 'N2', 'N3', 'R']))
     .addOption(new Option('--reference <ref>', 'reference of the spectra (default: recorded)').choices([...REFERENCES]))
     .addOption(new Option('--averaging <how>', 'epoch averaging of the spectra (default: mean)').choices(['mean', 'median']))
+    .addOption(new Option('--estimator <name>', 'spectral estimator of the spectra, as stored at ingest (default: welch)').choices([...ESTIMATORS]))
+    .addOption(new Option('--band-definition <how>', 'band edges fixed as given, or individual: centred on each subject\'s fitted peak (band-power measures and the band check; default: fixed)').choices([...BAND_DEFINITIONS]))
+    .option('--peak-search <lo,hi>', 'individual bands: where each subject\'s peak is looked for, Hz (default: the band\'s own edges)', pair('--peak-search'))
+    .option('--half-width <hz>', 'individual bands: half the band\'s width around the subject\'s peak, Hz (default: half the band\'s width)', num('--half-width'))
     .option('--channels <names>', 'comma-separated channels, or all (default: all)', list)
     .option('--channel-average', 'average the measure over the channels (frequency-only clusters)')
     .option('--fmin <hz>', 'lowest frequency, Hz (default: 1)', num('--fmin'))

@@ -11,6 +11,7 @@ import { Command, InvalidArgumentError, Option } from 'commander';
 import type cliProgressModule from 'cli-progress';
 import { REFERENCE_KINDS, type ReferenceKind } from '../core/montage/reference.ts';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
+import { defaultTaperCount } from '../core/spectrum/multitaper.ts';
 import { readLabelMap } from '../../ingest/hypnogram/label-map.ts';
 import type { IngestEvent } from '../../ingest/run.ts';
 import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../../ingest/pipeline.ts';
@@ -68,6 +69,11 @@ interface Flags {
   trimScoring?: boolean;
   lightsOffTexts: string[];
   lightsOnTexts: string[];
+  estimator: string[];
+  nw: number;
+  tapers?: number;
+  epochSpectra?: boolean;
+  epochSpectraMax: number;
 }
 
 export function register(program: Command): void {
@@ -99,6 +105,11 @@ export function register(program: Command): void {
     .addOption(option('--broadband <LO-HI>', 'broadband power range for the outlier rule, Hz', range('broadband'), D.rejection.broadbandHz, D.rejection.broadbandHz.join('-')))
     .addOption(option('--muscle <LO-HI>', 'high-frequency (muscle) range for the outlier rule, Hz', range('muscle'), D.rejection.muscleHz, D.rejection.muscleHz.join('-')))
     .option('--min-epochs <n>', 'flag stages with fewer clean epochs (10 = 5 min of 30-s epochs)', num('min-epochs', (x) => Number.isInteger(x) && x >= 1), D.minEpochs)
+    .addOption(option('--estimator <list>', 'spectral estimators to store: welch, multitaper (Thomson 1982: Slepian tapers on Welch\'s segments and grid; Welch is always stored, as epoch rejection, band powers and quality use it)', list, ['welch'], 'welch'))
+    .option('--nw <NW>', 'multitaper time-half-bandwidth NW: frequency resolution 2NW/segment Hz (1 Hz for 2 and 4-s segments)', num('nw', (x) => x >= 1), 2)
+    .option('--tapers <K>', 'multitaper number of tapers K (default: 2NW − 1)', num('tapers', (x) => Number.isInteger(x) && x >= 1))
+    .option('--epoch-spectra', 'also store each epoch\'s Welch spectrum of every channel (recorded reference), log10 power in 16 bits: about 30 kB per channel and recording-hour to 30 Hz before compression (README)')
+    .option('--epoch-spectra-max <Hz>', 'highest frequency of the stored epoch spectra, Hz', num('epoch-spectra-max', (x) => x > 0), 30)
     .option('--band <band...>', `epoch band powers, repeatable: ${BAND_SYNTAX} (default: ${D.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(' ')})`)
     .addOption(option('--band-method <mean|integral>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²)', String, D.bandMethod, D.bandMethod))
     .addOption(option('--fit-range <LO-HI>', 'aperiodic fit range, Hz', range('fit-range'), D.fit!.fitRangeHz, D.fit!.fitRangeHz.join('-')))
@@ -124,7 +135,12 @@ function toParams(f: Flags): Partial<IngestParams> {
     if (!REFERENCE_KINDS.includes(r as ReferenceKind)) throw new InvalidArgumentError(`invalid reference: ${r} (one of ${REFERENCE_KINDS.join(', ')})`);
   }
   if (f.bandMethod !== 'mean' && f.bandMethod !== 'integral') throw new InvalidArgumentError(`invalid band method: ${f.bandMethod}`);
+  for (const e of f.estimator) if (e !== 'welch' && e !== 'multitaper') throw new InvalidArgumentError(`invalid estimator: ${e} (welch or multitaper)`);
+  const tapers = f.tapers ?? defaultTaperCount(f.nw);
+  if (f.estimator.includes('multitaper') && tapers > 2 * f.nw) throw new InvalidArgumentError(`invalid tapers: ${tapers} (at most 2NW = ${2 * f.nw})`);
   return {
+    ...(f.estimator.includes('multitaper') ? { multitaper: { nw: f.nw, k: tapers } } : {}),
+    ...(f.epochSpectra ? { epochSpectra: { maxHz: f.epochSpectraMax } } : {}),
     epochS: f.epoch,
     segmentS: f.segment,
     overlap: f.overlap,

@@ -14,6 +14,7 @@ import { aperiodicRows, peakRows, recordedReferences } from './fits.ts';
 import { chooseRun, type RunInfo } from './runs.ts';
 import type { CohortSchema } from './schema.ts';
 import { spectraRows, storedReferences } from './spectra.ts';
+import { storedEstimator } from './estimator.ts';
 import { partViewOf, workflowOf } from './workflow.ts';
 
 /** The rows an analysis read, with the run they came from. */
@@ -62,14 +63,15 @@ export async function loadContrastData(
   const view = partViewOf(await workflowOf(db, schema), options.part ?? 'exploration');
   if (view === null && options.part === 'confirmation') throw new Error('the database holds no split, so it has no confirmation part');
   const stages = contrastStages(c);
-  const needs = measureNeeds(c.measure);
+  const needs = measureNeeds(c.measure, c.bandDefinition);
+  const estimator = storedEstimator(schema, c.estimator);
   // all queries issued together (duckdb-wasm runs them one after another in its worker, without
   // waits between; the Node client one after another on its connection); rows joined with
   // concat, not push(...rows), which overflows the call stack at cohort size (10⁵ rows)
   const [perStage, participantRows, references] = await Promise.all([
     Promise.all(
       stages.map((stage) => {
-        const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
+        const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging, estimator };
         return Promise.all([
           spectraRows(db, { ...q, channels: c.channels === 'all' ? undefined : c.channels }, options.maxHz),
           needs.aperiodic ? aperiodicRows(db, q, c.aperiodicMethod) : Promise.resolve([]),
@@ -94,7 +96,7 @@ export async function loadContrastData(
   performance.mark('bandwise:contrast-data');
   if (rows.length === 0) {
     const stored = await storedReferences(db, run.runId);
-    throw new ContrastDataError(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId} (stored references: ${stored.join(', ') || 'none'})`);
+    throw new ContrastDataError(`no ${stages.join('/')} spectra with reference ${c.reference}, averaging ${c.averaging} and estimator ${c.estimator} in run ${run.runId} (stored references: ${stored.join(', ') || 'none'})`);
   }
   return {
     runId: run.runId,

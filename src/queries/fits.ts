@@ -4,10 +4,11 @@ import type { Stage } from '../core/stages.ts';
 import { COHORT, doubleLiteral, literal, numbers, numbersOrNull, texts, textsOrNull, type SqlClient } from './client.ts';
 import { chooseRun, type RunInfo } from './runs.ts';
 import type { SpectraKey } from './spectra.ts';
+import { estimatorCondition } from './estimator.ts';
 
 const fitWhere = (table: 'a' | 'p', q: SpectraKey, method: string) =>
   `r.run_id = ${literal(q.runId)} AND ${table}.stage = ${literal(q.stage)} AND ${table}.reference = ${literal(q.reference)}
-       AND ${table}.averaging = ${literal(q.averaging)} AND ${table}.method = ${literal(method)}`;
+       AND ${table}.averaging = ${literal(q.averaging)} AND ${table}.method = ${literal(method)}${estimatorCondition(`${table}.estimator`, q.estimator)}`;
 
 async function aperiodicWhere(db: SqlClient, q: SpectraKey, where: string): Promise<AperiodicRow[]> {
   const t = await db.query(
@@ -65,9 +66,9 @@ async function fitRanges(db: SqlClient, where: string): Promise<[number, number]
   return Array.from(lo, (v, i) => [v, hi[i]] as [number, number]);
 }
 
-/** Distinct aperiodic fit ranges (Hz) stored for one run × stage × reference × averaging × method, ordered. */
-export function storedFitRanges(db: SqlClient, runId: string, stage: Stage, reference: string, averaging: string, method: string): Promise<[number, number][]> {
-  return fitRanges(db, fitWhere('a', { runId, stage, reference, averaging }, method));
+/** Distinct aperiodic fit ranges (Hz) stored for one run × stage × reference × averaging × method (and estimator), ordered. */
+export function storedFitRanges(db: SqlClient, runId: string, stage: Stage, reference: string, averaging: string, method: string, estimator?: string | null): Promise<[number, number][]> {
+  return fitRanges(db, fitWhere('a', { runId, stage, reference, averaging, estimator }, method));
 }
 
 /** Distinct fit ranges (Hz) stored for a stage and method over every reference and averaging of the chosen run (what the robustness form offers). */

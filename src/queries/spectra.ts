@@ -2,13 +2,16 @@
 import type { SpectrumRow } from '../core/contrast/data.ts';
 import type { Stage } from '../core/stages.ts';
 import { COHORT, column, literal, numbers, texts, textsOrNull, type SqlClient } from './client.ts';
+import { estimatorCondition } from './estimator.ts';
 
-/** One run × stage × reference × averaging. */
+/** One run × stage × reference × averaging (× estimator). */
 export interface SpectraKey {
   runId: string;
   stage: Stage;
   reference: string;
   averaging: string;
+  /** spectral estimator (default welch; null: a database without the column, all Welch — estimator.ts) */
+  estimator?: string | null;
   /** Only these channels (default all). */
   channels?: readonly string[];
 }
@@ -38,7 +41,7 @@ export async function spectraRows(db: SqlClient, q: SpectraKey, maxHz?: number):
   // recording's frequency range. `cell` names columns only spectra has, so it reads the same
   // inside and outside the join.
   const only = q.channels ? ` AND channel IN (${q.channels.length ? q.channels.map(literal).join(', ') : 'NULL'})` : '';
-  const cell = `stage = ${literal(q.stage)} AND reference = ${literal(q.reference)} AND averaging = ${literal(q.averaging)}${only}`;
+  const cell = `stage = ${literal(q.stage)} AND reference = ${literal(q.reference)} AND averaging = ${literal(q.averaging)}${estimatorCondition('estimator', q.estimator)}${only}`;
   const from = `FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
        JOIN (SELECT recording_id, max(n_bins) AS longest FROM ${COHORT}.spectra WHERE ${cell} GROUP BY recording_id) m USING (recording_id)
      WHERE r.run_id = ${literal(q.runId)} AND ${cell} AND s.n_bins = m.longest`;
@@ -114,7 +117,7 @@ export function binsUpTo(f0: number, df: number, maxHz: number): number {
   return k + 1;
 }
 
-/** Spectra of one channel × stage × reference × averaging across the cohort (every run), one row per recording. */
+/** Spectra of one channel × stage × reference × averaging (Welch unless told) across the cohort (every run), one row per recording. */
 export interface ChannelSpectra {
   recordingIds: string[];
   freqStartHz: number;
@@ -124,8 +127,8 @@ export interface ChannelSpectra {
   power: Float32Array;
 }
 
-export async function channelSpectra(db: SqlClient, sel: { channel: string; stage: string; reference: string; averaging: string }): Promise<ChannelSpectra> {
-  const where = `channel = ${literal(sel.channel)} AND stage = ${literal(sel.stage)} AND reference = ${literal(sel.reference)} AND averaging = ${literal(sel.averaging)}`;
+export async function channelSpectra(db: SqlClient, sel: { channel: string; stage: string; reference: string; averaging: string; estimator?: string | null }): Promise<ChannelSpectra> {
+  const where = `channel = ${literal(sel.channel)} AND stage = ${literal(sel.stage)} AND reference = ${literal(sel.reference)} AND averaging = ${literal(sel.averaging)}${estimatorCondition('estimator', sel.estimator)}`;
   const t = await db.query(
     `SELECT recording_id::VARCHAR AS recording_id, freq_start_hz::DOUBLE AS f0, freq_step_hz::DOUBLE AS df, n_bins::DOUBLE AS n_bins
      FROM ${COHORT}.spectra WHERE ${where} ORDER BY recording_id`,

@@ -60,6 +60,8 @@ describe('contrast in the address bar', () => {
       { design: 'groups', groups: ['control', 'patient'], stage: 'N2', fminHz: 0.5, fmaxHz: 30, permutations: 1000, channels: ['C3', 'Cz'], correction: 'tfce' },
       { design: 'paired', stages: ['N2', 'N3'], measure: 'relative', relativeRangeHz: [1, 40], statistic: 'paired-t', channelAverage: true },
       { design: 'covariate', covariate: 'age', nuisance: ['score'], measure: 'band-power', bands: [{ name: 'sigma', loHz: 12, hiHz: 16 }], seed: 7, clusterP: 0.01 },
+      // multitaper spectra and an individual band
+      { design: 'groups', groups: ['control', 'patient'], estimator: 'multitaper', measure: 'band-power', bands: [{ name: 'fast', loHz: 12, hiHz: 15 }], bandDefinition: 'individual', peakSearchHz: [11.5, 16], halfWidthHz: 1.25 },
     ];
     for (const d of designs) {
       const c = parseContrast(d);

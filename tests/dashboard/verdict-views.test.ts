@@ -18,7 +18,7 @@ import { paramsFromChoices, pathChoicesFromParams, RobustnessParamError, toggled
 
 const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'Cz'], permutations: 500, seed: 7 });
 const sigma = { name: 'sigma', loHz: 12, hiHz: 16 };
-const stored = { references: ['recorded', 'linked-mastoids'], averagings: ['mean', 'median'], fitRangesHz: [[1, 40]] as [number, number][] };
+const stored = { references: ['recorded', 'linked-mastoids'], averagings: ['mean', 'median'], estimators: ['welch' as const], fitRangesHz: [[1, 40]] as [number, number][] };
 
 describe('band check address bar', () => {
   it('round-trips contrast and band; a missing band is sigma 12–16 Hz; edges matching a preset take its name', () => {
@@ -37,19 +37,22 @@ describe('band check address bar', () => {
     expect(bandFromParams({ band: '11-15' })).toEqual({ name: '11–15 Hz', loHz: 11, hiHz: 15 });
     expect(bandCheckFromParams(paramsFromBandCheck(contrast, bandFromParams({ band: '11-15' }))).band).toEqual({ name: '11–15 Hz', loHz: 11, hiHz: 15 });
     expect(() => bandFromParams({ band: 'theta 4-8' })).toThrow(/invalid band 'theta 4-8': expected LO-HI in Hz/);
+    // an individual band with its search range and half-width, and the multitaper estimate
+    const individual = parseContrast({ ...contrast, estimator: 'multitaper', bandDefinition: 'individual', peakSearchHz: [11.5, 16], halfWidthHz: 1.5 });
+    expect(bandCheckFromParams(paramsFromBandCheck(individual, sigma)).contrast).toEqual(individual);
   });
 });
 
 describe('robustness choices', () => {
-  const sets = stored.references.flatMap((reference) => stored.averagings.map((averaging) => ({ reference, averaging, fitRangeHz: [1, 40], data: {} }) as unknown as PathDataSet));
+  const sets = stored.references.flatMap((reference) => stored.averagings.map((averaging) => ({ reference, averaging, fitRangeHz: [1, 40], data: { peaks: [{}] } }) as unknown as PathDataSet));
 
-  it('with no choice keys: every stored value, as src/core/verdict defaultPathChoices; 60 band-summary paths', () => {
+  it('with no choice keys: every stored value, as src/core/verdict defaultPathChoices; 120 band-summary paths', () => {
     const { choices, test } = pathChoicesFromParams({}, contrast, sigma, stored);
     expect(test).toBe('band-summary');
     // decided on power only unless asked (the core's default)
     expect(choices).toEqual({ ...defaultPathChoices(contrast, sigma, sets), decisions: ['power'] });
-    // (absolute × 2 summaries + relative × 2 denominators + residual × 1 fit) × 2 references × 2 averagings × 3 edge variants
-    expect(enumeratePaths(choices, test)).toHaveLength((2 + 2 + 1) * 2 * 2 * 3);
+    // (absolute × 2 summaries + relative × 2 denominators + residual × 1 fit) × 2 references × 2 averagings × 3 edge variants × fixed/individual (fits, hence peaks, stored)
+    expect(enumeratePaths(choices, test)).toHaveLength((2 + 2 + 1) * 2 * 2 * 3 * 2);
     expect(enumeratePaths(choices, 'frequency-wise')).toHaveLength((1 + 2 + 1) * 2 * 2 * 3);
   });
 
@@ -57,7 +60,7 @@ describe('robustness choices', () => {
     const { choices } = pathChoicesFromParams({ measures: 'absolute,residual', references: 'recorded', edges: '0', summaries: 'integral' }, contrast, sigma, stored);
     expect(choices.measures).toEqual(['absolute', 'residual']);
     expect(choices.bands).toEqual([sigma]);
-    expect(enumeratePaths(choices)).toHaveLength((1 + 1) * 1 * 2 * 1);
+    expect(enumeratePaths(choices)).toHaveLength((1 + 1) * 1 * 2 * 1 * 2);
     const again = pathChoicesFromParams(paramsFromChoices(choices, 'frequency-wise', sigma), contrast, sigma, stored);
     expect(again).toEqual({ choices, test: 'frequency-wise' });
     expect(pathChoicesFromParams({ references: 'none' }, contrast, sigma, stored).choices.references).toEqual([]);
@@ -66,6 +69,8 @@ describe('robustness choices', () => {
     expect(() => pathChoicesFromParams({ denominators: '45-0.5' }, contrast, sigma, stored)).toThrow(/not a range/);
     expect(() => pathChoicesFromParams({ test: 'fast' }, contrast, sigma, stored)).toThrow(/test holds fast/);
     expect(() => pathChoicesFromParams({ decisions: 'frequency' }, contrast, sigma, stored)).toThrow(/decisions holds frequency; allowed: power, power-and-frequency/);
+    expect(() => pathChoicesFromParams({ estimators: 'multitaper' }, contrast, sigma, stored)).toThrow(/estimators holds multitaper; allowed: welch/);
+    expect(pathChoicesFromParams({}, contrast, sigma, { ...stored, fitRangesHz: [] }).choices.bandDefinitions).toEqual(['fixed']);
     expect(toggled(['a', 'c'], 'b', true, ['a', 'b', 'c'])).toEqual(['a', 'b', 'c']);
     expect(toggled(['a', 'b', 'c'], 'a', false, ['a', 'b', 'c'])).toEqual(['b', 'c']);
   });
@@ -98,17 +103,21 @@ describe('robustness choices', () => {
   });
 
   it('dot matrix: one row per value of a varied choice, one dot per path and choice it used; share stated', () => {
-    const { choices } = pathChoicesFromParams({ measures: 'absolute,residual', references: 'recorded', averagings: 'mean', summaries: 'mean' }, contrast, sigma, stored);
+    const { choices } = pathChoicesFromParams({ measures: 'absolute,residual', references: 'recorded', averagings: 'mean', summaries: 'mean', definitions: 'fixed' }, contrast, sigma, stored);
     const specs = enumeratePaths(choices);
     // invented effects: path i has effect (i − 3), significant when |effect| ≥ 2
     const paths: PathResult[] = specs.map((p, i) => ({ ...p, effect: i - 3, ciLow: i - 4, ciHigh: i - 2, effectKind: 'hedges-g', p: Math.abs(i - 3) >= 2 ? 0.01 : 0.5, significant: Math.abs(i - 3) >= 2, n: { control: 10, patient: 10 }, rank: i + 1 }));
     const curve = { paths, nPaths: 6, nSignificant: 3, shareSignificant: 3 / 6, nSignificantMajoritySign: 2, medianEffect: -0.5, alpha: 0.05 } as unknown as SpecificationCurve;
     const { rows, fixed } = matrixRows(curve);
     expect(rows.map((r) => r.label)).toEqual(['absolute log10 power', 'residual', 'band 11–17 Hz', 'band 12–16 Hz', 'band 13–15 Hz']);
-    expect(fixed).toEqual(['reference: recorded', 'averaging: mean over epochs', 'summary: mean density', 'decision: decided on power', 'fit range: fit 1–40 Hz']);
+    expect(fixed).toEqual(['reference: recorded', 'averaging: mean over epochs', 'estimator: Welch', 'summary: mean density', 'band definition: fixed band', 'decision: decided on power', 'fit range: fit 1–40 Hz']);
     const dots = matrixDots(curve, rows);
     expect(dots).toHaveLength(6 * 2); // each path: its measure and its band edges
     expect(dots.filter((d) => d.significant)).toHaveLength(3 * 2); // effects −3, −2 and 2
+    // with both estimators stored and both band definitions ticked, each is a row of the matrix
+    const both = pathChoicesFromParams({ measures: 'residual', references: 'recorded', averagings: 'mean', edges: '0', definitions: 'fixed,individual' }, contrast, sigma, { ...stored, estimators: ['welch', 'multitaper'] }).choices;
+    const varied = enumeratePaths(both).map((p, i) => ({ ...p, effect: i, rank: i + 1, significant: false }) as unknown as PathResult);
+    expect(matrixRows({ ...curve, paths: varied }).rows.map((r) => r.label)).toEqual(['Welch', 'multitaper', 'fixed band', 'individual band']);
     expect(shareSentence(curve)).toBe('3 of 6 paths (50 %) have p < 0.05; 2 of them have the sign of the median effect (median g = −0.50).');
     // effect sizes of different measures are not pooled (issue 23): absolute paths have effects −3, −2, −1, residual ones 0, 1, 2
     expect(measureSentence(curve)).toBe('By measure — absolute log10 power: 2 of 3 paths with p < 0.05, median g = −2.00; residual: 1 of 3 paths with p < 0.05, median g = 1.00.');

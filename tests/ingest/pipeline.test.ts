@@ -7,6 +7,7 @@ import { fileSha256 } from '../../ingest/file-sha256.ts';
 import { processRecording, resolveIngestParams } from '../../ingest/pipeline.ts';
 import type { CohortRecording } from '../../ingest/cohort/types.ts';
 import { openEdf } from '../../ingest/edf/reader.ts';
+import { openStore } from '../../ingest/store/database.ts';
 import { runPython } from '../helpers/python.ts';
 import { FIXTURE_LABELS, writeFixtureEdf } from './fixture.ts';
 
@@ -22,7 +23,7 @@ let ref: { spectra: Float64Array; nBins: number; nEpochs: number; labels: string
 
 beforeAll(async () => {
   stages = await writeFixtureEdf(file, { seed: 5, fsHz: 128, nEpochs: 48, artifactEpochs: [5, 21] });
-  bundle = await processRecording(rec, resolveIngestParams({ references: ['recorded', 'linked-mastoids', 'average', 'bipolar'], bipolarPairs: ['F3-C3'], fit: null }));
+  bundle = await processRecording(rec, resolveIngestParams({ references: ['recorded', 'linked-mastoids', 'average', 'bipolar'], bipolarPairs: ['F3-C3'], fit: null, epochSpectra: { maxHz: 30 } }));
   // outside reference: numpy memmap decode of the EDF (Kemp et al. 1992) + scipy.signal.welch per epoch
   const out = path.join(dir, 'ref.f64');
   const summary = JSON.parse(execFileSync('python3', [path.join(import.meta.dirname, 'scipy_pipeline.py'), file, '30', '4', '45', out], { encoding: 'utf8' }).trim().split('\n').pop()!);
@@ -109,6 +110,37 @@ print(json.dumps(out))`, { x });
     expect(maxRel(bp.power, expected[1])).toBeLessThan(1e-4);
     expect(bundle.spectra.some((s) => s.reference === 'average' && s.channel === 'M1')).toBe(false); // mastoids out of the average
     expect(bundle.referenceSkips).toEqual([]);
+  });
+
+  it('stores each epoch\'s spectrum (--epoch-spectra) to 30 Hz, log10 power within half a quantisation step of scipy\'s', async () => {
+    expect(bundle.epochSpectra!.map((b) => b.channel)).toEqual(['F3', 'F4', 'C3', 'C4', 'O1', 'O2', 'M1', 'M2']);
+    let worst = 0;
+    for (const b of bundle.epochSpectra!) {
+      expect(b.reference).toBe('recorded');
+      expect(b.nBins).toBe(121); // 0 … 30 Hz at 0.25 Hz
+      expect(Array.from(b.epoch)).toEqual(Array.from({ length: 48 }, (_, e) => e)); // rejected epochs keep their row
+      for (let i = 0; i < b.epoch.length; i++) {
+        const p = refEpoch(b.epoch[i], `EEG ${b.channel}`);
+        for (let k = 0; k < b.nBins; k++) {
+          const stored = b.log10Min[i] + b.levels[i * b.nBins + k] * b.log10Step[i];
+          // uniform quantisation: at most half a step (common practice), plus the 32-bit spectrum (1e-4 relative → 4.4e-5 log10)
+          worst = Math.max(worst, Math.abs(stored - Math.log10(p[k])) / (b.log10Step[i] / 2 + 4.4e-5));
+        }
+      }
+    }
+    expect(worst).toBeLessThanOrEqual(1);
+    // written and read back through DuckDB: the levels list (USMALLINT[]) and the row's lo and step
+    const store = await openStore(path.join(dir, 'es.duckdb'), { create: true });
+    const { runId } = await store.beginRun('0.1.0', {});
+    const id = await store.writeRecording({ ...bundle, runId });
+    const rows = await store.exclusive(async () => (await store.connection.runAndReadAll(
+      "SELECT epoch, log10_min, log10_step, levels FROM epoch_spectra WHERE recording_id = $1 AND channel = 'C4' ORDER BY epoch", [id])).getRowObjectsJS());
+    await store.close();
+    const c4 = bundle.epochSpectra!.find((b) => b.channel === 'C4')!;
+    expect(rows.length).toBe(48);
+    expect(rows[7].log10_min).toBe(c4.log10Min[7]);
+    expect(rows[7].log10_step).toBe(c4.log10Step[7]);
+    expect(rows[7].levels).toEqual(Array.from(c4.levels.subarray(7 * 121, 8 * 121)));
   });
 
   it('stores epoch band powers equal to the mean density of scipy bins, and the file SHA-256', async () => {

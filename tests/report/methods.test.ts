@@ -9,6 +9,9 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { methodsReport, ingestParameterFacts, ledgerCounts, ReportInputError } from '../../src/core/report/index.ts';
 import { CONTRAST_JSON, FACTS, LEDGER, fixedResults } from './inputs.ts';
+import { compare } from '../../src/core/contrast/run.ts';
+import { bandCheck } from '../../src/core/verdict/index.ts';
+import { FIT_RANGE_HZ, simulateCohort } from '../verdict/cohorts.ts';
 
 const { contrast, check, cmp } = fixedResults();
 const expected = (name: string) => readFileSync(new URL(`./${name}`, import.meta.url), 'utf8');
@@ -70,6 +73,28 @@ describe('methods report', () => {
     expect(p.ledger).toEqual(LEDGER);
     expect(p.contrast).toEqual(contrast);
     expect(JSON.parse(JSON.stringify(p))).toEqual(p);
+  });
+
+  it('names the multitaper estimate with its parameters and source when the analysis used it, and refuses it without them', () => {
+    const mtContrast = { ...contrast, estimator: 'multitaper' as const };
+    const mtFacts = { ...FACTS, ingestParameters: { ...(FACTS.ingestParameters as Record<string, unknown>), multitaper: { nw: 2, k: 3 } } };
+    const text = methodsReport(compare(mtContrast, simulateCohort('both', 3)), mtFacts, LEDGER).markdown;
+    // 2W = 2NW/T = 2·2/4 s = 1 Hz (Thomson 1982; by hand)
+    expect(text).toContain('multitaper estimate stored beside Welch\'s (Thomson 1982)');
+    expect(text).toContain('K = 3 discrete prolate spheroidal (Slepian) tapers with time-half-bandwidth NW = 2');
+    expect(text).toContain('a frequency resolution 2W = 2NW/T = 1 Hz');
+    expect(text).toContain('Thomson, D. J. (1982). Spectrum estimation and harmonic analysis. Proceedings of the IEEE, 70(9), 1055–1096.');
+    // a Welch analysis does not mention it
+    expect(methodsReport(cmp, mtFacts, LEDGER).markdown).not.toContain('Thomson');
+    expect(() => methodsReport(compare(mtContrast, simulateCohort('both', 3)), FACTS, LEDGER)).toThrow(/multitaper NW and K/);
+  });
+
+  it('states the individual band rule and the subjects without a peak in a band check with individual bands', () => {
+    const ind = bandCheck({ ...contrast, bandDefinition: 'individual', peakSearchHz: [11.8, 16], halfWidthHz: 1.5 }, { name: 'sigma', loHz: 12, hiHz: 16 }, simulateCohort('both', 3), { fitRangeHz: FIT_RANGE_HZ });
+    const text = methodsReport(ind, FACTS, LEDGER).markdown;
+    expect(text).toContain('The band was individual: centred on each subject\'s own fitted peak in 11.8–16 Hz');
+    expect(text).toContain('with a half-width of 1.5 Hz');
+    expect(text).toMatch(/\d+ of 40 subject-conditions have a fitted peak in 11.8–16 Hz/);
   });
 
   it('fails on ingest parameters without a field, naming it', () => {

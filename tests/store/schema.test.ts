@@ -43,9 +43,10 @@ describe('schema names equal docs/design.md', () => {
     );
   });
 
-  // DESIGN names the warnings table in words ("a warnings table beside it (recording, step, field, message)")
-  it('has every DESIGN table, plus only reference_skips and warnings', () => {
-    expect(new Set(TABLE_NAMES)).toEqual(new Set([...design.keys(), 'reference_skips', 'warnings']));
+  // DESIGN names the warnings table in words ("a warnings table beside it (recording, step, field, message)"),
+  // and the optional per-epoch spectra ("Optional: per-epoch spectra (compact, `--epoch-spectra`)")
+  it('has every DESIGN table, plus only reference_skips, warnings and epoch_spectra', () => {
+    expect(new Set(TABLE_NAMES)).toEqual(new Set([...design.keys(), 'reference_skips', 'warnings', 'epoch_spectra']));
   });
 
   it('the created database has every DESIGN column under its exact name, with the stated types', async () => {
@@ -59,8 +60,8 @@ describe('schema names equal docs/design.md', () => {
       if (!actual.has(t)) actual.set(t, new Map());
       actual.get(t)!.set(String(r.column_name), String(r.data_type));
     }
-    // DESIGN: peaks(… same keys …, center_hz, …) — "same keys" as aperiodic: recording_id, channel, stage, reference, averaging.
-    const peakKeys = ['recording_id', 'channel', 'stage', 'reference', 'averaging'];
+    // DESIGN: peaks(… same keys …, center_hz, …) — "same keys" as aperiodic: recording_id, channel, stage, reference, averaging, estimator.
+    const peakKeys = ['recording_id', 'channel', 'stage', 'reference', 'averaging', 'estimator'];
     for (const [table, cols] of design) {
       const got = actual.get(table);
       expect(got, table).toBeDefined();

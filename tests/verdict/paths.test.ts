@@ -22,9 +22,14 @@ describe('robustness paths', () => {
     const choices = defaultPathChoices(contrast, sigma, sets);
     expect(choices.bands).toEqual([{ name: 'sigma', loHz: 11, hiHz: 17 }, sigma, { name: 'sigma', loHz: 13, hiHz: 15 }]);
     expect(choices.relativeDenominatorsHz).toEqual([[0.5, 45], [1, 30]]);
-    // per (reference, averaging, band): absolute × 2 summaries + relative × 2 denominators + residual × 1 fit range
-    expect(enumeratePaths(choices)).toHaveLength(1 * 2 * 3 * (2 + 2 + 1));
-    const ids = enumeratePaths(choices).map((p) => JSON.stringify([p.measure, p.denominatorHz, p.reference, p.averaging, p.summary, p.fitRangeHz, p.band]));
+    // the sets hold fitted peaks and one estimator: fixed and individual bands, Welch only
+    expect(choices.bandDefinitions).toEqual(['fixed', 'individual']);
+    expect(choices.estimators).toEqual(['welch']);
+    // per (reference, averaging, band, band definition): absolute × 2 summaries + relative × 2 denominators + residual × 1 fit range
+    expect(enumeratePaths(choices)).toHaveLength(1 * 2 * 3 * 2 * (2 + 2 + 1));
+    // the frequency-wise test reads the fixed band's bins only
+    expect(enumeratePaths(choices, 'frequency-wise')).toHaveLength(1 * 2 * 3 * (1 + 2 + 1));
+    const ids = enumeratePaths(choices).map((p) => JSON.stringify([p.measure, p.denominatorHz, p.reference, p.averaging, p.estimator, p.summary, p.fitRangeHz, p.band, p.bandDefinition]));
     expect(new Set(ids).size).toBe(ids.length);
     expect(edgeVariants({ name: 'x', loHz: 4, hiHz: 5 })).toHaveLength(2); // no narrower band below 1 Hz width
   });
@@ -62,7 +67,7 @@ describe('robustness paths', () => {
   it('decides on power only or on power and the peak centre (Bonferroni ×2); the centre test is the band check\'s', () => {
     const shifted = simulateCohort('shift-1hz', 4);
     const own: PathDataSet[] = [{ reference: 'recorded', averaging: 'mean', fitRangeHz: FIT_RANGE_HZ, data: shifted }];
-    const choices = { ...defaultPathChoices(contrast, sigma, own), measures: ['residual' as const], decisions: ['power' as const, 'power-and-frequency' as const] };
+    const choices = { ...defaultPathChoices(contrast, sigma, own), measures: ['residual' as const], decisions: ['power' as const, 'power-and-frequency' as const], bandDefinitions: ['fixed' as const] };
     expect(enumeratePaths(choices)).toHaveLength(3 * 2); // 3 band edges × 2 decisions
     const curve = runPaths(contrast, sigma, choices, own);
     const check = bandCheck(contrast, sigma, shifted, { fitRangeHz: FIT_RANGE_HZ });
@@ -85,6 +90,25 @@ describe('robustness paths', () => {
     expect(narrow.p).toBeCloseTo(Math.min(1, 2 * curve.paths.find((x) => x.decision === 'power' && x.band.loHz === 13)!.p), 12);
     const noPeaks: PathDataSet[] = [{ ...own[0], data: { ...shifted, peaks: [] } }];
     expect(() => runPaths(contrast, sigma, choices, noPeaks)).toThrow(/no fitted peaks in the data set for reference recorded, averaging mean/);
+  });
+
+  it('varies the estimator and the band definition: each such path equals the band check run with that estimator and definition', () => {
+    // a second data set stands in for the multitaper spectra of the same subjects (another simulated cohort)
+    const other = simulateCohort('peak', 5);
+    const both: PathDataSet[] = [{ ...sets[0], data }, { reference: 'recorded', averaging: 'mean', estimator: 'multitaper', fitRangeHz: FIT_RANGE_HZ, data: other }];
+    const choices = { ...defaultPathChoices(contrast, sigma, both), averagings: ['mean' as const], bands: [sigma], measures: ['absolute' as const, 'residual' as const], summaries: ['mean' as const] };
+    expect(choices.estimators).toEqual(['welch', 'multitaper']);
+    const curve = runPaths(contrast, sigma, choices, both);
+    expect(curve.nPaths).toBe(2 * 2 * 2); // estimator × band definition × (absolute, residual)
+    for (const [estimator, rows] of [['welch', data], ['multitaper', other]] as const) {
+      for (const bandDefinition of ['fixed', 'individual'] as const) {
+        const check = bandCheck({ ...contrast, estimator, bandDefinition }, sigma, rows, { fitRangeHz: FIT_RANGE_HZ });
+        const path = (m: string) => curve.paths.find((p) => p.measure === m && p.estimator === estimator && p.bandDefinition === bandDefinition)!;
+        expect(path('absolute').effect, `${estimator} ${bandDefinition}`).toBeCloseTo(check.tests.raw.effect, 12);
+        expect(path('residual').effect, `${estimator} ${bandDefinition}`).toBeCloseTo(check.tests.periodic.effect, 12);
+        expect(path('absolute').description).toContain(estimator);
+      }
+    }
   });
 
   it('refuses a fit range or reference that is not stored, naming what is', () => {

@@ -3,9 +3,12 @@
  * part (and which are left out, with the reason), the measure per subject × channel × point, and
  * the design. Pure; shared by the command line and the dashboard's worker.
  */
-import type { Contrast } from './spec.ts';
+import { INDIVIDUAL_BAND_MEASURES, type Contrast } from './spec.ts';
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from './data.ts';
+import { contrastConditions } from './conditions.ts';
+import { individualBands, type IndividualCentre } from './individual-bands.ts';
 import { measureLayout, measureValues, type MeasureLayout } from './measure.ts';
+import type { Band } from '../spectrum/bands.ts';
 import { mixedRecordedReferences } from './recorded-references.ts';
 import type { PermutationTestInput, Design } from '../stats/index.ts';
 import type { Stage } from '../stages.ts';
@@ -27,7 +30,12 @@ export interface AssembledContrast {
   nPerGroup: Record<string, number>;
   /** the channel names the points use (a channel average is one pseudo-channel) */
   channels: string[];
+  /** individual bands: each analysed subject's centre and edges per condition and band (empty for fixed bands) */
+  individualCentres: IndividualCentre[];
 }
+
+/** The band a subject uses in a condition (index into contrastConditions) in place of a band of the layout. */
+export type BandResolver = (subject: string, condition: number, band: Band) => Band;
 
 export class ContrastDataError extends Error {
   override name = 'ContrastDataError';
@@ -37,18 +45,23 @@ function key(subject: string, session: string | null, channel: string, stage: St
   return `${subject}\u0000${session ?? ''}\u0000${channel}\u0000${stage}`;
 }
 
-/** The (stage, session) of each of the design's conditions: one for groups/covariate, two for paired. */
-function conditions(c: Contrast): { stage: Stage; session: string | null; name: string }[] {
-  if (c.design === 'paired' && c.stages) return c.stages.map((s) => ({ stage: s, session: c.session ?? null, name: s }));
-  if (c.design === 'paired' && c.sessions) return c.sessions.map((s) => ({ stage: c.stage, session: s, name: `session ${s}` }));
-  return [{ stage: c.stage, session: c.session ?? null, name: c.stage }];
-}
-
-export function assembleContrast(c: Contrast, data: ContrastData): AssembledContrast {
+/**
+ * The contrast's subjects × points from the rows read. Band measures use each subject's own band
+ * when the contrast's bands are individual (individual-bands.ts), or where `bandsFor` says (the
+ * band check's flanks follow the subject's band).
+ */
+export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: BandResolver): AssembledContrast {
   const axis = data.spectra;
   const layout = measureLayout(c, axis);
-  const conds = conditions(c);
+  const conds = contrastConditions(c);
   const excluded: Exclusion[] = [];
+  let resolve = bandsFor ?? null;
+  let centres: IndividualCentre[] = [];
+  if (!resolve && c.bandDefinition === 'individual' && INDIVIDUAL_BAND_MEASURES.includes(c.measure)) {
+    const found = new Map(layout.bands.map((b) => [b, individualBands(c, data, b)]));
+    centres = [...found.values()].flatMap((f) => f.centres);
+    resolve = (subject, condition, band) => found.get(band)?.bands.get(subject)?.[condition] ?? band;
+  }
 
   const spectra = new Map<string, SpectrumRow>();
   const sessionsOf = new Map<string, Set<string | null>>();
@@ -159,6 +172,7 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
     let wroteMissing = false;
     for (let di = 0; di < conds.length && !reason; di++) {
       const cond = conds[di];
+      const own = resolve ? { ...layout, bands: layout.bands.map((b) => resolve(cand.subject, di, b)) } : layout;
       const session = cond.session ?? onlySession;
       const values = matrices[di].subarray(kept.length * width, (kept.length + 1) * width);
       values.fill(0);
@@ -185,7 +199,7 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
           reason = { channel: ch, text: `${cond.name} spectrum of ${ch} flagged: ${row.flagReason ?? 'flagged at ingest'}` };
           break;
         }
-        const why = measureValues(c, layout, axis, row.power, aperiodic.get(k), peaks.get(k) ?? [], scratch);
+        const why = measureValues(c, own, axis, row.power, aperiodic.get(k), peaks.get(k) ?? [], scratch);
         if (why) {
           reason = { channel: ch, text: `${cond.name}, ${ch}: ${why}` };
           break;
@@ -255,7 +269,9 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
     ...(c.channelAverage || channels.length < 2 ? { channelNeighbours: null } : {}),
     ...(layout.missingAllowed || anyExcludedChannel ? { allowMissing: true } : {}),
   };
-  return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels };
+  const inAnalysis = new Set(kept.map((k) => k.subject));
+  const individualCentres = centres.filter((x) => inAnalysis.has(x.subject));
+  return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels, individualCentres };
 }
 
 function nuisanceColumns(c: Contrast, kept: { nuisance: number[] }[]): { name: string; values: number[] }[] {

@@ -2,7 +2,8 @@
  * The measures a contrast can run on, computed from one stored spectrum (and its aperiodic fit
  * and peaks). Every spectral measure is in log10 units, stated in its description.
  */
-import type { Contrast, MeasureName } from './spec.ts';
+import { INDIVIDUAL_BAND_MEASURES, type BandDefinition, type Contrast, type MeasureName } from './spec.ts';
+import { individualRule } from './individual-bands.ts';
 import type { AperiodicRow, PeakRow } from './data.ts';
 import { bandPower, type Band } from '../spectrum/bands.ts';
 import { aperiodicLog10 } from '../spectrum/aperiodic-model.ts';
@@ -53,7 +54,14 @@ export function measureLayout(c: Contrast, axis: FrequencyAxis): MeasureLayout {
     const bands = [...(c.bands ?? [])].sort((a, b) => a.loHz + a.hiHz - (b.loHz + b.hiHz));
     const centres = bands.map((b) => (b.loHz + b.hiHz) / 2);
     for (let i = 1; i < centres.length; i++) if (!(centres[i] > centres[i - 1])) throw new Error(`bands ${bands[i - 1].name} and ${bands[i].name} share a centre`);
-    const names = bands.map((b) => `${b.name} ${b.loHz}–${b.hiHz} Hz`).join(', ');
+    const individual = c.bandDefinition === 'individual' && INDIVIDUAL_BAND_MEASURES.includes(c.measure);
+    const names = bands
+      .map((b) => {
+        if (!individual) return `${b.name} ${b.loHz}–${b.hiHz} Hz`;
+        const r = individualRule(c, b);
+        return `${b.name} individual: centred on each subject's fitted peak in ${r.searchHz[0]}–${r.searchHz[1]} Hz (median over the channels), ±${r.halfWidthHz} Hz; the fixed ${b.loHz}–${b.hiHz} Hz where none`;
+      })
+      .join(', ');
     const description = {
       'band-power': `log10 band power (${c.bandMethod === 'mean' ? 'mean density, µV²/Hz' : 'trapezoid integral, µV²'}) in ${names}`,
       'relative-band-power': `log10 relative band power: integral over the band divided by the integral over ${rlo}–${rhi} Hz (trapezoid), in ${names}`,
@@ -141,10 +149,10 @@ export function highestPeak(peaks: readonly PeakRow[], b: Band): PeakRow | undef
   return best;
 }
 
-/** Whether the measure needs aperiodic fits or peaks from the database. */
-export function measureNeeds(measure: MeasureName): { aperiodic: boolean; peaks: boolean } {
+/** Whether the measure needs aperiodic fits or peaks from the database (individual bands need the peaks). */
+export function measureNeeds(measure: MeasureName, bandDefinition: BandDefinition = 'fixed'): { aperiodic: boolean; peaks: boolean } {
   return {
     aperiodic: measure === 'residual' || measure === 'offset' || measure === 'exponent' || measure === 'knee',
-    peaks: measure === 'peak-height' || measure === 'peak-center' || measure === 'peak-width',
+    peaks: measure === 'peak-height' || measure === 'peak-center' || measure === 'peak-width' || (bandDefinition === 'individual' && INDIVIDUAL_BAND_MEASURES.includes(measure)),
   };
 }

@@ -3,7 +3,9 @@
  * (docs/design.md: the contrast, the n per group, the exclusions, and the clusters with sign, mass, p,
  * frequency range and channels; signs are groups[1] minus groups[0]).
  */
-import type { Contrast } from './spec.ts';
+import { INDIVIDUAL_BAND_MEASURES, type Contrast } from './spec.ts';
+import type { IndividualCentre } from './individual-bands.ts';
+import { ContrastDataError } from './assemble.ts';
 import type { ContrastData, Exclusion } from './data.ts';
 import { assembleContrast, type AssembledContrast, type Participation } from './assemble.ts';
 import {
@@ -37,6 +39,8 @@ export interface CompareResult {
   valuesPerPoint: PointValues[] | null;
   /** points left out for too few values, in words (empty when none) */
   notes: string[];
+  /** individual bands: each subject's centre and edges (absent for fixed bands) */
+  individualCentres?: IndividualCentre[];
 }
 
 export interface PointValues {
@@ -69,7 +73,15 @@ export interface PreparedCompare {
 }
 
 export function prepareCompare(c: Contrast, data: ContrastData): PreparedCompare {
-  return prepareAssembled(c, assembleContrast(c, data));
+  return prepareAssembled(c, assembleContrast(checkBandDefinition(c), data));
+}
+
+/** Individual bands apply to band-power measures (and the band check); any other measure is refused, not silently run on fixed bands. */
+export function checkBandDefinition(c: Contrast): Contrast {
+  if (c.bandDefinition === 'individual' && !INDIVIDUAL_BAND_MEASURES.includes(c.measure)) {
+    throw new ContrastDataError(`individual bands apply to the measures ${INDIVIDUAL_BAND_MEASURES.join(' and ')} (and the band check), not to ${c.measure}`);
+  }
+  return c;
 }
 
 /** prepareCompare from the assembled contrast (a thread given the assembly, not the rows, prepares from here). */
@@ -124,6 +136,7 @@ export function finishCompare(p: PreparedCompare, nulls: NullMaxima): CompareRes
     clusters: statistics.clusters.map((k) => ({ sign: k.sign, mass: k.mass, size: k.size, p: k.p, fminHz: k.fminHz, fmaxHz: k.fmaxHz, channels: k.channels })),
     statistics,
     ...pointValues(a, statistics),
+    ...(c.bandDefinition === 'individual' ? { individualCentres: a.individualCentres } : {}),
   };
 }
 

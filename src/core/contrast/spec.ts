@@ -31,6 +31,17 @@ export type MeasureName = (typeof MEASURES)[number];
 
 export const REFERENCES = ['recorded', 'linked-mastoids', 'contralateral-mastoid', 'average', 'bipolar'] as const;
 
+/** Spectral estimators stored at ingest (docs/design.md, spectra.estimator). */
+export const ESTIMATORS = ['welch', 'multitaper'] as const;
+export type EstimatorName = (typeof ESTIMATORS)[number];
+
+/** How band edges are set: fixed as given, or centred on each subject's fitted peak (individual-bands.ts). */
+export const BAND_DEFINITIONS = ['fixed', 'individual'] as const;
+export type BandDefinition = (typeof BAND_DEFINITIONS)[number];
+
+/** Measures whose bands can be individual (the band check too). */
+export const INDIVIDUAL_BAND_MEASURES: readonly MeasureName[] = ['band-power', 'relative-band-power'];
+
 export const contrastSchema = z
   .object({
     design: z.enum(['groups', 'paired', 'covariate']),
@@ -47,6 +58,8 @@ export const contrastSchema = z
     stage: stage.default('N2'),
     reference: z.enum(REFERENCES).default('recorded'),
     averaging: z.enum(['mean', 'median']).default('mean'),
+    /** the spectra's estimator: Welch (default) or multitaper, as stored at ingest */
+    estimator: z.enum(ESTIMATORS).default('welch'),
     /** 'all' or a list of channel names */
     channels: z.union([z.literal('all'), z.array(z.string()).min(1)]).default('all'),
     /** average the measure over the chosen channels (frequency-only clusters) */
@@ -59,6 +72,12 @@ export const contrastSchema = z
     /** bands of band-power measures and the band of peak measures */
     bands: z.array(band).optional(),
     bandMethod: z.enum(['mean', 'integral']).default('mean'),
+    /** band edges fixed as given, or individual: centred on each subject's fitted peak (band-power measures and the band check) */
+    bandDefinition: z.enum(BAND_DEFINITIONS).default('fixed'),
+    /** individual bands: where each subject's peak is looked for, Hz (default: the band's own edges) */
+    peakSearchHz: z.tuple([hz, hz]).optional(),
+    /** individual bands: half the band's width around the subject's peak, Hz (default: half the band's width) */
+    halfWidthHz: z.number().finite().positive().optional(),
     /** aperiodic estimate the aperiodic and residual measures use ('fit' or 'irasa') */
     aperiodicMethod: z.enum(['fit', 'irasa']).default('fit'),
     statistic: z.enum(['welch-t', 'student-t', 'paired-t', 'pearson', 'spearman', 'linear-model-t']).optional(),
@@ -81,6 +100,8 @@ export const contrastSchema = z
     if (c.design !== 'groups' && c.groups) ctx.addIssue({ code: 'custom', path: ['groups'], message: `"groups" is used by the groups design only (${others}; leave subjects out with exclusions)` });
     for (const k of ['stages', 'sessions'] as const) if (c.design !== 'paired' && c[k]) ctx.addIssue({ code: 'custom', path: [k], message: `"${k}" is used by the paired design only` });
     if (c.design !== 'covariate' && c.covariate) ctx.addIssue({ code: 'custom', path: ['covariate'], message: '"covariate" is used by the covariate design only (nuisance covariates go in "nuisance")' });
+    if (c.peakSearchHz && !(c.peakSearchHz[1] > c.peakSearchHz[0])) ctx.addIssue({ code: 'custom', path: ['peakSearchHz'], message: `the search range's upper edge (${c.peakSearchHz[1]}) must exceed its lower edge (${c.peakSearchHz[0]})` });
+    if (c.peakSearchHz && c.bands && c.bands.length > 1) ctx.addIssue({ code: 'custom', path: ['peakSearchHz'], message: 'one search range serves one band: give one band, or leave peakSearchHz out to search each band within its own edges' });
     if ((c.measure === 'band-power' || c.measure === 'relative-band-power' || c.measure.startsWith('peak-')) && !(c.bands && c.bands.length > 0)) {
       ctx.addIssue({ code: 'custom', path: ['bands'], message: `measure ${c.measure} needs "bands": [{name, loHz, hiHz}, …]` });
     }

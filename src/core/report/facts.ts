@@ -15,6 +15,8 @@ export interface IngestParameterFacts {
   rejection: { maxPeakToPeakUv: number; flatSdUv: number; flatRunS: number; outlierZ: number; broadbandHz: [number, number]; muscleHz: [number, number] };
   minEpochs: number;
   fit: { fitRangeHz: [number, number]; aperiodicForm?: string; maxPeaks?: number; peakWidthHz?: [number, number]; peakMinHeight?: number; peakThresholdSd?: number } | null;
+  /** the multitaper estimate's NW and K, null when the run stored Welch only */
+  multitaper: { nw: number; k: number } | null;
 }
 
 export interface StageEpochCounts {
@@ -94,7 +96,13 @@ export function ingestParameterFacts(p: unknown): IngestParameterFacts {
     rejection: r as unknown as IngestParameterFacts['rejection'],
     minEpochs: o.minEpochs as number,
     fit,
+    multitaper: multitaperFacts(o.multitaper),
   };
+}
+
+function multitaperFacts(v: unknown): IngestParameterFacts['multitaper'] {
+  const m = v as Record<string, unknown> | undefined;
+  return m && isNum(m.nw) && isNum(m.k) ? { nw: m.nw, k: m.k } : null;
 }
 
 /** Counts a ledger's analyses for one database file name (reports are not analyses). */

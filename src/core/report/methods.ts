@@ -12,7 +12,7 @@ import type { Exclusion } from '../contrast/data.ts';
 import type { BandCheckResult } from '../verdict/band-check.ts';
 import type { ScalarTest } from '../verdict/scalar-test.ts';
 import { fmt } from '../verdict/rules.ts';
-import { ingestParameterFacts, type DatabaseFacts, type IngestParameterFacts, type LedgerCounts } from './facts.ts';
+import { ingestParameterFacts, ReportInputError, type DatabaseFacts, type IngestParameterFacts, type LedgerCounts } from './facts.ts';
 import { REFERENCE_LIST, type ReferenceKey } from './references.ts';
 import { referenceKey } from '../montage/labels.ts';
 import { outlierRate } from '../quality/outlier-limit.ts';
@@ -113,8 +113,22 @@ function spectralSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFa
     `For every channel and epoch the power spectral density was estimated by Welch's method (Welch 1967): ${f.segmentS}-s Hann-windowed segments overlapping by ${g3(f.overlap * 100)} %, the mean of each segment removed, one-sided density scaling in µV²/Hz; ` +
     `the frequency resolution is ${g3(res)} Hz and spectra were stored from 0 to ${f.maxFreqHz} Hz${slow}. ` +
     `The epoch spectra of a stage were combined by ${avg}; a stage with fewer than ${f.minEpochs} clean epochs was flagged. ` +
+    estimatorText(f, c, refs) +
     `Spectra were stored for these references: ${refsText}${bipolar}. This analysis used the reference ${REFERENCE_WORDS[c.reference] ?? c.reference} and the ${c.averaging} over epochs of stage ${stagesOf(c).join(' and ')}.` +
     (facts ? ` ${warningText(facts)}` : '')
+  );
+}
+
+/** The multitaper estimate, when the analysis used it (Welch's method is stated above either way: epoch rejection and band powers rest on it). */
+function estimatorText(f: IngestParameterFacts, c: Contrast, refs: Set<ReferenceKey>): string {
+  if (c.estimator !== 'multitaper') return '';
+  if (!f.multitaper) throw new ReportInputError('the result used multitaper spectra, but the ingest parameters hold no multitaper NW and K');
+  refs.add('thomson1982');
+  refs.add('percival1993');
+  const { nw, k } = f.multitaper;
+  return (
+    `This analysis used the multitaper estimate stored beside Welch's (Thomson 1982): on the same segments and frequency grid, each segment's mean removed and its density the equally weighted mean of the eigenspectra of K = ${k} discrete prolate spheroidal (Slepian) tapers with time-half-bandwidth NW = ${g3(nw)} (computed as eigenvectors of the tridiagonal matrix of Percival & Walden 1993), ` +
+    `a frequency resolution 2W = 2NW/T = ${g3((2 * nw) / f.segmentS)} Hz; segments and epochs were averaged as for Welch's estimate${c.averaging === 'median' ? ', the median corrected with the multitaper estimate\'s equivalent degrees of freedom (2K per segment, less for overlapping segments)' : ''}; epoch rejection used the Welch spectra. `
   );
 }
 
@@ -288,6 +302,9 @@ function bandStatistics(r: BandCheckResult, refs: Set<ReferenceKey>): { text: st
   const fw = r.frequencyWise;
   const text =
     `The band check asked whether an effect in ${r.band.name} (${r.band.loHz}–${r.band.hiHz} Hz), in the average over ${r.channels.length === 1 ? 'channel' : 'channels'} ${r.channels.join(', ')}, is band-specific or a broadband aperiodic change. ` +
+    (r.individual
+      ? `The band was individual: centred on each subject's own fitted peak in ${hz(r.individual.searchHz)} (the median over the channels of each channel's highest fitted peak there) with a half-width of ${g3(r.individual.halfWidthHz)} Hz, the flanks following it; a subject without a fitted peak there kept the fixed band. ${r.individual.note} `
+      : '') +
     `Each of the following was computed per subject and tested on its own with ${STATISTIC_WORDS[t.raw.statistic] ?? t.raw.statistic} and a two-tailed permutation test of |t| (${permutationText(t.raw, relabellingWord(c))}; p = (1 + number of permutations with |t*| ≥ |t|)/(1 + permutations), Phipson & Smyth 2010): ` +
     `log10 band power (${c.bandMethod === 'mean' ? 'mean density' : 'trapezoid integral'}); the aperiodic offset and exponent; the residual averaged over the band's bins (periodic power); the height of the highest fitted peak in the band (0 where none); the centre frequency and the full width at half maximum of that peak (Hz; mean over the channels with a peak in the band; subjects without one on any channel left out of these two tests only${r.peakCenter ? `: ${Object.entries(r.peakCenter.withoutPeak).map(([k, v]) => `${k} ${v}`).join(', ')}` : ''}); the aperiodic component averaged over the band; ` +
     `log10 power in flanks of ${r.flanks.widthHz} Hz just below (${L ? `${L.loHz}–${L.hiHz} Hz` : 'none'}) and above (${U ? `${U.loHz}–${U.hiHz} Hz` : 'none'}) the band${r.flanks.note ? ` (${r.flanks.note})` : ''} and their difference (upper minus lower); and log10 relative band power (band integral over the integral across ${hz(r.normalisation.denominatorHz)}). ` +

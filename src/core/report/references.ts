@@ -16,6 +16,8 @@ export const REFERENCE_LIST = {
   fisher1921: 'Fisher, R. A. (1921). On the "probable error" of a coefficient of correlation deduced from a small sample. Metron, 1, 3–32.',
   freedman1983: 'Freedman, D., & Lane, D. (1983). A nonstochastic interpretation of reported significance levels. Journal of Business & Economic Statistics, 1(4), 292–298.',
   winkler2014: 'Winkler, A. M., et al. (2014). Permutation inference for the general linear model. NeuroImage, 92, 381–397.',
+  thomson1982: 'Thomson, D. J. (1982). Spectrum estimation and harmonic analysis. Proceedings of the IEEE, 70(9), 1055–1096.',
+  percival1993: 'Percival, D. B., & Walden, A. T. (1993). Spectral Analysis for Physical Applications: Multitaper and Conventional Univariate Techniques. Cambridge University Press.',
   simonsohn2020: 'Simonsohn, U., Simmons, J. P., & Nelson, L. D. (2020). Specification curve analysis. Nature Human Behaviour, 4, 1208–1214.',
 } as const;
 

@@ -52,6 +52,42 @@ export function welchDegreesOfFreedom(nSegments: number, window: ArrayLike<numbe
   return (2 * K) / (1 + 2 * s);
 }
 
+/**
+ * Equivalent degrees of freedom of the mean of S segment estimates, each the equally weighted
+ * mean of K eigenspectra with unit-energy tapers v_0 … v_{K−1} (multitaper.ts; K = 1 and a
+ * normalised window is Welch's case above):
+ *
+ *   ν = 2KS / (1 + 2 Σ_{m=1}^{S−1} (1 − m/S) ρ(m)),  ρ(m) = (1/K) Σ_j Σ_k (Σ_n v_j[n + m·step] v_k[n])²
+ *
+ * One segment has 2K degrees of freedom (K independent eigenspectra of 2 each for Gaussian data
+ * away from DC and Nyquist; Percival & Walden 1993, ch. 7, from memory); ρ(m) is the correlation
+ * of two segments m steps apart, Cov(|J_j|², |J_k|²) = |E J_j J_k*|² summed over the taper pairs
+ * (the same argument as the Welch formula above). Checked numerically in the tests: the variance
+ * of white-noise epoch estimates equals 2/ν.
+ */
+export function taperDegreesOfFreedom(nSegments: number, tapers: readonly ArrayLike<number>[], step: number): number {
+  const S = nSegments;
+  const K = tapers.length;
+  if (!(S >= 1) || !Number.isInteger(S)) throw new Error(`invalid segment count: ${S}`);
+  if (K < 1) throw new Error('no tapers');
+  const n = tapers[0].length;
+  let s = 0;
+  for (let m = 1; m < S; m++) {
+    const shift = m * step;
+    if (shift >= n) break;
+    let rho = 0;
+    for (let j = 0; j < K; j++) {
+      for (let k = 0; k < K; k++) {
+        let c = 0;
+        for (let i = 0; i + shift < n; i++) c += tapers[j][i + shift] * tapers[k][i];
+        rho += c * c;
+      }
+    }
+    s += (1 - m / S) * (rho / K);
+  }
+  return (2 * K * S) / (1 + 2 * s);
+}
+
 /** median(χ²_ν)/ν by Wilson–Hilferty (1931): (1 − 2/(9ν))³. */
 export function chiSquareMedianRatio(nu: number): number {
   if (!(nu > 0)) throw new Error(`invalid degrees of freedom: ${nu}`);

@@ -10,7 +10,9 @@ import type { ContrastData, Exclusion } from '../contrast/data.ts';
 import { compare, RESEARCH_NOTE, type CompareCluster } from '../contrast/run.ts';
 import { bandBins, checkBand, type Band } from '../spectrum/bands.ts';
 import type { PermutationTestResult } from '../stats/index.ts';
-import { assembleAveraged, combine, reduce, rowMean, runScalarTest, type ScalarTest, type ScalarValues } from './scalar-test.ts';
+import { assembleAveraged, bandMean, combine, reduce, rowMean, runScalarTest, type ScalarTest, type ScalarValues } from './scalar-test.ts';
+import { individualBands, individualRule, type IndividualCentre } from '../contrast/individual-bands.ts';
+import type { BandResolver } from '../contrast/assemble.ts';
 import { decideVerdict, describeTest, type DirectionWords, type FamilyStep, type PeriodicKind, type Verdict } from './rules.ts';
 import { bandCheckFigure, type BandCheckFigure } from './figure.ts';
 import { peakValues, type PeakCenterSummary } from './peak-center.ts';
@@ -102,6 +104,8 @@ export interface BandCheckResult {
   n: Record<string, number>;
   exclusions: Exclusion[];
   figure: BandCheckFigure;
+  /** individual band: the rule and each subject's centre and edges (null for a fixed band) */
+  individual: { searchHz: [number, number]; halfWidthHz: number; centres: IndividualCentre[]; note: string } | null;
 }
 
 function flankBand(name: string, lo: number, hi: number, axis: ContrastData['spectra']): Band | null {
@@ -175,40 +179,59 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
   const permutations = options.permutations ?? c.permutations;
   const so = { statistic: c.statistic, permutations, seed: c.seed };
 
-  const bandText = `${band.name} ${band.loHz}–${band.hiHz} Hz`;
-  const peaks = peakValues(c, data, band, c.channels === 'all' ? 'the channels' : c.channels.join(', '));
+  const individual = c.bandDefinition === 'individual' ? individualSetup(c, data, band, widthHz, options.fitRangeHz, flanks) : null;
+  const bandsFor = individual?.resolve;
+  const bandText = individual ? `${band.name} (individual: ${individual.words})` : `${band.name} ${band.loHz}–${band.hiHz} Hz`;
+  // the peak tests look for the peak where the individual rule does: in the search range
+  const peakBand = individual ? { name: band.name, loHz: individual.rule.searchHz[0], hiHz: individual.rule.searchHz[1] } : band;
+  const peaks = peakValues({ ...c, bandDefinition: 'fixed' }, data, peakBand, c.channels === 'all' ? 'the channels' : c.channels.join(', '));
   const power = `log10 band power (${c.bandMethod === 'mean' ? 'mean density, µV²/Hz' : 'trapezoid integral, µV²'})`;
   const first = (r: Float64Array) => r[0];
+  // spectral measures over the band: a fixed band's bins, or each subject's own band inside the span of all of them
+  const span = individual?.span ?? band;
+  const inBand = individual
+    ? (r: Float64Array, freqs: readonly number[], subject: string, condition: 0 | 1) => { const b = individual.bandOf(subject, condition); return bandMean(r, freqs, b.loHz, b.hiHz); }
+    : (r: Float64Array) => rowMean(r);
+  const residual = () => assembleAveraged(c, data, { measure: 'residual', fminHz: span.loHz, fmaxHz: span.hiHz });
   const steps: { name: keyof BandCheckTests; values: () => ScalarValues | null }[] = [
-    { name: 'raw', values: () => reduce(`${power} in ${bandText}`, assembleAveraged(c, data, { measure: 'band-power', bands: [band] }), first) },
+    { name: 'raw', values: () => reduce(`${power} in ${bandText}`, assembleAveraged(c, data, { measure: 'band-power', bands: [band] }, bandsFor), first) },
     { name: 'offset', values: () => reduce(`aperiodic offset (log10 µV²/Hz), fit ${fitLo}–${fitHi} Hz`, assembleAveraged(c, data, { measure: 'offset' }), first) },
     { name: 'exponent', values: () => reduce(`aperiodic exponent, fit ${fitLo}–${fitHi} Hz`, assembleAveraged(c, data, { measure: 'exponent' }), first) },
-    { name: 'periodic', values: () => reduce(`residual (log10 PSD minus the aperiodic fit) averaged over ${bandText}`, assembleAveraged(c, data, { measure: 'residual', fminHz: band.loHz, fmaxHz: band.hiHz }), rowMean) },
-    { name: 'peakHeight', values: () => reduce(`height of the highest fitted peak in ${bandText} (log10 above the aperiodic fit, 0 where none)`, assembleAveraged(c, data, { measure: 'peak-height', bands: [band] }), first) },
+    {
+      name: 'periodic',
+      values: () => {
+        const a = residual();
+        return reduce(`residual (log10 PSD minus the aperiodic fit) averaged over ${bandText}`, a, (r, subject, cond) => inBand(r, a.input.freqsHz, subject, cond));
+      },
+    },
+    { name: 'peakHeight', values: () => reduce(`height of the highest fitted peak in ${peakBand.name} ${peakBand.loHz}–${peakBand.hiHz} Hz (log10 above the aperiodic fit, 0 where none)`, assembleAveraged(c, data, { measure: 'peak-height', bands: [peakBand], bandDefinition: 'fixed' }), first) },
     { name: 'peakCenter', values: () => peaks.center },
     { name: 'peakWidth', values: () => peaks.width },
     {
       name: 'aperiodicInBand',
-      values: () =>
-        combine(
+      values: () => {
+        const parts = [assembleAveraged(c, data, { measure: 'log-psd', fminHz: span.loHz, fmaxHz: span.hiHz }), residual()];
+        const freqs = parts[0].input.freqsHz;
+        return combine(
           `fitted aperiodic component (log10 µV²/Hz) averaged over ${bandText}`,
-          [assembleAveraged(c, data, { measure: 'log-psd', fminHz: band.loHz, fmaxHz: band.hiHz }), assembleAveraged(c, data, { measure: 'residual', fminHz: band.loHz, fmaxHz: band.hiHz })],
+          parts,
           // aperiodic = log10 PSD − residual, bin by bin, then the band mean
-          ([logPsd, residual]) => rowMean(logPsd.map((v, i) => v - residual[i])),
-        ),
+          ([logPsd, res], subject, cond) => inBand(logPsd.map((v, i) => v - res[i]), freqs, subject, cond),
+        );
+      },
     },
-    { name: 'lowerFlank', values: () => (flanks.lower ? reduce(`${power} in the lower flank ${flanks.lower.loHz}–${flanks.lower.hiHz} Hz`, assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.lower] }), first) : null) },
-    { name: 'upperFlank', values: () => (flanks.upper ? reduce(`${power} in the upper flank ${flanks.upper.loHz}–${flanks.upper.hiHz} Hz`, assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.upper] }), first) : null) },
+    { name: 'lowerFlank', values: () => (flanks.lower ? reduce(`${power} in the lower flank ${individual ? 'below each subject\'s band' : `${flanks.lower.loHz}–${flanks.lower.hiHz} Hz`}`, assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.lower] }, bandsFor), first) : null) },
+    { name: 'upperFlank', values: () => (flanks.upper ? reduce(`${power} in the upper flank ${individual ? 'above each subject\'s band' : `${flanks.upper.loHz}–${flanks.upper.hiHz} Hz`}`, assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.upper] }, bandsFor), first) : null) },
     {
       name: 'tilt',
       values: () =>
         flanks.lower && flanks.upper
-          ? reduce(`upper minus lower flank ${power}`, assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.lower, flanks.upper] }), (r) => r[1] - r[0]) // bands are ordered by centre
+          ? reduce(`upper minus lower flank ${power}`, assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.lower, flanks.upper] }, bandsFor), (r) => r[1] - r[0]) // bands are ordered by centre
           : null,
     },
     {
       name: 'relative',
-      values: () => reduce(`log10 relative band power in ${bandText}: band integral / integral over ${c.relativeRangeHz[0]}–${c.relativeRangeHz[1]} Hz`, assembleAveraged(c, data, { measure: 'relative-band-power', bands: [band] }), first),
+      values: () => reduce(`log10 relative band power in ${bandText}: band integral / integral over ${c.relativeRangeHz[0]}–${c.relativeRangeHz[1]} Hz`, assembleAveraged(c, data, { measure: 'relative-band-power', bands: [band] }, bandsFor), first),
     },
   ];
   const total = steps.length + 1;
@@ -223,7 +246,7 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
   const t = tests as unknown as BandCheckTests;
 
   // frequency-wise cluster test over the contrast's whole range (channel average, log10 PSD)
-  const fw = compare({ ...c, measure: 'log-psd', channelAverage: true, permutations }, data);
+  const fw = compare({ ...c, measure: 'log-psd', channelAverage: true, permutations, bandDefinition: 'fixed' }, data);
   options.onProgress?.('frequency-wise', total, total);
   const sig = fw.clusters.filter((k) => k.p < alpha && k.fmaxHz >= band.loHz && k.fminHz <= band.hiHz);
   const frequencyWise: FrequencyWise = {
@@ -283,7 +306,41 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
     n: t.periodic.n,
     exclusions,
     figure,
+    individual: individual ? { searchHz: individual.rule.searchHz, halfWidthHz: individual.rule.halfWidthHz, centres: individual.centres, note: individual.note } : null,
   };
+}
+
+/**
+ * An individual band in the band check: each subject's band (individual-bands.ts, cut to the fit
+ * range) per condition; the flanks follow it (same width, just outside it, inside the fit range;
+ * the fixed flank where a subject's has no room); the span of every subject's band, over which
+ * the spectral measures are read before each subject's own bins are averaged.
+ */
+function individualSetup(c: Contrast, data: ContrastData, band: Band, widthHz: number, fitRangeHz: [number, number], fixedFlanks: { lower: Band | null; upper: Band | null }) {
+  const rule = individualRule(c, band);
+  const found = individualBands(c, data, band);
+  const axis = data.spectra;
+  const cut = (b: Band): Band => ({ name: b.name, loHz: Math.max(b.loHz, fitRangeHz[0]), hiHz: Math.min(b.hiHz, fitRangeHz[1]) });
+  const bandOf = (subject: string, condition: number): Band => cut(found.bands.get(subject)?.[condition] ?? band);
+  const flanksOf = new Map<string, ReturnType<typeof bandFlanks>>();
+  const resolve: BandResolver = (subject, condition, b) => {
+    if (b === band) return bandOf(subject, condition);
+    if (b !== fixedFlanks.lower && b !== fixedFlanks.upper) return b;
+    const key = `${subject}\u0000${condition}`;
+    let f = flanksOf.get(key);
+    if (!f) flanksOf.set(key, (f = bandFlanks(bandOf(subject, condition), widthHz, fitRangeHz, axis)));
+    return (b === fixedFlanks.lower ? f.lower : f.upper) ?? b;
+  };
+  let lo = band.loHz;
+  let hi = band.hiHz;
+  for (const per of found.bands.values()) for (const b of per) {
+    lo = Math.min(lo, cut(b).loHz);
+    hi = Math.max(hi, cut(b).hiHz);
+  }
+  const without = found.centres.filter((x) => x.centerHz === null).length;
+  const words = `centred on each subject's fitted peak in ${rule.searchHz[0]}–${rule.searchHz[1]} Hz (median over the channels) ±${rule.halfWidthHz} Hz; the fixed ${band.loHz}–${band.hiHz} Hz where none`;
+  const note = `${found.centres.length - without} of ${found.centres.length} subject-conditions have a fitted peak in ${rule.searchHz[0]}–${rule.searchHz[1]} Hz${without > 0 ? `; ${without} use the fixed band` : ''}. The peak tests look for the peak in the search range.`;
+  return { rule, centres: found.centres, resolve, bandOf, span: { name: band.name, loHz: lo, hiHz: hi }, words, note };
 }
 
 /** The channel names behind the pseudo-channel "mean(C3,C4,…)". */

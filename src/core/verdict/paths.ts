@@ -6,10 +6,13 @@
  * marked and their share stated.
  *
  * Choices that can vary: measure (absolute log10 band power; log10 relative band power with one
- * or more denominator ranges; residual above the aperiodic fit averaged over the band), reference
- * and epoch averaging (each a separately stored set of spectra), band power summary (mean
- * density or trapezoid integral), aperiodic fit range (only ranges stored in the database) and
- * band edges. A choice that does not apply to a measure is not varied for it, so no path is
+ * or more denominator ranges; residual above the aperiodic fit averaged over the band), reference,
+ * epoch averaging and spectral estimator (Welch or multitaper; each a separately stored set of
+ * spectra), band power summary (mean density or trapezoid integral), aperiodic fit range (only
+ * ranges stored in the database), band edges, and band definition (fixed edges, or individual:
+ * centred on each subject's fitted peak, src/core/contrast/individual-bands.ts; the edge variants
+ * then widen or narrow the half-width by the same amount, the search range stays the given band's
+ * or the contrast's). A choice that does not apply to a measure is not varied for it, so no path is
  * counted twice: the summary applies to absolute power only (relative power is a ratio of
  * integrals — a ratio of mean densities differs by a constant factor, which leaves the effect
  * size unchanged — and the residual is a mean of log values), the fit range to the residual only.
@@ -21,8 +24,9 @@
  *    at every bin of the band, cluster-mass permutation over neighbouring bins as in compare;
  *    the path's p is the smallest cluster p (1 when no cluster forms); its effect is that of the
  *    band mean of the same spectral measure (no summary choice then: log10 of each bin).
- * Only the rows differ by reference, averaging and fit range: the caller passes one data set
- * for each.
+ * Band definition applies to the band-summary test only (the frequency-wise test reads the fixed
+ * band's bins). Only the rows differ by reference, averaging, estimator and fit range: the caller
+ * passes one data set for each, with its fitted peaks when individual bands are asked for.
  *
  * Decision (choices.decisions, default power only): 'power' decides a path on its power measure
  * alone; 'power-and-frequency' also tests the centre of the band's highest fitted peak (the band
@@ -31,11 +35,12 @@
  * power measure's; the centre's effect is reported beside it. A data set without fitted peaks
  * cannot decide on frequency.
  */
-import type { Contrast } from '../contrast/spec.ts';
+import type { BandDefinition, Contrast, EstimatorName } from '../contrast/spec.ts';
 import type { ContrastData } from '../contrast/data.ts';
+import { individualBands } from '../contrast/individual-bands.ts';
 import { checkBand, type Band, type BandMethod } from '../spectrum/bands.ts';
 import { compare } from '../contrast/run.ts';
-import { assembleAveraged, reduce, rowMean, runScalarTest, scalarEffect, type ScalarTest } from './scalar-test.ts';
+import { assembleAveraged, bandMean, reduce, rowMean, runScalarTest, scalarEffect, type ScalarTest } from './scalar-test.ts';
 import { peakValues } from './peak-center.ts';
 
 export type PathMeasure = 'absolute' | 'relative' | 'residual';
@@ -44,10 +49,12 @@ export type PathDecision = 'power' | 'power-and-frequency';
 export const PATH_DECISIONS: readonly PathDecision[] = ['power', 'power-and-frequency'];
 export type Averaging = 'mean' | 'median';
 
-/** Rows of one (reference, averaging) as stored, with the fit range of their aperiodic fits. */
+/** Rows of one (reference, averaging, estimator) as stored, with the fit range of their aperiodic fits. */
 export interface PathDataSet {
   reference: string;
   averaging: Averaging;
+  /** default 'welch' */
+  estimator?: EstimatorName;
   /** aperiodic fit range of data.aperiodic, Hz (null: no fits in this set) */
   fitRangeHz: [number, number] | null;
   data: ContrastData;
@@ -67,6 +74,10 @@ export interface PathChoices {
   bands: Band[];
   /** what each path is decided on (default ['power']) */
   decisions?: PathDecision[];
+  /** spectral estimators (default ['welch']) */
+  estimators?: EstimatorName[];
+  /** band definitions (default ['fixed']); individual needs the data sets' peaks */
+  bandDefinitions?: BandDefinition[];
 }
 
 export interface PathSpec {
@@ -75,9 +86,11 @@ export interface PathSpec {
   denominatorHz: [number, number] | null;
   reference: string;
   averaging: Averaging;
+  estimator: EstimatorName;
   summary: BandMethod | null;
   fitRangeHz: [number, number] | null;
   band: Band;
+  bandDefinition: BandDefinition;
   decision: PathDecision;
   /** the path's measure in words */
   description: string;
@@ -164,6 +177,10 @@ export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summ
   const decisions = choices.decisions ?? ['power'];
   if (decisions.length === 0) throw new PathError('choices.decisions: at least one value is needed');
   for (const d of decisions) if (!PATH_DECISIONS.includes(d)) throw new PathError(`choices.decisions: ${d} is not one of ${PATH_DECISIONS.join(', ')}`);
+  const estimators = choices.estimators ?? ['welch'];
+  if (estimators.length === 0) throw new PathError('choices.estimators: at least one value is needed');
+  const definitions = test === 'band-summary' ? (choices.bandDefinitions ?? ['fixed']) : ['fixed' as const];
+  if (definitions.length === 0) throw new PathError('choices.bandDefinitions: at least one value is needed');
   for (const measure of choices.measures) {
     const denominators: ([number, number] | null)[] = measure === 'relative' ? choices.relativeDenominatorsHz : [null];
     const summaries: (BandMethod | null)[] = measure === 'absolute' && test === 'band-summary' ? choices.summaries : [null];
@@ -173,12 +190,14 @@ export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summ
     if (fitRanges.length === 0) throw new PathError('choices.fitRangesHz: the residual measure needs a fit range');
     for (const reference of choices.references)
       for (const averaging of choices.averagings)
+        for (const estimator of estimators)
         for (const denominatorHz of denominators)
           for (const summary of summaries)
             for (const fitRangeHz of fitRanges)
               for (const band of choices.bands)
+              for (const bandDefinition of definitions)
               for (const decision of decisions) {
-                const edges = `${band.loHz}–${band.hiHz} Hz`;
+                const edges = bandDefinition === 'fixed' ? `${band.loHz}–${band.hiHz} Hz` : `the individual band (fixed ${band.loHz}–${band.hiHz} Hz)`;
                 const description =
                   measure === 'absolute'
                     ? summary ? `log10 band power (${summary === 'mean' ? 'mean density' : 'trapezoid integral'}) ${edges}` : `log10 PSD at each bin of ${edges}`
@@ -186,15 +205,16 @@ export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summ
                       ? test === 'band-summary' ? `log10 relative band power ${edges} / ${denominatorHz![0]}–${denominatorHz![1]} Hz` : `log10 relative PSD (over the ${denominatorHz![0]}–${denominatorHz![1]} Hz integral) at each bin of ${edges}`
                       : `residual ${test === 'band-summary' ? 'averaged over' : 'at each bin of'} ${edges} (fit ${fitRangeHz![0]}–${fitRangeHz![1]} Hz)`;
                 const decided = decision === 'power' ? '' : '; decided on power and the peak centre (Bonferroni ×2)';
-                out.push({ id: out.length + 1, measure, denominatorHz, reference, averaging, summary, fitRangeHz, band, decision, description: `${description}; ${reference}, ${averaging}${decided}` });
+                out.push({ id: out.length + 1, measure, denominatorHz, reference, averaging, estimator, summary, fitRangeHz, band, bandDefinition, decision, description: `${description}; ${reference}, ${averaging}, ${estimator}${decided}` });
               }
   }
   return out;
 }
 
-/** The (reference, averaging) data sets the choices need: the caller loads rows for each. */
-export function pathDataNeeds(choices: PathChoices): { reference: string; averaging: Averaging }[] {
-  return choices.references.flatMap((reference) => choices.averagings.map((averaging) => ({ reference, averaging })));
+/** The (reference, averaging, estimator) data sets the choices need: the caller loads rows for each. */
+export function pathDataNeeds(choices: PathChoices): { reference: string; averaging: Averaging; estimator: EstimatorName }[] {
+  const estimators = choices.estimators ?? ['welch'];
+  return choices.references.flatMap((reference) => choices.averagings.flatMap((averaging) => estimators.map((estimator) => ({ reference, averaging, estimator }))));
 }
 
 export interface PathRunOptions {
@@ -208,8 +228,8 @@ export interface PathRunOptions {
 }
 
 function findSet(sets: readonly PathDataSet[], p: PathSpec): PathDataSet {
-  const candidates = sets.filter((s) => s.reference === p.reference && s.averaging === p.averaging);
-  if (candidates.length === 0) throw new PathError(`no data set for reference ${p.reference}, averaging ${p.averaging} (have: ${sets.map((s) => `${s.reference}/${s.averaging}`).join(', ')})`);
+  const candidates = sets.filter((s) => s.reference === p.reference && s.averaging === p.averaging && (s.estimator ?? 'welch') === p.estimator);
+  if (candidates.length === 0) throw new PathError(`no data set for reference ${p.reference}, averaging ${p.averaging}, estimator ${p.estimator} (have: ${sets.map((s) => `${s.reference}/${s.averaging}/${s.estimator ?? 'welch'}`).join(', ')})`);
   if (p.measure !== 'residual') return candidates[0];
   const hit = candidates.find((s) => sameRange(s.fitRangeHz, p.fitRangeHz));
   if (!hit) {
@@ -219,11 +239,34 @@ function findSet(sets: readonly PathDataSet[], p: PathSpec): PathDataSet {
   return hit;
 }
 
-function pathValues(c: Contrast, p: PathSpec, data: ContrastData) {
-  const base = { ...c, reference: p.reference as Contrast['reference'], averaging: p.averaging };
+/**
+ * The contrast of a path: its reference, averaging, estimator and band definition; an individual
+ * band keeps the search range of the band as given (or the contrast's) across the edge variants,
+ * and the variants widen or narrow its half-width.
+ */
+function pathContrast(c: Contrast, p: PathSpec, given: Band): Contrast {
+  const base: Contrast = { ...c, reference: p.reference as Contrast['reference'], averaging: p.averaging, estimator: p.estimator, bandDefinition: p.bandDefinition };
+  if (p.bandDefinition === 'fixed') return base;
+  const half = (c.halfWidthHz ?? (given.hiHz - given.loHz) / 2) + (p.band.hiHz - p.band.loHz - (given.hiHz - given.loHz)) / 2;
+  return { ...base, peakSearchHz: c.peakSearchHz ?? [given.loHz, given.hiHz], halfWidthHz: Math.max(half, 1e-6) };
+}
+
+function pathValues(c: Contrast, p: PathSpec, data: ContrastData, given: Band) {
+  const base = pathContrast(c, p, given);
   if (p.measure === 'absolute') return reduce(p.description, assembleAveraged(base, data, { measure: 'band-power', bands: [p.band], bandMethod: p.summary! }), (r) => r[0]);
   if (p.measure === 'relative') return reduce(p.description, assembleAveraged(base, data, { measure: 'relative-band-power', bands: [p.band], relativeRangeHz: p.denominatorHz! }), (r) => r[0]);
-  return reduce(p.description, assembleAveraged(base, data, { measure: 'residual', fminHz: p.band.loHz, fmaxHz: p.band.hiHz }), rowMean);
+  if (p.bandDefinition === 'fixed') return reduce(p.description, assembleAveraged(base, data, { measure: 'residual', fminHz: p.band.loHz, fmaxHz: p.band.hiHz }), rowMean);
+  // the residual over each subject's own band: read over the span of all of them, then each subject's bins averaged
+  const own = individualBands(base, data, p.band);
+  let lo = p.band.loHz;
+  let hi = p.band.hiHz;
+  for (const per of own.bands.values()) for (const b of per) [lo, hi] = [Math.min(lo, b.loHz), Math.max(hi, b.hiHz)];
+  if (p.fitRangeHz) [lo, hi] = [Math.max(lo, p.fitRangeHz[0]), Math.min(hi, p.fitRangeHz[1])];
+  const a = assembleAveraged(base, data, { measure: 'residual', fminHz: lo, fmaxHz: hi });
+  return reduce(p.description, a, (r, subject, cond) => {
+    const b = own.bands.get(subject)?.[cond] ?? p.band;
+    return bandMean(r, a.input.freqsHz, b.loHz, b.hiHz);
+  });
 }
 
 /** The frequency-wise contrast of a path: its spectral measure over the band's bins, cluster mass. */
@@ -233,6 +276,8 @@ function spectralContrast(c: Contrast, p: PathSpec, permutations: number): Contr
     ...c,
     reference: p.reference as Contrast['reference'],
     averaging: p.averaging,
+    estimator: p.estimator,
+    bandDefinition: 'fixed',
     measure,
     fminHz: p.band.loHz,
     fmaxHz: p.band.hiHz,
@@ -245,8 +290,8 @@ function spectralContrast(c: Contrast, p: PathSpec, permutations: number): Contr
 
 /**
  * Every choice the data allow: all three measures, relative power over the contrast's denominator
- * and over its analysis range (fminHz–fmaxHz), every stored reference and averaging, both
- * summaries, every stored fit range, band edges ±1 Hz.
+ * and over its analysis range (fminHz–fmaxHz), every stored reference, averaging and estimator,
+ * both summaries, every stored fit range, band edges ±1 Hz, fixed and (with fitted peaks) individual bands.
  */
 export function defaultPathChoices(c: Contrast, band: Band, sets: readonly PathDataSet[]): PathChoices {
   const second: [number, number] = [c.fminHz, c.fmaxHz];
@@ -258,13 +303,17 @@ export function defaultPathChoices(c: Contrast, band: Band, sets: readonly PathD
     summaries: ['mean', 'integral'],
     fitRangesHz: availableFitRanges(sets),
     bands: edgeVariants(band),
+    estimators: [...new Set(sets.map((s) => s.estimator ?? 'welch'))],
+    bandDefinitions: sets.some((s) => s.data.peaks.length > 0) ? ['fixed', 'individual'] : ['fixed'],
   };
 }
 
 /** The peak-centre test of a path (the band check's frequency test on the path's rows and band). */
-function frequencyTest(c: Contrast, p: PathSpec, data: ContrastData, so: { statistic: Contrast['statistic']; permutations: number; seed: number }): PathFrequency {
-  const base = { ...c, reference: p.reference as Contrast['reference'], averaging: p.averaging };
-  const v = peakValues(base, data, p.band, c.channels === 'all' ? 'the channels' : c.channels.join(', '));
+function frequencyTest(c: Contrast, p: PathSpec, data: ContrastData, given: Band, so: { statistic: Contrast['statistic']; permutations: number; seed: number }): PathFrequency {
+  const base = { ...pathContrast(c, p, given), bandDefinition: 'fixed' as const };
+  // an individual band's peak is looked for in its search range
+  const where = p.bandDefinition === 'individual' ? { name: p.band.name, loHz: base.peakSearchHz![0], hiHz: base.peakSearchHz![1] } : p.band;
+  const v = peakValues(base, data, where, c.channels === 'all' ? 'the channels' : c.channels.join(', '));
   const s = v.summary;
   if (!v.center) return { effect: NaN, ciLow: NaN, ciHigh: NaN, differenceHz: null, p: 1, n: s.withPeak, withoutPeak: s.withoutPeak, skipped: s.skipped };
   const t = runScalarTest(v.center, so);
@@ -289,10 +338,11 @@ export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoice
   const results: PathResult[] = specs.map((p, i) => {
     const set = findSet(sets, p);
     const data = set.data;
-    const powerKey = JSON.stringify([p.measure, p.denominatorHz, p.reference, p.averaging, p.summary, p.fitRangeHz, p.band]);
+    const powerKey = JSON.stringify([p.measure, p.denominatorHz, p.reference, p.averaging, p.estimator, p.summary, p.fitRangeHz, p.band, p.bandDefinition]);
     let t = powerTests.get(powerKey);
     if (!t) {
-      if (test === 'band-summary') t = runScalarTest(pathValues(contrastBase, p, data), so);
+      if (p.bandDefinition === 'individual' && data.peaks.length === 0) throw new PathError(`no fitted peaks in the data set for reference ${p.reference}, averaging ${p.averaging}, estimator ${p.estimator}: individual bands need the stored peaks`);
+      if (test === 'band-summary') t = runScalarTest(pathValues(contrastBase, p, data, band), so);
       else {
         const fc = spectralContrast(contrastBase, p, permutations);
         const clusters = compare(fc, data).clusters;
@@ -306,8 +356,8 @@ export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoice
       if (data.peaks.length === 0) throw new PathError(`no fitted peaks in the data set for reference ${p.reference}, averaging ${p.averaging}: a path decided on frequency needs the stored peaks`);
       const byBand = frequencyTests.get(set) ?? new Map<string, PathFrequency>();
       frequencyTests.set(set, byBand);
-      const bandKey = `${p.band.loHz}-${p.band.hiHz}`;
-      frequency = byBand.get(bandKey) ?? frequencyTest(contrastBase, p, data, so);
+      const bandKey = `${p.band.loHz}-${p.band.hiHz}-${p.bandDefinition}`;
+      frequency = byBand.get(bandKey) ?? frequencyTest(contrastBase, p, data, band, so);
       byBand.set(bandKey, frequency);
     }
     // Bonferroni over the two tests of a path decided on power and frequency

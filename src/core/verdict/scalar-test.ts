@@ -14,7 +14,7 @@
  */
 import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData, Exclusion } from '../contrast/data.ts';
-import { assembleContrast, type AssembledContrast, type Participation } from '../contrast/assemble.ts';
+import { assembleContrast, type AssembledContrast, type BandResolver, type Participation } from '../contrast/assemble.ts';
 import { preparePermutationTest, runPermutationTest, type PermutationTestInput, type Design, type ProgressCallback, type StatisticName } from '../stats/index.ts';
 
 /** Two-tailed cluster-forming p that makes the threshold |t| ≈ 1e-9: every non-zero t is its own cluster. */
@@ -61,17 +61,18 @@ export interface ScalarValues {
   rows: number[];
 }
 
-/** Assembles the contrast with a channel average over its channels (frequency-only points). */
-export function assembleAveraged(c: Contrast, data: ContrastData, overrides: Partial<Contrast>): AssembledContrast {
-  return assembleContrast({ ...c, ...overrides, channelAverage: true }, data);
+/** Assembles the contrast with a channel average over its channels (frequency-only points); bandsFor as assembleContrast's. */
+export function assembleAveraged(c: Contrast, data: ContrastData, overrides: Partial<Contrast>, bandsFor?: BandResolver): AssembledContrast {
+  return assembleContrast({ ...c, ...overrides, channelAverage: true }, data, bandsFor);
 }
 
 /**
  * Combines assembled contrasts of the same design row by row into one value per subject:
  * f(rowOfFirst, rowOfSecond, …) over the subjects all of them kept. Each row is the
- * channel-averaged measure at the contrast's points.
+ * channel-averaged measure at the contrast's points; f is also told the subject and the
+ * condition (0, or 1 for a paired design's second), for values over a subject's own band.
  */
-export function combine(measure: string, parts: AssembledContrast[], f: (rows: Float64Array[]) => number): ScalarValues {
+export function combine(measure: string, parts: AssembledContrast[], f: (rows: Float64Array[], subject: string, condition: 0 | 1) => number): ScalarValues {
   const index = parts.map((a) => new Map(a.subjects.map((s, i) => [s.subject, i])));
   const first = parts[0];
   const keptRows: number[] = [];
@@ -94,15 +95,28 @@ export function combine(measure: string, parts: AssembledContrast[], f: (rows: F
   };
   subjects.forEach((s, k) => {
     const rows = parts.map((_, j) => (j === 0 ? keptRows[k] : index[j].get(s.subject)!));
-    values[k] = f(parts.map((a, j) => pick(a, rows[j], 'data')));
-    if (second) second[k] = f(parts.map((a, j) => pick(a, rows[j], 'second')));
+    values[k] = f(parts.map((a, j) => pick(a, rows[j], 'data')), s.subject, 0);
+    if (second) second[k] = f(parts.map((a, j) => pick(a, rows[j], 'second')), s.subject, 1);
   });
   return { measure, subjects, excluded, values, second, design: first.input.design, rows: keptRows };
 }
 
-/** One assembled contrast reduced to one value per subject: f(row). */
-export function reduce(measure: string, a: AssembledContrast, f: (row: Float64Array) => number): ScalarValues {
-  return combine(measure, [a], (rows) => f(rows[0]));
+/** One assembled contrast reduced to one value per subject: f(row, subject, condition). */
+export function reduce(measure: string, a: AssembledContrast, f: (row: Float64Array, subject: string, condition: 0 | 1) => number): ScalarValues {
+  return combine(measure, [a], (rows, subject, condition) => f(rows[0], subject, condition));
+}
+
+/** Mean of the row's points whose frequency lies in [loHz, hiHz] (a spectral measure over a subject's own band); NaN when none does. */
+export function bandMean(row: Float64Array, freqsHz: readonly number[], loHz: number, hiHz: number): number {
+  let s = 0;
+  let n = 0;
+  for (let i = 0; i < row.length; i++) {
+    if (freqsHz[i] >= loHz - 1e-9 && freqsHz[i] <= hiHz + 1e-9) {
+      s += row[i];
+      n++;
+    }
+  }
+  return n > 0 ? s / n : NaN;
 }
 
 /** Mean of a row (e.g. the residual over the band's bins). */

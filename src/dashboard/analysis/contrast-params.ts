@@ -6,7 +6,7 @@ import { bandText, parseBandText } from './band-text.ts';
 
 const LIST_KEYS = ['groups', 'stages', 'sessions', 'nuisance'] as const;
 const NUMBER_KEYS = ['fminHz', 'fmaxHz', 'clusterP', 'permutations', 'seed'] as const;
-const TEXT_KEYS = ['design', 'groupColumn', 'covariate', 'session', 'stage', 'reference', 'averaging', 'measure', 'statistic', 'correction', 'bandMethod', 'aperiodicMethod'] as const;
+const TEXT_KEYS = ['design', 'groupColumn', 'covariate', 'session', 'stage', 'reference', 'averaging', 'measure', 'statistic', 'correction', 'bandMethod', 'aperiodicMethod', 'estimator', 'bandDefinition'] as const;
 
 /** The contrast JSON written by a hash's parameters (not yet validated). */
 export function contrastJsonFromParams(params: Readonly<Record<string, string>>): ContrastJson {
@@ -22,6 +22,9 @@ export function contrastJsonFromParams(params: Readonly<Record<string, string>>)
   if (params.channels !== undefined) out.channels = params.channels === 'all' ? 'all' : params.channels.split(',').filter((c) => c !== '');
   if (params.channelAverage !== undefined) out.channelAverage = params.channelAverage === 'true';
   if (params.relativeRangeHz !== undefined) out.relativeRangeHz = params.relativeRangeHz.split('-').map(Number);
+  // individual bands: optional, written only when given
+  if (params.peakSearchHz) out.peakSearchHz = params.peakSearchHz.split('-').map(Number);
+  if (params.halfWidthHz) out.halfWidthHz = Number(params.halfWidthHz);
   if (params.bands !== undefined) {
     out.bands = params.bands.split(',').map((b) => parseBandText(b));
   }
@@ -55,6 +58,8 @@ export function paramsFromContrast(c: Contrast): Record<string, string> {
   out.channels = c.channels === 'all' ? 'all' : c.channels.join(',');
   out.channelAverage = String(c.channelAverage);
   out.relativeRangeHz = c.relativeRangeHz.join('-');
+  if (c.peakSearchHz) out.peakSearchHz = c.peakSearchHz.join('-');
+  if (c.halfWidthHz !== undefined) out.halfWidthHz = String(c.halfWidthHz);
   if (c.bands) out.bands = c.bands.map(bandText).join(',');
   // as JSON text (the address escapes it); empty when none, so a run without exclusions clears them
   out.exclusions = c.exclusions.length > 0 ? JSON.stringify(c.exclusions) : '';

@@ -7,6 +7,7 @@ import type { Row, SqlClient } from '../../../queries/client.ts';
 import { channelList, epochBandPower, qualityRows, recordingEpochs, recordingSubjects, type EpochRow, type QualityRecord } from '../../../queries/quality.ts';
 import type { CohortSchema } from '../../../queries/schema.ts';
 import { channelSpectra } from '../../../queries/spectra.ts';
+import { storedEstimator } from '../../../queries/estimator.ts';
 import { spectrumQuartiles, type SpectrumQuartiles } from './cohort-band.ts';
 
 /** Column of the grid for metrics that are not per channel. */
@@ -132,7 +133,8 @@ export async function loadCellDetail(
   sel: { recordingId: string; subject: string; channel: string; stage: string; reference: string; averaging: string },
 ): Promise<CellDetail> {
   const isChannel = sel.channel !== RECORDING_COLUMN;
-  const all = isChannel ? await channelSpectra(db, sel) : null;
+  // the quality screen reads Welch spectra, as its metrics were computed on them
+  const all = isChannel ? await channelSpectra(db, { ...sel, estimator: storedEstimator(schema, 'welch') }) : null;
   const i = all ? all.recordingIds.indexOf(sel.recordingId) : -1;
   const spectrum = all && i >= 0 ? all.power.slice(i * all.nBins, (i + 1) * all.nBins) : null;
   const cohort = all && all.recordingIds.length > 0 ? spectrumQuartiles(all.power, all.nBins, all.freqStartHz, all.freqStepHz) : null;

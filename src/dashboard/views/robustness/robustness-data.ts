@@ -12,9 +12,11 @@ export function pathChoiceValues(p: PathResult): { choice: string; value: string
     { choice: 'measure', value: p.measure === 'absolute' ? 'absolute log10 power' : p.measure === 'relative' ? `relative to ${hz(p.denominatorHz!)}` : 'residual' },
     { choice: 'reference', value: p.reference },
     { choice: 'averaging', value: `${p.averaging} over epochs` },
+    { choice: 'estimator', value: p.estimator === 'welch' ? 'Welch' : 'multitaper' },
     { choice: 'summary', value: p.summary === null ? null : p.summary === 'mean' ? 'mean density' : 'integral' },
     { choice: 'fit range', value: p.fitRangeHz === null ? null : `fit ${hz(p.fitRangeHz)}` },
     { choice: 'band edges', value: `band ${hz([p.band.loHz, p.band.hiHz])}` },
+    { choice: 'band definition', value: p.bandDefinition === 'fixed' ? 'fixed band' : 'individual band' },
     { choice: 'decision', value: p.decision === 'power-and-frequency' ? 'decided on power and peak centre' : 'decided on power' },
   ];
 }

@@ -2,7 +2,7 @@
 // varied, each a list of the values ticked ('none' for an empty list), what each path is decided
 // on, and the way each path is tested. An absent key means its default: every value the database
 // stores (defaultPathChoices); decided on power only.
-import type { Contrast } from '../../../core/contrast/spec.ts';
+import { BAND_DEFINITIONS, type BandDefinition, type Contrast, type EstimatorName } from '../../../core/contrast/spec.ts';
 import type { Band, BandMethod } from '../../../core/spectrum/bands.ts';
 import { edgeVariants, PATH_DECISIONS, type PathChoices, type PathDataSet, type PathDecision, type PathMeasure, type PathTest } from '../../../core/verdict/index.ts';
 
@@ -16,6 +16,8 @@ export const PATH_TESTS: readonly PathTest[] = ['band-summary', 'frequency-wise'
 export interface StoredChoices {
   references: string[];
   averagings: string[];
+  /** spectral estimators stored (Welch first) */
+  estimators: EstimatorName[];
   fitRangesHz: [number, number][];
 }
 
@@ -71,6 +73,9 @@ export function pathChoicesFromParams(params: Readonly<Record<string, string>>, 
       fitRangesHz,
       bands: params.edges === '0' ? [{ ...band }] : edgeVariants(band),
       decisions: pick<PathDecision>(list(params, 'decisions'), PATH_DECISIONS, ['power'], 'decisions'),
+      estimators: pick(list(params, 'estimators'), stored.estimators, stored.estimators, 'estimators'),
+      // individual bands need the fitted peaks, stored with the fits
+      bandDefinitions: pick<BandDefinition>(list(params, 'definitions'), BAND_DEFINITIONS, stored.fitRangesHz.length > 0 ? BAND_DEFINITIONS : ['fixed'], 'definitions'),
     },
     test,
   };
@@ -95,6 +100,8 @@ export function paramsFromChoices(choices: PathChoices, test: PathTest, band: Ba
     averagings: listParam(choices.averagings),
     summaries: listParam(choices.summaries),
     fits: rangesParam(choices.fitRangesHz),
+    estimators: listParam(choices.estimators ?? ['welch']),
+    definitions: listParam(choices.bandDefinitions ?? ['fixed']),
     edges: varied ? '1' : '0',
     decisions: listParam(choices.decisions ?? ['power']),
     test,

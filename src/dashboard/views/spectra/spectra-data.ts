@@ -13,6 +13,7 @@ import { aperiodicRows } from '../../../queries/fits.ts';
 import { chooseRun, type RunInfo } from '../../../queries/runs.ts';
 import type { CohortSchema } from '../../../queries/schema.ts';
 import { spectraRows } from '../../../queries/spectra.ts';
+import { storedEstimator } from '../../../queries/estimator.ts';
 import { meanWithInterval, type MeanBand } from './group-mean.ts';
 import { keepSubjects, partParticipants } from '../../../core/confirmation/part-data.ts';
 import { workflowOf } from '../../../queries/workflow.ts';
@@ -47,7 +48,8 @@ export async function loadSpectraRows(
   sel: { stage: Stage; reference: string; averaging: string },
 ): Promise<SpectraRows> {
   const run = chooseRun(runs);
-  const q = { runId: run.runId, ...sel };
+  // the spectra view shows the Welch estimate
+  const q = { runId: run.runId, ...sel, estimator: storedEstimator(schema, 'welch') };
   // issued together: duckdb-wasm runs them one after another in its worker, without waits between
   const [s, aperiodic, participants, { view }] = await Promise.all([spectraRows(db, q), aperiodicRows(db, q, 'fit'), contrastParticipants(db, schema), workflowOf(db, schema)]);
   performance.mark('bandwise:spectra-rows');
