@@ -7,6 +7,8 @@ import type { Contrast } from './spec.ts';
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from './data.ts';
 import { measureLayout, measureValues, type MeasureLayout } from './measure.ts';
 import { mixedRecordedReferences } from './recorded-references.ts';
+import { ContrastDataError } from './data-error.ts';
+import { channelLayout, type ChannelLayout } from './channel-layout.ts';
 import type { PermutationTestInput, Design } from '../stats/index.ts';
 import type { Stage } from '../stages.ts';
 
@@ -27,11 +29,11 @@ export interface AssembledContrast {
   nPerGroup: Record<string, number>;
   /** the channel names the points use (a channel average is one pseudo-channel) */
   channels: string[];
+  /** the channels' positions and where their neighbours came from (channel-layout.ts) */
+  channelLayout: ChannelLayout;
 }
 
-export class ContrastDataError extends Error {
-  override name = 'ContrastDataError';
-}
+export { ContrastDataError };
 
 function key(subject: string, session: string | null, channel: string, stage: Stage): string {
   return `${subject}\u0000${session ?? ''}\u0000${channel}\u0000${stage}`;
@@ -217,15 +219,20 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
   }
   if (design.kind !== 'paired' && design.nuisance && design.nuisance.length === 0) delete design.nuisance;
   const pointChannels = c.channelAverage ? [`mean(${channels.join(',')})`] : channels;
+  // neighbours from the contrast's table or the positions stored for the recordings used
+  const used = new Set(kept.flatMap((k) => conds.map((d) => `${k.subject}\u0000${d.session ?? sessionsOf.get(k.subject)!.values().next().value ?? ''}`)));
+  const spatial = !c.channelAverage && channels.length >= 2;
+  const placed = channelLayout(c, channels, data, used, spatial);
+  const channelLayoutOfPoints: ChannelLayout = c.channelAverage ? { neighbours: 'none', positions: [null] } : placed.layout;
   const input: PermutationTestInput = {
     channels: pointChannels,
     freqsHz: layout.freqsHz,
     data: data0,
     design,
-    ...(c.channelAverage || channels.length < 2 ? { channelNeighbours: null } : {}),
+    channelNeighbours: placed.graph,
     ...(layout.missingAllowed ? { allowMissing: true } : {}),
   };
-  return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels };
+  return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels, channelLayout: channelLayoutOfPoints };
 }
 
 function nuisanceColumns(c: Contrast, kept: { nuisance: number[] }[]): { name: string; values: number[] }[] {

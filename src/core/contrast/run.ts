@@ -6,6 +6,7 @@
 import type { Contrast } from './spec.ts';
 import type { ContrastData, Exclusion } from './data.ts';
 import { assembleContrast, type AssembledContrast, type Participation } from './assemble.ts';
+import type { ChannelLayout } from './channel-layout.ts';
 import {
   finishPermutationTest, preparePermutationTest, runPermutations,
   type PermutationTestOptions, type PermutationTestResult, type NullMaxima, type PermutationRange, type PreparedPermutationTest, type ProgressCallback,
@@ -37,6 +38,8 @@ export interface CompareResult {
   valuesPerPoint: PointValues[] | null;
   /** points left out for too few values, in words (empty when none) */
   notes: string[];
+  /** the channels' positions (statistics.channels order) and where their neighbours came from */
+  channelLayout: ChannelLayout;
 }
 
 export interface PointValues {
@@ -124,6 +127,7 @@ export function finishCompare(p: PreparedCompare, nulls: NullMaxima): CompareRes
     clusters: statistics.clusters.map((k) => ({ sign: k.sign, mass: k.mass, size: k.size, p: k.p, fminHz: k.fminHz, fmaxHz: k.fmaxHz, channels: k.channels })),
     statistics,
     ...pointValues(a, statistics),
+    channelLayout: a.channelLayout,
   };
 }
 

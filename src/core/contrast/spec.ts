@@ -62,6 +62,13 @@ export const contrastSchema = z
     permutations: z.number().int().positive().default(1000),
     seed: z.number().int().default(1),
     tfce: z.object({ E: z.number().positive(), H: z.number().positive(), dh: z.number().positive() }).partial().optional(),
+    /**
+     * the channels' neighbours, {channel: [neighbour, …]} (symmetrised; channels of the table not
+     * in the contrast are ignored), instead of the neighbours of the stored positions
+     */
+    neighbours: z
+      .record(z.string().min(1), z.array(z.string().min(1)), { error: '"neighbours" must be a table {channel: [neighbour, …]} (the command line reads a TSV file with --neighbours)' })
+      .optional(),
   })
   .strict()
   .superRefine((c, ctx) => {
