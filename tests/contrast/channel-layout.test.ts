@@ -83,6 +83,20 @@ describe('channel layout of a contrast', () => {
     expect(() => channelLayout(table, ['E1', 'E2', 'E4'], some, used(data), true)).toThrow('channels E4 are not in the neighbour table; add them (a channel with no neighbours has a row of its own) or leave them out of the contrast');
   });
 
+  it('places a scalp pair of stored electrodes halfway between them, and a pair of 10-10 names on the template', () => {
+    // re-referenced bipolar channels are not channels rows of their own (E1-E3: the vertex and the nose electrodes of the stored net)
+    const data = cohort(2, 1, 1);
+    const e1 = NET.find((e) => e.site === 'Cz')!;
+    const e2 = NET.find((e) => e.site === 'Fz')!;
+    const { layout } = channelLayout(contrast(), [`${e1.name}-${e2.name}`, 'F3-C3', 'E1-X9'], data, used(data), false);
+    const mid = { x: (e1.p.x + e2.p.x) / 2, y: (e1.p.y + e2.p.y) / 2, z: (e1.p.z + e2.p.z) / 2 };
+    const r = Math.hypot(mid.x, mid.y, mid.z);
+    expect(layout.positions[0]!.y).toBeCloseTo(mid.y / r, 12);
+    expect(layout.positions[0]!.z).toBeCloseTo(mid.z / r, 12);
+    expect(layout.positions[1]).toEqual(channelPosition('F3-C3'));
+    expect(layout.positions[2]).toBeNull();
+  });
+
   it('pools slightly different digitised positions by their mean direction and refuses two layouts under one name', () => {
     const data = cohort(2, 1, 1);
     const tilt = (p: Position3, deg: number): Position3 => {

@@ -6,8 +6,9 @@
  * (channels.x, y, z: from the recording's positions file or the 10-10 template) in the
  * recordings the contrast uses: when they differ (positions digitised per subject), the mean
  * direction; when they differ by more than MAX_SPREAD_DEG, the recordings do not share one
- * layout and the contrast refuses. Without stored positions (data.positions absent) a channel
- * has the 10-10 position of its name.
+ * layout and the contrast refuses. A bipolar channel made at ingest (no row of its own) sits
+ * halfway between its stored electrodes. Otherwise, and without stored positions (data.positions
+ * absent: a database written before they were stored), a channel has the 10-10 position of its name.
  */
 import { AdjacencyError, channelsMissingFrom, positionNeighbours, tableNeighbours } from '../montage/adjacency.ts';
 import { channelPosition, type Position3 } from '../montage/positions.ts';
@@ -43,7 +44,7 @@ function channelPositions(channels: readonly string[], data: ContrastData, used:
     if (!list) seen.set(r.channel, (list = []));
     list.push({ subject: r.subject, p: { x: r.x, y: r.y, z: r.z } });
   }
-  return channels.map((ch) => {
+  const pooled = (ch: string): Position3 | null => {
     const list = seen.get(ch);
     if (!list || list.length === 0) return null;
     const first = list[0].p;
@@ -66,7 +67,27 @@ function channelPositions(channels: readonly string[], data: ContrastData, used:
       throw new ContrastDataError(`channel ${ch} lies at different places in different recordings (subject ${worst.subject} ${spread.toFixed(0)}° from the mean of ${list.length}): one contrast cannot pool two electrode layouts under one channel name`);
     }
     return mean;
-  });
+  };
+  return channels.map((ch) => pooled(ch) ?? pairPosition(ch, pooled) ?? channelPosition(ch) ?? null);
+}
+
+/**
+ * A derived channel that is no channels row of its own (a bipolar pair made at ingest, E1-E3):
+ * halfway between its two stored electrodes on the sphere, or at the first against a mastoid or
+ * ear lobe (as the template places C3-M2 at C3); null when its electrodes are not stored.
+ */
+function pairPosition(name: string, stored: (ch: string) => Position3 | null): Position3 | null {
+  const m = /^\s*([^-\s]+)\s*-\s*([^-\s]+)\s*$/.exec(name);
+  const a = m ? stored(m[1]) : null;
+  if (!m || !a) return null;
+  if (/^(M|A)[12]$/i.test(m[2])) return a;
+  const b = stored(m[2]);
+  if (!b) return null;
+  const x = a.x + b.x;
+  const y = a.y + b.y;
+  const z = a.z + b.z;
+  const r = Math.hypot(x, y, z);
+  return r > 1e-9 ? { x: x / r, y: y / r, z: z / r } : null;
 }
 
 /**
