@@ -3,7 +3,7 @@
  * src/core/contrast, and runs it (its permutations on several threads when it is large).
  */
 import { openStore, type Store } from '../../ingest/store/index.ts';
-import { listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, readRecordedReferences } from './store-read.ts';
+import { listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, readRecordedReferences, readChannelPositions } from './store-read.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
 import type { ContrastData, Exclusion, SpectrumRow } from '../core/contrast/data.ts';
 import { measureNeeds } from '../core/contrast/measure.ts';
@@ -72,7 +72,9 @@ export async function loadContrastData(store: Store, c: Contrast, exclusions: Ex
   const participants = table.rows.map((r) => Object.fromEntries(table.columns.map((col, i) => [col.name, r[i]])));
   // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)
   const recordedReferences = c.reference === 'recorded' ? await readRecordedReferences(store, run.runId) : undefined;
-  return { runId: run.runId, runParameters: run.parameters, toolVersion: run.toolVersion, data: { spectra: { ...axis, rows }, aperiodic, peaks, participants, exclusions, recordedReferences } };
+  // the channels' positions, for the neighbours of a spatial cluster test (src/core/contrast/channel-layout.ts)
+  const positions = await readChannelPositions(store, run.runId);
+  return { runId: run.runId, runParameters: run.parameters, toolVersion: run.toolVersion, data: { spectra: { ...axis, rows }, aperiodic, peaks, participants, exclusions, recordedReferences, positions } };
 }
 
 export interface CompareRun extends CompareResult {

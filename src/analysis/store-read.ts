@@ -8,6 +8,7 @@ import type { Averaging, Reference } from '../../ingest/store/bundle.ts';
 import { StoreError } from '../../ingest/store/errors.ts';
 import type { Store } from '../../ingest/store/writer.ts';
 import type { Stage } from '../core/stages.ts';
+import type { ChannelPositionRow } from '../core/contrast/data.ts';
 
 export interface RunInfo {
   runId: string;
@@ -266,4 +267,17 @@ export async function readRecordedReferences(store: Store, runId: string): Promi
     [runId],
   );
   return rows.map((r) => ({ subject: str(r.subject), session: strOrNull(r.session), channel: str(r.channel), referenceElectrode: strOrNull(r.reference_electrode) }));
+}
+
+/** Where each stored channel of a run sits (channels.x, y, z: unit sphere), rows with a position only. */
+export async function readChannelPositions(store: Store, runId: string): Promise<ChannelPositionRow[]> {
+  const rows = await query(
+    store,
+    `SELECT r.subject, r.session, c.channel, c.x, c.y, c.z
+       FROM channels c JOIN recordings r USING (recording_id)
+      WHERE r.run_id = $1 AND c.x IS NOT NULL AND c.y IS NOT NULL AND c.z IS NOT NULL
+      ORDER BY r.subject, r.session NULLS FIRST, c.recording_id, c.channel`,
+    [runId],
+  );
+  return rows.map((r) => ({ subject: str(r.subject), session: strOrNull(r.session), channel: str(r.channel), x: Number(r.x), y: Number(r.y), z: Number(r.z) }));
 }

@@ -1,6 +1,6 @@
 // What a contrast reads, over duckdb-wasm: the dashboard's twin of src/analysis/compare-runner.ts
 // (loadContrastData), filling src/core/contrast's ContrastData the same way, row for row.
-import type { AperiodicRow, ContrastData, Exclusion, PeakRow, RecordedReference, SpectrumRow } from '../../core/contrast/data.ts';
+import type { AperiodicRow, ChannelPositionRow, ContrastData, Exclusion, PeakRow, RecordedReference, SpectrumRow } from '../../core/contrast/data.ts';
 import { measureNeeds } from '../../core/contrast/measure.ts';
 import type { Contrast } from '../../core/contrast/spec.ts';
 import type { Stage } from '../../core/stages.ts';
@@ -201,6 +201,21 @@ export async function contrastRecordedReferences(db: SqlClient, runId: string): 
   }));
 }
 
+/** Where each stored channel of a run sits (channels.x, y, z: unit sphere), rows with a position only. */
+export async function contrastChannelPositions(db: SqlClient, runId: string): Promise<ChannelPositionRow[]> {
+  const t = await db.query(
+    `SELECT r.subject::VARCHAR AS subject, r.session::VARCHAR AS session, c.channel::VARCHAR AS channel, c.x::DOUBLE AS x, c.y::DOUBLE AS y, c.z::DOUBLE AS z
+     FROM ${COHORT}.channels c JOIN ${COHORT}.recordings r USING (recording_id)
+     WHERE r.run_id = ${literal(runId)} AND c.x IS NOT NULL AND c.y IS NOT NULL AND c.z IS NOT NULL
+     ORDER BY r.subject, r.session NULLS FIRST, c.recording_id, c.channel`,
+  );
+  const subject = stringColumn(t, 'subject');
+  const channel = stringColumn(t, 'channel');
+  const session = t.getChild('session')!;
+  const [x, y, z] = ['x', 'y', 'z'].map((k) => numberColumn(t, k));
+  return subject.map((s, i) => ({ subject: s, session: (session.get(i) as string | null) ?? null, channel: channel[i], x: x[i], y: y[i], z: z[i] }));
+}
+
 /** The participants table as the contrast reads it: numbers for numeric columns, text otherwise. */
 export async function contrastParticipants(db: SqlClient, schema: CohortSchema): Promise<ContrastData['participants']> {
   const p = await participants(db, schema);
@@ -226,7 +241,7 @@ export async function loadContrastData(
   // all queries issued together (duckdb-wasm runs them one after another in its worker, without
   // waits between); rows joined with concat, not push(...rows), which overflows the call stack
   // at cohort size (10⁵ rows)
-  const [perStage, participantRows, recordedReferences] = await Promise.all([
+  const [perStage, participantRows, recordedReferences, positions] = await Promise.all([
     Promise.all(
       stages.map((stage) => {
         const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging };
@@ -240,6 +255,8 @@ export async function loadContrastData(
     contrastParticipants(db, schema),
     // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)
     c.reference === 'recorded' ? contrastRecordedReferences(db, run.runId) : Promise.resolve(undefined),
+    // the channels' positions, for the neighbours of a spatial cluster test (src/core/contrast/channel-layout.ts)
+    contrastChannelPositions(db, run.runId),
   ]);
   let axis = { freqStartHz: 0, freqStepHz: 0, nBins: 0 };
   for (const [m] of perStage) {
@@ -255,6 +272,6 @@ export async function loadContrastData(
   if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
   return {
     runId: run.runId,
-    data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences },
+    data: { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences, positions },
   };
 }
