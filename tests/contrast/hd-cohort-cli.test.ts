@@ -2,7 +2,8 @@
  * Issue 22, "Done when", on the command line: a cohort whose channels are E-numbered (no 10-10
  * names) runs ingest with a positions file, compare over all channels, band-check and report;
  * without positions, compare refuses in one line naming the channels, runs with --neighbours, and
- * a channel average still runs. Size: 8 invented recordings (4 per group: 70 relabellings) of 8 channels × 36
+ * a channel average still runs. The labels are bare (E1, not "EEG E1"): the positions file makes
+ * them EEG. Size: 8 invented recordings (4 per group: 70 relabellings) of 8 channels × 36
  * epochs at 128 Hz, 50 permutations. The net's sites are 8 idealised 10-10 positions
  * (positions.ts) on a 90-mm sphere, written as a BIDS-style electrodes TSV in mm.
  */
@@ -27,7 +28,7 @@ const without = path.join(dir, 'bare.duckdb');
 beforeAll(async () => {
   const rows: string[] = [];
   for (let s = 0; s < 8; s++) {
-    await writeFixtureEdf(path.join(dir, `s${s}.edf`), { seed: 40 + s, fsHz: 128, nEpochs: 36, labels: NAMES.map((n) => `EEG ${n}`), spindleUv: s < 4 ? 6 : 14 });
+    await writeFixtureEdf(path.join(dir, `s${s}.edf`), { seed: 40 + s, fsHz: 128, nEpochs: 36, labels: NAMES, spindleUv: s < 4 ? 6 : 14 });
     rows.push(`s${s}\t${s < 4 ? 'a' : 'b'}\ts${s}.edf`);
   }
   writeFileSync(path.join(dir, 'cohort.tsv'), ['subject\tgroup\trecording', ...rows].join('\n') + '\n');
