@@ -21,7 +21,7 @@ const repo = path.resolve(import.meta.dirname, '../..');
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-hd-cli-'));
 const SITES = ['F3', 'Fz', 'F4', 'C3', 'Cz', 'C4', 'P3', 'P4'];
 const NAMES = SITES.map((_, i) => `E${i + 1}`);
-const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/bandwise.mjs'), ...args], { encoding: 'utf8' });
+const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8' });
 const withPositions = path.join(dir, 'positions.duckdb');
 const without = path.join(dir, 'bare.duckdb');
 
