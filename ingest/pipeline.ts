@@ -1,6 +1,6 @@
 /**
  * One recording end to end (Node), in the order of the data flow:
- * open → scoring → channels → references → frequency grids → epoch pass → stage pass (fits) →
+ * open → scoring → channels (and where they sit) → references → frequency grids → epoch pass → stage pass (fits) →
  * IRASA (on request) → quality → warnings and status → bundle.
  *
  * Streaming: the EDF is read epoch by epoch into the reader's reused buffers; per epoch and
@@ -21,6 +21,7 @@ import { epochSpectraBlocks } from './pipeline/epoch-spectra.ts';
 import type { PipelineProgress } from './pipeline/error.ts';
 import { channelNote, evenlySpaced, frequencyGrid, type FrequencyGrid } from './pipeline/grid.ts';
 import { irasaPass } from './pipeline/irasa-pass.ts';
+import { placeChannels } from './pipeline/positions.ts';
 import { openRecording, type OpenedRecording } from './pipeline/open.ts';
 import type { IngestParams } from './pipeline/params.ts';
 import { channelMeasures, recordingQuality, type ChannelMeasures } from './pipeline/recording-quality.ts';
@@ -66,7 +67,8 @@ export async function processOpened(
     const { plans, skips } = planReferences(selected.map((s) => s.montage), { references: params.references, bipolarPairs: params.bipolarPairs });
     const recordedNames = selected.map((s) => s.name);
     const nGrid = Math.max(0, Math.ceil(edf.durationS / epochS - 1e-6));
-    const warnings: WarningRow[] = [...readWarnings(edf), ...scoringWarnings(hyp), ...unitWarnings(selected)];
+    const placed = placeChannels(selected, rec.positions);
+    const warnings: WarningRow[] = [...readWarnings(edf), ...scoringWarnings(hyp), ...unitWarnings(selected), ...placed.warnings];
 
     // ---- each sampling rate's frequency grid (stored range, bands, rules, fit range up to its Nyquist) ----
     const grids = new Map<number, FrequencyGrid>();
@@ -101,7 +103,7 @@ export async function processOpened(
     rows.quality.push(...recordingQuality(measures, selected, rec, params, read.epochsSeen, epochS));
 
     const bundle = assembleBundle({
-      runId, rec, opened, scoring, status: recordingStatus(edf, hyp, warnings), epochS, stages, onsetS, dropReason: read.dropReason, channels: channelRows(selected),
+      runId, rec, opened, scoring, status: recordingStatus(edf, hyp, warnings), epochS, stages, onsetS, dropReason: read.dropReason, channels: channelRows(selected, placed.placements),
       rows, bandPowers, referenceSkips: skips, measures, warnings,
     });
     // each epoch's spectrum, compact, on request (--epoch-spectra)

@@ -12,6 +12,8 @@ import { selectShard, type ShardSpec } from './cohort/shard.ts';
 import path from 'node:path';
 import { discoverCohort } from './cohort/discover.ts';
 import type { CohortRecording } from './cohort/types.ts';
+import { readPositionsFile } from './cohort/positions.ts';
+import type { CoordinateUnit } from '../src/core/montage/electrodes-file.ts';
 import { resolveIngestParams, type IngestParams, type PipelineProgress } from './pipeline.ts';
 import { IngestPool, WorkerTaskError } from './pool.ts';
 import { openStore } from './store/database.ts';
@@ -32,6 +34,10 @@ export interface IngestOptions {
   shard?: ShardSpec | null;
   /** Tool version recorded in runs (default: package.json's). */
   toolVersion?: string;
+  /** Electrode positions file for every recording that has none of its own (ingest/cohort/positions.ts). */
+  positions?: string;
+  /** Unit of a positions file without a _coordsystem.json beside it (default mm). */
+  positionsUnit?: CoordinateUnit;
 }
 
 export type IngestEvent =
@@ -74,7 +80,12 @@ export async function runIngest(
   let cohort: Awaited<ReturnType<typeof discoverCohort>>;
   try {
     // rows that cannot be ingested on their own (duplicate subject, file missing or not a regular file) fail alone
-    cohort = await discoverCohort(cohortPathOrBidsFolder, { rowProblems: 'per-recording' });
+    cohort = await discoverCohort(cohortPathOrBidsFolder, { rowProblems: 'per-recording', positionsUnit: options.positionsUnit });
+    if (options.positions) {
+      // named by its file name alone: messages and warnings carry no absolute path
+      const shared = await readPositionsFile(path.resolve(options.positions), path.basename(options.positions), options.positionsUnit ?? 'mm');
+      for (const rec of cohort.recordings) rec.positions ??= shared;
+    }
   } catch (e) {
     await pool.close();
     throw e;

@@ -8,6 +8,8 @@
  *     …_channels.tsv   name, type, units (required, in that order), status (optional)
  *     …_eeg.json       SamplingFrequency, EEGReference, PowerLineFrequency (50, 60 or "n/a")
  *     …_events.tsv     the scoring, in our convention below
+ *     sub-<label>[_ses-<label>][_acq-…][_run-…][_space-…]_electrodes.tsv and its _coordsystem.json:
+ *                      electrode positions (positions.ts: which file goes with which recording)
  * Sidecars are looked up beside the recording with the same entities (the inheritance of
  * sidecars from higher folders is not followed).
  *
@@ -29,6 +31,8 @@ import path from 'node:path';
 import { z } from 'zod';
 import { cellValue, parseDelimited } from './delimited.ts';
 import { columnKind, typedValue } from './typed-columns.ts';
+import { bidsCoordsystemName, bidsElectrodesFile, ElectrodesFileError, parseCoordsystem } from './positions.ts';
+import { parseElectrodesTsv, type ElectrodeLayout } from '../../src/core/montage/electrodes-file.ts';
 import type { BidsChannel, BidsRecordingInfo, Cohort, CohortProblem, CohortRecording, ColumnKind } from './types.ts';
 import { CohortError } from './types.ts';
 
@@ -229,7 +233,9 @@ export async function discoverBids(folder: string): Promise<Cohort> {
     if (!subjects.has(subject)) problems.push({ row: null, column: 'participant_id', message: `folder '${entry.name}' has no row in participants.tsv` });
 
     for (const { dir, session } of eegDirs) {
-      for (const f of await listDir(dir)) {
+      const listing = await listDir(dir);
+      const fileNames = listing.filter((f) => !f.dir).map((f) => f.name);
+      for (const f of listing) {
         const m = RECORDING_SUFFIX.exec(f.name);
         if (f.dir || !m || m[1].toLowerCase() === 'json') continue;
         const rel = path.relative(root, path.join(dir, f.name));
@@ -263,6 +269,7 @@ export async function discoverBids(folder: string): Promise<Cohort> {
         const channels = channelsText === null ? [] : parseChannels(channelsText, path.relative(root, side('channels.tsv')), problems);
         const eventsText = await readText(side('events.tsv'));
         if (eventsText !== null) checkEventsHeader(eventsText, path.relative(root, side('events.tsv')), problems);
+        const positions = await bidsPositions(root, dir, fileNames, parsed.entities, rel, problems);
         const p = subjects.get(subject);
         recordings.push({
           row: p?.row ?? 0,
@@ -273,6 +280,7 @@ export async function discoverBids(folder: string): Promise<Cohort> {
           scoringPath: eventsText === null ? null : side('events.tsv'),
           covariates: { ...(p?.covariates ?? {}) },
           bids: { samplingHz: info?.samplingHz ?? null, reference: info?.reference ?? null, powerLineHz: info?.powerLineHz ?? null, channels },
+          ...(positions ? { positions } : {}),
         });
       }
     }
@@ -290,6 +298,33 @@ export async function discoverBids(folder: string): Promise<Cohort> {
   ];
   const participants = [...subjects].map(([subject, p]) => ({ subject, ...(groupCol >= 0 ? { group: p.group } : {}), ...p.covariates }));
   return { source: 'bids', root, recordings, columns, participants };
+}
+
+/** The positions of a recording from the electrodes file that goes with it and its _coordsystem.json (required by BIDS); null without one. */
+async function bidsPositions(root: string, dir: string, fileNames: readonly string[], entities: ReadonlyMap<string, string>, rel: string, problems: CohortProblem[]): Promise<ElectrodeLayout | null> {
+  const found = bidsElectrodesFile(fileNames, entities);
+  if (found === null) return null;
+  if (typeof found !== 'string') {
+    problems.push({ row: null, column: null, message: `${rel}: ${found.ambiguous.join(' and ')} both fit; keep one electrodes file per recording` });
+    return null;
+  }
+  const electrodesRel = path.relative(root, path.join(dir, found));
+  const coordName = bidsCoordsystemName(found);
+  const coordText = await readText(path.join(dir, coordName));
+  if (coordText === null) {
+    problems.push({ row: null, column: null, message: `${electrodesRel}: its ${coordName} is missing (BIDS requires one with every electrodes file: it gives the unit and the coordinate system)` });
+    return null;
+  }
+  try {
+    const frame = parseCoordsystem(coordText, path.relative(root, path.join(dir, coordName)));
+    const text = await readText(path.join(dir, found));
+    if (text === null) throw new ElectrodesFileError(`${electrodesRel}: cannot be read`);
+    return parseElectrodesTsv(text, { file: electrodesRel, unit: frame.unit, coordinateSystem: frame.system });
+  } catch (e) {
+    if (!(e instanceof ElectrodesFileError)) throw e;
+    problems.push({ row: null, column: null, message: e.message });
+    return null;
+  }
 }
 
 const cmp = (a: string, b: string) => (a < b ? -1 : a > b ? 1 : 0);

@@ -2,7 +2,8 @@
  * A cohort table (TSV or CSV), one row per recording (docs/design.md, "The cohort table"):
  * `subject`, `session` (optional), `group` (optional), `recording` (EDF path), `scoring`
  * (optional path; else the EDF+ annotations), `lights_off` and `lights_on` (optional, per
- * recording: a local clock time HH:MM or HH:MM:SS, or seconds from the recording start), then
+ * recording: a local clock time HH:MM or HH:MM:SS, or seconds from the recording start),
+ * `positions` (optional path of the recording's electrode positions file, positions.ts), then
  * covariate columns kept typed. These column names are matched case-insensitively; covariate names are kept as written. Paths are relative
  * to the table's folder. 'n/a' and empty cells are missing.
  *
@@ -22,10 +23,12 @@ import path from 'node:path';
 import { z } from 'zod';
 import { cellValue, detectDelimiter, parseDelimited, parseNumber } from './delimited.ts';
 import { columnKind, typedValue } from './typed-columns.ts';
+import { ElectrodesFileError, readPositionsFile } from './positions.ts';
+import type { CoordinateUnit, ElectrodeLayout } from '../../src/core/montage/electrodes-file.ts';
 import type { Cohort, CohortProblem, CohortRecording, ColumnKind, LightsCell } from './types.ts';
 import { CohortError } from './types.ts';
 
-const RESERVED = ['subject', 'session', 'group', 'recording', 'scoring', 'lights_off', 'lights_on'] as const;
+const RESERVED = ['subject', 'session', 'group', 'recording', 'scoring', 'lights_off', 'lights_on', 'positions'] as const;
 const LIGHTS = ['lights_off', 'lights_on'] as const;
 
 /** A lights cell: 'HH:MM' or 'HH:MM:SS' (24-hour local clock) or seconds (≥ 0) from the recording start; undefined when it is neither. */
@@ -53,6 +56,8 @@ function rowSchema(hasGroup: boolean) {
 export interface ReadCohortOptions {
   /** 'all-fatal' (default): every problem throws; 'per-recording': see the module comment. */
   rowProblems?: 'all-fatal' | 'per-recording';
+  /** Unit of a `positions` file without a _coordsystem.json beside it (default mm). */
+  positionsUnit?: CoordinateUnit;
 }
 
 /** Reads and validates a cohort table; throws CohortError listing every problem found. */
@@ -101,6 +106,18 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
   for (const name of covariateNames) kinds.set(name, columnKind(table.rows.map((r) => cellValue(r.cells[col(name)]))));
 
   const recordings: CohortRecording[] = [];
+  // one read of each positions file, however many rows name it
+  const positionFiles = new Map<string, Promise<ElectrodeLayout>>();
+  const readPositions = async (abs: string, given: string, row: number, rec: CohortRecording, report: (p: CohortProblem & { column: string }) => void): Promise<void> => {
+    let layout = positionFiles.get(abs);
+    if (!layout) positionFiles.set(abs, (layout = readPositionsFile(abs, given, options.positionsUnit ?? 'mm')));
+    try {
+      rec.positions = await layout;
+    } catch (e) {
+      if (!(e instanceof ElectrodesFileError)) throw e;
+      report({ row, column: 'positions', message: e.message });
+    }
+  };
   const pairRow = new Map<string, number>();
   const fileChecks: Promise<void>[] = [];
   const at = (cells: string[], name: string) => (col(name) >= 0 ? cellValue(cells[col(name)]) : null);
@@ -152,8 +169,11 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
 
     fileChecks.push(checkFile(recordingPath, v.recording, row, 'recording', rowProblem));
     if (scoringPath !== null && v.scoring !== null) fileChecks.push(checkFile(scoringPath, v.scoring, row, 'scoring', rowProblem));
+    const positionsCell = at(r.cells, 'positions');
+    if (positionsCell !== null) fileChecks.push(readPositions(path.resolve(folder, positionsCell), positionsCell, row, rec, rowProblem));
   });
   await Promise.all(fileChecks);
+  positionFiles.clear();
 
   const participants = participantsOf(recordings.filter((r) => !r.problem), hasGroup, covariateNames, problems);
   if (problems.length) {

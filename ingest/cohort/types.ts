@@ -1,4 +1,5 @@
 /** A cohort as read from a table or a BIDS folder: recordings plus the participants table. */
+import type { ElectrodeLayout } from '../../src/core/montage/electrodes-file.ts';
 
 export interface BidsChannel {
   name: string;
@@ -32,6 +33,8 @@ export interface CohortRecording {
   /** The cohort table's `lights_off` / `lights_on` cells, when it has those columns. */
   lights?: { off: LightsCell | null; on: LightsCell | null };
   bids?: BidsRecordingInfo;
+  /** Electrode positions from the recording's positions file (BIDS electrodes file, table column or --positions). */
+  positions?: ElectrodeLayout;
   /**
    * Set only when the table was read with `rowProblems: 'per-recording'`: this row cannot be
    * ingested (duplicate subject/session, recording or scoring file missing or not a regular

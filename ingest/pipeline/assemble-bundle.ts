@@ -1,7 +1,7 @@
 /** The RecordingBundle of one processed recording, as the store's single writer takes it. */
 import path from 'node:path';
 import { sleepArchitecture } from '../../src/core/hypnogram/architecture.ts';
-import { channelPosition } from '../../src/core/montage/positions.ts';
+import type { ChannelPlacement } from '../../src/core/montage/channel-placement.ts';
 import type { ReferenceSkip } from '../../src/core/montage/reference.ts';
 import type { Stage } from '../../src/core/stages.ts';
 import type { CohortRecording } from '../cohort/types.ts';
@@ -13,13 +13,17 @@ import type { ChannelMeasures } from './recording-quality.ts';
 import type { RecordingStatus } from './warnings.ts';
 import type { FinishWork } from './stage-pass.ts';
 
-/** The channels rows: every selected channel in µV like its samples (physical limits scaled too), with the unit as recorded. */
-export function channelRows(selected: readonly Selected[]): ChannelRow[] {
-  return selected.map((s) => {
-    const pos = channelPosition(s.name);
+/**
+ * The channels rows: every selected channel in µV like its samples (physical limits scaled too), with
+ * the unit as recorded, and where it sits (unit sphere; the file's metres when from a file).
+ */
+export function channelRows(selected: readonly Selected[], placements: readonly ChannelPlacement[]): ChannelRow[] {
+  return selected.map((s, i) => {
+    const { position: pos, metres, source } = placements[i];
     return {
       channel: s.name, type: s.montage.type, unit: 'µV', fsHz: s.signal.fsHz, prefilter: s.signal.prefilter.trim() || null,
-      x: pos?.x ?? null, y: pos?.y ?? null, z: pos?.z ?? null, label: s.signal.label.trim(), referenceElectrode: s.montage.reference,
+      x: pos?.x ?? null, y: pos?.y ?? null, z: pos?.z ?? null, positionSource: source, xM: metres?.x ?? null, yM: metres?.y ?? null, zM: metres?.z ?? null,
+      label: s.signal.label.trim(), referenceElectrode: s.montage.reference,
       physicalMin: s.signal.physicalMin * s.toUv, physicalMax: s.signal.physicalMax * s.toUv, recordedUnit: s.signal.physicalDimension.trim() || null, digitalMin: s.signal.digitalMin, digitalMax: s.signal.digitalMax,
     };
   });

@@ -18,7 +18,8 @@ export function selectChannels(edf: EdfFile, rec: CohortRecording, params: Inges
   const signals = edf.header.signals.filter((s) => !s.isAnnotation);
   let chosen;
   try {
-    chosen = selectChannelList(signals, rec.bids?.channels ?? [], params);
+    const onPositionsFile = new Set(rec.positions?.electrodes.map((e) => e.name.trim().toUpperCase()) ?? []);
+    chosen = selectChannelList(signals, rec.bids?.channels ?? [], params, onPositionsFile);
   } catch (e) {
     if (e instanceof ChannelSelectionError) throw new PipelineError('channels', edf.file, e.field, e.message, { cause: e });
     throw e;

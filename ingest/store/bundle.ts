@@ -56,10 +56,16 @@ export interface ChannelRow {
   recordedUnit?: string | null;
   fsHz: number;
   prefilter: string | null;
-  /** Unit-sphere position (10-10 system), null if unknown. */
+  /** Direction from the head centre on the unit sphere (x right, y front, z up), null if unknown. */
   x: number | null;
   y: number | null;
   z: number | null;
+  /** Where the position came from: file, template (10-10) or none. */
+  positionSource?: 'file' | 'template' | 'none';
+  /** The positions file's coordinates, m (x right, y front, z up, the file's origin); null unless from a file. */
+  xM?: number | null;
+  yM?: number | null;
+  zM?: number | null;
   label?: string | null;
   referenceElectrode?: string | null;
   /** EDF physical minimum and maximum, in `unit` (scaled like the samples). */

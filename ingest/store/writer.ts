@@ -365,6 +365,10 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     digital_min: (i) => ch[i].digitalMin ?? null,
     digital_max: (i) => ch[i].digitalMax ?? null,
     recorded_unit: (i) => ch[i].recordedUnit ?? null,
+    position_source: (i) => ch[i].positionSource ?? (ch[i].x === null ? 'none' : 'template'),
+    x_m: (i) => ch[i].xM ?? null,
+    y_m: (i) => ch[i].yM ?? null,
+    z_m: (i) => ch[i].zM ?? null,
   });
 
   const ep = b.epochs;

@@ -6,6 +6,7 @@ import { readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import { BAND_DEFINITIONS, ESTIMATORS, MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../core/contrast/spec.ts';
 import { BAND_SYNTAX, BandError, parseBand } from '../core/spectrum/bands.ts';
+import { AdjacencyError, neighbourTable, type NeighbourTable } from '../core/montage/adjacency.ts';
 
 const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);
 const pair = (name: string) => (v: string): [string, string] => {
@@ -58,6 +59,18 @@ export interface Flags {
   clusterP?: number;
   permutations?: number;
   seed?: number;
+  neighbours?: string;
+}
+
+/** The neighbour table a --neighbours file holds (adjacency.ts neighbourTable); a file that cannot be read is named. */
+function readNeighbours(file: string): NeighbourTable {
+  let text: string;
+  try {
+    text = readFileSync(file, 'utf8');
+  } catch {
+    throw new AdjacencyError(`--neighbours: cannot read ${file}`, '--neighbours', file);
+  }
+  return neighbourTable(text);
 }
 
 /** Builds the contrast JSON from the file (if any) with the command-line options on top. */
@@ -95,6 +108,7 @@ export function contrastFromFlags(f: Flags): ContrastJson {
   set('clusterP', f.clusterP);
   set('permutations', f.permutations);
   set('seed', f.seed);
+  set('neighbours', f.neighbours === undefined ? undefined : readNeighbours(f.neighbours));
   if (base.design === undefined) base.design = 'groups';
   return base as ContrastJson;
 }
@@ -107,7 +121,7 @@ export function inputOrExit<T>(read: () => T): T | null {
   try {
     return read();
   } catch (e) {
-    if (e instanceof ContrastSpecError || e instanceof SyntaxError || e instanceof BandError) {
+    if (e instanceof ContrastSpecError || e instanceof SyntaxError || e instanceof BandError || e instanceof AdjacencyError) {
       console.error(e.message);
       process.exitCode = 2;
       return null;
@@ -150,6 +164,7 @@ export function addContrastOptions(command: Command, o: { bandMeasures: boolean 
     .option('--half-width <hz>', 'individual bands: half the band\'s width around the subject\'s peak, Hz (default: half the band\'s width)', num('--half-width'))
     .option('--channels <names>', 'comma-separated channels, or all (default: all)', list)
     .option('--channel-average', 'average the measure over the channels (frequency-only clusters)')
+    .option('--neighbours <file.tsv>', "channel neighbours for the clusters, one line per channel: channel<TAB>neighbour,neighbour,… (default: Delaunay neighbours of the channels' stored positions)")
     .option('--fmin <hz>', 'lowest frequency, Hz (default: 1)', num('--fmin'))
     .option('--fmax <hz>', 'highest frequency, Hz (default: 30)', num('--fmax'))
     .addOption(new Option('--measure <name>', 'measure (default: log-psd)').choices([...MEASURES]))

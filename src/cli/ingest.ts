@@ -10,6 +10,7 @@ import { availableParallelism } from 'node:os';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import type cliProgressModule from 'cli-progress';
 import { REFERENCE_KINDS, type ReferenceKind } from '../core/montage/reference.ts';
+import { COORDINATE_UNITS, type CoordinateUnit } from '../core/montage/electrodes-file.ts';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
 import { defaultTaperCount } from '../core/spectrum/multitaper.ts';
 import { readLabelMap } from '../../ingest/hypnogram/label-map.ts';
@@ -64,6 +65,8 @@ interface Flags {
   irasa?: boolean;
   mainsHz?: number;
   quiet?: boolean;
+  positions?: string;
+  positionsUnit: CoordinateUnit;
   labelMap?: string;
   unknownAsUnscored?: boolean;
   trimScoring?: boolean;
@@ -122,6 +125,11 @@ export function register(program: Command): void {
     .option('--trim-scoring', 'drop scored stages that lie before the recording start or past its end, with a warning (default: refuse the recording, as such scoring is likely misaligned); unscored labels there are always dropped')
     .addOption(option('--lights-off-texts <list>', 'comma-separated annotation texts that mark lights off, matched ignoring case and spaces', list, D.scoring.lightsOffTexts, D.scoring.lightsOffTexts.join(',')))
     .addOption(option('--lights-on-texts <list>', 'comma-separated annotation texts that mark lights on, matched ignoring case and spaces', list, D.scoring.lightsOnTexts, D.scoring.lightsOnTexts.join(',')))
+    .option('--positions <file.tsv>', 'electrode positions for every recording without its own (a BIDS _electrodes.tsv beside it, or the cohort table\'s positions column): tab-separated name, x, y, z; its unit and axes from the <stem>_coordsystem.json beside it, else --positions-unit with x to the right ear, y to the nose, z up')
+    .addOption(option('--positions-unit <m|cm|mm>', 'unit of positions files that have no _coordsystem.json beside them', (v: string) => {
+      if (!(COORDINATE_UNITS as readonly string[]).includes(v)) throw new InvalidArgumentError(`--positions-unit: "${v}" is not one of ${COORDINATE_UNITS.join(', ')}`);
+      return v as CoordinateUnit;
+    }, 'mm', 'mm'))
     .option('--quiet', 'no progress bars (they are off anyway when stdout is not a terminal)')
     .addHelpText('after', '\nA research tool, not a diagnostic device. No EDF patient or recording identification is stored.')
     .action(async (cohort: string, flags: Flags, cmd: Command) => {
@@ -211,7 +219,7 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
     }
   };
   try {
-    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard }, onEvent);
+    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard, positions: f.positions, positionsUnit: f.positionsUnit }, onEvent);
     bars?.stop();
     const secs = (Date.now() - t0) / 1000;
     console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, ${summary.warnings} warning${summary.warnings === 1 ? '' : 's'} (table warnings), in ${secs.toFixed(1)} s`);

@@ -11,6 +11,7 @@ import type { Part } from '../core/confirmation/split.ts';
 import type { SqlClient } from './client.ts';
 import { participants } from './cohort.ts';
 import { aperiodicRows, peakRows, recordedReferences } from './fits.ts';
+import { channelPositions } from './positions.ts';
 import { chooseRun, type RunInfo } from './runs.ts';
 import type { CohortSchema } from './schema.ts';
 import { spectraRows, storedReferences } from './spectra.ts';
@@ -68,7 +69,7 @@ export async function loadContrastData(
   // all queries issued together (duckdb-wasm runs them one after another in its worker, without
   // waits between; the Node client one after another on its connection); rows joined with
   // concat, not push(...rows), which overflows the call stack at cohort size (10⁵ rows)
-  const [perStage, participantRows, references] = await Promise.all([
+  const [perStage, participantRows, references, positions] = await Promise.all([
     Promise.all(
       stages.map((stage) => {
         const q = { runId: run.runId, stage, reference: c.reference, averaging: c.averaging, estimator };
@@ -82,6 +83,8 @@ export async function loadContrastData(
     contrastParticipants(db, schema),
     // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)
     c.reference === 'recorded' ? recordedReferences(db, run.runId) : Promise.resolve(undefined),
+    // the channels' positions, for the neighbours of a spatial cluster test (src/core/contrast/channel-layout.ts)
+    channelPositions(db, run.runId),
   ]);
   let axis = { freqStartHz: 0, freqStepHz: 0, nBins: 0 };
   for (const [m] of perStage) {
@@ -102,7 +105,7 @@ export async function loadContrastData(
     runId: run.runId,
     toolVersion: run.toolVersion,
     runParameters: run.parameters,
-    data: partData(c, { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences: references }, view),
+    data: partData(c, { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences: references, positions }, view),
     view,
   };
 }

@@ -5,6 +5,8 @@ import * as Plot from '@observablehq/plot';
 import { describe, expect, it } from 'vitest';
 import { mapElectrodes, scalpMapPlot } from '../../src/dashboard/components/scalp-map.ts';
 import { electrodePosition, projectToDisk } from '../../src/core/montage/positions.ts';
+import type { CompareResult } from '../../src/core/contrast/run.ts';
+import { clusterChannelMeans } from '../../src/dashboard/views/contrast/contrast-data.ts';
 
 const disk = (name: string) => projectToDisk(electrodePosition(name)!);
 
@@ -31,5 +33,30 @@ describe('scalp map with scalp pairs', () => {
     expect(links).toHaveLength(1);
     expect(links[0].data).toEqual([electrodes[0]]);
     expect(marks.indexOf(links[0])).toBeLessThan(marks.findIndex((m) => m instanceof Plot.Dot));
+  });
+});
+
+// Channels without 10-10 names (a high-density net, E1 …) are drawn at the positions the contrast
+// result carries (channelLayout: stored at ingest from the positions file), projected like the
+// template (azimuthal equidistant, positions.ts projectToDisk); without one they are left off.
+describe('scalp map of an E-numbered net', () => {
+  it('places each channel at the position of the result layout', () => {
+    const at = (name: string) => electrodePosition(name)!;
+    const result = {
+      statistics: { channels: ['E1', 'E2', 'E3'], freqsHz: [12, 13], stat: Float64Array.from([1, 3, -2, -2, 5, 7]), clusters: [{ fminHz: 12, fmaxHz: 13 }] },
+      channelLayout: { neighbours: 'positions', positions: [at('Cz'), at('Fz'), null] },
+    } as unknown as CompareResult;
+    const means = clusterChannelMeans(result, 0);
+    // mean t over the cluster's 12–13 Hz: (1 + 3)/2, (−2 − 2)/2, (5 + 7)/2
+    expect(means).toEqual([
+      { channel: 'E1', value: 2, position: at('Cz') },
+      { channel: 'E2', value: -2, position: at('Fz') },
+      { channel: 'E3', value: 6, position: null },
+    ]);
+    const drawn = mapElectrodes(means);
+    expect(drawn.map((e) => [e.channel, e.x, e.y])).toEqual([
+      ['E1', disk('Cz').x, disk('Cz').y],
+      ['E2', disk('Fz').x, disk('Fz').y],
+    ]);
   });
 });

@@ -35,6 +35,15 @@ describe('selectChannels', () => {
     expect(() => selectChannels(header([['EEG Pz-Oz'], ['Pz:Oz']]), [], BY_TYPE)).toThrow('two channels are both "Pz-Oz"; exclude one of them');
   });
 
+  it('takes bare labels the positions file names as EEG (a net numbered E1 … E256), unless a prefix or BIDS says otherwise', () => {
+    // without a file: E1/E2 are the AASM eye electrodes (EOG), E3 no 10-10 name (MISC)
+    const net = header([['E1'], ['E2'], ['E3'], ['EOG E4'], ['Temp', 'degC']]);
+    expect(() => selectChannels(net, [], BY_TYPE)).toThrow('no channel selected (types EEG)');
+    const onFile = new Set(['E1', 'E2', 'E3', 'E4', 'TEMP']);
+    const s = selectChannels(net, [{ name: 'E2', type: 'EOG' }], BY_TYPE, onFile);
+    expect(s.map((c) => [c.name, c.montage.type])).toEqual([['E1', 'EEG'], ['E3', 'EEG']]);
+  });
+
   it('a BIDS channels row overrides the type and leaves bad channels out', () => {
     const s = selectChannels(header([['C3'], ['C4'], ['Fp1']]), [{ name: 'C4', status: 'bad' }, { name: 'Fp1', type: 'eog' }], BY_TYPE);
     expect(s.map((c) => c.name)).toEqual(['C3']);

@@ -16,6 +16,7 @@ import type { SqlClient } from '../../src/queries/client.ts';
 import * as cohort from '../../src/queries/cohort.ts';
 import * as contrastData from '../../src/queries/contrast-data.ts';
 import * as fits from '../../src/queries/fits.ts';
+import * as positions from '../../src/queries/positions.ts';
 import * as quality from '../../src/queries/quality.ts';
 import * as reportFacts from '../../src/queries/report-facts.ts';
 import * as runsModule from '../../src/queries/runs.ts';
@@ -25,7 +26,7 @@ import * as workflow from '../../src/queries/workflow.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 import { wasmClientFor } from '../dashboard/wasm-client.ts';
 
-const MODULES = { bandCheckData, cohort, contrastData, fits, quality, reportFacts, runsModule, schemaModule, spectra, workflow };
+const MODULES = { bandCheckData, cohort, contrastData, fits, positions, quality, reportFacts, runsModule, schemaModule, spectra, workflow };
 /** Exported functions that run no SQL (they choose or compute from what a query returned). */
 const NOT_QUERIES = new Set(['chooseRun', 'binsUpTo', 'contrastMaxHz', 'contrastStages', 'groupingColumns', 'CohortSchema', 'partViewOf']);
 
@@ -80,6 +81,7 @@ const CALLS: Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>[]
     storedFitRanges: (db, ctx) => fits.storedFitRanges(db, ctx.runId, 'N2', 'recorded', 'mean', 'fit'),
     fitRangeChoices: (db, ctx) => fits.fitRangeChoices(db, ctx.runList, 'N2', 'fit'),
     recordedReferences: (db, ctx) => fits.recordedReferences(db, ctx.runId),
+    channelPositions: (db, ctx) => positions.channelPositions(db, ctx.runId),
   },
   {
     recordingCount: (db, ctx) => reportFacts.recordingCount(db, ctx.runId),

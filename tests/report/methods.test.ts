@@ -22,6 +22,14 @@ describe('methods report', () => {
     expect(methodsReport(cmp, FACTS, LEDGER).markdown).toBe(expected('expected-compare.md'));
   });
 
+  it('says where the channel neighbours of a spatial cluster test came from', () => {
+    // the fixed compare has no channel neighbours; the same result with a two-channel graph
+    const spatial = (neighbours: 'table' | 'positions') => methodsReport({ ...cmp, statistics: { ...cmp.statistics, channelNeighbours: [[1], [0]] }, channelLayout: { neighbours, positions: [] } }, FACTS, LEDGER).markdown;
+    expect(spatial('table')).toContain('and neighbouring channels (the neighbour table given with the contrast);');
+    expect(spatial('positions')).toContain("and neighbouring channels (Delaunay triangulation of the channels' electrode positions (from the recordings' positions files, else the idealised 10-10 positions of their names) projected onto a disk, edges longer than twice the median edge dropped);");
+    expect(methodsReport(cmp, FACTS, LEDGER).markdown).not.toContain('neighbouring channels');
+  });
+
   it('states every parameter of the contrast JSON', () => {
     for (const r of [check, cmp]) {
       const text = methodsReport(r, FACTS, LEDGER).markdown;

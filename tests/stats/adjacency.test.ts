@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { AdjacencyError, delaunayNeighbours, distanceNeighbours, parseNeighbourTsv } from '../../src/core/montage/adjacency.ts';
-import { electrodePosition, projectToDisk } from '../../src/core/montage/positions.ts';
+import { AdjacencyError, channelsMissingFrom, delaunayNeighbours, distanceNeighbours, neighbourTable, parseNeighbourTsv, positionNeighbours, RIM_EDGE_FACTOR, tableNeighbours } from '../../src/core/montage/adjacency.ts';
+import { channelPosition, electrodePosition, projectToDisk, type Position3 } from '../../src/core/montage/positions.ts';
+import { TEN_TEN_64 } from '../../src/core/simulate/synthetic-database.ts';
 import { runPython } from '../helpers/python.ts';
 
 // The 19 electrodes of the 10-20 system (Jasper 1958; 10-10 names per ACNS guideline 2016).
@@ -68,5 +69,63 @@ print(json.dumps(sorted(edges)))`,
     expect(nb).toEqual([[1, 3], [0, 2], [1], [0]]);
     expect(() => parseNeighbourTsv('C3 Cz\n', ['C3', 'Cz'])).toThrow(/line 1/);
     expect(() => parseNeighbourTsv('C3\tC3\n', ['C3', 'Cz'])).toThrow(/lists itself/);
+  });
+
+  it('joins the electrodes of an icosahedral cap to exactly the icosahedron edges among them', () => {
+    // regular icosahedron: a pole, rings of five at polar angle atan 2 (63.43°) and 180° − atan 2,
+    // the lower ring turned 36° (geometry, hand-derived). Without the bottom vertex (11 of 12), the
+    // edges among the rest are 30 − 5 = 25: pole–upper ring (5), around the upper ring (5),
+    // upper–lower zigzag (10), around the lower ring (5); every edge the same length
+    const at = (polarDeg: number, azDeg: number): Position3 => {
+      const t = (polarDeg * Math.PI) / 180;
+      const a = (azDeg * Math.PI) / 180;
+      return { x: Math.sin(t) * Math.sin(a), y: Math.sin(t) * Math.cos(a), z: Math.cos(t) };
+    };
+    const ring = (Math.atan(2) * 180) / Math.PI;
+    const pos = [at(0, 0), ...[0, 1, 2, 3, 4].map((i) => at(ring, 72 * i)), ...[0, 1, 2, 3, 4].map((i) => at(180 - ring, 36 + 72 * i))];
+    const names = pos.map((_, i) => `E${i + 1}`);
+    const up = (i: number) => 1 + (i % 5);
+    const low = (i: number) => 6 + (i % 5);
+    const expected: [number, number][] = [];
+    for (let i = 0; i < 5; i++) expected.push([0, up(i)], [up(i), up(i + 1)], [up(i), low(i)], [up(i + 1), low(i)], [low(i), low(i + 1)]);
+    const want = expected.map(([a, b]) => `${Math.min(a, b)}-${Math.max(a, b)}`).sort();
+    expect(want).toHaveLength(25);
+    expect(edgeSet(positionNeighbours(pos, names))).toEqual(want);
+  });
+
+  it('drops the triangulation edges longer than twice its median edge, as scipy Delaunay with that rule', () => {
+    // outside reference: scipy.spatial.Delaunay (Qhull) of the projected 64 10-10 sites, edges
+    // kept when their 3-D chord is at most RIM_EDGE_FACTOR × the median edge
+    const pos = TEN_TEN_64.map((c) => channelPosition(c)!);
+    const ref = runPython<number[][]>(
+      `from scipy.spatial import Delaunay
+xy = numpy.fromfile(inputs['xy']).reshape(-1, 2)
+p = numpy.fromfile(inputs['p']).reshape(-1, 3)
+edges = set()
+for s in Delaunay(xy).simplices:
+    for i in range(3):
+        a, b = sorted((int(s[i]), int(s[(i + 1) % 3])))
+        edges.add((a, b))
+edges = sorted(edges)
+length = [float(numpy.linalg.norm(p[a] - p[b])) for a, b in edges]
+limit = ${RIM_EDGE_FACTOR} * float(numpy.median(length))
+print(json.dumps([[a, b] for (a, b), l in zip(edges, length) if l <= limit]))`,
+      { xy: pos.flatMap((p) => { const d = projectToDisk(p); return [d.x, d.y]; }), p: pos.flatMap((p) => [p.x, p.y, p.z]) },
+    );
+    const nb = positionNeighbours(pos, [...TEN_TEN_64]);
+    expect(edgeSet(nb)).toEqual(ref.map(([a, b]) => `${a}-${b}`).sort());
+    // the two rim edges across the back of the ear are the ones dropped (2.13 × the median)
+    const name = (c: string) => TEN_TEN_64.indexOf(c);
+    expect(nb[name('PO7')]).not.toContain(name('TP9'));
+    expect(nb[name('PO8')]).not.toContain(name('TP10'));
+    expect(nb[name('PO7')]).toContain(name('P7'));
+  });
+
+  it('turns a neighbour table into a graph over the contrast channels and names channels it does not mention', () => {
+    const table = neighbourTable('E1\tE2,E3\nE2\t\nE4\tE9\n');
+    expect(table).toEqual({ E1: ['E2', 'E3'], E2: [], E4: ['E9'] });
+    expect(tableNeighbours(table, ['e1', 'E2', 'E3'])).toEqual([[1, 2], [0], [0]]);
+    expect(channelsMissingFrom(table, ['E1', 'E3', 'E5'])).toEqual(['E5']);
+    expect(() => neighbourTable('E1\tE2\nE1\tE3\n')).toThrow('neighbour table line 2: channel "E1" is on line 1 already');
   });
 });

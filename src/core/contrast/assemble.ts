@@ -10,6 +10,8 @@ import { individualBands, type IndividualCentre } from './individual-bands.ts';
 import { measureLayout, measureValues, type MeasureLayout } from './measure.ts';
 import type { Band } from '../spectrum/bands.ts';
 import { mixedRecordedReferences } from './recorded-references.ts';
+import { ContrastDataError } from './data-error.ts';
+import { channelLayout, type ChannelLayout } from './channel-layout.ts';
 import type { PermutationTestInput, Design } from '../stats/index.ts';
 import type { Stage } from '../stages.ts';
 
@@ -32,14 +34,14 @@ export interface AssembledContrast {
   channels: string[];
   /** individual bands: each analysed subject's centre and edges per condition and band (empty for fixed bands) */
   individualCentres: IndividualCentre[];
+  /** the channels' positions and where their neighbours came from (channel-layout.ts) */
+  channelLayout: ChannelLayout;
 }
 
 /** The band a subject uses in a condition (index into contrastConditions) in place of a band of the layout. */
 export type BandResolver = (subject: string, condition: number, band: Band) => Band;
 
-export class ContrastDataError extends Error {
-  override name = 'ContrastDataError';
-}
+export { ContrastDataError };
 
 function key(subject: string, session: string | null, channel: string, stage: Stage): string {
   return `${subject}\u0000${session ?? ''}\u0000${channel}\u0000${stage}`;
@@ -261,17 +263,22 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
   }
   if (design.kind !== 'paired' && design.nuisance && design.nuisance.length === 0) delete design.nuisance;
   const pointChannels = c.channelAverage ? [`mean(${channels.join(',')})`] : channels;
+  // neighbours from the contrast's table or the positions stored for the recordings used
+  const used = new Set(kept.flatMap((k) => conds.map((d) => `${k.subject}\u0000${d.session ?? sessionsOf.get(k.subject)!.values().next().value ?? ''}`)));
+  const spatial = !c.channelAverage && channels.length >= 2;
+  const placed = channelLayout(c, channels, data, used, spatial);
+  const channelLayoutOfPoints: ChannelLayout = c.channelAverage ? { neighbours: 'none', positions: [null] } : placed.layout;
   const input: PermutationTestInput = {
     channels: pointChannels,
     freqsHz: layout.freqsHz,
     data: data0,
     design,
-    ...(c.channelAverage || channels.length < 2 ? { channelNeighbours: null } : {}),
+    channelNeighbours: placed.graph,
     ...(layout.missingAllowed || anyExcludedChannel ? { allowMissing: true } : {}),
   };
   const inAnalysis = new Set(kept.map((k) => k.subject));
   const individualCentres = centres.filter((x) => inAnalysis.has(x.subject));
-  return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels, individualCentres };
+  return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels, individualCentres, channelLayout: channelLayoutOfPoints };
 }
 
 function nuisanceColumns(c: Contrast, kept: { nuisance: number[] }[]): { name: string; values: number[] }[] {

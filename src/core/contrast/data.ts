@@ -65,6 +65,16 @@ export interface RecordedReference {
   referenceElectrode: string | null;
 }
 
+/** Where a stored channel of a recording sits: a direction on the unit sphere (channels.x, y, z; x right, y front, z up). */
+export interface ChannelPositionRow {
+  subject: string;
+  session: string | null;
+  channel: string;
+  x: number;
+  y: number;
+  z: number;
+}
+
 export interface ContrastData {
   spectra: CohortSpectra;
   aperiodic: AperiodicRow[];
@@ -74,4 +84,6 @@ export interface ContrastData {
   exclusions: Exclusion[];
   /** for a contrast on the 'recorded' reference: each channel's recorded reference (absent: not checked) */
   recordedReferences?: RecordedReference[];
+  /** stored channel positions of the run (rows with a position; absent: the 10-10 positions of the names) */
+  positions?: ChannelPositionRow[];
 }

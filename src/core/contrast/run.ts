@@ -8,6 +8,7 @@ import type { IndividualCentre } from './individual-bands.ts';
 import { ContrastDataError } from './assemble.ts';
 import type { ContrastData, Exclusion } from './data.ts';
 import { assembleContrast, type AssembledContrast, type Participation } from './assemble.ts';
+import type { ChannelLayout } from './channel-layout.ts';
 import {
   finishPermutationTest, preparePermutationTest, runPermutations,
   type PermutationTestOptions, type PermutationTestResult, type NullMaxima, type PermutationRange, type PreparedPermutationTest, type ProgressCallback,
@@ -41,6 +42,8 @@ export interface CompareResult {
   notes: string[];
   /** individual bands: each subject's centre and edges (absent for fixed bands) */
   individualCentres?: IndividualCentre[];
+  /** the channels' positions (statistics.channels order) and where their neighbours came from */
+  channelLayout: ChannelLayout;
 }
 
 export interface PointValues {
@@ -137,6 +140,7 @@ export function finishCompare(p: PreparedCompare, nulls: NullMaxima): CompareRes
     statistics,
     ...pointValues(a, statistics),
     ...(c.bandDefinition === 'individual' ? { individualCentres: a.individualCentres } : {}),
+    channelLayout: a.channelLayout,
   };
 }
 

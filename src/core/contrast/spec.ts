@@ -88,6 +88,13 @@ export const contrastSchema = z
     /** subjects or channels left out (a channel exclusion is missing data for that channel where the design allows it) */
     exclusions: z.array(exclusion).default([]),
     tfce: z.object({ E: z.number().positive(), H: z.number().positive(), dh: z.number().positive() }).partial().optional(),
+    /**
+     * the channels' neighbours, {channel: [neighbour, …]} (symmetrised; channels of the table not
+     * in the contrast are ignored), instead of the neighbours of the stored positions
+     */
+    neighbours: z
+      .record(z.string().min(1), z.array(z.string().min(1)), { error: '"neighbours" must be a table {channel: [neighbour, …]} (the command line reads a TSV file with --neighbours)' })
+      .optional(),
   })
   .strict()
   .superRefine((c, ctx) => {

@@ -81,10 +81,19 @@ const named = (list: readonly string[], ...names: string[]) => {
   return list.some((x) => wanted.has(x.trim().toUpperCase()));
 };
 
+/** A label that starts with a type word (EEG C3, EOG E1): its type is the label's own (labels.ts). */
+const TYPE_PREFIX = /^\s*(EEG|EOG|EMG|ECG|EKG|RESP|MISC)([\s_]|$)/i;
+
+/**
+ * The analysed channels. `onPositionsFile` (upper-case electrode names of the recording's
+ * positions file): a label without a type word whose electrode the file names, in a voltage
+ * unit, is EEG (a net numbered E1 … E256, whose E1/E2 are not the AASM eye electrodes).
+ */
 export function selectChannels(
   signals: readonly SignalDescription[],
   bidsChannels: readonly BidsChannelRow[],
   options: SelectionOptions,
+  onPositionsFile: ReadonlySet<string> = new Set(),
 ): SelectedChannel[] {
   const bids = new Map(bidsChannels.map((c) => [c.name.trim().toUpperCase(), c]));
   const out: SelectedChannel[] = [];
@@ -92,7 +101,8 @@ export function selectChannels(
     const parsed = parseChannelLabel(s.label, s.physicalDimension);
     const b = bids.get(s.label.trim().toUpperCase());
     // BIDS _channels.tsv: its type overrides the label's; status 'bad' leaves the channel out
-    const type = b?.type ? b.type.toUpperCase() : parsed.type;
+    const placed = !TYPE_PREFIX.test(s.label) && toMicrovolts(s.physicalDimension) !== null && onPositionsFile.has(parsed.electrode.trim().toUpperCase());
+    const type = b?.type ? b.type.toUpperCase() : placed ? 'EEG' : parsed.type;
     if (b?.status === 'bad') continue;
     const derivation = classifyDerivation(parsed.electrode, parsed.reference);
     // a pair of scalp sites is named as a pair only on an EEG channel (an EMG "C3-C4" keeps its electrode name)

@@ -263,7 +263,14 @@ function compareStatistics(r: CompareResult, refs: Set<ReferenceKey>): { text: s
     corr = 'No correction for multiple comparisons was applied; p-values are uncorrected, from the t distribution.';
   } else {
     refs.add('maris2007');
-    const space = s.channelNeighbours ? ' and neighbouring channels (Delaunay triangulation of the 10-10 electrode positions, or the neighbour table given)' : '';
+    // results written before the layout was recorded (no channelLayout) keep their wording
+    const how =
+      r.channelLayout?.neighbours === 'table'
+        ? 'the neighbour table given with the contrast'
+        : r.channelLayout?.neighbours === 'positions'
+          ? "Delaunay triangulation of the channels' electrode positions (from the recordings' positions files, else the idealised 10-10 positions of their names) projected onto a disk, edges longer than twice the median edge dropped"
+          : 'Delaunay triangulation of the 10-10 electrode positions, or the neighbour table given';
+    const space = s.channelNeighbours ? ` and neighbouring channels (${how})` : '';
     corr =
       `Multiple comparisons were corrected by cluster-based permutation (Maris & Oostenveld 2007): points with |t| above ${g3(s.threshold.t)} (two-tailed p = ${c.clusterP} with ${s.threshold.df} degrees of freedom) formed clusters of one sign along neighbouring frequencies${s.frequencyAdjacency ? '' : ' (none: band points are not neighbours)'}${space}; ` +
       `the cluster statistic was the ${c.correction === 'cluster-size' ? 'number of points' : 'sum of t (mass)'}, compared with the largest |cluster statistic| of each permutation (both signs); ${perm}; ${pRule(s)}.`;

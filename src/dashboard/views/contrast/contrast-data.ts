@@ -3,6 +3,7 @@
 import type { ContrastData, Exclusion } from '../../../core/contrast/data.ts';
 import type { CompareResult } from '../../../core/contrast/run.ts';
 import type { Contrast } from '../../../core/contrast/spec.ts';
+import type { Position3 } from '../../../core/montage/positions.ts';
 import type { Row, SqlClient } from '../../../queries/client.ts';
 import { contrastMaxHz, loadContrastData } from '../../../queries/contrast-data.ts';
 import type { RunInfo } from '../../../queries/runs.ts';
@@ -53,7 +54,7 @@ export function clusterRows(r: CompareResult): Row[] {
 }
 
 /** Mean statistic per channel over a cluster's frequency range (for its scalp map). */
-export function clusterChannelMeans(r: CompareResult, clusterIndex: number): { channel: string; value: number }[] {
+export function clusterChannelMeans(r: CompareResult, clusterIndex: number): { channel: string; value: number; position?: Position3 | null }[] {
   const s = r.statistics;
   const k = s.clusters[clusterIndex];
   const F = s.freqsHz.length;
@@ -65,7 +66,9 @@ export function clusterChannelMeans(r: CompareResult, clusterIndex: number): { c
       sum += s.stat[ch * F + f];
       n++;
     }
-    return { channel, value: n > 0 ? sum / n : Number.NaN };
+    const value = n > 0 ? sum / n : Number.NaN;
+    // where the channel sits (stored at ingest); results written before the layout was recorded: by name
+    return r.channelLayout ? { channel, value, position: r.channelLayout.positions[ch] ?? null } : { channel, value };
   });
 }
 
