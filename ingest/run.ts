@@ -19,6 +19,7 @@ import { openStore } from './store/database.ts';
 import { DiskFullError, isDiskFull } from './store/errors.ts';
 import { cohortQualityPass } from './store/merge.ts';
 import { runIdentity } from './store/identity.ts';
+import { refuseClashes } from '../src/files/output-files.ts';
 import { sortSpectra } from './store/spectra-order.ts';
 
 export type { ShardSpec as Shard } from './cohort/shard.ts';
@@ -72,6 +73,22 @@ export async function runIngest(
   try {
     // rows that cannot be ingested on their own (duplicate subject, file missing or not a regular file) fail alone
     cohort = await discoverCohort(cohortPathOrBidsFolder, { rowProblems: 'per-recording' });
+  } catch (e) {
+    await pool.close();
+    throw e;
+  }
+  try {
+    // the database never overwrites the cohort table, a recording or a scoring file
+    refuseClashes(
+      [
+        ...(cohort.source === 'table' ? [{ what: 'the cohort table', file: cohortPathOrBidsFolder }] : []),
+        ...cohort.recordings.flatMap((r) => [
+          { what: `the recording of row ${r.row}`, file: r.recordingPath },
+          ...(r.scoringPath ? [{ what: `the scoring file of row ${r.row}`, file: r.scoringPath }] : []),
+        ]),
+      ],
+      [{ what: '--out', file: outDb }],
+    );
   } catch (e) {
     await pool.close();
     throw e;

@@ -4,14 +4,13 @@
  * band check of src/core/verdict on the contrast's channels (averaged) and writes the verdict
  * with every effect, its interval and p, and the sentence behind it.
  */
-import { writeFileSync, readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
-import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
 import { bandCheckDatabase, type BandCheckRun } from '../analysis/band-check-runner.ts';
-import { appendLedger } from '../analysis/ledger.ts';
-import { addContrastOptions, contrastOrExit, inputOrExit, type Flags } from './contrast-options.ts';
+import { tryAppendLedger } from '../analysis/ledger.ts';
+import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
+import { addContrastOptions, contrastOrExit, inputOrExit, readExclusions, type Flags } from './contrast-options.ts';
 import { reportUserError } from './user-errors.ts';
 
 interface BandFlags extends Omit<Flags, 'band'> {
@@ -47,9 +46,20 @@ export function register(program: Command): void {
   command.action(async (database: string, flags: BandFlags) => {
     const band = inputOrExit(() => parseBand(flags.band));
     if (!band) return;
+    const ledger = flags.ledger === false ? null : (flags.ledger ?? `${database}.ledger.jsonl`);
+    let exclusions;
+    try {
+      refuseClashes(
+        [{ what: 'the database', file: database }, flags.contrast ? { what: '--contrast', file: flags.contrast } : null, flags.exclusions ? { what: '--exclusions', file: flags.exclusions } : null],
+        [ledger ? { what: 'the ledger', file: ledger } : null, { what: '--out', file: flags.out }],
+      );
+      exclusions = readExclusions(flags.exclusions);
+    } catch (e) {
+      if (reportUserError('band-check', e)) return;
+      throw e;
+    }
     const contrast = contrastOrExit({ ...flags, band: undefined });
     if (!contrast) return;
-    const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
     const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'band check {bar} {value}/{total} tests | {step}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
     let started = false;
     let result: BandCheckRun;
@@ -72,11 +82,17 @@ export function register(program: Command): void {
       throw e;
     }
     bar?.stop();
-    writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
+    try {
+      writeFileReplacing(flags.out, JSON.stringify(result, null, 2) + '\n');
+    } catch (e) {
+      if (reportUserError('band-check', e)) return;
+      throw e;
+    }
     // the ledger records the band with the contrast
-    if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p });
+    const ledgerWarning = ledger ? tryAppendLedger(ledger, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p }) : null;
     console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}${result.periodicKind ? ` (${result.periodicKind})` : ''}`);
     console.log(result.sentence);
     console.log(`wrote ${flags.out}`);
+    if (ledgerWarning) console.error(`bandwise band-check: ${ledgerWarning}`);
   });
 }

@@ -2,13 +2,12 @@
  * `bandwise compare <cohort.duckdb> (--contrast contrast.json | options) --out result.json`
  * Runs one contrast headless: the same contrast JSON the dashboard saves, the same engine.
  */
-import { readFileSync, writeFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
-import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
 import { compareDatabase, type CompareRun } from '../analysis/compare-runner.ts';
-import { appendLedger } from '../analysis/ledger.ts';
-import { addContrastOptions, contrastOrExit, type Flags } from './contrast-options.ts';
+import { tryAppendLedger } from '../analysis/ledger.ts';
+import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
+import { addContrastOptions, contrastOrExit, readExclusions, type Flags } from './contrast-options.ts';
 import { reportUserError } from './user-errors.ts';
 
 const threadCount = (v: string) => {
@@ -59,9 +58,20 @@ export function register(program: Command): void {
   addContrastOptions(command, { bandMeasures: true });
   command
     .action(async (database: string, flags: Flags) => {
+      const ledger = flags.ledger === false ? null : (flags.ledger ?? `${database}.ledger.jsonl`);
+      let exclusions;
+      try {
+        refuseClashes(
+          [{ what: 'the database', file: database }, flags.contrast ? { what: '--contrast', file: flags.contrast } : null, flags.exclusions ? { what: '--exclusions', file: flags.exclusions } : null],
+          [ledger ? { what: 'the ledger', file: ledger } : null, { what: '--out', file: flags.out }, flags.tsv ? { what: '--tsv', file: flags.tsv } : null, flags.pointsTsv ? { what: '--points-tsv', file: flags.pointsTsv } : null],
+        );
+        exclusions = readExclusions(flags.exclusions);
+      } catch (e) {
+        if (reportUserError('compare', e)) return;
+        throw e;
+      }
       const contrast = contrastOrExit(flags);
       if (!contrast) return;
-      const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];
       const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'permutations {bar} {value}/{total} | ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
       let started = false;
       let result: CompareRun;
@@ -80,14 +90,20 @@ export function register(program: Command): void {
         throw e;
       }
       bar?.stop();
-      writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
-      if (flags.tsv) writeFileSync(flags.tsv, clustersTsv(result));
-      if (flags.pointsTsv) writeFileSync(flags.pointsTsv, pointsTsv(result));
-      if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, result);
+      try {
+        writeFileReplacing(flags.out, JSON.stringify(result, null, 2) + '\n');
+        if (flags.tsv) writeFileReplacing(flags.tsv, clustersTsv(result));
+        if (flags.pointsTsv) writeFileReplacing(flags.pointsTsv, pointsTsv(result));
+      } catch (e) {
+        if (reportUserError('compare', e)) return;
+        throw e;
+      }
+      const ledgerWarning = ledger ? tryAppendLedger(ledger, database, result) : null;
       const n = Object.entries(result.n).map(([k, v]) => `${k} ${v}`).join(', ');
       const best = result.clusters[0];
       console.log(`${result.measure}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${best.sign > 0 ? '+' : '−'}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
       for (const note of result.notes) console.log(note);
       console.log(`wrote ${flags.out}`);
+      if (ledgerWarning) console.error(`bandwise compare: ${ledgerWarning}`);
     });
 }

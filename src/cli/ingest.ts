@@ -14,9 +14,12 @@ import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
 import { readLabelMap } from '../../ingest/hypnogram/label-map.ts';
 import { parseShard, runIngest, type IngestEvent } from '../../ingest/run.ts';
 import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../../ingest/pipeline.ts';
+import { OutputClashError } from '../files/output-files.ts';
 
 export const EXIT_OK = 0;
 export const EXIT_FATAL = 1;
+/** --out is the cohort table, a recording or a scoring file: refused, nothing written. */
+export const EXIT_OUTPUT_REFUSED = 2;
 export const EXIT_PARTLY_FAILED = 3;
 
 const D = DEFAULT_INGEST_PARAMS;
@@ -200,6 +203,6 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
   } catch (e) {
     bars?.stop();
     console.error(`bandwise ingest: ${(e as Error).message}`);
-    return EXIT_FATAL;
+    return e instanceof OutputClashError ? EXIT_OUTPUT_REFUSED : EXIT_FATAL;
   }
 }
