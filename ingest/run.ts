@@ -32,6 +32,12 @@ export interface IngestOptions {
   shard?: ShardSpec | null;
   /** Tool version recorded in runs (default: package.json's). */
   toolVersion?: string;
+  /**
+   * Aborted (Ctrl-C, SIGTERM): no more recordings are taken, the workers stop, a write in
+   * progress finishes (its one transaction commits or rolls back), the database is checkpointed
+   * and closed, and the summary says `interrupted`; the run stays unfinished, a rerun resumes.
+   */
+  signal?: AbortSignal;
 }
 
 export type IngestEvent =
@@ -52,6 +58,10 @@ export interface IngestSummary {
   failed: IngestFailure[];
   /** Rows written by the cohort-level quality pass (robust distance from the cohort median). */
   cohortQualityRows: number;
+  /** True when the signal stopped the run before its end (the run is unfinished). */
+  interrupted: boolean;
+  /** Recordings of this ingest neither stored, skipped nor failed (an interrupted run). */
+  notProcessed: number;
 }
 
 export { parseShard } from './cohort/shard.ts';
@@ -100,7 +110,14 @@ export async function runIngest(
   // their first recordings while the store opens: each hashes its file, then waits for the store
   // to say whether that recording is stored already
   const runId = runIdentity(params).runId;
-  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0 };
+  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0, interrupted: false, notProcessed: 0 };
+  // an interrupt stops the workers at once; the lanes then take no more recordings
+  const onAbort = () => {
+    summary.interrupted = true;
+    void pool.close();
+  };
+  if (options.signal?.aborted) onAbort();
+  else options.signal?.addEventListener('abort', onAbort, { once: true });
   const opened = openStore(outDb, { create: true });
   const ready = opened.then(async (store) => {
     const begun = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.k}/${shard.n}` : null });
@@ -139,6 +156,7 @@ export async function runIngest(
         });
       } catch (e) {
         await ready; // a store that did not open is the error to report, not this recording's
+        if (summary.interrupted) return; // stopped by the interrupt: not a failure of this recording
         const step = e instanceof WorkerTaskError ? e.step : 'process';
         return fail(rec, step, e instanceof WorkerTaskError ? e.field : null, (e as Error).message);
       }
@@ -149,7 +167,7 @@ export async function runIngest(
         progress?.({ kind: 'recording', file: shown(rec), state: 'skipped' });
         return;
       }
-      if (stopped) return;
+      if (stopped || summary.interrupted) return;
       bundle.recording.fileName = shown(rec);
       try {
         await store.writeRecording(bundle);
@@ -169,7 +187,7 @@ export async function runIngest(
     // a few recordings in flight beyond the workers (hashing, writing), never the whole cohort at once
     let next = 0;
     const lanes = Array.from({ length: Math.min(recordings.length, pool.size + 1) }, async () => {
-      while (next < recordings.length && !stopped) await one(recordings[next++]);
+      while (next < recordings.length && !stopped && !summary.interrupted) await one(recordings[next++]);
     });
     // every lane settles before the pool and the store close; the first error is the one reported
     // (the store's own, when it did not open or begin the run)
@@ -177,6 +195,11 @@ export async function runIngest(
     const laneError = ended.find((r): r is PromiseRejectedResult => r.status === 'rejected');
     if (laneError) throw laneError.reason;
     const store = await ready;
+    if (summary.interrupted) {
+      // unfinished: no cohort pass, no finish mark; the close below checkpoints what was committed
+      summary.notProcessed = recordings.length - summary.done - summary.skipped - summary.failed.length;
+      return summary;
+    }
     try {
       // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
       summary.cohortQualityRows = await cohortQualityPass(store);
@@ -190,6 +213,7 @@ export async function runIngest(
     failure = e;
     throw e;
   } finally {
+    options.signal?.removeEventListener('abort', onAbort);
     await pool.close();
     // a close that fails (its checkpoint on a full disk) must not hide the first error
     const store = await opened.catch(() => null);

@@ -8,7 +8,7 @@
  * read the file; `duckdb_databases().tags` reports it, and the file header holds the storage
  * version number as a little-endian uint64 after 8 checksum bytes and the magic "DUCK".
  */
-import { closeSync, existsSync, openSync, readSync } from 'node:fs';
+import { closeSync, existsSync, openSync, readSync, statSync } from 'node:fs';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { DatabaseBusyError, StoreError } from './errors.ts';
 import { schemaSql, TABLES } from './schema.ts';
@@ -102,4 +102,27 @@ export function readHeaderStorageNumber(path: string): number {
     closeSync(fd);
   }
   return Number(header.readBigUInt64LE(12));
+}
+
+/**
+ * A write-ahead log left beside the file by a writer that was stopped (SIGKILL, a power cut)
+ * holds committed data the file itself does not. A reader through DuckDB replays it, but the
+ * dashboard's browser reads the file alone: so the log is checkpointed into the file first (what
+ * opening the file for writing does; DuckDB docs, "CHECKPOINT"). True when there was one.
+ */
+export async function checkpointLeftoverLog(path: string): Promise<boolean> {
+  const wal = `${path}.wal`;
+  if (!existsSync(wal) || statSync(wal).size === 0) return false;
+  const instance = await DuckDBInstance.create(':memory:', { autoinstall_known_extensions: 'false', autoload_known_extensions: 'false' });
+  const connection = await instance.connect();
+  try {
+    await connection.run(`ATTACH '${path.replaceAll("'", "''")}' AS ${STORE_ALIAS}`);
+    await connection.run(`CHECKPOINT ${STORE_ALIAS}`);
+  } catch (e) {
+    throw DatabaseBusyError.from(path, false, e) ?? new StoreError(`${path} has a write-ahead log ${wal} that could not be written into it: ${(e as Error).message}`);
+  } finally {
+    connection.closeSync();
+    instance.closeSync();
+  }
+  return true;
 }

@@ -16,8 +16,8 @@ export interface BandCheckData extends LoadedContrast {
 }
 
 /** Spectra, aperiodic fits and peaks of the contrast's stage(s), and the one fit range they share. */
-export async function loadBandCheckData(store: Store, c: Contrast, exclusions: Exclusion[], runId?: string): Promise<BandCheckData> {
-  const loaded = await loadContrastData(store, { ...c, measure: 'residual' }, exclusions, runId);
+export async function loadBandCheckData(store: Store, c: Contrast, exclusions: Exclusion[], runId?: string, file?: string): Promise<BandCheckData> {
+  const loaded = await loadContrastData(store, { ...c, measure: 'residual' }, exclusions, runId, file);
   const stages = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
   const ranges: [number, number][] = [];
   for (const stage of stages) {
@@ -35,15 +35,15 @@ export async function loadBandCheckData(store: Store, c: Contrast, exclusions: E
 }
 
 export interface BandCheckRun extends BandCheckResult {
-  database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown };
+  database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown; runFinished: boolean };
 }
 
 export async function bandCheckDatabase(dbPath: string, c: Contrast, band: Band, exclusions: Exclusion[], options: Omit<BandCheckOptions, 'fitRangeHz'> = {}, runId?: string): Promise<BandCheckRun> {
   const store = await openStore(dbPath, { readOnly: true });
   try {
-    const loaded = await loadBandCheckData(store, c, exclusions, runId);
+    const loaded = await loadBandCheckData(store, c, exclusions, runId, dbPath);
     const result = bandCheck(c, band, loaded.data, { ...options, fitRangeHz: loaded.fitRangeHz });
-    return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } };
+    return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters, runFinished: loaded.runFinished } };
   } finally {
     await store.close();
   }

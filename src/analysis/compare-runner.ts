@@ -2,7 +2,7 @@
  * Reads what a contrast needs from a bandwise database (Node's DuckDB) into the pure form of
  * src/core/contrast, and runs it (its permutations on several threads when it is large).
  */
-import { openStore, type Store } from '../../ingest/store/index.ts';
+import { openStore, StoreError, type Store } from '../../ingest/store/index.ts';
 import { listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, readRecordedReferences } from './store-read.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
 import type { ContrastData, Exclusion, SpectrumRow } from '../core/contrast/data.ts';
@@ -17,20 +17,50 @@ export interface LoadedContrast {
   runId: string;
   runParameters: unknown;
   toolVersion: string;
+  /** false: the run named with --run had not finished (interrupted or still running); its cohort may be partial */
+  runFinished: boolean;
   data: ContrastData;
 }
 
-/** The run a contrast reads: the one given, or the only/most recent finished one. */
-export async function chooseRun(store: Store, runId?: string): Promise<{ runId: string; parameters: unknown; toolVersion: string }> {
-  const runs = await listRuns(store);
-  if (runs.length === 0) throw new Error('the database holds no ingest run');
-  const chosen = runId ? runs.find((r) => r.runId === runId) : [...runs].reverse().find((r) => r.finishedAt !== null) ?? runs[runs.length - 1];
-  if (!chosen) throw new Error(`no run ${runId} in the database (runs: ${runs.map((r) => r.runId).join(', ')})`);
-  return { runId: chosen.runId, parameters: chosen.parameters, toolVersion: chosen.toolVersion };
+export interface ChosenRun {
+  runId: string;
+  parameters: unknown;
+  toolVersion: string;
+  finished: boolean;
 }
 
-export async function loadContrastData(store: Store, c: Contrast, exclusions: Exclusion[], runId?: string): Promise<LoadedContrast> {
-  const run = await chooseRun(store, runId);
+/**
+ * The run an analysis reads: the one named, finished or not, or else the most recent finished
+ * one. An unfinished run (interrupted, or still being written) is never taken unasked: its
+ * cohort may lack recordings the cohort table lists.
+ */
+export async function chooseRun(store: Store, runId?: string, file = 'the database'): Promise<ChosenRun> {
+  const runs = await listRuns(store);
+  if (runs.length === 0) throw new StoreError(`${file} holds no ingest run`);
+  const chosen = runId ? runs.find((r) => r.runId === runId) : [...runs].reverse().find((r) => r.finishedAt !== null);
+  if (runId && !chosen) throw new StoreError(`${file} has no run ${runId} (its runs: ${runs.map((r) => r.runId).join(', ')})`);
+  if (!chosen) {
+    const last = runs[runs.length - 1];
+    const n = await recordingCount(store, last.runId);
+    throw new StoreError(
+      `${file} holds no finished ingest run: run ${last.runId} stopped before its end with ${n} recording${n === 1 ? '' : 's'} stored. ` +
+        `Rerun the same ingest to finish it, or name the run with --run ${last.runId} to analyse what it stored`,
+    );
+  }
+  return { runId: chosen.runId, parameters: chosen.parameters, toolVersion: chosen.toolVersion, finished: chosen.finishedAt !== null };
+}
+
+async function recordingCount(store: Store, runId: string): Promise<number> {
+  return store.exclusive(async () => Number((await store.connection.runAndReadAll('SELECT count(*) AS n FROM recordings WHERE run_id = $1', [runId])).getRowObjectsJS()[0].n));
+}
+
+/** The note an analysis of an unfinished run carries (result notes, command output). */
+export function unfinishedRunNote(runId: string): string {
+  return `run ${runId} is unfinished (interrupted or still being written): the analysis used the recordings it had stored, which may not be the whole cohort`;
+}
+
+export async function loadContrastData(store: Store, c: Contrast, exclusions: Exclusion[], runId?: string, file?: string): Promise<LoadedContrast> {
+  const run = await chooseRun(store, runId, file);
   const stages: Stage[] = c.design === 'paired' && c.stages ? [...c.stages] : [c.stage];
   const needs = measureNeeds(c.measure);
   const rows: SpectrumRow[] = [];
@@ -72,11 +102,11 @@ export async function loadContrastData(store: Store, c: Contrast, exclusions: Ex
   const participants = table.rows.map((r) => Object.fromEntries(table.columns.map((col, i) => [col.name, r[i]])));
   // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)
   const recordedReferences = c.reference === 'recorded' ? await readRecordedReferences(store, run.runId) : undefined;
-  return { runId: run.runId, runParameters: run.parameters, toolVersion: run.toolVersion, data: { spectra: { ...axis, rows }, aperiodic, peaks, participants, exclusions, recordedReferences } };
+  return { runId: run.runId, runParameters: run.parameters, toolVersion: run.toolVersion, runFinished: run.finished, data: { spectra: { ...axis, rows }, aperiodic, peaks, participants, exclusions, recordedReferences } };
 }
 
 export interface CompareRun extends CompareResult {
-  database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown };
+  database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown; runFinished: boolean };
 }
 
 export interface CompareOptions {
@@ -93,7 +123,7 @@ async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[
   const store = await openStore(dbPath, { readOnly: true });
   let loaded: LoadedContrast;
   try {
-    loaded = await loadContrastData(store, c, exclusions, runId);
+    loaded = await loadContrastData(store, c, exclusions, runId, dbPath);
   } finally {
     // closed before the permutations, so DuckDB's cached pages are not held during them
     await store.close();
@@ -113,5 +143,6 @@ export async function compareDatabase(dbPath: string, c: Contrast, exclusions: E
   if (options.threads !== undefined && !(Number.isInteger(options.threads) && options.threads >= 1)) throw new RangeError(`invalid number of threads: ${options.threads}`);
   const { info, assembled, threads } = await loadAssembled(dbPath, c, exclusions, runId, options.threads);
   const result = await compareOnThreads(c, assembled, threads, onProgress);
-  return { ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters } };
+  const notes = info.runFinished ? result.notes : [unfinishedRunNote(info.runId), ...result.notes];
+  return { ...result, notes, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters, runFinished: info.runFinished } };
 }

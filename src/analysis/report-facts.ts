@@ -27,7 +27,7 @@ export async function storedFitRanges(store: Store, runId: string, stage: string
 }
 
 export async function databaseFacts(store: Store, file: string, c: Contrast, runId?: string): Promise<DatabaseFacts> {
-  const run = await chooseRun(store, runId);
+  const run = await chooseRun(store, runId, file);
   const recs = await rows(store, 'SELECT count(*) AS n FROM recordings WHERE run_id = $1', [run.runId]);
   const fs = await rows(store, 'SELECT DISTINCT c.fs_hz FROM channels c JOIN recordings r USING (recording_id) WHERE r.run_id = $1 ORDER BY 1', [run.runId]);
   const ch = await rows(store, 'SELECT min(n) AS lo, max(n) AS hi FROM (SELECT count(*) AS n FROM channels c JOIN recordings r USING (recording_id) WHERE r.run_id = $1 GROUP BY c.recording_id)', [run.runId]);
@@ -60,6 +60,7 @@ export async function databaseFacts(store: Store, file: string, c: Contrast, run
     file: file.split(/[\\/]/).pop()!,
     runId: run.runId,
     toolVersion: run.toolVersion,
+    runFinished: run.finished,
     ingestParameters: run.parameters,
     recordings: Number(recs[0].n),
     samplingRatesHz: fs.map((x) => Number(x.fs_hz)),

@@ -9,6 +9,7 @@ import cliProgress from 'cli-progress';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
 import { bandCheckDatabase, type BandCheckRun } from '../analysis/band-check-runner.ts';
 import { tryAppendLedger } from '../analysis/ledger.ts';
+import { unfinishedRunNote } from '../analysis/compare-runner.ts';
 import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
 import { addContrastOptions, contrastOrExit, inputOrExit, readExclusions, type Flags } from './contrast-options.ts';
 import { reportUserError } from './user-errors.ts';
@@ -92,6 +93,7 @@ export function register(program: Command): void {
     const ledgerWarning = ledger ? tryAppendLedger(ledger, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p }) : null;
     console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}${result.periodicKind ? ` (${result.periodicKind})` : ''}`);
     console.log(result.sentence);
+    if (!result.database.runFinished) console.log(unfinishedRunNote(result.database.runId));
     console.log(`wrote ${flags.out}`);
     if (ledgerWarning) console.error(`bandwise band-check: ${ledgerWarning}`);
   });

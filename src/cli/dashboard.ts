@@ -1,7 +1,8 @@
 /** `bandwise dashboard <cohort.duckdb> [--port P]`: the dashboard on 127.0.0.1 for one database. */
 import { Command, InvalidArgumentError } from 'commander';
 import { serveDashboard, waitForSignal } from '../server/launcher.ts';
-import { openStore } from '../../ingest/store/database.ts';
+import { checkpointLeftoverLog, openStore } from '../../ingest/store/database.ts';
+import { chooseRun } from '../analysis/compare-runner.ts';
 import { reportUserError } from './user-errors.ts';
 
 export function register(program: Command): void {
@@ -23,7 +24,14 @@ export function register(program: Command): void {
     .action(async (database: string, flags: { port?: number; rebuild?: boolean }) => {
       try {
         // the browser reads the file as it is on disk: refuse one another process is writing (its lock says so)
-        await (await openStore(database, { readOnly: true })).close();
+        const store = await openStore(database, { readOnly: true });
+        try {
+          // the views read the most recent finished run: refuse a database with none
+          await chooseRun(store, undefined, database);
+        } finally {
+          await store.close();
+        }
+        if (await checkpointLeftoverLog(database)) console.log(`the write-ahead log ${database}.wal (left by a writer that was stopped) was folded into the file`);
       } catch (e) {
         if (reportUserError('dashboard', e)) return;
         throw e;

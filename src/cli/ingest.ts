@@ -20,6 +20,8 @@ export const EXIT_OK = 0;
 export const EXIT_FATAL = 1;
 /** --out is the cohort table, a recording or a scoring file: refused, nothing written. */
 export const EXIT_OUTPUT_REFUSED = 2;
+/** Interrupted (128 + signal number): 130 Ctrl-C (SIGINT), 143 SIGTERM; what was stored is kept, a rerun resumes. */
+export const EXIT_INTERRUPTED = { SIGINT: 130, SIGTERM: 143 } as const;
 export const EXIT_PARTLY_FAILED = 3;
 
 const D = DEFAULT_INGEST_PARAMS;
@@ -192,9 +194,32 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
       if (e.state === 'failed') bars.log(`failed: ${e.file}: ${e.message}\n`);
     }
   };
+  // Ctrl-C or SIGTERM: stop taking recordings, let the write in progress end, checkpoint, report;
+  // a second signal leaves at once (what was committed is in DuckDB's log, replayed on the next open)
+  const interrupt = new AbortController();
+  let caught: NodeJS.Signals | null = null;
+  const onSignal = (signal: NodeJS.Signals) => {
+    if (caught) {
+      bars?.stop();
+      process.exit(exitStatusFor(signal));
+    }
+    caught = signal;
+    interrupt.abort();
+  };
+  process.on('SIGINT', onSignal);
+  process.on('SIGTERM', onSignal);
   try {
-    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard }, onEvent);
+    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard, signal: interrupt.signal }, onEvent);
     bars?.stop();
+    if (summary.interrupted) {
+      const stored = summary.done + summary.skipped;
+      console.error(
+        `bandwise ingest: interrupted by ${caught ?? 'a signal'}: run ${summary.runId} is unfinished; ${stored} recording${stored === 1 ? '' : 's'} stored ` +
+          `(${summary.done} now, ${summary.skipped} before), ${summary.failed.length} failed, ${summary.notProcessed} not processed; ` +
+          'rerun the same command to resume: recordings already stored are skipped',
+      );
+      return exitStatusFor(caught ?? 'SIGINT');
+    }
     const secs = (Date.now() - t0) / 1000;
     console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, in ${secs.toFixed(1)} s`);
     for (const x of summary.failed) console.log(`  failed ${x.file} at ${x.step}: ${x.message}`);
@@ -204,5 +229,13 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
     bars?.stop();
     console.error(`bandwise ingest: ${(e as Error).message}`);
     return e instanceof OutputClashError ? EXIT_OUTPUT_REFUSED : EXIT_FATAL;
+  } finally {
+    process.off('SIGINT', onSignal);
+    process.off('SIGTERM', onSignal);
   }
+}
+
+/** The exit status of a run stopped by this signal. */
+function exitStatusFor(signal: NodeJS.Signals): number {
+  return signal === 'SIGTERM' ? EXIT_INTERRUPTED.SIGTERM : EXIT_INTERRUPTED.SIGINT;
 }

@@ -8,10 +8,12 @@ import { listColumnRowsInto, numberColumn, stringColumn } from './arrow-rows.ts'
 import { participants, type CohortSchema, type RunInfo } from './queries.ts';
 import { COHORT, literal, resultBatches, type SqlClient } from './sql-client.ts';
 
-/** The run a contrast reads: the most recent finished one, else the last one (as the command line). */
+/** The run the views read: the most recent finished one (as the command line); an unfinished run may be a partial cohort. */
 export function chooseRun(runs: readonly RunInfo[]): RunInfo {
   if (runs.length === 0) throw new Error('the database holds no ingest run');
-  return [...runs].reverse().find((r) => r.finishedAt !== null) ?? runs[runs.length - 1];
+  const run = [...runs].reverse().find((r) => r.finishedAt !== null);
+  if (!run) throw new Error(`the database holds no finished ingest run (run ${runs[runs.length - 1].runId} stopped before its end): rerun the ingest to finish it`);
+  return run;
 }
 
 export interface SpectraKey {
