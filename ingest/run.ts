@@ -20,6 +20,7 @@ import { DiskFullError, isDiskFull } from './store/errors.ts';
 import { cohortQualityPass } from './store/merge.ts';
 import { runIdentity } from './store/identity.ts';
 import { refuseClashes } from '../src/files/output-files.ts';
+import { refuseSharedRecordings } from './duplicate-files.ts';
 import { sortSpectra } from './store/spectra-order.ts';
 
 export type { ShardSpec as Shard } from './cohort/shard.ts';
@@ -87,6 +88,8 @@ export async function runIngest(
     await pool.close();
     throw e;
   }
+  // file names relative to the cohort root: no absolute paths (which may name people) in the database
+  const shown = (rec: CohortRecording) => path.relative(cohort.root, rec.recordingPath) || path.basename(rec.recordingPath);
   try {
     // the database never overwrites the cohort table, a recording or a scoring file
     refuseClashes(
@@ -99,6 +102,8 @@ export async function runIngest(
       ],
       [{ what: '--out', file: outDb }],
     );
+    // rows sharing a recording are refused, all of them, before any work (the whole cohort, so every shard agrees)
+    await refuseSharedRecordings(cohort.recordings, shown);
   } catch (e) {
     await pool.close();
     throw e;
@@ -131,8 +136,6 @@ export async function runIngest(
   let storedSoFar = 0;
   const diskFull = (e: unknown, during: string) => new DiskFullError(outDb, during, storedSoFar, e);
   try {
-    // file names relative to the cohort root: no absolute paths (which may name people) in the database
-    const shown = (rec: CohortRecording) => path.relative(cohort.root, rec.recordingPath) || path.basename(rec.recordingPath);
     // messages name files relative to the cohort root too
     const rootPrefix = cohort.root.endsWith(path.sep) ? cohort.root : cohort.root + path.sep;
     // set when the run must stop (disk full): recordings still in flight are neither written nor logged
@@ -152,7 +155,19 @@ export async function runIngest(
         // the worker hashes the file and asks here whether that recording is stored (skipped if so)
         bundle = await pool.process(rec, params, runId, {
           onProgress: (p) => progress?.({ kind: 'progress', file: shown(rec), ...p }),
-          isStored: async (sha) => (await ready).hasRecording(runId, sha),
+          isStored: async (sha) => {
+            const stored = await (await ready).storedRecording(runId, sha);
+            if (stored && (stored.subject !== rec.subject || stored.session !== rec.session)) {
+              const name = (subject: string, session: string | null) => `subject ${subject}${session ? `, session ${session}` : ''}`;
+              throw new WorkerTaskError(
+                'cohort',
+                'subject',
+                `row ${rec.row} (${name(rec.subject, rec.session)}): this recording is stored in run ${runId} under ${name(stored.subject, stored.session)}; ` +
+                  `the table now names ${name(rec.subject, rec.session)}. Ingest into a new database file to store it under the new name`,
+              );
+            }
+            return stored !== null;
+          },
         });
       } catch (e) {
         await ready; // a store that did not open is the error to report, not this recording's

@@ -149,6 +149,15 @@ export class Store {
     });
   }
 
+  /** The subject and session a recording with this file hash is stored under in this run, or null. */
+  storedRecording(runId: string, fileSha256: string): Promise<{ subject: string; session: string | null } | null> {
+    return this.exclusive(async () => {
+      const found = await this.rows('SELECT subject, session FROM recordings WHERE run_id = $1 AND file_sha256 = $2', [runId, fileSha256]);
+      if (found.length === 0) return null;
+      return { subject: String(found[0].subject), session: found[0].session === null ? null : String(found[0].session) };
+    });
+  }
+
   /** Write one recording and everything computed from it in ONE transaction; returns its recording_id. */
   writeRecording(bundle: RecordingBundle): Promise<string> {
     return this.exclusive(async () => {
@@ -157,7 +166,7 @@ export class Store {
       const stored = await this.rows('SELECT 1 AS one FROM recordings WHERE recording_id = $1', [id]);
       if (stored.length > 0) {
         throw new StoreError(
-          `${bundle.recording.fileName} (file hash ${bundle.recording.fileSha256.slice(0, 12)}…) is already stored in run ${bundle.runId}; check hasRecording first`,
+          `${bundle.recording.fileName} (file hash ${bundle.recording.fileSha256.slice(0, 12)}…) is already stored in run ${bundle.runId}`,
           { table: 'recordings' },
         );
       }
