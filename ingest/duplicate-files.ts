@@ -46,9 +46,10 @@ export async function refuseSharedRecordings(recordings: readonly CohortRecordin
   for (const [sha, rows] of byContent) {
     if (rows.length < 2) continue;
     rows.sort((a, b) => a.row - b.row);
-    const message =
+    const all =
       `rows ${listed(rows.map((r) => String(r.row)))} (subjects ${listed(rows.map((r) => r.subject + (r.session ? ` session ${r.session}` : '')))}) hold the same recording ` +
       `(files ${listed(rows.map(shown))}, SHA-256 ${sha.slice(0, 12)}…); it is refused for all of them: give each subject its own recording`;
-    for (const r of rows) r.problem = { column: 'recording', message };
+    // each row's own message (its ingest_errors row), naming all of them
+    for (const r of rows) r.problem = { column: 'recording', message: `row ${r.row} (subject ${r.subject}${r.session ? ` session ${r.session}` : ''}): ${all}` };
   }
 }

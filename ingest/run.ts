@@ -21,6 +21,8 @@ import { cohortQualityPass } from './store/merge.ts';
 import { runIdentity } from './store/identity.ts';
 import { refuseClashes } from '../src/files/output-files.ts';
 import { refuseSharedRecordings } from './duplicate-files.ts';
+import { DEFAULT_FILE_NAME_FORM, fileNamer, type FileNameForm } from './file-names.ts';
+import type { IngestErrorIn } from './store/writer.ts';
 import { sortSpectra } from './store/spectra-order.ts';
 
 export type { ShardSpec as Shard } from './cohort/shard.ts';
@@ -39,6 +41,8 @@ export interface IngestOptions {
    * and closed, and the summary says `interrupted`; the run stays unfinished, a rerun resumes.
    */
   signal?: AbortSignal;
+  /** What the database keeps of each file's path (ingest/file-names.ts; default: the file name alone). */
+  fileNames?: FileNameForm;
 }
 
 export type IngestEvent =
@@ -67,6 +71,9 @@ export interface IngestSummary {
 
 export { parseShard } from './cohort/shard.ts';
 
+/** Failures written to ingest_errors together (one append of at most this many rows). */
+const ERROR_BATCH = 1000;
+
 function packageVersion(): string {
   return (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
 }
@@ -88,8 +95,9 @@ export async function runIngest(
     await pool.close();
     throw e;
   }
-  // file names relative to the cohort root: no absolute paths (which may name people) in the database
-  const shown = (rec: CohortRecording) => path.relative(cohort.root, rec.recordingPath) || path.basename(rec.recordingPath);
+  // what the database and the messages say of each file's path (never more than --file-names allows)
+  const namer = fileNamer(options.fileNames ?? DEFAULT_FILE_NAME_FORM, cohort.root);
+  const shown = namer.failed;
   try {
     // the database never overwrites the cohort table, a recording or a scoring file
     refuseClashes(
@@ -140,13 +148,19 @@ export async function runIngest(
     const rootPrefix = cohort.root.endsWith(path.sep) ? cohort.root : cohort.root + path.sep;
     // set when the run must stop (disk full): recordings still in flight are neither written nor logged
     let stopped = false;
+    // failures go to ingest_errors in batches: a row that fails costs a few hundred bytes, not a write of its own
+    const pendingErrors: IngestErrorIn[] = [];
+    const flushErrors = async () => {
+      if (pendingErrors.length > 0) await (await ready).writeErrors(pendingErrors.splice(0));
+    };
     const fail = async (rec: CohortRecording, step: string, field: string | null, fullMessage: string) => {
-      const store = await ready;
+      await ready;
       if (stopped) return;
-      const message = fullMessage.split(rootPrefix).join('');
+      const message = namer.message(rec, fullMessage).split(rootPrefix).join('');
       summary.failed.push({ file: shown(rec), step, message });
-      await store.writeError({ runId, file: shown(rec), step, field, message });
+      pendingErrors.push({ runId, file: shown(rec), step, field, message });
       progress?.({ kind: 'recording', file: shown(rec), state: 'failed', message });
+      if (pendingErrors.length >= ERROR_BATCH) await flushErrors();
     };
     const one = async (rec: CohortRecording): Promise<void> => {
       if (rec.problem) return fail(rec, 'cohort', rec.problem.column, rec.problem.message);
@@ -156,7 +170,8 @@ export async function runIngest(
         bundle = await pool.process(rec, params, runId, {
           onProgress: (p) => progress?.({ kind: 'progress', file: shown(rec), ...p }),
           isStored: async (sha) => {
-            const stored = await (await ready).storedRecording(runId, sha);
+            const store = await ready;
+            const stored = await store.storedRecording(runId, sha);
             if (stored && (stored.subject !== rec.subject || stored.session !== rec.session)) {
               const name = (subject: string, session: string | null) => `subject ${subject}${session ? `, session ${session}` : ''}`;
               throw new WorkerTaskError(
@@ -166,6 +181,9 @@ export async function runIngest(
                   `the table now names ${name(rec.subject, rec.session)}. Ingest into a new database file to store it under the new name`,
               );
             }
+            // stored before under another form of its name (--file-names changed): the name follows the form asked now
+            const names = stored && { fileName: namer.stored(rec, sha), scoringSource: namer.scoringSource(stored.scoringSource) };
+            if (stored && names && (stored.fileName !== names.fileName || stored.scoringSource !== names.scoringSource)) await store.renameRecording(runId, sha, names);
             return stored !== null;
           },
         });
@@ -183,7 +201,8 @@ export async function runIngest(
         return;
       }
       if (stopped || summary.interrupted) return;
-      bundle.recording.fileName = shown(rec);
+      bundle.recording.fileName = namer.stored(rec, bundle.recording.fileSha256);
+      bundle.recording.scoringSource = namer.scoringSource(bundle.recording.scoringSource);
       try {
         await store.writeRecording(bundle);
       } catch (e) {
@@ -209,6 +228,7 @@ export async function runIngest(
     const ended = await Promise.allSettled([ready, ...lanes]);
     const laneError = ended.find((r): r is PromiseRejectedResult => r.status === 'rejected');
     if (laneError) throw laneError.reason;
+    await flushErrors();
     const store = await ready;
     if (summary.interrupted) {
       // unfinished: no cohort pass, no finish mark; the close below checkpoints what was committed

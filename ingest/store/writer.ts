@@ -8,6 +8,7 @@ import type { DuckDBConnection, DuckDBInstance, DuckDBValue } from '@duckdb/node
 import type { RecordingBundle, QualityRowIn } from './bundle.ts';
 import { appendColumns, type CellValue } from './chunks.ts';
 import { StoreError } from './errors.ts';
+import { ErrorRows } from './error-rows.ts';
 import { recordingIdFor, runIdentity } from './identity.ts';
 import { participantsCreateSql, tableDef, type TableDef } from './schema.ts';
 
@@ -16,13 +17,8 @@ export interface BeginRunOptions {
   shard?: string | null;
 }
 
-export interface IngestErrorIn {
-  runId: string;
-  file: string | null;
-  step: string;
-  field: string | null;
-  message: string;
-}
+export type { IngestErrorIn } from './error-rows.ts';
+import type { IngestErrorIn } from './error-rows.ts';
 
 /** A quality row of the cohort-level pass (after all recordings), with its recording. */
 export interface CohortQualityRow extends QualityRowIn {
@@ -42,11 +38,13 @@ export class Store {
   readonly readOnly: boolean;
   private queue: Promise<unknown> = Promise.resolve();
   private closed = false;
+  private readonly errorRows: ErrorRows;
 
   constructor(instance: DuckDBInstance, connection: DuckDBConnection, options: { readOnly: boolean }) {
     this.instance = instance;
     this.connection = connection;
     this.readOnly = options.readOnly;
+    this.errorRows = new ErrorRows(connection);
   }
 
   /**
@@ -149,12 +147,20 @@ export class Store {
     });
   }
 
-  /** The subject and session a recording with this file hash is stored under in this run, or null. */
-  storedRecording(runId: string, fileSha256: string): Promise<{ subject: string; session: string | null } | null> {
+  /** The subject, session, file name and scoring source a recording with this file hash is stored under in this run, or null. */
+  storedRecording(runId: string, fileSha256: string): Promise<{ subject: string; session: string | null; fileName: string; scoringSource: string | null } | null> {
     return this.exclusive(async () => {
-      const found = await this.rows('SELECT subject, session FROM recordings WHERE run_id = $1 AND file_sha256 = $2', [runId, fileSha256]);
+      const found = await this.rows('SELECT subject, session, file_name, scoring_source FROM recordings WHERE run_id = $1 AND file_sha256 = $2', [runId, fileSha256]);
       if (found.length === 0) return null;
-      return { subject: String(found[0].subject), session: found[0].session === null ? null : String(found[0].session) };
+      const text = (v: unknown) => (v === null ? null : String(v));
+      return { subject: String(found[0].subject), session: text(found[0].session), fileName: String(found[0].file_name), scoringSource: text(found[0].scoring_source) };
+    });
+  }
+
+  /** Replace what a stored recording says of its file (what --file-names keeps changed since it was stored). */
+  renameRecording(runId: string, fileSha256: string, names: { fileName: string; scoringSource: string | null }): Promise<void> {
+    return this.exclusive(async () => {
+      await this.connection.run('UPDATE recordings SET file_name = $3, scoring_source = $4 WHERE run_id = $1 AND file_sha256 = $2', [runId, fileSha256, names.fileName, names.scoringSource]);
     });
   }
 
@@ -178,17 +184,16 @@ export class Store {
   }
 
   /** Record a failure of one file or step; the other recordings go on. */
-  writeError(error: IngestErrorIn): Promise<void> {
-    return this.exclusive(async () => {
-      await appendColumns(this.connection, tableDef('ingest_errors'), 1, {
-        run_id: () => error.runId,
-        file: () => error.file,
-        step: () => error.step,
-        field: () => error.field,
-        message: () => error.message,
-        logged_at: () => new Date(),
-      });
-    });
+  writeError(error: IngestErrorIn): Promise<number> {
+    return this.writeErrors([error]);
+  }
+
+  /**
+   * Record failures in one append; one already recorded for its run (a rerun failing the same row
+   * again) is not recorded twice (error-rows.ts). Returns the rows added.
+   */
+  writeErrors(errors: readonly IngestErrorIn[]): Promise<number> {
+    return this.exclusive(() => this.errorRows.write(errors));
   }
 
   /**

@@ -7,7 +7,7 @@
  * full: what was stored is kept, a rerun resumes).
  */
 import { availableParallelism } from 'node:os';
-import { Command, InvalidArgumentError } from 'commander';
+import { Command, InvalidArgumentError, Option } from 'commander';
 import cliProgress from 'cli-progress';
 import { REFERENCE_KINDS, type ReferenceKind } from '../core/montage/reference.ts';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
@@ -15,6 +15,7 @@ import { readLabelMap } from '../../ingest/hypnogram/label-map.ts';
 import { parseShard, runIngest, type IngestEvent } from '../../ingest/run.ts';
 import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../../ingest/pipeline.ts';
 import { OutputClashError } from '../files/output-files.ts';
+import { DEFAULT_FILE_NAME_FORM, FILE_NAME_FORMS, type FileNameForm } from '../../ingest/file-names.ts';
 
 export const EXIT_OK = 0;
 export const EXIT_FATAL = 1;
@@ -25,6 +26,8 @@ export const EXIT_INTERRUPTED = { SIGINT: 130, SIGTERM: 143 } as const;
 export const EXIT_PARTLY_FAILED = 3;
 
 const D = DEFAULT_INGEST_PARAMS;
+/** Failures listed on the terminal at the end (all of them are in ingest_errors). */
+const LISTED_FAILURES = 50;
 const num = (name: string, check: (x: number) => boolean) => (v: string) => {
   const x = Number(v);
   if (!Number.isFinite(x) || !check(x)) throw new InvalidArgumentError(`invalid ${name}: ${v}`);
@@ -70,6 +73,7 @@ interface Flags {
   trimScoring?: boolean;
   lightsOffTexts: string[];
   lightsOnTexts: string[];
+  fileNames: FileNameForm;
 }
 
 export function register(program: Command): void {
@@ -114,6 +118,15 @@ export function register(program: Command): void {
     .option('--trim-scoring', 'drop scored stages that lie before the recording start or past its end, with a warning (default: refuse the recording, as such scoring is likely misaligned); unscored labels there are always dropped')
     .option('--lights-off-texts <list>', 'comma-separated annotation texts that mark lights off, matched ignoring case and spaces', list, D.scoring.lightsOffTexts)
     .option('--lights-on-texts <list>', 'comma-separated annotation texts that mark lights on, matched ignoring case and spaces', list, D.scoring.lightsOnTexts)
+    .addOption(
+      new Option(
+        '--file-names <form>',
+        'what the database keeps of each file\'s path: name (the file name without its folders, which often name people), ' +
+          'relative (the path relative to the cohort table), as-given (as the table writes it) or hash (only the file\'s SHA-256; failed rows named by their row)',
+      )
+        .choices([...FILE_NAME_FORMS])
+        .default(DEFAULT_FILE_NAME_FORM),
+    )
     .option('--quiet', 'no progress bars (they are off anyway when stdout is not a terminal)')
     .addHelpText('after', '\nA research tool, not a diagnostic device. No EDF patient or recording identification is stored.')
     .action(async (cohort: string, flags: Flags, cmd: Command) => {
@@ -209,7 +222,7 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
   process.on('SIGINT', onSignal);
   process.on('SIGTERM', onSignal);
   try {
-    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard, signal: interrupt.signal }, onEvent);
+    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard, signal: interrupt.signal, fileNames: f.fileNames }, onEvent);
     bars?.stop();
     if (summary.interrupted) {
       const stored = summary.done + summary.skipped;
@@ -222,7 +235,8 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
     }
     const secs = (Date.now() - t0) / 1000;
     console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, in ${secs.toFixed(1)} s`);
-    for (const x of summary.failed) console.log(`  failed ${x.file} at ${x.step}: ${x.message}`);
+    for (const x of summary.failed.slice(0, LISTED_FAILURES)) console.log(`  failed ${x.file} at ${x.step}: ${x.message}`);
+    if (summary.failed.length > LISTED_FAILURES) console.log(`  … and ${summary.failed.length - LISTED_FAILURES} more failures, all in the database's ingest_errors table`);
     if (summary.failed.length === 0) return EXIT_OK;
     return summary.done + summary.skipped > 0 ? EXIT_PARTLY_FAILED : EXIT_FATAL;
   } catch (e) {

@@ -41,13 +41,14 @@ describe('the same file in several rows', () => {
       expect(stored.map((r) => r.file_sha256)).not.toContain(sha);
       const errors = await withDb(db, (q) => q("SELECT file, step, field, message FROM ingest_errors ORDER BY message, file"));
       expect(errors).toHaveLength(3);
-      for (const e of errors) {
-        expect(e).toMatchObject({ step: 'cohort', field: 'recording' });
-        expect(String(e.message)).toBe(
-          `rows 1, 3 and 5 (subjects a, c and e) hold the same recording (files r1.edf, r1.edf and copy-of-r1.edf, SHA-256 ${sha.slice(0, 12)}…); ` +
-            'it is refused for all of them: give each subject its own recording',
-        );
-      }
+      const all =
+        `rows 1, 3 and 5 (subjects a, c and e) hold the same recording (files r1.edf, r1.edf and copy-of-r1.edf, SHA-256 ${sha.slice(0, 12)}…); ` +
+        'it is refused for all of them: give each subject its own recording';
+      expect(errors).toEqual([
+        { file: 'r1.edf', step: 'cohort', field: 'recording', message: `row 1 (subject a): ${all}` },
+        { file: 'r1.edf', step: 'cohort', field: 'recording', message: `row 3 (subject c): ${all}` },
+        { file: 'copy-of-r1.edf', step: 'cohort', field: 'recording', message: `row 5 (subject e): ${all}` },
+      ]);
       outcomes.push(JSON.stringify({ stored, errors }));
     }
     expect(new Set(outcomes).size).toBe(1);
