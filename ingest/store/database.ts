@@ -67,7 +67,21 @@ export async function openStore(path: string, options: OpenOptions = {}): Promis
     connection.closeSync();
     instance.closeSync();
     // another process holds DuckDB's file lock: say what that means instead of the raw lock error
-    throw DatabaseBusyError.from(path, options.readOnly ?? false, e) ?? e;
+    const busy = DatabaseBusyError.from(path, options.readOnly ?? false, e);
+    if (busy) throw busy;
+    // DuckDB's first line, without its "IO Error:"-style prefix
+    const first = (e instanceof Error ? e.message : String(e)).split('\n')[0].replace(/^[A-Za-z ]*Error: /, '');
+    throw new StoreError(`${path} cannot be read as a DuckDB database (damaged or cut short): ${first}`);
+  }
+  if (exists) {
+    // a DuckDB file of someone else's is never read as a cohort nor given bandwise's tables
+    const reader = await connection.runAndReadAll('SELECT table_name FROM duckdb_tables() WHERE database_name = current_database() ORDER BY table_name');
+    const tables = reader.getRowObjects().map((r) => String(r.table_name));
+    if ((tables.length > 0 || options.readOnly) && !tables.includes('runs')) {
+      connection.closeSync();
+      instance.closeSync();
+      throw new StoreError(tables.length > 0 ? `${path} was not written by bandwise (it has no runs table; its tables: ${tables.join(', ')})` : `${path} holds no bandwise data (no tables)`);
+    }
   }
   if (!options.readOnly) {
     for (const sql of schemaSql()) await connection.run(sql);

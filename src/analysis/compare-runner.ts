@@ -3,11 +3,11 @@
  * src/core/contrast, and runs it (its permutations on several threads when it is large).
  */
 import { openStore, StoreError, type Store } from '../../ingest/store/index.ts';
-import { listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, readRecordedReferences } from './store-read.ts';
+import { listRuns, readSpectra, readAperiodic, readPeaks, readParticipants, readRecordedReferences, readStoredStages } from './store-read.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
 import type { ContrastData, Exclusion, SpectrumRow } from '../core/contrast/data.ts';
 import { measureNeeds } from '../core/contrast/measure.ts';
-import { assembleContrast, type AssembledContrast } from '../core/contrast/assemble.ts';
+import { assembleContrast, ContrastDataError, type AssembledContrast } from '../core/contrast/assemble.ts';
 import type { CompareResult } from '../core/contrast/run.ts';
 import type { ProgressCallback } from '../core/stats/index.ts';
 import { compareOnThreads, defaultThreads, sharedAssembly } from './compare-threads.ts';
@@ -97,7 +97,13 @@ export async function loadContrastData(store: Store, c: Contrast, exclusions: Ex
       }
     }
   }
-  if (rows.length === 0) throw new Error(`no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}`);
+  if (rows.length === 0) {
+    const stored = await readStoredStages(store, { runId: run.runId, reference: c.reference, averaging: c.averaging });
+    throw new ContrastDataError(
+      `no ${stages.join('/')} spectra with reference ${c.reference} and averaging ${c.averaging} in run ${run.runId}; ` +
+        (stored.length > 0 ? `stored stages: ${stored.join(', ')}` : 'no stage has spectra of that reference and averaging'),
+    );
+  }
   const table = await readParticipants(store);
   const participants = table.rows.map((r) => Object.fromEntries(table.columns.map((col, i) => [col.name, r[i]])));
   // 'recorded' spectra are pooled only when recorded against one reference (src/core/contrast/recorded-references.ts)

@@ -265,3 +265,9 @@ export async function readRecordedReferences(store: Store, runId: string): Promi
   );
   return rows.map((r) => ({ subject: str(r.subject), session: strOrNull(r.session), channel: str(r.channel), referenceElectrode: strOrNull(r.reference_electrode) }));
 }
+
+/** The stages with spectra of this reference and averaging in a run, sorted. */
+export async function readStoredStages(store: Store, q: { runId: string; reference: string; averaging: string }): Promise<string[]> {
+  const rows = await query(store, 'SELECT DISTINCT s.stage FROM spectra s JOIN recordings r USING (recording_id) WHERE r.run_id = $1 AND s.reference = $2 AND s.averaging = $3 ORDER BY s.stage', [q.runId, q.reference, q.averaging]);
+  return rows.map((r) => String(r.stage));
+}

@@ -13,6 +13,7 @@ import { register as registerDemo } from './demo.ts';
 import { register as registerBandCheck } from './band-check.ts';
 import { register as registerReport } from './report.ts';
 import { register as registerClusterScript } from './cluster-script.ts';
+import { dropOutputWhenReaderCloses } from './closed-output.ts';
 
 const pkg = JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string };
 
@@ -36,4 +37,5 @@ registerClusterScript(program);
 registerSimulate(program);
 registerDemo(program);
 
+dropOutputWhenReaderCloses();
 await program.parseAsync(process.argv);

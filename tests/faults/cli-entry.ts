@@ -8,6 +8,7 @@ import { register as dashboard } from '../../src/cli/dashboard.ts';
 import { register as merge } from '../../src/cli/merge.ts';
 import { register as clusterScript } from '../../src/cli/cluster-script.ts';
 import { register as simulate } from '../../src/cli/simulate.ts';
+import { dropOutputWhenReaderCloses } from '../../src/cli/closed-output.ts';
 
 const program = new Command().name('bandwise');
 ingest(program);
@@ -18,4 +19,5 @@ dashboard(program);
 merge(program);
 clusterScript(program);
 simulate(program);
+dropOutputWhenReaderCloses();
 await program.parseAsync(process.argv);

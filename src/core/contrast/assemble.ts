@@ -7,6 +7,8 @@ import type { Contrast } from './spec.ts';
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from './data.ts';
 import { measureLayout, measureValues, type MeasureLayout } from './measure.ts';
 import { mixedRecordedReferences } from './recorded-references.ts';
+import { ContrastDataError } from './errors.ts';
+import { checkColumns, checkEnoughSubjects, checkNuisanceVaries } from './participant-checks.ts';
 import type { PermutationTestInput, Design } from '../stats/index.ts';
 import type { Stage } from '../stages.ts';
 
@@ -29,9 +31,7 @@ export interface AssembledContrast {
   channels: string[];
 }
 
-export class ContrastDataError extends Error {
-  override name = 'ContrastDataError';
-}
+export { ContrastDataError };
 
 function key(subject: string, session: string | null, channel: string, stage: Stage): string {
   return `${subject}\u0000${session ?? ''}\u0000${channel}\u0000${stage}`;
@@ -71,6 +71,9 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
   const channels = c.channels === 'all' ? stored : c.channels;
   for (const ch of channels) if (!stored.includes(ch)) throw new ContrastDataError(`channel ${ch} has no stored ${conds.map((d) => d.stage).join('/')} spectra for reference ${c.reference}`);
   if (channels.length === 0) throw new ContrastDataError(`no stored spectra for stage ${c.stage}, reference ${c.reference}, averaging ${c.averaging}`);
+
+  // the columns the design names exist, with values of the right kind
+  checkColumns(c, data.participants);
 
   // who takes part, by design
   const participants = new Map(data.participants.map((p) => [String(p.subject), p]));
@@ -198,6 +201,8 @@ export function assembleContrast(c: Contrast, data: ContrastData): AssembledCont
     if (mixed) throw new ContrastDataError(mixed);
   }
 
+  checkEnoughSubjects(c, kept, excluded);
+  checkNuisanceVaries(c, kept);
   const n = kept.length;
   const data0 = matrices[0].subarray(0, n * width);
   let design: Design;
