@@ -9,7 +9,6 @@
  * and a half-written transaction is never committed) writes only what is missing.
  */
 import { selectShard, type ShardSpec } from './cohort/shard.ts';
-import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { discoverCohort } from './cohort/discover.ts';
 import type { CohortRecording } from './cohort/types.ts';
@@ -24,6 +23,8 @@ import { refuseSharedRecordings } from './duplicate-files.ts';
 import { DEFAULT_FILE_NAME_FORM, fileNamer, type FileNameForm } from './file-names.ts';
 import type { IngestErrorIn } from './store/writer.ts';
 import { sortSpectra } from './store/spectra-order.ts';
+// as a module, so the build copies the version into dist/ (no path from ingest/ to it holds there)
+import { version } from '../package.json';
 
 export type { ShardSpec as Shard } from './cohort/shard.ts';
 
@@ -67,6 +68,8 @@ export interface IngestSummary {
   interrupted: boolean;
   /** Recordings of this ingest neither stored, skipped nor failed (an interrupted run). */
   notProcessed: number;
+  /** Rows of the warnings table for this run (its recordings stored now or earlier). */
+  warnings: number;
 }
 
 export { parseShard } from './cohort/shard.ts';
@@ -75,7 +78,7 @@ export { parseShard } from './cohort/shard.ts';
 const ERROR_BATCH = 1000;
 
 function packageVersion(): string {
-  return (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
+  return version;
 }
 
 export async function runIngest(
@@ -123,7 +126,7 @@ export async function runIngest(
   // their first recordings while the store opens: each hashes its file, then waits for the store
   // to say whether that recording is stored already
   const runId = runIdentity(params).runId;
-  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0, interrupted: false, notProcessed: 0 };
+  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0, interrupted: false, notProcessed: 0, warnings: 0 };
   // an interrupt stops the workers at once; the lanes then take no more recordings
   const onAbort = () => {
     summary.interrupted = true;
@@ -239,6 +242,7 @@ export async function runIngest(
       // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
       summary.cohortQualityRows = await cohortQualityPass(store);
       await sortSpectra(store); // rows of this and earlier runs in (stage, reference, averaging, recording, channel) order
+      summary.warnings = await store.warningCount(runId);
       await store.finishRun(runId);
     } catch (e) {
       throw isDiskFull(e) ? diskFull(e, 'finishing the run (cohort quality pass, spectra order, checkpoint)') : e;

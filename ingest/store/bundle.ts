@@ -21,7 +21,7 @@ export interface RecordingInfo {
   /** SHA-256 of the EDF file bytes, 64 lowercase hex digits. */
   fileSha256: string;
   durationS: number;
-  /** 'ok' unless something was limited. */
+  /** ok, ok-with-warnings, partial-scoring, partial-data or partial-data-and-scoring (see schema.ts). */
   status: string;
   edfVariant?: 'EDF' | 'EDF+C' | 'EDF+D' | 'BDF' | 'BDF+C' | 'BDF+D' | null;
   scoringSource?: string | null;
@@ -48,7 +48,10 @@ export interface RecordingInfo {
 export interface ChannelRow {
   channel: string;
   type: string;
+  /** Unit of the stored samples and physical limits (µV). */
   unit: string | null;
+  /** Physical dimension as recorded in the EDF header (uV, mV, …), null when empty. */
+  recordedUnit?: string | null;
   fsHz: number;
   prefilter: string | null;
   /** Unit-sphere position (10-10 system), null if unknown. */
@@ -57,6 +60,7 @@ export interface ChannelRow {
   z: number | null;
   label?: string | null;
   referenceElectrode?: string | null;
+  /** EDF physical minimum and maximum, in `unit` (scaled like the samples). */
   physicalMin?: number | null;
   physicalMax?: number | null;
   digitalMin?: number | null;
@@ -157,6 +161,19 @@ export interface ReferenceSkip {
   reason: string;
 }
 
+/**
+ * Something read or computed with a compromise (warnings table): a gap, a derived record count, a
+ * converted unit, partial scoring, a band a channel cannot reach. The message never quotes EDF
+ * annotation text or header identification; it names fields, channels, epochs and times.
+ */
+export interface WarningRow {
+  /** Pipeline step that noticed it: open, read, scoring, channels, spectra, fit, irasa. */
+  step: string;
+  /** Header field, parameter or channel concerned, null if none. */
+  field: string | null;
+  message: string;
+}
+
 export interface RecordingBundle {
   runId: string;
   recording: RecordingInfo;
@@ -169,4 +186,6 @@ export interface RecordingBundle {
   peaks: PeakRow[];
   quality: QualityRowIn[];
   referenceSkips: ReferenceSkip[];
+  /** Compromises of this recording, written in its transaction (omit or [] for none). */
+  warnings?: WarningRow[];
 }

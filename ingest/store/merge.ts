@@ -50,10 +50,10 @@ export interface MergeSummary {
 }
 
 /** Tables holding one recording's rows (all have recording_id). */
-const RECORDING_TABLES = ['recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'aperiodic', 'peaks', 'quality', 'reference_skips'];
+const RECORDING_TABLES = ['recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'aperiodic', 'peaks', 'quality', 'reference_skips', 'warnings'];
 
 /** Columns that hold the time a row was written: they differ between runs and are not compared. */
-const TIME_COLUMNS: Record<string, string[]> = { runs: ['started_at', 'finished_at'], recordings: ['ingested_at'], ingest_errors: ['logged_at'] };
+const TIME_COLUMNS: Record<string, string[]> = { runs: ['started_at', 'finished_at'], recordings: ['ingested_at'], ingest_errors: ['logged_at'], warnings: ['logged_at'] };
 
 /** Quality metrics that depend on the whole cohort: recomputed after the merge, not copied. */
 const COHORT_METRICS = ['cohort-distance'];
@@ -316,15 +316,20 @@ async function copyRecordings(c: DuckDBConnection, alias: string[], shown: reado
   return dropped;
 }
 
-/** ingest_errors from every shard; an error repeated in several shards (same run, file, step, field, message) once. */
+/**
+ * ingest_errors, and the warnings of no recording, from every shard; one repeated in several
+ * shards (same run, file, step, field, message) once. (Warnings of a recording go with it.)
+ */
 async function copyErrors(c: DuckDBConnection, alias: string[]): Promise<void> {
-  const cols = columnList(table('ingest_errors'));
-  for (const a of alias) {
-    await c.run(
-      `INSERT INTO ingest_errors (${cols}) SELECT ${cols} FROM ${a}.ingest_errors e
-        WHERE NOT EXISTS (SELECT 1 FROM ingest_errors m WHERE m.run_id = e.run_id AND m.file IS NOT DISTINCT FROM e.file
-                          AND m.step = e.step AND m.field IS NOT DISTINCT FROM e.field AND m.message = e.message)`,
-    );
+  for (const [name, where] of [['ingest_errors', 'TRUE'], ['warnings', 'e.recording_id IS NULL']] as const) {
+    const cols = columnList(table(name));
+    for (const a of alias) {
+      await c.run(
+        `INSERT INTO ${name} (${cols}) SELECT ${cols} FROM ${a}.${name} e
+          WHERE ${where} AND NOT EXISTS (SELECT 1 FROM ${name} m WHERE m.run_id = e.run_id AND m.file IS NOT DISTINCT FROM e.file
+                            AND m.step = e.step AND m.field IS NOT DISTINCT FROM e.field AND m.message = e.message)`,
+      );
+    }
   }
 }
 

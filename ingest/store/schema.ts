@@ -30,6 +30,16 @@ export interface TableDef {
 
 const col = (name: string, type: SqlType, doc: string, notNull = false): ColumnDef => ({ name, type, doc, notNull });
 
+/**
+ * recordings.status, one of: ok (read whole, nothing noted); ok-with-warnings (complete, with rows
+ * in warnings: a converted unit, a band a slow channel cannot reach, ignored events, …);
+ * partial-scoring (part of the night has no usable stage: scoring starts late, ends early, has
+ * gaps or unknown labels); partial-data (part of the signal is missing: EDF+D gaps, a truncated
+ * last data record); partial-data-and-scoring (both). The warnings rows say what and where.
+ */
+const RECORDING_STATUS_DOC =
+  'ok, ok-with-warnings, partial-scoring (scoring starts late, ends early or has gaps), partial-data (EDF+D gaps, truncated last record) or partial-data-and-scoring; see warnings';
+
 /** Keys shared by spectra, aperiodic and peaks: one spectrum per recording × channel × stage × reference × averaging. */
 const SPECTRUM_KEYS: readonly ColumnDef[] = [
   col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
@@ -67,7 +77,7 @@ export const TABLES: readonly TableDef[] = [
       col('file_sha256', 'VARCHAR', 'SHA-256 (hex) of the EDF file bytes', true),
       col('duration_s', 'DOUBLE', 'recorded duration in s (sum of data records)', true),
       col('run_id', 'VARCHAR', 'runs.run_id', true),
-      col('status', 'VARCHAR', 'ok, or a short word saying what was limited (e.g. partial-scoring)', true),
+      col('status', 'VARCHAR', RECORDING_STATUS_DOC, true),
       col('edf_variant', 'VARCHAR', 'EDF, EDF+C, EDF+D, BDF, BDF+C or BDF+D'),
       col('scoring_source', 'VARCHAR', 'where the hypnogram came from: scoring file or edf-annotations'),
       col('epoch_length_s', 'DOUBLE', 'scoring epoch length in s (usually 30)'),
@@ -101,7 +111,7 @@ export const TABLES: readonly TableDef[] = [
       col('recording_id', 'VARCHAR', 'recordings.recording_id', true),
       col('channel', 'VARCHAR', 'electrode name without type prefix (C3, M1)', true),
       col('type', 'VARCHAR', 'signal type from the label prefix or default (EEG, EOG, EMG, ECG, …)', true),
-      col('unit', 'VARCHAR', 'physical dimension as recorded (uV, mV, …)'),
+      col('unit', 'VARCHAR', 'unit of the stored samples and of physical_min/max: µV (mV, V and nV signals are scaled)'),
       col('fs_hz', 'DOUBLE', 'sampling rate in Hz', true),
       col('prefilter', 'VARCHAR', 'EDF prefiltering field'),
       col('x', 'DOUBLE', 'electrode position x on the unit sphere (10-10 system), NULL if unknown'),
@@ -109,10 +119,11 @@ export const TABLES: readonly TableDef[] = [
       col('z', 'DOUBLE', 'electrode position z on the unit sphere, NULL if unknown'),
       col('label', 'VARCHAR', 'signal label as in the EDF header'),
       col('reference_electrode', 'VARCHAR', 'reference the channel was recorded against, if known from the label (e.g. M2)'),
-      col('physical_min', 'DOUBLE', 'EDF physical minimum, in unit'),
-      col('physical_max', 'DOUBLE', 'EDF physical maximum, in unit'),
+      col('physical_min', 'DOUBLE', 'EDF physical minimum, in unit (µV; scaled like the samples)'),
+      col('physical_max', 'DOUBLE', 'EDF physical maximum, in unit (µV; scaled like the samples)'),
       col('digital_min', 'INTEGER', 'EDF digital minimum'),
       col('digital_max', 'INTEGER', 'EDF digital maximum'),
+      col('recorded_unit', 'VARCHAR', 'physical dimension as recorded in the EDF header (uV, mV, …), NULL when empty (taken as µV)'),
     ],
   },
   {
@@ -219,6 +230,19 @@ export const TABLES: readonly TableDef[] = [
       col('field', 'VARCHAR', 'header field or column at fault, NULL if none'),
       col('message', 'VARCHAR', 'error message', true),
       col('logged_at', 'TIMESTAMP', 'UTC time of the error', true),
+    ],
+  },
+  {
+    name: 'warnings',
+    doc: 'What was read or computed with a compromise (gaps, partial scoring, converted units, bands a channel cannot reach, a derived record count). Never quotes annotation text or header identification.',
+    columns: [
+      col('run_id', 'VARCHAR', 'runs.run_id', true),
+      col('recording_id', 'VARCHAR', 'recordings.recording_id; NULL when the warning concerns a file with no recording row'),
+      col('file', 'VARCHAR', 'file the warning belongs to (recordings.file_name, relative to the cohort table)'),
+      col('step', 'VARCHAR', 'step that noticed it: open (EDF header), read (data records), scoring, channels, spectra, fit, irasa', true),
+      col('field', 'VARCHAR', 'header field, parameter (e.g. bands, rejection.muscleHz) or scoring note (gap, unknown-label, ignored-events, truncated) concerned, NULL if none'),
+      col('message', 'VARCHAR', 'what was noticed and what was done about it', true),
+      col('logged_at', 'TIMESTAMP', 'UTC time the warning was written (with its recording)', true),
     ],
   },
   {

@@ -1,8 +1,8 @@
 /**
  * Store: the single writer of the database. Calls are serialised (one at a time on one
  * connection), and each recording is written in ONE transaction — recording row, channels,
- * epochs, rejections, spectra, band powers, aperiodic fits, peaks, quality and reference
- * skips — so an interrupted or failed write never leaves half a recording.
+ * epochs, rejections, spectra, band powers, aperiodic fits, peaks, quality, reference skips and
+ * warnings — so an interrupted or failed write never leaves half a recording.
  */
 import type { DuckDBConnection, DuckDBInstance, DuckDBValue } from '@duckdb/node-api';
 import type { RecordingBundle, QualityRowIn } from './bundle.ts';
@@ -181,6 +181,11 @@ export class Store {
       });
       return id;
     });
+  }
+
+  /** Rows of the warnings table for a run (every recording of it, stored now or earlier). */
+  warningCount(runId: string): Promise<number> {
+    return this.exclusive(async () => Number((await this.rows('SELECT count(*) AS n FROM warnings WHERE run_id = $1', [runId]))[0].n));
   }
 
   /** Record a failure of one file or step; the other recordings go on. */
@@ -372,6 +377,7 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     physical_max: (i) => ch[i].physicalMax ?? null,
     digital_min: (i) => ch[i].digitalMin ?? null,
     digital_max: (i) => ch[i].digitalMax ?? null,
+    recorded_unit: (i) => ch[i].recordedUnit ?? null,
   });
 
   const ep = b.epochs;
@@ -467,6 +473,18 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
     recording_id: () => id,
     reference: (i) => rs[i].reference,
     reason: (i) => rs[i].reason,
+  });
+
+  const wr = b.warnings ?? [];
+  const loggedAt = new Date();
+  await appendColumns(c, tableDef('warnings'), wr.length, {
+    run_id: () => b.runId,
+    recording_id: () => id,
+    file: () => rec.fileName,
+    step: (i) => wr[i].step,
+    field: (i) => wr[i].field,
+    message: (i) => wr[i].message,
+    logged_at: () => loggedAt,
   });
 }
 

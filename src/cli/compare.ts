@@ -3,12 +3,9 @@
  * Runs one contrast headless: the same contrast JSON the dashboard saves, the same engine.
  */
 import { Command, InvalidArgumentError } from 'commander';
-import cliProgress from 'cli-progress';
-import { compareDatabase, type CompareRun } from '../analysis/compare-runner.ts';
-import { tryAppendLedger } from '../analysis/ledger.ts';
+import type { CompareRun } from '../analysis/compare-runner.ts';
 import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
 import { addContrastOptions, contrastOrExit, readExclusions, type Flags } from './contrast-options.ts';
-import { reportUserError } from './user-errors.ts';
 
 const threadCount = (v: string) => {
   const x = Number(v);
@@ -42,7 +39,6 @@ export function pointsTsv(r: CompareRun): string {
 export function register(program: Command): void {
   const command = program
     .command('compare')
-    .summary('run one contrast (groups, paired stages/sessions, covariate) with permutation correction')
     .description(
       'Runs a contrast over channels × frequencies on a bandwise database: a point statistic per channel and ' +
         'frequency (Welch t by default), cluster-based permutation correction (Maris & Oostenveld 2007) or TFCE ' +
@@ -58,6 +54,11 @@ export function register(program: Command): void {
   addContrastOptions(command, { bandMeasures: true });
   command
     .action(async (database: string, flags: Flags) => {
+      // loaded on use: `bandwise --help` reads none of the analysis code
+      const { default: cliProgress } = await import('cli-progress');
+      const { compareDatabase } = await import('../analysis/compare-runner.ts');
+      const { tryAppendLedger } = await import('../analysis/ledger.ts');
+      const { reportUserError } = await import('./user-errors.ts');
       const ledger = flags.ledger === false ? null : (flags.ledger ?? `${database}.ledger.jsonl`);
       let exclusions;
       try {

@@ -5,7 +5,6 @@
  * 2 --out is one of the shards (nothing written).
  */
 import { Command } from 'commander';
-import { mergeShards } from '../../ingest/store/merge.ts';
 import { EXIT_OUTPUT_REFUSED, refuseClashes } from '../files/output-files.ts';
 
 interface Flags {
@@ -16,7 +15,6 @@ interface Flags {
 export function register(program: Command): void {
   program
     .command('merge')
-    .summary('combine shard databases written with the same parameters')
     .description(
       'Combine shard databases written by `bandwise ingest --shard K/N` with the same parameters into one new ' +
         'cohort database, then run the cohort-level quality pass (distance of each spectrum from the cohort median). ' +
@@ -25,9 +23,10 @@ export function register(program: Command): void {
     )
     .argument('<shards...>', 'shard database files (.duckdb)')
     .requiredOption('--out <file>', 'merged database file to create (must not exist)')
-    .option('--allow-missing-shards', 'merge even if some shards K/N are not among the inputs (default: refused)', false)
+    .option('--allow-missing-shards', 'merge even if some shards K/N are not among the inputs (default: refused)')
     .addHelpText('after', '\nExample:\n  bandwise merge shards/shard-*.duckdb --out cohort.duckdb\n\nA research tool, not a diagnostic device.')
     .action(async (shards: string[], flags: Flags) => {
+      const { mergeShards } = await import('../../ingest/store/merge.ts'); // loaded on use
       const t0 = Date.now();
       try {
         refuseClashes(shards.map((file) => ({ what: 'the shard', file })), [{ what: '--out', file: flags.out }]);

@@ -5,19 +5,21 @@
  *   output (OutputClashError), an input file that cannot be read or is too large (InputFileError);
  * - exit status 1 (the data or the machine cannot do it): a database that is busy, missing, not
  *   bandwise's, or full (StoreError and its kinds), a contrast the data cannot support
- *   (PermutationTestInputError, ContrastDataError), a result that cannot be written (OutputWriteError).
+ *   (PermutationTestInputError, ContrastDataError), a result that cannot be written (OutputWriteError),
+ *   a dashboard app not built (AppNotBuiltError).
  * Anything else is a bug and keeps its trace.
  */
 import { ContrastDataError } from '../core/contrast/assemble.ts';
 import { PermutationTestInputError } from '../core/stats/permutation-test.ts';
 import { StoreError } from '../../ingest/store/errors.ts';
+import { AppNotBuiltError } from '../server/launcher.ts';
 import { InputFileError } from '../files/input-files.ts';
 import { OutputClashError, OutputWriteError } from '../files/output-files.ts';
 
 /** The exit status of a user error (1 or 2), or null for any other error. */
 export function userErrorStatus(e: unknown): 1 | 2 | null {
   if (e instanceof OutputClashError || e instanceof InputFileError) return 2;
-  if (e instanceof StoreError || e instanceof PermutationTestInputError || e instanceof ContrastDataError || e instanceof OutputWriteError) return 1;
+  if (e instanceof StoreError || e instanceof PermutationTestInputError || e instanceof ContrastDataError || e instanceof OutputWriteError || e instanceof AppNotBuiltError) return 1;
   return null;
 }
 

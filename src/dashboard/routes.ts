@@ -42,6 +42,18 @@ export const VIEWS: readonly ViewInfo[] = [
     summary: 'The same contrast over every combination of analysis choices, as a specification curve.',
     ready: true,
   },
+  {
+    id: 'power',
+    label: 'Power',
+    summary: 'The power of a whole contrast by simulation from a reference group\'s own spectra, as a curve over subjects per group with intervals.',
+    ready: true,
+  },
+  {
+    id: 'deviation',
+    label: 'Deviation',
+    summary: 'Every subject scored against a reference group per channel and frequency: a map per subject, its spectrum against the reference band, shares per group.',
+    ready: true,
+  },
   { id: 'report', label: 'Methods report', summary: 'Every spectral and statistical parameter written out as methods text.', ready: true },
 ];
 

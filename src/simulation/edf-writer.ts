@@ -153,6 +153,7 @@ export class EdfWriter {
     let annotationSamples = 0;
     if (plus) {
       for (const a of spec.annotations ?? []) {
+        // eslint-disable-next-line no-control-regex -- the TAL delimiters are control bytes (EDF+ 2003 §2.2.2)
         if (/[\x00\x14\x15]/.test(a.text)) throw new EdfFormatError(path, 'annotations', a.text, `annotation text "${a.text}" contains a TAL delimiter byte`);
         if (!Number.isFinite(a.onsetS) || (a.durationS !== null && !(a.durationS >= 0))) {
           throw new EdfFormatError(path, 'annotations', String(a.onsetS), `annotation at ${a.onsetS} s with duration ${a.durationS} is not a finite onset and non-negative duration`);
@@ -287,15 +288,19 @@ export class EdfWriter {
   async close(): Promise<void> {
     if (this.closed) return;
     this.closed = true;
+    // the file is closed even when the count cannot be written; the first failure is the one thrown
+    let failure: unknown = null;
     try {
       await this.writeAt(Buffer.from(String(this.recordsWritten).padEnd(8, ' '), 'latin1'), N_RECORDS_OFFSET);
-    } finally {
-      try {
-        await this.fh.close();
-      } catch (cause) {
-        throw new EdfIoError(this.path, 'close', cause);
-      }
+    } catch (e) {
+      failure = e;
     }
+    try {
+      await this.fh.close();
+    } catch (cause) {
+      failure ??= new EdfIoError(this.path, 'close', cause);
+    }
+    if (failure !== null) throw failure;
     const left = [...this.annotationsByRecord.values()].reduce((a, l) => a + l.length, 0);
     if (left > 0) throw new RangeError(`${this.path}: ${left} annotations have onsets after the last of ${this.recordsWritten} records and were not written`);
   }

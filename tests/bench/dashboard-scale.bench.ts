@@ -47,7 +47,11 @@ function descendants(pid: number): number[] {
   const queue = [pid];
   while (queue.length > 0) {
     const p = queue.pop()!;
-    for (const [c, pp] of parent) if (pp === p) (out.push(c), queue.push(c));
+    for (const [c, pp] of parent) {
+      if (pp !== p) continue;
+      out.push(c);
+      queue.push(c);
+    }
   }
   return out;
 }

@@ -28,7 +28,7 @@ describe('hash routes', () => {
       expect(v.label.length).toBeGreaterThan(0);
       expect(v.summary.length).toBeGreaterThan(10);
     }
-    // the seven views of issues 6 and 7, all built
-    expect(VIEWS.filter((v) => v.ready).map((v) => v.id)).toEqual(['cohort', 'quality', 'spectra', 'contrast', 'band-check', 'robustness', 'report']);
+    // the seven views of issues 6 and 7 and the two of issue 19, all built
+    expect(VIEWS.filter((v) => v.ready).map((v) => v.id)).toEqual(['cohort', 'quality', 'spectra', 'contrast', 'band-check', 'robustness', 'power', 'deviation', 'report']);
   });
 });

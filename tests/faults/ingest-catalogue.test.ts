@@ -69,7 +69,8 @@ describe('ingest fault catalogue: one cohort, each bad input a real file, folder
 
   it('exits 3 (some recordings failed, the others stored) and says so', () => {
     expect(result.code, result.out).toBe(3);
-    expect(result.out).toMatch(/: 7 done, 0 already stored \(skipped\), 12 failed, in /);
+    // one warning: the EDF+D gap of gaps.edf
+    expect(result.out).toMatch(/: 7 done, 0 already stored \(skipped\), 12 failed, 1 warning \(table warnings\), in /);
     expect(result.out).not.toMatch(/\n\s+at .*\(.*:\d+:\d+\)/); // no stack trace
   });
 
@@ -90,7 +91,8 @@ describe('ingest fault catalogue: one cohort, each bad input a real file, folder
   it('the good recordings and the tolerated cases are stored whole', async () => {
     const recs = await withDb(db, (q) => q('SELECT file_name, subject, status, n_epochs, duration_s, recording_id FROM recordings ORDER BY file_name'));
     expect(recs.map((r) => r.file_name)).toEqual([...STORED].sort());
-    for (const r of recs) expect([r.status, r.n_epochs, r.duration_s]).toEqual(['ok', 10, 300]);
+    // gaps.edf lacks 15 s of signal: partial-data (ingest/store/schema.ts, recordings.status)
+    for (const r of recs) expect([r.status, r.n_epochs, r.duration_s]).toEqual([r.file_name === 'gaps.edf' ? 'partial-data' : 'ok', 10, 300]);
     const counts = await perRecordingCounts(db);
     const byFile = Object.fromEntries(recs.map((r) => [String(r.file_name), counts[String(r.recording_id)]]));
     // every recording's rows belong to a stored recording (none half-stored)
@@ -112,6 +114,9 @@ describe('ingest fault catalogue: one cohort, each bad input a real file, folder
     expect(epochs.map((e) => e.onset_s)).toEqual([0, 30, 60, 90, 120, 150, 180, 210, 240, 270]);
     const rec = await withDb(db, (q) => q("SELECT n_epochs_dropped FROM recordings WHERE file_name = 'gaps.edf'"));
     expect(rec[0].n_epochs_dropped).toBe(1);
+    // the gap is kept as a warning of that recording (EDF+ 2003 §2.1.3.1: EDF+D may be discontinuous)
+    const warnings = await withDb(db, (q) => q('SELECT w.file, w.step, w.field, w.message, w.recording_id = r.recording_id AS own FROM warnings w JOIN recordings r ON r.file_name = w.file'));
+    expect(warnings).toEqual([{ file: 'gaps.edf', step: 'open', field: 'annotations', message: '1 gap between data records, 15 s in total; epochs that touch a gap are dropped', own: true }]);
     // N3 is epochs 4 and 5: with 5 dropped, at most one N3 epoch can enter its spectrum (g01 has two candidates)
     const n3 = await withDb(db, (q) =>
       q("SELECT file_name, max(spectra.n_epochs) AS n FROM spectra JOIN recordings USING (recording_id) WHERE stage = 'N3' AND reference = 'recorded' AND file_name IN ('gaps.edf', 'g01.edf') GROUP BY file_name ORDER BY file_name"),

@@ -61,7 +61,7 @@ beforeAll(() => {
   writeLibedf(dir, at('after-end.edf'), { start: [2020, 1, 1, 23, 30, 0], seconds: 0, signal: null, annotations: SCORED });
   writeLibedf(dir, at('early.edf'), { start: [2020, 1, 1, 21, 55, 0], seconds: 0, signal: null, annotations: [[0, 300, 'Sleep stage ?'], [300, 3600, 'Sleep stage 2']] });
   // record duration 0, built by hand (EDF+ 2003 allows it for annotation-only files): 22:15:00
-  const records = SCORED.map(([o, d, t], r) => talBytes(`+0\x14\x14\x00+${o}\x15${d}\x14${t}\x14\x00`, 60));
+  const records = SCORED.map(([o, d, t]) => talBytes(`+0\x14\x14\x00+${o}\x15${d}\x14${t}\x14\x00`, 60));
   writeFileSync(at('zero.edf'), handEdf({
     patient: 'X X X X', recording: 'Startdate 01-JAN-2020 X X X', date: '01.01.20', time: '22.15.00', reserved: 'EDF+C',
     nRecords: String(records.length), duration: '0',

@@ -24,8 +24,8 @@ async function dump(db: string): Promise<Record<string, string[]>> {
   const inst = await DuckDBInstance.create(db, { access_mode: 'READ_ONLY' });
   const c = await inst.connect();
   const out: Record<string, string[]> = {};
-  for (const t of ['runs', 'participants', 'recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'aperiodic', 'peaks', 'quality', 'ingest_errors']) {
-    const times: Record<string, string> = { runs: 'started_at, finished_at', recordings: 'ingested_at', ingest_errors: 'logged_at' };
+  for (const t of ['runs', 'participants', 'recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'aperiodic', 'peaks', 'quality', 'ingest_errors', 'warnings']) {
+    const times: Record<string, string> = { runs: 'started_at, finished_at', recordings: 'ingested_at', ingest_errors: 'logged_at', warnings: 'logged_at' };
     const r = await c.runAndReadAll(`SELECT * ${times[t] ? `EXCLUDE (${times[t]})` : ''} FROM ${t}`);
     out[t] = r.getRowObjectsJson().map((row) => JSON.stringify(row)).sort();
   }

@@ -29,6 +29,7 @@ export const FACTS: DatabaseFacts = {
     { stage: 'N3', channelEpochs: 26000, rejected: 260, byReason: { amplitude: 260 } },
   ],
   fitRangesHz: [[1, 40]],
+  warnings: { byStep: { channels: 2, read: 3, scoring: 4 }, recordingsByStatus: { ok: 35, 'ok-with-warnings': 2, 'partial-data': 1, 'partial-scoring': 2 } },
 };
 
 export const LEDGER: LedgerCounts = { analyses: 7, significant: 3, byKind: { compare: 5, 'band-check': 2 } };

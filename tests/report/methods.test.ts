@@ -46,6 +46,20 @@ describe('methods report', () => {
     expect(text).toContain('research tool');
   });
 
+  it('states the warnings kept per step and how many recordings are partial, counted from the facts', () => {
+    const text = methodsReport(cmp, FACTS, LEDGER).markdown;
+    // 2 + 3 + 4 = 9 warnings; partial-data 1 + partial-scoring 2 = 3 of 40 (by hand)
+    expect(text).toContain('The ingest kept 9 warnings (by step: channels 2, read 3, scoring 4;');
+    expect(text).toContain('Of the 40 recordings, 3 are partial (partial-data 1, partial-scoring 2;');
+    expect(text).toContain('and 2 are complete with warnings.');
+    const clean = methodsReport(cmp, { ...FACTS, warnings: { byStep: {}, recordingsByStatus: { ok: 40 } } }, LEDGER).markdown;
+    expect(clean).toContain('The ingest kept no warnings: every recording was read whole, with its scoring complete.');
+    expect(clean).not.toContain('Nyquist');
+    // a 20-Hz channel (Nyquist 10 Hz, below the stored 45 Hz) is stored to its own Nyquist frequency
+    const slow = methodsReport(cmp, { ...FACTS, samplingRatesHz: [20, 256] }, LEDGER).markdown;
+    expect(slow).toContain('spectra were stored from 0 to 45 Hz, each channel at most up to its own Nyquist frequency (half its sampling rate).');
+  });
+
   it('exports the parameters as JSON with the same numbers', () => {
     const p = methodsReport(check, FACTS, LEDGER).parameters;
     expect(p.kind).toBe('band-check');

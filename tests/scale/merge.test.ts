@@ -4,7 +4,7 @@ import path from 'node:path';
 import { spawnSync } from 'node:child_process';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseShard, runIngest } from '../../ingest/run.ts';
+import { runIngest } from '../../ingest/run.ts';
 import { openStore, readHeaderStorageNumber } from '../../ingest/store/database.ts';
 import { cohortQualityPass, MergeError, mergeShards, parameterDifferences } from '../../ingest/store/merge.ts';
 import { runPython } from '../helpers/python.ts';

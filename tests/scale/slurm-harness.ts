@@ -149,7 +149,7 @@ export async function startSlurm(cpus = 4): Promise<SlurmCluster> {
   } catch (e) {
     const logs = readLogs(dir);
     await stop();
-    throw new Error(`${(e as Error).message}\n${logs}`);
+    throw new Error(`${(e as Error).message}\n${logs}`, { cause: e });
   }
   return {
     conf,

@@ -70,7 +70,7 @@ export function makeBundle(runId: string, seed: number, size: BundleSize = SMALL
     },
     channels: channels.map((channel, k) => ({
       channel, type: 'EEG', unit: 'uV', fsHz: 256, prefilter: 'HP:0.3Hz LP:70Hz', x: k * 0.1, y: null, z: null,
-      label: `EEG ${channel}`, referenceElectrode: null, physicalMin: -500, physicalMax: 500, digitalMin: -32768, digitalMax: 32767,
+      label: `EEG ${channel}`, referenceElectrode: null, physicalMin: -500, physicalMax: 500, digitalMin: -32768, digitalMax: 32767, recordedUnit: 'mV',
     })),
     epochs: {
       onsetS: Float64Array.from({ length: size.epochs }, (_, e) => e * 30),
@@ -89,5 +89,9 @@ export function makeBundle(runId: string, seed: number, size: BundleSize = SMALL
     }],
     quality: [{ channel: channels[0], stage: null, metric: 'flat-channel', value: 12.5, flagged: false, reason: null, severity: 0.16 }],
     referenceSkips: [{ reference: 'linked-mastoids', reason: 'no M1/M2 or A1/A2 channels' }],
+    warnings: [
+      { step: 'read', field: 'data records', message: '1 gap between data records (EDF+D), 15 s in all; epochs touching a gap are dropped' },
+      { step: 'channels', field: 'physical dimension', message: `channel ${channels[0]}: recorded in mV, samples and physical limits scaled ×1000 to µV` },
+    ],
   };
 }

@@ -83,7 +83,7 @@ describe('one transaction per recording', () => {
     const rows = await rowsOf(store, id);
     expect(rows).toEqual({
       recordings: 1, channels: 3, epochs: 40, epoch_rejections: 1, spectra: 3 * 2 * 2 * 2,
-      epoch_band_power: 3 * 40 * 3, aperiodic: 1, peaks: 1, quality: 1, reference_skips: 1,
+      epoch_band_power: 3 * 40 * 3, aperiodic: 1, peaks: 1, quality: 1, reference_skips: 1, warnings: 2,
     });
     expect(await count(store, 'recordings')).toBe(2);
   });

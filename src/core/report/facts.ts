@@ -40,12 +40,22 @@ export interface DatabaseFacts {
   fitRangesHz: [number, number][];
   /** the EEG channels as recorded: the reference each label names (channels.reference_electrode, null: none) and in how many recordings */
   recordedDerivations?: RecordedDerivation[];
+  /** what the ingest kept in its warnings table for the run */
+  warnings: WarningFacts;
 }
 
 export interface RecordedDerivation {
   channel: string;
   referenceElectrode: string | null;
   recordings: number;
+}
+
+/** The run's warnings table rows per step, and its recordings per status (recordings.status). */
+export interface WarningFacts {
+  /** warning rows per step (open, read, scoring, channels, spectra, fit, irasa) */
+  byStep: Record<string, number>;
+  /** recordings per status: ok, ok-with-warnings, partial-scoring, partial-data, partial-data-and-scoring */
+  recordingsByStatus: Record<string, number>;
 }
 
 export interface LedgerCounts {

@@ -94,6 +94,8 @@ function spectralSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFa
   const recs = facts
     ? `${facts.recordings} recordings (sampling rates ${facts.samplingRatesHz.join(', ')} Hz; ${facts.channelsPerRecording.min === facts.channelsPerRecording.max ? facts.channelsPerRecording.min : `${facts.channelsPerRecording.min}–${facts.channelsPerRecording.max}`} channels each) were processed by bandwise ${facts.toolVersion} (ingest run ${facts.runId}, database ${facts.file}). `
     : '';
+  // a channel sampled below 2·maxFreqHz is stored, banded and fitted up to its own Nyquist frequency
+  const slow = facts && facts.samplingRatesHz.some((fs) => fs / 2 < f.maxFreqHz) ? ', each channel at most up to its own Nyquist frequency (half its sampling rate)' : '';
   const refsText = f.references.map((r) => REFERENCE_WORDS[r] ?? r).join('; ');
   const bipolar = f.bipolarPairs.length ? ` (bipolar pairs ${f.bipolarPairs.join(', ')})` : '';
   let avg: string;
@@ -104,9 +106,10 @@ function spectralSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFa
   return (
     `${recs}Sleep was scored in ${f.epochS}-s epochs with the AASM stages W, N1, N2, N3 and R. ` +
     `For every channel and epoch the power spectral density was estimated by Welch's method (Welch 1967): ${f.segmentS}-s Hann-windowed segments overlapping by ${g3(f.overlap * 100)} %, the mean of each segment removed, one-sided density scaling in µV²/Hz; ` +
-    `the frequency resolution is ${g3(res)} Hz and spectra were stored from 0 to ${f.maxFreqHz} Hz. ` +
+    `the frequency resolution is ${g3(res)} Hz and spectra were stored from 0 to ${f.maxFreqHz} Hz${slow}. ` +
     `The epoch spectra of a stage were combined by ${avg}; a stage with fewer than ${f.minEpochs} clean epochs was flagged. ` +
-    `Spectra were stored for these references: ${refsText}${bipolar}. This analysis used the reference ${REFERENCE_WORDS[c.reference] ?? c.reference} and the ${c.averaging} over epochs of stage ${stagesOf(c).join(' and ')}.`
+    `Spectra were stored for these references: ${refsText}${bipolar}. This analysis used the reference ${REFERENCE_WORDS[c.reference] ?? c.reference} and the ${c.averaging} over epochs of stage ${stagesOf(c).join(' and ')}.` +
+    (facts ? ` ${warningText(facts)}` : '')
   );
 }
 
@@ -142,6 +145,23 @@ function derivationText(facts: DatabaseFacts | null, c: Contrast, channels: stri
 function analysedChannels(c: Contrast, resultChannels: string[]): string[] {
   if (c.channels !== 'all') return c.channels;
   return c.channelAverage ? [] : resultChannels;
+}
+
+/** What the ingest kept in its warnings table (per step) and how many recordings are partial (recordings.status). */
+function warningText(facts: DatabaseFacts): string {
+  const { byStep, recordingsByStatus } = facts.warnings;
+  const total = Object.values(byStep).reduce((a, b) => a + b, 0);
+  const partial = Object.entries(recordingsByStatus).filter(([k]) => k.startsWith('partial')).sort();
+  const nPartial = partial.reduce((a, [, v]) => a + v, 0);
+  const withWarnings = recordingsByStatus['ok-with-warnings'] ?? 0;
+  if (total === 0 && nPartial === 0) return 'The ingest kept no warnings: every recording was read whole, with its scoring complete.';
+  const steps = Object.entries(byStep).sort().map(([k, v]) => `${k} ${v}`).join(', ');
+  const are = (n: number) => (n === 1 ? 'is' : 'are');
+  let s = `The ingest kept ${total} warning${total === 1 ? '' : 's'} (by step: ${steps}; listed in the database's warnings table). `;
+  s += nPartial > 0
+    ? `Of the ${facts.recordings} recordings, ${nPartial} ${are(nPartial)} partial (${partial.map(([k, v]) => `${k} ${v}`).join(', ')}; partial data lack part of the signal, partial scoring leaves part of the night unscored)`
+    : `None of the ${facts.recordings} recordings is partial`;
+  return s + (withWarnings > 0 ? ` and ${withWarnings} ${are(withWarnings)} complete with warnings.` : '.');
 }
 
 const stagesOf = (c: Contrast): string[] => (c.design === 'paired' && c.stages ? [...c.stages] : [c.stage]);

@@ -14,7 +14,7 @@
  */
 import { streamRandom, STREAM } from './seeds.ts';
 import { addBurst } from './burst.ts';
-import { isMovementEpoch, type NightPlan } from './plan.ts';
+import type { NightPlan } from './plan.ts';
 import type { ScoredStage } from './scenario.ts';
 import { SpectralSynthesizer, type BinAmplitudes } from './synthesis.ts';
 import { backgroundDensity, rhythmDensity } from './truth.ts';

@@ -22,6 +22,7 @@ export interface RunningJob<R> {
 
 /** Promises by key: rows are read once per key; a rejected read is forgotten so the next run reads again. */
 export class PromiseCache {
+  // eslint-disable-next-line svelte/prefer-svelte-reactivity -- a cache, never read by markup
   private entries = new Map<string, Promise<unknown>>();
 
   get<T>(key: string, load: () => Promise<T>): Promise<T> {

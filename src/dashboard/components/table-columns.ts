@@ -1,5 +1,5 @@
 // Column descriptions for DataTable, and how a cell is shown.
-import type { Cell, Row } from '../db/arrow-rows.ts';
+import type { Cell, Row } from '../../queries/client.ts';
 
 export interface DataColumn {
   /** Key in the row, also the TSV header. */
@@ -8,6 +8,8 @@ export interface DataColumn {
   label: string;
   /** Decimals for numbers; absent: shown as stored. */
   digits?: number;
+  /** The cell as a link to this address (null: plain text for that row). */
+  href?: (row: Row) => string | null;
 }
 
 export function formatCell(v: Cell | undefined, digits?: number): string {

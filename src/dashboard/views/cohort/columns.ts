@@ -1,9 +1,11 @@
 // Screen labels of the cohort tables' columns (keys are the TSV headers).
 import type { DataColumn } from '../../components/table-columns.ts';
+import { deviationLink } from '../deviation/deviation-params.ts';
 
 const RECORDING_COLUMNS: readonly DataColumn[] = [
   { key: 'recording_id', label: 'Recording' },
-  { key: 'subject', label: 'Subject' },
+  // each subject links to its deviation map
+  { key: 'subject', label: 'Subject', href: (r) => (r.subject === null || r.subject === undefined ? null : deviationLink(String(r.subject))) },
   { key: 'session', label: 'Session' },
   { key: 'group', label: 'Group' },
   { key: 'file_name', label: 'File' },
