@@ -123,9 +123,15 @@ export class IngestPool {
     this.dispatch();
   }
 
+  /** Stops every worker; tasks queued or in progress fail with "the pool was closed". */
   async close(): Promise<void> {
     this.closed = true;
     for (const t of this.queue.splice(0)) t.reject(new Error('the pool was closed'));
+    for (const s of this.slots) {
+      const task = s.task;
+      s.task = null;
+      task?.reject(new Error('the pool was closed'));
+    }
     await Promise.all(this.slots.map((s) => s.worker.terminate()));
   }
 }

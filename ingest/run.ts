@@ -20,6 +20,10 @@ import { openStore } from './store/database.ts';
 import { DiskFullError, isDiskFull } from './store/errors.ts';
 import { cohortQualityPass } from './store/merge.ts';
 import { runIdentity } from './store/identity.ts';
+import { refuseClashes } from '../src/files/output-files.ts';
+import { refuseSharedRecordings } from './duplicate-files.ts';
+import { DEFAULT_FILE_NAME_FORM, fileNamer, type FileNameForm } from './file-names.ts';
+import type { IngestErrorIn } from './store/writer.ts';
 import { sortSpectra } from './store/spectra-order.ts';
 // as a module, so the build copies the version into dist/ (no path from ingest/ to it holds there)
 import { version } from '../package.json';
@@ -38,6 +42,14 @@ export interface IngestOptions {
   positions?: string;
   /** Unit of a positions file without a _coordsystem.json beside it (default mm). */
   positionsUnit?: CoordinateUnit;
+  /**
+   * Aborted (Ctrl-C, SIGTERM): no more recordings are taken, the workers stop, a write in
+   * progress finishes (its one transaction commits or rolls back), the database is checkpointed
+   * and closed, and the summary says `interrupted`; the run stays unfinished, a rerun resumes.
+   */
+  signal?: AbortSignal;
+  /** What the database keeps of each file's path (ingest/file-names.ts; default: the file name alone). */
+  fileNames?: FileNameForm;
 }
 
 export type IngestEvent =
@@ -58,11 +70,18 @@ export interface IngestSummary {
   failed: IngestFailure[];
   /** Rows written by the cohort-level quality pass (robust distance from the cohort median). */
   cohortQualityRows: number;
+  /** True when the signal stopped the run before its end (the run is unfinished). */
+  interrupted: boolean;
+  /** Recordings of this ingest neither stored, skipped nor failed (an interrupted run). */
+  notProcessed: number;
   /** Rows of the warnings table for this run (its recordings stored now or earlier). */
   warnings: number;
 }
 
 export { parseShard } from './cohort/shard.ts';
+
+/** Failures written to ingest_errors together (one append of at most this many rows). */
+const ERROR_BATCH = 1000;
 
 function packageVersion(): string {
   return version;
@@ -90,6 +109,27 @@ export async function runIngest(
     await pool.close();
     throw e;
   }
+  // what the database and the messages say of each file's path (never more than --file-names allows)
+  const namer = fileNamer(options.fileNames ?? DEFAULT_FILE_NAME_FORM, cohort.root);
+  const shown = namer.failed;
+  try {
+    // the database never overwrites the cohort table, a recording or a scoring file
+    refuseClashes(
+      [
+        ...(cohort.source === 'table' ? [{ what: 'the cohort table', file: cohortPathOrBidsFolder }] : []),
+        ...cohort.recordings.flatMap((r) => [
+          { what: `the recording of row ${r.row}`, file: r.recordingPath },
+          ...(r.scoringPath ? [{ what: `the scoring file of row ${r.row}`, file: r.scoringPath }] : []),
+        ]),
+      ],
+      [{ what: '--out', file: outDb }],
+    );
+    // rows sharing a recording are refused, all of them, before any work (the whole cohort, so every shard agrees)
+    await refuseSharedRecordings(cohort.recordings, shown);
+  } catch (e) {
+    await pool.close();
+    throw e;
+  }
   const shard = options.shard ?? null;
   // a stable 1/N share by sorted subject, session and path (ingest/cohort/shard.ts)
   const recordings = shard ? selectShard(cohort.recordings, shard.k, shard.n) : cohort.recordings;
@@ -97,7 +137,14 @@ export async function runIngest(
   // their first recordings while the store opens: each hashes its file, then waits for the store
   // to say whether that recording is stored already
   const runId = runIdentity(params).runId;
-  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0, warnings: 0 };
+  const summary: IngestSummary = { runId, done: 0, skipped: 0, failed: [], cohortQualityRows: 0, interrupted: false, notProcessed: 0, warnings: 0 };
+  // an interrupt stops the workers at once; the lanes then take no more recordings
+  const onAbort = () => {
+    summary.interrupted = true;
+    void pool.close();
+  };
+  if (options.signal?.aborted) onAbort();
+  else options.signal?.addEventListener('abort', onAbort, { once: true });
   const opened = openStore(outDb, { create: true });
   const ready = opened.then(async (store) => {
     const begun = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.k}/${shard.n}` : null });
@@ -111,19 +158,23 @@ export async function runIngest(
   let storedSoFar = 0;
   const diskFull = (e: unknown, during: string) => new DiskFullError(outDb, during, storedSoFar, e);
   try {
-    // file names relative to the cohort root: no absolute paths (which may name people) in the database
-    const shown = (rec: CohortRecording) => path.relative(cohort.root, rec.recordingPath) || path.basename(rec.recordingPath);
     // messages name files relative to the cohort root too
     const rootPrefix = cohort.root.endsWith(path.sep) ? cohort.root : cohort.root + path.sep;
     // set when the run must stop (disk full): recordings still in flight are neither written nor logged
     let stopped = false;
+    // failures go to ingest_errors in batches: a row that fails costs a few hundred bytes, not a write of its own
+    const pendingErrors: IngestErrorIn[] = [];
+    const flushErrors = async () => {
+      if (pendingErrors.length > 0) await (await ready).writeErrors(pendingErrors.splice(0));
+    };
     const fail = async (rec: CohortRecording, step: string, field: string | null, fullMessage: string) => {
-      const store = await ready;
+      await ready;
       if (stopped) return;
-      const message = fullMessage.split(rootPrefix).join('');
+      const message = namer.message(rec, fullMessage).split(rootPrefix).join('');
       summary.failed.push({ file: shown(rec), step, message });
-      await store.writeError({ runId, file: shown(rec), step, field, message });
+      pendingErrors.push({ runId, file: shown(rec), step, field, message });
       progress?.({ kind: 'recording', file: shown(rec), state: 'failed', message });
+      if (pendingErrors.length >= ERROR_BATCH) await flushErrors();
     };
     const one = async (rec: CohortRecording): Promise<void> => {
       if (rec.problem) return fail(rec, 'cohort', rec.problem.column, rec.problem.message);
@@ -132,10 +183,27 @@ export async function runIngest(
         // the worker hashes the file and asks here whether that recording is stored (skipped if so)
         bundle = await pool.process(rec, params, runId, {
           onProgress: (p) => progress?.({ kind: 'progress', file: shown(rec), ...p }),
-          isStored: async (sha) => (await ready).hasRecording(runId, sha),
+          isStored: async (sha) => {
+            const store = await ready;
+            const stored = await store.storedRecording(runId, sha);
+            if (stored && (stored.subject !== rec.subject || stored.session !== rec.session)) {
+              const name = (subject: string, session: string | null) => `subject ${subject}${session ? `, session ${session}` : ''}`;
+              throw new WorkerTaskError(
+                'cohort',
+                'subject',
+                `row ${rec.row} (${name(rec.subject, rec.session)}): this recording is stored in run ${runId} under ${name(stored.subject, stored.session)}; ` +
+                  `the table now names ${name(rec.subject, rec.session)}. Ingest into a new database file to store it under the new name`,
+              );
+            }
+            // stored before under another form of its name (--file-names changed): the name follows the form asked now
+            const names = stored && { fileName: namer.stored(rec, sha), scoringSource: namer.scoringSource(stored.scoringSource) };
+            if (stored && names && (stored.fileName !== names.fileName || stored.scoringSource !== names.scoringSource)) await store.renameRecording(runId, sha, names);
+            return stored !== null;
+          },
         });
       } catch (e) {
         await ready; // a store that did not open is the error to report, not this recording's
+        if (summary.interrupted) return; // stopped by the interrupt: not a failure of this recording
         const step = e instanceof WorkerTaskError ? e.step : 'process';
         return fail(rec, step, e instanceof WorkerTaskError ? e.field : null, (e as Error).message);
       }
@@ -146,8 +214,9 @@ export async function runIngest(
         progress?.({ kind: 'recording', file: shown(rec), state: 'skipped' });
         return;
       }
-      if (stopped) return;
-      bundle.recording.fileName = shown(rec);
+      if (stopped || summary.interrupted) return;
+      bundle.recording.fileName = namer.stored(rec, bundle.recording.fileSha256);
+      bundle.recording.scoringSource = namer.scoringSource(bundle.recording.scoringSource);
       try {
         await store.writeRecording(bundle);
       } catch (e) {
@@ -166,14 +235,20 @@ export async function runIngest(
     // a few recordings in flight beyond the workers (hashing, writing), never the whole cohort at once
     let next = 0;
     const lanes = Array.from({ length: Math.min(recordings.length, pool.size + 1) }, async () => {
-      while (next < recordings.length && !stopped) await one(recordings[next++]);
+      while (next < recordings.length && !stopped && !summary.interrupted) await one(recordings[next++]);
     });
     // every lane settles before the pool and the store close; the first error is the one reported
     // (the store's own, when it did not open or begin the run)
     const ended = await Promise.allSettled([ready, ...lanes]);
     const laneError = ended.find((r): r is PromiseRejectedResult => r.status === 'rejected');
     if (laneError) throw laneError.reason;
+    await flushErrors();
     const store = await ready;
+    if (summary.interrupted) {
+      // unfinished: no cohort pass, no finish mark; the close below checkpoints what was committed
+      summary.notProcessed = recordings.length - summary.done - summary.skipped - summary.failed.length;
+      return summary;
+    }
     try {
       // cohort pass once everything is in (a shard sees only its part; merging reruns the pass)
       summary.cohortQualityRows = await cohortQualityPass(store);
@@ -188,6 +263,7 @@ export async function runIngest(
     failure = e;
     throw e;
   } finally {
+    options.signal?.removeEventListener('abort', onAbort);
     await pool.close();
     // a close that fails (its checkpoint on a full disk) must not hide the first error
     const store = await opened.catch(() => null);

@@ -42,6 +42,8 @@ function lightsCell(text: string): LightsCell | undefined {
   return x !== null && x >= 0 ? { fromStartS: x } : undefined;
 }
 const REQUIRED = ['subject', 'recording'] as const;
+/** File checks (stat) in flight at once. */
+const FILE_CHECKS_AT_ONCE = 32;
 
 function rowSchema(hasGroup: boolean) {
   return z.object({
@@ -119,7 +121,7 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
     }
   };
   const pairRow = new Map<string, number>();
-  const fileChecks: Promise<void>[] = [];
+  const fileChecks: (() => Promise<void>)[] = [];
   const at = (cells: string[], name: string) => (col(name) >= 0 ? cellValue(cells[col(name)]) : null);
 
   table.rows.forEach((r, i) => {
@@ -144,7 +146,7 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
     const scoringPath = v.scoring === null ? null : path.resolve(folder, v.scoring);
     const covariates: Record<string, number | string | null> = {};
     for (const name of covariateNames) covariates[name] = typedValue(at(r.cells, name), kinds.get(name)!);
-    const rec: CohortRecording = { row, subject: v.subject, session: v.session, group: hasGroup ? v.group : null, recordingPath, scoringPath, covariates };
+    const rec: CohortRecording = { row, subject: v.subject, session: v.session, group: hasGroup ? v.group : null, recordingPath, recordingAsGiven: v.recording, scoringPath, covariates };
     recordings.push(rec);
     // a problem of this row alone: fatal, or kept on the row for ingest to record
     const rowProblem = (p: CohortProblem & { column: string }) => {
@@ -167,12 +169,20 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
       rowProblem({ row, column: 'subject', message: `subject '${v.subject}'${v.session === null ? ' (no session)' : ` session '${v.session}'`} is already in row ${first}` });
     } else pairRow.set(key, row);
 
-    fileChecks.push(checkFile(recordingPath, v.recording, row, 'recording', rowProblem));
-    if (scoringPath !== null && v.scoring !== null) fileChecks.push(checkFile(scoringPath, v.scoring, row, 'scoring', rowProblem));
+    fileChecks.push(() => checkFile(recordingPath, v.recording, row, 'recording', rowProblem));
+    if (scoringPath !== null && v.scoring !== null) fileChecks.push(() => checkFile(scoringPath, v.scoring!, row, 'scoring', rowProblem));
     const positionsCell = at(r.cells, 'positions');
-    if (positionsCell !== null) fileChecks.push(readPositions(path.resolve(folder, positionsCell), positionsCell, row, rec, rowProblem));
+    if (positionsCell !== null) fileChecks.push(() => readPositions(path.resolve(folder, positionsCell), positionsCell, row, rec, rowProblem));
   });
-  await Promise.all(fileChecks);
+  // a few checks at a time: a stat that fails holds an error with its stack, and a table of
+  // 100,000 missing files must not hold 100,000 of them at once
+  let nextCheck = 0;
+  await Promise.all(
+    Array.from({ length: Math.min(FILE_CHECKS_AT_ONCE, fileChecks.length) }, async () => {
+      while (nextCheck < fileChecks.length) await fileChecks[nextCheck++]();
+    }),
+  );
+  fileChecks.length = 0; // each check holds its row's scope
   positionFiles.clear();
 
   const participants = participantsOf(recordings.filter((r) => !r.problem), hasGroup, covariateNames, problems);

@@ -27,6 +27,8 @@ export interface CohortRecording {
   group: string | null;
   /** Absolute path. */
   recordingPath: string;
+  /** The path as the cohort table writes it (BIDS: relative to the root); for `--file-names as-given`. */
+  recordingAsGiven?: string;
   /** Absolute path, or null: the scoring is the recording's EDF+ annotations. */
   scoringPath: string | null;
   covariates: Record<string, number | string | null>;

@@ -8,7 +8,7 @@
  * read the file; `duckdb_databases().tags` reports it, and the file header holds the storage
  * version number as a little-endian uint64 after 8 checksum bytes and the magic "DUCK".
  */
-import { closeSync, existsSync, openSync, readSync } from 'node:fs';
+import { closeSync, existsSync, openSync, readSync, statSync } from 'node:fs';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { DatabaseBusyError, StoreError } from './errors.ts';
 import { schemaSql, TABLES } from './schema.ts';
@@ -67,7 +67,21 @@ export async function openStore(path: string, options: OpenOptions = {}): Promis
     connection.closeSync();
     instance.closeSync();
     // another process holds DuckDB's file lock: say what that means instead of the raw lock error
-    throw DatabaseBusyError.from(path, options.readOnly ?? false, e) ?? e;
+    const busy = DatabaseBusyError.from(path, options.readOnly ?? false, e);
+    if (busy) throw busy;
+    // DuckDB's first line, without its "IO Error:"-style prefix
+    const first = (e instanceof Error ? e.message : String(e)).split('\n')[0].replace(/^[A-Za-z ]*Error: /, '');
+    throw new StoreError(`${path} cannot be read as a DuckDB database (damaged or cut short): ${first}`);
+  }
+  if (exists) {
+    // a DuckDB file of someone else's is never read as a cohort nor given bandwise's tables
+    const reader = await connection.runAndReadAll('SELECT table_name FROM duckdb_tables() WHERE database_name = current_database() ORDER BY table_name');
+    const tables = reader.getRowObjects().map((r) => String(r.table_name));
+    if ((tables.length > 0 || options.readOnly) && !tables.includes('runs')) {
+      connection.closeSync();
+      instance.closeSync();
+      throw new StoreError(tables.length > 0 ? `${path} was not written by bandwise (it has no runs table; its tables: ${tables.join(', ')})` : `${path} holds no bandwise data (no tables)`);
+    }
   }
   if (!options.readOnly) {
     for (const sql of schemaSql()) await connection.run(sql);
@@ -102,4 +116,27 @@ export function readHeaderStorageNumber(path: string): number {
     closeSync(fd);
   }
   return Number(header.readBigUInt64LE(12));
+}
+
+/**
+ * A write-ahead log left beside the file by a writer that was stopped (SIGKILL, a power cut)
+ * holds committed data the file itself does not. A reader through DuckDB replays it, but the
+ * dashboard's browser reads the file alone: so the log is checkpointed into the file first (what
+ * opening the file for writing does; DuckDB docs, "CHECKPOINT"). True when there was one.
+ */
+export async function checkpointLeftoverLog(path: string): Promise<boolean> {
+  const wal = `${path}.wal`;
+  if (!existsSync(wal) || statSync(wal).size === 0) return false;
+  const instance = await DuckDBInstance.create(':memory:', { autoinstall_known_extensions: 'false', autoload_known_extensions: 'false' });
+  const connection = await instance.connect();
+  try {
+    await connection.run(`ATTACH '${path.replaceAll("'", "''")}' AS ${STORE_ALIAS}`);
+    await connection.run(`CHECKPOINT ${STORE_ALIAS}`);
+  } catch (e) {
+    throw DatabaseBusyError.from(path, false, e) ?? new StoreError(`${path} has a write-ahead log ${wal} that could not be written into it: ${(e as Error).message}`);
+  } finally {
+    connection.closeSync();
+    instance.closeSync();
+  }
+  return true;
 }

@@ -9,6 +9,7 @@ import type { RecordingBundle, QualityRowIn } from './bundle.ts';
 import { appendColumns, type CellValue } from './chunks.ts';
 import { appendEpochSpectra } from './epoch-spectra-rows.ts';
 import { StoreError } from './errors.ts';
+import { ErrorRows } from './error-rows.ts';
 import { recordingIdFor, runIdentity } from './identity.ts';
 import { participantsCreateSql, tableDef, type TableDef } from './schema.ts';
 
@@ -17,13 +18,8 @@ export interface BeginRunOptions {
   shard?: string | null;
 }
 
-export interface IngestErrorIn {
-  runId: string;
-  file: string | null;
-  step: string;
-  field: string | null;
-  message: string;
-}
+export type { IngestErrorIn } from './error-rows.ts';
+import type { IngestErrorIn } from './error-rows.ts';
 
 /** A quality row of the cohort-level pass (after all recordings), with its recording. */
 export interface CohortQualityRow extends QualityRowIn {
@@ -43,11 +39,13 @@ export class Store {
   readonly readOnly: boolean;
   private queue: Promise<unknown> = Promise.resolve();
   private closed = false;
+  private readonly errorRows: ErrorRows;
 
   constructor(instance: DuckDBInstance, connection: DuckDBConnection, options: { readOnly: boolean }) {
     this.instance = instance;
     this.connection = connection;
     this.readOnly = options.readOnly;
+    this.errorRows = new ErrorRows(connection);
   }
 
   /**
@@ -150,6 +148,23 @@ export class Store {
     });
   }
 
+  /** The subject, session, file name and scoring source a recording with this file hash is stored under in this run, or null. */
+  storedRecording(runId: string, fileSha256: string): Promise<{ subject: string; session: string | null; fileName: string; scoringSource: string | null } | null> {
+    return this.exclusive(async () => {
+      const found = await this.rows('SELECT subject, session, file_name, scoring_source FROM recordings WHERE run_id = $1 AND file_sha256 = $2', [runId, fileSha256]);
+      if (found.length === 0) return null;
+      const text = (v: unknown) => (v === null ? null : String(v));
+      return { subject: String(found[0].subject), session: text(found[0].session), fileName: String(found[0].file_name), scoringSource: text(found[0].scoring_source) };
+    });
+  }
+
+  /** Replace what a stored recording says of its file (what --file-names keeps changed since it was stored). */
+  renameRecording(runId: string, fileSha256: string, names: { fileName: string; scoringSource: string | null }): Promise<void> {
+    return this.exclusive(async () => {
+      await this.connection.run('UPDATE recordings SET file_name = $3, scoring_source = $4 WHERE run_id = $1 AND file_sha256 = $2', [runId, fileSha256, names.fileName, names.scoringSource]);
+    });
+  }
+
   /** Write one recording and everything computed from it in ONE transaction; returns its recording_id. */
   writeRecording(bundle: RecordingBundle): Promise<string> {
     return this.exclusive(async () => {
@@ -158,7 +173,7 @@ export class Store {
       const stored = await this.rows('SELECT 1 AS one FROM recordings WHERE recording_id = $1', [id]);
       if (stored.length > 0) {
         throw new StoreError(
-          `${bundle.recording.fileName} (file hash ${bundle.recording.fileSha256.slice(0, 12)}…) is already stored in run ${bundle.runId}; check hasRecording first`,
+          `${bundle.recording.fileName} (file hash ${bundle.recording.fileSha256.slice(0, 12)}…) is already stored in run ${bundle.runId}`,
           { table: 'recordings' },
         );
       }
@@ -175,17 +190,16 @@ export class Store {
   }
 
   /** Record a failure of one file or step; the other recordings go on. */
-  writeError(error: IngestErrorIn): Promise<void> {
-    return this.exclusive(async () => {
-      await appendColumns(this.connection, tableDef('ingest_errors'), 1, {
-        run_id: () => error.runId,
-        file: () => error.file,
-        step: () => error.step,
-        field: () => error.field,
-        message: () => error.message,
-        logged_at: () => new Date(),
-      });
-    });
+  writeError(error: IngestErrorIn): Promise<number> {
+    return this.writeErrors([error]);
+  }
+
+  /**
+   * Record failures in one append; one already recorded for its run (a rerun failing the same row
+   * again) is not recorded twice (error-rows.ts). Returns the rows added.
+   */
+  writeErrors(errors: readonly IngestErrorIn[]): Promise<number> {
+    return this.exclusive(() => this.errorRows.write(errors));
   }
 
   /**

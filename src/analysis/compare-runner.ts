@@ -18,7 +18,7 @@ import type { Part } from '../core/confirmation/split.ts';
 import type { PartFields } from '../core/confirmation/stamp.ts';
 
 export interface CompareRun extends CompareResult, PartFields {
-  database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown };
+  database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown; runFinished: boolean };
 }
 
 export interface CompareOptions {
@@ -57,5 +57,5 @@ export async function compareDatabase(dbPath: string, c: Contrast, exclusions: E
   if (options.threads !== undefined && !(Number.isInteger(options.threads) && options.threads >= 1)) throw new RangeError(`invalid number of threads: ${options.threads}`);
   const { info, assembled, threads } = await loadAssembled(dbPath, c, exclusions, runId, options.threads, options.part);
   const result = await compareOnThreads(c, assembled, threads, onProgress);
-  return compareOnPart({ ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters } }, info.view);
+  return compareOnPart({ ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters, runFinished: info.runFinished } }, info.view);
 }

@@ -48,6 +48,22 @@ export function appendLedger(file: string, database: string, result: LedgerInput
   return entry;
 }
 
+/**
+ * Appends as appendLedger does, or returns why it could not (a read-only folder, a full disk):
+ * the analysis's result is written already, and the command says so in one line.
+ */
+export function tryAppendLedger(file: string, database: string, result: Parameters<typeof appendLedger>[2]): string | null {
+  try {
+    appendLedger(file, database, result);
+    return null;
+  } catch (e) {
+    const err = e as NodeJS.ErrnoException;
+    if (typeof err.code !== 'string') throw e;
+    const what = result.kind === 'report' ? 'report' : 'analysis';
+    return `warning: the ledger ${file} cannot be written (${err.code}): this ${what} is not recorded in it${what === 'analysis' ? ', so reports will not count it' : ''}; everything else is written`;
+  }
+}
+
 export function readLedger(file: string): LedgerEntry[] {
   if (!existsSync(file)) return [];
   return readFileSync(file, 'utf8').split('\n').filter(Boolean).map((l, i) => {

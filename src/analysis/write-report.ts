@@ -3,11 +3,13 @@
  * its database and the ledger counts when they are at hand, write the Markdown and the parameters
  * JSON, and record the report in the ledger.
  */
-import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { methodsReport, type ReportableResult } from '../core/report/index.ts';
 import { databaseFactsOf, ledgerCountsOf } from './report-facts.ts';
-import { appendLedger } from './ledger.ts';
+import { tryAppendLedger } from './ledger.ts';
+import { readSmallText } from '../files/input-files.ts';
+import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
 
 export interface ReportOptions {
   out: string;
@@ -24,8 +26,9 @@ export class ReportFileError extends Error {
 /** Reads a result JSON written by compare or band-check; fails naming the file and the problem. */
 export function readResult(file: string): ReportableResult {
   let value: unknown;
+  const text = readSmallText(file, 'the result');
   try {
-    value = JSON.parse(readFileSync(file, 'utf8'));
+    value = JSON.parse(text);
   } catch (e) {
     throw new ReportFileError(`${file}: cannot be read as JSON (${(e as Error).message})`);
   }
@@ -44,18 +47,27 @@ function databaseFor(resultFile: string, r: ReportableResult, given?: string): s
   return existsSync(beside) ? beside : null;
 }
 
-export async function writeReport(resultFile: string, flags: ReportOptions): Promise<{ markdown: string; jsonFile: string; database: string | null; ledger: string | null }> {
+/**
+ * Reads the result (and its database and ledger when at hand), refuses outputs that would destroy
+ * an input or each other (OutputClashError, before anything is written), writes the methods text
+ * and the parameters JSON, and records the report in the ledger (ledgerWarning when it could not).
+ */
+export async function writeReport(resultFile: string, flags: ReportOptions): Promise<{ markdown: string; jsonFile: string; database: string | null; ledger: string | null; ledgerWarning: string | null }> {
   const result = readResult(resultFile);
   const db = databaseFor(resultFile, result, flags.database);
-  const facts = db ? await databaseFactsOf(db, result.contrast, flags.run ?? result.database?.runId) : null;
   const ledgerFile = flags.ledger === false ? null : (flags.ledger ?? (db ? `${db}.ledger.jsonl` : null));
+  const jsonFile = flags.json ?? flags.out.replace(/\.(md|markdown)$/i, '') + '.json';
+  refuseClashes(
+    [{ what: 'the result', file: resultFile }, db ? { what: 'the database', file: db } : null],
+    [ledgerFile ? { what: 'the ledger', file: ledgerFile } : null, { what: '--out', file: flags.out }, { what: flags.json ? '--json' : 'the parameters JSON', file: jsonFile }],
+  );
+  const facts = db ? await databaseFactsOf(db, result.contrast, flags.run ?? result.database?.runId) : null;
   const dbName = (db ?? result.database?.file ?? '').split(/[\\/]/).pop()!;
   const ledger = ledgerFile && existsSync(ledgerFile) ? ledgerCountsOf(ledgerFile, dbName) : null;
   const report = methodsReport(result, facts, ledger);
-  const jsonFile = flags.json ?? flags.out.replace(/\.(md|markdown)$/i, '') + '.json';
-  writeFileSync(flags.out, report.markdown);
-  writeFileSync(jsonFile, JSON.stringify(report.parameters, null, 2) + '\n');
+  writeFileReplacing(flags.out, report.markdown);
+  writeFileReplacing(jsonFile, JSON.stringify(report.parameters, null, 2) + '\n');
   // recorded as kind "report": not an analysis, so the report's counts leave it out
-  if (ledgerFile) appendLedger(ledgerFile, dbName, { kind: 'report', contrast: result.contrast, p: null });
-  return { markdown: report.markdown, jsonFile, database: db, ledger: ledgerFile };
+  const ledgerWarning = ledgerFile ? tryAppendLedger(ledgerFile, dbName, { kind: 'report', contrast: result.contrast, p: null }) : null;
+  return { markdown: report.markdown, jsonFile, database: db, ledger: ledgerFile, ledgerWarning };
 }

@@ -4,11 +4,11 @@
  * band check of src/core/verdict on the contrast's channels (averaged) and writes the verdict
  * with every effect, its interval and p, and the sentence behind it.
  */
-import { writeFileSync, readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
 import type { BandCheckRun } from '../analysis/band-check-runner.ts';
-import { addContrastOptions, contrastOrExit, inputOrExit, type Flags } from './contrast-options.ts';
+import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
+import { addContrastOptions, contrastOrExit, inputOrExit, readExclusions, type Flags } from './contrast-options.ts';
 
 interface BandFlags extends Omit<Flags, 'band'> {
   band: string;
@@ -47,17 +47,29 @@ export function register(program: Command): void {
     }
     // loaded on use: `bandwise --help` reads none of the analysis code
     const { default: cliProgress } = await import('cli-progress');
-    const { parseExclusionsTsv, withExclusions } = await import('../core/contrast/exclusions.ts');
+    const { withExclusions } = await import('../core/contrast/exclusions.ts');
     const { bandCheckDatabase } = await import('../analysis/band-check-runner.ts');
-    const { appendLedger } = await import('../analysis/ledger.ts');
+    const { tryAppendLedger } = await import('../analysis/ledger.ts');
     const { reportUserError } = await import('./user-errors.ts');
     const { partLine } = await import('../core/confirmation/methods-text.ts');
     const band = inputOrExit(() => parseBand(flags.band));
     if (!band) return;
+    const ledger = flags.ledger === false ? null : (flags.ledger ?? `${database}.ledger.jsonl`);
+    let exclusions;
+    try {
+      refuseClashes(
+        [{ what: 'the database', file: database }, flags.contrast ? { what: '--contrast', file: flags.contrast } : null, flags.exclusions ? { what: '--exclusions', file: flags.exclusions } : null],
+        [ledger ? { what: 'the ledger', file: ledger } : null, { what: '--out', file: flags.out }],
+      );
+      exclusions = readExclusions(flags.exclusions);
+    } catch (e) {
+      if (reportUserError('band-check', e)) return;
+      throw e;
+    }
     const given = contrastOrExit({ ...flags, band: undefined });
     if (!given) return;
     // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran
-    const contrast = flags.exclusions ? withExclusions(given, parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions)) : given;
+    const contrast = exclusions.length ? withExclusions(given, exclusions) : given;
     const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'band check {bar} {value}/{total} tests | {step}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
     let started = false;
     let result: BandCheckRun;
@@ -80,13 +92,20 @@ export function register(program: Command): void {
       throw e;
     }
     bar?.stop();
-    writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
+    try {
+      writeFileReplacing(flags.out, JSON.stringify(result, null, 2) + '\n');
+    } catch (e) {
+      if (reportUserError('band-check', e)) return;
+      throw e;
+    }
     // the ledger records the band with the contrast
-    if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p, part: result.part, split: result.split });
+    const ledgerWarning = ledger ? tryAppendLedger(ledger, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p, part: result.part, split: result.split }) : null;
     console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}${result.periodicKind ? ` (${result.periodicKind})` : ''}`);
     console.log(result.sentence);
+    if (!result.database.runFinished) console.log(`note: run ${result.database.runId} is unfinished (its ingest stopped before its end): the cohort may be partial`);
     const part = partLine(result);
     if (part) console.log(part);
     console.log(`wrote ${flags.out}`);
+    if (ledgerWarning) console.error(`bandwise band-check: ${ledgerWarning}`);
   });
 }

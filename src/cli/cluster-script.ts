@@ -5,6 +5,7 @@
  */
 import path from 'node:path';
 import { Command, InvalidArgumentError } from 'commander';
+import { EXIT_OUTPUT_REFUSED, OutputClashError } from '../files/output-files.ts';
 
 interface Flags {
   out: string;
@@ -70,7 +71,7 @@ export function register(program: Command): void {
         console.log(`submit with:\n  bash ${w.submit}\n(or by hand: sbatch --parsable ${w.ingest}, then sbatch --dependency=afterok:<that job id> ${w.merge})`);
         console.log(`shard databases: ${path.dirname(w.scripts.shardFiles[0])}, logs: ${w.scripts.logDir}, result: ${out}`);
       } catch (e) {
-        cmd.error(`bandwise cluster-script: ${(e as Error).message}`, { exitCode: 1 });
+        cmd.error(`bandwise cluster-script: ${(e as Error).message}`, { exitCode: e instanceof OutputClashError ? EXIT_OUTPUT_REFUSED : 1 });
       }
     });
 }

@@ -2,10 +2,10 @@
  * `bandwise compare <cohort.duckdb> (--contrast contrast.json | options) --out result.json`
  * Runs one contrast headless: the same contrast JSON the dashboard saves, the same engine.
  */
-import { readFileSync, writeFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
 import type { CompareRun } from '../analysis/compare-runner.ts';
-import { addContrastOptions, contrastOrExit, type Flags } from './contrast-options.ts';
+import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
+import { addContrastOptions, contrastOrExit, readExclusions, type Flags } from './contrast-options.ts';
 
 const threadCount = (v: string) => {
   const x = Number(v);
@@ -61,16 +61,28 @@ export function register(program: Command): void {
     .action(async (database: string, flags: Flags) => {
       // loaded on use: `bandwise --help` reads none of the analysis code
       const { default: cliProgress } = await import('cli-progress');
-      const { parseExclusionsTsv, withExclusions } = await import('../core/contrast/exclusions.ts');
+      const { withExclusions } = await import('../core/contrast/exclusions.ts');
       const { designTitle, signText } = await import('../core/contrast/labels.ts');
       const { compareDatabase } = await import('../analysis/compare-runner.ts');
-      const { appendLedger } = await import('../analysis/ledger.ts');
+      const { tryAppendLedger } = await import('../analysis/ledger.ts');
       const { reportUserError } = await import('./user-errors.ts');
       const { partLine } = await import('../core/confirmation/methods-text.ts');
+      const ledger = flags.ledger === false ? null : (flags.ledger ?? `${database}.ledger.jsonl`);
+      let exclusions;
+      try {
+        refuseClashes(
+          [{ what: 'the database', file: database }, flags.contrast ? { what: '--contrast', file: flags.contrast } : null, flags.exclusions ? { what: '--exclusions', file: flags.exclusions } : null],
+          [ledger ? { what: 'the ledger', file: ledger } : null, { what: '--out', file: flags.out }, flags.tsv ? { what: '--tsv', file: flags.tsv } : null, flags.pointsTsv ? { what: '--points-tsv', file: flags.pointsTsv } : null],
+        );
+        exclusions = readExclusions(flags.exclusions);
+      } catch (e) {
+        if (reportUserError('compare', e)) return;
+        throw e;
+      }
       const given = contrastOrExit(flags);
       if (!given) return;
       // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran
-      const contrast = flags.exclusions ? withExclusions(given, parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions)) : given;
+      const contrast = exclusions.length ? withExclusions(given, exclusions) : given;
       const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'permutations {bar} {value}/{total} | ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
       let started = false;
       let result: CompareRun;
@@ -89,16 +101,23 @@ export function register(program: Command): void {
         throw e;
       }
       bar?.stop();
-      writeFileSync(flags.out, JSON.stringify(result, null, 2) + '\n');
-      if (flags.tsv) writeFileSync(flags.tsv, clustersTsv(result));
-      if (flags.pointsTsv) writeFileSync(flags.pointsTsv, pointsTsv(result));
-      if (flags.ledger !== false) appendLedger(flags.ledger ?? `${database}.ledger.jsonl`, database, result);
+      try {
+        writeFileReplacing(flags.out, JSON.stringify(result, null, 2) + '\n');
+        if (flags.tsv) writeFileReplacing(flags.tsv, clustersTsv(result));
+        if (flags.pointsTsv) writeFileReplacing(flags.pointsTsv, pointsTsv(result));
+      } catch (e) {
+        if (reportUserError('compare', e)) return;
+        throw e;
+      }
+      const ledgerWarning = ledger ? tryAppendLedger(ledger, database, result) : null;
       const n = Object.entries(result.n).map(([k, v]) => `${k} ${v}`).join(', ');
       const best = result.clusters[0];
       console.log(`${result.measure}; ${designTitle(result.contrast)}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${signText(result.contrast, best.sign)}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
       for (const note of result.notes) console.log(note);
+      if (!result.database.runFinished) console.log(`note: run ${result.database.runId} is unfinished (its ingest stopped before its end): the cohort may be partial`);
       const part = partLine(result);
       if (part) console.log(part);
       console.log(`wrote ${flags.out}`);
+      if (ledgerWarning) console.error(`bandwise compare: ${ledgerWarning}`);
     });
 }

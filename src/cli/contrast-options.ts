@@ -2,8 +2,10 @@
  * The options that define a contrast on the command line (and the contrast JSON they override),
  * shared by the commands that run one (compare, band-check).
  */
-import { readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError, Option } from 'commander';
+import type { Exclusion } from '../core/contrast/data.ts';
+import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
+import { InputFileError, readSmallText } from '../files/input-files.ts';
 import { BAND_DEFINITIONS, ESTIMATORS, MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../core/contrast/spec.ts';
 import { BAND_SYNTAX, BandError, parseBand } from '../core/spectrum/bands.ts';
 import { AdjacencyError, neighbourTable, type NeighbourTable } from '../core/montage/adjacency.ts';
@@ -62,20 +64,40 @@ export interface Flags {
   neighbours?: string;
 }
 
-/** The neighbour table a --neighbours file holds (adjacency.ts neighbourTable); a file that cannot be read is named. */
+/** The neighbour table a --neighbours file holds (adjacency.ts neighbourTable); a file that cannot be read is an InputFileError naming it. */
 function readNeighbours(file: string): NeighbourTable {
-  let text: string;
+  return neighbourTable(readSmallText(file, '--neighbours'));
+}
+
+/** The exclusions table of --exclusions (none without it); a file that cannot be read or parsed is an InputFileError. */
+export function readExclusions(file: string | undefined): Exclusion[] {
+  if (!file) return [];
+  const text = readSmallText(file, '--exclusions');
   try {
-    text = readFileSync(file, 'utf8');
-  } catch {
-    throw new AdjacencyError(`--neighbours: cannot read ${file}`, '--neighbours', file);
+    return parseExclusionsTsv(text, file);
+  } catch (e) {
+    throw new InputFileError(`--exclusions ${(e as Error).message}`);
   }
-  return neighbourTable(text);
+}
+
+/** The contrast JSON file's object; anything else (null, a list, a number) is refused. */
+function readContrastFile(file: string): Record<string, unknown> {
+  const text = readSmallText(file, '--contrast');
+  let value: unknown;
+  try {
+    value = JSON.parse(text);
+  } catch (e) {
+    throw new ContrastSpecError(`--contrast ${file} is not JSON: ${(e as Error).message}`);
+  }
+  if (value === null || typeof value !== 'object' || Array.isArray(value)) {
+    throw new ContrastSpecError(`--contrast ${file} holds ${value === null ? 'null' : Array.isArray(value) ? 'a list' : `a ${typeof value}`}; a contrast is a JSON object such as {"design": "groups", "groups": ["control", "patient"]}`);
+  }
+  return value as Record<string, unknown>;
 }
 
 /** Builds the contrast JSON from the file (if any) with the command-line options on top. */
 export function contrastFromFlags(f: Flags): ContrastJson {
-  const base = (f.contrast ? JSON.parse(readFileSync(f.contrast, 'utf8')) : {}) as Record<string, unknown>;
+  const base = f.contrast ? readContrastFile(f.contrast) : {};
   const set = (k: string, v: unknown) => {
     if (v !== undefined) base[k] = v;
   };
@@ -121,7 +143,7 @@ export function inputOrExit<T>(read: () => T): T | null {
   try {
     return read();
   } catch (e) {
-    if (e instanceof ContrastSpecError || e instanceof SyntaxError || e instanceof BandError || e instanceof AdjacencyError) {
+    if (e instanceof ContrastSpecError || e instanceof SyntaxError || e instanceof BandError || e instanceof AdjacencyError || e instanceof InputFileError) {
       console.error(e.message);
       process.exitCode = 2;
       return null;

@@ -18,12 +18,21 @@ export function register(program: Command): void {
     .action(async (database: string, flags: { port?: number }) => {
       // loaded on use: `bandwise --help` opens no database code
       const { dashboardAppDir, serveDashboard, waitForSignal } = await import('../server/launcher.ts');
-      const { openStore } = await import('../../ingest/store/database.ts');
+      const { checkpointLeftoverLog, openStore } = await import('../../ingest/store/database.ts');
+      const { chooseRun, runs } = await import('../queries/runs.ts');
+      const { storeClient } = await import('../analysis/store-client.ts');
       const { reportUserError } = await import('./user-errors.ts');
       try {
         dashboardAppDir(); // the app is built (`npm run build`), never compiled here
         // the browser reads the file as it is on disk: refuse one another process is writing (its lock says so)
-        await (await openStore(database, { readOnly: true })).close();
+        const store = await openStore(database, { readOnly: true });
+        try {
+          // the views read the most recent finished run: refuse a database with none
+          chooseRun(await runs(storeClient(store)));
+        } finally {
+          await store.close();
+        }
+        if (await checkpointLeftoverLog(database)) console.log(`the write-ahead log ${database}.wal (left by a writer that was stopped) was folded into the file`);
       } catch (e) {
         if (reportUserError('dashboard', e)) return;
         throw e;

@@ -16,12 +16,20 @@ import { defaultTaperCount } from '../core/spectrum/multitaper.ts';
 import { readLabelMap } from '../../ingest/hypnogram/label-map.ts';
 import type { IngestEvent } from '../../ingest/run.ts';
 import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../../ingest/pipeline.ts';
+import { OutputClashError } from '../files/output-files.ts';
+import { DEFAULT_FILE_NAME_FORM, FILE_NAME_FORMS, type FileNameForm } from '../../ingest/file-names.ts';
 
 export const EXIT_OK = 0;
 export const EXIT_FATAL = 1;
+/** --out is the cohort table, a recording or a scoring file: refused, nothing written. */
+export const EXIT_OUTPUT_REFUSED = 2;
+/** Interrupted (128 + signal number): 130 Ctrl-C (SIGINT), 143 SIGTERM; what was stored is kept, a rerun resumes. */
+export const EXIT_INTERRUPTED = { SIGINT: 130, SIGTERM: 143 } as const;
 export const EXIT_PARTLY_FAILED = 3;
 
 const D = DEFAULT_INGEST_PARAMS;
+/** Failures listed on the terminal at the end (all of them are in ingest_errors). */
+const LISTED_FAILURES = 50;
 const num = (name: string, check: (x: number) => boolean) => (v: string) => {
   const x = Number(v);
   if (!Number.isFinite(x) || !check(x)) throw new InvalidArgumentError(`invalid ${name}: ${v}`);
@@ -77,6 +85,7 @@ interface Flags {
   tapers?: number;
   epochSpectra?: boolean;
   epochSpectraMax: number;
+  fileNames: FileNameForm;
 }
 
 export function register(program: Command): void {
@@ -130,6 +139,15 @@ export function register(program: Command): void {
       if (!(COORDINATE_UNITS as readonly string[]).includes(v)) throw new InvalidArgumentError(`--positions-unit: "${v}" is not one of ${COORDINATE_UNITS.join(', ')}`);
       return v as CoordinateUnit;
     }, 'mm', 'mm'))
+    .addOption(
+      new Option(
+        '--file-names <form>',
+        'what the database keeps of each file\'s path: name (the file name without its folders, which often name people), ' +
+          'relative (the path relative to the cohort table), as-given (as the table writes it) or hash (only the file\'s SHA-256; failed rows named by their row)',
+      )
+        .choices([...FILE_NAME_FORMS])
+        .default(DEFAULT_FILE_NAME_FORM),
+    )
     .option('--quiet', 'no progress bars (they are off anyway when stdout is not a terminal)')
     .addHelpText('after', '\nA research tool, not a diagnostic device. No EDF patient or recording identification is stored.')
     .action(async (cohort: string, flags: Flags, cmd: Command) => {
@@ -218,17 +236,49 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
       if (e.state === 'failed') bars.log(`failed: ${e.file}: ${e.message}\n`);
     }
   };
+  // Ctrl-C or SIGTERM: stop taking recordings, let the write in progress end, checkpoint, report;
+  // a second signal leaves at once (what was committed is in DuckDB's log, replayed on the next open)
+  const interrupt = new AbortController();
+  let caught: NodeJS.Signals | null = null;
+  const onSignal = (signal: NodeJS.Signals) => {
+    if (caught) {
+      bars?.stop();
+      process.exit(exitStatusFor(signal));
+    }
+    caught = signal;
+    interrupt.abort();
+  };
+  process.on('SIGINT', onSignal);
+  process.on('SIGTERM', onSignal);
   try {
-    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard, positions: f.positions, positionsUnit: f.positionsUnit }, onEvent);
+    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard, positions: f.positions, positionsUnit: f.positionsUnit, signal: interrupt.signal, fileNames: f.fileNames }, onEvent);
     bars?.stop();
+    if (summary.interrupted) {
+      const stored = summary.done + summary.skipped;
+      console.error(
+        `bandwise ingest: interrupted by ${caught ?? 'a signal'}: run ${summary.runId} is unfinished; ${stored} recording${stored === 1 ? '' : 's'} stored ` +
+          `(${summary.done} now, ${summary.skipped} before), ${summary.failed.length} failed, ${summary.notProcessed} not processed; ` +
+          'rerun the same command to resume: recordings already stored are skipped',
+      );
+      return exitStatusFor(caught ?? 'SIGINT');
+    }
     const secs = (Date.now() - t0) / 1000;
     console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, ${summary.warnings} warning${summary.warnings === 1 ? '' : 's'} (table warnings), in ${secs.toFixed(1)} s`);
-    for (const x of summary.failed) console.log(`  failed ${x.file} at ${x.step}: ${x.message}`);
+    for (const x of summary.failed.slice(0, LISTED_FAILURES)) console.log(`  failed ${x.file} at ${x.step}: ${x.message}`);
+    if (summary.failed.length > LISTED_FAILURES) console.log(`  … and ${summary.failed.length - LISTED_FAILURES} more failures, all in the database's ingest_errors table`);
     if (summary.failed.length === 0) return EXIT_OK;
     return summary.done + summary.skipped > 0 ? EXIT_PARTLY_FAILED : EXIT_FATAL;
   } catch (e) {
     bars?.stop();
     console.error(`bandwise ingest: ${(e as Error).message}`);
-    return EXIT_FATAL;
+    return e instanceof OutputClashError ? EXIT_OUTPUT_REFUSED : EXIT_FATAL;
+  } finally {
+    process.off('SIGINT', onSignal);
+    process.off('SIGTERM', onSignal);
   }
+}
+
+/** The exit status of a run stopped by this signal. */
+function exitStatusFor(signal: NodeJS.Signals): number {
+  return signal === 'SIGTERM' ? EXIT_INTERRUPTED.SIGTERM : EXIT_INTERRUPTED.SIGINT;
 }

@@ -8,6 +8,7 @@
  */
 import { Command } from 'commander';
 import { readFileSync } from 'node:fs';
+import { dropOutputWhenReaderCloses } from './closed-output.ts';
 
 interface CommandFile {
   register(program: Command): void;
@@ -53,4 +54,5 @@ for (const [name, summary, load] of COMMANDS) {
   else program.command(name).summary(summary); // listed by `bandwise --help`, never run
 }
 
+dropOutputWhenReaderCloses();
 await program.parseAsync(process.argv);

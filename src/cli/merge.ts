@@ -1,9 +1,11 @@
 /**
  * `bandwise merge <shard.duckdb…> --out cohort.duckdb`: combine the shard databases of one
  * sharded ingest into one cohort database (same format as a single-process ingest), then run
- * the cohort-level quality pass. Exit status 0 merged, 1 refused or failed (nothing written).
+ * the cohort-level quality pass. Exit status 0 merged, 1 refused or failed (nothing written),
+ * 2 --out is one of the shards (nothing written).
  */
 import { Command } from 'commander';
+import { EXIT_OUTPUT_REFUSED, refuseClashes } from '../files/output-files.ts';
 
 interface Flags {
   out: string;
@@ -26,6 +28,13 @@ export function register(program: Command): void {
     .action(async (shards: string[], flags: Flags) => {
       const { mergeShards } = await import('../../ingest/store/merge.ts'); // loaded on use
       const t0 = Date.now();
+      try {
+        refuseClashes(shards.map((file) => ({ what: 'the shard', file })), [{ what: '--out', file: flags.out }]);
+      } catch (e) {
+        console.error(`bandwise merge: ${(e as Error).message}`);
+        process.exitCode = EXIT_OUTPUT_REFUSED;
+        return;
+      }
       try {
         const s = await mergeShards(shards, flags.out, { allowMissingShards: flags.allowMissingShards });
         console.log(

@@ -29,6 +29,7 @@ export function register(program: Command): void {
       try {
         const r = await writeReport(resultFile, flags);
         console.log(`wrote ${flags.out} and ${r.jsonFile}${r.database ? '' : ' (no database: spectral facts from the result only)'}`);
+        if (r.ledgerWarning) console.error(`bandwise report: ${r.ledgerWarning}`);
       } catch (e) {
         if (e instanceof ReportFileError) {
           console.error(e.message);

@@ -1,6 +1,7 @@
 /** `bandwise simulate <scenario.json> <out-folder>`: writes a simulated cohort with its ground truth. */
 import type { Command } from 'commander';
 import path from 'node:path';
+import { EXIT_OUTPUT_REFUSED, refuseClashes } from '../files/output-files.ts';
 
 const HELP = `
 Generates synthetic sleep EEG with a known ground truth, one night per subject, from a scenario
@@ -32,6 +33,13 @@ export function register(program: Command): void {
         ? new cliProgress.SingleBar({ format: 'simulating {subject} |{bar}| {value}/{total} epochs · subject {n}/{of} · ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic)
         : null;
       let current = '';
+      try {
+        refuseClashes([{ what: 'the scenario', file: scenarioPath }], ['participants.tsv', 'truth.json'].map((f) => ({ what: 'the output', file: path.join(outDir, f) })));
+      } catch (e) {
+        console.error(`bandwise simulate: ${(e as Error).message}`);
+        process.exitCode = EXIT_OUTPUT_REFUSED;
+        return;
+      }
       try {
         const files = await writeSimulatedCohort(scenarioPath, outDir, {
           onProgress: (p) => {

@@ -14,7 +14,8 @@
  * and task id, `%j` the job id; `--parsable` prints "jobid[;cluster]";
  * `--kill-on-invalid-dep=yes` cancels a job whose dependency can never be met.
  */
-import { chmodSync, mkdirSync, writeFileSync } from 'node:fs';
+import { chmodSync, mkdirSync } from 'node:fs';
+import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -191,9 +192,13 @@ export function writeClusterScripts(o: ClusterScriptOptions, folder: string): Wr
   mkdirSync(folder, { recursive: true });
   const at = (f: string) => path.join(path.resolve(folder), f);
   const written = { ingest: at('ingest.sbatch'), merge: at('merge.sbatch'), submit: at('submit.sh') };
-  writeFileSync(written.ingest, scripts.ingest);
-  writeFileSync(written.merge, scripts.merge);
-  writeFileSync(written.submit, scripts.submit);
+  refuseClashes(
+    [{ what: 'the cohort', file: o.cohort }, { what: '--out', file: o.out }],
+    Object.values(written).map((file) => ({ what: 'the script', file })),
+  );
+  writeFileReplacing(written.ingest, scripts.ingest);
+  writeFileReplacing(written.merge, scripts.merge);
+  writeFileReplacing(written.submit, scripts.submit);
   for (const f of Object.values(written)) chmodSync(f, 0o755);
   return { ...written, scripts };
 }

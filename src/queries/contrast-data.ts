@@ -3,12 +3,12 @@
 // split exists it hands over one part's subjects only (src/core/confirmation/part-data.ts).
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from '../core/contrast/data.ts';
 import { measureNeeds } from '../core/contrast/measure.ts';
-import { ContrastDataError } from '../core/contrast/assemble.ts';
+import { ContrastDataError } from '../core/contrast/data-error.ts';
 import type { Contrast } from '../core/contrast/spec.ts';
 import type { Stage } from '../core/stages.ts';
 import { partData, type PartView } from '../core/confirmation/part-data.ts';
 import type { Part } from '../core/confirmation/split.ts';
-import type { SqlClient } from './client.ts';
+import { COHORT, rowsOf, type SqlClient } from './client.ts';
 import { participants } from './cohort.ts';
 import { aperiodicRows, peakRows, recordedReferences } from './fits.ts';
 import { channelPositions } from './positions.ts';
@@ -23,6 +23,8 @@ export interface LoadedContrast {
   runId: string;
   toolVersion: string;
   runParameters: unknown;
+  /** false for a run that stopped before its end (read only when named: src/queries/runs.ts) */
+  runFinished: boolean;
   data: ContrastData;
   /** the part of the split the rows are restricted to (null: no split, every subject) */
   view: PartView | null;
@@ -98,12 +100,22 @@ export async function loadContrastData(
   const peaks: PeakRow[] = ([] as PeakRow[]).concat(...perStage.map(([, , p]) => p));
   performance.mark('bandwise:contrast-data');
   if (rows.length === 0) {
-    const stored = await storedReferences(db, run.runId);
-    throw new ContrastDataError(`no ${stages.join('/')} spectra with reference ${c.reference}, averaging ${c.averaging} and estimator ${c.estimator} in run ${run.runId} (stored references: ${stored.join(', ') || 'none'})`);
+    const q = (v: string) => `'${v.replaceAll("'", "''")}'`;
+    const stored = rowsOf(
+      await db.query(
+        `SELECT DISTINCT s.stage::VARCHAR AS stage FROM ${COHORT}.spectra s JOIN ${COHORT}.recordings r USING (recording_id)
+         WHERE r.run_id = ${q(run.runId)} AND s.reference = ${q(c.reference)} AND s.averaging = ${q(c.averaging)} ORDER BY stage`,
+      ),
+    ).map((r) => String(r.stage));
+    throw new ContrastDataError(
+      `no ${stages.join('/')} spectra with reference ${c.reference}, averaging ${c.averaging} and estimator ${c.estimator} in run ${run.runId}; ` +
+        (stored.length > 0 ? `stored stages: ${stored.join(', ')}` : `no stage has spectra of that reference and averaging (stored references: ${(await storedReferences(db, run.runId)).join(', ') || 'none'})`),
+    );
   }
   return {
     runId: run.runId,
     toolVersion: run.toolVersion,
+    runFinished: run.finishedAt !== null,
     runParameters: run.parameters,
     data: partData(c, { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences: references, positions }, view),
     view,

@@ -1,5 +1,6 @@
 // The ingest runs of the database, and which one an analysis reads.
 import { COHORT, rowsOf, type SqlClient } from './client.ts';
+import { ContrastDataError } from '../core/contrast/data-error.ts';
 
 export interface RunInfo {
   runId: string;
@@ -42,10 +43,16 @@ export async function runs(db: SqlClient): Promise<RunInfo[]> {
   });
 }
 
-/** The run an analysis reads: the one named, else the most recent finished one, else the last one. */
+/** The run an analysis reads: the one named (finished or not), else the most recent finished one. */
 export function chooseRun(runList: readonly RunInfo[], runId?: string): RunInfo {
   if (runList.length === 0) throw new Error('the database holds no ingest run');
-  if (runId === undefined) return [...runList].reverse().find((r) => r.finishedAt !== null) ?? runList[runList.length - 1];
+  if (runId === undefined) {
+    // an unfinished run (interrupted, or still being written) is read only when named: its cohort may be partial
+    const finished = [...runList].reverse().find((r) => r.finishedAt !== null);
+    if (finished) return finished;
+    const last = runList[runList.length - 1].runId;
+    throw new ContrastDataError(`the database holds no finished ingest run: run ${last} stopped before its end. Rerun the same ingest to finish it, or name the run with --run ${last} to analyse what it stored`);
+  }
   const named = runList.find((r) => r.runId === runId);
   if (!named) throw new Error(`no run ${runId} in the database (runs: ${runList.map((r) => r.runId).join(', ')})`);
   return named;

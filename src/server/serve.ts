@@ -1,11 +1,14 @@
-// Local server for the dashboard: the built app files and one database file, on 127.0.0.1 only.
-// Implements HEAD and single byte ranges itself (duckdb-wasm reads the database with range
-// requests; see STACK.md). Anything not served answers 404, other methods 405.
+// Local server for the dashboard: the built app files and one database file, on 127.0.0.1 only,
+// to holders of a per-start access token (access-token.ts) and nobody else: a request without the
+// token or its cookie gets 403 with no body, whatever it asks for. Implements HEAD and single byte
+// ranges itself (duckdb-wasm reads the database with range requests; see STACK.md). Anything not
+// served answers 404, other methods 405.
 import { createReadStream } from 'node:fs';
 import { realpath, stat } from 'node:fs/promises';
 import http from 'node:http';
 import path from 'node:path';
 import { pipeline } from 'node:stream/promises';
+import { cookieValues, cookieName, isToken, newToken, tokenCookie, tokenParameters, withoutTokenParameter, withoutTokenValue } from './access-token.ts';
 import { parseRange } from './range.ts';
 import { requestSegments, resolveInside } from './safe-path.ts';
 
@@ -14,6 +17,7 @@ export const DATABASE_URL_PATH = '/data/cohort.duckdb';
 
 export interface RequestLogEntry {
   method: string;
+  /** The request target, the access token's value replaced by [hidden]. */
   path: string;
   status: number;
   /** Bytes of body sent (0 for HEAD and errors). */
@@ -34,7 +38,7 @@ export interface DashboardServerOptions {
 }
 
 export interface DashboardServer {
-  /** Base address, e.g. http://127.0.0.1:41234/ */
+  /** The address to open, with the access token: http://127.0.0.1:41234/?token=… */
   url: string;
   close(): Promise<void>;
 }
@@ -118,6 +122,8 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     throw new DashboardServerError(`port must be an integer 0–65535, got ${port}`, 'port', String(port));
   }
   let allowedHosts: Set<string> = new Set();
+  let listeningPort = 0;
+  const token = newToken();
 
   const server = http.createServer((req, res) => {
     handle(req, res).catch(() => {
@@ -129,7 +135,7 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
   function log(req: http.IncomingMessage, status: number, bytes: number): void {
     options.onRequest?.({
       method: req.method ?? '',
-      path: req.url ?? '',
+      path: withoutTokenValue(req.url ?? ''),
       status,
       bytes,
       ...(req.headers.range !== undefined ? { range: req.headers.range } : {}),
@@ -154,19 +160,42 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     log(req, status, 0);
   }
 
+  /** 403 with no body: nothing about what is served is told to a request without the token. */
+  function refuse(res: http.ServerResponse, req: http.IncomingMessage): void {
+    res.writeHead(403, { ...SECURITY_HEADERS, 'Content-Length': '0' });
+    res.end();
+    log(req, 403, 0);
+  }
+
   async function handle(req: http.IncomingMessage, res: http.ServerResponse): Promise<void> {
-    const method = req.method ?? '';
-    if (method !== 'GET' && method !== 'HEAD') {
-      send(res, req, 405, 'method not allowed', { Allow: 'GET, HEAD' });
-      return;
-    }
     // Refuse other Host names, so a page elsewhere cannot reach this server by DNS rebinding.
     if (!allowedHosts.has(req.headers.host ?? '')) {
       send(res, req, 403, 'forbidden host');
       return;
     }
     const raw = req.url ?? '';
-    const pathOnly = raw.split('?')[0];
+    const queryAt = raw.indexOf('?');
+    const pathOnly = queryAt < 0 ? raw : raw.slice(0, queryAt);
+    const query = queryAt < 0 ? '' : raw.slice(queryAt + 1);
+    const byCookie = cookieValues(req.headers.cookie, cookieName(listeningPort)).some((v) => isToken(v, token));
+    const given = tokenParameters(query);
+    const byQuery = given.length > 0 && given.every((v) => isToken(v, token));
+    if (!byCookie && !byQuery) {
+      refuse(res, req);
+      return;
+    }
+    const method = req.method ?? '';
+    if (method !== 'GET' && method !== 'HEAD') {
+      send(res, req, 405, 'method not allowed', { Allow: 'GET, HEAD' });
+      return;
+    }
+    // the first page load: the token becomes a cookie, and the address loses it (history, bookmarks)
+    if (given.length > 0 && (pathOnly === '/' || pathOnly.endsWith('.html'))) {
+      res.writeHead(302, { ...SECURITY_HEADERS, Location: withoutTokenParameter(pathOnly, query), 'Set-Cookie': tokenCookie(listeningPort, token), 'Content-Length': '0' });
+      res.end();
+      log(req, 302, 0);
+      return;
+    }
     let target: { file: string; size: number } | null = null;
     if (pathOnly === DATABASE_URL_PATH) {
       const info = await stat(dbFile).catch(() => null);
@@ -238,9 +267,10 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
   const address = server.address();
   if (address === null || typeof address === 'string') throw new Error('server has no TCP address');
   allowedHosts = new Set([`127.0.0.1:${address.port}`, `localhost:${address.port}`]);
+  listeningPort = address.port;
 
   return {
-    url: `http://127.0.0.1:${address.port}/`,
+    url: `http://127.0.0.1:${address.port}/?token=${token}`,
     close: () =>
       new Promise<void>((resolve, reject) => {
         server.close((err) => (err ? reject(err) : resolve()));

@@ -95,6 +95,6 @@ describe('an E-numbered cohort from the command line', () => {
     expect(averaged.status, averaged.stderr).toBe(0);
     const bad = compare(without, ['--neighbours', path.join(dir, 'nope.tsv')]);
     expect(bad.status).toBe(2);
-    expect(bad.stderr).toBe(`--neighbours: cannot read ${path.join(dir, 'nope.tsv')}\n`);
+    expect(bad.stderr).toBe(`--neighbours ${path.join(dir, 'nope.tsv')} cannot be read: ENOENT\n`);
   });
 });

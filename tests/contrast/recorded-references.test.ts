@@ -42,12 +42,12 @@ describe('recorded references in a contrast', () => {
   });
 
   it('checks only the channels of the contrast and the subjects that take part', () => {
-    const d = data({ a1: 'M2', a2: 'M2', m1: null, m2: null });
+    const d = data({ a1: 'M2', a2: 'M2', m1: null, m2: null, m3: null, m4: null });
     // C4 alone still mixes M1 and the common reference
     expect(() => assembleContrast(contrast({ channels: ['C4'] }), d)).toThrow(/^channel C4 was recorded against different references: M1 \(a1, a2\)/);
     // without the two exports (left out in the quality screen) nothing is mixed
     const left = { ...d, exclusions: [{ subject: 'a1', channel: null, reason: 'x' }, { subject: 'a2', channel: null, reason: 'x' }] };
-    expect(assembleContrast(contrast(), left).subjects.map((s) => s.subject)).toEqual(['m1', 'm2']);
+    expect(assembleContrast(contrast(), left).subjects.map((s) => s.subject)).toEqual(['m1', 'm2', 'm3', 'm4']);
   });
 
   it('A1/A2 are not M1/M2 as recorded; one reference throughout is pooled; other references are not checked', () => {

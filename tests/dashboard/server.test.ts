@@ -17,7 +17,10 @@ interface Reply {
   body: Buffer;
 }
 
-/** Send a request with the path exactly as given (no URL normalisation, unlike fetch). */
+/** The access cookie of the server under test (tests/dashboard/server-token.test.ts checks the token itself). */
+let cookie = '';
+
+/** Send a request with the path exactly as given (no URL normalisation, unlike fetch), with the access cookie. */
 function request(
   port: number,
   method: string,
@@ -25,7 +28,7 @@ function request(
   headers: Record<string, string> = {},
 ): Promise<Reply> {
   return new Promise((resolve, reject) => {
-    const req = http.request({ host: '127.0.0.1', port, method, path: rawPath, headers }, (res) => {
+    const req = http.request({ host: '127.0.0.1', port, method, path: rawPath, headers: { Cookie: cookie, ...headers } }, (res) => {
       const chunks: Buffer[] = [];
       res.on('data', (c: Buffer) => chunks.push(c));
       res.on('end', () => resolve({ status: res.statusCode ?? 0, headers: res.headers, body: Buffer.concat(chunks) }));
@@ -74,6 +77,7 @@ describe('dashboard server', () => {
       onRequest: (e) => log.push(e),
     });
     port = Number(new URL(server.url).port);
+    cookie = `bandwise-${port}=${new URL(server.url).searchParams.get('token')}`;
   });
 
   afterAll(async () => {
@@ -82,7 +86,7 @@ describe('dashboard server', () => {
   });
 
   it('listens on 127.0.0.1 only, at a free port', async () => {
-    expect(server.url).toBe(`http://127.0.0.1:${port}/`);
+    expect(server.url).toMatch(new RegExp(`^http://127\\.0\\.0\\.1:${port}/\\?token=`));
     expect(port).toBeGreaterThan(0);
     expect(await connects('127.0.0.1', port)).toBe(true);
     // Other addresses of this machine must not reach it: another loopback address, IPv6

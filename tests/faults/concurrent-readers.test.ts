@@ -10,6 +10,7 @@ import path from 'node:path';
 import { DuckDBInstance } from '@duckdb/node-api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DATABASE_URL_PATH, startDashboardServer } from '../../src/server/serve.ts';
+import { accessCookie } from '../helpers/dashboard-access.ts';
 import { faultEdfBytes, STAGES_10 } from './fixture.ts';
 import { cli, dumpAll, run } from './helpers.ts';
 
@@ -60,20 +61,21 @@ describe('readers while an ingest writes another file', () => {
     const fileBytes = readFileSync(finished);
     const serve = async () => {
       const base = new URL(DATABASE_URL_PATH, server.url);
-      const head = await fetch(base, { method: 'HEAD', headers: { Range: 'bytes=0-' } });
+      const cookie = accessCookie(server.url);
+      const head = await fetch(base, { method: 'HEAD', headers: { Range: 'bytes=0-', ...cookie } });
       expect(head.status).toBe(206);
       expect(Number(head.headers.get('content-length'))).toBe(fileBytes.length);
       // the whole file in 64-KiB ranges, as duckdb-wasm reads it
       const parts: Buffer[] = [];
       for (let from = 0; from < fileBytes.length; from += 65536) {
         const to = Math.min(fileBytes.length, from + 65536) - 1;
-        const res = await fetch(base, { headers: { Range: `bytes=${from}-${to}` } });
+        const res = await fetch(base, { headers: { Range: `bytes=${from}-${to}`, ...cookie } });
         expect(res.status).toBe(206);
         expect(res.headers.get('content-range')).toBe(`bytes ${from}-${to}/${fileBytes.length}`);
         parts.push(Buffer.from(await res.arrayBuffer()));
       }
       expect(Buffer.concat(parts).equals(fileBytes)).toBe(true);
-      expect((await fetch(new URL('/', server.url))).status).toBe(200);
+      expect((await fetch(new URL('/', server.url), { headers: cookie })).status).toBe(200);
     };
     const args = ['--groups', 'control,patient', '--stage', 'N2', '--permutations', '100', '--no-ledger'];
     try {

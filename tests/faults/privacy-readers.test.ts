@@ -13,6 +13,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildDashboard } from '../e2e/harness.ts';
 import { DATABASE_URL_PATH, startDashboardServer } from '../../src/server/serve.ts';
+import { accessCookie } from '../helpers/dashboard-access.ts';
 import { faultEdfBytes, STAGES_10 } from './fixture.ts';
 import { run } from './helpers.ts';
 
@@ -87,7 +88,7 @@ describe('planted EDF identification never reaches readers', () => {
     const server = await startDashboardServer({ dbPath: at('db.duckdb'), appDir });
     const seen: string[] = [];
     const fetchAll = async (p: string, init?: RequestInit) => {
-      const res = await fetch(new URL(p, server.url), init);
+      const res = await fetch(new URL(p, server.url), { ...init, headers: { ...(init?.headers as Record<string, string> | undefined), ...accessCookie(server.url) } });
       const body = Buffer.from(await res.arrayBuffer());
       clean(body, `${init?.method ?? 'GET'} ${p} body`);
       clean([...res.headers].map(([k, v]) => `${k}: ${v}`).join('\n'), `${p} headers`);

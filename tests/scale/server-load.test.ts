@@ -10,6 +10,7 @@ import net from 'node:net';
 import { networkInterfaces, tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { accessCookie } from '../helpers/dashboard-access.ts';
 
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-serve-'));
 const repo = path.resolve(import.meta.dirname, '../..');
@@ -54,7 +55,8 @@ function raw(bytes: string | Buffer, quietMs = 1500): Promise<string> {
   });
 }
 
-const host = () => `Host: 127.0.0.1:${url.port}\r\n`;
+/** The Host line and the access cookie (tests/dashboard/server-token.test.ts checks the token itself). */
+const host = () => `Host: 127.0.0.1:${url.port}\r\nCookie: ${accessCookie(url.href).Cookie}\r\n`;
 const status = (text: string) => Number(/^HTTP\/1\.1 (\d{3})/.exec(text)?.[1] ?? 0);
 
 beforeAll(async () => {
@@ -95,7 +97,7 @@ describe('dashboard server under load', () => {
     const agent = new http.Agent({ keepAlive: true, maxSockets: 20 });
     const get = (start: number, end: number) =>
       new Promise<{ status: number; body: Buffer }>((resolve, reject) => {
-        const req = http.get({ host: '127.0.0.1', port: url.port, path: '/data/cohort.duckdb', agent, headers: { Range: `bytes=${start}-${end}` } }, (res) => {
+        const req = http.get({ host: '127.0.0.1', port: url.port, path: '/data/cohort.duckdb', agent, headers: { Range: `bytes=${start}-${end}`, ...accessCookie(url.href) } }, (res) => {
           const parts: Buffer[] = [];
           res.on('data', (d: Buffer) => parts.push(d));
           res.on('end', () => resolve({ status: res.statusCode ?? 0, body: Buffer.concat(parts) }));

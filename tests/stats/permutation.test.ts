@@ -127,3 +127,17 @@ describe('splitting permutations over ranges', () => {
     expect(() => concatNullMaxima([runPermutations(whole.test, { from: 0, to: 100 }), parts[0]])).toThrow(/not contiguous/);
   });
 });
+
+describe('data that do not vary', () => {
+  // a t statistic divides by the spread of the data; with none it is undefined, not 0 (common practice)
+  it('is refused with a sentence saying so, not reported as t = 0, p = 1', () => {
+    const data = new Float64Array(6 * 2).fill(1.5);
+    const input = { channels: ['Cz'], freqsHz: [10, 11], data, design: { kind: 'groups' as const, group: [0, 0, 0, 1, 1, 1] } };
+    expect(() => runPermutationTest(input, { permutations: 20 })).toThrow(/data: the data do not vary: every subject has the same value at every point/);
+    const second = new Float64Array(6 * 2).fill(2.5);
+    expect(() => runPermutationTest({ ...input, design: { kind: 'paired', second } }, { permutations: 20 })).toThrow(/the data do not vary/);
+    // one point that varies is enough to test
+    data[0] = 2;
+    expect(runPermutationTest(input, { permutations: 20 }).stat).toHaveLength(2);
+  });
+});

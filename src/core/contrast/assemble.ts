@@ -12,6 +12,7 @@ import type { Band } from '../spectrum/bands.ts';
 import { mixedRecordedReferences } from './recorded-references.ts';
 import { ContrastDataError } from './data-error.ts';
 import { channelLayout, type ChannelLayout } from './channel-layout.ts';
+import { checkColumns, checkEnoughSubjects, checkNuisanceVaries } from './participant-checks.ts';
 import type { PermutationTestInput, Design } from '../stats/index.ts';
 import type { Stage } from '../stages.ts';
 
@@ -86,6 +87,9 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
   const channels = c.channels === 'all' ? stored : c.channels;
   for (const ch of channels) if (!stored.includes(ch)) throw new ContrastDataError(`channel ${ch} has no stored ${conds.map((d) => d.stage).join('/')} spectra for reference ${c.reference}`);
   if (channels.length === 0) throw new ContrastDataError(`no stored spectra for stage ${c.stage}, reference ${c.reference}, averaging ${c.averaging}`);
+
+  // the columns the design names exist, with values of the right kind
+  checkColumns(c, data.participants);
 
   // who takes part, by design
   const participants = new Map(data.participants.map((p) => [String(p.subject), p]));
@@ -244,6 +248,8 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
     if (mixed) throw new ContrastDataError(mixed);
   }
 
+  checkEnoughSubjects(c, kept, excluded);
+  checkNuisanceVaries(c, kept);
   const n = kept.length;
   const data0 = matrices[0].subarray(0, n * width);
   let design: Design;

@@ -7,6 +7,7 @@ import { individualRule } from './individual-bands.ts';
 import type { AperiodicRow, PeakRow } from './data.ts';
 import { bandPower, type Band } from '../spectrum/bands.ts';
 import { aperiodicLog10 } from '../spectrum/aperiodic-model.ts';
+import { ContrastDataError } from './data-error.ts';
 
 export interface FrequencyAxis {
   freqStartHz: number;
@@ -37,6 +38,11 @@ const MAY_BE_MISSING: readonly MeasureName[] = ['peak-center', 'peak-width'];
 export function measureLayout(c: Contrast, axis: FrequencyAxis): MeasureLayout {
   const [rlo, rhi] = c.relativeRangeHz;
   if (SPECTRAL.includes(c.measure)) {
+    // a range past the stored spectra is refused, not cut (the result would record the range asked for)
+    const topHz = axis.freqStartHz + (axis.nBins - 1) * axis.freqStepHz;
+    if (axis.nBins > 0 && c.fmaxHz > topHz + axis.freqStepHz / 2) {
+      throw new ContrastDataError(`fmaxHz ${c.fmaxHz} Hz lies above the highest stored frequency, ${topHz} Hz; ask for at most ${topHz} Hz`);
+    }
     const bins: number[] = [];
     for (let k = 0; k < axis.nBins; k++) {
       const f = axis.freqStartHz + k * axis.freqStepHz;

@@ -29,6 +29,12 @@ const exclusion = z
 export const MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center', 'peak-width'] as const;
 export type MeasureName = (typeof MEASURES)[number];
 
+/**
+ * The most permutations a contrast may ask for: p = (1 + b)/(1 + m) then resolves 10⁻⁶, far
+ * below any threshold in use, and the null distribution's maxima stay a few MB (our choice).
+ */
+export const MAX_PERMUTATIONS = 1_000_000;
+
 export const REFERENCES = ['recorded', 'linked-mastoids', 'contralateral-mastoid', 'average', 'bipolar'] as const;
 
 /** Spectral estimators stored at ingest (docs/design.md, spectra.estimator). */
@@ -83,7 +89,7 @@ export const contrastSchema = z
     statistic: z.enum(['welch-t', 'student-t', 'paired-t', 'pearson', 'spearman', 'linear-model-t']).optional(),
     correction: z.enum(['cluster-mass', 'cluster-size', 'tfce', 'none']).default('cluster-mass'),
     clusterP: z.number().gt(0).lt(1).default(0.05),
-    permutations: z.number().int().positive().default(1000),
+    permutations: z.number().int().positive().max(MAX_PERMUTATIONS, { message: `at most ${MAX_PERMUTATIONS.toLocaleString('en-US')} permutations (p then resolves 10⁻⁶)` }).default(1000),
     seed: z.number().int().default(1),
     /** subjects or channels left out (a channel exclusion is missing data for that channel where the design allows it) */
     exclusions: z.array(exclusion).default([]),
@@ -126,8 +132,8 @@ export class ContrastSpecError extends Error {
 export function parseContrast(value: unknown): Contrast {
   const r = contrastSchema.safeParse(value);
   if (!r.success) {
-    const lines = r.error.issues.map((i) => `  ${i.path.join('.') || '(contrast)'}: ${i.message}`);
-    throw new ContrastSpecError(`invalid contrast:\n${lines.join('\n')}`);
+    const issues = r.error.issues.map((i) => `${i.path.join('.') || '(contrast)'}: ${i.message}`);
+    throw new ContrastSpecError(`invalid contrast: ${issues.join('; ')}`);
   }
   return r.data;
 }

@@ -31,6 +31,8 @@ export interface DatabaseFacts {
   file: string;
   runId: string;
   toolVersion: string;
+  /** false when the run had not finished (interrupted or still being written); absent in facts of older callers */
+  runFinished?: boolean;
   ingestParameters: unknown;
   recordings: number;
   samplingRatesHz: number[];

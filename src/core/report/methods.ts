@@ -19,13 +19,13 @@ import { outlierRate } from '../quality/outlier-limit.ts';
 import { partParagraph } from '../confirmation/methods-text.ts';
 import type { PartFields } from '../confirmation/stamp.ts';
 
-export type ReportableResult = (CompareResult | BandCheckResult) & { database?: { file: string; runId: string; toolVersion: string; ingestParameters: unknown } } & PartFields;
+export type ReportableResult = (CompareResult | BandCheckResult) & { database?: { file: string; runId: string; toolVersion: string; ingestParameters: unknown; runFinished?: boolean } } & PartFields;
 
 export interface MethodsParameters {
   kind: 'compare' | 'band-check';
   contrast: Contrast;
   band: BandCheckResult['band'] | null;
-  database: { file: string; runId: string; toolVersion: string } | null;
+  database: { file: string; runId: string; toolVersion: string; runFinished: boolean } | null;
   ingest: IngestParameterFacts | null;
   frequencyResolutionHz: number | null;
   epochs: DatabaseFacts['epochs'] | null;
@@ -373,6 +373,15 @@ export function methodsReport(result: ReportableResult, facts: DatabaseFacts | n
   const channels = analysedChannels(c, isBand ? (result as BandCheckResult).channels : (result as CompareResult).statistics.channels);
   const derivations = derivationText(facts, c, channels);
   const parts: string[] = [`# Methods${isBand ? `: band check of ${(result as BandCheckResult).band.name}` : ''}`, `*${RESEARCH_NOTE}*`];
+  // the result's own word counts: it says what the analysis read, whatever the run became later
+  const runFinished = result.database?.runFinished ?? facts?.runFinished ?? true;
+  const runId = result.database?.runId ?? facts?.runId ?? null;
+  if (!runFinished) {
+    parts.push(
+      `**Unfinished ingest run.** The ingest run ${runId} had not finished when this analysis read it (it was interrupted or still being written), ` +
+        'so the analysis used the recordings stored by then, which may not be the whole cohort.',
+    );
+  }
   if (f) {
     parts.push('## Recordings and spectra', spectralSection(f, c, facts, refs));
     if (derivations) parts.push(derivations);
@@ -394,7 +403,7 @@ export function methodsReport(result: ReportableResult, facts: DatabaseFacts | n
     kind: result.kind,
     contrast: c,
     band: isBand ? (result as BandCheckResult).band : null,
-    database: db ? { file: db.file, runId: db.runId, toolVersion: db.toolVersion } : null,
+    database: db ? { file: db.file, runId: db.runId, toolVersion: db.toolVersion, runFinished } : null,
     ingest: f,
     frequencyResolutionHz: f ? 1 / f.segmentS : null,
     epochs: facts?.epochs ?? null,

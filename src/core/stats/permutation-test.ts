@@ -82,6 +82,21 @@ function checkMatrix(field: string, data: Matrix, input: PermutationTestInput): 
   return { n, missing };
 }
 
+/** Whether some point's values (paired: second minus first) differ between subjects; missing values are passed over. */
+function varies(input: PermutationTestInput, n: number, P: number): boolean {
+  const second = input.design.kind === 'paired' ? input.design.second : null;
+  for (let p = 0; p < P; p++) {
+    let first = NaN;
+    for (let s = 0; s < n; s++) {
+      const v = second ? second[s * P + p] - input.data[s * P + p] : input.data[s * P + p];
+      if (Number.isNaN(v)) continue;
+      if (Number.isNaN(first)) first = v;
+      else if (v !== first) return true;
+    }
+  }
+  return false;
+}
+
 function checkNuisance(design: { nuisance?: { name: string; values: ArrayLike<number> }[] }, n: number): ArrayLike<number>[] {
   return (design.nuisance ?? []).map((c, i) => {
     checkFinite(`design.nuisance[${i}] (${c.name})`, c.values, n);
@@ -198,6 +213,7 @@ export function preparePermutationTest(input: PermutationTestInput, options: Per
   const { kernel, statistic, labels, d, missing } = buildKernel(input, n, P, options.statistic, dataMissing);
   if (kernel.df < 1) fail('data', n, `too few subjects for ${statistic}: ${kernel.df} degrees of freedom`);
   if (missing && !missing.keep.includes(1)) fail('data', missing.missing, `no point has ${minimumText(missing.counts.length === 2)}: every point has too many missing values`);
+  if (!varies(input, n, P)) fail('data', n, 'the data do not vary: every subject has the same value at every point, so there is no difference to test');
   const stat = new Float64Array(P);
   const df = new Float64Array(P);
   kernel.compute(kernel.observedRelabelling(), stat, df);
