@@ -9,7 +9,6 @@
  * and a half-written transaction is never committed) writes only what is missing.
  */
 import { selectShard, type ShardSpec } from './cohort/shard.ts';
-import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { discoverCohort } from './cohort/discover.ts';
 import type { CohortRecording } from './cohort/types.ts';
@@ -20,6 +19,8 @@ import { DiskFullError, isDiskFull } from './store/errors.ts';
 import { cohortQualityPass } from './store/merge.ts';
 import { runIdentity } from './store/identity.ts';
 import { sortSpectra } from './store/spectra-order.ts';
+// as a module, so the build copies the version into dist/ (no path from ingest/ to it holds there)
+import { version } from '../package.json';
 
 export type { ShardSpec as Shard } from './cohort/shard.ts';
 
@@ -58,7 +59,7 @@ export interface IngestSummary {
 export { parseShard } from './cohort/shard.ts';
 
 function packageVersion(): string {
-  return (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
+  return version;
 }
 
 export async function runIngest(

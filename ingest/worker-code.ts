@@ -4,6 +4,10 @@
  * run without the TypeScript loader, which would otherwise transform and resolve every module
  * again in each worker, on the same two cores the workers compute on (measured on 8 recordings,
  * two workers: 8.0 → 7.2 CPU-s per run, tests/bench/ingest.bench.ts).
+ *
+ * This is for running the sources (development, tests): the built command has no esbuild and
+ * starts the prebuilt dist/cli/ingest-worker.js instead (worker-code.built.ts, which bin/build.mjs
+ * puts in place of this module).
  */
 import { buildSync } from 'esbuild';
 import { fileURLToPath } from 'node:url';

@@ -16,8 +16,7 @@ import { finishCompare, permutationShare, prepareAssembled, type CompareResult }
 import type { Contrast } from '../core/contrast/spec.ts';
 import { PermutationTestInputError, concatNullMaxima, runPermutations, type Matrix, type NullMaxima, type ProgressCallback } from '../core/stats/index.ts';
 import type { CompareWorkReply, CompareWorkRequest } from './compare-worker.ts';
-
-const BOOTSTRAP = new URL('./compare-worker-bootstrap.mjs', import.meta.url);
+import { compareWorkerUrl } from './compare-worker-url.ts';
 
 /**
  * Below this many subject-points × permutations (about 3 s of permutations on one core here:
@@ -65,7 +64,7 @@ export async function compareOnThreads(c: Contrast, assembly: AssembledContrast,
     const nulls = new Promise<NullMaxima[]>((resolve, reject) => {
       const parts: NullMaxima[] = [];
       for (let part = 1; part < threads; part++) {
-        const w = new Worker(BOOTSTRAP);
+        const w = new Worker(compareWorkerUrl());
         workers.push(w);
         const { port1, port2 } = new MessageChannel();
         ports.push(port1);

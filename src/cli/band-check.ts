@@ -6,13 +6,9 @@
  */
 import { writeFileSync, readFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
-import cliProgress from 'cli-progress';
-import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
-import { bandCheckDatabase, type BandCheckRun } from '../analysis/band-check-runner.ts';
-import { appendLedger } from '../analysis/ledger.ts';
+import type { BandCheckRun } from '../analysis/band-check-runner.ts';
 import { addContrastOptions, contrastOrExit, inputOrExit, type Flags } from './contrast-options.ts';
-import { reportUserError } from './user-errors.ts';
 
 interface BandFlags extends Omit<Flags, 'band'> {
   band: string;
@@ -30,7 +26,6 @@ const positive = (name: string) => (v: string) => {
 export function register(program: Command): void {
   const command = program
     .command('band-check')
-    .summary('is a band effect band-specific, or a broadband aperiodic change? (verdict with the numbers behind it)')
     .description(
       'For a band, a stage and the contrast\'s channels (averaged), tests with the same permutation machinery as ' +
         'compare: the raw band power, the aperiodic offset and exponent, the periodic band power (residual above the ' +
@@ -41,10 +36,16 @@ export function register(program: Command): void {
     .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
     .requiredOption('--band <band>', `the band: ${BAND_SYNTAX}`)
     .requiredOption('--out <file>', 'result JSON to write')
-    .option('--alpha <a>', 'level of every test and of the verdict\'s correction (default 0.05)', positive('--alpha'))
+    .option('--alpha <a>', 'level of every test and of the verdict\'s correction (default: 0.05)', positive('--alpha'))
     .option('--flank-width <hz>', 'width of each flank, Hz (default: the band\'s width)', positive('--flank-width'));
   addContrastOptions(command, { bandMeasures: false });
   command.action(async (database: string, flags: BandFlags) => {
+    // loaded on use: `bandwise --help` reads none of the analysis code
+    const { default: cliProgress } = await import('cli-progress');
+    const { parseExclusionsTsv } = await import('../core/contrast/exclusions.ts');
+    const { bandCheckDatabase } = await import('../analysis/band-check-runner.ts');
+    const { appendLedger } = await import('../analysis/ledger.ts');
+    const { reportUserError } = await import('./user-errors.ts');
     const band = inputOrExit(() => parseBand(flags.band));
     if (!band) return;
     const contrast = contrastOrExit({ ...flags, band: undefined });

@@ -5,7 +5,6 @@
  */
 import path from 'node:path';
 import { Command, InvalidArgumentError } from 'commander';
-import { writeClusterScripts } from '../cluster/slurm-script.ts';
 
 interface Flags {
   out: string;
@@ -30,7 +29,6 @@ const whole = (name: string) => (v: string) => {
 export function register(program: Command): void {
   program
     .command('cluster-script')
-    .summary('write a Slurm job-array script for a sharded ingest plus the merge job')
     .description(
       'Write Slurm scripts that ingest a cohort as a job array (task K of N runs `bandwise ingest --shard K/N` ' +
         'into its own shard database, logs per task) and then merge the shards in a job that waits for every ' +
@@ -47,7 +45,7 @@ export function register(program: Command): void {
     .option('--cpus <n>', 'CPUs per task; the ingest runs one worker thread per CPU', whole('cpus'), 1)
     .option('--mem <size>', 'memory per task, e.g. 4G (default: the cluster default)')
     .option('--time <limit>', 'time limit per task, e.g. 02:00:00 or 1-00:00:00 (default: the partition limit)')
-    .option('--job-name <name>', 'job name prefix', 'bandwise')
+    .option('--job-name <name>', 'job name prefix (default: bandwise)')
     .option('--bandwise <command>', 'how a task starts bandwise, shell words (default: this node and this install, absolute paths)')
     .addHelpText(
       'after',
@@ -56,7 +54,8 @@ export function register(program: Command): void {
         'Example:\n  bandwise cluster-script cohort.tsv --out cohort.duckdb --shards 20 --cpus 4 --mem 8G --time 04:00:00\n' +
         '  bash cohort.slurm/submit.sh',
     )
-    .action((cohort: string, ingestOptions: string[], flags: Flags, cmd: Command) => {
+    .action(async (cohort: string, ingestOptions: string[], flags: Flags, cmd: Command) => {
+      const { writeClusterScripts } = await import('../cluster/slurm-script.ts'); // loaded on use
       const out = path.resolve(flags.out);
       const folder = path.resolve(flags.scriptDir ?? `${out.replace(/\.duckdb$/i, '')}.slurm`);
       try {

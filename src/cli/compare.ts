@@ -4,12 +4,8 @@
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { Command, InvalidArgumentError } from 'commander';
-import cliProgress from 'cli-progress';
-import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
-import { compareDatabase, type CompareRun } from '../analysis/compare-runner.ts';
-import { appendLedger } from '../analysis/ledger.ts';
+import type { CompareRun } from '../analysis/compare-runner.ts';
 import { addContrastOptions, contrastOrExit, type Flags } from './contrast-options.ts';
-import { reportUserError } from './user-errors.ts';
 
 const threadCount = (v: string) => {
   const x = Number(v);
@@ -43,7 +39,6 @@ export function pointsTsv(r: CompareRun): string {
 export function register(program: Command): void {
   const command = program
     .command('compare')
-    .summary('run one contrast (groups, paired stages/sessions, covariate) with permutation correction')
     .description(
       'Runs a contrast over channels × frequencies on a bandwise database: a point statistic per channel and ' +
         'frequency (Welch t by default), cluster-based permutation correction (Maris & Oostenveld 2007) or TFCE ' +
@@ -59,6 +54,12 @@ export function register(program: Command): void {
   addContrastOptions(command, { bandMeasures: true });
   command
     .action(async (database: string, flags: Flags) => {
+      // loaded on use: `bandwise --help` reads none of the analysis code
+      const { default: cliProgress } = await import('cli-progress');
+      const { parseExclusionsTsv } = await import('../core/contrast/exclusions.ts');
+      const { compareDatabase } = await import('../analysis/compare-runner.ts');
+      const { appendLedger } = await import('../analysis/ledger.ts');
+      const { reportUserError } = await import('./user-errors.ts');
       const contrast = contrastOrExit(flags);
       if (!contrast) return;
       const exclusions = flags.exclusions ? parseExclusionsTsv(readFileSync(flags.exclusions, 'utf8'), flags.exclusions) : [];

@@ -1,13 +1,9 @@
 /** `bandwise dashboard <cohort.duckdb> [--port P]`: the dashboard on 127.0.0.1 for one database. */
 import { Command, InvalidArgumentError } from 'commander';
-import { serveDashboard, waitForSignal } from '../server/launcher.ts';
-import { openStore } from '../../ingest/store/database.ts';
-import { reportUserError } from './user-errors.ts';
 
 export function register(program: Command): void {
   program
     .command('dashboard')
-    .summary('open the dashboard on a database (served on 127.0.0.1 only)')
     .description(
       'Serves the dashboard and the database on 127.0.0.1 (never on other addresses) and prints the address to open ' +
         'in a browser. The browser reads the database read-only with HTTP range requests; nothing is fetched from the ' +
@@ -19,16 +15,20 @@ export function register(program: Command): void {
       if (!Number.isInteger(p) || p < 1 || p > 65535) throw new InvalidArgumentError(`invalid port: ${v}`);
       return p;
     })
-    .option('--rebuild', 'rebuild the dashboard app before serving')
-    .action(async (database: string, flags: { port?: number; rebuild?: boolean }) => {
+    .action(async (database: string, flags: { port?: number }) => {
+      // loaded on use: `bandwise --help` opens no database code
+      const { dashboardAppDir, serveDashboard, waitForSignal } = await import('../server/launcher.ts');
+      const { openStore } = await import('../../ingest/store/database.ts');
+      const { reportUserError } = await import('./user-errors.ts');
       try {
+        dashboardAppDir(); // the app is built (`npm run build`), never compiled here
         // the browser reads the file as it is on disk: refuse one another process is writing (its lock says so)
         await (await openStore(database, { readOnly: true })).close();
       } catch (e) {
         if (reportUserError('dashboard', e)) return;
         throw e;
       }
-      const server = await serveDashboard(database, flags.port, flags.rebuild);
+      const server = await serveDashboard(database, flags.port);
       console.log(`dashboard on ${server.url}  (Ctrl-C to stop)`);
       await waitForSignal();
       await server.close();

@@ -5,19 +5,9 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { Command } from 'commander';
-import cliProgress from 'cli-progress';
-import { ensureDemoCohort, DEMO_DIR, DEMO_INGEST_PARAMS } from '../simulation/index.ts';
-import { runIngest } from '../../ingest/run.ts';
-import { compareDatabase } from '../analysis/compare-runner.ts';
-import { parseContrast, type ContrastJson } from '../core/contrast/spec.ts';
+import type cliProgressModule from 'cli-progress';
+import type { ContrastJson } from '../core/contrast/spec.ts';
 import { RESEARCH_NOTE } from '../core/contrast/run.ts';
-import { serveDashboard, waitForSignal } from '../server/launcher.ts';
-import { bandCheckDatabase } from '../analysis/band-check-runner.ts';
-import { writeReport } from '../analysis/write-report.ts';
-import { appendLedger } from '../analysis/ledger.ts';
-
-export const DEMO_DATABASE = path.join(DEMO_DIR, 'demo.duckdb');
-export const DEMO_RESULTS = path.join(DEMO_DIR, 'results');
 
 /** The demo's contrasts: patients minus controls in N2, on log10 PSD and on the residual spectrum. */
 export const DEMO_CONTRASTS: { name: string; what: string; contrast: ContrastJson }[] = [
@@ -33,7 +23,7 @@ export const DEMO_CONTRASTS: { name: string; what: string; contrast: ContrastJso
   },
 ];
 
-function bar(label: string, quiet: boolean) {
+function bar(cliProgress: typeof cliProgressModule, label: string, quiet: boolean) {
   return quiet ? null : new cliProgress.SingleBar({ format: `${label.padEnd(12)} |{bar}| {value}/{total}`, hideCursor: true }, cliProgress.Presets.shades_classic);
 }
 
@@ -56,19 +46,41 @@ export const DEMO_BAND_CHECKS: { name: string; what: string; band: { name: strin
 export function register(program: Command): void {
   program
     .command('demo')
-    .summary('run the whole job on the invented demo cohort and open the dashboard')
     .description(
       'Generates the invented demo cohort on first use (demo-cohort/recordings/), ingests it into ' +
         'demo-cohort/demo.duckdb (resumable), runs the demo contrasts headless (results in demo-cohort/results/), ' +
         'then serves the dashboard on 127.0.0.1. The data are synthetic; see demo-cohort/scenario.json for what was planted. ' +
         RESEARCH_NOTE,
     )
-    .option('--no-dashboard', 'stop after the headless analyses')
+    .option('--no-dashboard', 'stop after writing the results (demo-cohort/results/), without starting the dashboard')
     .option('--port <port>', 'dashboard port on 127.0.0.1 (default: a free port)', Number)
     .option('--jobs <n>', 'ingest worker threads (default: one per core)', Number)
     .action(async (flags: { dashboard: boolean; port?: number; jobs?: number }) => {
+      // loaded on use: `bandwise --help` reads none of this
+      const { default: cliProgress } = await import('cli-progress');
+      const { ensureDemoCohort, DEMO_DIR, DEMO_INGEST_PARAMS } = await import('../simulation/index.ts');
+      const { runIngest } = await import('../../ingest/run.ts');
+      const { compareDatabase } = await import('../analysis/compare-runner.ts');
+      const { parseContrast } = await import('../core/contrast/spec.ts');
+      const { AppNotBuiltError, dashboardAppDir, serveDashboard, waitForSignal } = await import('../server/launcher.ts');
+      const { bandCheckDatabase } = await import('../analysis/band-check-runner.ts');
+      const { writeReport } = await import('../analysis/write-report.ts');
+      const { appendLedger } = await import('../analysis/ledger.ts');
+      if (flags.dashboard) {
+        // say so before the long work, not after it
+        try {
+          dashboardAppDir();
+        } catch (e) {
+          if (!(e instanceof AppNotBuiltError)) throw e;
+          console.error(`bandwise demo: ${e.message} (or run \`bandwise demo --no-dashboard\`)`);
+          process.exitCode = 1;
+          return;
+        }
+      }
+      const DEMO_DATABASE = path.join(DEMO_DIR, 'demo.duckdb');
+      const DEMO_RESULTS = path.join(DEMO_DIR, 'results');
       const quiet = !process.stdout.isTTY;
-      const gen = bar('generate', quiet);
+      const gen = bar(cliProgress, 'generate', quiet);
       let started = false;
       const cohort = await ensureDemoCohort({
         onProgress: (p) => {
@@ -81,7 +93,7 @@ export function register(program: Command): void {
       gen?.stop();
       console.log(cohort.generated ? `generated ${cohort.recordings.length} recordings in demo-cohort/recordings/` : `demo recordings up to date (${cohort.recordings.length})`);
 
-      const ing = bar('ingest', quiet);
+      const ing = bar(cliProgress, 'ingest', quiet);
       const summary = await runIngest(cohort.participantsPath, DEMO_DATABASE, { jobs: flags.jobs, params: { references: [...DEMO_INGEST_PARAMS.references] } }, (e) => {
         if (!ing) return;
         if (e.kind === 'start') ing.start(e.total, 0);
@@ -115,7 +127,7 @@ export function register(program: Command): void {
       console.log(`\nmethods text for the sigma band check: ${path.relative(process.cwd(), report)}`);
       console.log(`\n${RESEARCH_NOTE}`);
       if (!flags.dashboard) return;
-      const server = await serveDashboard(DEMO_DATABASE, flags.port, false, (s) => console.log(s));
+      const server = await serveDashboard(DEMO_DATABASE, flags.port);
       console.log(`\ndashboard on ${server.url}  (open it in a browser; Ctrl-C to stop)`);
       await waitForSignal();
       await server.close();

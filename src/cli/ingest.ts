@@ -7,12 +7,12 @@
  * full: what was stored is kept, a rerun resumes).
  */
 import { availableParallelism } from 'node:os';
-import { Command, InvalidArgumentError } from 'commander';
-import cliProgress from 'cli-progress';
+import { Command, InvalidArgumentError, Option } from 'commander';
+import type cliProgressModule from 'cli-progress';
 import { REFERENCE_KINDS, type ReferenceKind } from '../core/montage/reference.ts';
 import { BAND_SYNTAX, parseBand } from '../core/spectrum/bands.ts';
 import { readLabelMap } from '../../ingest/hypnogram/label-map.ts';
-import { parseShard, runIngest, type IngestEvent } from '../../ingest/run.ts';
+import type { IngestEvent } from '../../ingest/run.ts';
 import { DEFAULT_INGEST_PARAMS, type IngestParams } from '../../ingest/pipeline.ts';
 
 export const EXIT_OK = 0;
@@ -31,20 +31,23 @@ const range = (name: string) => (v: string): [number, number] => {
   if (!m || !(Number(m[2]) > Number(m[1]))) throw new InvalidArgumentError(`invalid ${name}: ${v} (expected LO-HI in Hz)`);
   return [Number(m[1]), Number(m[2])];
 };
+/** An option whose default --help shows once, as one would type it (commander would print a list as ["EEG"]). */
+const option = (flags: string, description: string, parse: (v: string) => unknown, value: unknown, shown: string) =>
+  new Option(flags, description).argParser(parse).default(value, shown);
 
 interface Flags {
   out: string;
-  jobs: number;
+  jobs?: number;
   shard?: string;
   epoch: number;
   segment: number;
   overlap: number;
   maxFreq: number;
   channelTypes: string[];
-  include: string[];
-  exclude: string[];
+  include?: string[];
+  exclude?: string[];
   reference: string[];
-  bipolar: string[];
+  bipolar?: string[];
   maxPeakToPeak: number;
   flatSd: number;
   flatRun: number;
@@ -55,7 +58,7 @@ interface Flags {
   band?: string[];
   bandMethod: 'mean' | 'integral';
   fitRange: [number, number];
-  knee: boolean;
+  knee?: boolean;
   fit: boolean;
   irasa?: boolean;
   mainsHz?: number;
@@ -70,7 +73,6 @@ interface Flags {
 export function register(program: Command): void {
   program
     .command('ingest')
-    .summary('turn a cohort (table or BIDS folder) into the spectral database')
     .description(
       'Turn a cohort (TSV/CSV table or BIDS folder) into the spectral database: per channel and stage Welch ' +
         'spectra (µV²/Hz), aperiodic fits, epoch band powers and quality metrics. Resumable: recordings already ' +
@@ -79,36 +81,36 @@ export function register(program: Command): void {
     )
     .argument('<cohort>', 'cohort table (.tsv/.csv) or BIDS folder')
     .requiredOption('--out <file>', 'database file to create or extend (DuckDB)')
-    .option('--jobs <n>', 'worker threads, one recording each (default: one per core)', num('jobs', (x) => Number.isInteger(x) && x >= 1), availableParallelism())
+    .addOption(option('--jobs <n>', 'worker threads, one recording each', num('jobs', (x) => Number.isInteger(x) && x >= 1), availableParallelism(), 'one per core'))
     .option('--shard <K/N>', 'process only shard K of N (K from 1): the recordings sorted by subject, session and path, every N-th from the K-th; merge the shard files later')
     .option('--epoch <s>', 'scoring epoch length, s', num('epoch', (x) => x > 0), D.epochS)
     .option('--segment <s>', 'Welch segment length, s (frequency step 1/segment Hz)', num('segment', (x) => x > 0), D.segmentS)
     .option('--overlap <fraction>', 'Welch segment overlap, 0 ≤ f < 1', num('overlap', (x) => x >= 0 && x < 1), D.overlap)
     .option('--max-freq <Hz>', 'highest stored frequency, Hz (each channel at most to its own Nyquist frequency)', num('max-freq', (x) => x > 0), D.maxFreqHz)
-    .option('--channel-types <list>', 'channel types selected when no --include is given', list, D.channelTypes)
-    .option('--include <labels>', 'comma-separated labels or electrode names to take, whatever their type', list, [])
-    .option('--exclude <labels>', 'comma-separated labels or electrode names to leave out', list, [])
-    .option('--reference <list>', `references to compute: ${REFERENCE_KINDS.join(', ')}`, list, D.references)
-    .option('--bipolar <pairs>', "bipolar pairs for --reference bipolar, e.g. 'F3-C3,C4-P4'", list, [])
+    .addOption(option('--channel-types <list>', 'channel types selected when no --include is given', list, D.channelTypes, D.channelTypes.join(',')))
+    .option('--include <labels>', 'comma-separated labels or electrode names to take, whatever their type (default: the channels of --channel-types)', list)
+    .option('--exclude <labels>', 'comma-separated labels or electrode names to leave out (default: none)', list)
+    .addOption(option('--reference <list>', `references to compute: ${REFERENCE_KINDS.join(', ')}`, list, D.references, D.references.join(',')))
+    .option('--bipolar <pairs>', "bipolar pairs for --reference bipolar, e.g. 'F3-C3,C4-P4' (default: none)", list)
     .option('--max-peak-to-peak <µV>', 'reject an epoch above this peak-to-peak amplitude, µV (common practice)', num('max-peak-to-peak', (x) => x > 0), D.rejection.maxPeakToPeakUv)
     .option('--flat-sd <µV>', 'reject an epoch whose SD is below this, µV', num('flat-sd', (x) => x >= 0), D.rejection.flatSdUv)
     .option('--flat-run <s>', 'reject an epoch holding one value this long, s', num('flat-run', (x) => x > 0), D.rejection.flatRunS)
     .option('--outlier-z <z>', 'reject epochs whose log broadband or muscle-range power stands out within stage and channel as a modified z above this would with many epochs (Iglewicz & Hoaglin 1993); short stages get a higher limit so each rule removes 2Φ(−z) of clean epochs (0.047 % at 3.5); at least 2', num('outlier-z', (x) => x >= 2), D.rejection.outlierZ)
-    .option('--broadband <LO-HI>', 'broadband power range for the outlier rule, Hz', range('broadband'), D.rejection.broadbandHz)
-    .option('--muscle <LO-HI>', 'high-frequency (muscle) range for the outlier rule, Hz', range('muscle'), D.rejection.muscleHz)
+    .addOption(option('--broadband <LO-HI>', 'broadband power range for the outlier rule, Hz', range('broadband'), D.rejection.broadbandHz, D.rejection.broadbandHz.join('-')))
+    .addOption(option('--muscle <LO-HI>', 'high-frequency (muscle) range for the outlier rule, Hz', range('muscle'), D.rejection.muscleHz, D.rejection.muscleHz.join('-')))
     .option('--min-epochs <n>', 'flag stages with fewer clean epochs (10 = 5 min of 30-s epochs)', num('min-epochs', (x) => Number.isInteger(x) && x >= 1), D.minEpochs)
-    .option('--band <band...>', `epoch band powers, repeatable: ${BAND_SYNTAX} (default ${D.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(' ')})`)
-    .option('--band-method <mean|integral>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²)', D.bandMethod)
-    .option('--fit-range <LO-HI>', 'aperiodic fit range, Hz', range('fit-range'), D.fit!.fitRangeHz)
-    .option('--knee', 'fit the aperiodic knee (default: plain power law, knee 0)', false)
+    .option('--band <band...>', `epoch band powers, repeatable: ${BAND_SYNTAX} (default: ${D.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(' ')})`)
+    .addOption(option('--band-method <mean|integral>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²)', String, D.bandMethod, D.bandMethod))
+    .addOption(option('--fit-range <LO-HI>', 'aperiodic fit range, Hz', range('fit-range'), D.fit!.fitRangeHz, D.fit!.fitRangeHz.join('-')))
+    .option('--knee', 'fit the aperiodic knee (default: plain power law, knee 0)')
     .option('--no-fit', 'skip the aperiodic and peak fits')
     .option('--irasa', 'also estimate the aperiodic component by IRASA (Wen & Liu 2016) from the clean epochs\' time series, stored with method irasa (a second read of each recording; slower)')
     .option('--mains-hz <Hz>', 'power-line frequency, 50 or 60: the mains-hum metric\'s line and the only line left out of the narrow-spike search (default: both left out, the metric\'s line from the BIDS sidecar, else detected)', num('mains-hz', (x) => x === 50 || x === 60))
     .option('--label-map <file.tsv>', 'stage-label map: a TSV with columns label and stage (W, N1, N2, N3, R or unscored); its labels take precedence over the built-in ones')
     .option('--unknown-as-unscored', 'score the epochs of a stage label that is neither built in nor in the label map as unscored, with a warning (default: refuse the recording)')
     .option('--trim-scoring', 'drop scored stages that lie before the recording start or past its end, with a warning (default: refuse the recording, as such scoring is likely misaligned); unscored labels there are always dropped')
-    .option('--lights-off-texts <list>', 'comma-separated annotation texts that mark lights off, matched ignoring case and spaces', list, D.scoring.lightsOffTexts)
-    .option('--lights-on-texts <list>', 'comma-separated annotation texts that mark lights on, matched ignoring case and spaces', list, D.scoring.lightsOnTexts)
+    .addOption(option('--lights-off-texts <list>', 'comma-separated annotation texts that mark lights off, matched ignoring case and spaces', list, D.scoring.lightsOffTexts, D.scoring.lightsOffTexts.join(',')))
+    .addOption(option('--lights-on-texts <list>', 'comma-separated annotation texts that mark lights on, matched ignoring case and spaces', list, D.scoring.lightsOnTexts, D.scoring.lightsOnTexts.join(',')))
     .option('--quiet', 'no progress bars (they are off anyway when stdout is not a terminal)')
     .addHelpText('after', '\nA research tool, not a diagnostic device. No EDF patient or recording identification is stored.')
     .action(async (cohort: string, flags: Flags, cmd: Command) => {
@@ -128,10 +130,10 @@ function toParams(f: Flags): Partial<IngestParams> {
     overlap: f.overlap,
     maxFreqHz: f.maxFreq,
     channelTypes: f.channelTypes.map((t) => t.toUpperCase()),
-    includeChannels: f.include,
-    excludeChannels: f.exclude,
+    includeChannels: f.include ?? [],
+    excludeChannels: f.exclude ?? [],
     references: f.reference as ReferenceKind[],
-    bipolarPairs: f.bipolar,
+    bipolarPairs: f.bipolar ?? [],
     rejection: { maxPeakToPeakUv: f.maxPeakToPeak, flatSdUv: f.flatSd, flatRunS: f.flatRun, outlierZ: f.outlierZ, broadbandHz: f.broadband, muscleHz: f.muscle },
     minEpochs: f.minEpochs,
     bands: f.band ? (Array.isArray(f.band) ? f.band : [f.band]).map(parseBand) : D.bands,
@@ -150,6 +152,9 @@ function toParams(f: Flags): Partial<IngestParams> {
 }
 
 async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<number> {
+  // loaded on use: `bandwise --help` reads none of the ingest machinery
+  const { default: cliProgress } = await import('cli-progress');
+  const { parseShard, runIngest } = await import('../../ingest/run.ts');
   let params: Partial<IngestParams>;
   let shard = null;
   try {
@@ -165,8 +170,8 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
         cliProgress.Presets.shades_classic,
       )
     : null;
-  let overall: cliProgress.SingleBar | null = null;
-  const current = new Map<string, cliProgress.SingleBar>();
+  let overall: cliProgressModule.SingleBar | null = null;
+  const current = new Map<string, cliProgressModule.SingleBar>();
   const t0 = Date.now();
   let samples = 0;
   const rate = () => `${(samples / Math.max(1e-3, (Date.now() - t0) / 1000) / 1e6).toFixed(2)} M channel-samples/s`;

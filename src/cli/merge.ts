@@ -4,7 +4,6 @@
  * the cohort-level quality pass. Exit status 0 merged, 1 refused or failed (nothing written).
  */
 import { Command } from 'commander';
-import { mergeShards } from '../../ingest/store/merge.ts';
 
 interface Flags {
   out: string;
@@ -14,7 +13,6 @@ interface Flags {
 export function register(program: Command): void {
   program
     .command('merge')
-    .summary('combine shard databases written with the same parameters')
     .description(
       'Combine shard databases written by `bandwise ingest --shard K/N` with the same parameters into one new ' +
         'cohort database, then run the cohort-level quality pass (distance of each spectrum from the cohort median). ' +
@@ -23,9 +21,10 @@ export function register(program: Command): void {
     )
     .argument('<shards...>', 'shard database files (.duckdb)')
     .requiredOption('--out <file>', 'merged database file to create (must not exist)')
-    .option('--allow-missing-shards', 'merge even if some shards K/N are not among the inputs (default: refused)', false)
+    .option('--allow-missing-shards', 'merge even if some shards K/N are not among the inputs (default: refused)')
     .addHelpText('after', '\nExample:\n  bandwise merge shards/shard-*.duckdb --out cohort.duckdb\n\nA research tool, not a diagnostic device.')
     .action(async (shards: string[], flags: Flags) => {
+      const { mergeShards } = await import('../../ingest/store/merge.ts'); // loaded on use
       const t0 = Date.now();
       try {
         const s = await mergeShards(shards, flags.out, { allowMissingShards: flags.allowMissingShards });

@@ -4,13 +4,11 @@
  * result and (when the database is at hand) the facts stored in it.
  */
 import type { Command } from 'commander';
-import { ReportFileError, writeReport, type ReportOptions } from '../analysis/write-report.ts';
-import { reportUserError } from './user-errors.ts';
+import type { ReportOptions } from '../analysis/write-report.ts';
 
 export function register(program: Command): void {
   program
     .command('report')
-    .summary('write the methods text (Markdown) and its parameters (JSON) for a saved result')
     .description(
       'Writes the methods of a compare or band-check result in plain scientific English: spectral parameters ' +
         '(window, segment, overlap, averaging, frequency resolution, references), epoch rejection rules with the share ' +
@@ -25,6 +23,9 @@ export function register(program: Command): void {
     .option('--no-ledger', 'neither count nor record in a ledger')
     .option('--run <id>', 'ingest run (default: the result\'s run)')
     .action(async (resultFile: string, flags: ReportOptions) => {
+      // loaded on use: `bandwise --help` reads none of the analysis code
+      const { ReportFileError, writeReport } = await import('../analysis/write-report.ts');
+      const { reportUserError } = await import('./user-errors.ts');
       try {
         const r = await writeReport(resultFile, flags);
         console.log(`wrote ${flags.out} and ${r.jsonFile}${r.database ? '' : ' (no database: spectral facts from the result only)'}`);

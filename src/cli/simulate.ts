@@ -1,8 +1,6 @@
 /** `bandwise simulate <scenario.json> <out-folder>`: writes a simulated cohort with its ground truth. */
 import type { Command } from 'commander';
-import cliProgress from 'cli-progress';
 import path from 'node:path';
-import { ScenarioFileError, writeSimulatedCohort } from '../simulation/index.ts';
 
 const HELP = `
 Generates synthetic sleep EEG with a known ground truth, one night per subject, from a scenario
@@ -22,12 +20,14 @@ recording is involved.`;
 export function register(program: Command): void {
   program
     .command('simulate')
-    .summary('write a synthetic cohort (EDF+, scoring, participants, ground truth) from a scenario')
     .description('write a simulated cohort (EDF+, scoring, participants table, ground truth) from a scenario file')
     .argument('<scenario.json>', 'scenario file (JSON)')
     .argument('<out-folder>', 'folder for the generated files (created if missing)')
     .addHelpText('after', HELP)
     .action(async (scenarioPath: string, outDir: string) => {
+      // loaded on use: `bandwise --help` reads none of the simulation code
+      const { default: cliProgress } = await import('cli-progress');
+      const { ScenarioFileError, writeSimulatedCohort } = await import('../simulation/index.ts');
       const bar = process.stderr.isTTY
         ? new cliProgress.SingleBar({ format: 'simulating {subject} |{bar}| {value}/{total} epochs · subject {n}/{of} · ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic)
         : null;

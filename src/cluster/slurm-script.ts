@@ -66,9 +66,12 @@ export function shellQuote(word: string): string {
   return /^[A-Za-z0-9_@%+=:,./-]+$/.test(word) ? word : `'${word.replaceAll("'", `'\\''`)}'`;
 }
 
-/** `node /…/bin/bandwise.mjs`, absolute, for the install the scripts are written from. */
+/**
+ * `node /…/dist/cli/bandwise.js`, absolute: the built command of the install the scripts are
+ * written from (the sources in src/cluster/ and the build in dist/cli/ both lie two folders below it).
+ */
 export function defaultBandwiseCommand(): string {
-  const bin = fileURLToPath(new URL('../../bin/bandwise.mjs', import.meta.url));
+  const bin = fileURLToPath(new URL('../../dist/cli/bandwise.js', import.meta.url));
   return `${shellQuote(process.execPath)} ${shellQuote(bin)}`;
 }
 

@@ -1,28 +1,32 @@
 /**
- * Serves the built dashboard and one database on 127.0.0.1; builds the app first when the build
- * is missing (Vite, a development dependency, is installed by `npm ci`).
+ * Serves the built dashboard (dist/dashboard/, made by `npm run build`) and one database on
+ * 127.0.0.1. Nothing is compiled at run time: without the built app it says how to build it.
  */
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { startDashboardServer } from './serve.ts';
 
-const repo = fileURLToPath(new URL('../..', import.meta.url));
-export const APP_DIR = path.join(repo, 'dist', 'dashboard');
+// the sources (src/server/) and the built command (dist/cli/) both lie two folders below the package
+const root = fileURLToPath(new URL('../..', import.meta.url));
+export const APP_DIR = path.join(root, 'dist', 'dashboard');
 
-export async function ensureDashboardBuilt(rebuild = false, log: (s: string) => void = () => {}): Promise<string> {
-  if (rebuild || !existsSync(path.join(APP_DIR, 'index.html'))) {
-    log('building the dashboard (once) …');
-    const { build } = await import('vite');
-    await build({ configFile: path.join(repo, 'vite.config.ts'), logLevel: 'warn', build: { outDir: APP_DIR, emptyOutDir: true } });
+/** The dashboard app has not been built (dist/dashboard/index.html is missing). */
+export class AppNotBuiltError extends Error {
+  override name = 'AppNotBuiltError';
+}
+
+/** The built app's folder, or an AppNotBuiltError whose one line says how to build it. */
+export function dashboardAppDir(): string {
+  if (!existsSync(path.join(APP_DIR, 'index.html'))) {
+    throw new AppNotBuiltError(`the dashboard app is not built (no ${path.join(APP_DIR, 'index.html')}): run \`npm run build\` in ${root}`);
   }
   return APP_DIR;
 }
 
-export async function serveDashboard(dbPath: string, port?: number, rebuild = false, log: (s: string) => void = console.log) {
+export async function serveDashboard(dbPath: string, port?: number) {
   if (!existsSync(dbPath)) throw new Error(`no database at ${dbPath}`);
-  const appDir = await ensureDashboardBuilt(rebuild, log);
-  return startDashboardServer({ dbPath: path.resolve(dbPath), appDir, port });
+  return startDashboardServer({ dbPath: path.resolve(dbPath), appDir: dashboardAppDir(), port });
 }
 
 /** Resolves on Ctrl-C (SIGINT) or SIGTERM: the end of serving. */

@@ -69,7 +69,7 @@ function timeCompare(db: string, permutations: number, threads: number | 'defaul
   const loadBefore = load();
   const r = spawnSync(
     '/usr/bin/time',
-    ['-v', process.execPath, path.join(repo, 'bin/bandwise.mjs'), 'compare', db, '--groups', 'control,patient', '--stage', 'N2', '--fmin', '1', '--fmax', '30',
+    ['-v', process.execPath, path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), 'compare', db, '--groups', 'control,patient', '--stage', 'N2', '--fmin', '1', '--fmax', '30',
       '--permutations', String(permutations), '--seed', '1', '--out', out, '--no-ledger', '--quiet', ...(threads === 'default' ? [] : ['--threads', String(threads)])],
     { encoding: 'utf8' },
   );

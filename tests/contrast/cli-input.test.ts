@@ -10,7 +10,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 const repo = path.resolve(import.meta.dirname, '../..');
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-cli-input-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
-const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/bandwise.mjs'), ...args], { encoding: 'utf8' });
+const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8' });
 
 describe('compare and band-check refuse bad contrast input with exit status 2', () => {
   const truncated = path.join(dir, 'truncated.json');

@@ -11,7 +11,7 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, w
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ensureDashboardBuilt } from '../../src/server/launcher.ts';
+import { buildDashboard } from '../e2e/harness.ts';
 import { DATABASE_URL_PATH, startDashboardServer } from '../../src/server/serve.ts';
 import { faultEdfBytes, STAGES_10 } from './fixture.ts';
 import { run } from './helpers.ts';
@@ -82,7 +82,8 @@ describe('planted EDF identification never reaches readers', () => {
   });
 
   it('the dashboard server: every app file, the database by HEAD, GET and range GET, and the error answers', async () => {
-    const appDir = await ensureDashboardBuilt();
+    const appDir = at('app');
+    await buildDashboard(appDir); // the app as `npm run build` makes it, from the sources under test
     const server = await startDashboardServer({ dbPath: at('db.duckdb'), appDir });
     const seen: string[] = [];
     const fetchAll = async (p: string, init?: RequestInit) => {
@@ -111,5 +112,5 @@ describe('planted EDF identification never reaches readers', () => {
     }
     expect(seen.length).toBeGreaterThan(8);
     expect(existsSync(at('db.duckdb.wal'))).toBe(false);
-  }, 180_000); // builds the app with Vite first when dist/dashboard is missing
+  }, 180_000); // builds the app with Vite first
 });

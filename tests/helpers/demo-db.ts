@@ -9,7 +9,7 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_SCENARIO, scenarioStamp } from '../../src/simulation/index.ts';
+import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_RECORDINGS, DEMO_SCENARIO, scenarioStamp } from '../../src/simulation/index.ts';
 import { runIngest } from '../../ingest/run.ts';
 import { resolveIngestParams } from '../../ingest/pipeline.ts';
 import { runIdentity } from '../../ingest/store/identity.ts';
@@ -70,6 +70,14 @@ export async function demoDatabase(): Promise<string> {
     if (summary.failed.length > 0) throw new Error(`demo ingest failed: ${summary.failed.map((f) => `${f.file}: ${f.message}`).join('; ')}`);
     mkdirSync(done, { recursive: true });
     return db;
+  });
+}
+
+/** The generated demo recordings (demo-cohort/recordings/, generated on first use under the same lock). */
+export async function demoRecordings(): Promise<string> {
+  return withLock('demo', async () => {
+    await ensureDemoCohort();
+    return DEMO_RECORDINGS;
   });
 }
 

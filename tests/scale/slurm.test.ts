@@ -17,7 +17,7 @@ import { startSlurm, waitFor, type SlurmCluster } from './slurm-harness.ts';
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-slurm-'));
 const at = (f: string) => path.join(dir, f);
 const repo = path.resolve(import.meta.dirname, '../..');
-// the real commands; bin/bandwise.mjs reaches them once the lead registers them in src/cli/main.ts
+// the real commands, run from the sources (the commands of src/cli/main.ts)
 const bandwise = [process.execPath, path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/cli-entry.ts')].map(shellQuote).join(' ');
 let cluster: SlurmCluster | null = null;
 let table = '';
