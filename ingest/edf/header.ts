@@ -404,7 +404,7 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
     );
   }
   nRecords = whole;
-  if (declared === -1) warnings.add('number of data records', `is -1 (unknown); ${whole} records derived from the file size`);
+  if (declared === -1) warnings.add('number of data records', `number of data records is -1 (unknown); ${whole} records derived from the file size`);
   if (rest > 0 && declared === whole) {
     warnings.add('file', `${rest} bytes after the last data record (less than one ${perRecord}-byte record) are ignored`);
   } else if (rest > 0) {

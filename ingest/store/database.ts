@@ -25,8 +25,8 @@ export const STORAGE_COMPATIBILITY = 'v1.4.0';
  */
 export const ROW_GROUP_ROWS = 16_384;
 
-/** The name the file is attached under (then made the default database, so queries name no database). */
-const STORE_ALIAS = 'cohort_store';
+/** The name the file is attached under (then made the default database, so the writer's queries name no database); the named queries of src/queries read `cohort.<table>`, as in the dashboard. */
+const STORE_ALIAS = 'cohort';
 
 /** Highest header storage number duckdb-wasm 1.32 reads (its error message: "between 64 and 67"). */
 export const MAX_READABLE_STORAGE_NUMBER = 67;

@@ -1,4 +1,4 @@
-/** The DuckDB store (Node only): open/create, the single writer, the bundle it takes (reads for analyses: src/analysis/store-read.ts). */
+/** The DuckDB store (Node only): open/create, the single writer, the bundle it takes (reads for analyses: the named queries of src/queries over src/analysis/store-client.ts). */
 export { openStore, readHeaderStorageNumber, STORAGE_COMPATIBILITY, MAX_READABLE_STORAGE_NUMBER, type OpenOptions } from './database.ts';
 export { Store, type BeginRunOptions, type CohortQualityRow, type IngestErrorIn, type ParticipantValue } from './writer.ts';
 export type * from './bundle.ts';

@@ -1,7 +1,8 @@
 // The open database, shared by every view.
 import { openPickedFile, openServedDatabase, preloadEngine, type CohortConnection } from './db/connection.ts';
 import type { ReportableResult } from '../core/report/index.ts';
-import { cohortSchema, runs, type CohortSchema, type RunInfo } from './db/queries.ts';
+import { runs, type RunInfo } from '../queries/runs.ts';
+import { cohortSchema, type CohortSchema } from '../queries/schema.ts';
 
 /** Where the dashboard server puts the database, relative to the app (src/server/serve.ts). */
 export const SERVED_DATABASE = 'data/cohort.duckdb';

@@ -10,8 +10,10 @@
  */
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { edgeVariants, enumeratePaths, runPaths, type PathChoices, type PathDataSet } from '../../src/core/verdict/index.ts';
-import { openStore } from '../../ingest/store/index.ts';
-import { loadBandCheckData } from '../../src/analysis/band-check-runner.ts';
+import { withDatabase } from '../../src/analysis/store-client.ts';
+import { loadBandCheckData } from '../../src/queries/band-check-data.ts';
+import { runs } from '../../src/queries/runs.ts';
+import { cohortSchema } from '../../src/queries/schema.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 
 export async function run(): Promise<Record<string, unknown>> {
@@ -28,19 +30,18 @@ export async function run(): Promise<Record<string, unknown>> {
     bands: edgeVariants(sigma),
   };
   const t0 = performance.now();
-  const store = await openStore(db, { readOnly: true });
-  const sets: PathDataSet[] = [];
-  try {
+  const sets: PathDataSet[] = await withDatabase(db, async (client) => {
+    const [schema, runList] = [await cohortSchema(client), await runs(client)];
+    const out: PathDataSet[] = [];
     for (const reference of choices.references) {
       for (const averaging of choices.averagings) {
         const c = { ...contrast, reference: reference as typeof contrast.reference, averaging };
-        const loaded = await loadBandCheckData(store, c, []);
-        sets.push({ reference, averaging, fitRangeHz: loaded.fitRangeHz, data: loaded.data });
+        const loaded = await loadBandCheckData(client, schema, runList, c, []);
+        out.push({ reference, averaging, fitRangeHz: loaded.fitRangeHz, data: loaded.data });
       }
     }
-  } finally {
-    await store.close();
-  }
+    return out;
+  });
   const loadS = (performance.now() - t0) / 1000;
   const t1 = performance.now();
   const curve = runPaths(contrast, sigma, choices, sets, { permutations: 1000 });

@@ -3,7 +3,7 @@
 import { fireEvent, render, screen } from '@testing-library/svelte';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import DataTable from '../../src/dashboard/components/DataTable.svelte';
-import type { Row } from '../../src/dashboard/db/arrow-rows.ts';
+import type { Row } from '../../src/queries/client.ts';
 
 const columns = [
   { key: 'subject', label: 'Subject' },

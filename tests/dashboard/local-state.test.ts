@@ -6,7 +6,7 @@ import { exclusionsToTsv, parseExclusionsTsv } from '../../src/core/contrast/exc
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { browserLedgerCounts } from '../../src/dashboard/db/ledger-report.ts';
 import { appendLedger, databaseKey, loadExclusions, loadLedger, saveExclusions, withExclusion, withoutExclusion } from '../../src/dashboard/db/local-store.ts';
-import type { RunInfo } from '../../src/dashboard/db/queries.ts';
+import type { RunInfo } from '../../src/queries/runs.ts';
 import { formatHash, parseHash } from '../../src/dashboard/routes.ts';
 import { contrastFileText, contrastFromParams, paramsFromContrast } from '../../src/dashboard/analysis/contrast-params.ts';
 

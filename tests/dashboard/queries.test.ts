@@ -1,4 +1,4 @@
-// The dashboard's named queries, run by duckdb-wasm (blocking node build, the browser's engine)
+// The named queries (src/queries), run by duckdb-wasm (blocking node build, the browser's engine)
 // on the fixture database. Expected values are computed independently of the SQL under test:
 // group sizes from the fixture's participant list; the stored sleep architecture checked against
 // src/core/hypnogram/architecture.ts run on the hypnogram read back with @duckdb/node-api (another
@@ -9,17 +9,10 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import {
-  cohortSchema,
-  groupSizes,
-  groupingColumns,
-  ingestErrors,
-  participants,
-  recordingsOverview,
-  runs,
-  spectraMatrix,
-  type CohortSchema,
-} from '../../src/dashboard/db/queries.ts';
+import { groupSizes, ingestErrors, participants, recordingsOverview } from '../../src/queries/cohort.ts';
+import { runs } from '../../src/queries/runs.ts';
+import { cohortSchema, groupingColumns, type CohortSchema } from '../../src/queries/schema.ts';
+import { channelSpectra, spectraRows } from '../../src/queries/spectra.ts';
 import { sleepArchitecture } from '../../src/core/hypnogram/architecture.ts';
 import type { Stage } from '../../src/core/stages.ts';
 import { FIXTURE_CHANNELS, FIXTURE_PARAMETERS, FIXTURE_PARTICIPANTS, FIXTURE_SPECTRUM, makeFixtureDb } from '../fixtures/make-fixture-db.ts';
@@ -31,7 +24,8 @@ describe('named queries on the fixture database (duckdb-wasm)', () => {
   let client: Awaited<ReturnType<typeof wasmClientFor>>;
   let schema: CohortSchema;
   const hypnograms = new Map<string, Stage[]>();
-  const powers: number[][] = [];
+  /** N2 recorded mean lists read by node-api, by subject and channel */
+  const powers = new Map<string, number[]>();
 
   beforeAll(async () => {
     dir = mkdtempSync(path.join(os.tmpdir(), 'bandwise-queries-'));
@@ -46,9 +40,9 @@ describe('named queries on the fixture database (duckdb-wasm)', () => {
       hypnograms.set(String(id), list);
     }
     const spectra = await c.runAndReadAll(
-      `SELECT power FROM spectra WHERE stage = 'N2' AND reference = 'recorded' AND averaging = 'mean' ORDER BY recording_id, channel`,
+      `SELECT r.subject, s.channel, s.power FROM spectra s JOIN recordings r USING (recording_id) WHERE s.stage = 'N2' AND s.reference = 'recorded' AND s.averaging = 'mean'`,
     );
-    for (const [p] of spectra.getRowsJson()) powers.push((p as number[]).map(Number));
+    for (const [subject, channel, p] of spectra.getRowsJson()) powers.set(`${subject}|${channel}`, (p as number[]).map(Number));
     c.closeSync();
     instance.closeSync();
     client = await wasmClientFor(file);
@@ -135,17 +129,35 @@ describe('named queries on the fixture database (duckdb-wasm)', () => {
     ]);
   });
 
-  it('spectra come back as one Float32Array, equal to node-api reading', async () => {
-    const m = await spectraMatrix(client, { stage: 'N2', reference: 'recorded', averaging: 'mean' });
-    expect(m.nBins).toBe(FIXTURE_SPECTRUM.nBins);
-    expect(m.freqStepHz).toBe(FIXTURE_SPECTRUM.freqStepHz);
-    expect(m.power).toBeInstanceOf(Float32Array);
-    expect(m.power.length).toBe(powers.length * m.nBins);
-    expect(m.channels.slice(0, 3)).toEqual([...FIXTURE_CHANNELS]);
-    for (let r = 0; r < powers.length; r++) {
-      for (let b = 0; b < m.nBins; b++) expect(m.power[r * m.nBins + b]).toBe(Math.fround(powers[r][b]));
+  it('spectra come back as views of one Float32Array, equal to node-api reading, in subject order; cut at maxHz on request', async () => {
+    const [run] = await runs(client);
+    const key = { runId: run.runId, stage: 'N2' as const, reference: 'recorded', averaging: 'mean' };
+    const m = await spectraRows(client, key);
+    expect([m.freqStartHz, m.freqStepHz, m.nBins]).toEqual([FIXTURE_SPECTRUM.freqStartHz, FIXTURE_SPECTRUM.freqStepHz, FIXTURE_SPECTRUM.nBins]);
+    expect(m.rows.length).toBe(powers.size);
+    const ingested = FIXTURE_PARTICIPANTS.filter((p) => p.ingested);
+    expect(m.rows.map((r) => `${r.subject}|${r.channel}`)).toEqual(ingested.flatMap((p) => FIXTURE_CHANNELS.map((ch) => `${p.subject}|${ch}`)));
+    for (const r of m.rows) {
+      expect(r.power).toBeInstanceOf(Float32Array);
+      expect(r.power.buffer).toBe(m.rows[0].power.buffer);
+      expect(Array.from(r.power)).toEqual(powers.get(`${r.subject}|${r.channel}`)!.map(Math.fround));
     }
-    const none = await spectraMatrix(client, { stage: 'N1', reference: 'recorded', averaging: 'mean' });
-    expect(none.power.length).toBe(0);
+    // 0 + k·0.25 Hz ≤ 10 Hz: bins 0…40
+    const cut = await spectraRows(client, key, 10);
+    expect(cut.nBins).toBe(41);
+    expect(cut.rows.map((r) => Array.from(r.power))).toEqual(m.rows.map((r) => Array.from(r.power.subarray(0, 41))));
+    expect((await spectraRows(client, { ...key, stage: 'N1', reference: 'average' })).rows).toEqual([]);
+  });
+
+  it("one channel's spectra across recordings, in recording order, equal to node-api reading", async () => {
+    const s = await channelSpectra(client, { channel: 'C4', stage: 'N2', reference: 'recorded', averaging: 'mean' });
+    const ingested = FIXTURE_PARTICIPANTS.filter((p) => p.ingested);
+    expect(s.recordingIds.length).toBe(ingested.length);
+    expect(s.nBins).toBe(FIXTURE_SPECTRUM.nBins);
+    const subjectOf = new Map((await recordingsOverview(client, schema, null)).map((r) => [String(r.recording_id), String(r.subject)]));
+    expect([...s.recordingIds].sort()).toEqual(s.recordingIds);
+    s.recordingIds.forEach((id, i) => {
+      expect(Array.from(s.power.subarray(i * s.nBins, (i + 1) * s.nBins))).toEqual(powers.get(`${subjectOf.get(id)}|C4`)!.map(Math.fround));
+    });
   });
 });

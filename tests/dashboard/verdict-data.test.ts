@@ -1,19 +1,22 @@
-// The dashboard's band check, robustness and report loaders (duckdb-wasm, the browser's engine)
-// against the command line's (src/analysis/band-check-runner.ts loadBandCheckData and src/analysis/report-facts.ts
-// databaseFacts over @duckdb/node-api, another DuckDB build) on the shared demo database
-// (tests/helpers/demo-db.ts): the same rows, the same facts, and the same band check and
-// robustness results from src/core/verdict. 200 permutations per test (the equality of the two
-// loaders does not depend on the count; kept small for time).
+// The band check, robustness and report data (src/queries) as the dashboard reads them over
+// duckdb-wasm (the browser's engine) against the command line's readings over @duckdb/node-api
+// (another DuckDB build: bandwise band-check's bandCheckDatabase and the report's
+// databaseFactsOf) on the shared demo database (tests/helpers/demo-db.ts): the same band check,
+// robustness row sets equal to the band check's rows for each (reference, averaging), the same
+// facts. 200 permutations per test (the equality does not depend on the count; kept small for time).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { loadBandCheckData as loadCli } from '../../src/analysis/band-check-runner.ts';
-import { databaseFacts as factsCli } from '../../src/analysis/report-facts.ts';
-import { openStore } from '../../ingest/store/index.ts';
+import { bandCheckDatabase } from '../../src/analysis/band-check-runner.ts';
+import { databaseFactsOf } from '../../src/analysis/report-facts.ts';
+import { withDatabase } from '../../src/analysis/store-client.ts';
 import type { ContrastData } from '../../src/core/contrast/data.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { bandCheck, edgeVariants, runPaths, type PathChoices, type PathDataSet } from '../../src/core/verdict/index.ts';
-import { cohortSchema, participants, runs, type CohortSchema, type RunInfo } from '../../src/dashboard/db/queries.ts';
-import { databaseFacts } from '../../src/dashboard/db/report-facts.ts';
-import { fitRangeChoices, loadBandCheckData, loadPathDataSets, storedFitRanges } from '../../src/dashboard/db/verdict-data.ts';
+import { loadBandCheckData, loadPathDataSets } from '../../src/queries/band-check-data.ts';
+import { participants } from '../../src/queries/cohort.ts';
+import { fitRangeChoices, storedFitRanges } from '../../src/queries/fits.ts';
+import { databaseFacts } from '../../src/queries/report-facts.ts';
+import { runs, type RunInfo } from '../../src/queries/runs.ts';
+import { cohortSchema, type CohortSchema } from '../../src/queries/schema.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 import { wasmClientFor } from './wasm-client.ts';
 
@@ -28,7 +31,7 @@ function expectSameData(a: ContrastData, b: ContrastData): void {
   expect(a.exclusions).toEqual(b.exclusions);
 }
 
-describe('band check, robustness and report data over duckdb-wasm equal the command line on the demo database', () => {
+describe('band check, robustness and report data over duckdb-wasm equal the command line\'s on the demo database', () => {
   let file: string;
   let client: Awaited<ReturnType<typeof wasmClientFor>>;
   let schema: CohortSchema;
@@ -49,47 +52,33 @@ describe('band check, robustness and report data over duckdb-wasm equal the comm
 
   afterAll(() => client?.close());
 
-  it('band check rows (spectra, fits, peaks, fit range) and the band check result are the same', async () => {
+  it('the band check on the rows the dashboard reads equals bandwise band-check on the database', async () => {
     const ours = await loadBandCheckData(client, schema, runList, sigma, exclusions);
-    const store = await openStore(file, { readOnly: true });
-    let theirs;
-    try {
-      theirs = await loadCli(store, sigma, exclusions);
-    } finally {
-      await store.close();
-    }
-    expect(ours.runId).toBe(theirs.runId);
-    expect(ours.fitRangeHz).toEqual(theirs.fitRangeHz);
-    expect(ours.toolVersion).toBe(theirs.toolVersion);
-    expect(ours.runParameters).toEqual(theirs.runParameters);
-    expectSameData(ours.data, theirs.data);
-    expect(ours.data.peaks).toEqual(theirs.data.peaks);
     expect(ours.data.peaks.length).toBeGreaterThan(0);
     const band = { name: 'sigma', loHz: 12, hiHz: 16 };
     const a = bandCheck(sigma, band, ours.data, { fitRangeHz: ours.fitRangeHz });
-    const b = bandCheck(sigma, band, theirs.data, { fitRangeHz: theirs.fitRangeHz });
+    const b = await bandCheckDatabase(file, sigma, band, exclusions);
+    expect(b.database).toEqual({ file: file.split('/').pop(), runId: ours.runId, toolVersion: ours.toolVersion, ingestParameters: ours.runParameters });
     expect(a.verdict).toBe(b.verdict);
     expect(a.family).toEqual(b.family);
     expect(a.tests).toEqual(b.tests);
     expect(a.exclusions.some((e) => e.subject === excluded)).toBe(true);
   });
 
-  it('robustness row sets: one per stored (reference, averaging, fit range), equal to the command line rows; same curve', async () => {
+  it('robustness row sets: one per stored (reference, averaging, fit range), equal to the band check rows read by the command line; same curve', async () => {
     const needs = [
       { reference: 'recorded', averaging: 'mean' as const },
       { reference: 'linked-mastoids', averaging: 'median' as const },
     ];
     const sets = await loadPathDataSets(client, schema, runList, sigma, needs, exclusions);
-    const store = await openStore(file, { readOnly: true });
-    const theirs: PathDataSet[] = [];
-    try {
+    const theirs: PathDataSet[] = await withDatabase(file, async (node) => {
+      const out: PathDataSet[] = [];
       for (const n of needs) {
-        const loaded = await loadCli(store, { ...sigma, reference: n.reference as typeof sigma.reference, averaging: n.averaging }, exclusions);
-        theirs.push({ ...n, fitRangeHz: loaded.fitRangeHz, data: loaded.data });
+        const loaded = await loadBandCheckData(node, await cohortSchema(node), await runs(node), { ...sigma, reference: n.reference as typeof sigma.reference, averaging: n.averaging }, exclusions);
+        out.push({ ...n, fitRangeHz: loaded.fitRangeHz, data: loaded.data });
       }
-    } finally {
-      await store.close();
-    }
+      return out;
+    });
     // the demo stores one fit range per (reference, averaging), so one set each
     expect(sets.map((s) => [s.reference, s.averaging, s.fitRangeHz])).toEqual(theirs.map((s) => [s.reference, s.averaging, s.fitRangeHz]));
     for (let i = 0; i < sets.length; i++) expectSameData(sets[i].data, theirs[i].data);
@@ -110,14 +99,8 @@ describe('band check, robustness and report data over duckdb-wasm equal the comm
     expect(a.paths).toEqual(b.paths);
   });
 
-  it('database facts for the methods report equal src/analysis/report-facts.ts databaseFacts', async () => {
-    const store = await openStore(file, { readOnly: true });
-    let theirs;
-    try {
-      theirs = await factsCli(store, file, sigma);
-    } finally {
-      await store.close();
-    }
+  it('database facts for the methods report equal those bandwise report gathers (databaseFactsOf)', async () => {
+    const theirs = await databaseFactsOf(file, sigma);
     const ours = await databaseFacts(client, `http://127.0.0.1:1/data/${file.split('/').pop()}`, runList, sigma);
     expect(ours).toEqual(theirs);
     expect(ours.recordings).toBe(36); // demo-cohort/participants.tsv lists 36 participants, one recording each

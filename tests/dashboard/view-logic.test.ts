@@ -9,7 +9,7 @@ import { inverseDistance, mapElectrodes, MAP_RADIUS } from '../../src/dashboard/
 import { spectrumQuartiles, quantileSorted } from '../../src/dashboard/views/quality/cohort-band.ts';
 import { buildGrid, RECORDING_COLUMN } from '../../src/dashboard/views/quality/quality-data.ts';
 import { meanWithInterval } from '../../src/dashboard/views/spectra/group-mean.ts';
-import type { QualityRecord } from '../../src/dashboard/db/quality-queries.ts';
+import type { QualityRecord } from '../../src/queries/quality.ts';
 import { runPython } from '../helpers/python.ts';
 
 describe('cohort quartiles per bin', () => {

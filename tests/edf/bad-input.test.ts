@@ -174,7 +174,7 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   it('record count -1 is derived from the file size with a warning', async () => {
     const f = await openEdf(variantOf((h) => (h.nRecords = '-1')));
     expect(f.header.nRecords).toBe(3);
-    expect(f.header.warnings).toEqual([{ field: 'number of data records', message: 'is -1 (unknown); 3 records derived from the file size' }]);
+    expect(f.header.warnings).toEqual([{ field: 'number of data records', message: 'number of data records is -1 (unknown); 3 records derived from the file size' }]);
     await f.close();
   });
 
@@ -345,7 +345,7 @@ describe('BDF/BDF+ catalogue (24-bit; hand-built from goodBdfPlusSpec, 63-byte r
     }));
     expect(f.header.nRecords).toBe(3);
     expect(f.warnings).toEqual([
-      { field: 'number of data records', message: 'is -1 (unknown); 3 records derived from the file size' },
+      { field: 'number of data records', message: 'number of data records is -1 (unknown); 3 records derived from the file size' },
       { field: 'file', message: 'the last data record is incomplete (40 of 63 bytes) and is ignored' },
     ]);
     await f.close();

@@ -179,7 +179,7 @@ describe.each(TYPES)('%s written by libedf', (kind, fileType, dmax) => {
     const f = await openEdf(path);
     try {
       expect(f.header.nRecords).toBe(3);
-      expect(f.warnings).toEqual([{ field: 'number of data records', message: 'is -1 (unknown); 3 records derived from the file size' }]);
+      expect(f.warnings).toEqual([{ field: 'number of data records', message: 'number of data records is -1 (unknown); 3 records derived from the file size' }]);
       const signals = f.header.signals.filter((s) => !s.isAnnotation).map((s) => s.index);
       const { data } = await readAll(f, signals, 30);
       mixedSignals(dmax).forEach((s, k) => expect(stepsOff(data[k], mixed.planted[k], s, s.fs * MIXED_S)).toBeLessThanOrEqual(1));

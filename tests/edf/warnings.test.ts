@@ -135,7 +135,7 @@ describe('warnings of the reader (EdfFile.warnings after the header\'s)', () => 
     h.nRecords = '-1';
     const f = await opened(h);
     expect(f.warnings).toEqual([
-      { field: 'number of data records', message: 'is -1 (unknown); 4 records derived from the file size' },
+      { field: 'number of data records', message: 'number of data records is -1 (unknown); 4 records derived from the file size' },
       { field: 'annotations', message: '1 gap between data records, 2 s in total; epochs that touch a gap are dropped' },
     ]);
     expect(f.header.warnings).toEqual(f.warnings.slice(0, 1));

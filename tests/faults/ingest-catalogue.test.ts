@@ -116,7 +116,7 @@ describe('ingest fault catalogue: one cohort, each bad input a real file, folder
     expect(rec[0].n_epochs_dropped).toBe(1);
     // the gap is kept as a warning of that recording (EDF+ 2003 §2.1.3.1: EDF+D may be discontinuous)
     const warnings = await withDb(db, (q) => q('SELECT w.file, w.step, w.field, w.message, w.recording_id = r.recording_id AS own FROM warnings w JOIN recordings r ON r.file_name = w.file'));
-    expect(warnings).toEqual([{ file: 'gaps.edf', step: 'read', field: 'data records', message: '1 gap between data records (EDF+D), 15 s in all; epochs touching a gap are dropped', own: true }]);
+    expect(warnings).toEqual([{ file: 'gaps.edf', step: 'open', field: 'annotations', message: '1 gap between data records, 15 s in total; epochs that touch a gap are dropped', own: true }]);
     // N3 is epochs 4 and 5: with 5 dropped, at most one N3 epoch can enter its spectrum (g01 has two candidates)
     const n3 = await withDb(db, (q) =>
       q("SELECT file_name, max(spectra.n_epochs) AS n FROM spectra JOIN recordings USING (recording_id) WHERE stage = 'N3' AND reference = 'recorded' AND file_name IN ('gaps.edf', 'g01.edf') GROUP BY file_name ORDER BY file_name"),

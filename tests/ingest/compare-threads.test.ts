@@ -9,8 +9,11 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { compareDatabase, loadContrastData } from '../../src/analysis/compare-runner.ts';
-import { openStore } from '../../ingest/store/index.ts';
+import { compareDatabase } from '../../src/analysis/compare-runner.ts';
+import { withDatabase } from '../../src/analysis/store-client.ts';
+import { loadContrastData } from '../../src/queries/contrast-data.ts';
+import { runs } from '../../src/queries/runs.ts';
+import { cohortSchema } from '../../src/queries/schema.ts';
 import { writeSyntheticDatabase } from '../../src/simulation/synthetic-store.ts';
 import type { ContrastData, Exclusion } from '../../src/core/contrast/data.ts';
 import { compare } from '../../src/core/contrast/run.ts';
@@ -32,12 +35,7 @@ describe('compare on worker threads', () => {
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
   async function rows(c: Contrast, exclusions: Exclusion[] = []): Promise<ContrastData> {
-    const store = await openStore(file, { readOnly: true });
-    try {
-      return (await loadContrastData(store, c, exclusions)).data;
-    } finally {
-      await store.close();
-    }
+    return withDatabase(file, async (db) => (await loadContrastData(db, await cohortSchema(db), await runs(db), c, exclusions)).data);
   }
 
   const contrasts = {

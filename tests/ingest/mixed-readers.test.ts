@@ -1,7 +1,7 @@
 // Readers of the spectra table when channels of one recording have different lengths (each stored
-// up to its own Nyquist frequency): the contrast loaders of the command line (src/analysis/compare-runner.ts →
-// src/analysis/store-read.ts) and of the dashboard (src/dashboard/db/contrast-data.ts, duckdb-wasm), the
-// dashboard's spectra view, and the report facts of both sides. Four invented subjects, each a
+// up to its own Nyquist frequency): the named queries of src/queries (spectra, the contrast loader,
+// the report facts) through Node's DuckDB (the command line) and through duckdb-wasm (the
+// dashboard), and the dashboard's spectra view. Four invented subjects, each a
 // libedf-written recording with EEG at 256 Hz and EMG at 1, 20, 64 and 512 Hz (tests/ingest/mixed-rates.ts).
 import { writeFileSync } from 'node:fs';
 import path from 'node:path';
@@ -10,15 +10,15 @@ import { DuckDBInstance } from '@duckdb/node-api';
 import { assembleContrast } from '../../src/core/contrast/assemble.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { methodsReport } from '../../src/core/report/index.ts';
-import { loadContrastData as loadInBrowser } from '../../src/dashboard/db/contrast-data.ts';
-import { cohortSchema, runs } from '../../src/dashboard/db/queries.ts';
-import { databaseFacts as factsInBrowser } from '../../src/dashboard/db/report-facts.ts';
+import { loadContrastData } from '../../src/queries/contrast-data.ts';
+import { runs } from '../../src/queries/runs.ts';
+import { cohortSchema } from '../../src/queries/schema.ts';
+import { databaseFacts } from '../../src/queries/report-facts.ts';
+import { spectraRows } from '../../src/queries/spectra.ts';
 import { loadSpectraRows } from '../../src/dashboard/views/spectra/spectra-data.ts';
-import { compareDatabase, loadContrastData } from '../../src/analysis/compare-runner.ts';
+import { compareDatabase } from '../../src/analysis/compare-runner.ts';
+import { withDatabase } from '../../src/analysis/store-client.ts';
 import { runIngest } from '../../ingest/run.ts';
-import { databaseFacts } from '../../src/analysis/report-facts.ts';
-import { openStore } from '../../ingest/store/database.ts';
-import { readSpectra } from '../../src/analysis/store-read.ts';
 import { makeTmpDir } from '../edf/helpers.ts';
 import { wasmClientFor } from '../dashboard/wasm-client.ts';
 import { writeMixedRates } from './mixed-rates.ts';
@@ -65,33 +65,29 @@ describe('spectra of one recording with different lengths', () => {
   });
 
   it('the command line reads the channels that reach the recording\'s range, or the channels asked for', async () => {
-    const store = await openStore(db, { readOnly: true });
-    try {
-      const all = await readSpectra(store, { runId: (await runs(client))[0].runId, stage: 'N2', reference: 'recorded', averaging: 'mean' });
+    await withDatabase(db, async (node) => {
+      const runId = (await runs(node))[0].runId;
+      const all = await spectraRows(node, { runId, stage: 'N2', reference: 'recorded', averaging: 'mean' });
       expect(all.nBins).toBe(181);
-      expect([...new Set(all.channels)].sort()).toEqual(['C3', 'C4', 'Fast']);
-      expect(all.channels.length).toBe(12);
-      for (let r = 0; r < all.channels.length; r++) expect(Array.from(all.power.subarray(r * 181, (r + 1) * 181))).toEqual(stored.get(`${all.recordingIds[r]}|${all.channels[r]}`));
-      const chin = await readSpectra(store, { runId: all.recordingIds.length ? (await runs(client))[0].runId : '', stage: 'N2', reference: 'recorded', averaging: 'mean', channels: ['Chin'] });
-      expect([chin.nBins, chin.channels]).toEqual([41, ['Chin', 'Chin', 'Chin', 'Chin']]);
-      expect(Array.from(chin.power.subarray(0, 41))).toEqual(stored.get(`${chin.recordingIds[0]}|Chin`));
-    } finally {
-      await store.close();
-    }
+      expect([...new Set(all.rows.map((r) => r.channel))].sort()).toEqual(['C3', 'C4', 'Fast']);
+      expect(all.rows.length).toBe(12);
+      const ids = [...stored.keys()];
+      // every row equals the list node-api stored for its recording and channel
+      for (const r of all.rows) {
+        const match = ids.filter((k) => k.endsWith(`|${r.channel}`) && stored.get(k)!.every((v, i) => v === r.power[i]));
+        expect(match.length, `${r.subject} ${r.channel}`).toBe(1);
+      }
+      const chin = await spectraRows(node, { runId, stage: 'N2', reference: 'recorded', averaging: 'mean', channels: ['Chin'] });
+      expect([chin.nBins, chin.rows.map((r) => r.channel)]).toEqual([41, ['Chin', 'Chin', 'Chin', 'Chin']]);
+    });
   });
 
   it('a contrast over all channels reads the EEG and the fast EMG; over the EEG, and over the 20-Hz EMG alone on its own range, it runs; both sides load the same', async () => {
     const runList = await runs(client);
     const schema = await cohortSchema(client);
     for (const c of [contrast({}), contrast({ channels: ['C3', 'C4'] }), contrast({ channels: ['Chin'], fmaxHz: 8 })]) {
-      const store = await openStore(db, { readOnly: true });
-      let cli;
-      try {
-        cli = await loadContrastData(store, c, []);
-      } finally {
-        await store.close();
-      }
-      const web = await loadInBrowser(client, schema, runList, c, []);
+      const cli = await withDatabase(db, async (node) => loadContrastData(node, await cohortSchema(node), await runs(node), c, []));
+      const web = await loadContrastData(client, schema, runList, c, []);
       expect(web.data.spectra.nBins).toBe(cli.data.spectra.nBins);
       const key = (r: { subject: string; channel: string }) => `${r.subject}|${r.channel}`;
       expect(web.data.spectra.rows.map(key).sort()).toEqual(cli.data.spectra.rows.map(key).sort());
@@ -113,14 +109,8 @@ describe('spectra of one recording with different lengths', () => {
 
   it('the report facts of both sides agree, and the methods text states the fit ranges, the Nyquist rule and the warnings', async () => {
     const c = contrast({ channels: ['C3', 'C4'] });
-    const store = await openStore(db, { readOnly: true });
-    let cli;
-    try {
-      cli = await databaseFacts(store, db, c);
-    } finally {
-      await store.close();
-    }
-    const web = await factsInBrowser(client, db, await runs(client), c);
+    const cli = await withDatabase(db, async (node) => databaseFacts(node, db, await runs(node), c));
+    const web = await databaseFacts(client, db, await runs(client), c);
     expect(web).toEqual(cli);
     expect(cli.samplingRatesHz).toEqual([1, 20, 64, 256, 512]);
     expect(cli.fitRangesHz).toEqual([[1, 10], [1, 32], [1, 40]]); // Chin, Leg, the rest; the 1-Hz channel has none

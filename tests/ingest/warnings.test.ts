@@ -75,24 +75,25 @@ describe('warnings are kept', () => {
 
   it('keeps the reader\'s notes with their header field (EDF 1992 §2.1 number of data records; §2.2 records)', async () => {
     expect(await warningsOf('gaps.edf')).toEqual([
-      { step: 'read', field: 'data records', message: '1 gap between data records (EDF+D), 15 s in all; epochs touching a gap are dropped' },
+      { step: 'open', field: 'annotations', message: '1 gap between data records, 15 s in total; epochs that touch a gap are dropped' },
     ]);
     expect(await warningsOf('minus-one.edf')).toEqual([
       { step: 'open', field: 'number of data records', message: 'number of data records is -1 (unknown); 300 records derived from the file size' },
     ]);
     const cut = await warningsOf('cut.edf');
-    expect(cut).toContainEqual({ step: 'open', field: 'data records', message: `the last data record is incomplete (${RECORD_BYTES - 100} of ${RECORD_BYTES} bytes) and is ignored` });
+    expect(cut).toContainEqual({ step: 'open', field: 'file', message: `the last data record is incomplete (${RECORD_BYTES - 100} of ${RECORD_BYTES} bytes) and is ignored` });
     const latin1 = await warningsOf('latin1.edf');
     expect(latin1).toEqual([
-      { step: 'open', field: 'local patient identification', message: 'header field "local patient identification" holds bytes outside printable ASCII (content withheld)' },
+      { step: 'open', field: 'local patient identification', message: 'holds bytes outside printable ASCII (content withheld)' },
     ]);
   });
 
   it('keeps the scoring notes by epoch and time, never by their text', async () => {
+    // 'Lights off' at 0 s is a lights marker, not an ignored event; the last text is named by its hash
     expect(await warningsOf('late.edf')).toEqual([
-      { step: 'scoring', field: 'gap', message: 'scoring starts late and ends early: epochs 0 (0–30 s), 9 (270–300 s) without a stage, stored as unscored' },
-      { step: 'scoring', field: 'ignored-events', message: '1 annotation ignored (not a stage label) at epoch 0 (0–30 s)' },
-      { step: 'scoring', field: 'ignored-events', message: '1 annotation ignored (not a stage label) at epoch 9 (270–300 s)' },
+      { step: 'scoring', field: 'ignored-events', message: 'text #bf0a3222 (not a stage label): 1 event(s) ignored at epoch 9 (270–300 s), first at 270 s' },
+      { step: 'scoring', field: 'scoring-ends-early', message: 'scoring ends early: no scoring for epoch 9 (270–300 s) after the last scored epoch; set to unscored' },
+      { step: 'scoring', field: 'scoring-starts-late', message: 'scoring starts late: no scoring for epoch 0 (0–30 s) before the first scored epoch; set to unscored' },
     ]);
   });
 

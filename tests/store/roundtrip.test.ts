@@ -1,14 +1,20 @@
 /**
  * A bundle written through the store reads back unchanged from a real DuckDB file: FLOAT[]
  * spectra and FLOAT band powers bit-equal (IEEE-754 single precision, compared as uint32
- * bit patterns), every table's row count as written, participants typed.
+ * bit patterns), every table's row count as written, participants typed; read back through the
+ * named queries of src/queries over the Node client.
  * Sizes: 42 channels × 5 stages × 5 references × 2 averagings = 2100 spectra (crosses the
  * 2048-row data-chunk boundary) and 42 × 60 × 3 = 7560 band-power rows.
  */
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openStore } from '../../ingest/store/database.ts';
-import { listRecordings, listRuns, readAperiodic, readParticipants, readSpectra } from '../../src/analysis/store-read.ts';
+import { storeClient } from '../../src/analysis/store-client.ts';
+import { participants } from '../../src/queries/cohort.ts';
+import { aperiodicRows } from '../../src/queries/fits.ts';
+import { runs } from '../../src/queries/runs.ts';
+import { cohortSchema } from '../../src/queries/schema.ts';
+import { spectraRows } from '../../src/queries/spectra.ts';
 import type { Store } from '../../ingest/store/writer.ts';
 import type { RecordingBundle } from '../../ingest/store/bundle.ts';
 import { makeBundle, type BundleSize } from './make-bundle.ts';
@@ -77,19 +83,20 @@ describe('round trip of a recording bundle', () => {
     expect(ch).toEqual([{ unit: 'uV', recorded_unit: 'mV', physical_min: -500 }]);
   });
 
-  it('spectra come back bit-equal through readSpectra, for every stage × reference × averaging', async () => {
+  it('spectra come back bit-equal through spectraRows, for every stage × reference × averaging', async () => {
+    const db = storeClient(store);
     for (const stage of BIG.stages)
       for (const reference of BIG.references)
         for (const averaging of ['mean', 'median'] as const) {
-          const m = await readSpectra(store, { runId, stage, reference, averaging });
+          const m = await spectraRows(db, { runId, stage, reference, averaging });
           const expected = bundle.spectra.filter((s) => s.stage === stage && s.reference === reference && s.averaging === averaging);
-          expect(m.channels.length).toBe(expected.length);
+          expect(m.rows.length).toBe(expected.length);
           expect(m.nBins).toBe(181);
           expect(m.freqStepHz).toBe(0.25);
-          for (let r = 0; r < m.channels.length; r++) {
-            const want = expected.find((s) => s.channel === m.channels[r])!;
-            expect(m.nEpochs[r]).toBe(want.nEpochs);
-            expect(Array.from(bits(m.power.subarray(r * 181, (r + 1) * 181)))).toEqual(Array.from(bits(want.power)));
+          for (const row of m.rows) {
+            const want = expected.find((s) => s.channel === row.channel)!;
+            expect(row.nEpochs).toBe(want.nEpochs);
+            expect(Array.from(bits(row.power))).toEqual(Array.from(bits(want.power)));
           }
         }
   });
@@ -112,24 +119,30 @@ describe('round trip of a recording bundle', () => {
   });
 
   it('recordings, runs, aperiodic and participants read back', async () => {
-    const runs = await listRuns(store);
-    expect(runs).toHaveLength(1);
-    expect(runs[0].parameters).toEqual({ fmaxHz: 45, welch: { overlap: 0.5, segmentS: 4 } });
-    expect(runs[0].finishedAt).toBeInstanceOf(Date);
-    const recs = await listRecordings(store, runId);
-    expect(recs.map((r) => [r.recordingId, r.subject, r.fileSha256, r.durationS])).toEqual([
-      [recordingId, 'sub-7', bundle.recording.fileSha256, 1800],
-    ]);
-    const ap = await readAperiodic(store, { runId, stage: 'W', reference: 'recorded', averaging: 'mean' });
-    expect(ap.map((a) => [a.channel, a.offset, a.exponent, a.knee, a.r2])).toEqual([['E1', 1.25, 1.8, 0, 0.97]]);
-    expect(await readAperiodic(store, { runId, stage: 'W', reference: 'recorded', averaging: 'mean', method: 'irasa' })).toEqual([]);
-    const p = await readParticipants(store);
+    const db = storeClient(store);
+    const runList = await runs(db);
+    expect(runList).toHaveLength(1);
+    expect(runList[0].parameters).toEqual({ fmaxHz: 45, welch: { overlap: 0.5, segmentS: 4 } });
+    // DuckDB's text form of a TIMESTAMP (finishRun wrote it)
+    expect(runList[0].finishedAt).toMatch(/^\d{4}-\d\d-\d\d \d\d:\d\d:\d\d/);
+    const recs = await sql(store, 'SELECT recording_id, subject, file_sha256, duration_s FROM recordings WHERE run_id = $1', [runId]);
+    expect(recs.map((r) => [r.recording_id, r.subject, r.file_sha256, r.duration_s])).toEqual([[recordingId, 'sub-7', bundle.recording.fileSha256, 1800]]);
+    const key = { runId, stage: 'W' as const, reference: 'recorded', averaging: 'mean' };
+    const ap = await aperiodicRows(db, key, 'spectral-fit');
+    expect(ap.map((a) => [a.channel, a.offset, a.exponent, a.knee])).toEqual([['E1', 1.25, 1.8, 0]]);
+    expect((await sql(store, 'SELECT r2 FROM aperiodic WHERE recording_id = $1', [recordingId])).map((r) => r.r2)).toEqual([0.97]);
+    expect(await aperiodicRows(db, key, 'irasa')).toEqual([]);
+    const p = await participants(db, await cohortSchema(db));
     expect(p.columns).toEqual([
       { name: 'subject', type: 'VARCHAR' },
       { name: 'group', type: 'VARCHAR' },
       { name: 'age', type: 'DOUBLE' },
       { name: 'score', type: 'VARCHAR' },
     ]);
-    expect(p.rows).toEqual([['sub-7', 'control', 41, null], ['sub-8', 'patient', 39.5, null], ['sub-9', 'patient', null, null]]);
+    expect(p.rows).toEqual([
+      { subject: 'sub-7', group: 'control', age: 41, score: null },
+      { subject: 'sub-8', group: 'patient', age: 39.5, score: null },
+      { subject: 'sub-9', group: 'patient', age: null, score: null },
+    ]);
   });
 });

@@ -3,8 +3,8 @@
 // defaults of a new analysis filled in, the contrast JSON it spells (not yet validated), and the
 // writes of the form. `run=1` in the address asks for the result of these settings (a link
 // reopens it); any edit drops it.
-import type { CohortSchema } from '../db/queries.ts';
-import type { SqlClient } from '../db/sql-client.ts';
+import type { CohortSchema } from '../../queries/schema.ts';
+import type { SqlClient } from '../../queries/client.ts';
 import { contrastJsonFromParams } from './contrast-params.ts';
 import { CONTRAST_DEFAULTS, formDefaults } from './defaults.ts';
 import { loadChoices, type FormChoices } from './form-choices.ts';

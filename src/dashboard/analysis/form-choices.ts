@@ -1,8 +1,9 @@
 // What an analysis form offers, read from the open database: the participants columns (text ones
 // with their values, numeric ones) and the stages, references and averagings spectra are stored for.
-import { participants, type CohortSchema } from '../db/queries.ts';
-import { spectraChoices } from '../db/quality-queries.ts';
-import type { SqlClient } from '../db/sql-client.ts';
+import type { SqlClient } from '../../queries/client.ts';
+import { participants } from '../../queries/cohort.ts';
+import { spectraChoices } from '../../queries/quality.ts';
+import type { CohortSchema } from '../../queries/schema.ts';
 
 export interface FormChoices {
   /** participants columns: text ones with their values, numeric ones */

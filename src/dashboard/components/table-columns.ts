@@ -1,5 +1,5 @@
 // Column descriptions for DataTable, and how a cell is shown.
-import type { Cell, Row } from '../db/arrow-rows.ts';
+import type { Cell, Row } from '../../queries/client.ts';
 
 export interface DataColumn {
   /** Key in the row, also the TSV header. */

@@ -7,7 +7,8 @@ import ehWorker from '@duckdb/duckdb-wasm/dist/duckdb-browser-eh.worker.js?url';
 import mvpWorker from '@duckdb/duckdb-wasm/dist/duckdb-browser-mvp.worker.js?url';
 import ehWasm from '@duckdb/duckdb-wasm/dist/duckdb-eh.wasm?url';
 import mvpWasm from '@duckdb/duckdb-wasm/dist/duckdb-mvp.wasm?url';
-import { COHORT, literal, type SqlClient } from './sql-client.ts';
+import { COHORT, literal, type SqlClient } from '../../queries/client.ts';
+import { arrowClient } from './arrow-client.ts';
 
 const BUNDLES: duckdb.DuckDBBundles = {
   mvp: { mainModule: mvpWasm, mainWorker: mvpWorker },
@@ -67,7 +68,7 @@ async function attach(e: Engine, location: string, source: string): Promise<Coho
   if (attachedOnce) await e.conn.query(`DETACH DATABASE IF EXISTS ${COHORT}`);
   attachedOnce = true;
   await e.conn.query(`ATTACH ${literal(location)} AS ${COHORT} (READ_ONLY)`);
-  return { source, query: (sql: string) => e.conn.query(sql), stream: (sql: string) => streamed(e, sql) };
+  return { source, ...arrowClient({ query: (sql: string) => e.conn.query(sql), stream: (sql: string) => streamed(e, sql) }) };
 }
 
 /**

@@ -13,7 +13,7 @@ import {
   type LedgerEntry,
 } from './local-store.ts';
 import { browserLedgerCounts } from './ledger-report.ts';
-import type { RunInfo } from './queries.ts';
+import type { RunInfo } from '../../queries/runs.ts';
 
 export class DatabaseNotes {
   key: string | null = $state(null);

@@ -2,7 +2,7 @@
 // screen and the ledger of contrasts run. A database is known by its ingest run ids (runs.run_id
 // is a hash of the run's parameters) and its file name, so two different files never share a list.
 import type { Exclusion } from '../../core/contrast/data.ts';
-import type { RunInfo } from './queries.ts';
+import type { RunInfo } from '../../queries/runs.ts';
 
 /** The key prefix of one database's entries. */
 export function databaseKey(runs: readonly RunInfo[], source: string): string {

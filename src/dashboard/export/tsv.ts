@@ -1,6 +1,6 @@
 // Tables as tab-separated values (IANA text/tab-separated-values: one header line, fields
 // separated by TAB; fields may not contain TAB or line breaks, so those become spaces).
-import type { Cell } from '../db/arrow-rows.ts';
+import type { Cell } from '../../queries/client.ts';
 
 export interface TsvColumn {
   key: string;

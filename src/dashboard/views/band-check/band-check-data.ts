@@ -1,6 +1,6 @@
 // The band check view's table: one row per effect of a band check result (src/core/verdict).
 import type { BandCheckResult, BandCheckTests } from '../../../core/verdict/index.ts';
-import type { Row } from '../../db/arrow-rows.ts';
+import type { Row } from '../../../queries/client.ts';
 
 /** The effects in the order the table shows them, with their names on screen. */
 export const EFFECTS: readonly { key: keyof BandCheckTests; label: string; decides: boolean }[] = [

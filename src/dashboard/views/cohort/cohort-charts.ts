@@ -1,8 +1,8 @@
 // Plot options for the cohort view's figures.
 import * as Plot from '@observablehq/plot';
 import { SCORED_STAGES } from '../../../core/stages.ts';
-import type { Row } from '../../db/arrow-rows.ts';
-import type { GroupSize } from '../../db/queries.ts';
+import type { Row } from '../../../queries/client.ts';
+import type { GroupSize } from '../../../queries/cohort.ts';
 
 /** Stage colours: wake grey, NREM from light to dark blue, REM a muted red. */
 export const STAGE_COLORS: Record<string, string> = {

@@ -1,16 +1,7 @@
 // Everything the cohort view shows, loaded in one go.
-import type { Row } from '../../db/arrow-rows.ts';
-import {
-  groupSizes,
-  groupingColumns,
-  ingestErrors,
-  participants,
-  recordingsOverview,
-  type CohortSchema,
-  type GroupSize,
-  type TableColumn,
-} from '../../db/queries.ts';
-import type { SqlClient } from '../../db/sql-client.ts';
+import type { Row, SqlClient } from '../../../queries/client.ts';
+import { groupSizes, ingestErrors, participants, recordingsOverview, type GroupSize } from '../../../queries/cohort.ts';
+import { groupingColumns, type CohortSchema, type TableColumn } from '../../../queries/schema.ts';
 
 export interface CohortData {
   groupColumn: string | null;

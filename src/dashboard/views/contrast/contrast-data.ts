@@ -3,10 +3,10 @@
 import type { ContrastData, Exclusion } from '../../../core/contrast/data.ts';
 import type { CompareResult } from '../../../core/contrast/run.ts';
 import type { Contrast } from '../../../core/contrast/spec.ts';
-import type { Row } from '../../db/arrow-rows.ts';
-import { contrastMaxHz, loadContrastData } from '../../db/contrast-data.ts';
-import type { CohortSchema, RunInfo } from '../../db/queries.ts';
-import type { SqlClient } from '../../db/sql-client.ts';
+import type { Row, SqlClient } from '../../../queries/client.ts';
+import { contrastMaxHz, loadContrastData } from '../../../queries/contrast-data.ts';
+import type { RunInfo } from '../../../queries/runs.ts';
+import type { CohortSchema } from '../../../queries/schema.ts';
 import type { PromiseCache } from '../../analysis/analysis-run.svelte.ts';
 import type { SpectraRows } from '../spectra/spectra-data.ts';
 import { ALPHA } from './contrast-charts.ts';
@@ -24,7 +24,7 @@ export async function readContrastData(
   const maxHz = contrastMaxHz(c);
   const key = [stages, c.reference, c.averaging, c.measure, c.aperiodicMethod, maxHz ?? 'all'].join('|');
   // log-psd and residual read no bin above fmaxHz: their lists are read cut there
-  const { runId, data } = await cache.get(key, () => loadContrastData(db, schema, runs, c, [], maxHz));
+  const { runId, data } = await cache.get(key, () => loadContrastData(db, schema, runs, c, [], { maxHz }));
   return { runId, data: { ...data, exclusions: [...exclusions] } };
 }
 

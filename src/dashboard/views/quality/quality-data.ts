@@ -3,19 +3,10 @@
 import { cellScore } from '../../../core/quality/cell-score.ts';
 import type { QualityMetric, QualityRow } from '../../../core/quality/row.ts';
 import type { Stage } from '../../../core/stages.ts';
-import type { Row } from '../../db/arrow-rows.ts';
-import {
-  channelList,
-  channelSpectra,
-  epochBandPower,
-  qualityRows,
-  recordingEpochs,
-  recordingSubjects,
-  type EpochRow,
-  type QualityRecord,
-} from '../../db/quality-queries.ts';
-import type { CohortSchema } from '../../db/queries.ts';
-import type { SqlClient } from '../../db/sql-client.ts';
+import type { Row, SqlClient } from '../../../queries/client.ts';
+import { channelList, epochBandPower, qualityRows, recordingEpochs, recordingSubjects, type EpochRow, type QualityRecord } from '../../../queries/quality.ts';
+import type { CohortSchema } from '../../../queries/schema.ts';
+import { channelSpectra } from '../../../queries/spectra.ts';
 import { spectrumQuartiles, type SpectrumQuartiles } from './cohort-band.ts';
 
 /** Column of the grid for metrics that are not per channel. */

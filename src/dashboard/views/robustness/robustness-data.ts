@@ -1,7 +1,7 @@
 // The specification curve's rows: which choices each path used (the dot matrix under the curve),
 // the table of paths, and the share of significant paths in words (src/core/verdict runPaths).
 import type { PathResult, SpecificationCurve } from '../../../core/verdict/index.ts';
-import type { Row } from '../../db/arrow-rows.ts';
+import type { Row } from '../../../queries/client.ts';
 
 const hz = (r: readonly number[]) => `${r[0]}–${r[1]} Hz`;
 

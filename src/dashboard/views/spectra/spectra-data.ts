@@ -7,9 +7,12 @@ import { parseContrast, type Contrast } from '../../../core/contrast/spec.ts';
 import { aperiodicLog10 } from '../../../core/spectrum/aperiodic-model.ts';
 import { bandPower, type Band } from '../../../core/spectrum/bands.ts';
 import type { Stage } from '../../../core/stages.ts';
-import { chooseRun, contrastAperiodic, contrastParticipants, contrastSpectra } from '../../db/contrast-data.ts';
-import type { CohortSchema, RunInfo } from '../../db/queries.ts';
-import type { SqlClient } from '../../db/sql-client.ts';
+import type { SqlClient } from '../../../queries/client.ts';
+import { contrastParticipants } from '../../../queries/contrast-data.ts';
+import { aperiodicRows } from '../../../queries/fits.ts';
+import { chooseRun, type RunInfo } from '../../../queries/runs.ts';
+import type { CohortSchema } from '../../../queries/schema.ts';
+import { spectraRows } from '../../../queries/spectra.ts';
 import { meanWithInterval, type MeanBand } from './group-mean.ts';
 
 /** What the y axis shows. */
@@ -44,7 +47,7 @@ export async function loadSpectraRows(
   const run = chooseRun(runs);
   const q = { runId: run.runId, ...sel };
   // issued together: duckdb-wasm runs them one after another in its worker, without waits between
-  const [s, aperiodic, participants] = await Promise.all([contrastSpectra(db, q), contrastAperiodic(db, q, 'fit'), contrastParticipants(db, schema)]);
+  const [s, aperiodic, participants] = await Promise.all([spectraRows(db, q), aperiodicRows(db, q, 'fit'), contrastParticipants(db, schema)]);
   performance.mark('bandwise:spectra-rows');
   return { runId: run.runId, stage: sel.stage, reference: sel.reference, ...s, aperiodic, participants, channels: [...new Set(s.rows.map((r) => r.channel))] };
 }

@@ -1,8 +1,8 @@
-// Named queries of the quality screen: quality rows, one recording's spectrum and the cohort's
-// spectra of the same channel and stage, epoch rejections, band power per epoch, hypnogram.
-import { listColumnToMatrix, numberColumn, stringColumn, tableToRows, type Row } from './arrow-rows.ts';
-import type { CohortSchema } from './queries.ts';
-import { COHORT, literal, type SqlClient } from './sql-client.ts';
+// Named queries of the quality screen: quality rows, recordings and channels of the grid, the
+// stored combinations of spectra, epochs with their rejections, band power per epoch (one
+// channel's spectra across the cohort: spectra.ts channelSpectra).
+import { COHORT, literal, rowsOf, texts, textsOrNull, type Row, type SqlClient } from './client.ts';
+import type { CohortSchema } from './schema.ts';
 
 /** One quality row with the recording's subject (quality table, DESIGN.md). */
 export interface QualityRecord {
@@ -24,13 +24,13 @@ export async function qualityRows(db: SqlClient, schema: CohortSchema): Promise<
   if (!schema.has('quality', 'recording_id', 'metric', 'flagged')) return [];
   const severity = schema.has('quality', 'severity') ? 'q.severity::DOUBLE' : 'CASE WHEN q.flagged THEN 1 ELSE 0 END::DOUBLE';
   const reference = schema.has('quality', 'reference') ? 'q.reference::VARCHAR' : 'NULL::VARCHAR';
-  const rows = tableToRows(
+  const rows = rowsOf(
     await db.query(
       `SELECT q.recording_id::VARCHAR AS recording_id, r.subject::VARCHAR AS subject, q.channel::VARCHAR AS channel,
               q.stage::VARCHAR AS stage, q.metric::VARCHAR AS metric, q.value::DOUBLE AS value, q.flagged AS flagged,
               q.reason::VARCHAR AS reason, ${severity} AS severity, ${reference} AS reference
        FROM ${COHORT}.quality q JOIN ${COHORT}.recordings r USING (recording_id)
-       ORDER BY r.subject, q.recording_id, q.channel NULLS FIRST, q.stage NULLS FIRST, q.metric`,
+       ORDER BY r.subject, q.recording_id, q.channel NULLS FIRST, q.stage NULLS FIRST, q.metric, ${reference} NULLS FIRST`,
     ),
   );
   return rows.map((r) => ({
@@ -53,15 +53,14 @@ export async function recordingSubjects(db: SqlClient): Promise<{ recordingId: s
     `SELECT recording_id::VARCHAR AS recording_id, subject::VARCHAR AS subject, session::VARCHAR AS session
      FROM ${COHORT}.recordings ORDER BY subject, session NULLS FIRST, recording_id`,
   );
-  const ids = stringColumn(t, 'recording_id');
-  const subjects = stringColumn(t, 'subject');
-  const session = t.getChild('session')!;
-  return ids.map((id, i) => ({ recordingId: id, subject: subjects[i], session: (session.get(i) as string | null) ?? null }));
+  const subjects = texts(t, 'subject');
+  const session = textsOrNull(t, 'session');
+  return texts(t, 'recording_id').map((id, i) => ({ recordingId: id, subject: subjects[i], session: session[i] }));
 }
 
 /** Stored channel names with their 10-10 positions (first recording that has them). */
 export async function channelList(db: SqlClient): Promise<{ channel: string; x: number | null; y: number | null; z: number | null }[]> {
-  const rows = tableToRows(
+  const rows = rowsOf(
     await db.query(
       `SELECT channel::VARCHAR AS channel, any_value(x)::DOUBLE AS x, any_value(y)::DOUBLE AS y, any_value(z)::DOUBLE AS z,
               min(rowid_order) AS o
@@ -75,49 +74,13 @@ export async function channelList(db: SqlClient): Promise<{ channel: string; x: 
 
 /** Which stage × reference × averaging combinations the spectra table holds, with row counts. */
 export async function spectraChoices(db: SqlClient): Promise<{ stage: string; reference: string; averaging: string; rows: number }[]> {
-  const rows = tableToRows(
+  const rows = rowsOf(
     await db.query(
       `SELECT stage::VARCHAR AS stage, reference::VARCHAR AS reference, averaging::VARCHAR AS averaging, count(*)::DOUBLE AS n
        FROM ${COHORT}.spectra GROUP BY ALL ORDER BY ALL`,
     ),
   );
   return rows.map((r) => ({ stage: String(r.stage), reference: String(r.reference), averaging: String(r.averaging), rows: Number(r.n) }));
-}
-
-/** Spectra of one channel × stage × reference × averaging across the cohort, one row per recording. */
-export interface ChannelSpectra {
-  recordingIds: string[];
-  freqStartHz: number;
-  freqStepHz: number;
-  nBins: number;
-  /** recordings × nBins, µV²/Hz */
-  power: Float32Array;
-}
-
-export async function channelSpectra(
-  db: SqlClient,
-  sel: { channel: string; stage: string; reference: string; averaging: string },
-): Promise<ChannelSpectra> {
-  const t = await db.query(
-    `SELECT recording_id::VARCHAR AS recording_id, freq_start_hz::DOUBLE AS f0, freq_step_hz::DOUBLE AS df, n_bins::DOUBLE AS n_bins, power
-     FROM ${COHORT}.spectra
-     WHERE channel = ${literal(sel.channel)} AND stage = ${literal(sel.stage)} AND reference = ${literal(sel.reference)} AND averaging = ${literal(sel.averaging)}
-     ORDER BY recording_id`,
-  );
-  const nb = numberColumn(t, 'n_bins');
-  const f0 = numberColumn(t, 'f0');
-  const df = numberColumn(t, 'df');
-  for (let i = 1; i < t.numRows; i++) {
-    if (nb[i] !== nb[0] || f0[i] !== f0[0] || df[i] !== df[0]) throw new Error(`spectra of ${sel.channel} ${sel.stage}: recordings have different frequency axes`);
-  }
-  const nBins = t.numRows > 0 ? nb[0] : 0;
-  return {
-    recordingIds: stringColumn(t, 'recording_id'),
-    freqStartHz: t.numRows > 0 ? f0[0] : 0,
-    freqStepHz: t.numRows > 0 ? df[0] : 0,
-    nBins,
-    power: listColumnToMatrix(t, 'power', nBins),
-  };
 }
 
 /** Epochs of a recording with their stage; `rejected` counts the channel's rejections of that epoch. */
@@ -130,7 +93,7 @@ export interface EpochRow {
 }
 
 export async function recordingEpochs(db: SqlClient, recordingId: string, channel: string): Promise<EpochRow[]> {
-  const rows = tableToRows(
+  const rows = rowsOf(
     await db.query(
       `SELECT e.epoch::DOUBLE AS epoch, e.onset_s::DOUBLE AS onset_s, e.stage::VARCHAR AS stage,
               coalesce(string_agg(DISTINCT x.reason, ', ' ORDER BY x.reason), '') AS reasons
@@ -147,7 +110,7 @@ export async function recordingEpochs(db: SqlClient, recordingId: string, channe
 export async function epochBandPower(db: SqlClient, schema: CohortSchema, recordingId: string, channel: string, reference: string): Promise<Row[]> {
   if (!schema.has('epoch_band_power', 'recording_id', 'band', 'power')) return [];
   const ref = schema.has('epoch_band_power', 'reference') ? `AND reference = ${literal(reference)}` : '';
-  return tableToRows(
+  return rowsOf(
     await db.query(
       `SELECT epoch::DOUBLE AS epoch, band::VARCHAR AS band, power::DOUBLE AS power
        FROM ${COHORT}.epoch_band_power
