@@ -25,7 +25,6 @@
  */
 import normalCdf from '@stdlib/stats-base-dists-normal-cdf';
 import { Random } from '../stats/random.ts';
-import { medianInPlace } from '../stats/median.ts';
 
 /** Consistency factor of the MAD for the normal SD, 1/Φ⁻¹(3/4) (Iglewicz & Hoaglin 1993). */
 export const MAD_TO_SD = 1.4826;
@@ -47,29 +46,55 @@ function drawCount(n: number): number {
 
 const SEED = 0x6f75746c; // fixed: c_n must not change between runs
 
-/** Median and 1.4826·MAD of sample[0 … n) (reordered; dev is scratch of length n). */
-function medianAndSpread(sample: Float64Array, dev: Float64Array): [number, number] {
-  const med = medianInPlace(sample);
-  for (let i = 0; i < sample.length; i++) dev[i] = Math.abs(sample[i] - med);
-  return [med, MAD_TO_SD * medianInPlace(dev)];
+/**
+ * Median and 1.4826·MAD of the n values s[0 … n), sorted ascending, into out[at] and out[at + 1];
+ * the same order statistics (and the same mean of the two middle ones for even n) as
+ * medianInPlace takes. The deviations |s_i − median| fall up to the median and rise after it, so
+ * their k smallest come from merging the two runs outward from the median.
+ */
+function sortedMedianAndSpread(s: Float64Array, n: number, out: Float64Array, at: number): void {
+  const k = n >> 1;
+  const med = n % 2 === 1 ? s[k] : 0.5 * (s[k - 1] + s[k]);
+  let right = k; // first value above the median
+  while (right > 0 && s[right - 1] > med) right--;
+  while (right < n && s[right] <= med) right++;
+  let left = right - 1;
+  let previous = 0;
+  let current = 0;
+  for (let taken = 0; taken <= k; taken++) {
+    const dl = left >= 0 ? Math.abs(s[left] - med) : Infinity;
+    const dr = right < n ? Math.abs(s[right] - med) : Infinity;
+    previous = current;
+    if (dl <= dr) {
+      current = dl;
+      left--;
+    } else {
+      current = dr;
+      right++;
+    }
+  }
+  out[at] = med;
+  out[at + 1] = MAD_TO_SD * (n % 2 === 1 ? current : 0.5 * (previous + current));
 }
 
-/** m₊, s₊, m₋, s₋ of each draw (formula above), four per draw. */
+/**
+ * m₊, s₊, m₋, s₋ of each draw (formula above), four per draw. The n − 1 draws are sorted once,
+ * between the −∞ and +∞ slots of one buffer: r ∪ {+∞} and {−∞} ∪ r are then its two sorted windows.
+ */
 function conditionalTerms(n: number): Float64Array {
   const R = drawCount(n);
   const rng = new Random(SEED + n);
   const terms = new Float64Array(4 * R);
-  const r = new Float64Array(n - 1);
-  const sample = new Float64Array(n);
-  const dev = new Float64Array(n);
+  const s = new Float64Array(n + 1);
+  const r = s.subarray(1, n);
+  const withPlus = s.subarray(1);
+  s[0] = -Infinity;
+  s[n] = Infinity;
   for (let d = 0; d < R; d++) {
     for (let i = 0; i < n - 1; i++) r[i] = rng.normal();
-    sample.set(r);
-    sample[n - 1] = Infinity;
-    [terms[4 * d], terms[4 * d + 1]] = medianAndSpread(sample, dev);
-    sample.set(r);
-    sample[n - 1] = -Infinity;
-    [terms[4 * d + 2], terms[4 * d + 3]] = medianAndSpread(sample, dev);
+    r.sort();
+    sortedMedianAndSpread(withPlus, n, terms, 4 * d);
+    sortedMedianAndSpread(s, n, terms, 4 * d + 2);
   }
   return terms;
 }

@@ -22,7 +22,7 @@ export interface BoundedLeastSquaresProblem {
   upper: Float64Array;
   /** Writes the model at p into out (length n). */
   model(p: Float64Array, out: Float64Array): void;
-  /** Writes ∂m_i/∂p_q at p into jac, row-major: jac[i·nParams + q]. */
+  /** Writes ∂m_i/∂p_q at p into jac, column by column: jac[q·n + i]. */
   jacobian(p: Float64Array, jac: Float64Array): void;
 }
 
@@ -70,19 +70,7 @@ export function boundedLeastSquares(problem: BoundedLeastSquaresProblem): Bounde
   while (iterations < MAX_ITERATIONS && !converged) {
     iterations++;
     problem.jacobian(p, jac);
-    // JᵀJ (upper triangle, mirrored) and Jᵀr
-    jtj.fill(0);
-    grad.fill(0);
-    for (let i = 0; i < n; i++) {
-      const row = i * m;
-      const r = residual[i];
-      for (let a = 0; a < m; a++) {
-        const ja = jac[row + a];
-        grad[a] += ja * r;
-        for (let b = a; b < m; b++) jtj[a * m + b] += ja * jac[row + b];
-      }
-    }
-    for (let a = 0; a < m; a++) for (let b = 0; b < a; b++) jtj[a * m + b] = jtj[b * m + a];
+    normalEquations(jac, residual, n, m, jtj, grad);
     // active set: a parameter on a bound with the descent direction (+Jᵀr) pointing out is held
     let nFree = 0;
     let maxDiag = 0;
@@ -148,6 +136,48 @@ export function boundedLeastSquares(problem: BoundedLeastSquaresProblem): Bounde
     }
   }
   return { params: p, sse, iterations, converged };
+}
+
+/**
+ * JᵀJ (m × m, row-major, upper triangle mirrored) and Jᵀr of the n × m Jacobian stored column by
+ * column (jac[q·n + i]): each entry a dot product over the bins i in ascending order, two to four
+ * entries per pass over a column so its values are read once for each.
+ */
+function normalEquations(jac: Float64Array, r: Float64Array, n: number, m: number, jtj: Float64Array, grad: Float64Array): void {
+  for (let a = 0; a < m; a++) {
+    const ca = a * n;
+    let g = 0;
+    for (let i = 0; i < n; i++) g += jac[ca + i] * r[i];
+    grad[a] = g;
+    let b = a;
+    for (; b + 3 < m; b += 4) {
+      const c0 = b * n;
+      const c1 = c0 + n;
+      const c2 = c1 + n;
+      const c3 = c2 + n;
+      let s0 = 0;
+      let s1 = 0;
+      let s2 = 0;
+      let s3 = 0;
+      for (let i = 0; i < n; i++) {
+        const ja = jac[ca + i];
+        s0 += ja * jac[c0 + i];
+        s1 += ja * jac[c1 + i];
+        s2 += ja * jac[c2 + i];
+        s3 += ja * jac[c3 + i];
+      }
+      jtj[a * m + b] = jtj[b * m + a] = s0;
+      jtj[a * m + b + 1] = jtj[(b + 1) * m + a] = s1;
+      jtj[a * m + b + 2] = jtj[(b + 2) * m + a] = s2;
+      jtj[a * m + b + 3] = jtj[(b + 3) * m + a] = s3;
+    }
+    for (; b < m; b++) {
+      const cb = b * n;
+      let s = 0;
+      for (let i = 0; i < n; i++) s += jac[ca + i] * jac[cb + i];
+      jtj[a * m + b] = jtj[b * m + a] = s;
+    }
+  }
 }
 
 /**

@@ -1,4 +1,4 @@
-import { modelLog10, type AperiodicParams, type PeakParams } from './aperiodic-model.ts';
+import type { AperiodicParams, PeakParams } from './aperiodic-model.ts';
 import { boundedLeastSquares } from './bounded-least-squares.ts';
 
 /**
@@ -39,15 +39,24 @@ export function unpackParams(p: ArrayLike<number>, mode: AperiodicForm): { aperi
   return { aperiodic, peaks };
 }
 
-/** Fits the model; returns the final parameter vector (same layout as start). */
+/**
+ * Fits the model; returns the final parameter vector (same layout as start).
+ * The model is evaluated here, term for term as modelLog10 does, so that the peaks' Gaussian
+ * factors g of the last evaluation can serve the Jacobian at the same parameters (the solver asks
+ * for the Jacobian at the point it evaluated last), instead of being computed a second time.
+ */
 export function jointFit(problem: JointFitProblem): Float64Array {
   const { freqsHz, mode } = problem;
   const n = freqsHz.length;
   const nAp = aperiodicCount(mode);
   const nPar = problem.start.length;
+  const nPeaks = Math.floor((nPar - nAp) / 3);
   const lnF = new Float64Array(n);
   for (let i = 0; i < n; i++) lnF[i] = Math.log(freqsHz[i]);
   const ie = mode === 'knee' ? 2 : 1;
+  // g of peak j at bin i, gauss[j·n + i], as evaluated by the model at the parameters gaussAt
+  const gauss = new Float64Array(nPeaks * n);
+  const gaussAt = new Float64Array(nPar).fill(NaN);
 
   const result = boundedLeastSquares({
     y: problem.log10Power,
@@ -55,30 +64,54 @@ export function jointFit(problem: JointFitProblem): Float64Array {
     lower: problem.lower,
     upper: problem.upper,
     model(p, out) {
-      const { aperiodic, peaks } = unpackParams(p, mode);
-      modelLog10(freqsHz, aperiodic, peaks, out);
+      const offset = p[0];
+      const knee = mode === 'knee' ? p[1] : 0;
+      const exponent = p[ie];
+      for (let i = 0; i < n; i++) {
+        const f = freqsHz[i];
+        // L(f) = b − log10(k + f^χ) + Σ_j h_j·exp(−(f − c_j)²/(2w_j²)) (aperiodic-model.ts)
+        let v = offset - Math.log10(knee + Math.pow(f, exponent));
+        for (let j = 0; j < nPeaks; j++) {
+          const q = nAp + 3 * j;
+          const d = f - p[q];
+          const w = p[q + 2];
+          const g = Math.exp((-d * d) / (2 * w * w));
+          gauss[j * n + i] = g;
+          v += p[q + 1] * g;
+        }
+        out[i] = v;
+      }
+      gaussAt.set(p);
     },
     jacobian(p, jac) {
       const knee = mode === 'knee' ? p[1] : 0;
       const exponent = p[ie];
       for (let i = 0; i < n; i++) {
-        const row = i * nPar;
         // ∂L/∂b = 1; ∂L/∂k = −1/(ln10·(k + f^χ)); ∂L/∂χ = −f^χ·ln f/(ln10·(k + f^χ))
         const fx = Math.exp(exponent * lnF[i]);
         const denom = LN10 * (knee + fx);
-        jac[row] = 1;
-        if (mode === 'knee') jac[row + 1] = -1 / denom;
-        jac[row + ie] = (-fx * lnF[i]) / denom;
-        // with g = exp(−(f−c)²/(2w²)): ∂/∂c = h·g·(f−c)/w², ∂/∂h = g, ∂/∂w = h·g·(f−c)²/w³
-        const f = freqsHz[i];
-        for (let q = nAp; q + 2 < nPar; q += 3) {
-          const d = f - p[q];
-          const h = p[q + 1];
-          const w = p[q + 2];
-          const g = Math.exp((-d * d) / (2 * w * w));
-          jac[row + q] = (h * g * d) / (w * w);
-          jac[row + q + 1] = g;
-          jac[row + q + 2] = (h * g * d * d) / (w * w * w);
+        jac[i] = 1;
+        if (mode === 'knee') jac[n + i] = -1 / denom;
+        jac[ie * n + i] = (-fx * lnF[i]) / denom;
+      }
+      let cached = true;
+      for (let q = 0; q < nPar; q++) if (gaussAt[q] !== p[q]) cached = false;
+      // with g = exp(−(f−c)²/(2w²)): ∂/∂c = h·g·(f−c)/w², ∂/∂h = g, ∂/∂w = h·g·(f−c)²/w³
+      for (let j = 0; j < nPeaks; j++) {
+        const q = nAp + 3 * j;
+        const c = p[q];
+        const h = p[q + 1];
+        const w = p[q + 2];
+        const w2 = w * w;
+        const w3 = w2 * w;
+        const cc = q * n;
+        for (let i = 0; i < n; i++) {
+          const d = freqsHz[i] - c;
+          const g = cached ? gauss[j * n + i] : Math.exp((-d * d) / (2 * w * w));
+          const hgd = h * g * d;
+          jac[cc + i] = hgd / w2;
+          jac[cc + n + i] = g;
+          jac[cc + 2 * n + i] = (hgd * d) / w3;
         }
       }
     },
