@@ -8,6 +8,7 @@ import type { DuckDBConnection, DuckDBInstance, DuckDBValue } from '@duckdb/node
 import type { RecordingBundle, QualityRowIn } from './bundle.ts';
 import { appendColumns, type CellValue } from './chunks.ts';
 import { appendEpochSpectra } from './epoch-spectra-rows.ts';
+import { appendFitRows } from './fit-rows.ts';
 import { StoreError } from './errors.ts';
 import { ErrorRows } from './error-rows.ts';
 import { recordingIdFor, runIdentity } from './identity.ts';
@@ -442,38 +443,7 @@ async function writeBundleTables(c: DuckDBConnection, id: string, b: RecordingBu
 
   await appendEpochSpectra(c, id, b.epochSpectra ?? []);
 
-  const ap = b.aperiodic;
-  await appendColumns(c, tableDef('aperiodic'), ap.length, {
-    recording_id: () => id,
-    channel: (i) => ap[i].channel,
-    stage: (i) => ap[i].stage,
-    reference: (i) => ap[i].reference,
-    averaging: (i) => ap[i].averaging,
-    estimator: (i) => ap[i].estimator ?? 'welch',
-    method: (i) => ap[i].method,
-    fit_lo_hz: (i) => ap[i].fitLoHz,
-    fit_hi_hz: (i) => ap[i].fitHiHz,
-    offset: (i) => ap[i].offset,
-    exponent: (i) => ap[i].exponent,
-    knee: (i) => ap[i].knee,
-    r2: (i) => ap[i].r2,
-    rmse: (i) => ap[i].rmse,
-    n_peaks: (i) => ap[i].nPeaks,
-  });
-
-  const pk = b.peaks;
-  await appendColumns(c, tableDef('peaks'), pk.length, {
-    recording_id: () => id,
-    channel: (i) => pk[i].channel,
-    stage: (i) => pk[i].stage,
-    reference: (i) => pk[i].reference,
-    averaging: (i) => pk[i].averaging,
-    estimator: (i) => pk[i].estimator ?? 'welch',
-    method: (i) => pk[i].method,
-    center_hz: (i) => pk[i].centerHz,
-    height: (i) => pk[i].height,
-    bandwidth_hz: (i) => pk[i].bandwidthHz,
-  });
+  await appendFitRows(c, id, b.aperiodic, b.peaks);
 
   const q = b.quality;
   await appendColumns(c, tableDef('quality'), q.length, { recording_id: () => id, ...qualitySources(q) });

@@ -13,7 +13,7 @@ import { writeSyntheticDatabase } from '../../src/simulation/synthetic-store.ts'
 const repo = path.resolve(import.meta.dirname, '../..');
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-planning-cli-'));
 const db = path.join(dir, 'cohort.duckdb');
-const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/bandwise.mjs'), ...args], { encoding: 'utf8' });
+const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8' });
 const contrast = (name: string, json: object) => {
   const file = path.join(dir, name);
   writeFileSync(file, JSON.stringify(json));
