@@ -50,6 +50,7 @@ export async function refuseSharedRecordings(recordings: readonly CohortRecordin
       `rows ${listed(rows.map((r) => String(r.row)))} (subjects ${listed(rows.map((r) => r.subject + (r.session ? ` session ${r.session}` : '')))}) hold the same recording ` +
       `(files ${listed(rows.map(shown))}, SHA-256 ${sha.slice(0, 12)}…); it is refused for all of them: give each subject its own recording`;
     // each row's own message (its ingest_errors row), naming all of them
-    for (const r of rows) r.problem = { column: 'recording', message: `row ${r.row} (subject ${r.subject}${r.session ? ` session ${r.session}` : ''}): ${all}` };
+    for (const r of rows)
+      r.problem = { column: 'recording', message: `row ${r.row} (subject ${r.subject}${r.session ? ` session ${r.session}` : ''}): ${all}` };
   }
 }

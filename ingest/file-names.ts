@@ -41,7 +41,10 @@ export function fileNamer(form: FileNameForm, root: string): FileNamer {
     scoringSource: (text) => (text == null ? null : form === 'hash' ? text.split(':')[0] : text),
     message: (rec, text) => {
       let out = text;
-      for (const [p, what] of [[rec.recordingPath, 'file'], [rec.scoringPath, 'scoring file']] as const) {
+      for (const [p, what] of [
+        [rec.recordingPath, 'file'],
+        [rec.scoringPath, 'scoring file'],
+      ] as const) {
         if (!p) continue;
         const name = shown(rec, p, what);
         // every spelling of the path, longest first: absolute, as given, relative to the root, the bare name

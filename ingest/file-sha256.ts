@@ -7,7 +7,7 @@ const PIECE_BYTES = 1 << 20;
 /** Feeds bytes [from, end of file) of an open file into `hash`. */
 export async function hashRestOfFile(fh: FileHandle, hash: Hash, from: number): Promise<void> {
   const buf = new Uint8Array(PIECE_BYTES);
-  for (let position = from; ; ) {
+  for (let position = from; ;) {
     const { bytesRead } = await fh.read(buf, 0, buf.length, position);
     if (bytesRead === 0) return;
     hash.update(buf.subarray(0, bytesRead));

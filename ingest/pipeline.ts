@@ -64,7 +64,10 @@ export async function processOpened(
     const hyp = scoring.hypnogram;
     const epochS = hyp.epochS;
     const selected = selectChannels(edf, rec, params);
-    const { plans, skips } = planReferences(selected.map((s) => s.montage), { references: params.references, bipolarPairs: params.bipolarPairs });
+    const { plans, skips } = planReferences(
+      selected.map((s) => s.montage),
+      { references: params.references, bipolarPairs: params.bipolarPairs },
+    );
     const recordedNames = selected.map((s) => s.name);
     const nGrid = Math.max(0, Math.ceil(edf.durationS / epochS - 1e-6));
     const placed = placeChannels(selected, rec.positions);
@@ -90,10 +93,25 @@ export async function processOpened(
     // ---- per reference and channel: outliers within stage, stage averages, fits ----
     const stageIdx = Int32Array.from(stages, (s) => SCORED_STAGES.indexOf(s as (typeof SCORED_STAGES)[number]));
     const rows: FinishWork = { params, stageIdx, nGrid, rejections: [], spectra: [], aperiodic: [], peaks: [], quality: [] };
-    const bandPowers = stagePass(states, rows, params.bands.map((b) => b.name), (done, total) => onProgress?.({ step: 'spectra', done, total }));
+    const bandPowers = stagePass(
+      states,
+      rows,
+      params.bands.map((b) => b.name),
+      (done, total) => onProgress?.({ step: 'spectra', done, total }),
+    );
     if (params.irasa) {
       onProgress?.({ step: 'irasa', done: 0, total: nGrid });
-      const irasa = await irasaPass(edf, selected.map((s) => s.signal.index), selected.map((s) => s.toUv), states, stageIdx, epochS, params, nGrid, (d) => onProgress?.({ step: 'irasa', done: d, total: nGrid }));
+      const irasa = await irasaPass(
+        edf,
+        selected.map((s) => s.signal.index),
+        selected.map((s) => s.toUv),
+        states,
+        stageIdx,
+        epochS,
+        params,
+        nGrid,
+        (d) => onProgress?.({ step: 'irasa', done: d, total: nGrid }),
+      );
       rows.aperiodic.push(...irasa.rows);
       warnings.push(...irasa.notes);
     }
@@ -103,8 +121,21 @@ export async function processOpened(
     rows.quality.push(...recordingQuality(measures, selected, rec, params, read.epochsSeen, epochS));
 
     const bundle = assembleBundle({
-      runId, rec, opened, scoring, status: recordingStatus(edf, hyp, warnings), epochS, stages, onsetS, dropReason: read.dropReason, channels: channelRows(selected, placed.placements),
-      rows, bandPowers, referenceSkips: skips, measures, warnings,
+      runId,
+      rec,
+      opened,
+      scoring,
+      status: recordingStatus(edf, hyp, warnings),
+      epochS,
+      stages,
+      onsetS,
+      dropReason: read.dropReason,
+      channels: channelRows(selected, placed.placements),
+      rows,
+      bandPowers,
+      referenceSkips: skips,
+      measures,
+      warnings,
     });
     // each epoch's spectrum, compact, on request (--epoch-spectra)
     if (params.epochSpectra) bundle.epochSpectra = epochSpectraBlocks(states, params.epochSpectra.maxHz);

@@ -15,7 +15,11 @@ export type ProcessedBundle = Extract<WorkReply, { kind: 'done' }>['bundle'];
 /** A recording that failed in a worker: the pipeline step and message. */
 export class WorkerTaskError extends Error {
   override name = 'WorkerTaskError';
-  constructor(readonly step: string, readonly field: string | null, message: string) {
+  constructor(
+    readonly step: string,
+    readonly field: string | null,
+    message: string,
+  ) {
     super(message);
   }
 }

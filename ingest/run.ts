@@ -150,7 +150,10 @@ export async function runIngest(
     const begun = await store.beginRun(options.toolVersion ?? packageVersion(), params, { shard: shard ? `${shard.k}/${shard.n}` : null });
     if (begun.runId !== runId) throw new Error(`run id ${begun.runId} from the store, ${runId} from the parameters`);
     const names = cohort.columns.map((c) => c.name);
-    await store.writeParticipants(names, cohort.participants.map((p) => names.map((n) => p[n] ?? null)));
+    await store.writeParticipants(
+      names,
+      cohort.participants.map((p) => names.map((n) => p[n] ?? null)),
+    );
     progress?.({ kind: 'start', runId, reused: begun.reused, total: recordings.length });
     return store;
   });
@@ -197,7 +200,8 @@ export async function runIngest(
             }
             // stored before under another form of its name (--file-names changed): the name follows the form asked now
             const names = stored && { fileName: namer.stored(rec, sha), scoringSource: namer.scoringSource(stored.scoringSource) };
-            if (stored && names && (stored.fileName !== names.fileName || stored.scoringSource !== names.scoringSource)) await store.renameRecording(runId, sha, names);
+            if (stored && names && (stored.fileName !== names.fileName || stored.scoringSource !== names.scoringSource))
+              await store.renameRecording(runId, sha, names);
             return stored !== null;
           },
         });

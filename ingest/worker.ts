@@ -46,7 +46,13 @@ structuredClone(probe, { transfer: [probe] });
 /** answers awaited, by request id */
 const waiting = new Map<number, (stored: boolean) => void>();
 
-const failed = (id: number, step: string, field: string | null, e: unknown): WorkReply => ({ id, kind: 'failed', step, field, message: e instanceof Error ? e.message : String(e) });
+const failed = (id: number, step: string, field: string | null, e: unknown): WorkReply => ({
+  id,
+  kind: 'failed',
+  step,
+  field,
+  message: e instanceof Error ? e.message : String(e),
+});
 
 const failure = (id: number, e: unknown): WorkReply =>
   failed(id, e instanceof PipelineError ? e.step : 'process', e instanceof PipelineError ? e.field : null, e);
@@ -68,12 +74,18 @@ async function processOne(req: ProcessRequest): Promise<void> {
   }
   try {
     let last = 0;
-    const bundle = await processOpened(req.rec, opened, req.params, (p) => {
-      const now = Date.now();
-      if (now - last < 200 && p.done < p.total) return; // at most 5 progress messages a second
-      last = now;
-      port.postMessage({ id: req.id, kind: 'progress', step: p.step, done: p.done, total: p.total } satisfies WorkReply);
-    }, req.runId);
+    const bundle = await processOpened(
+      req.rec,
+      opened,
+      req.params,
+      (p) => {
+        const now = Date.now();
+        if (now - last < 200 && p.done < p.total) return; // at most 5 progress messages a second
+        last = now;
+        port.postMessage({ id: req.id, kind: 'progress', step: p.step, done: p.done, total: p.total } satisfies WorkReply);
+      },
+      req.runId,
+    );
     port.postMessage({ id: req.id, kind: 'done', bundle } satisfies WorkReply, bundleTransferList(bundle));
   } catch (e) {
     port.postMessage(failure(req.id, e) satisfies WorkReply);

@@ -68,7 +68,11 @@ function parseRecordingName(name: string, rel: string, problems: CohortProblem[]
     const value = dash > 0 ? part.slice(dash + 1) : '';
     const order = (ENTITY_ORDER as readonly string[]).indexOf(key);
     if (order < 0 || value === '') {
-      problems.push({ row: null, column: null, message: `${rel}: '${part}' is not an EEG file-name entity (expected sub-, ses-, task-, acq-, run- in that order)` });
+      problems.push({
+        row: null,
+        column: null,
+        message: `${rel}: '${part}' is not an EEG file-name entity (expected sub-, ses-, task-, acq-, run- in that order)`,
+      });
       return null;
     }
     if (order <= last) {
@@ -76,7 +80,11 @@ function parseRecordingName(name: string, rel: string, problems: CohortProblem[]
       return null;
     }
     if (key === 'run' ? !BIDS_INDEX.test(value) : !BIDS_LABEL.test(value)) {
-      problems.push({ row: null, column: null, message: `${rel}: '${part}' — a ${key === 'run' ? 'run index must be a non-negative integer' : 'label must be alphanumeric'}` });
+      problems.push({
+        row: null,
+        column: null,
+        message: `${rel}: '${part}' — a ${key === 'run' ? 'run index must be a non-negative integer' : 'label must be alphanumeric'}`,
+      });
       return null;
     }
     last = order;
@@ -172,16 +180,23 @@ export async function discoverBids(folder: string): Promise<Cohort> {
 
   // participants.tsv
   const ptsvText = await readText(path.join(root, 'participants.tsv'));
-  if (ptsvText === null) throw new CohortError(path.join(folder, 'participants.tsv'), [{ row: null, column: null, message: 'participants.tsv is missing or unreadable: it lists the subjects and their group and covariates' }]);
+  if (ptsvText === null)
+    throw new CohortError(path.join(folder, 'participants.tsv'), [
+      { row: null, column: null, message: 'participants.tsv is missing or unreadable: it lists the subjects and their group and covariates' },
+    ]);
   const ptsv = parseDelimited(ptsvText, '\t');
   const header = ptsv.header.map((h) => h.trim());
   const idCol = header.indexOf('participant_id');
-  if (idCol < 0) throw new CohortError(path.join(folder, 'participants.tsv'), [{ row: null, column: 'participant_id', message: `required column 'participant_id' is missing (header: ${header.join(', ')})` }]);
+  if (idCol < 0)
+    throw new CohortError(path.join(folder, 'participants.tsv'), [
+      { row: null, column: 'participant_id', message: `required column 'participant_id' is missing (header: ${header.join(', ')})` },
+    ]);
   const groupCol = header.indexOf('group');
   const covariateNames = header.filter((h, i) => i !== idCol && i !== groupCol);
   const pRows = ptsv.rows.filter((r) => r.cells.length === header.length);
   ptsv.rows.forEach((r, i) => {
-    if (r.cells.length !== header.length) problems.push({ row: i + 1, column: null, message: `participants.tsv: row ${i + 1} has ${r.cells.length} fields, the header has ${header.length}` });
+    if (r.cells.length !== header.length)
+      problems.push({ row: i + 1, column: null, message: `participants.tsv: row ${i + 1} has ${r.cells.length} fields, the header has ${header.length}` });
   });
   const kinds = new Map<string, ColumnKind>();
   for (const name of covariateNames) kinds.set(name, columnKind(pRows.map((r) => cellValue(r.cells[header.indexOf(name)]))));
@@ -193,7 +208,11 @@ export async function discoverBids(folder: string): Promise<Cohort> {
     const id = cellValue(r.cells[idCol]);
     const m = id === null ? null : /^sub-(.+)$/.exec(id);
     if (!m || !BIDS_LABEL.test(m[1])) {
-      problems.push({ row, column: 'participant_id', message: `participants.tsv: participant_id '${id ?? ''}' must be 'sub-<label>' with an alphanumeric label` });
+      problems.push({
+        row,
+        column: 'participant_id',
+        message: `participants.tsv: participant_id '${id ?? ''}' must be 'sub-<label>' with an alphanumeric label`,
+      });
       return;
     }
     if (subjects.has(m[1])) {
@@ -201,7 +220,12 @@ export async function discoverBids(folder: string): Promise<Cohort> {
       return;
     }
     const group = groupCol >= 0 ? cellValue(r.cells[groupCol]) : null;
-    if (groupCol >= 0 && group === null) problems.push({ row, column: 'group', message: `participants.tsv: group of '${id}' is empty (the table has a group column, so every subject needs one)` });
+    if (groupCol >= 0 && group === null)
+      problems.push({
+        row,
+        column: 'group',
+        message: `participants.tsv: group of '${id}' is empty (the table has a group column, so every subject needs one)`,
+      });
     const covariates: Record<string, number | string | null> = {};
     for (const name of covariateNames) covariates[name] = typedValue(cellValue(r.cells[header.indexOf(name)]), kinds.get(name)!);
     subjects.set(m[1], { row, group, covariates });
@@ -226,7 +250,8 @@ export async function discoverBids(folder: string): Promise<Cohort> {
       if (inner.name === 'eeg') eegDirs.push({ dir: path.join(subDir, 'eeg'), session: null });
       else if (inner.name.startsWith('ses-')) {
         const session = inner.name.slice(4);
-        if (!BIDS_LABEL.test(session)) problems.push({ row: null, column: null, message: `folder '${entry.name}/${inner.name}': a session label must be alphanumeric` });
+        if (!BIDS_LABEL.test(session))
+          problems.push({ row: null, column: null, message: `folder '${entry.name}/${inner.name}': a session label must be alphanumeric` });
         else eegDirs.push({ dir: path.join(subDir, inner.name, 'eeg'), session });
       }
     }
@@ -256,7 +281,11 @@ export async function discoverBids(folder: string): Promise<Cohort> {
           continue;
         }
         if ((parsed.entities.get('ses') ?? null) !== session) {
-          problems.push({ row: null, column: null, message: `${rel}: ${parsed.entities.has('ses') ? `ses-${parsed.entities.get('ses')}` : 'no ses- entity'} in the file name, but the folder is ${session === null ? 'not a session folder' : `ses-${session}`}` });
+          problems.push({
+            row: null,
+            column: null,
+            message: `${rel}: ${parsed.entities.has('ses') ? `ses-${parsed.entities.get('ses')}` : 'no ses- entity'} in the file name, but the folder is ${session === null ? 'not a session folder' : `ses-${session}`}`,
+          });
           continue;
         }
         withData.add(subject);
@@ -286,7 +315,12 @@ export async function discoverBids(folder: string): Promise<Cohort> {
     }
   }
   for (const [subject, p] of subjects) {
-    if (!withData.has(subject)) problems.push({ row: p.row, column: 'participant_id', message: `participants.tsv: 'sub-${subject}' has no EEG recording (sub-${subject}/[ses-*/]eeg/*_eeg.edf or .bdf)` });
+    if (!withData.has(subject))
+      problems.push({
+        row: p.row,
+        column: 'participant_id',
+        message: `participants.tsv: 'sub-${subject}' has no EEG recording (sub-${subject}/[ses-*/]eeg/*_eeg.edf or .bdf)`,
+      });
   }
   if (problems.length) throw new CohortError(folder, problems);
 
@@ -301,7 +335,14 @@ export async function discoverBids(folder: string): Promise<Cohort> {
 }
 
 /** The positions of a recording from the electrodes file that goes with it and its _coordsystem.json (required by BIDS); null without one. */
-async function bidsPositions(root: string, dir: string, fileNames: readonly string[], entities: ReadonlyMap<string, string>, rel: string, problems: CohortProblem[]): Promise<ElectrodeLayout | null> {
+async function bidsPositions(
+  root: string,
+  dir: string,
+  fileNames: readonly string[],
+  entities: ReadonlyMap<string, string>,
+  rel: string,
+  problems: CohortProblem[],
+): Promise<ElectrodeLayout | null> {
   const found = bidsElectrodesFile(fileNames, entities);
   if (found === null) return null;
   if (typeof found !== 'string') {
@@ -312,7 +353,11 @@ async function bidsPositions(root: string, dir: string, fileNames: readonly stri
   const coordName = bidsCoordsystemName(found);
   const coordText = await readText(path.join(dir, coordName));
   if (coordText === null) {
-    problems.push({ row: null, column: null, message: `${electrodesRel}: its ${coordName} is missing (BIDS requires one with every electrodes file: it gives the unit and the coordinate system)` });
+    problems.push({
+      row: null,
+      column: null,
+      message: `${electrodesRel}: its ${coordName} is missing (BIDS requires one with every electrodes file: it gives the unit and the coordinate system)`,
+    });
     return null;
   }
   try {

@@ -26,7 +26,8 @@ export function checkContrastColumns(cohort: Cohort, spec: ContrastColumns): Con
   const known = cohort.columns.map((c) => `'${c.name}'`).join(', ') || '(none)';
   const file = cohort.root;
 
-  const valueOf = (r: Cohort['recordings'][number], column: string) => (column === 'group' ? r.group : column === 'subject' ? r.subject : (r.covariates[column] ?? null));
+  const valueOf = (r: Cohort['recordings'][number], column: string) =>
+    column === 'group' ? r.group : column === 'subject' ? r.subject : (r.covariates[column] ?? null);
 
   const groupCounts: Record<string, number> = {};
   const groupColumn = spec.groupColumn ?? (spec.groups ? 'group' : undefined);
@@ -38,9 +39,13 @@ export function checkContrastColumns(cohort: Cohort, spec: ContrastColumns): Con
         const v = valueOf(r, groupColumn);
         if (v !== null) groupCounts[String(v)] = (groupCounts[String(v)] ?? 0) + 1;
       }
-      const present = Object.keys(groupCounts).map((g) => `'${g}'`).join(', ') || '(none)';
+      const present =
+        Object.keys(groupCounts)
+          .map((g) => `'${g}'`)
+          .join(', ') || '(none)';
       for (const g of spec.groups ?? []) {
-        if (!groupCounts[g]) problems.push({ row: null, column: groupColumn, message: `group '${g}' has no recordings in column '${groupColumn}' (values present: ${present})` });
+        if (!groupCounts[g])
+          problems.push({ row: null, column: groupColumn, message: `group '${g}' has no recordings in column '${groupColumn}' (values present: ${present})` });
       }
       if (spec.groups && new Set(spec.groups).size !== spec.groups.length) {
         problems.push({ row: null, column: groupColumn, message: `groups are named twice: ${spec.groups.join(', ')}` });
@@ -53,7 +58,11 @@ export function checkContrastColumns(cohort: Cohort, spec: ContrastColumns): Con
     if (!c) problems.push({ row: null, column: spec.covariate, message: `unknown covariate column '${spec.covariate}'; the cohort's columns are ${known}` });
     else if (c.kind !== 'number') {
       const example = cohort.recordings.map((r) => valueOf(r, spec.covariate!)).find((v) => v !== null && typeof v !== 'number');
-      problems.push({ row: null, column: spec.covariate, message: `covariate '${spec.covariate}' is not numeric${example !== undefined ? ` (it holds values such as '${example}')` : ''}` });
+      problems.push({
+        row: null,
+        column: spec.covariate,
+        message: `covariate '${spec.covariate}' is not numeric${example !== undefined ? ` (it holds values such as '${example}')` : ''}`,
+      });
     }
   }
   for (const n of spec.nuisance ?? []) {

@@ -11,7 +11,9 @@ export async function discoverCohort(pathOrFolder: string, options: ReadCohortOp
   try {
     isDir = (await stat(pathOrFolder)).isDirectory();
   } catch (e) {
-    throw new CohortError(pathOrFolder, [{ row: null, column: null, message: `no cohort table or BIDS folder here: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}` }]);
+    throw new CohortError(pathOrFolder, [
+      { row: null, column: null, message: `no cohort table or BIDS folder here: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}` },
+    ]);
   }
   return isDir ? discoverBids(pathOrFolder) : readCohortTable(pathOrFolder, options);
 }

@@ -99,5 +99,10 @@ export function bidsElectrodesFile(folderFiles: readonly string[], recording: Re
 /** The `_coordsystem.json` name that goes with a BIDS electrodes file (the same entities without run). */
 export function bidsCoordsystemName(electrodesName: string): string {
   const e = electrodesEntities(electrodesName)!;
-  return [...e].filter(([k]) => k !== 'run').map(([k, v]) => `${k}-${v}`).join('_') + '_coordsystem.json';
+  return (
+    [...e]
+      .filter(([k]) => k !== 'run')
+      .map(([k, v]) => `${k}-${v}`)
+      .join('_') + '_coordsystem.json'
+  );
 }

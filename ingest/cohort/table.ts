@@ -70,7 +70,9 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
   try {
     text = await readFile(abs, 'utf8');
   } catch (e) {
-    throw new CohortError(file, [{ row: null, column: null, message: `cannot read the cohort table: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}` }]);
+    throw new CohortError(file, [
+      { row: null, column: null, message: `cannot read the cohort table: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}` },
+    ]);
   }
   let table;
   try {
@@ -110,7 +112,13 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
   const recordings: CohortRecording[] = [];
   // one read of each positions file, however many rows name it
   const positionFiles = new Map<string, Promise<ElectrodeLayout>>();
-  const readPositions = async (abs: string, given: string, row: number, rec: CohortRecording, report: (p: CohortProblem & { column: string }) => void): Promise<void> => {
+  const readPositions = async (
+    abs: string,
+    given: string,
+    row: number,
+    rec: CohortRecording,
+    report: (p: CohortProblem & { column: string }) => void,
+  ): Promise<void> => {
     let layout = positionFiles.get(abs);
     if (!layout) positionFiles.set(abs, (layout = readPositionsFile(abs, given, options.positionsUnit ?? 'mm')));
     try {
@@ -146,7 +154,16 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
     const scoringPath = v.scoring === null ? null : path.resolve(folder, v.scoring);
     const covariates: Record<string, number | string | null> = {};
     for (const name of covariateNames) covariates[name] = typedValue(at(r.cells, name), kinds.get(name)!);
-    const rec: CohortRecording = { row, subject: v.subject, session: v.session, group: hasGroup ? v.group : null, recordingPath, recordingAsGiven: v.recording, scoringPath, covariates };
+    const rec: CohortRecording = {
+      row,
+      subject: v.subject,
+      session: v.session,
+      group: hasGroup ? v.group : null,
+      recordingPath,
+      recordingAsGiven: v.recording,
+      scoringPath,
+      covariates,
+    };
     recordings.push(rec);
     // a problem of this row alone: fatal, or kept on the row for ingest to record
     const rowProblem = (p: CohortProblem & { column: string }) => {
@@ -157,7 +174,8 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
       const [off, on] = LIGHTS.map((n) => {
         const text = at(r.cells, n);
         const cell = text === null ? null : lightsCell(text);
-        if (cell === undefined) rowProblem({ row, column: n, message: `'${text}' is neither a clock time (HH:MM or HH:MM:SS, 24-hour) nor seconds (≥ 0) from the recording start` });
+        if (cell === undefined)
+          rowProblem({ row, column: n, message: `'${text}' is neither a clock time (HH:MM or HH:MM:SS, 24-hour) nor seconds (≥ 0) from the recording start` });
         return cell ?? null;
       });
       rec.lights = { off, on };
@@ -166,7 +184,11 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
     const key = `${v.subject}\u0000${v.session ?? ''}`;
     const first = pairRow.get(key);
     if (first !== undefined) {
-      rowProblem({ row, column: 'subject', message: `subject '${v.subject}'${v.session === null ? ' (no session)' : ` session '${v.session}'`} is already in row ${first}` });
+      rowProblem({
+        row,
+        column: 'subject',
+        message: `subject '${v.subject}'${v.session === null ? ' (no session)' : ` session '${v.session}'`} is already in row ${first}`,
+      });
     } else pairRow.set(key, row);
 
     fileChecks.push(() => checkFile(recordingPath, v.recording, row, 'recording', rowProblem));
@@ -185,7 +207,12 @@ export async function readCohortTable(file: string, options: ReadCohortOptions =
   fileChecks.length = 0; // each check holds its row's scope
   positionFiles.clear();
 
-  const participants = participantsOf(recordings.filter((r) => !r.problem), hasGroup, covariateNames, problems);
+  const participants = participantsOf(
+    recordings.filter((r) => !r.problem),
+    hasGroup,
+    covariateNames,
+    problems,
+  );
   if (problems.length) {
     problems.sort((a, b) => (a.row ?? 0) - (b.row ?? 0));
     throw new CohortError(file, problems);
@@ -202,10 +229,22 @@ async function checkFile(abs: string, given: string, row: number, column: string
   try {
     const s = await stat(abs);
     // a folder or a FIFO in place of the file: never opened (reading a FIFO would block)
-    if (!s.isFile()) report({ row, column, message: `'${given}' is not a file but a ${s.isDirectory() ? 'folder' : s.isFIFO() ? 'FIFO (named pipe)' : 'special file'} (${abs})` });
+    if (!s.isFile())
+      report({
+        row,
+        column,
+        message: `'${given}' is not a file but a ${s.isDirectory() ? 'folder' : s.isFIFO() ? 'FIFO (named pipe)' : 'special file'} (${abs})`,
+      });
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
-    report({ row, column, message: code === 'ENOENT' || code === undefined ? `${column} file not found: '${given}' (${abs})` : `${column} file cannot be examined (${code}): '${given}' (${abs})` });
+    report({
+      row,
+      column,
+      message:
+        code === 'ENOENT' || code === undefined
+          ? `${column} file not found: '${given}' (${abs})`
+          : `${column} file cannot be examined (${code}): '${given}' (${abs})`,
+    });
   }
 }
 
@@ -219,7 +258,11 @@ function participantsOf(recordings: CohortRecording[], hasGroup: boolean, covari
     const known = bySubject.get(r.subject);
     if (known) {
       if (hasGroup && known.record.group !== r.group) {
-        problems.push({ row: r.row, column: 'group', message: `subject '${r.subject}' is in group '${r.group}' here but in group '${known.record.group}' in row ${known.row}` });
+        problems.push({
+          row: r.row,
+          column: 'group',
+          message: `subject '${r.subject}' is in group '${r.group}' here but in group '${known.record.group}' in row ${known.row}`,
+        });
       }
       continue;
     }

@@ -57,7 +57,8 @@ export async function readAnnotationSignals(fh: FileHandle, file: string, header
     if (wholeRecords) {
       const want = (r1 - r0) * recB;
       const got = await readFully(fh, file, buf, want, header.headerBytes + r0 * recB);
-      if (got < want) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r0 + 1}`, { record: r0 });
+      if (got < want)
+        throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r0 + 1}`, { record: r0 });
       hash?.update(buf.subarray(0, want));
     } else {
       // Positioned reads of just the annotation bytes of each record, issued together.
@@ -69,7 +70,14 @@ export async function readAnnotationSignals(fh: FileHandle, file: string, header
           const start = (r - r0) * stride + within[k];
           reads.push(
             readFully(fh, file, buf.subarray(start, start + width), width, header.headerBytes + r * recB + byteOffset[sig.index]).then((got) => {
-              if (got < width) throw new EdfFormatError(file, 'file', String(got), `file was truncated while reading: record ${r + 1} gave ${got} of ${width} annotation bytes`, { record: r });
+              if (got < width)
+                throw new EdfFormatError(
+                  file,
+                  'file',
+                  String(got),
+                  `file was truncated while reading: record ${r + 1} gave ${got} of ${width} annotation bytes`,
+                  { record: r },
+                );
             }),
           );
         }
@@ -121,7 +129,13 @@ function talsOfBatch(
         } else if (isPlus) {
           // named by position and onset only: the text may hold a name
           const seen = tk === undefined ? 'no annotation list' : `TAL 1 at onset ${tk.onsetS}`;
-          throw new EdfFormatError(file, 'annotations', tk === undefined ? '' : String(tk.onsetS), `${header.variant} record starts with ${seen} instead of a time-keeping TAL (onset, then an empty text)`, { record: r, signal: { index: sig.index, label: sig.label } });
+          throw new EdfFormatError(
+            file,
+            'annotations',
+            tk === undefined ? '' : String(tk.onsetS),
+            `${header.variant} record starts with ${seen} instead of a time-keeping TAL (onset, then an empty text)`,
+            { record: r, signal: { index: sig.index, label: sig.label } },
+          );
         }
       }
       for (let t = firstTal; t < tals.length; t++) {

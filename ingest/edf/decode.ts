@@ -50,7 +50,17 @@ export class DecodePlan {
  * many were at or beyond the digital limits. A plain function, so the engine optimises the loop
  * fully (it is the inner loop of every ingest; the generator around it is not).
  */
-function decodeSamples(src: Int16Array, from: number, dst: Float32Array, to: number, count: number, pmin: number, dmin: number, dmax: number, gain: number): number {
+function decodeSamples(
+  src: Int16Array,
+  from: number,
+  dst: Float32Array,
+  to: number,
+  count: number,
+  pmin: number,
+  dmin: number,
+  dmax: number,
+  gain: number,
+): number {
   let atLimits = 0;
   for (let i = 0; i < count; i++) {
     const v = src[from + i];
@@ -64,7 +74,17 @@ function decodeSamples(src: Int16Array, from: number, dst: Float32Array, to: num
  * The same for 24-bit BDF samples: sample `from` starts at byte 3·from of src; each is 3 bytes of
  * two's complement, least significant first (BDF, shared/STANDARDS.md), sign-extended by the shifts.
  */
-function decodeSamples24(src: Uint8Array, from: number, dst: Float32Array, to: number, count: number, pmin: number, dmin: number, dmax: number, gain: number): number {
+function decodeSamples24(
+  src: Uint8Array,
+  from: number,
+  dst: Float32Array,
+  to: number,
+  count: number,
+  pmin: number,
+  dmin: number,
+  dmax: number,
+  gain: number,
+): number {
   let atLimits = 0;
   for (let i = 0, b = 3 * from; i < count; i++, b += 3) {
     // dig = b0 + 256·b1 + 65536·b2, minus 2^24 when bit 23 is set
@@ -87,7 +107,17 @@ export function decodeRecord(chunk: Int16Array, recBase: number, rr: number, p: 
     const from = Math.max(first, rr * spr);
     const to = Math.min(first + p.perEpoch[k], (rr + 1) * spr);
     if (from >= to) continue;
-    limits[k] += decodeSamples(chunk, recBase + p.sampleOffset[k] + (from - rr * spr), out[k], from - first, to - from, p.physicalMin[k], p.digitalMin[k], p.digitalMax[k], p.gain[k]);
+    limits[k] += decodeSamples(
+      chunk,
+      recBase + p.sampleOffset[k] + (from - rr * spr),
+      out[k],
+      from - first,
+      to - from,
+      p.physicalMin[k],
+      p.digitalMin[k],
+      p.digitalMax[k],
+      p.gain[k],
+    );
   }
 }
 
@@ -99,6 +129,16 @@ export function decodeRecord24(chunk: Uint8Array, recBase: number, rr: number, p
     const from = Math.max(first, rr * spr);
     const to = Math.min(first + p.perEpoch[k], (rr + 1) * spr);
     if (from >= to) continue;
-    limits[k] += decodeSamples24(chunk, recBase + p.sampleOffset[k] + (from - rr * spr), out[k], from - first, to - from, p.physicalMin[k], p.digitalMin[k], p.digitalMax[k], p.gain[k]);
+    limits[k] += decodeSamples24(
+      chunk,
+      recBase + p.sampleOffset[k] + (from - rr * spr),
+      out[k],
+      from - first,
+      to - from,
+      p.physicalMin[k],
+      p.digitalMin[k],
+      p.digitalMax[k],
+      p.gain[k],
+    );
   }
 }

@@ -152,7 +152,10 @@ function isPrintableAscii(s: string): boolean {
 /** "signal 3" or "signals 1, 2, 5" (1-based), at most ten named. */
 function signalList(indices: number[]): string {
   if (indices.length === 1) return `signal ${indices[0] + 1}`;
-  const named = indices.slice(0, 10).map((i) => i + 1).join(', ');
+  const named = indices
+    .slice(0, 10)
+    .map((i) => i + 1)
+    .join(', ');
   return `signals ${named}${indices.length > 10 ? ` and ${indices.length - 10} more` : ''}`;
 }
 
@@ -258,7 +261,12 @@ function parseVariant(file: string, version: string, reserved: string, warnings:
   }
   const other = isBdf ? 'EDF' : 'BDF';
   if (mark.startsWith(`${other}+`) || (!isBdf && mark === '24BIT')) {
-    throw new EdfFormatError(file, 'reserved', showValue(mark), `starts with "${showValue(mark)}", a mark of ${other} files, but the version field is that of ${family}`);
+    throw new EdfFormatError(
+      file,
+      'reserved',
+      showValue(mark),
+      `starts with "${showValue(mark)}", a mark of ${other} files, but the version field is that of ${family}`,
+    );
   }
   // BDF (BioSemi): reserved "24BIT"; other text is accepted as plain BDF.
   if (isBdf && mark !== '24BIT') warnings.add('reserved', 'a BDF file should have "24BIT" here; read as plain BDF (content withheld)');
@@ -307,7 +315,8 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
   const durRaw = c.take(8);
   const recordDurationS = c.decimal('duration of a data record', durRaw);
   if (recordDurationS < 0) throw new EdfFormatError(file, 'duration of a data record', durRaw.trim(), `record duration ${durRaw.trim()} s is negative`);
-  if (/[eE]/.test(durRaw)) warnings.add('duration of a data record', `written with an exponent ("${durRaw.trim()}"; EDF+ asks for plain decimals); read as ${recordDurationS} s`);
+  if (/[eE]/.test(durRaw))
+    warnings.add('duration of a data record', `written with an exponent ("${durRaw.trim()}"; EDF+ asks for plain decimals); read as ${recordDurationS} s`);
   // EDF 1992 §2.1: number of signals ns (4).
   const ns = c.integer('number of signals', c.take(4));
   if (ns <= 0) throw new EdfFormatError(file, 'number of signals', String(ns), `number of signals ${ns} is not positive: a file needs at least one signal`);
@@ -315,7 +324,12 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
   // EDF 1992 §2.1: header bytes = 256 + 256·ns.
   const expectedHeader = FIXED_HEADER_BYTES + BYTES_PER_SIGNAL_HEADER * ns;
   if (headerBytes !== expectedHeader) {
-    throw new EdfFormatError(file, 'number of bytes in header', String(headerBytes), `number of bytes in header ${headerBytes} disagrees with 256 + 256·${ns} signals = ${expectedHeader}`);
+    throw new EdfFormatError(
+      file,
+      'number of bytes in header',
+      String(headerBytes),
+      `number of bytes in header ${headerBytes} disagrees with 256 + 256·${ns} signals = ${expectedHeader}`,
+    );
   }
   if (available < headerBytes) {
     throw new EdfFormatError(file, 'file', String(available), `file is truncated: ${available} bytes, shorter than its ${headerBytes}-byte header`);
@@ -333,9 +347,18 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
     const digitalMin = c.integer('digital minimum', dmins[i], place);
     const digitalMax = c.integer('digital maximum', dmaxs[i], place);
     const samplesPerRecord = c.integer('number of samples in each data record', sprs[i], place);
-    for (const [field, v] of [['digital minimum', digitalMin], ['digital maximum', digitalMax]] as const) {
+    for (const [field, v] of [
+      ['digital minimum', digitalMin],
+      ['digital maximum', digitalMax],
+    ] as const) {
       if (v < digitalLow || v > digitalHigh) {
-        throw new EdfFormatError(file, field, String(v), `${field} ${v} is outside the ${8 * bytesPerSample}-bit range ${digitalLow}..${digitalHigh} of ${variant}`, place);
+        throw new EdfFormatError(
+          file,
+          field,
+          String(v),
+          `${field} ${v} is outside the ${8 * bytesPerSample}-bit range ${digitalLow}..${digitalHigh} of ${variant}`,
+          place,
+        );
       }
     }
     // EDF+ 2003 §2.1.3.5: digital maximum must exceed digital minimum.
@@ -344,17 +367,36 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
     }
     // EDF+ 2003 §2.1.3.5: physical maximum differs from physical minimum (pmax < pmin is a negative gain).
     if (physicalMin === physicalMax) {
-      throw new EdfFormatError(file, 'physical minimum', pmins[i].trim(), `physical minimum ${pmins[i].trim()} equals physical maximum ${pmaxs[i].trim()}`, place);
+      throw new EdfFormatError(
+        file,
+        'physical minimum',
+        pmins[i].trim(),
+        `physical minimum ${pmins[i].trim()} equals physical maximum ${pmaxs[i].trim()}`,
+        place,
+      );
     }
     if (samplesPerRecord <= 0) {
-      throw new EdfFormatError(file, 'number of samples in each data record', String(samplesPerRecord), `number of samples in each data record ${samplesPerRecord} is not positive`, place);
+      throw new EdfFormatError(
+        file,
+        'number of samples in each data record',
+        String(samplesPerRecord),
+        `number of samples in each data record ${samplesPerRecord} is not positive`,
+        place,
+      );
     }
-    for (const [field, rawValue] of [['physical minimum', pmins[i]], ['physical maximum', pmaxs[i]]] as const) {
+    for (const [field, rawValue] of [
+      ['physical minimum', pmins[i]],
+      ['physical maximum', pmaxs[i]],
+    ] as const) {
       if (/[eE]/.test(rawValue)) warnings.signal(field, i, 'written with an exponent (EDF+ asks for plain decimals); read as a number');
     }
     // EDF 1992 §2.1: header text is printable ASCII; other bytes are kept as Latin-1, never quoted.
     if (!isPrintableAscii(labels[i])) warnings.signal('label', i, 'holds bytes outside printable ASCII; read as Latin-1');
-    for (const [field, rawValue] of [['transducer type', transducers[i]], ['prefiltering', prefilters[i]], ['reserved', signalReserved[i]]] as const) {
+    for (const [field, rawValue] of [
+      ['transducer type', transducers[i]],
+      ['prefiltering', prefilters[i]],
+      ['reserved', signalReserved[i]],
+    ] as const) {
       if (!isPrintableAscii(rawValue)) warnings.signal(field, i, 'holds bytes outside printable ASCII (content withheld)');
     }
     // EDF+ 2003 §2.2.1: the annotation signal is labelled exactly "EDF Annotations" (BDF+: "BDF Annotations").
@@ -382,12 +424,18 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
   const nAnnotation = signals.filter((s) => s.isAnnotation).length;
   // EDF+ 2003 §2.1.3.6: record duration 0 only for files without ordinary signals.
   if (recordDurationS === 0 && nAnnotation < ns) {
-    throw new EdfFormatError(file, 'duration of a data record', durRaw.trim(), `record duration ${durRaw.trim()} s is not positive although the file has ordinary signals`);
+    throw new EdfFormatError(
+      file,
+      'duration of a data record',
+      durRaw.trim(),
+      `record duration ${durRaw.trim()} s is not positive although the file has ordinary signals`,
+    );
   }
   if (variant.endsWith('+D') && nAnnotation === 0) {
     throw new EdfFormatError(file, 'reserved', variant, `a ${variant} file needs a signal labelled "${annotationLabel}" for its record onsets, none found`);
   }
-  if (variant.endsWith('+C') && nAnnotation === 0) warnings.add('reserved', `${variant} file without a signal labelled "${annotationLabel}"; record onsets taken as k·duration`);
+  if (variant.endsWith('+C') && nAnnotation === 0)
+    warnings.add('reserved', `${variant} file without a signal labelled "${annotationLabel}"; record onsets taken as k·duration`);
 
   // EDF 1992 §2.1/§2.2: the data records follow the header back to back; −1 records = unknown.
   const perRecord = recordBytes(signals, bytesPerSample);

@@ -97,7 +97,13 @@ function recordTiming(file: string, header: EdfHeader, timeKeeping: Float64Array
       onsets[k] = t0 + k * d;
       // EDF+ 2003 §2.1.3.1: in EDF+C every record starts where the previous one ended.
       if (timeKeeping && Math.abs(timeKeeping[k] - onsets[k]) > ONSET_TOLERANCE_S) {
-        throw new EdfFormatError(file, 'annotations', String(timeKeeping[k]), `time-keeping onset ${timeKeeping[k]} s breaks the contiguity of an ${header.variant} file (expected ${onsets[k]} s)`, { record: k });
+        throw new EdfFormatError(
+          file,
+          'annotations',
+          String(timeKeeping[k]),
+          `time-keeping onset ${timeKeeping[k]} s breaks the contiguity of an ${header.variant} file (expected ${onsets[k]} s)`,
+          { record: k },
+        );
       }
     }
     return { onsets, gaps };
@@ -109,7 +115,13 @@ function recordTiming(file: string, header: EdfHeader, timeKeeping: Float64Array
     if (k === 0) continue;
     const prevEnd = tk[k - 1] + d;
     if (tk[k] < prevEnd - ONSET_TOLERANCE_S) {
-      throw new EdfFormatError(file, 'annotations', String(tk[k]), `time-keeping onset ${tk[k]} s is before the end of the previous record (${prevEnd} s): records overlap`, { record: k });
+      throw new EdfFormatError(
+        file,
+        'annotations',
+        String(tk[k]),
+        `time-keeping onset ${tk[k]} s is before the end of the previous record (${prevEnd} s): records overlap`,
+        { record: k },
+      );
     }
     if (tk[k] > prevEnd + ONSET_TOLERANCE_S) gaps.push({ afterRecord: k - 1, startS: prevEnd, endS: tk[k] });
   }
@@ -125,7 +137,10 @@ function timingWarnings(header: EdfHeader, onsets: Float64Array, gaps: EdfGap[])
   let totalS = 0;
   for (const g of gaps) totalS += g.endS - g.startS;
   const warnings: EdfWarning[] = [
-    { field: 'annotations', message: `${gaps.length} gap${gaps.length === 1 ? '' : 's'} between data records, ${Number(totalS.toFixed(4))} s in total; epochs that touch a gap are dropped` },
+    {
+      field: 'annotations',
+      message: `${gaps.length} gap${gaps.length === 1 ? '' : 's'} between data records, ${Number(totalS.toFixed(4))} s in total; epochs that touch a gap are dropped`,
+    },
   ];
   // readEpochs reads an epoch from sample round((epoch onset − segment onset)·fs): off the grid, that snaps by up to half a sample
   let offGrid = 0;
@@ -157,7 +172,8 @@ export interface OpenEdfOptions {
 
 /** Opens an EDF/EDF+ or BDF/BDF+ file. Throws EdfFormatError or EdfIoError, nothing else. */
 export async function openEdf(path: string, options: OpenEdfOptions = {}): Promise<EdfFile> {
-  if (endianness() !== 'LE') throw new EdfIoError(path, 'decode', new Error('this reader decodes 16-bit samples with the host byte order and needs a little-endian host'));
+  if (endianness() !== 'LE')
+    throw new EdfIoError(path, 'decode', new Error('this reader decodes 16-bit samples with the host byte order and needs a little-endian host'));
   let fh: FileHandle;
   try {
     fh = await open(path, 'r');
@@ -252,13 +268,15 @@ function segmentsOf(onsets: Float64Array, gaps: EdfGap[]): Segment[] {
 
 function checkEpochOptions(file: string, header: EdfHeader, opts: ReadEpochsOptions): { chosen: EdfSignal[]; perEpoch: number[] } {
   const { signals, epochS } = opts;
-  if (!Number.isFinite(epochS) || epochS <= 0) throw new EdfFormatError(file, 'epoch length', String(epochS), `epoch length ${epochS} s is not a positive number`);
+  if (!Number.isFinite(epochS) || epochS <= 0)
+    throw new EdfFormatError(file, 'epoch length', String(epochS), `epoch length ${epochS} s is not a positive number`);
   if (!Array.isArray(signals) || signals.length === 0) throw new EdfFormatError(file, 'signals', String(signals), 'no signals requested');
   const chosen: EdfSignal[] = [];
   const perEpoch: number[] = [];
   for (const i of signals) {
     const s = header.signals[i];
-    if (!Number.isInteger(i) || s === undefined) throw new EdfFormatError(file, 'signals', String(i), `signal index ${i} does not exist (file has ${header.signals.length} signals)`);
+    if (!Number.isInteger(i) || s === undefined)
+      throw new EdfFormatError(file, 'signals', String(i), `signal index ${i} does not exist (file has ${header.signals.length} signals)`);
     const place = { signal: { index: s.index, label: s.label } };
     if (s.isAnnotation) throw new EdfFormatError(file, 'signals', String(i), `signal index ${i} is an annotation signal, not samples`, place);
     const n = s.fsHz * epochS;
@@ -270,7 +288,8 @@ function checkEpochOptions(file: string, header: EdfHeader, opts: ReadEpochsOpti
     perEpoch.push(whole);
   }
   const chunkBytes = opts.chunkBytes ?? DEFAULT_CHUNK_BYTES;
-  if (!Number.isFinite(chunkBytes) || chunkBytes <= 0) throw new EdfFormatError(file, 'chunk bytes', String(chunkBytes), `chunk size ${chunkBytes} bytes is not positive`);
+  if (!Number.isFinite(chunkBytes) || chunkBytes <= 0)
+    throw new EdfFormatError(file, 'chunk bytes', String(chunkBytes), `chunk size ${chunkBytes} bytes is not positive`);
   return { chosen, perEpoch };
 }
 
@@ -335,7 +354,8 @@ class RecordChunks {
     this.ahead = null;
     const want = read.count * this.recB;
     const got = await read.got;
-    if (got < want) throw new EdfFormatError(this.file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r + 1}`, { record: r });
+    if (got < want)
+      throw new EdfFormatError(this.file, 'file', String(got), `file was truncated while reading: ${got} of ${want} bytes from record ${r + 1}`, { record: r });
     this.current = read.into;
     this.words = this.views[read.into];
     this.bytesNow = this.bytes[read.into];

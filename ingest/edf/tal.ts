@@ -58,7 +58,12 @@ export function parseTals(bytes: Uint8Array, file: string, record: number, signa
       while (i < n && bytes[i] !== 0x14 && bytes[i] !== 0x15 && bytes[i] !== 0) i++;
       const durText = ascii(bytes, start, i);
       if (!DURATION.test(durText)) {
-        throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: the duration (${i - start} bytes, ${WITHHELD}) is not an unsigned number (only . 0-9 allowed)`);
+        throw talError(
+          file,
+          place,
+          onsetText,
+          `TAL ${k} at onset ${onsetText}: the duration (${i - start} bytes, ${WITHHELD}) is not an unsigned number (only . 0-9 allowed)`,
+        );
       }
       if (i >= n) throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: runs past the end of the record (TALs must not cross records)`);
       if (bytes[i] !== 0x14) throw talError(file, place, onsetText, `TAL ${k} at onset ${onsetText}: the duration is not followed by \\x14`);

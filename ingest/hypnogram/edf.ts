@@ -78,10 +78,13 @@ export function scoringFromOpenEdf(edf: EdfFile, options: EdfScoringOptions = {}
   const recordingDurationS = rec ? rec.durationS : options.recordingDurationS !== undefined ? options.recordingDurationS : hasSignals ? edf.durationS : null;
   let shiftS = rec ? fileStartS - rec.startS : 0;
   const starts = rec ? `scoring file ${formatClock(fileStartS)}, recording ${formatClock(rec.startS)}` : '';
-  const what = rec ? `the scoring starts ${secondsText(Math.abs(shiftS))} s ${shiftS >= 0 ? 'after' : 'before'} the recording (${starts})` : 'the stage annotations of the recording';
+  const what = rec
+    ? `the scoring starts ${secondsText(Math.abs(shiftS))} s ${shiftS >= 0 ? 'after' : 'before'} the recording (${starts})`
+    : 'the stage annotations of the recording';
   const problems: ScoringProblem[] = [];
   const warnings: ScoringWarning[] = [];
-  const refuse = (reason: string) => problems.push({ kind: 'start-times', epochs: [], message: `the scoring file and the recording cannot belong together (${starts}): ${reason}` });
+  const refuse = (reason: string) =>
+    problems.push({ kind: 'start-times', epochs: [], message: `the scoring file and the recording cannot belong together (${starts}): ${reason}` });
 
   const stages = rest.filter((a) => a.texts.some((t) => stageFromLabel(t.trim(), options.labelMap) !== undefined));
   if (rec && Math.abs(shiftS) > DAY_S) refuse('their starts are more than a day apart');
@@ -90,11 +93,16 @@ export function scoringFromOpenEdf(edf: EdfFile, options: EdfScoringOptions = {}
     const first = Math.min(...stages.map((a) => a.onsetS)) + shiftS;
     const offGrid = first - Math.round(first / epochS) * epochS;
     if (Math.abs(offGrid) >= SNAP_BELOW_S) {
-      problems.push({ kind: 'shift-off-grid', epochs: [], message: `${what}: ${secondsText(Math.abs(offGrid))} s off the ${epochS}-s epoch grid of the recording (counted from its first sample), so no scored epoch matches a recorded one` });
+      problems.push({
+        kind: 'shift-off-grid',
+        epochs: [],
+        message: `${what}: ${secondsText(Math.abs(offGrid))} s off the ${epochS}-s epoch grid of the recording (counted from its first sample), so no scored epoch matches a recorded one`,
+      });
     } else if (Math.abs(offGrid) > TOL_S) {
       shiftS -= offGrid;
       warnings.push({
-        kind: 'scoring-shift-snapped', epochs: [],
+        kind: 'scoring-shift-snapped',
+        epochs: [],
         message: `${what}: ${secondsText(Math.abs(offGrid))} s off the ${epochS}-s epoch grid, below the 1-s resolution of EDF header clocks; moved onto the grid (shift ${secondsText(shiftS)} s)`,
       });
     }

@@ -70,7 +70,12 @@ const seconds = (s: number) => String(Math.round(s * 1000) / 1000);
 export function checkLabelMap(labelMap: LabelMap | undefined, file: string): void {
   const problems: ScoringProblem[] = [];
   for (const [label, stage] of Object.entries(labelMap ?? {})) {
-    if (!isStage(stage)) problems.push({ kind: 'label-map', epochs: [], message: `label map: '${label}' maps to '${String(stage)}', which is not one of W, N1, N2, N3, R, unscored` });
+    if (!isStage(stage))
+      problems.push({
+        kind: 'label-map',
+        epochs: [],
+        message: `label map: '${label}' maps to '${String(stage)}', which is not one of W, N1, N2, N3, R, unscored`,
+      });
   }
   if (problems.length) throw new ScoringError(file, problems);
 }
@@ -87,7 +92,9 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
 
   const recDur = options.recordingDurationS ?? null;
   if (recDur !== null && !(recDur >= 0 && Number.isFinite(recDur))) {
-    throw new ScoringError(ctx.file, [{ kind: 'recording-duration', epochs: [], message: `recording duration must be a non-negative number of seconds, got ${recDur}` }]);
+    throw new ScoringError(ctx.file, [
+      { kind: 'recording-duration', epochs: [], message: `recording duration must be a non-negative number of seconds, got ${recDur}` },
+    ]);
   }
   const nFull = recDur === null ? Infinity : Math.floor((recDur + TOL_S) / epochS);
   const hasPartial = recDur !== null && recDur - nFull * epochS > TOL_S;
@@ -129,7 +136,11 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
 
     const k0 = Math.round(iv.onsetS / epochS);
     if (Math.abs(k0 * epochS - iv.onsetS) > TOL_S) {
-      problems.push({ kind: 'off-grid', epochs: [firstEpoch], message: `${what}: onset ${iv.onsetS} s is not on the ${epochS}-s epoch grid (inside ${say([firstEpoch])})` });
+      problems.push({
+        kind: 'off-grid',
+        epochs: [firstEpoch],
+        message: `${what}: onset ${iv.onsetS} s is not on the ${epochS}-s epoch grid (inside ${say([firstEpoch])})`,
+      });
       continue;
     }
     const durS = iv.durationS ?? epochS;
@@ -142,7 +153,11 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
     if (Math.abs(count - nEpochs) > TOL_S / epochS) {
       const endsAtRecordingEnd = recDur !== null && Math.abs(iv.onsetS + durS - recDur) <= TOL_S;
       if (!endsAtRecordingEnd) {
-        problems.push({ kind: 'duration-off-grid', epochs: [k0], message: `${what}: duration ${durS} s from ${say([k0])} is not a whole number of ${epochS}-s epochs` });
+        problems.push({
+          kind: 'duration-off-grid',
+          epochs: [k0],
+          message: `${what}: duration ${durS} s from ${say([k0])} is not a whole number of ${epochS}-s epochs`,
+        });
         continue;
       }
       count = Math.ceil(nEpochs);
@@ -170,7 +185,11 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
   for (const [label, b] of unknown.map) {
     const message = `unknown stage label (${textHash(label)}, ${b.detail}${b.epochs.length > 1 ? ' and others' : ''}) at ${say(b.epochs)}`;
     if ((options.unknownAs ?? 'error') === 'error') {
-      problems.push({ kind: 'unknown-label', epochs: b.epochs, message: `${message}; add it to a label map (--label-map) or score unknown labels as unscored (--unknown-as-unscored)` });
+      problems.push({
+        kind: 'unknown-label',
+        epochs: b.epochs,
+        message: `${message}; add it to a label map (--label-map) or score unknown labels as unscored (--unknown-as-unscored)`,
+      });
     } else {
       warnings.push({ kind: 'unknown-label', epochs: b.epochs, message: `${message} scored as unscored` });
     }
@@ -184,9 +203,16 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
     const where = before ? `before the recording start (${seconds(epochs[0] * epochS)} to 0 s)` : `past the recording end (${recDur} s)`;
     const at = before ? '' : ` at ${say(epochs)}`;
     const what = listSome([...b.map.keys()]);
-    return { epochs, trimmed: `${epochs.length} ${unscored ? 'unscored' : 'scored'} epoch(s) ${where} trimmed${at}: ${what}`, refused: before ? `${epochs.length} scored epoch(s) ${where}: ${what}; ${misaligned}` : `scoring runs ${where}${at}: ${what}; ${misaligned}` };
+    return {
+      epochs,
+      trimmed: `${epochs.length} ${unscored ? 'unscored' : 'scored'} epoch(s) ${where} trimmed${at}: ${what}`,
+      refused: before ? `${epochs.length} scored epoch(s) ${where}: ${what}; ${misaligned}` : `scoring runs ${where}${at}: ${what}; ${misaligned}`,
+    };
   };
-  for (const [b, before] of [[scoredBefore, true], [scoredPast, false]] as const) {
+  for (const [b, before] of [
+    [scoredBefore, true],
+    [scoredPast, false],
+  ] as const) {
     if (b.map.size === 0) continue;
     const o = outside(b, false, before);
     if (options.trimScoredOutside) warnings.push({ kind: 'trimmed-scored', epochs: o.epochs, message: o.trimmed });
@@ -194,7 +220,11 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
   }
   if (problems.length === 0 && stageIntervals === 0) {
     const events = [...ignored.map.values()].reduce((n, b) => n + b.epochs.length, 0);
-    problems.push({ kind: 'no-stages', epochs: [], message: `no sleep-stage labels found${ignored.map.size ? ` (only other events: ${events} event(s), ${ignored.map.size} distinct text(s))` : ''}` });
+    problems.push({
+      kind: 'no-stages',
+      epochs: [],
+      message: `no sleep-stage labels found${ignored.map.size ? ` (only other events: ${events} event(s), ${ignored.map.size} distinct text(s))` : ''}`,
+    });
   }
   if (problems.length === 0 && recDur !== null && owner.size === 0) {
     problems.push({ kind: 'no-overlap', epochs: [], message: `no scoring inside the recording (0–${recDur} s)` });
@@ -203,9 +233,16 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
 
   if (truncated.map.size) {
     const epochs = [nFull];
-    warnings.push({ kind: 'truncated', epochs, message: `${listSome([...truncated.map.keys()])} reaches past the recording end (${recDur} s): the partial last ${say(epochs)} is dropped` });
+    warnings.push({
+      kind: 'truncated',
+      epochs,
+      message: `${listSome([...truncated.map.keys()])} reaches past the recording end (${recDur} s): the partial last ${say(epochs)} is dropped`,
+    });
   }
-  for (const [b, before] of [[unscoredBefore, true], [unscoredPast, false]] as const) {
+  for (const [b, before] of [
+    [unscoredBefore, true],
+    [unscoredPast, false],
+  ] as const) {
     if (b.map.size) {
       const o = outside(b, true, before);
       warnings.push({ kind: 'trimmed-unscored', epochs: o.epochs, message: o.trimmed });
@@ -213,7 +250,11 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
   }
   for (const [hash, b] of ignored.map) {
     const epochs = unique(b.epochs);
-    warnings.push({ kind: 'ignored-events', epochs, message: `${hash} (not a stage label): ${b.epochs.length} event(s) ignored at ${say(epochs)}, first at ${b.detail} s` });
+    warnings.push({
+      kind: 'ignored-events',
+      epochs,
+      message: `${hash} (not a stage label): ${b.epochs.length} event(s) ignored at ${say(epochs)}, first at ${b.detail} s`,
+    });
   }
 
   let length = nFull;
@@ -239,9 +280,19 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
     if (owner.has(k)) continue;
     (k < firstOwned ? late : k > lastOwned ? early : gaps).push(k);
   }
-  if (late.length) warnings.push({ kind: 'scoring-starts-late', epochs: late, message: `scoring starts late: no scoring for ${say(late)} before the first scored epoch; set to unscored` });
+  if (late.length)
+    warnings.push({
+      kind: 'scoring-starts-late',
+      epochs: late,
+      message: `scoring starts late: no scoring for ${say(late)} before the first scored epoch; set to unscored`,
+    });
   if (gaps.length) warnings.push({ kind: 'gap', epochs: gaps, message: `no scoring for ${say(gaps)}: set to unscored` });
-  if (early.length) warnings.push({ kind: 'scoring-ends-early', epochs: early, message: `scoring ends early: no scoring for ${say(early)} after the last scored epoch; set to unscored` });
+  if (early.length)
+    warnings.push({
+      kind: 'scoring-ends-early',
+      epochs: early,
+      message: `scoring ends early: no scoring for ${say(early)} after the last scored epoch; set to unscored`,
+    });
 
   return { epochS, stages, source: ctx.source, warnings, partial: late.length + gaps.length + early.length > 0 };
 }

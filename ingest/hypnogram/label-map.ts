@@ -18,7 +18,9 @@ export function readLabelMap(file: string): LabelMap {
   try {
     text = readFileSync(file, 'utf8');
   } catch (e) {
-    throw new ScoringError(file, [{ kind: 'label-map', epochs: [], message: `cannot read the label map: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}` }]);
+    throw new ScoringError(file, [
+      { kind: 'label-map', epochs: [], message: `cannot read the label map: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}` },
+    ]);
   }
   const table = parseDelimited(text, '\t');
   const lower = table.header.map((h) => h.trim().toLowerCase());

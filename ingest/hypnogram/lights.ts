@@ -67,11 +67,18 @@ const fmt = (s: number) => String(Math.round(s * 1000) / 1000);
  * after local midnight (sub-second part included); `hyp` gives the recording length in epochs
  * and the scoring window that stands in for a missing end.
  */
-export function resolveLights(marks: LightsMarks, table: { off: LightsCell | null; on: LightsCell | null } | undefined, startClockS: number, durationS: number, hyp: Hypnogram): { lights: Lights; warnings: ScoringWarning[] } {
+export function resolveLights(
+  marks: LightsMarks,
+  table: { off: LightsCell | null; on: LightsCell | null } | undefined,
+  startClockS: number,
+  durationS: number,
+  hyp: Hypnogram,
+): { lights: Lights; warnings: ScoringWarning[] } {
   const warnings: ScoringWarning[] = [];
   const warn = (kind: string, message: string) => warnings.push({ kind, epochs: [], message });
   const sorted = { off: [...marks.off].sort((a, b) => a - b), on: [...marks.on].sort((a, b) => a - b) };
-  if (sorted.off.length > 1) warn('lights-repeated', `${sorted.off.length} lights-off annotations (at ${sorted.off.map(fmt).join(', ')} s): the first is taken`);
+  if (sorted.off.length > 1)
+    warn('lights-repeated', `${sorted.off.length} lights-off annotations (at ${sorted.off.map(fmt).join(', ')} s): the first is taken`);
   if (sorted.on.length > 1) warn('lights-repeated', `${sorted.on.length} lights-on annotations (at ${sorted.on.map(fmt).join(', ')} s): the last is taken`);
 
   // lights off: a clock time's occurrence nearest the recording start (−12 h … +12 h)
@@ -81,12 +88,18 @@ export function resolveLights(marks: LightsMarks, table: { off: LightsCell | nul
   const base = offS ?? 0;
   const tableOn = table?.on ? ('fromStartS' in table.on ? table.on.fromStartS : base + mod(table.on.clockS - startClockS - base, DAY_S)) : null;
   let onS: number | null = tableOn ?? sorted.on[sorted.on.length - 1] ?? null;
-  const from = [tableOff !== null || tableOn !== null ? 'table' : '', (tableOff === null && offS !== null) || (tableOn === null && onS !== null) ? 'annotation' : ''].filter(Boolean);
+  const from = [
+    tableOff !== null || tableOn !== null ? 'table' : '',
+    (tableOff === null && offS !== null) || (tableOn === null && onS !== null) ? 'annotation' : '',
+  ].filter(Boolean);
 
   const clamp = (name: string, t: number | null) => {
     if (t === null || (t >= 0 && t <= durationS)) return t;
     const to = t < 0 ? 0 : durationS;
-    warn('lights-outside', `${name} at ${fmt(t)} s is ${t < 0 ? 'before the recording start' : `after the recording end (${fmt(durationS)} s)`}: the recording ${t < 0 ? 'start' : 'end'} is taken`);
+    warn(
+      'lights-outside',
+      `${name} at ${fmt(t)} s is ${t < 0 ? 'before the recording start' : `after the recording end (${fmt(durationS)} s)`}: the recording ${t < 0 ? 'start' : 'end'} is taken`,
+    );
     return to;
   };
   offS = clamp('lights off', offS);
@@ -97,7 +110,10 @@ export function resolveLights(marks: LightsMarks, table: { off: LightsCell | nul
   const standOff = scored.length ? scored[0] * hyp.epochS : 0;
   const standOn = scored.length ? (scored[scored.length - 1] + 1) * hyp.epochS : 0;
   if ((offS !== null || onS !== null) && !((onS ?? standOn) > (offS ?? standOff))) {
-    warn('lights-order', `lights on (${fmt(onS ?? standOn)} s${onS === null ? ', end of scoring' : ''}) is not after lights off (${fmt(offS ?? standOff)} s${offS === null ? ', start of scoring' : ''}): lights times ignored, the scoring window stands in`);
+    warn(
+      'lights-order',
+      `lights on (${fmt(onS ?? standOn)} s${onS === null ? ', end of scoring' : ''}) is not after lights off (${fmt(offS ?? standOff)} s${offS === null ? ', start of scoring' : ''}): lights times ignored, the scoring window stands in`,
+    );
     return { lights: { offS: null, onS: null, source: 'none' }, warnings };
   }
   return { lights: { offS, onS, source: from.length ? (from.join('+') as Lights['source']) : 'none' }, warnings };

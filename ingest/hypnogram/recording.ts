@@ -59,7 +59,10 @@ export async function scoringForRecording(edf: EdfFile, rec: CohortRecording, pa
   } else {
     // the recording's own lights annotations count as well as the scoring file's
     const t0 = edf.recordOnsetsS.length ? edf.recordOnsetsS[0] : 0;
-    marks = takeLights(edf.annotations.map((a) => ({ ...a, onsetS: a.onsetS - t0 })), lightsTexts).marks;
+    marks = takeLights(
+      edf.annotations.map((a) => ({ ...a, onsetS: a.onsetS - t0 })),
+      lightsTexts,
+    ).marks;
     if (ANNOTATION_FILES.includes(path.extname(rec.scoringPath).toLowerCase())) {
       const file = await openEdf(rec.scoringPath);
       try {

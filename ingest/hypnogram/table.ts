@@ -40,7 +40,8 @@ export function scoringFromTableText(text: string, file: string, options: Scorin
   const problems: ScoringProblem[] = [];
   if (onsetCol < 0) problems.push({ kind: 'column', epochs: [], message: `no 'onset' column (header: ${table.header.join(', ')})` });
   if (durCol < 0) problems.push({ kind: 'column', epochs: [], message: `no 'duration' column (header: ${table.header.join(', ')})` });
-  if (!stageName) problems.push({ kind: 'column', epochs: [], message: `no stage column: expected one of ${STAGE_COLUMNS.join(', ')} (header: ${table.header.join(', ')})` });
+  if (!stageName)
+    problems.push({ kind: 'column', epochs: [], message: `no stage column: expected one of ${STAGE_COLUMNS.join(', ')} (header: ${table.header.join(', ')})` });
   if (problems.length || !stageName) throw new ScoringError(file, problems);
   const stageCol = lower.indexOf(stageName);
 
@@ -55,7 +56,11 @@ export function scoringFromTableText(text: string, file: string, options: Scorin
     const onsetText = cellValue(r.cells[onsetCol]);
     const onsetS = onsetText === null ? null : parseNumber(onsetText);
     if (onsetS === null) {
-      problems.push({ kind: 'onset', epochs: [], message: `${where}, column '${table.header[onsetCol]}': onset '${r.cells[onsetCol]}' is not a number of seconds` });
+      problems.push({
+        kind: 'onset',
+        epochs: [],
+        message: `${where}, column '${table.header[onsetCol]}': onset '${r.cells[onsetCol]}' is not a number of seconds`,
+      });
       return;
     }
     const durText = cellValue(r.cells[durCol]);
@@ -75,7 +80,11 @@ export function scoringFromTableText(text: string, file: string, options: Scorin
 
   const hyp = hypnogramFromIntervals(intervals, { file, source: `table:${path.basename(file)}`, eventStyle: stageName !== 'stage' }, options);
   if (noStage.length) {
-    hyp.warnings.push({ kind: 'ignored-events', epochs: noStage, message: `${noStage.length} row(s) with no stage (n/a) ignored at ${describeEpochs(noStage, epochS)}` });
+    hyp.warnings.push({
+      kind: 'ignored-events',
+      epochs: noStage,
+      message: `${noStage.length} row(s) with no stage (n/a) ignored at ${describeEpochs(noStage, epochS)}`,
+    });
   }
   return hyp;
 }
@@ -84,6 +93,8 @@ export async function readScoringFile(file: string): Promise<string> {
   try {
     return await readFile(file, 'utf8');
   } catch (e) {
-    throw new ScoringError(file, [{ kind: 'file', epochs: [], message: `cannot read the scoring file: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}` }]);
+    throw new ScoringError(file, [
+      { kind: 'file', epochs: [], message: `cannot read the scoring file: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}` },
+    ]);
   }
 }

@@ -16,7 +16,10 @@ export async function readScoringText(file: string, options: ScoringOptions = {}
 
 export function scoringFromText(text: string, file: string, options: ScoringOptions = {}): Hypnogram {
   const epochS = resolveEpochS(options, file);
-  const lines = text.replace(/^\uFEFF/, '').split(/\r?\n/).map((l) => l.trim());
+  const lines = text
+    .replace(/^\uFEFF/, '')
+    .split(/\r?\n/)
+    .map((l) => l.trim());
   while (lines.length && lines[lines.length - 1] === '') lines.pop();
   const intervals: StageInterval[] = lines.map((label, i) => ({ onsetS: i * epochS, durationS: epochS, label, where: `line ${i + 1}` }));
   return hypnogramFromIntervals(intervals, { file, source: `text:${path.basename(file)}`, eventStyle: false }, options);

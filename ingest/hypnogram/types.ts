@@ -88,9 +88,9 @@ export function describeEpochs(epochs: readonly number[], epochS: number, maxRan
     else ranges.push([e, e]);
   }
   const fmt = (s: number) => String(Math.round(s * 1000) / 1000);
-  const parts = ranges.slice(0, maxRanges).map(([a, b]) =>
-    a === b ? `${a} (${fmt(a * epochS)}–${fmt((a + 1) * epochS)} s)` : `${a}–${b} (${fmt(a * epochS)}–${fmt((b + 1) * epochS)} s)`,
-  );
+  const parts = ranges
+    .slice(0, maxRanges)
+    .map(([a, b]) => (a === b ? `${a} (${fmt(a * epochS)}–${fmt((a + 1) * epochS)} s)` : `${a}–${b} (${fmt(a * epochS)}–${fmt((b + 1) * epochS)} s)`));
   const more = ranges.length > maxRanges ? ` and ${ranges.length - maxRanges} more ranges` : '';
   return `${sorted.length === 1 ? 'epoch' : 'epochs'} ${parts.join(', ')}${more}`;
 }

@@ -59,15 +59,29 @@ export function frequencyGrid(fsHz: number, params: IngestParams, file: string):
     else if (bandBins(b, 0, step, nStored) !== null) reached.push(i);
   });
   if (beyond.length > 0) {
-    notes.push({ step: 'spectra', field: 'bands', message: `band power not computed for ${beyond.map((b) => `${b.name} (${b.loHz}–${b.hiHz} Hz)`).join(', ')}` });
+    notes.push({
+      step: 'spectra',
+      field: 'bands',
+      message: `band power not computed for ${beyond.map((b) => `${b.name} (${b.loHz}–${b.hiHz} Hz)`).join(', ')}`,
+    });
   }
-  const bandTable = new BandPowerTable(reached.map((i) => params.bands[i]), 0, step, nStored, params.bandMethod);
+  const bandTable = new BandPowerTable(
+    reached.map((i) => params.bands[i]),
+    0,
+    step,
+    nStored,
+    params.bandMethod,
+  );
 
   // one sample lasting flatRunS would count as a flat run by itself: the rule cannot tell a flat channel here
   let rejection = params.rejection;
   if (1 / fsHz >= rejection.flatRunS) {
     rejection = { ...rejection, flatRunS: Infinity };
-    notes.push({ step: 'spectra', field: 'rejection.flatRunS', message: `the flat-run rule (${params.rejection.flatRunS} s) is not applied: one sample lasts ${1 / fsHz} s` });
+    notes.push({
+      step: 'spectra',
+      field: 'rejection.flatRunS',
+      message: `the flat-run rule (${params.rejection.flatRunS} s) is not applied: one sample lasts ${1 / fsHz} s`,
+    });
   }
   const { broadbandHz, muscleHz } = params.rejection;
   const ruleBand = (name: string, field: string, [lo, hi]: [number, number]): BandPowerTable | null => {
@@ -89,7 +103,8 @@ export function frequencyGrid(fsHz: number, params: IngestParams, file: string):
     if (!(top > lo)) notes.push({ step: 'fit', field: 'fit.fitRangeHz', message: `no aperiodic fit (fit range ${lo}–${hi} Hz)` });
     else {
       fitRange = [lo, top];
-      if (top < hi && nyquist < hi) notes.push({ step: 'fit', field: 'fit.fitRangeHz', message: `aperiodic fit over ${lo}–${top} Hz instead of ${lo}–${hi} Hz` });
+      if (top < hi && nyquist < hi)
+        notes.push({ step: 'fit', field: 'fit.fitRangeHz', message: `aperiodic fit over ${lo}–${top} Hz instead of ${lo}–${hi} Hz` });
     }
   }
 
@@ -108,8 +123,21 @@ export function frequencyGrid(fsHz: number, params: IngestParams, file: string):
     }
   }
   return {
-    fsHz, step, storedMaxHz, nStored, freqs: evenlySpaced(nStored, step), fullMaxHz, welch, multitaper,
-    bandIdx: Int32Array.from(reached), bandTable, rejection, broadBand, muscleBand, fitRange, notes,
+    fsHz,
+    step,
+    storedMaxHz,
+    nStored,
+    freqs: evenlySpaced(nStored, step),
+    fullMaxHz,
+    welch,
+    multitaper,
+    bandIdx: Int32Array.from(reached),
+    bandTable,
+    rejection,
+    broadBand,
+    muscleBand,
+    fitRange,
+    notes,
   };
 }
 

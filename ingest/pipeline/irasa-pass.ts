@@ -38,7 +38,9 @@ export async function irasaPass(
         if (st.plan.reference === 'recorded') notes.push(channelNote(out.channel, fs, { step: 'irasa', field: 'irasa', message }));
         return null;
       }
-      return SCORED_STAGES.map(() => new Irasa(fs, { segmentS: params.segmentS, overlap: params.overlap, fitRangeHz: range, resamplingFactors: params.irasa!.resamplingFactors }));
+      return SCORED_STAGES.map(
+        () => new Irasa(fs, { segmentS: params.segmentS, overlap: params.overlap, fitRangeHz: range, resamplingFactors: params.irasa!.resamplingFactors }),
+      );
     }),
   );
   for await (const block of edf.readEpochs({ signals, epochS })) {
@@ -68,8 +70,19 @@ export async function irasaPass(
           return; // no clean epoch of this stage (or too little signal): no row, as for spectra
         }
         rows.push({
-          channel: out.channel, stage, reference: st.plan.reference, averaging: 'mean', method: 'irasa',
-          fitLoHz: fit.fitLoHz, fitHiHz: fit.fitHiHz, offset: fit.offset, exponent: fit.exponent, knee: 0, r2: fit.r2, rmse: fit.rmse, nPeaks: null,
+          channel: out.channel,
+          stage,
+          reference: st.plan.reference,
+          averaging: 'mean',
+          method: 'irasa',
+          fitLoHz: fit.fitLoHz,
+          fitHiHz: fit.fitHiHz,
+          offset: fit.offset,
+          exponent: fit.exponent,
+          knee: 0,
+          r2: fit.r2,
+          rmse: fit.rmse,
+          nPeaks: null,
         });
       }),
     ),

@@ -19,4 +19,3 @@ export async function openRecording(rec: CohortRecording): Promise<OpenedRecordi
   }
   return { edf, sha256: edf.sha256 as string };
 }
-

@@ -136,12 +136,15 @@ export function resolveIngestParams(partial: Partial<IngestParams> = {}): Ingest
   if (mainsHz.length === 0 || mainsHz.some((f) => f !== 50 && f !== 60) || new Set(mainsHz).size !== mainsHz.length) {
     throw new PipelineError('parameters', null, 'quality.mainsHz', `mains frequencies must be 50, 60 or both, got [${mainsHz.join(', ')}]`);
   }
-  if (!(mainsHalfWidthHz > 0)) throw new PipelineError('parameters', null, 'quality.mainsHalfWidthHz', `mains half-width must be positive, got ${mainsHalfWidthHz} Hz`);
+  if (!(mainsHalfWidthHz > 0))
+    throw new PipelineError('parameters', null, 'quality.mainsHalfWidthHz', `mains half-width must be positive, got ${mainsHalfWidthHz} Hz`);
   if (p.multitaper) {
     const { nw, k } = p.multitaper;
     if (!(nw >= 1)) throw new PipelineError('parameters', null, 'multitaper.nw', `time-half-bandwidth NW must be at least 1, got ${nw}`);
-    if (!(Number.isInteger(k) && k >= 1 && k <= 2 * nw)) throw new PipelineError('parameters', null, 'multitaper.k', `number of tapers K must be a whole number from 1 to 2NW = ${2 * nw}, got ${k}`);
+    if (!(Number.isInteger(k) && k >= 1 && k <= 2 * nw))
+      throw new PipelineError('parameters', null, 'multitaper.k', `number of tapers K must be a whole number from 1 to 2NW = ${2 * nw}, got ${k}`);
   }
-  if (p.epochSpectra && !(p.epochSpectra.maxHz > 0)) throw new PipelineError('parameters', null, 'epochSpectra.maxHz', `epoch spectra need a positive top frequency, got ${p.epochSpectra.maxHz} Hz`);
+  if (p.epochSpectra && !(p.epochSpectra.maxHz > 0))
+    throw new PipelineError('parameters', null, 'epochSpectra.maxHz', `epoch spectra need a positive top frequency, got ${p.epochSpectra.maxHz} Hz`);
   return p;
 }

@@ -18,12 +18,21 @@ export function placeChannels(selected: readonly Selected[], layout: ElectrodeLa
   const eeg = (source: ChannelPlacement['source']) => selected.filter((s, i) => s.montage.type === 'EEG' && placements[i].source === source).map((s) => s.name);
   if (layout) {
     const template = eeg('template');
-    if (template.length > 0) warnings.push({ step: 'channels', field: 'positions', message: `channels ${list(template)} are not in ${layout.file}: their 10-10 template positions are used` });
+    if (template.length > 0)
+      warnings.push({
+        step: 'channels',
+        field: 'positions',
+        message: `channels ${list(template)} are not in ${layout.file}: their 10-10 template positions are used`,
+      });
   }
   const none = eeg('none');
   if (none.length > 0) {
     const why = layout ? `not in ${layout.file} and not 10-10 names` : 'no positions file and not 10-10 names';
-    warnings.push({ step: 'channels', field: 'positions', message: `channels ${list(none)} have no position (${why}); spatial contrasts over them need a neighbour table` });
+    warnings.push({
+      step: 'channels',
+      field: 'positions',
+      message: `channels ${list(none)} have no position (${why}); spatial contrasts over them need a neighbour table`,
+    });
   }
   return { placements, warnings };
 }

@@ -29,7 +29,13 @@ export interface ChannelMeasures {
 }
 
 /** The measures of every selected channel, from the recorded reference's outputs. */
-export function channelMeasures(selected: readonly Selected[], states: readonly PlanState[], pass: EpochPassResult, stepHz: number, epochS: number): ChannelMeasures[] {
+export function channelMeasures(
+  selected: readonly Selected[],
+  states: readonly PlanState[],
+  pass: EpochPassResult,
+  stepHz: number,
+  epochS: number,
+): ChannelMeasures[] {
   const { clipped, epochsSeen, epochSd } = pass;
   const recordedState = states.find((s) => s.plan.reference === 'recorded');
   return selected.map((s, c) => {
@@ -71,10 +77,15 @@ export function recordingQuality(
       const f = evenlySpaced(m.fullSpectrum.length, m.fullStepHz);
       // a known line the spectrum cannot reach (60 Hz at fs 128) is not assessable: pass null
       const reach = f[f.length - 1] >= (lineHz ?? 0) + DEFAULT_MAINS_HUM.outerHz;
-      quality.push(qualityIn(mainsHum(cell, f, m.fullSpectrum, { ...DEFAULT_MAINS_HUM, lineHz: reach ? lineHz : null, thresholdDb: q.mainsThresholdDb }), 'recorded'));
+      quality.push(
+        qualityIn(mainsHum(cell, f, m.fullSpectrum, { ...DEFAULT_MAINS_HUM, lineHz: reach ? lineHz : null, thresholdDb: q.mainsThresholdDb }), 'recorded'),
+      );
       // the mains lines (quality.mainsHz ± mainsHalfWidthHz) have their own metric and are left out of the spike search
       const spikes = narrowSpikes(cell, f, m.fullSpectrum, {
-        ...DEFAULT_NARROW_SPIKE, heightLog10: q.narrowHeightLog10, maxWidthHz: q.narrowMaxWidthHz, excludeHz,
+        ...DEFAULT_NARROW_SPIKE,
+        heightLog10: q.narrowHeightLog10,
+        maxWidthHz: q.narrowMaxWidthHz,
+        excludeHz,
       });
       quality.push(qualityIn(spikes, 'recorded'));
     }

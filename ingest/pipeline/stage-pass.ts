@@ -55,7 +55,16 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
   const welch = grid.welch;
   const K = welch.segmentCount(out.length);
   // the outlier rule's spread is floored by the sampling spread of one epoch's log band power (src/core/quality/log-power-spread.ts)
-  const floors = samplingFloors(out.spectra, grid.nStored, grid.step, stageIdx, eligible, SCORED_STAGES.length, grid.rejection, hannBinCovariance(welch.nPerSeg, welch.step, K));
+  const floors = samplingFloors(
+    out.spectra,
+    grid.nStored,
+    grid.step,
+    stageIdx,
+    eligible,
+    SCORED_STAGES.length,
+    grid.rejection,
+    hannBinCovariance(welch.nPerSeg, welch.step, K),
+  );
   const outliers = spectralOutliers(out.logBroadband, out.logMuscle, stageIdx, eligible, params.rejection.outlierZ, floors);
   const clean = eligible.slice();
   const outlierReason = new Map<number, string>();
@@ -66,7 +75,8 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
   out.clean = clean;
   for (let e = 0; e < nGrid; e++) {
     const reason = out.tdReason[e];
-    if (out.hasData[e] && reason) w.rejections.push({ channel: out.channel, reference, epoch: e, reason, value: Number.isFinite(out.tdValue[e]) ? out.tdValue[e] : null });
+    if (out.hasData[e] && reason)
+      w.rejections.push({ channel: out.channel, reference, epoch: e, reason, value: Number.isFinite(out.tdValue[e]) ? out.tdValue[e] : null });
   }
   for (const r of outliers) w.rejections.push({ channel: out.channel, reference, epoch: r.epoch, reason: r.reason, value: r.value });
   const nBands = grid.bandIdx.length;
@@ -111,15 +121,35 @@ function finishOutput(out: OutputState, oi: number, reference: ReferenceKind, bl
 }
 
 /** The mean and median stage averages of one estimator's epoch spectra, as spectra rows, and their fits. */
-function storeStage(out: OutputState, spectra: Float32Array, nu: number, estimator: Estimator, stage: Stage, reference: ReferenceKind, rows: number[], K: number, w: FinishWork): void {
+function storeStage(
+  out: OutputState,
+  spectra: Float32Array,
+  nu: number,
+  estimator: Estimator,
+  stage: Stage,
+  reference: ReferenceKind,
+  rows: number[],
+  K: number,
+  w: FinishWork,
+): void {
   const grid = out.grid;
   const avg = averageStage(spectra, grid.nStored, rows, nu, w.params.minEpochs);
   if (!avg) return;
   for (const averaging of ['mean', 'median'] as const) {
     const power = Float32Array.from(averaging === 'mean' ? avg.mean : avg.median);
     w.spectra.push({
-      channel: out.channel, stage, reference, averaging, estimator, nEpochs: avg.nEpochs, nSegments: avg.nEpochs * K,
-      freqStartHz: 0, freqStepHz: grid.step, power, flagged: avg.flagged, flagReason: avg.flagReason,
+      channel: out.channel,
+      stage,
+      reference,
+      averaging,
+      estimator,
+      nEpochs: avg.nEpochs,
+      nSegments: avg.nEpochs * K,
+      freqStartHz: 0,
+      freqStepHz: grid.step,
+      power,
+      flagged: avg.flagged,
+      flagReason: avg.flagReason,
     });
     if (grid.fitRange) fitOne(power, grid.freqs, grid.fitRange, { channel: out.channel, stage, reference, averaging, estimator }, w);
   }
@@ -138,12 +168,34 @@ function fitOne(
   let fitQ: { r2: number | null; exponent: number | null } = { r2: null, exponent: null };
   try {
     const fit = fitSpectrum(freqs, power, { ...fitOptions, fitRangeHz: fitRange });
-    w.aperiodic.push({ ...key, method: fit.method, fitLoHz: fit.fitLoHz, fitHiHz: fit.fitHiHz, offset: fit.offset, exponent: fit.exponent, knee: fit.knee, r2: fit.r2, rmse: fit.rmse, nPeaks: fit.peaks.length });
+    w.aperiodic.push({
+      ...key,
+      method: fit.method,
+      fitLoHz: fit.fitLoHz,
+      fitHiHz: fit.fitHiHz,
+      offset: fit.offset,
+      exponent: fit.exponent,
+      knee: fit.knee,
+      r2: fit.r2,
+      rmse: fit.rmse,
+      nPeaks: fit.peaks.length,
+    });
     for (const p of fit.peaks) w.peaks.push({ ...key, method: fit.method, centerHz: p.centerHz, height: p.height, bandwidthHz: p.bandwidthHz });
     fitQ = fit;
   } catch {
     // a spectrum that cannot be fitted keeps a row with empty values; aperiodicQuality flags it
-    w.aperiodic.push({ ...key, method: 'fit', fitLoHz: fitRange[0], fitHiHz: fitRange[1], offset: null, exponent: null, knee: null, r2: null, rmse: null, nPeaks: null });
+    w.aperiodic.push({
+      ...key,
+      method: 'fit',
+      fitLoHz: fitRange[0],
+      fitHiHz: fitRange[1],
+      offset: null,
+      exponent: null,
+      knee: null,
+      r2: null,
+      rmse: null,
+      nPeaks: null,
+    });
   }
   // fit-quality rows from the Welch fits only: the quality screen reads Welch (one row per metric and cell)
   if (key.averaging === 'mean' && key.estimator === 'welch') {

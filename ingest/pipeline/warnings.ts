@@ -38,7 +38,12 @@ export function unitWarnings(selected: readonly Selected[]): WarningRow[] {
   for (const s of selected) {
     const unit = s.signal.physicalDimension.trim();
     if (unit === '') out.push({ step: 'channels', field: 'physical dimension', message: `channel ${s.name}: no physical dimension, taken as µV` });
-    else if (s.toUv !== 1) out.push({ step: 'channels', field: 'physical dimension', message: `channel ${s.name}: recorded in ${unit}, samples and physical limits scaled ×${s.toUv} to µV` });
+    else if (s.toUv !== 1)
+      out.push({
+        step: 'channels',
+        field: 'physical dimension',
+        message: `channel ${s.name}: recorded in ${unit}, samples and physical limits scaled ×${s.toUv} to µV`,
+      });
   }
   return out;
 }

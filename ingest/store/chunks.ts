@@ -17,12 +17,7 @@ export type CellValue = string | number | boolean | Date | Float32Array | Uint16
 export type ColumnSources = Record<string, (row: number) => CellValue>;
 
 /** Append rowCount rows to table, column values read from sources. Runs inside the caller's transaction. */
-export async function appendColumns(
-  connection: DuckDBConnection,
-  table: TableDef,
-  rowCount: number,
-  sources: ColumnSources,
-): Promise<void> {
+export async function appendColumns(connection: DuckDBConnection, table: TableDef, rowCount: number, sources: ColumnSources): Promise<void> {
   if (rowCount === 0) return;
   for (const name of Object.keys(sources)) {
     if (!table.columns.some((c) => c.name === name)) throw new StoreError(`no such column`, { table: table.name, column: name });
@@ -40,7 +35,8 @@ export async function appendColumns(
       throw new StoreError(`database has ${types.length} columns, schema.ts has ${table.columns.length}`, { table: table.name });
     }
     table.columns.forEach((def, c) => {
-      if (types[c].typeId !== TYPE_ID[def.type]) throw new StoreError(`database column is ${types[c].toString()}, schema.ts says ${def.type}`, { table: table.name, column: def.name });
+      if (types[c].typeId !== TYPE_ID[def.type])
+        throw new StoreError(`database column is ${types[c].toString()}, schema.ts says ${def.type}`, { table: table.name, column: def.name });
     });
     const encoded = new Map<string, Uint8Array>();
     const chunkRows = duckdb.vector_size();
@@ -68,7 +64,17 @@ export async function appendColumns(
 }
 
 /** DuckDB type id (duckdb.h duckdb_type) of each schema type; JSON is a VARCHAR with an alias. */
-const TYPE_ID: Record<SqlType, number> = { VARCHAR: 17, JSON: 17, INTEGER: 4, DOUBLE: 11, FLOAT: 10, BOOLEAN: 1, TIMESTAMP: 12, 'FLOAT[]': 24, 'USMALLINT[]': 24 };
+const TYPE_ID: Record<SqlType, number> = {
+  VARCHAR: 17,
+  JSON: 17,
+  INTEGER: 4,
+  DOUBLE: 11,
+  FLOAT: 10,
+  BOOLEAN: 1,
+  TIMESTAMP: 12,
+  'FLOAT[]': 24,
+  'USMALLINT[]': 24,
+};
 
 /**
  * One scalar column of a chunk: each value checked, then numbers, booleans and timestamps copied
@@ -102,7 +108,8 @@ function fillScalar(
       let bytes = encoded.get(v as string);
       if (bytes === undefined) encoded.set(v as string, (bytes = UTF8.encode(v as string)));
       duckdb.vector_assign_string_element_len(vector, i, bytes);
-    } else if (block instanceof BigInt64Array) block[i] = BigInt((v as Date).getTime()) * 1000n; // TIMESTAMP: µs since the epoch
+    } else if (block instanceof BigInt64Array)
+      block[i] = BigInt((v as Date).getTime()) * 1000n; // TIMESTAMP: µs since the epoch
     else block[i] = v === true ? 1 : v === false ? 0 : (v as number);
   }
   if (block && n > 0) duckdb.copy_data_to_vector(vector, 0, block.buffer as ArrayBuffer, 0, block.byteLength);
@@ -131,8 +138,15 @@ function newBlock(type: SqlType, n: number): Int32Array | Float64Array | Float32
 }
 
 const EXPECTED: Record<SqlType, string> = {
-  VARCHAR: 'a string', JSON: 'a string', INTEGER: 'a 32-bit integer', DOUBLE: 'a finite number (null for missing)',
-  FLOAT: 'a finite number (null for missing)', BOOLEAN: 'a boolean', TIMESTAMP: 'a Date', 'FLOAT[]': 'a Float32Array', 'USMALLINT[]': 'a Uint16Array',
+  VARCHAR: 'a string',
+  JSON: 'a string',
+  INTEGER: 'a 32-bit integer',
+  DOUBLE: 'a finite number (null for missing)',
+  FLOAT: 'a finite number (null for missing)',
+  BOOLEAN: 'a boolean',
+  TIMESTAMP: 'a Date',
+  'FLOAT[]': 'a Float32Array',
+  'USMALLINT[]': 'a Uint16Array',
 };
 
 function fits(type: SqlType, v: CellValue): boolean {
@@ -165,15 +179,7 @@ function describe(value: unknown): string {
 }
 
 /** FLOAT[] and USMALLINT[]: list entries (offset, length) per row, then all values copied into the list's child vector at once. */
-function fillList(
-  chunk: DuckDBDataChunk,
-  column: number,
-  def: ColumnDef,
-  table: string,
-  start: number,
-  n: number,
-  get: (row: number) => CellValue,
-): void {
+function fillList(chunk: DuckDBDataChunk, column: number, def: ColumnDef, table: string, start: number, n: number, get: (row: number) => CellValue): void {
   const floats = def.type === 'FLOAT[]';
   const lists: (Float32Array | Uint16Array)[] = new Array(n);
   const entries = new BigUint64Array(2 * n);

@@ -45,9 +45,7 @@ export async function openStore(path: string, options: OpenOptions = {}): Promis
   if (exists) {
     const number = readHeaderStorageNumber(path);
     if (number > MAX_READABLE_STORAGE_NUMBER) {
-      throw new StoreError(
-        `${path} has storage version number ${number}; the browser dashboard reads at most ${MAX_READABLE_STORAGE_NUMBER} (v1.4.x)`,
-      );
+      throw new StoreError(`${path} has storage version number ${number}; the browser dashboard reads at most ${MAX_READABLE_STORAGE_NUMBER} (v1.4.x)`);
     }
   }
   // An engine with no database of its own, the file ATTACHed and made the default: storage
@@ -80,7 +78,11 @@ export async function openStore(path: string, options: OpenOptions = {}): Promis
     if ((tables.length > 0 || options.readOnly) && !tables.includes('runs')) {
       connection.closeSync();
       instance.closeSync();
-      throw new StoreError(tables.length > 0 ? `${path} was not written by bandwise (it has no runs table; its tables: ${tables.join(', ')})` : `${path} holds no bandwise data (no tables)`);
+      throw new StoreError(
+        tables.length > 0
+          ? `${path} was not written by bandwise (it has no runs table; its tables: ${tables.join(', ')})`
+          : `${path} holds no bandwise data (no tables)`,
+      );
     }
   }
   if (!options.readOnly) {
@@ -133,7 +135,10 @@ export async function checkpointLeftoverLog(path: string): Promise<boolean> {
     await connection.run(`ATTACH '${path.replaceAll("'", "''")}' AS ${STORE_ALIAS}`);
     await connection.run(`CHECKPOINT ${STORE_ALIAS}`);
   } catch (e) {
-    throw DatabaseBusyError.from(path, false, e) ?? new StoreError(`${path} has a write-ahead log ${wal} that could not be written into it: ${(e as Error).message}`);
+    throw (
+      DatabaseBusyError.from(path, false, e) ??
+      new StoreError(`${path} has a write-ahead log ${wal} that could not be written into it: ${(e as Error).message}`)
+    );
   } finally {
     connection.closeSync();
     instance.closeSync();

@@ -10,7 +10,9 @@ export async function appendEpochSpectra(c: DuckDBConnection, recordingId: strin
   for (const es of blocks) {
     const n = es.epoch.length;
     if (es.log10Min.length !== n || es.log10Step.length !== n || es.levels.length !== n * es.nBins) {
-      throw new StoreError(`epoch spectra of ${es.channel}: columns differ in length (epochs ${n}, levels ${es.levels.length} for ${es.nBins} bins a row)`, { table: 'epoch_spectra' });
+      throw new StoreError(`epoch spectra of ${es.channel}: columns differ in length (epochs ${n}, levels ${es.levels.length} for ${es.nBins} bins a row)`, {
+        table: 'epoch_spectra',
+      });
     }
     await appendColumns(c, tableDef('epoch_spectra'), n, {
       recording_id: () => recordingId,

@@ -19,7 +19,9 @@ export interface IngestErrorIn {
 
 /** SHA-256 (base64) of a failure's fields: its key among the run's recorded failures. */
 function errorKey(e: Omit<IngestErrorIn, 'runId'>): string {
-  return createHash('sha256').update(JSON.stringify([e.file, e.step, e.field, e.message])).digest('base64');
+  return createHash('sha256')
+    .update(JSON.stringify([e.file, e.step, e.field, e.message]))
+    .digest('base64');
 }
 
 export class ErrorRows {
@@ -54,7 +56,14 @@ export class ErrorRows {
     if (!keys) {
       const reader = await this.connection.runAndReadAll('SELECT file, step, field, message FROM ingest_errors WHERE run_id = $1', [runId]);
       keys = new Set(
-        reader.getRowObjectsJS().map((r) => errorKey({ file: r.file === null ? null : String(r.file), step: String(r.step), field: r.field === null ? null : String(r.field), message: String(r.message) })),
+        reader.getRowObjectsJS().map((r) =>
+          errorKey({
+            file: r.file === null ? null : String(r.file),
+            step: String(r.step),
+            field: r.field === null ? null : String(r.field),
+            message: String(r.message),
+          }),
+        ),
       );
       this.recorded.set(runId, keys);
     }

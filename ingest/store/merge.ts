@@ -50,10 +50,28 @@ export interface MergeSummary {
 }
 
 /** Tables holding one recording's rows (all have recording_id). */
-const RECORDING_TABLES = ['recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'epoch_spectra', 'aperiodic', 'peaks', 'quality', 'reference_skips', 'warnings'];
+const RECORDING_TABLES = [
+  'recordings',
+  'channels',
+  'epochs',
+  'epoch_rejections',
+  'spectra',
+  'epoch_band_power',
+  'epoch_spectra',
+  'aperiodic',
+  'peaks',
+  'quality',
+  'reference_skips',
+  'warnings',
+];
 
 /** Columns that hold the time a row was written: they differ between runs and are not compared. */
-const TIME_COLUMNS: Record<string, string[]> = { runs: ['started_at', 'finished_at'], recordings: ['ingested_at'], ingest_errors: ['logged_at'], warnings: ['logged_at'] };
+const TIME_COLUMNS: Record<string, string[]> = {
+  runs: ['started_at', 'finished_at'],
+  recordings: ['ingested_at'],
+  ingest_errors: ['logged_at'],
+  warnings: ['logged_at'],
+};
 
 /** Quality metrics that depend on the whole cohort: recomputed after the merge, not copied. */
 const COHORT_METRICS = ['cohort-distance'];
@@ -115,30 +133,41 @@ export async function mergeShards(shardPaths: readonly string[], outPath: string
 }
 
 async function mergeInto(store: Store, shardPaths: readonly string[], options: MergeOptions): Promise<MergeSummary> {
-  return store.exclusive(async () => {
-    const c = store.connection;
-    const alias = shardPaths.map((_, i) => `shard${i}`);
-    for (let i = 0; i < shardPaths.length; i++) {
-      await c.run(`ATTACH ${sqlText(path.resolve(shardPaths[i]))} AS ${alias[i]} (READ_ONLY)`);
-    }
-    try {
-      for (let i = 0; i < shardPaths.length; i++) await checkTables(c, alias[i], shardPaths[i]);
-      const runs = await checkRuns(c, alias, shardPaths);
-      const missingShards = checkShardLabels(runs, shardPaths, options.allowMissingShards ?? false);
-      await copyRuns(c, alias, missingShards.length > 0 ? [...new Set(runs.flat().map((r) => r.shard))].filter((s) => s !== null).sort().join(',') : null);
-      await copyParticipants(c, alias, shardPaths);
-      const duplicatesDropped = await copyRecordings(c, alias, shardPaths);
-      await copyErrors(c, alias);
-      const recordings = Number((await rows(c, 'SELECT count(*) AS n FROM recordings'))[0].n);
-      return { out: '', shards: shardPaths.length, runIds: runs[0].map((r) => r.runId), recordings, duplicatesDropped, missingShards, cohortQualityRows: 0 };
-    } finally {
-      for (const a of alias) await c.run(`DETACH ${a}`);
-    }
-  }).then(async (summary) => {
-    summary.cohortQualityRows = await cohortQualityPass(store);
-    await sortSpectra(store); // a no-op check: the rows went in sorted
-    return summary;
-  });
+  return store
+    .exclusive(async () => {
+      const c = store.connection;
+      const alias = shardPaths.map((_, i) => `shard${i}`);
+      for (let i = 0; i < shardPaths.length; i++) {
+        await c.run(`ATTACH ${sqlText(path.resolve(shardPaths[i]))} AS ${alias[i]} (READ_ONLY)`);
+      }
+      try {
+        for (let i = 0; i < shardPaths.length; i++) await checkTables(c, alias[i], shardPaths[i]);
+        const runs = await checkRuns(c, alias, shardPaths);
+        const missingShards = checkShardLabels(runs, shardPaths, options.allowMissingShards ?? false);
+        await copyRuns(
+          c,
+          alias,
+          missingShards.length > 0
+            ? [...new Set(runs.flat().map((r) => r.shard))]
+                .filter((s) => s !== null)
+                .sort()
+                .join(',')
+            : null,
+        );
+        await copyParticipants(c, alias, shardPaths);
+        const duplicatesDropped = await copyRecordings(c, alias, shardPaths);
+        await copyErrors(c, alias);
+        const recordings = Number((await rows(c, 'SELECT count(*) AS n FROM recordings'))[0].n);
+        return { out: '', shards: shardPaths.length, runIds: runs[0].map((r) => r.runId), recordings, duplicatesDropped, missingShards, cohortQualityRows: 0 };
+      } finally {
+        for (const a of alias) await c.run(`DETACH ${a}`);
+      }
+    })
+    .then(async (summary) => {
+      summary.cohortQualityRows = await cohortQualityPass(store);
+      await sortSpectra(store); // a no-op check: the rows went in sorted
+      return summary;
+    });
 }
 
 /** Every fixed table of schema.ts, with every column, must be in the shard. */
@@ -158,12 +187,21 @@ async function checkRuns(c: DuckDBConnection, alias: string[], shown: readonly s
   for (let i = 0; i < alias.length; i++) {
     const found = await rows(c, `SELECT run_id, tool_version, parameters, finished_at IS NOT NULL AS finished, shard FROM ${alias[i]}.runs ORDER BY run_id`);
     if (found.length === 0) throw new MergeError(`${shown[i]}: no runs; nothing was ingested into it`);
-    perShard.push(found.map((r) => ({ runId: String(r.run_id), toolVersion: String(r.tool_version), parameters: String(r.parameters), finished: Boolean(r.finished), shard: r.shard === null ? null : String(r.shard) })));
+    perShard.push(
+      found.map((r) => ({
+        runId: String(r.run_id),
+        toolVersion: String(r.tool_version),
+        parameters: String(r.parameters),
+        finished: Boolean(r.finished),
+        shard: r.shard === null ? null : String(r.shard),
+      })),
+    );
   }
   const first = perShard[0];
   for (let i = 0; i < perShard.length; i++) {
     for (const run of perShard[i]) {
-      if (!run.finished) throw new MergeError(`${shown[i]}: run ${run.runId} has not finished (interrupted?); rerun that shard's ingest to complete it, then merge`);
+      if (!run.finished)
+        throw new MergeError(`${shown[i]}: run ${run.runId} has not finished (interrupted?); rerun that shard's ingest to complete it, then merge`);
     }
     if (i === 0) continue;
     const ids = perShard[i].map((r) => r.runId);
@@ -182,7 +220,9 @@ async function checkRuns(c: DuckDBConnection, alias: string[], shown: readonly s
     for (const run of perShard[i]) {
       const ref = first.find((r) => r.runId === run.runId)!;
       if (ref.toolVersion !== run.toolVersion) {
-        throw new MergeError(`run ${run.runId}: ${shown[0]} was written by bandwise ${ref.toolVersion}, ${shown[i]} by ${run.toolVersion}; results of two tool versions are not merged`);
+        throw new MergeError(
+          `run ${run.runId}: ${shown[0]} was written by bandwise ${ref.toolVersion}, ${shown[i]} by ${run.toolVersion}; results of two tool versions are not merged`,
+        );
       }
       if (ref.parameters !== run.parameters) {
         const keys = parameterDifferences(JSON.parse(ref.parameters), JSON.parse(run.parameters));
@@ -203,7 +243,8 @@ function checkShardLabels(runs: ShardRun[][], shown: readonly string[], allowMis
       const m = /^(\d+)\/(\d+)$/.exec(label);
       if (!m) throw new MergeError(`${shown[i]}: runs.shard is '${label}', expected K/N`);
       const n = Number(m[2]);
-      if (count !== null && n !== count) throw new MergeError(`${shown[i]} is shard ${label}, other inputs are shards of ${count}: shards of different splits are not merged`);
+      if (count !== null && n !== count)
+        throw new MergeError(`${shown[i]} is shard ${label}, other inputs are shards of ${count}: shards of different splits are not merged`);
       count = n;
       if (labels.has(label) && labels.get(label) !== shown[i]) throw new MergeError(`shard ${label} is given twice: ${labels.get(label)} and ${shown[i]}`);
       labels.set(label, shown[i]);
@@ -214,12 +255,18 @@ function checkShardLabels(runs: ShardRun[][], shown: readonly string[], allowMis
   if (count === null || whole) return [];
   const missing = Array.from({ length: count }, (_, k) => `${k + 1}/${count}`).filter((l) => !labels.has(l));
   if (missing.length > 0 && !allowMissing) {
-    throw new MergeError(`shard(s) ${missing.join(', ')} missing from the inputs; merge all ${count} shards, or allow a partial merge (--allow-missing-shards)`);
+    throw new MergeError(
+      `shard(s) ${missing.join(', ')} missing from the inputs; merge all ${count} shards, or allow a partial merge (--allow-missing-shards)`,
+    );
   }
   return missing;
 }
 
-const columnList = (t: TableDef, skip: readonly string[] = []) => t.columns.filter((c) => !skip.includes(c.name)).map((c) => quoteIdent(c.name)).join(', ');
+const columnList = (t: TableDef, skip: readonly string[] = []) =>
+  t.columns
+    .filter((c) => !skip.includes(c.name))
+    .map((c) => quoteIdent(c.name))
+    .join(', ');
 const table = (name: string) => TABLES.find((t) => t.name === name)!;
 
 async function copyRuns(c: DuckDBConnection, alias: string[], partialLabel: string | null): Promise<void> {
@@ -237,12 +284,17 @@ async function copyParticipants(c: DuckDBConnection, alias: string[], shown: rea
   const withTable: number[] = [];
   let columns: { name: string; type: 'DOUBLE' | 'VARCHAR' }[] | null = null;
   for (let i = 0; i < alias.length; i++) {
-    const cols = await rows(c, 'SELECT column_name, data_type FROM duckdb_columns() WHERE database_name = $1 AND table_name = $2 ORDER BY column_index', [alias[i], 'participants']);
+    const cols = await rows(c, 'SELECT column_name, data_type FROM duckdb_columns() WHERE database_name = $1 AND table_name = $2 ORDER BY column_index', [
+      alias[i],
+      'participants',
+    ]);
     if (cols.length === 0) continue;
     const these = cols.map((r) => ({ name: String(r.column_name), type: String(r.data_type) === 'DOUBLE' ? ('DOUBLE' as const) : ('VARCHAR' as const) }));
     if (columns === null) columns = these;
     else if (canonicalJson(columns) !== canonicalJson(these)) {
-      throw new MergeError(`participants columns differ: ${shown[withTable[0]]} has ${columns.map((x) => `${x.name} ${x.type}`).join(', ')}; ${shown[i]} has ${these.map((x) => `${x.name} ${x.type}`).join(', ')} — were the shards ingested from the same cohort table?`);
+      throw new MergeError(
+        `participants columns differ: ${shown[withTable[0]]} has ${columns.map((x) => `${x.name} ${x.type}`).join(', ')}; ${shown[i]} has ${these.map((x) => `${x.name} ${x.type}`).join(', ')} — were the shards ingested from the same cohort table?`,
+      );
     }
     withTable.push(i);
   }
@@ -257,7 +309,9 @@ async function copyParticipants(c: DuckDBConnection, alias: string[], shown: rea
          EXCEPT (SELECT ${cols} FROM participants)) ORDER BY subject LIMIT 5`,
     );
     if (conflict.length > 0) {
-      throw new MergeError(`participants differ between shards for subject(s) ${conflict.map((r) => String(r.subject)).join(', ')} (in ${shown[i]}): were the shards ingested from the same cohort table?`);
+      throw new MergeError(
+        `participants differ between shards for subject(s) ${conflict.map((r) => String(r.subject)).join(', ')} (in ${shown[i]}): were the shards ingested from the same cohort table?`,
+      );
     }
     await c.run(`INSERT INTO participants (${cols}) SELECT ${cols} FROM ${a}.participants WHERE subject NOT IN (SELECT subject FROM participants)`);
   }
@@ -272,7 +326,10 @@ async function copyRecordings(c: DuckDBConnection, alias: string[], shown: reado
   const union = alias.map((a, i) => `SELECT recording_id, ${i} AS src FROM ${a}.recordings`).join(' UNION ALL ');
   await c.run(`CREATE TEMP TABLE merge_sources AS ${union}`);
   await c.run('CREATE TEMP TABLE merge_owner AS SELECT recording_id, min(src) AS src FROM merge_sources GROUP BY recording_id');
-  const pairs = await rows(c, `SELECT o.src AS a, s.src AS b, count(*) AS n FROM merge_sources s JOIN merge_owner o USING (recording_id) WHERE s.src <> o.src GROUP BY ALL ORDER BY a, b`);
+  const pairs = await rows(
+    c,
+    `SELECT o.src AS a, s.src AS b, count(*) AS n FROM merge_sources s JOIN merge_owner o USING (recording_id) WHERE s.src <> o.src GROUP BY ALL ORDER BY a, b`,
+  );
   let dropped = 0;
   const notCohort = `metric NOT IN (${COHORT_METRICS.map(sqlText).join(', ')})`;
   for (const p of pairs) {
@@ -321,7 +378,10 @@ async function copyRecordings(c: DuckDBConnection, alias: string[], shown: reado
  * shards (same run, file, step, field, message) once. (Warnings of a recording go with it.)
  */
 async function copyErrors(c: DuckDBConnection, alias: string[]): Promise<void> {
-  for (const [name, where] of [['ingest_errors', 'TRUE'], ['warnings', 'e.recording_id IS NULL']] as const) {
+  for (const [name, where] of [
+    ['ingest_errors', 'TRUE'],
+    ['warnings', 'e.recording_id IS NULL'],
+  ] as const) {
     const cols = columnList(table(name));
     for (const a of alias) {
       await c.run(
@@ -350,8 +410,14 @@ export async function cohortQualityPass(store: Store): Promise<number> {
   return store.exclusive(async () => {
     const c = store.connection;
     const rows = {
-      recordingId: [] as string[], channel: [] as string[], stage: [] as Stage[], reference: [] as Reference[],
-      value: [] as (number | null)[], flagged: [] as boolean[], reason: [] as (string | null)[], severity: [] as number[],
+      recordingId: [] as string[],
+      channel: [] as string[],
+      stage: [] as Stage[],
+      reference: [] as Reference[],
+      value: [] as (number | null)[],
+      flagged: [] as boolean[],
+      reason: [] as (string | null)[],
+      severity: [] as number[],
     };
     let key: string | null = null;
     let head: Record<string, unknown> = {};

@@ -150,19 +150,35 @@ export class Store {
   }
 
   /** The subject, session, file name and scoring source a recording with this file hash is stored under in this run, or null. */
-  storedRecording(runId: string, fileSha256: string): Promise<{ subject: string; session: string | null; fileName: string; scoringSource: string | null } | null> {
+  storedRecording(
+    runId: string,
+    fileSha256: string,
+  ): Promise<{ subject: string; session: string | null; fileName: string; scoringSource: string | null } | null> {
     return this.exclusive(async () => {
-      const found = await this.rows('SELECT subject, session, file_name, scoring_source FROM recordings WHERE run_id = $1 AND file_sha256 = $2', [runId, fileSha256]);
+      const found = await this.rows('SELECT subject, session, file_name, scoring_source FROM recordings WHERE run_id = $1 AND file_sha256 = $2', [
+        runId,
+        fileSha256,
+      ]);
       if (found.length === 0) return null;
       const text = (v: unknown) => (v === null ? null : String(v));
-      return { subject: String(found[0].subject), session: text(found[0].session), fileName: String(found[0].file_name), scoringSource: text(found[0].scoring_source) };
+      return {
+        subject: String(found[0].subject),
+        session: text(found[0].session),
+        fileName: String(found[0].file_name),
+        scoringSource: text(found[0].scoring_source),
+      };
     });
   }
 
   /** Replace what a stored recording says of its file (what --file-names keeps changed since it was stored). */
   renameRecording(runId: string, fileSha256: string, names: { fileName: string; scoringSource: string | null }): Promise<void> {
     return this.exclusive(async () => {
-      await this.connection.run('UPDATE recordings SET file_name = $3, scoring_source = $4 WHERE run_id = $1 AND file_sha256 = $2', [runId, fileSha256, names.fileName, names.scoringSource]);
+      await this.connection.run('UPDATE recordings SET file_name = $3, scoring_source = $4 WHERE run_id = $1 AND file_sha256 = $2', [
+        runId,
+        fileSha256,
+        names.fileName,
+        names.scoringSource,
+      ]);
     });
   }
 
@@ -173,10 +189,9 @@ export class Store {
       const id = recordingIdFor(bundle.runId, bundle.recording.fileSha256);
       const stored = await this.rows('SELECT 1 AS one FROM recordings WHERE recording_id = $1', [id]);
       if (stored.length > 0) {
-        throw new StoreError(
-          `${bundle.recording.fileName} (file hash ${bundle.recording.fileSha256.slice(0, 12)}…) is already stored in run ${bundle.runId}`,
-          { table: 'recordings' },
-        );
+        throw new StoreError(`${bundle.recording.fileName} (file hash ${bundle.recording.fileSha256.slice(0, 12)}…) is already stored in run ${bundle.runId}`, {
+          table: 'recordings',
+        });
       }
       await this.transaction(async () => {
         await writeBundleTables(this.connection, id, bundle);
@@ -227,9 +242,7 @@ export class Store {
   /** Storage compatibility of the open file as DuckDB reports it (duckdb_databases().tags), e.g. "v1.4.0+". */
   storageVersion(): Promise<string> {
     return this.exclusive(async () => {
-      const found = await this.rows(
-        "SELECT tags['storage_version'] AS v FROM duckdb_databases() WHERE database_name = current_database()",
-      );
+      const found = await this.rows("SELECT tags['storage_version'] AS v FROM duckdb_databases() WHERE database_name = current_database()");
       if (found.length === 0 || found[0].v === null) throw new StoreError('DuckDB reports no storage version for this file');
       return String(found[0].v);
     });

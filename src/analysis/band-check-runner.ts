@@ -17,8 +17,27 @@ export interface BandCheckRun extends BandCheckResult, PartFields {
   database: { file: string; runId: string; toolVersion: string; ingestParameters: unknown; runFinished: boolean };
 }
 
-export async function bandCheckDatabase(dbPath: string, c: Contrast, band: Band, exclusions: Exclusion[], options: Omit<BandCheckOptions, 'fitRangeHz'> = {}, runId?: string): Promise<BandCheckRun> {
+export async function bandCheckDatabase(
+  dbPath: string,
+  c: Contrast,
+  band: Band,
+  exclusions: Exclusion[],
+  options: Omit<BandCheckOptions, 'fitRangeHz'> = {},
+  runId?: string,
+): Promise<BandCheckRun> {
   const loaded = await withDatabase(dbPath, async (db) => loadBandCheckData(db, await cohortSchema(db), await runs(db), c, exclusions, runId));
   const result = bandCheck(c, band, loaded.data, { ...options, fitRangeHz: loaded.fitRangeHz });
-  return bandCheckOnPart({ ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters, runFinished: loaded.runFinished } }, loaded.view);
+  return bandCheckOnPart(
+    {
+      ...result,
+      database: {
+        file: dbPath.split(/[\\/]/).pop()!,
+        runId: loaded.runId,
+        toolVersion: loaded.toolVersion,
+        ingestParameters: loaded.runParameters,
+        runFinished: loaded.runFinished,
+      },
+    },
+    loaded.view,
+  );
 }

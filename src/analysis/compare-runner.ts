@@ -29,7 +29,12 @@ export interface CompareOptions {
 }
 
 /** What a contrast reads from a database file (src/queries/contrast-data.ts over Node's DuckDB), the file closed after. */
-export function readContrast(dbPath: string, c: Contrast, exclusions: readonly Exclusion[], options: { runId?: string; maxHz?: number; part?: Part } = {}): Promise<LoadedContrast> {
+export function readContrast(
+  dbPath: string,
+  c: Contrast,
+  exclusions: readonly Exclusion[],
+  options: { runId?: string; maxHz?: number; part?: Part } = {},
+): Promise<LoadedContrast> {
   return withDatabase(dbPath, async (db) => loadContrastData(db, await cohortSchema(db), await runs(db), c, exclusions, options));
 }
 
@@ -40,7 +45,14 @@ export function readContrast(dbPath: string, c: Contrast, exclusions: readonly E
  * DuckDB's cached pages are not held during them; the power lists are read only up to the
  * highest frequency the measure uses (contrastMaxHz).
  */
-async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[], runId: string | undefined, threads: number | undefined, part: Part | undefined): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
+async function loadAssembled(
+  dbPath: string,
+  c: Contrast,
+  exclusions: Exclusion[],
+  runId: string | undefined,
+  threads: number | undefined,
+  part: Part | undefined,
+): Promise<{ info: Omit<LoadedContrast, 'data'>; assembled: AssembledContrast; threads: number }> {
   const loaded = await readContrast(dbPath, c, exclusions, { runId, maxHz: contrastMaxHz(c), part });
   const { data, ...info } = loaded;
   const assembled = assembleContrast(checkBandDefinition(c), data);
@@ -53,9 +65,29 @@ async function loadAssembled(dbPath: string, c: Contrast, exclusions: Exclusion[
  * finishCompare (src/core/contrast/run.ts) on this thread, or with the permutations split over
  * worker threads too (compare-threads.ts); either way the result equals compare() on the rows read.
  */
-export async function compareDatabase(dbPath: string, c: Contrast, exclusions: Exclusion[], onProgress?: ProgressCallback, runId?: string, options: CompareOptions = {}): Promise<CompareRun> {
-  if (options.threads !== undefined && !(Number.isInteger(options.threads) && options.threads >= 1)) throw new RangeError(`invalid number of threads: ${options.threads}`);
+export async function compareDatabase(
+  dbPath: string,
+  c: Contrast,
+  exclusions: Exclusion[],
+  onProgress?: ProgressCallback,
+  runId?: string,
+  options: CompareOptions = {},
+): Promise<CompareRun> {
+  if (options.threads !== undefined && !(Number.isInteger(options.threads) && options.threads >= 1))
+    throw new RangeError(`invalid number of threads: ${options.threads}`);
   const { info, assembled, threads } = await loadAssembled(dbPath, c, exclusions, runId, options.threads, options.part);
   const result = await compareOnThreads(c, assembled, threads, onProgress);
-  return compareOnPart({ ...result, database: { file: dbPath.split(/[\\/]/).pop()!, runId: info.runId, toolVersion: info.toolVersion, ingestParameters: info.runParameters, runFinished: info.runFinished } }, info.view);
+  return compareOnPart(
+    {
+      ...result,
+      database: {
+        file: dbPath.split(/[\\/]/).pop()!,
+        runId: info.runId,
+        toolVersion: info.toolVersion,
+        ingestParameters: info.runParameters,
+        runFinished: info.runFinished,
+      },
+    },
+    info.view,
+  );
 }

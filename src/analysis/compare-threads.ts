@@ -82,19 +82,26 @@ export async function compareOnThreads(c: Contrast, assembly: AssembledContrast,
     const p = prepareAssembled(c, assembly);
     const count = p.prepared.test.scheme.count;
     // the workers' progress, read from their ports; synchronously while this thread computes
-    const report = () => onProgress?.(done.reduce((a, b) => a + b, 0), count);
-    const drain = () => ports.forEach((port, i) => {
-      for (let m = receiveMessageOnPort(port); m; m = receiveMessageOnPort(port)) done[i + 1] = (m.message as { done: number }).done;
-    });
+    const report = () =>
+      onProgress?.(
+        done.reduce((a, b) => a + b, 0),
+        count,
+      );
+    const drain = () =>
+      ports.forEach((port, i) => {
+        for (let m = receiveMessageOnPort(port); m; m = receiveMessageOnPort(port)) done[i + 1] = (m.message as { done: number }).done;
+      });
     const own = runPermutations(p.prepared.test, permutationShare(count, 0, threads), (d) => {
       done[0] = d;
       drain();
       report();
     });
-    ports.forEach((port, i) => port.on('message', (m: { done: number }) => {
-      done[i + 1] = m.done;
-      report();
-    }));
+    ports.forEach((port, i) =>
+      port.on('message', (m: { done: number }) => {
+        done[i + 1] = m.done;
+        report();
+      }),
+    );
     const others = await nulls;
     drain(); // each worker's last progress was posted before its null maxima
     report();

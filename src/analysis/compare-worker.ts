@@ -46,7 +46,10 @@ port.on('message', (req: CompareWorkRequest) => {
   } catch (e) {
     const err = e instanceof Error ? e : new Error(String(e));
     post({
-      kind: 'error', name: err.name, message: err.message, stack: err.stack,
+      kind: 'error',
+      name: err.name,
+      message: err.message,
+      stack: err.stack,
       ...(err instanceof PermutationTestInputError ? { field: err.field, value: err.value } : {}),
     });
   } finally {

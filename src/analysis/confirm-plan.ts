@@ -33,7 +33,9 @@ async function planAndSplit(dbPath: string, id: string): Promise<{ plan: StoredP
     }
     const split = await readCurrentSplit(store);
     if (split === null || split.stamp.id !== plan.content.split.id) {
-      throw new SplitError(`plan ${id} was locked on split ${plan.content.split.id}, which is no longer the current split${split ? ` (${split.stamp.id} replaced it)` : ''}: its confirmation part is gone`);
+      throw new SplitError(
+        `plan ${id} was locked on split ${plan.content.split.id}, which is no longer the current split${split ? ` (${split.stamp.id} replaced it)` : ''}: its confirmation part is gone`,
+      );
     }
     return { plan, split };
   } finally {
@@ -48,7 +50,9 @@ export async function confirmPlan(dbPath: string, id: string, o: ConfirmOptions)
   const results: CompareRun[] = [];
   for (let k = 0; k < locked.length; k++) {
     const c = unblindContrast(locked[k], splitBlinding(split));
-    results.push(await compareDatabase(dbPath, c, plan.content.exclusions, o.onProgress?.(k), plan.content.runId, { part: 'confirmation', threads: o.threads }));
+    results.push(
+      await compareDatabase(dbPath, c, plan.content.exclusions, o.onProgress?.(k), plan.content.runId, { part: 'confirmation', threads: o.threads }),
+    );
   }
   // recorded once the results exist, before anyone sees them
   const time = new Date().toISOString();

@@ -13,5 +13,8 @@ export interface DeviationRun extends DeviationResult {
 
 export async function deviationDatabase(dbPath: string, spec: DeviationSpec, exclusions: Exclusion[], runId?: string): Promise<DeviationRun> {
   const loaded = await readContrast(dbPath, measureContrast(spec), exclusions, { runId });
-  return { ...deviation(spec, loaded.data), database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters } };
+  return {
+    ...deviation(spec, loaded.data),
+    database: { file: dbPath.split(/[\\/]/).pop()!, runId: loaded.runId, toolVersion: loaded.toolVersion, ingestParameters: loaded.runParameters },
+  };
 }

@@ -40,7 +40,14 @@ export interface LedgerInput {
 export function appendLedger(file: string, database: string, result: LedgerInput): LedgerEntry {
   const ps = (result.clusters ?? []).map((k) => k.p);
   const p = result.p ?? (ps.length > 0 ? Math.min(...ps) : null);
-  const entry: LedgerEntry = { time: new Date().toISOString(), database: database.split(/[\\/]/).pop()!, kind: result.kind, contrast: result.contrast, p, significant: p !== null && p < 0.05 };
+  const entry: LedgerEntry = {
+    time: new Date().toISOString(),
+    database: database.split(/[\\/]/).pop()!,
+    kind: result.kind,
+    contrast: result.contrast,
+    p,
+    significant: p !== null && p < 0.05,
+  };
   if (result.part && result.split) Object.assign(entry, { part: result.part, splitId: result.split.id });
   if (result.plan) Object.assign(entry, { planId: result.plan.id, confirmationRun: result.plan.confirmationRun });
   if (result.details) entry.details = result.details;
@@ -66,11 +73,14 @@ export function tryAppendLedger(file: string, database: string, result: Paramete
 
 export function readLedger(file: string): LedgerEntry[] {
   if (!existsSync(file)) return [];
-  return readFileSync(file, 'utf8').split('\n').filter(Boolean).map((l, i) => {
-    try {
-      return JSON.parse(l) as LedgerEntry;
-    } catch {
-      throw new Error(`${file}: line ${i + 1} is not a ledger entry`);
-    }
-  });
+  return readFileSync(file, 'utf8')
+    .split('\n')
+    .filter(Boolean)
+    .map((l, i) => {
+      try {
+        return JSON.parse(l) as LedgerEntry;
+      } catch {
+        throw new Error(`${file}: line ${i + 1} is not a ledger entry`);
+      }
+    });
 }

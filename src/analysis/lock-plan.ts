@@ -36,7 +36,13 @@ export function splitBlinding(split: StoredSplit) {
 /** Each contrast must name participants columns and groups the database holds (groups of a blinded split by their codes, as while exploring). */
 function checkContrasts(contrasts: readonly Contrast[], table: { columns: { name: string }[]; rows: Row[] }, split: StoredSplit): void {
   const names = table.columns.map((c) => c.name);
-  const values = (col: string) => new Set(table.rows.map((r) => r[col]).filter((v) => v !== null).map(String));
+  const values = (col: string) =>
+    new Set(
+      table.rows
+        .map((r) => r[col])
+        .filter((v) => v !== null)
+        .map(String),
+    );
   contrasts.forEach((c, i) => {
     const where = `contrast ${i + 1}`;
     const used = [...(c.design === 'groups' ? [c.groupColumn] : []), ...(c.design === 'covariate' ? [c.covariate!] : []), ...c.nuisance];
@@ -51,18 +57,31 @@ function checkContrasts(contrasts: readonly Contrast[], table: { columns: { name
   });
 }
 
-export async function lockPlan(dbPath: string, contrasts: Contrast[], exclusions: Exclusion[], runId: string | undefined, ledgerFile: string | null): Promise<LockOutcome> {
+export async function lockPlan(
+  dbPath: string,
+  contrasts: Contrast[],
+  exclusions: Exclusion[],
+  runId: string | undefined,
+  ledgerFile: string | null,
+): Promise<LockOutcome> {
   if (contrasts.length === 0) throw new SplitError('a plan needs at least one contrast (--contrast)');
   const store = await openStore(dbPath);
   try {
     const split = await readCurrentSplit(store);
-    if (split === null) throw new SplitError('the database holds no split: make one first (bandwise split), then lock the plan you explored on its exploration part');
+    if (split === null)
+      throw new SplitError('the database holds no split: make one first (bandwise split), then lock the plan you explored on its exploration part');
     const db = storeClient(store);
     const schema = await cohortSchema(db);
     const run = chooseRun(await runs(db), runId);
     checkContrasts(contrasts, await participants(db, schema), split);
     const s = split.stamp;
-    const content: PlanContent = { format: 1, runId: run.runId, contrasts, exclusions, split: { id: s.id, seed: s.seed, fraction: s.fraction, stratify: s.stratify, blindColumn: s.blindColumn } };
+    const content: PlanContent = {
+      format: 1,
+      runId: run.runId,
+      contrasts,
+      exclusions,
+      split: { id: s.id, seed: s.seed, fraction: s.fraction, stratify: s.stratify, blindColumn: s.blindColumn },
+    };
     const canonical = canonicalJson(content);
     const hash = sha256Hex(canonical);
     const id = planId(hash);
@@ -73,7 +92,13 @@ export async function lockPlan(dbPath: string, contrasts: Contrast[], exclusions
       await insertPlan(store, plan, canonical);
     }
     const looks = await looksAtConfirmation(store, split, plan.lockedAt, ledgerFile, dbPath);
-    if (!before && ledgerFile) appendLedger(ledgerFile, dbPath, { kind: 'lock', contrast: contrasts, p: null, details: { planId: id, hash, splitId: s.id, runId: run.runId, exclusions: exclusions.length } });
+    if (!before && ledgerFile)
+      appendLedger(ledgerFile, dbPath, {
+        kind: 'lock',
+        contrast: contrasts,
+        p: null,
+        details: { planId: id, hash, splitId: s.id, runId: run.runId, exclusions: exclusions.length },
+      });
     return { plan, existed: before !== null, looks };
   } finally {
     await store.close();

@@ -62,7 +62,12 @@ function replacedSummary(old: StoredSplit, plans: StoredPlan[], confirmations: {
     }
   }
   const own = plans.filter((p) => p.content.split.id === old.stamp.id);
-  return { id: old.stamp.id, madeAt: old.stamp.madeAt, analyses, plans: own.map((p) => ({ id: p.id, confirmations: confirmations.filter((c) => c.planId === p.id).length })) };
+  return {
+    id: old.stamp.id,
+    madeAt: old.stamp.madeAt,
+    analyses,
+    plans: own.map((p) => ({ id: p.id, confirmations: confirmations.filter((c) => c.planId === p.id).length })),
+  };
 }
 
 export async function makeSplit(dbPath: string, req: SplitRequest, ledgerFile: string | null): Promise<SplitOutcome> {
@@ -72,16 +77,32 @@ export async function makeSplit(dbPath: string, req: SplitRequest, ledgerFile: s
   const store = await openStore(dbPath);
   try {
     const { rows, columns, text } = await participantRows(store);
-    for (const c of req.stratify) if (!columns.includes(c)) throw new SplitError(`--stratify: participants has no column "${c}" (columns: ${columns.join(', ')})`);
-    if (req.blindColumn !== null && !text.includes(req.blindColumn)) throw new SplitError(`--blind: participants has no text column "${req.blindColumn}" (text columns: ${text.join(', ') || 'none'})`);
+    for (const c of req.stratify)
+      if (!columns.includes(c)) throw new SplitError(`--stratify: participants has no column "${c}" (columns: ${columns.join(', ')})`);
+    if (req.blindColumn !== null && !text.includes(req.blindColumn))
+      throw new SplitError(`--blind: participants has no text column "${req.blindColumn}" (text columns: ${text.join(', ') || 'none'})`);
     const current = await readCurrentSplit(store);
     if (current && !req.replace) {
-      throw new SplitError(`the database already has split ${current.stamp.id} (made ${current.stamp.madeAt}); a second split is refused, as subjects explored in the first could land in the confirmation part of the second; replace it only knowingly, with --replace`);
+      throw new SplitError(
+        `the database already has split ${current.stamp.id} (made ${current.stamp.madeAt}); a second split is refused, as subjects explored in the first could land in the confirmation part of the second; replace it only knowingly, with --replace`,
+      );
     }
     const replaced = current ? replacedSummary(current, await readPlans(store), await readConfirmations(store), ledgerFile, dbName) : null;
-    const parts = drawSplit(rows.map((r) => ({ subject: String(r.subject), stratum: stratumOf(r, req.stratify) })), req);
+    const parts = drawSplit(
+      rows.map((r) => ({ subject: String(r.subject), stratum: stratumOf(r, req.stratify) })),
+      req,
+    );
     const blind = req.blindColumn;
-    const codes = blind === null ? null : drawGroupCodes(rows.map((r) => r[blind]).filter((v) => v !== null).map(String), req.seed);
+    const codes =
+      blind === null
+        ? null
+        : drawGroupCodes(
+            rows
+              .map((r) => r[blind])
+              .filter((v) => v !== null)
+              .map(String),
+            req.seed,
+          );
     const madeAt = new Date().toISOString();
     const settings = { seed: req.seed, fraction: req.fraction, stratify: req.stratify, blindColumn: blind };
     const membership = [...parts].sort((a, b) => (a[0] < b[0] ? -1 : 1));
@@ -96,7 +117,12 @@ export async function makeSplit(dbPath: string, req: SplitRequest, ledgerFile: s
     await ensureSplitTables(store);
     await writeSplit(store, split);
     if (ledgerFile) {
-      appendLedger(ledgerFile, dbPath, { kind: 'split', contrast: null, p: null, details: { splitId: id, ...settings, blinded: blind !== null, subjects: split.stamp.subjects, replaced: replaced?.id ?? null } });
+      appendLedger(ledgerFile, dbPath, {
+        kind: 'split',
+        contrast: null,
+        p: null,
+        details: { splitId: id, ...settings, blinded: blind !== null, subjects: split.stamp.subjects, replaced: replaced?.id ?? null },
+      });
     }
     const strata = new Map<string, { exploration: number; confirmation: number }>();
     for (const r of rows) {
@@ -110,7 +136,8 @@ export async function makeSplit(dbPath: string, req: SplitRequest, ledgerFile: s
       replaced,
       strata: blind === null ? [...strata].sort().map(([stratum, s]) => ({ stratum, ...s })) : [],
       strataCount: strata.size,
-      labelsTellGroups: blind !== null && labelsTellGroups(rows.map((r) => ({ subject: String(r.subject), group: r[blind] === null ? null : String(r[blind]) }))),
+      labelsTellGroups:
+        blind !== null && labelsTellGroups(rows.map((r) => ({ subject: String(r.subject), group: r[blind] === null ? null : String(r[blind]) }))),
     };
   } finally {
     await store.close();

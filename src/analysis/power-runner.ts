@@ -22,7 +22,8 @@ export async function powerDatabase(
   exclusions: Exclusion[],
   options: { runId?: string; threads?: number; onProgress?: (done: number, total: number) => void } = {},
 ): Promise<PowerRun> {
-  if (options.threads !== undefined && !(Number.isInteger(options.threads) && options.threads >= 1)) throw new RangeError(`invalid number of threads: ${options.threads}`);
+  if (options.threads !== undefined && !(Number.isInteger(options.threads) && options.threads >= 1))
+    throw new RangeError(`invalid number of threads: ${options.threads}`);
   const t0 = performance.now();
   const loaded = await readContrast(dbPath, c, exclusions, { runId: options.runId });
   const prepared = preparePower(c, plan, loaded.data);

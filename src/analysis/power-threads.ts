@@ -16,7 +16,6 @@ import { PlanningInputError } from '../core/planning/index.ts';
 import type { PowerWorkReply, PowerWorkRequest } from './power-worker.ts';
 import { powerWorkerUrl } from './power-worker-url.ts';
 
-
 /**
  * Below this many subject-points × permutations over all simulations (about 2 s on one core
  * here) a second thread's start with the TypeScript loader takes much of what it saves.

@@ -13,9 +13,7 @@ export interface PowerWorkRequest {
 }
 
 export type PowerWorkReply =
-  | { kind: 'outcome'; job: number; outcome: SimulationOutcome }
-  | { kind: 'done' }
-  | { kind: 'error'; name: string; message: string; stack?: string };
+  { kind: 'outcome'; job: number; outcome: SimulationOutcome } | { kind: 'done' } | { kind: 'error'; name: string; message: string; stack?: string };
 
 if (!parentPort) throw new Error('src/analysis/power-worker.ts must run in a worker thread');
 const port = parentPort;

@@ -36,7 +36,10 @@ const iso = (v: unknown): string => (v as Date).toISOString();
 
 /** Whether the database has the workflow's tables (a database that never had a split has not). */
 export async function hasSplitTables(store: Store): Promise<boolean> {
-  const r = await rows(store, `SELECT count(*) AS n FROM duckdb_tables() WHERE database_name = current_database() AND table_name IN ('subject_split', 'analysis_plans', 'plan_confirmations')`);
+  const r = await rows(
+    store,
+    `SELECT count(*) AS n FROM duckdb_tables() WHERE database_name = current_database() AND table_name IN ('subject_split', 'analysis_plans', 'plan_confirmations')`,
+  );
   return Number(r[0].n) === CONFIRMATION_TABLES.length;
 }
 
@@ -148,7 +151,9 @@ export async function insertConfirmation(store: Store, planId: string, time: str
     const c = store.connection;
     await c.run('BEGIN TRANSACTION');
     try {
-      const r = (await c.runAndReadAll('SELECT coalesce(max(confirmation_run), 0) + 1 AS next FROM plan_confirmations WHERE plan_id = $1', [planId])).getRowObjectsJS();
+      const r = (
+        await c.runAndReadAll('SELECT coalesce(max(confirmation_run), 0) + 1 AS next FROM plan_confirmations WHERE plan_id = $1', [planId])
+      ).getRowObjectsJS();
       const run = Number(r[0].next);
       await c.run('INSERT INTO plan_confirmations (plan_id, confirmation_run, confirmed_at) VALUES ($1, $2, $3::TIMESTAMP)', [planId, run, time]);
       await c.run('COMMIT');

@@ -33,7 +33,8 @@ export function readResult(file: string): ReportableResult {
     throw new ReportFileError(`${file}: cannot be read as JSON (${(e as Error).message})`);
   }
   const kind = (value as { kind?: unknown })?.kind;
-  if (kind !== 'compare' && kind !== 'band-check') throw new ReportFileError(`${file}: "kind" is ${JSON.stringify(kind)}, expected "compare" or "band-check" (a result of bandwise compare or band-check)`);
+  if (kind !== 'compare' && kind !== 'band-check')
+    throw new ReportFileError(`${file}: "kind" is ${JSON.stringify(kind)}, expected "compare" or "band-check" (a result of bandwise compare or band-check)`);
   if (typeof (value as { contrast?: unknown }).contrast !== 'object') throw new ReportFileError(`${file}: no "contrast" object`);
   return value as ReportableResult;
 }
@@ -52,14 +53,21 @@ function databaseFor(resultFile: string, r: ReportableResult, given?: string): s
  * an input or each other (OutputClashError, before anything is written), writes the methods text
  * and the parameters JSON, and records the report in the ledger (ledgerWarning when it could not).
  */
-export async function writeReport(resultFile: string, flags: ReportOptions): Promise<{ markdown: string; jsonFile: string; database: string | null; ledger: string | null; ledgerWarning: string | null }> {
+export async function writeReport(
+  resultFile: string,
+  flags: ReportOptions,
+): Promise<{ markdown: string; jsonFile: string; database: string | null; ledger: string | null; ledgerWarning: string | null }> {
   const result = readResult(resultFile);
   const db = databaseFor(resultFile, result, flags.database);
   const ledgerFile = flags.ledger === false ? null : (flags.ledger ?? (db ? `${db}.ledger.jsonl` : null));
   const jsonFile = flags.json ?? flags.out.replace(/\.(md|markdown)$/i, '') + '.json';
   refuseClashes(
     [{ what: 'the result', file: resultFile }, db ? { what: 'the database', file: db } : null],
-    [ledgerFile ? { what: 'the ledger', file: ledgerFile } : null, { what: '--out', file: flags.out }, { what: flags.json ? '--json' : 'the parameters JSON', file: jsonFile }],
+    [
+      ledgerFile ? { what: 'the ledger', file: ledgerFile } : null,
+      { what: '--out', file: flags.out },
+      { what: flags.json ? '--json' : 'the parameters JSON', file: jsonFile },
+    ],
   );
   const facts = db ? await databaseFactsOf(db, result.contrast, flags.run ?? result.database?.runId) : null;
   const dbName = (db ?? result.database?.file ?? '').split(/[\\/]/).pop()!;

@@ -27,7 +27,7 @@ export function register(program: Command): void {
   const command = program
     .command('band-check')
     .description(
-      'For a band, a stage and the contrast\'s channels (averaged), tests with the same permutation machinery as ' +
+      "For a band, a stage and the contrast's channels (averaged), tests with the same permutation machinery as " +
         'compare: the raw band power, the aperiodic offset and exponent, the periodic band power (residual above the ' +
         'aperiodic fit), the centre, height and width of the highest fitted peak in the band, the flanks just below and above the band, relative power, and the frequency-wise ' +
         'cluster test; then gives a verdict (band-specific, broadband-offset, exponent-change, mixed, no-evidence) with ' +
@@ -36,8 +36,8 @@ export function register(program: Command): void {
     .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
     .requiredOption('--band <band>', `the band: ${BAND_SYNTAX}`)
     .requiredOption('--out <file>', 'result JSON to write')
-    .option('--alpha <a>', 'level of every test and of the verdict\'s correction (default: 0.05)', positive('--alpha'))
-    .option('--flank-width <hz>', 'width of each flank, Hz (default: the band\'s width)', positive('--flank-width'));
+    .option('--alpha <a>', "level of every test and of the verdict's correction (default: 0.05)", positive('--alpha'))
+    .option('--flank-width <hz>', "width of each flank, Hz (default: the band's width)", positive('--flank-width'));
   addContrastOptions(command, { bandMeasures: false });
   command.action(async (database: string, flags: BandFlags) => {
     if (flags.measure !== undefined) {
@@ -58,7 +58,11 @@ export function register(program: Command): void {
     let exclusions;
     try {
       refuseClashes(
-        [{ what: 'the database', file: database }, flags.contrast ? { what: '--contrast', file: flags.contrast } : null, flags.exclusions ? { what: '--exclusions', file: flags.exclusions } : null],
+        [
+          { what: 'the database', file: database },
+          flags.contrast ? { what: '--contrast', file: flags.contrast } : null,
+          flags.exclusions ? { what: '--exclusions', file: flags.exclusions } : null,
+        ],
         [ledger ? { what: 'the ledger', file: ledger } : null, { what: '--out', file: flags.out }],
       );
       exclusions = readExclusions(flags.exclusions);
@@ -70,22 +74,32 @@ export function register(program: Command): void {
     if (!given) return;
     // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran
     const contrast = exclusions.length ? withExclusions(given, exclusions) : given;
-    const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'band check {bar} {value}/{total} tests | {step}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
+    const bar =
+      !flags.quiet && process.stderr.isTTY
+        ? new cliProgress.SingleBar({ format: 'band check {bar} {value}/{total} tests | {step}', stream: process.stderr }, cliProgress.Presets.shades_classic)
+        : null;
     let started = false;
     let result: BandCheckRun;
     try {
-      result = await bandCheckDatabase(database, contrast, band, [], {
-        alpha: flags.alpha,
-        flankWidthHz: flags.flankWidth,
-        onProgress: (step, done, total) => {
-          if (!bar) return;
-          if (!started) {
-            bar.start(total, 0, { step });
-            started = true;
-          }
-          bar.update(done, { step });
+      result = await bandCheckDatabase(
+        database,
+        contrast,
+        band,
+        [],
+        {
+          alpha: flags.alpha,
+          flankWidthHz: flags.flankWidth,
+          onProgress: (step, done, total) => {
+            if (!bar) return;
+            if (!started) {
+              bar.start(total, 0, { step });
+              started = true;
+            }
+            bar.update(done, { step });
+          },
         },
-      }, flags.run);
+        flags.run,
+      );
     } catch (e) {
       bar?.stop();
       if (reportUserError('band-check', e)) return;
@@ -99,10 +113,19 @@ export function register(program: Command): void {
       throw e;
     }
     // the ledger records the band with the contrast
-    const ledgerWarning = ledger ? tryAppendLedger(ledger, database, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p, part: result.part, split: result.split }) : null;
+    const ledgerWarning = ledger
+      ? tryAppendLedger(ledger, database, {
+          kind: result.kind,
+          contrast: { ...result.contrast, band: result.band },
+          p: result.p,
+          part: result.part,
+          split: result.split,
+        })
+      : null;
     console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}${result.periodicKind ? ` (${result.periodicKind})` : ''}`);
     console.log(result.sentence);
-    if (!result.database.runFinished) console.log(`note: run ${result.database.runId} is unfinished (its ingest stopped before its end): the cohort may be partial`);
+    if (!result.database.runFinished)
+      console.log(`note: run ${result.database.runId} is unfinished (its ingest stopped before its end): the cohort may be partial`);
     const part = partLine(result);
     if (part) console.log(part);
     console.log(`wrote ${flags.out}`);

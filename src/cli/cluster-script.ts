@@ -62,8 +62,18 @@ export function register(program: Command): void {
       try {
         const w = writeClusterScripts(
           {
-            cohort, out, shards: flags.shards, shardDir: flags.shardDir, logDir: flags.logDir, partition: flags.partition,
-            cpus: flags.cpus, mem: flags.mem, time: flags.time, jobName: flags.jobName, command: flags.bandwise, ingestOptions,
+            cohort,
+            out,
+            shards: flags.shards,
+            shardDir: flags.shardDir,
+            logDir: flags.logDir,
+            partition: flags.partition,
+            cpus: flags.cpus,
+            mem: flags.mem,
+            time: flags.time,
+            jobName: flags.jobName,
+            command: flags.bandwise,
+            ingestOptions,
           },
           folder,
         );

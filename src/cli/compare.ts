@@ -34,7 +34,17 @@ export function pointsTsv(r: CompareRun): string {
   const lines = [`channel\tfreq_hz\tstat\tdf\tp_uncorrected\t${s.effect.kind}\tci_low\tci_high\tcluster${s.tfce ? '\ttfce\tp_tfce' : ''}`];
   for (let p = 0; p < s.stat.length; p++) {
     const df = Array.isArray(s.df) ? s.df[p] : s.df;
-    const row = [s.channels[Math.floor(p / F)], s.freqsHz[p % F], field(s.stat[p], fixed(5)), field(Number(df), fixed(3)), field(s.pUncorrected[p], precise(5)), field(s.effect.value[p], fixed(5)), field(s.effect.ciLow[p], fixed(5)), field(s.effect.ciHigh[p], fixed(5)), clusterOf[p] || ''];
+    const row = [
+      s.channels[Math.floor(p / F)],
+      s.freqsHz[p % F],
+      field(s.stat[p], fixed(5)),
+      field(Number(df), fixed(3)),
+      field(s.pUncorrected[p], precise(5)),
+      field(s.effect.value[p], fixed(5)),
+      field(s.effect.ciLow[p], fixed(5)),
+      field(s.effect.ciHigh[p], fixed(5)),
+      clusterOf[p] || '',
+    ];
     if (s.tfce) row.push(field(s.tfce.score[p], fixed(4)), field(s.tfce.pCorrected[p], precise(4)));
     lines.push(row.join('\t'));
   }
@@ -57,67 +67,96 @@ export function register(program: Command): void {
     .option('--points-tsv <file>', 'per-point statistics (t, df, p, effect size with interval, cluster) as TSV')
     .option('--threads <n>', 'threads for the permutations (default: one per core for a large contrast, else 1); the result is the same', threadCount);
   addContrastOptions(command, { bandMeasures: true });
-  command
-    .action(async (database: string, flags: Flags) => {
-      // loaded on use: `bandwise --help` reads none of the analysis code
-      const { default: cliProgress } = await import('cli-progress');
-      const { withExclusions } = await import('../core/contrast/exclusions.ts');
-      const { designTitle, signText } = await import('../core/contrast/labels.ts');
-      const { compareDatabase } = await import('../analysis/compare-runner.ts');
-      const { tryAppendLedger } = await import('../analysis/ledger.ts');
-      const { reportUserError } = await import('./user-errors.ts');
-      const { partLine } = await import('../core/confirmation/methods-text.ts');
-      const ledger = flags.ledger === false ? null : (flags.ledger ?? `${database}.ledger.jsonl`);
-      let exclusions;
-      try {
-        refuseClashes(
-          [{ what: 'the database', file: database }, flags.contrast ? { what: '--contrast', file: flags.contrast } : null, flags.exclusions ? { what: '--exclusions', file: flags.exclusions } : null],
-          [ledger ? { what: 'the ledger', file: ledger } : null, { what: '--out', file: flags.out }, flags.tsv ? { what: '--tsv', file: flags.tsv } : null, flags.pointsTsv ? { what: '--points-tsv', file: flags.pointsTsv } : null],
-        );
-        exclusions = readExclusions(flags.exclusions);
-      } catch (e) {
-        if (reportUserError('compare', e)) return;
-        throw e;
-      }
-      const given = contrastOrExit(flags);
-      if (!given) return;
-      // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran
-      const contrast = exclusions.length ? withExclusions(given, exclusions) : given;
-      const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'permutations {bar} {value}/{total} | ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
-      let started = false;
-      let result: CompareRun;
-      try {
-        result = await compareDatabase(database, contrast, [], (done, total) => {
+  command.action(async (database: string, flags: Flags) => {
+    // loaded on use: `bandwise --help` reads none of the analysis code
+    const { default: cliProgress } = await import('cli-progress');
+    const { withExclusions } = await import('../core/contrast/exclusions.ts');
+    const { designTitle, signText } = await import('../core/contrast/labels.ts');
+    const { compareDatabase } = await import('../analysis/compare-runner.ts');
+    const { tryAppendLedger } = await import('../analysis/ledger.ts');
+    const { reportUserError } = await import('./user-errors.ts');
+    const { partLine } = await import('../core/confirmation/methods-text.ts');
+    const ledger = flags.ledger === false ? null : (flags.ledger ?? `${database}.ledger.jsonl`);
+    let exclusions;
+    try {
+      refuseClashes(
+        [
+          { what: 'the database', file: database },
+          flags.contrast ? { what: '--contrast', file: flags.contrast } : null,
+          flags.exclusions ? { what: '--exclusions', file: flags.exclusions } : null,
+        ],
+        [
+          ledger ? { what: 'the ledger', file: ledger } : null,
+          { what: '--out', file: flags.out },
+          flags.tsv ? { what: '--tsv', file: flags.tsv } : null,
+          flags.pointsTsv ? { what: '--points-tsv', file: flags.pointsTsv } : null,
+        ],
+      );
+      exclusions = readExclusions(flags.exclusions);
+    } catch (e) {
+      if (reportUserError('compare', e)) return;
+      throw e;
+    }
+    const given = contrastOrExit(flags);
+    if (!given) return;
+    // a TSV's exclusions join those the contrast carries, so the result's contrast reruns as it ran
+    const contrast = exclusions.length ? withExclusions(given, exclusions) : given;
+    const bar =
+      !flags.quiet && process.stderr.isTTY
+        ? new cliProgress.SingleBar(
+            { format: 'permutations {bar} {value}/{total} | ETA {eta_formatted}', stream: process.stderr },
+            cliProgress.Presets.shades_classic,
+          )
+        : null;
+    let started = false;
+    let result: CompareRun;
+    try {
+      result = await compareDatabase(
+        database,
+        contrast,
+        [],
+        (done, total) => {
           if (!bar) return;
           if (!started) {
             bar.start(total, 0);
             started = true;
           }
           bar.update(done);
-        }, flags.run, { threads: flags.threads });
-      } catch (e) {
-        bar?.stop();
-        if (reportUserError('compare', e)) return;
-        throw e;
-      }
+        },
+        flags.run,
+        { threads: flags.threads },
+      );
+    } catch (e) {
       bar?.stop();
-      try {
-        writeFileReplacing(flags.out, JSON.stringify(result, null, 2) + '\n');
-        if (flags.tsv) writeFileReplacing(flags.tsv, clustersTsv(result));
-        if (flags.pointsTsv) writeFileReplacing(flags.pointsTsv, pointsTsv(result));
-      } catch (e) {
-        if (reportUserError('compare', e)) return;
-        throw e;
-      }
-      const ledgerWarning = ledger ? tryAppendLedger(ledger, database, result) : null;
-      const n = Object.entries(result.n).map(([k, v]) => `${k} ${v}`).join(', ');
-      const best = result.clusters[0];
-      console.log(`${result.measure}; ${designTitle(result.contrast)}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` + (best ? `; best p = ${best.p.toPrecision(3)} (${signText(result.contrast, best.sign)}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})` : ''));
-      for (const note of result.notes) console.log(note);
-      if (!result.database.runFinished) console.log(`note: run ${result.database.runId} is unfinished (its ingest stopped before its end): the cohort may be partial`);
-      const part = partLine(result);
-      if (part) console.log(part);
-      console.log(`wrote ${flags.out}`);
-      if (ledgerWarning) console.error(`bandwise compare: ${ledgerWarning}`);
-    });
+      if (reportUserError('compare', e)) return;
+      throw e;
+    }
+    bar?.stop();
+    try {
+      writeFileReplacing(flags.out, JSON.stringify(result, null, 2) + '\n');
+      if (flags.tsv) writeFileReplacing(flags.tsv, clustersTsv(result));
+      if (flags.pointsTsv) writeFileReplacing(flags.pointsTsv, pointsTsv(result));
+    } catch (e) {
+      if (reportUserError('compare', e)) return;
+      throw e;
+    }
+    const ledgerWarning = ledger ? tryAppendLedger(ledger, database, result) : null;
+    const n = Object.entries(result.n)
+      .map(([k, v]) => `${k} ${v}`)
+      .join(', ');
+    const best = result.clusters[0];
+    console.log(
+      `${result.measure}; ${designTitle(result.contrast)}; n: ${n}; excluded: ${result.exclusions.length}; clusters: ${result.clusters.length}` +
+        (best
+          ? `; best p = ${best.p.toPrecision(3)} (${signText(result.contrast, best.sign)}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')})`
+          : ''),
+    );
+    for (const note of result.notes) console.log(note);
+    if (!result.database.runFinished)
+      console.log(`note: run ${result.database.runId} is unfinished (its ingest stopped before its end): the cohort may be partial`);
+    const part = partLine(result);
+    if (part) console.log(part);
+    console.log(`wrote ${flags.out}`);
+    if (ledgerWarning) console.error(`bandwise compare: ${ledgerWarning}`);
+  });
 }

@@ -29,9 +29,13 @@ export function resultFiles(out: string, count: number): string[] {
 
 function summary(r: CompareRun): string {
   const p = r.plan!;
-  const n = Object.entries(r.n).map(([k, v]) => `${k} ${v}`).join(', ');
+  const n = Object.entries(r.n)
+    .map(([k, v]) => `${k} ${v}`)
+    .join(', ');
   const best = r.clusters[0];
-  const verdict = best ? `best p = ${best.p.toPrecision(3)} (${best.sign > 0 ? '+' : '−'}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')}), ${best.p < p.alpha ? 'confirmed' : 'not confirmed'} at α = ${Number(p.alpha.toPrecision(3))}` : 'no cluster formed: not confirmed';
+  const verdict = best
+    ? `best p = ${best.p.toPrecision(3)} (${best.sign > 0 ? '+' : '−'}, ${best.fminHz}–${best.fmaxHz} Hz, ${best.channels.join(',')}), ${best.p < p.alpha ? 'confirmed' : 'not confirmed'} at α = ${Number(p.alpha.toPrecision(3))}`
+    : 'no cluster formed: not confirmed';
   return `contrast ${p.contrastIndex} of ${p.contrasts}: ${r.measure}; n: ${n}; clusters: ${r.clusters.length}; ${verdict}`;
 }
 
@@ -39,7 +43,7 @@ export function register(program: Command): void {
   program
     .command('confirm')
     .description(
-      'Runs the contrasts of a locked plan (`bandwise lock`) on the confirmation part of its split with the plan\'s run and ' +
+      "Runs the contrasts of a locked plan (`bandwise lock`) on the confirmation part of its split with the plan's run and " +
         'exclusions; groups named by their codes are unblinded. Writes the compare result JSON of each contrast with "part" ' +
         '(confirmation) and "plan" (id, hash, lockedAt, confirmationRun, …): for a plan of several contrasts, <out>-1.json, ' +
         '<out>-2.json, …, each confirmed at α = 0.05 / contrasts (Bonferroni). Records the confirmation in the database ' +
@@ -57,9 +61,15 @@ export function register(program: Command): void {
       return x;
     })
     .option('--quiet', 'no progress bar')
-    .addHelpText('after', '\nExample:\n  bandwise confirm cohort.duckdb --plan 3f9a2c1e07b4 --out confirmation.json\n  bandwise report confirmation.json --out methods.md\n\nA research tool, not a diagnostic device.')
+    .addHelpText(
+      'after',
+      '\nExample:\n  bandwise confirm cohort.duckdb --plan 3f9a2c1e07b4 --out confirmation.json\n  bandwise report confirmation.json --out methods.md\n\nA research tool, not a diagnostic device.',
+    )
     .action(async (database: string, flags: ConfirmFlags) => {
-      const bar = !flags.quiet && process.stderr.isTTY ? new cliProgress.SingleBar({ format: 'permutations {bar} {value}/{total}', stream: process.stderr }, cliProgress.Presets.shades_classic) : null;
+      const bar =
+        !flags.quiet && process.stderr.isTTY
+          ? new cliProgress.SingleBar({ format: 'permutations {bar} {value}/{total}', stream: process.stderr }, cliProgress.Presets.shades_classic)
+          : null;
       let results: CompareRun[];
       try {
         results = await confirmPlan(database, flags.plan, {
@@ -84,9 +94,12 @@ export function register(program: Command): void {
       const files = resultFiles(flags.out, results.length);
       results.forEach((r, k) => writeFileSync(files[k], JSON.stringify(r, null, 2) + '\n'));
       const p = results[0].plan!;
-      console.log(`plan ${p.id} (SHA-256 ${p.hash}, locked ${p.lockedAt}): confirmation ${p.confirmationRun} on ${results[0].split!.subjects.confirmation} held-out subjects`);
+      console.log(
+        `plan ${p.id} (SHA-256 ${p.hash}, locked ${p.lockedAt}): confirmation ${p.confirmationRun} on ${results[0].split!.subjects.confirmation} held-out subjects`,
+      );
       for (const r of results) console.log(summary(r));
-      if (p.confirmationRun > 1) console.log(`warning: not the first confirmation of this plan (earlier: ${p.earlierConfirmations.join(', ')}); only the first is a held-out test`);
+      if (p.confirmationRun > 1)
+        console.log(`warning: not the first confirmation of this plan (earlier: ${p.earlierConfirmations.join(', ')}); only the first is a held-out test`);
       if (lookedBeforeLock(p.analysedBeforeLock)) console.log(`warning: ${looksText(p.analysedBeforeLock)}`);
       console.log(`wrote ${files.join(', ')}`);
     });

@@ -6,16 +6,31 @@ import { Command, InvalidArgumentError, Option } from 'commander';
 import type { Exclusion } from '../core/contrast/data.ts';
 import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
 import { InputFileError, readSmallText } from '../files/input-files.ts';
-import { BAND_DEFINITIONS, ESTIMATORS, MEASURES, REFERENCES, parseContrast, ContrastSpecError, type Contrast, type ContrastJson } from '../core/contrast/spec.ts';
+import {
+  BAND_DEFINITIONS,
+  ESTIMATORS,
+  MEASURES,
+  REFERENCES,
+  parseContrast,
+  ContrastSpecError,
+  type Contrast,
+  type ContrastJson,
+} from '../core/contrast/spec.ts';
 import { BAND_SYNTAX, BandError, parseBand } from '../core/spectrum/bands.ts';
 import { AdjacencyError, neighbourTable, type NeighbourTable } from '../core/montage/adjacency.ts';
 
-const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);
-const pair = (name: string) => (v: string): [string, string] => {
-  const parts = list(v);
-  if (parts.length !== 2) throw new InvalidArgumentError(`${name} needs two values separated by a comma, got "${v}"`);
-  return [parts[0], parts[1]];
-};
+const list = (v: string) =>
+  v
+    .split(',')
+    .map((s) => s.trim())
+    .filter(Boolean);
+const pair =
+  (name: string) =>
+  (v: string): [string, string] => {
+    const parts = list(v);
+    if (parts.length !== 2) throw new InvalidArgumentError(`${name} needs two values separated by a comma, got "${v}"`);
+    return [parts[0], parts[1]];
+  };
 const num = (name: string) => (v: string) => {
   const x = Number(v);
   if (!Number.isFinite(x)) throw new InvalidArgumentError(`invalid ${name}: ${v}`);
@@ -90,7 +105,9 @@ function readContrastFile(file: string): Record<string, unknown> {
     throw new ContrastSpecError(`--contrast ${file} is not JSON: ${(e as Error).message}`);
   }
   if (value === null || typeof value !== 'object' || Array.isArray(value)) {
-    throw new ContrastSpecError(`--contrast ${file} holds ${value === null ? 'null' : Array.isArray(value) ? 'a list' : `a ${typeof value}`}; a contrast is a JSON object such as {"design": "groups", "groups": ["control", "patient"]}`);
+    throw new ContrastSpecError(
+      `--contrast ${file} holds ${value === null ? 'null' : Array.isArray(value) ? 'a list' : `a ${typeof value}`}; a contrast is a JSON object such as {"design": "groups", "groups": ["control", "patient"]}`,
+    );
   }
   return value as Record<string, unknown>;
 }
@@ -165,9 +182,15 @@ export function contrastOrExit(flags: Flags): Contrast | null {
 export function addContrastOptions(command: Command, o: { bandMeasures: boolean }): Command {
   command
     .option('--contrast <file>', 'contrast JSON (the format the dashboard saves)')
-    .option('--exclusions <file>', 'TSV of subjects/channels to leave out (subject, channel, optional stage, reason), as the dashboard exports it; added to the contrast\'s "exclusions"')
+    .option(
+      '--exclusions <file>',
+      'TSV of subjects/channels to leave out (subject, channel, optional stage, reason), as the dashboard exports it; added to the contrast\'s "exclusions"',
+    )
     .option('--run <id>', 'ingest run to read (default: the most recent finished run)')
-    .option('--ledger <file>', 'ledger file (JSON lines) this analysis is appended to, so reports can count every analysis run (default: <database>.ledger.jsonl)')
+    .option(
+      '--ledger <file>',
+      'ledger file (JSON lines) this analysis is appended to, so reports can count every analysis run (default: <database>.ledger.jsonl)',
+    )
     .option('--no-ledger', 'do not record this analysis in the ledger')
     .addOption(new Option('--design <kind>', 'groups, paired or covariate (default: groups)').choices(['groups', 'paired', 'covariate']))
     .option('--group-column <name>', 'participants column holding the groups (default: group)')
@@ -181,20 +204,39 @@ export function addContrastOptions(command: Command, o: { bandMeasures: boolean 
     .addOption(new Option('--reference <ref>', 'reference of the spectra (default: recorded)').choices([...REFERENCES]))
     .addOption(new Option('--averaging <how>', 'epoch averaging of the spectra (default: mean)').choices(['mean', 'median']))
     .addOption(new Option('--estimator <name>', 'spectral estimator of the spectra, as stored at ingest (default: welch)').choices([...ESTIMATORS]))
-    .addOption(new Option('--band-definition <how>', 'band edges fixed as given, or individual: centred on each subject\'s fitted peak (band-power measures and the band check; default: fixed)').choices([...BAND_DEFINITIONS]))
-    .option('--peak-search <lo,hi>', 'individual bands: where each subject\'s peak is looked for, Hz (default: the band\'s own edges)', pair('--peak-search'))
-    .option('--half-width <hz>', 'individual bands: half the band\'s width around the subject\'s peak, Hz (default: half the band\'s width)', num('--half-width'))
+    .addOption(
+      new Option(
+        '--band-definition <how>',
+        "band edges fixed as given, or individual: centred on each subject's fitted peak (band-power measures and the band check; default: fixed)",
+      ).choices([...BAND_DEFINITIONS]),
+    )
+    .option('--peak-search <lo,hi>', "individual bands: where each subject's peak is looked for, Hz (default: the band's own edges)", pair('--peak-search'))
+    .option('--half-width <hz>', "individual bands: half the band's width around the subject's peak, Hz (default: half the band's width)", num('--half-width'))
     .option('--channels <names>', 'comma-separated channels, or all (default: all)', list)
     .option('--channel-average', 'average the measure over the channels (frequency-only clusters)')
-    .option('--neighbours <file.tsv>', "channel neighbours for the clusters, one line per channel: channel<TAB>neighbour,neighbour,… (default: Delaunay neighbours of the channels' stored positions)")
+    .option(
+      '--neighbours <file.tsv>',
+      "channel neighbours for the clusters, one line per channel: channel<TAB>neighbour,neighbour,… (default: Delaunay neighbours of the channels' stored positions)",
+    )
     .option('--fmin <hz>', 'lowest frequency, Hz (default: 1)', num('--fmin'))
     .option('--fmax <hz>', 'highest frequency, Hz (default: 30)', num('--fmax'))
     .addOption(new Option('--measure <name>', 'measure (default: log-psd)').choices([...MEASURES]))
     .option('--relative-range <lo,hi>', 'denominator range of relative measures, Hz (default: 0.5,45)', pair('--relative-range'))
     .addOption(new Option('--band-method <m>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²) (default: mean)').choices(['mean', 'integral']))
     .addOption(new Option('--aperiodic-method <m>', 'aperiodic estimate for residual/offset/exponent measures (default: fit)').choices(['fit', 'irasa']))
-    .addOption(new Option('--statistic <name>', 'point statistic (default: welch-t for groups, paired-t, pearson for covariates)').choices(['welch-t', 'student-t', 'paired-t', 'pearson', 'spearman', 'linear-model-t']))
-    .addOption(new Option('--correction <name>', 'multiple-comparison correction (default: cluster-mass)').choices(['cluster-mass', 'cluster-size', 'tfce', 'none']))
+    .addOption(
+      new Option('--statistic <name>', 'point statistic (default: welch-t for groups, paired-t, pearson for covariates)').choices([
+        'welch-t',
+        'student-t',
+        'paired-t',
+        'pearson',
+        'spearman',
+        'linear-model-t',
+      ]),
+    )
+    .addOption(
+      new Option('--correction <name>', 'multiple-comparison correction (default: cluster-mass)').choices(['cluster-mass', 'cluster-size', 'tfce', 'none']),
+    )
     .option('--cluster-p <p>', 'two-tailed cluster-forming p (default: 0.05)', num('--cluster-p'))
     .option('--permutations <n>', 'permutations (default: 1000; exact enumeration when fewer relabellings exist)', num('--permutations'))
     .option('--seed <n>', 'seed of the permutation generator (default: 1)', num('--seed'))

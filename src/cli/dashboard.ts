@@ -32,7 +32,8 @@ export function register(program: Command): void {
         } finally {
           await store.close();
         }
-        if (await checkpointLeftoverLog(database)) console.log(`the write-ahead log ${database}.wal (left by a writer that was stopped) was folded into the file`);
+        if (await checkpointLeftoverLog(database))
+          console.log(`the write-ahead log ${database}.wal (left by a writer that was stopped) was folded into the file`);
       } catch (e) {
         if (reportUserError('dashboard', e)) return;
         throw e;

@@ -24,7 +24,9 @@ export const DEMO_CONTRASTS: { name: string; what: string; contrast: ContrastJso
 ];
 
 function bar(cliProgress: typeof cliProgressModule, label: string, quiet: boolean) {
-  return quiet ? null : new cliProgress.SingleBar({ format: `${label.padEnd(12)} |{bar}| {value}/{total}`, hideCursor: true }, cliProgress.Presets.shades_classic);
+  return quiet
+    ? null
+    : new cliProgress.SingleBar({ format: `${label.padEnd(12)} |{bar}| {value}/{total}`, hideCursor: true }, cliProgress.Presets.shades_classic);
 }
 
 /** The demo's band checks: is N2 theta (planted: broadband offset) or sigma (planted: fewer fast spindles) band-specific? */
@@ -91,16 +93,27 @@ export function register(program: Command): void {
         },
       });
       gen?.stop();
-      console.log(cohort.generated ? `generated ${cohort.recordings.length} recordings in demo-cohort/recordings/` : `demo recordings up to date (${cohort.recordings.length})`);
+      console.log(
+        cohort.generated
+          ? `generated ${cohort.recordings.length} recordings in demo-cohort/recordings/`
+          : `demo recordings up to date (${cohort.recordings.length})`,
+      );
 
       const ing = bar(cliProgress, 'ingest', quiet);
-      const summary = await runIngest(cohort.participantsPath, DEMO_DATABASE, { jobs: flags.jobs, params: { references: [...DEMO_INGEST_PARAMS.references] } }, (e) => {
-        if (!ing) return;
-        if (e.kind === 'start') ing.start(e.total, 0);
-        else if (e.kind === 'recording') ing.increment();
-      });
+      const summary = await runIngest(
+        cohort.participantsPath,
+        DEMO_DATABASE,
+        { jobs: flags.jobs, params: { references: [...DEMO_INGEST_PARAMS.references] } },
+        (e) => {
+          if (!ing) return;
+          if (e.kind === 'start') ing.start(e.total, 0);
+          else if (e.kind === 'recording') ing.increment();
+        },
+      );
       ing?.stop();
-      console.log(`ingest: ${summary.done} done, ${summary.skipped} already stored, ${summary.failed.length} failed → ${path.relative(process.cwd(), DEMO_DATABASE)}`);
+      console.log(
+        `ingest: ${summary.done} done, ${summary.skipped} already stored, ${summary.failed.length} failed → ${path.relative(process.cwd(), DEMO_DATABASE)}`,
+      );
       for (const f of summary.failed) console.log(`  failed ${f.file} at ${f.step}: ${f.message}`);
 
       mkdirSync(DEMO_RESULTS, { recursive: true });
@@ -109,9 +122,15 @@ export function register(program: Command): void {
         const file = path.join(DEMO_RESULTS, `${d.name}.json`);
         writeFileSync(file, JSON.stringify(result, null, 2) + '\n');
         appendLedger(`${DEMO_DATABASE}.ledger.jsonl`, DEMO_DATABASE, result);
-        console.log(`\n${d.what}\n  n: ${Object.entries(result.n).map(([k, v]) => `${k} ${v}`).join(', ')}; written to ${path.relative(process.cwd(), file)}`);
+        console.log(
+          `\n${d.what}\n  n: ${Object.entries(result.n)
+            .map(([k, v]) => `${k} ${v}`)
+            .join(', ')}; written to ${path.relative(process.cwd(), file)}`,
+        );
         for (const k of result.clusters.slice(0, 3)) {
-          console.log(`  cluster ${k.sign > 0 ? 'patient > control' : 'patient < control'}: ${k.fminHz}–${k.fmaxHz} Hz over ${k.channels.join(',')}, mass ${k.mass.toFixed(0)}, p = ${k.p.toPrecision(3)}`);
+          console.log(
+            `  cluster ${k.sign > 0 ? 'patient > control' : 'patient < control'}: ${k.fminHz}–${k.fmaxHz} Hz over ${k.channels.join(',')}, mass ${k.mass.toFixed(0)}, p = ${k.p.toPrecision(3)}`,
+          );
         }
       }
       const ledger = `${DEMO_DATABASE}.ledger.jsonl`;

@@ -8,7 +8,15 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { Command, InvalidArgumentError, Option } from 'commander';
 import { parseExclusionsTsv } from '../core/contrast/exclusions.ts';
 import { REFERENCES } from '../core/contrast/spec.ts';
-import { DEVIATION_MEASURES, DeviationSpecError, PlanningInputError, parseDeviationSpec, type DeviationResult, type DeviationSpec, type DeviationSpecJson } from '../core/planning/index.ts';
+import {
+  DEVIATION_MEASURES,
+  DeviationSpecError,
+  PlanningInputError,
+  parseDeviationSpec,
+  type DeviationResult,
+  type DeviationSpec,
+  type DeviationSpecJson,
+} from '../core/planning/index.ts';
 import { BAND_SYNTAX, BandError, parseBand } from '../core/spectrum/bands.ts';
 import { deviationDatabase, type DeviationRun } from '../analysis/deviation-runner.ts';
 import { reportUserError } from './user-errors.ts';
@@ -35,7 +43,11 @@ interface DeviationFlags {
   run?: string;
 }
 
-const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);
+const list = (v: string) =>
+  v
+    .split(',')
+    .map((s) => s.trim())
+    .filter(Boolean);
 const num = (name: string) => (v: string) => {
   const x = Number(v);
   if (v.trim() === '' || !Number.isFinite(x)) throw new InvalidArgumentError(`invalid ${name}: ${v}`);
@@ -66,7 +78,8 @@ function specFromFlags(f: DeviationFlags): DeviationSpecJson {
 /** One row per subject: group, whether in the reference group, share beyond |z| > 2, mean z. */
 export function deviationTsv(r: DeviationResult): string {
   const lines = [`subject\tgroup\treference\tshare_beyond_2\texpected_share\tmean_z`];
-  for (const s of r.subjects) lines.push([s.subject, s.group ?? '', s.reference ? 'yes' : 'no', s.share.toFixed(4), r.expectedShare.toFixed(4), s.meanZ.toFixed(4)].join('\t'));
+  for (const s of r.subjects)
+    lines.push([s.subject, s.group ?? '', s.reference ? 'yes' : 'no', s.share.toFixed(4), r.expectedShare.toFixed(4), s.meanZ.toFixed(4)].join('\t'));
   return lines.join('\n') + '\n';
 }
 
@@ -75,11 +88,11 @@ export function register(program: Command): void {
     .command('deviation')
     .summary('score every subject against a reference group per channel × frequency (z maps; not a diagnosis)')
     .description(
-      'Scores every subject\'s measure at every channel and frequency against the reference group: z = (value − reference ' +
+      "Scores every subject's measure at every channel and frequency against the reference group: z = (value − reference " +
         'mean)/(reference SD·√(1 + 1/m)), or with --covariates against a least-squares fit on the reference group (text ' +
         'covariates as indicator columns). Not robust (mean and SD); reference subjects are scored leave-one-out, never ' +
-        'against themselves. Writes the z maps, each subject\'s share of points beyond |z| > 2 with the share expected ' +
-        'from the reference subjects\' own scores, and per group the distribution of those shares. A research tool: an ' +
+        "against themselves. Writes the z maps, each subject's share of points beyond |z| > 2 with the share expected " +
+        "from the reference subjects' own scores, and per group the distribution of those shares. A research tool: an " +
         'individual deviation is not a clinical finding.',
     )
     .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
@@ -127,9 +140,14 @@ export function register(program: Command): void {
       }
       writeFileSync(flags.out, JSON.stringify(result) + '\n');
       if (flags.tsv) writeFileSync(flags.tsv, deviationTsv(result));
-      console.log(`${result.measure}; reference ${spec.groupColumn} = ${spec.referenceGroup} (${result.reference.n} subjects${spec.covariates.length ? `, adjusted for ${spec.covariates.join(', ')}` : ''}); ${result.subjects.length} subjects scored, ${result.excluded.length} left out`);
+      console.log(
+        `${result.measure}; reference ${spec.groupColumn} = ${spec.referenceGroup} (${result.reference.n} subjects${spec.covariates.length ? `, adjusted for ${spec.covariates.join(', ')}` : ''}); ${result.subjects.length} subjects scored, ${result.excluded.length} left out`,
+      );
       console.log(`share of points beyond |z| > 2: expected ${(100 * result.expectedShare).toFixed(1)} % (reference subjects, leave-one-out)`);
-      for (const g of result.groups) console.log(`  ${g.group ?? '(no group)'}: n ${g.n}, median ${(100 * g.shares.median).toFixed(1)} %, max ${(100 * g.shares.max).toFixed(1)} %, ${g.beyondReference95} above the reference 95th percentile, mean z ${g.meanZ.toFixed(2)}`);
+      for (const g of result.groups)
+        console.log(
+          `  ${g.group ?? '(no group)'}: n ${g.n}, median ${(100 * g.shares.median).toFixed(1)} %, max ${(100 * g.shares.max).toFixed(1)} %, ${g.beyondReference95} above the reference 95th percentile, mean z ${g.meanZ.toFixed(2)}`,
+        );
       console.log(`wrote ${flags.out}`);
     });
 }

@@ -35,12 +35,18 @@ const num = (name: string, check: (x: number) => boolean) => (v: string) => {
   if (!Number.isFinite(x) || !check(x)) throw new InvalidArgumentError(`invalid ${name}: ${v}`);
   return x;
 };
-const list = (v: string) => v.split(',').map((s) => s.trim()).filter(Boolean);
-const range = (name: string) => (v: string): [number, number] => {
-  const m = /^([\d.]+)-([\d.]+)$/.exec(v.trim());
-  if (!m || !(Number(m[2]) > Number(m[1]))) throw new InvalidArgumentError(`invalid ${name}: ${v} (expected LO-HI in Hz)`);
-  return [Number(m[1]), Number(m[2])];
-};
+const list = (v: string) =>
+  v
+    .split(',')
+    .map((s) => s.trim())
+    .filter(Boolean);
+const range =
+  (name: string) =>
+  (v: string): [number, number] => {
+    const m = /^([\d.]+)-([\d.]+)$/.exec(v.trim());
+    if (!m || !(Number(m[2]) > Number(m[1]))) throw new InvalidArgumentError(`invalid ${name}: ${v} (expected LO-HI in Hz)`);
+    return [Number(m[1]), Number(m[2])];
+  };
 /** An option whose default --help shows once, as one would type it (commander would print a list as ["EEG"]). */
 const option = (flags: string, description: string, parse: (v: string) => unknown, value: unknown, shown: string) =>
   new Option(flags, description).argParser(parse).default(value, shown);
@@ -99,51 +105,192 @@ export function register(program: Command): void {
     )
     .argument('<cohort>', 'cohort table (.tsv/.csv) or BIDS folder')
     .requiredOption('--out <file>', 'database file to create or extend (DuckDB)')
-    .addOption(option('--jobs <n>', 'worker threads, one recording each', num('jobs', (x) => Number.isInteger(x) && x >= 1), availableParallelism(), 'one per core'))
-    .option('--shard <K/N>', 'process only shard K of N (K from 1): the recordings sorted by subject, session and path, every N-th from the K-th; merge the shard files later')
-    .option('--epoch <s>', 'scoring epoch length, s', num('epoch', (x) => x > 0), D.epochS)
-    .option('--segment <s>', 'Welch segment length, s (frequency step 1/segment Hz)', num('segment', (x) => x > 0), D.segmentS)
-    .option('--overlap <fraction>', 'Welch segment overlap, 0 ≤ f < 1', num('overlap', (x) => x >= 0 && x < 1), D.overlap)
-    .option('--max-freq <Hz>', 'highest stored frequency, Hz (each channel at most to its own Nyquist frequency)', num('max-freq', (x) => x > 0), D.maxFreqHz)
+    .addOption(
+      option(
+        '--jobs <n>',
+        'worker threads, one recording each',
+        num('jobs', (x) => Number.isInteger(x) && x >= 1),
+        availableParallelism(),
+        'one per core',
+      ),
+    )
+    .option(
+      '--shard <K/N>',
+      'process only shard K of N (K from 1): the recordings sorted by subject, session and path, every N-th from the K-th; merge the shard files later',
+    )
+    .option(
+      '--epoch <s>',
+      'scoring epoch length, s',
+      num('epoch', (x) => x > 0),
+      D.epochS,
+    )
+    .option(
+      '--segment <s>',
+      'Welch segment length, s (frequency step 1/segment Hz)',
+      num('segment', (x) => x > 0),
+      D.segmentS,
+    )
+    .option(
+      '--overlap <fraction>',
+      'Welch segment overlap, 0 ≤ f < 1',
+      num('overlap', (x) => x >= 0 && x < 1),
+      D.overlap,
+    )
+    .option(
+      '--max-freq <Hz>',
+      'highest stored frequency, Hz (each channel at most to its own Nyquist frequency)',
+      num('max-freq', (x) => x > 0),
+      D.maxFreqHz,
+    )
     .addOption(option('--channel-types <list>', 'channel types selected when no --include is given', list, D.channelTypes, D.channelTypes.join(',')))
     .option('--include <labels>', 'comma-separated labels or electrode names to take, whatever their type (default: the channels of --channel-types)', list)
     .option('--exclude <labels>', 'comma-separated labels or electrode names to leave out (default: none)', list)
     .addOption(option('--reference <list>', `references to compute: ${REFERENCE_KINDS.join(', ')}`, list, D.references, D.references.join(',')))
     .option('--bipolar <pairs>', "bipolar pairs for --reference bipolar, e.g. 'F3-C3,C4-P4' (default: none)", list)
-    .option('--max-peak-to-peak <µV>', 'reject an epoch above this peak-to-peak amplitude, µV (common practice)', num('max-peak-to-peak', (x) => x > 0), D.rejection.maxPeakToPeakUv)
-    .option('--flat-sd <µV>', 'reject an epoch whose SD is below this, µV', num('flat-sd', (x) => x >= 0), D.rejection.flatSdUv)
-    .option('--flat-run <s>', 'reject an epoch holding one value this long, s', num('flat-run', (x) => x > 0), D.rejection.flatRunS)
-    .option('--outlier-z <z>', 'reject epochs whose log broadband or muscle-range power stands out within stage and channel as a modified z above this would with many epochs (Iglewicz & Hoaglin 1993); short stages get a higher limit so each rule removes 2Φ(−z) of clean epochs (0.047 % at 3.5); at least 2', num('outlier-z', (x) => x >= 2), D.rejection.outlierZ)
-    .addOption(option('--broadband <LO-HI>', 'broadband power range for the outlier rule, Hz', range('broadband'), D.rejection.broadbandHz, D.rejection.broadbandHz.join('-')))
-    .addOption(option('--muscle <LO-HI>', 'high-frequency (muscle) range for the outlier rule, Hz', range('muscle'), D.rejection.muscleHz, D.rejection.muscleHz.join('-')))
-    .option('--min-epochs <n>', 'flag stages with fewer clean epochs (10 = 5 min of 30-s epochs)', num('min-epochs', (x) => Number.isInteger(x) && x >= 1), D.minEpochs)
-    .addOption(option('--estimator <list>', 'spectral estimators to store: welch, multitaper (Thomson 1982: Slepian tapers on Welch\'s segments and grid; Welch is always stored, as epoch rejection, band powers and quality use it)', list, ['welch'], 'welch'))
-    .option('--nw <NW>', 'multitaper time-half-bandwidth NW: frequency resolution 2NW/segment Hz (1 Hz for 2 and 4-s segments)', num('nw', (x) => x >= 1), 2)
-    .option('--tapers <K>', 'multitaper number of tapers K (default: 2NW − 1)', num('tapers', (x) => Number.isInteger(x) && x >= 1))
-    .option('--epoch-spectra', 'also store each epoch\'s Welch spectrum of every channel (recorded reference), log10 power in 16 bits: about 30 kB per channel and recording-hour to 30 Hz before compression (README)')
-    .option('--epoch-spectra-max <Hz>', 'highest frequency of the stored epoch spectra, Hz', num('epoch-spectra-max', (x) => x > 0), 30)
+    .option(
+      '--max-peak-to-peak <µV>',
+      'reject an epoch above this peak-to-peak amplitude, µV (common practice)',
+      num('max-peak-to-peak', (x) => x > 0),
+      D.rejection.maxPeakToPeakUv,
+    )
+    .option(
+      '--flat-sd <µV>',
+      'reject an epoch whose SD is below this, µV',
+      num('flat-sd', (x) => x >= 0),
+      D.rejection.flatSdUv,
+    )
+    .option(
+      '--flat-run <s>',
+      'reject an epoch holding one value this long, s',
+      num('flat-run', (x) => x > 0),
+      D.rejection.flatRunS,
+    )
+    .option(
+      '--outlier-z <z>',
+      'reject epochs whose log broadband or muscle-range power stands out within stage and channel as a modified z above this would with many epochs (Iglewicz & Hoaglin 1993); short stages get a higher limit so each rule removes 2Φ(−z) of clean epochs (0.047 % at 3.5); at least 2',
+      num('outlier-z', (x) => x >= 2),
+      D.rejection.outlierZ,
+    )
+    .addOption(
+      option(
+        '--broadband <LO-HI>',
+        'broadband power range for the outlier rule, Hz',
+        range('broadband'),
+        D.rejection.broadbandHz,
+        D.rejection.broadbandHz.join('-'),
+      ),
+    )
+    .addOption(
+      option(
+        '--muscle <LO-HI>',
+        'high-frequency (muscle) range for the outlier rule, Hz',
+        range('muscle'),
+        D.rejection.muscleHz,
+        D.rejection.muscleHz.join('-'),
+      ),
+    )
+    .option(
+      '--min-epochs <n>',
+      'flag stages with fewer clean epochs (10 = 5 min of 30-s epochs)',
+      num('min-epochs', (x) => Number.isInteger(x) && x >= 1),
+      D.minEpochs,
+    )
+    .addOption(
+      option(
+        '--estimator <list>',
+        "spectral estimators to store: welch, multitaper (Thomson 1982: Slepian tapers on Welch's segments and grid; Welch is always stored, as epoch rejection, band powers and quality use it)",
+        list,
+        ['welch'],
+        'welch',
+      ),
+    )
+    .option(
+      '--nw <NW>',
+      'multitaper time-half-bandwidth NW: frequency resolution 2NW/segment Hz (1 Hz for 2 and 4-s segments)',
+      num('nw', (x) => x >= 1),
+      2,
+    )
+    .option(
+      '--tapers <K>',
+      'multitaper number of tapers K (default: 2NW − 1)',
+      num('tapers', (x) => Number.isInteger(x) && x >= 1),
+    )
+    .option(
+      '--epoch-spectra',
+      "also store each epoch's Welch spectrum of every channel (recorded reference), log10 power in 16 bits: about 30 kB per channel and recording-hour to 30 Hz before compression (README)",
+    )
+    .option(
+      '--epoch-spectra-max <Hz>',
+      'highest frequency of the stored epoch spectra, Hz',
+      num('epoch-spectra-max', (x) => x > 0),
+      30,
+    )
     .option('--band <band...>', `epoch band powers, repeatable: ${BAND_SYNTAX} (default: ${D.bands.map((b) => `${b.name}:${b.loHz}-${b.hiHz}`).join(' ')})`)
     .addOption(option('--band-method <mean|integral>', 'band power as mean density (µV²/Hz) or trapezoid integral (µV²)', String, D.bandMethod, D.bandMethod))
     .addOption(option('--fit-range <LO-HI>', 'aperiodic fit range, Hz', range('fit-range'), D.fit!.fitRangeHz, D.fit!.fitRangeHz.join('-')))
     .option('--knee', 'fit the aperiodic knee (default: plain power law, knee 0)')
     .option('--no-fit', 'skip the aperiodic and peak fits')
-    .option('--irasa', 'also estimate the aperiodic component by IRASA (Wen & Liu 2016) from the clean epochs\' time series, stored with method irasa (a second read of each recording; slower)')
-    .option('--mains-hz <Hz>', 'power-line frequency, 50 or 60: the mains-hum metric\'s line and the only line left out of the narrow-spike search (default: both left out, the metric\'s line from the BIDS sidecar, else detected)', num('mains-hz', (x) => x === 50 || x === 60))
-    .option('--label-map <file.tsv>', 'stage-label map: a TSV with columns label and stage (W, N1, N2, N3, R or unscored); its labels take precedence over the built-in ones')
-    .option('--unknown-as-unscored', 'score the epochs of a stage label that is neither built in nor in the label map as unscored, with a warning (default: refuse the recording)')
-    .option('--trim-scoring', 'drop scored stages that lie before the recording start or past its end, with a warning (default: refuse the recording, as such scoring is likely misaligned); unscored labels there are always dropped')
-    .addOption(option('--lights-off-texts <list>', 'comma-separated annotation texts that mark lights off, matched ignoring case and spaces', list, D.scoring.lightsOffTexts, D.scoring.lightsOffTexts.join(',')))
-    .addOption(option('--lights-on-texts <list>', 'comma-separated annotation texts that mark lights on, matched ignoring case and spaces', list, D.scoring.lightsOnTexts, D.scoring.lightsOnTexts.join(',')))
-    .option('--positions <file.tsv>', 'electrode positions for every recording without its own (a BIDS _electrodes.tsv beside it, or the cohort table\'s positions column): tab-separated name, x, y, z; its unit and axes from the <stem>_coordsystem.json beside it, else --positions-unit with x to the right ear, y to the nose, z up')
-    .addOption(option('--positions-unit <m|cm|mm>', 'unit of positions files that have no _coordsystem.json beside them', (v: string) => {
-      if (!(COORDINATE_UNITS as readonly string[]).includes(v)) throw new InvalidArgumentError(`--positions-unit: "${v}" is not one of ${COORDINATE_UNITS.join(', ')}`);
-      return v as CoordinateUnit;
-    }, 'mm', 'mm'))
+    .option(
+      '--irasa',
+      "also estimate the aperiodic component by IRASA (Wen & Liu 2016) from the clean epochs' time series, stored with method irasa (a second read of each recording; slower)",
+    )
+    .option(
+      '--mains-hz <Hz>',
+      "power-line frequency, 50 or 60: the mains-hum metric's line and the only line left out of the narrow-spike search (default: both left out, the metric's line from the BIDS sidecar, else detected)",
+      num('mains-hz', (x) => x === 50 || x === 60),
+    )
+    .option(
+      '--label-map <file.tsv>',
+      'stage-label map: a TSV with columns label and stage (W, N1, N2, N3, R or unscored); its labels take precedence over the built-in ones',
+    )
+    .option(
+      '--unknown-as-unscored',
+      'score the epochs of a stage label that is neither built in nor in the label map as unscored, with a warning (default: refuse the recording)',
+    )
+    .option(
+      '--trim-scoring',
+      'drop scored stages that lie before the recording start or past its end, with a warning (default: refuse the recording, as such scoring is likely misaligned); unscored labels there are always dropped',
+    )
+    .addOption(
+      option(
+        '--lights-off-texts <list>',
+        'comma-separated annotation texts that mark lights off, matched ignoring case and spaces',
+        list,
+        D.scoring.lightsOffTexts,
+        D.scoring.lightsOffTexts.join(','),
+      ),
+    )
+    .addOption(
+      option(
+        '--lights-on-texts <list>',
+        'comma-separated annotation texts that mark lights on, matched ignoring case and spaces',
+        list,
+        D.scoring.lightsOnTexts,
+        D.scoring.lightsOnTexts.join(','),
+      ),
+    )
+    .option(
+      '--positions <file.tsv>',
+      "electrode positions for every recording without its own (a BIDS _electrodes.tsv beside it, or the cohort table's positions column): tab-separated name, x, y, z; its unit and axes from the <stem>_coordsystem.json beside it, else --positions-unit with x to the right ear, y to the nose, z up",
+    )
+    .addOption(
+      option(
+        '--positions-unit <m|cm|mm>',
+        'unit of positions files that have no _coordsystem.json beside them',
+        (v: string) => {
+          if (!(COORDINATE_UNITS as readonly string[]).includes(v))
+            throw new InvalidArgumentError(`--positions-unit: "${v}" is not one of ${COORDINATE_UNITS.join(', ')}`);
+          return v as CoordinateUnit;
+        },
+        'mm',
+        'mm',
+      ),
+    )
     .addOption(
       new Option(
         '--file-names <form>',
-        'what the database keeps of each file\'s path: name (the file name without its folders, which often name people), ' +
-          'relative (the path relative to the cohort table), as-given (as the table writes it) or hash (only the file\'s SHA-256; failed rows named by their row)',
+        "what the database keeps of each file's path: name (the file name without its folders, which often name people), " +
+          "relative (the path relative to the cohort table), as-given (as the table writes it) or hash (only the file's SHA-256; failed rows named by their row)",
       )
         .choices([...FILE_NAME_FORMS])
         .default(DEFAULT_FILE_NAME_FORM),
@@ -176,7 +323,14 @@ function toParams(f: Flags): Partial<IngestParams> {
     excludeChannels: f.exclude ?? [],
     references: f.reference as ReferenceKind[],
     bipolarPairs: f.bipolar ?? [],
-    rejection: { maxPeakToPeakUv: f.maxPeakToPeak, flatSdUv: f.flatSd, flatRunS: f.flatRun, outlierZ: f.outlierZ, broadbandHz: f.broadband, muscleHz: f.muscle },
+    rejection: {
+      maxPeakToPeakUv: f.maxPeakToPeak,
+      flatSdUv: f.flatSd,
+      flatRunS: f.flatRun,
+      outlierZ: f.outlierZ,
+      broadbandHz: f.broadband,
+      muscleHz: f.muscle,
+    },
     minEpochs: f.minEpochs,
     bands: f.band ? (Array.isArray(f.band) ? f.band : [f.band]).map(parseBand) : D.bands,
     bandMethod: f.bandMethod,
@@ -251,7 +405,12 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
   process.on('SIGINT', onSignal);
   process.on('SIGTERM', onSignal);
   try {
-    const summary = await runIngest(cohort, f.out, { params, jobs: f.jobs, shard, positions: f.positions, positionsUnit: f.positionsUnit, signal: interrupt.signal, fileNames: f.fileNames }, onEvent);
+    const summary = await runIngest(
+      cohort,
+      f.out,
+      { params, jobs: f.jobs, shard, positions: f.positions, positionsUnit: f.positionsUnit, signal: interrupt.signal, fileNames: f.fileNames },
+      onEvent,
+    );
     bars?.stop();
     if (summary.interrupted) {
       const stored = summary.done + summary.skipped;
@@ -263,9 +422,12 @@ async function ingestCommand(cohort: string, f: Flags, cmd: Command): Promise<nu
       return exitStatusFor(caught ?? 'SIGINT');
     }
     const secs = (Date.now() - t0) / 1000;
-    console.log(`run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, ${summary.warnings} warning${summary.warnings === 1 ? '' : 's'} (table warnings), in ${secs.toFixed(1)} s`);
+    console.log(
+      `run ${summary.runId}: ${summary.done} done, ${summary.skipped} already stored (skipped), ${summary.failed.length} failed, ${summary.warnings} warning${summary.warnings === 1 ? '' : 's'} (table warnings), in ${secs.toFixed(1)} s`,
+    );
     for (const x of summary.failed.slice(0, LISTED_FAILURES)) console.log(`  failed ${x.file} at ${x.step}: ${x.message}`);
-    if (summary.failed.length > LISTED_FAILURES) console.log(`  … and ${summary.failed.length - LISTED_FAILURES} more failures, all in the database's ingest_errors table`);
+    if (summary.failed.length > LISTED_FAILURES)
+      console.log(`  … and ${summary.failed.length - LISTED_FAILURES} more failures, all in the database's ingest_errors table`);
     if (summary.failed.length === 0) return EXIT_OK;
     return summary.done + summary.skipped > 0 ? EXIT_PARTLY_FAILED : EXIT_FATAL;
   } catch (e) {

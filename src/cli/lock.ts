@@ -38,7 +38,10 @@ export function register(program: Command): void {
     .option('--exclusions <file>', 'TSV of subjects/channels to leave out (subject, channel, reason), as the dashboard exports it (default: none)')
     .option('--run <id>', 'ingest run the plan reads (default: the most recent finished run)')
     .option('--ledger <file>', 'ledger file the plan is recorded in and the looks at the confirmation part are read from (default: <database>.ledger.jsonl)')
-    .addHelpText('after', '\nExample:\n  bandwise lock cohort.duckdb --contrast sigma.json --exclusions exclusions.tsv\n\nA research tool, not a diagnostic device.')
+    .addHelpText(
+      'after',
+      '\nExample:\n  bandwise lock cohort.duckdb --contrast sigma.json --exclusions exclusions.tsv\n\nA research tool, not a diagnostic device.',
+    )
     .action(async (database: string, flags: LockFlags) => {
       const contrasts = inputOrExit((): Contrast[] => flags.contrast.map((f) => parseContrast(JSON.parse(readFileSync(f, 'utf8')))));
       if (!contrasts) return;

@@ -39,10 +39,7 @@ const pkg = JSON.parse(readFileSync(new URL('../../package.json', import.meta.ur
 const program = new Command();
 program
   .name('bandwise')
-  .description(
-    'Cohort-level sleep-EEG spectral database and group comparisons.\n' +
-      'A research tool, not a diagnostic device.',
-  )
+  .description('Cohort-level sleep-EEG spectral database and group comparisons.\n' + 'A research tool, not a diagnostic device.')
   .version(pkg.version)
   .showHelpAfterError();
 

@@ -29,7 +29,10 @@ export function register(program: Command): void {
       const { mergeShards } = await import('../../ingest/store/merge.ts'); // loaded on use
       const t0 = Date.now();
       try {
-        refuseClashes(shards.map((file) => ({ what: 'the shard', file })), [{ what: '--out', file: flags.out }]);
+        refuseClashes(
+          shards.map((file) => ({ what: 'the shard', file })),
+          [{ what: '--out', file: flags.out }],
+        );
       } catch (e) {
         console.error(`bandwise merge: ${(e as Error).message}`);
         process.exitCode = EXIT_OUTPUT_REFUSED;

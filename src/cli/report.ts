@@ -18,10 +18,10 @@ export function register(program: Command): void {
     .argument('<result>', 'result JSON written by `bandwise compare` or `bandwise band-check`')
     .requiredOption('--out <file>', 'methods text to write (Markdown)')
     .option('--json <file>', 'parameters JSON to write (default: the --out name with .json)')
-    .option('--database <file>', 'the database the result came from (default: the result\'s database file, if it lies beside the result)')
+    .option('--database <file>', "the database the result came from (default: the result's database file, if it lies beside the result)")
     .option('--ledger <file>', 'ledger file to count analyses from (default: <database>.ledger.jsonl)')
     .option('--no-ledger', 'neither count nor record in a ledger')
-    .option('--run <id>', 'ingest run (default: the result\'s run)')
+    .option('--run <id>', "ingest run (default: the result's run)")
     .action(async (resultFile: string, flags: ReportOptions) => {
       // loaded on use: `bandwise --help` reads none of the analysis code
       const { ReportFileError, writeReport } = await import('../analysis/write-report.ts');

@@ -30,11 +30,17 @@ export function register(program: Command): void {
       const { default: cliProgress } = await import('cli-progress');
       const { ScenarioFileError, writeSimulatedCohort } = await import('../simulation/index.ts');
       const bar = process.stderr.isTTY
-        ? new cliProgress.SingleBar({ format: 'simulating {subject} |{bar}| {value}/{total} epochs · subject {n}/{of} · ETA {eta_formatted}', stream: process.stderr }, cliProgress.Presets.shades_classic)
+        ? new cliProgress.SingleBar(
+            { format: 'simulating {subject} |{bar}| {value}/{total} epochs · subject {n}/{of} · ETA {eta_formatted}', stream: process.stderr },
+            cliProgress.Presets.shades_classic,
+          )
         : null;
       let current = '';
       try {
-        refuseClashes([{ what: 'the scenario', file: scenarioPath }], ['participants.tsv', 'truth.json'].map((f) => ({ what: 'the output', file: path.join(outDir, f) })));
+        refuseClashes(
+          [{ what: 'the scenario', file: scenarioPath }],
+          ['participants.tsv', 'truth.json'].map((f) => ({ what: 'the output', file: path.join(outDir, f) })),
+        );
       } catch (e) {
         console.error(`bandwise simulate: ${(e as Error).message}`);
         process.exitCode = EXIT_OUTPUT_REFUSED;

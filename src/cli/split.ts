@@ -32,7 +32,13 @@ const seed = (v: string) => {
 
 /** The stratifying columns: as given, none for "none", else group when participants has it. */
 async function stratifyColumns(database: string, given: string | undefined): Promise<string[]> {
-  if (given !== undefined) return given.trim().toLowerCase() === 'none' ? [] : given.split(',').map((s) => s.trim()).filter(Boolean);
+  if (given !== undefined)
+    return given.trim().toLowerCase() === 'none'
+      ? []
+      : given
+          .split(',')
+          .map((s) => s.trim())
+          .filter(Boolean);
   return withDatabase(database, async (db) => ((await cohortSchema(db)).has('participants', 'group') ? ['group'] : []));
 }
 
@@ -45,13 +51,20 @@ function strataLine(columns: string[], key: string, s: { exploration: number; co
 function print(o: SplitOutcome): void {
   const s = o.split.stamp;
   const strata = s.stratify.length > 0 ? `stratified by ${s.stratify.join(', ')} (${o.strataCount} strata)` : 'not stratified';
-  console.log(`split ${s.id}: exploration ${s.subjects.exploration} subjects, confirmation ${s.subjects.confirmation} (fraction ${s.fraction}, seed ${s.seed}, ${strata})`);
+  console.log(
+    `split ${s.id}: exploration ${s.subjects.exploration} subjects, confirmation ${s.subjects.confirmation} (fraction ${s.fraction}, seed ${s.seed}, ${strata})`,
+  );
   for (const x of o.strata) console.log(strataLine(s.stratify, x.stratum, x));
   if (s.blindColumn !== null) {
     const codes = Object.values(o.split.codes ?? {}).sort();
-    console.log(`blinded: the values of "${s.blindColumn}" are shown as ${codes.join(', ')} in every exploration result and screen, with group sizes pooled; only bandwise confirm shows the real groups`);
+    console.log(
+      `blinded: the values of "${s.blindColumn}" are shown as ${codes.join(', ')} in every exploration result and screen, with group sizes pooled; only bandwise confirm shows the real groups`,
+    );
   }
-  if (o.labelsTellGroups) console.log('warning: the subject labels tell the blinded groups apart (each group\'s labels share a beginning no other label has); blinding codes the column, not the labels');
+  if (o.labelsTellGroups)
+    console.log(
+      "warning: the subject labels tell the blinded groups apart (each group's labels share a beginning no other label has); blinding codes the column, not the labels",
+    );
   if (o.replaced) {
     const r = o.replaced;
     const plans = r.plans.map((p) => `${p.id} (${p.confirmations} confirmation${p.confirmations === 1 ? '' : 's'})`).join(', ');

@@ -19,7 +19,14 @@ import { OutputClashError, OutputWriteError } from '../files/output-files.ts';
 /** The exit status of a user error (1 or 2), or null for any other error. */
 export function userErrorStatus(e: unknown): 1 | 2 | null {
   if (e instanceof OutputClashError || e instanceof InputFileError) return 2;
-  if (e instanceof StoreError || e instanceof PermutationTestInputError || e instanceof ContrastDataError || e instanceof OutputWriteError || e instanceof AppNotBuiltError) return 1;
+  if (
+    e instanceof StoreError ||
+    e instanceof PermutationTestInputError ||
+    e instanceof ContrastDataError ||
+    e instanceof OutputWriteError ||
+    e instanceof AppNotBuiltError
+  )
+    return 1;
   return null;
 }
 

@@ -82,14 +82,16 @@ const OWN_INGEST_OPTIONS = ['--out', '--shard', '--jobs', '--quiet'];
 function check(o: ClusterScriptOptions): void {
   if (!Number.isSafeInteger(o.shards) || o.shards < 1) throw new ClusterScriptError(`--shards must be a whole number ≥ 1, got ${o.shards}`);
   if (o.cpus !== undefined && (!Number.isSafeInteger(o.cpus) || o.cpus < 1)) throw new ClusterScriptError(`--cpus must be a whole number ≥ 1, got ${o.cpus}`);
-  if (o.partition !== undefined && !/^[A-Za-z0-9_.,-]+$/.test(o.partition)) throw new ClusterScriptError(`--partition '${o.partition}': letters, digits and _ . , - only`);
+  if (o.partition !== undefined && !/^[A-Za-z0-9_.,-]+$/.test(o.partition))
+    throw new ClusterScriptError(`--partition '${o.partition}': letters, digits and _ . , - only`);
   // sbatch(1) --mem: a number with an optional unit suffix K, M, G or T
   if (o.mem !== undefined && !/^\d+[KMGT]?$/i.test(o.mem)) throw new ClusterScriptError(`--mem '${o.mem}': expected a size such as 4G or 500M`);
   // sbatch(1) --time: minutes, MM:SS, HH:MM:SS, D-HH, D-HH:MM or D-HH:MM:SS
   if (o.time !== undefined && !/^(\d+|\d+:\d{1,2}|\d+:\d{1,2}:\d{1,2}|\d+-\d{1,2}(:\d{1,2}){0,2})$/.test(o.time)) {
     throw new ClusterScriptError(`--time '${o.time}': expected minutes, HH:MM:SS or D-HH:MM:SS`);
   }
-  if (o.jobName !== undefined && !/^[A-Za-z0-9_.-]+$/.test(o.jobName)) throw new ClusterScriptError(`--job-name '${o.jobName}': letters, digits and _ . - only`);
+  if (o.jobName !== undefined && !/^[A-Za-z0-9_.-]+$/.test(o.jobName))
+    throw new ClusterScriptError(`--job-name '${o.jobName}': letters, digits and _ . - only`);
   for (const opt of o.ingestOptions ?? []) {
     const name = opt.split('=')[0];
     if (OWN_INGEST_OPTIONS.includes(name)) throw new ClusterScriptError(`ingest option ${name} is set by the scripts (one shard file per task); leave it out`);
@@ -98,7 +100,8 @@ function check(o: ClusterScriptOptions): void {
 
 /** #SBATCH lines are not read by a shell: refuse what they cannot carry. */
 function sbatchPath(p: string, what: string): string {
-  if (/[\s%"'\\]/.test(p)) throw new ClusterScriptError(`${what} '${p}' contains a space, quote, backslash or %, which #SBATCH lines cannot carry; choose another folder`);
+  if (/[\s%"'\\]/.test(p))
+    throw new ClusterScriptError(`${what} '${p}' contains a space, quote, backslash or %, which #SBATCH lines cannot carry; choose another folder`);
   return p;
 }
 
@@ -193,7 +196,10 @@ export function writeClusterScripts(o: ClusterScriptOptions, folder: string): Wr
   const at = (f: string) => path.join(path.resolve(folder), f);
   const written = { ingest: at('ingest.sbatch'), merge: at('merge.sbatch'), submit: at('submit.sh') };
   refuseClashes(
-    [{ what: 'the cohort', file: o.cohort }, { what: '--out', file: o.out }],
+    [
+      { what: 'the cohort', file: o.cohort },
+      { what: '--out', file: o.out },
+    ],
     Object.values(written).map((file) => ({ what: 'the script', file })),
   );
   writeFileReplacing(written.ingest, scripts.ingest);

@@ -14,8 +14,7 @@ export const VIEWS: readonly ViewInfo[] = [
   {
     id: 'quality',
     label: 'Quality screen',
-    summary:
-      'A subjects × channels grid coloured by quality score, the list of flags with reasons, each spectrum against the cohort, and the exclusion list.',
+    summary: 'A subjects × channels grid coloured by quality score, the list of flags with reasons, each spectrum against the cohort, and the exclusion list.',
     ready: true,
   },
   {
@@ -51,13 +50,14 @@ export const VIEWS: readonly ViewInfo[] = [
   {
     id: 'power',
     label: 'Power',
-    summary: 'The power of a whole contrast by simulation from a reference group\'s own spectra, as a curve over subjects per group with intervals.',
+    summary: "The power of a whole contrast by simulation from a reference group's own spectra, as a curve over subjects per group with intervals.",
     ready: true,
   },
   {
     id: 'deviation',
     label: 'Deviation',
-    summary: 'Every subject scored against a reference group per channel and frequency: a map per subject, its spectrum against the reference band, shares per group.',
+    summary:
+      'Every subject scored against a reference group per channel and frequency: a map per subject, its spectrum against the reference band, shares per group.',
     ready: true,
   },
   { id: 'report', label: 'Methods report', summary: 'Every spectral and statistical parameter written out as methods text.', ready: true },

@@ -35,7 +35,10 @@ export function readSmallText(file: string, what: string): string {
       }
       if (got === 0) break;
       n += got;
-      if (n > MAX_INPUT_BYTES) throw new InputFileError(`${what} ${file} holds more than ${MAX_INPUT_BYTES / (1 << 20)} MiB; that is not a ${what === '--contrast' ? 'contrast JSON' : 'small text file'} (read stopped there)`);
+      if (n > MAX_INPUT_BYTES)
+        throw new InputFileError(
+          `${what} ${file} holds more than ${MAX_INPUT_BYTES / (1 << 20)} MiB; that is not a ${what === '--contrast' ? 'contrast JSON' : 'small text file'} (read stopped there)`,
+        );
     }
     return buf.subarray(0, n).toString('utf8');
   } finally {

@@ -81,7 +81,8 @@ export function refuseClashes(inputs: readonly (NamedFile | null)[], outputs: re
     const id = identityOf(input.file);
     if (!id.exists) continue;
     const o = existing.find((x) => same(x.id, id));
-    if (o) throw new OutputClashError(`${o.what} ${o.file} is ${input.what} ${input.file} (the same file): writing it would destroy that input; nothing written`);
+    if (o)
+      throw new OutputClashError(`${o.what} ${o.file} is ${input.what} ${input.file} (the same file): writing it would destroy that input; nothing written`);
   }
 }
 
@@ -143,5 +144,5 @@ function replace(file: string, data: string | Uint8Array): void {
 
 function writeAll(fd: number, data: string | Uint8Array): void {
   const bytes = typeof data === 'string' ? Buffer.from(data, 'utf8') : data;
-  for (let at = 0; at < bytes.length; ) at += writeSync(fd, bytes, at, bytes.length - at);
+  for (let at = 0; at < bytes.length;) at += writeSync(fd, bytes, at, bytes.length - at);
 }

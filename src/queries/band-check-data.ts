@@ -39,8 +39,14 @@ export async function loadBandCheckData(
       if (!ranges.some((x) => x[0] === r[0] && x[1] === r[1])) ranges.push(r);
     }
   }
-  if (ranges.length === 0) throw new Error(`no aperiodic fits (${c.aperiodicMethod}) stored for ${stages.join('/')}, reference ${c.reference}, averaging ${c.averaging} in run ${loaded.runId}`);
-  if (ranges.length > 1) throw new Error(`the stored aperiodic fits use different fit ranges (${ranges.map((r) => `${r[0]}–${r[1]} Hz`).join(', ')}); a band check needs one range for every subject`);
+  if (ranges.length === 0)
+    throw new Error(
+      `no aperiodic fits (${c.aperiodicMethod}) stored for ${stages.join('/')}, reference ${c.reference}, averaging ${c.averaging} in run ${loaded.runId}`,
+    );
+  if (ranges.length > 1)
+    throw new Error(
+      `the stored aperiodic fits use different fit ranges (${ranges.map((r) => `${r[0]}–${r[1]} Hz`).join(', ')}); a band check needs one range for every subject`,
+    );
   return { ...loaded, fitRangeHz: ranges[0] };
 }
 
@@ -58,7 +64,8 @@ export async function loadPathDataSets(
   needs: readonly { reference: string; averaging: PathDataSet['averaging']; estimator?: PathDataSet['estimator'] }[],
   exclusions: readonly Exclusion[],
 ): Promise<PathDataSet[]> {
-  if (c.design === 'paired' && c.stages) throw new Error('a robustness run takes one stage; paired stages are not supported here (choose a groups or covariate design)');
+  if (c.design === 'paired' && c.stages)
+    throw new Error('a robustness run takes one stage; paired stages are not supported here (choose a groups or covariate design)');
   const run = chooseRun(runList);
   const people = await contrastParticipants(db, schema);
   const { view } = await workflowOf(db, schema);
@@ -66,14 +73,22 @@ export async function loadPathDataSets(
   for (const { reference, averaging, estimator = 'welch' } of needs) {
     const q = { runId: run.runId, stage: c.stage, reference, averaging, estimator: storedEstimator(schema, estimator) };
     const spectra = await spectraRows(db, { ...q, channels: c.channels === 'all' ? undefined : c.channels });
-    if (spectra.rows.length === 0) throw new Error(`no ${c.stage} spectra with reference ${reference}, averaging ${averaging} and estimator ${estimator} in run ${run.runId}`);
+    if (spectra.rows.length === 0)
+      throw new Error(`no ${c.stage} spectra with reference ${reference}, averaging ${averaging} and estimator ${estimator} in run ${run.runId}`);
     const ranges = await storedFitRanges(db, run.runId, c.stage, reference, averaging, c.aperiodicMethod, q.estimator);
     // fitted peaks (method fit): individual bands and paths decided on frequency use them
     const peaks = await peakRows(db, q, 'fit');
     // while a split exists, the exploration part only (groups coded while blinded)
     const base = partData(c, { spectra, peaks, participants: people, exclusions: [...exclusions], aperiodic: [] }, view);
     if (ranges.length === 0) sets.push({ reference, averaging, estimator, fitRangeHz: null, data: base });
-    for (const r of ranges) sets.push({ reference, averaging, estimator, fitRangeHz: r, data: { ...base, aperiodic: keepSubjects(await aperiodicInFitRange(db, q, c.aperiodicMethod, r), view) } });
+    for (const r of ranges)
+      sets.push({
+        reference,
+        averaging,
+        estimator,
+        fitRangeHz: r,
+        data: { ...base, aperiodic: keepSubjects(await aperiodicInFitRange(db, q, c.aperiodicMethod, r), view) },
+      });
   }
   return sets;
 }

@@ -6,10 +6,7 @@ import type { CohortSchema, TableColumn } from './schema.ts';
 const NUMERIC_TYPE = /^(TINYINT|SMALLINT|INTEGER|BIGINT|HUGEINT|UTINYINT|USMALLINT|UINTEGER|UBIGINT|FLOAT|DOUBLE|DECIMAL)/;
 
 /** The participants table as given, numbers as numbers, everything else as text. */
-export async function participants(
-  db: SqlClient,
-  schema: CohortSchema,
-): Promise<{ columns: TableColumn[]; rows: Row[] }> {
+export async function participants(db: SqlClient, schema: CohortSchema): Promise<{ columns: TableColumn[]; rows: Row[] }> {
   schema.require('participants', 'subject');
   const columns = [...schema.columns('participants')];
   const select = columns.map((c) => {
@@ -112,13 +109,8 @@ export async function recordingsOverview(db: SqlClient, schema: CohortSchema, gr
     joins.push('LEFT JOIN p ON p.subject = r.subject');
   }
   if (withChannels) {
-    ctes.push(
-      `fs AS (SELECT recording_id, min(fs_hz) AS lo, max(fs_hz) AS hi, count(*)::DOUBLE AS n FROM ${COHORT}.channels GROUP BY recording_id)`,
-    );
-    select.push(
-      `CASE WHEN fs.lo = fs.hi THEN printf('%g', fs.lo) ELSE printf('%g–%g', fs.lo, fs.hi) END AS fs_hz`,
-      'fs.n AS n_channels',
-    );
+    ctes.push(`fs AS (SELECT recording_id, min(fs_hz) AS lo, max(fs_hz) AS hi, count(*)::DOUBLE AS n FROM ${COHORT}.channels GROUP BY recording_id)`);
+    select.push(`CASE WHEN fs.lo = fs.hi THEN printf('%g', fs.lo) ELSE printf('%g–%g', fs.lo, fs.hi) END AS fs_hz`, 'fs.n AS n_channels');
     joins.push('LEFT JOIN fs ON fs.recording_id = r.recording_id');
   }
   for (const c of ARCHITECTURE_COLUMNS) if (schema.has('recordings', c)) select.push(`r.${c}::DOUBLE AS ${c}`);
@@ -153,7 +145,9 @@ export const SLEEP_COLUMNS = ['tst_min', 'se_pct', 'w_min', 'n1_min', 'n2_min', 
  * (written by an earlier bandwise).
  */
 export async function sleepArchitectureBySubject(db: SqlClient, runId: string): Promise<Map<string, Record<string, number | null>> | null> {
-  const views = rowsOf(await db.query(`SELECT count(*)::DOUBLE AS n FROM duckdb_views() WHERE database_name = ${literal(COHORT)} AND view_name = 'tidy_sleep_architecture'`));
+  const views = rowsOf(
+    await db.query(`SELECT count(*)::DOUBLE AS n FROM duckdb_views() WHERE database_name = ${literal(COHORT)} AND view_name = 'tidy_sleep_architecture'`),
+  );
   if (Number(views[0].n) === 0) return null;
   const rows = rowsOf(
     await db.query(

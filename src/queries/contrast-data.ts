@@ -109,7 +109,9 @@ export async function loadContrastData(
     ).map((r) => String(r.stage));
     throw new ContrastDataError(
       `no ${stages.join('/')} spectra with reference ${c.reference}, averaging ${c.averaging} and estimator ${c.estimator} in run ${run.runId}; ` +
-        (stored.length > 0 ? `stored stages: ${stored.join(', ')}` : `no stage has spectra of that reference and averaging (stored references: ${(await storedReferences(db, run.runId)).join(', ') || 'none'})`),
+        (stored.length > 0
+          ? `stored stages: ${stored.join(', ')}`
+          : `no stage has spectra of that reference and averaging (stored references: ${(await storedReferences(db, run.runId)).join(', ') || 'none'})`),
     );
   }
   return {
@@ -117,7 +119,11 @@ export async function loadContrastData(
     toolVersion: run.toolVersion,
     runFinished: run.finishedAt !== null,
     runParameters: run.parameters,
-    data: partData(c, { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences: references, positions }, view),
+    data: partData(
+      c,
+      { spectra: { ...axis, rows }, aperiodic, peaks, participants: participantRows, exclusions: [...exclusions], recordedReferences: references, positions },
+      view,
+    ),
     view,
   };
 }

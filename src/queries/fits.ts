@@ -23,7 +23,15 @@ async function aperiodicWhere(db: SqlClient, q: SpectraKey, where: string): Prom
   const offset = numbersOrNull(t, 'offset');
   const exponent = numbersOrNull(t, 'exponent');
   const knee = numbersOrNull(t, 'knee');
-  return texts(t, 'subject').map((s, i) => ({ subject: s, session: session[i], channel: channel[i], stage: q.stage, offset: offset[i], exponent: exponent[i], knee: knee[i] }));
+  return texts(t, 'subject').map((s, i) => ({
+    subject: s,
+    session: session[i],
+    channel: channel[i],
+    stage: q.stage,
+    offset: offset[i],
+    exponent: exponent[i],
+    knee: knee[i],
+  }));
 }
 
 /** Aperiodic fits of one run × stage × reference × averaging and method. */
@@ -34,7 +42,11 @@ export function aperiodicRows(db: SqlClient, q: SpectraKey, method: string): Pro
 /** Aperiodic fits of one run × stage × reference × averaging × method with one fit range (Hz). */
 export function aperiodicInFitRange(db: SqlClient, q: SpectraKey, method: string, fitRangeHz: [number, number]): Promise<AperiodicRow[]> {
   if (!fitRangeHz.every(Number.isFinite)) throw new Error(`aperiodic fit range ${fitRangeHz.join('–')} Hz is not a pair of numbers`);
-  return aperiodicWhere(db, q, `${fitWhere('a', q, method)} AND a.fit_lo_hz = ${doubleLiteral(fitRangeHz[0])} AND a.fit_hi_hz = ${doubleLiteral(fitRangeHz[1])}`);
+  return aperiodicWhere(
+    db,
+    q,
+    `${fitWhere('a', q, method)} AND a.fit_lo_hz = ${doubleLiteral(fitRangeHz[0])} AND a.fit_hi_hz = ${doubleLiteral(fitRangeHz[1])}`,
+  );
 }
 
 /** Fitted peaks of one run × stage × reference × averaging and method. */
@@ -51,7 +63,15 @@ export async function peakRows(db: SqlClient, q: SpectraKey, method: string): Pr
   const center = numbers(t, 'center_hz');
   const height = numbers(t, 'height');
   const width = numbers(t, 'bandwidth_hz');
-  return texts(t, 'subject').map((s, i) => ({ subject: s, session: session[i], channel: channel[i], stage: q.stage, centerHz: center[i], height: height[i], bandwidthHz: width[i] }));
+  return texts(t, 'subject').map((s, i) => ({
+    subject: s,
+    session: session[i],
+    channel: channel[i],
+    stage: q.stage,
+    centerHz: center[i],
+    height: height[i],
+    bandwidthHz: width[i],
+  }));
 }
 
 async function fitRanges(db: SqlClient, where: string): Promise<[number, number][]> {
@@ -67,7 +87,15 @@ async function fitRanges(db: SqlClient, where: string): Promise<[number, number]
 }
 
 /** Distinct aperiodic fit ranges (Hz) stored for one run × stage × reference × averaging × method (and estimator), ordered. */
-export function storedFitRanges(db: SqlClient, runId: string, stage: Stage, reference: string, averaging: string, method: string, estimator?: string | null): Promise<[number, number][]> {
+export function storedFitRanges(
+  db: SqlClient,
+  runId: string,
+  stage: Stage,
+  reference: string,
+  averaging: string,
+  method: string,
+  estimator?: string | null,
+): Promise<[number, number][]> {
   return fitRanges(db, fitWhere('a', { runId, stage, reference, averaging, estimator }, method));
 }
 

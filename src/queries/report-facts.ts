@@ -16,7 +16,9 @@ export async function recordingCount(db: SqlClient, runId: string): Promise<numb
 /** Distinct sampling rates of a run's channels, Hz, ascending. */
 export async function samplingRates(db: SqlClient, runId: string): Promise<number[]> {
   const rows = rowsOf(
-    await db.query(`SELECT DISTINCT c.fs_hz::DOUBLE AS fs FROM ${COHORT}.channels c JOIN ${COHORT}.recordings r USING (recording_id) WHERE r.run_id = ${literal(runId)} ORDER BY 1`),
+    await db.query(
+      `SELECT DISTINCT c.fs_hz::DOUBLE AS fs FROM ${COHORT}.channels c JOIN ${COHORT}.recordings r USING (recording_id) WHERE r.run_id = ${literal(runId)} ORDER BY 1`,
+    ),
   );
   return rows.map((r) => Number(r.fs));
 }
@@ -69,17 +71,28 @@ export async function recordedDerivations(db: SqlClient, runId: string): Promise
        WHERE r.run_id = ${literal(runId)} AND c.type = 'EEG' GROUP BY 1, 2 ORDER BY 1, 2 NULLS FIRST`,
     ),
   );
-  return rows.map((x) => ({ channel: String(x.channel), referenceElectrode: x.reference_electrode === null ? null : String(x.reference_electrode), recordings: Number(x.n) }));
+  return rows.map((x) => ({
+    channel: String(x.channel),
+    referenceElectrode: x.reference_electrode === null ? null : String(x.reference_electrode),
+    recordings: Number(x.n),
+  }));
 }
 
 /** The run's warnings table rows per step and its recordings per status (a database written before the warnings table has none). */
 export async function warningFacts(db: SqlClient, runId: string): Promise<WarningFacts> {
   const [t] = rowsOf(await db.query(`SELECT count(*)::DOUBLE AS n FROM duckdb_tables() WHERE database_name = ${literal(COHORT)} AND table_name = 'warnings'`));
-  const steps = Number(t.n) > 0
-    ? rowsOf(await db.query(`SELECT step::VARCHAR AS step, count(*)::DOUBLE AS n FROM ${COHORT}.warnings WHERE run_id = ${literal(runId)} GROUP BY step ORDER BY step`))
-    : [];
+  const steps =
+    Number(t.n) > 0
+      ? rowsOf(
+          await db.query(
+            `SELECT step::VARCHAR AS step, count(*)::DOUBLE AS n FROM ${COHORT}.warnings WHERE run_id = ${literal(runId)} GROUP BY step ORDER BY step`,
+          ),
+        )
+      : [];
   const status = rowsOf(
-    await db.query(`SELECT status::VARCHAR AS status, count(*)::DOUBLE AS n FROM ${COHORT}.recordings WHERE run_id = ${literal(runId)} GROUP BY status ORDER BY status`),
+    await db.query(
+      `SELECT status::VARCHAR AS status, count(*)::DOUBLE AS n FROM ${COHORT}.recordings WHERE run_id = ${literal(runId)} GROUP BY status ORDER BY status`,
+    ),
   );
   return {
     byStep: Object.fromEntries(steps.map((r) => [String(r.step), Number(r.n)])),

@@ -51,7 +51,9 @@ export function chooseRun(runList: readonly RunInfo[], runId?: string): RunInfo 
     const finished = [...runList].reverse().find((r) => r.finishedAt !== null);
     if (finished) return finished;
     const last = runList[runList.length - 1].runId;
-    throw new ContrastDataError(`the database holds no finished ingest run: run ${last} stopped before its end. Rerun the same ingest to finish it, or name the run with --run ${last} to analyse what it stored`);
+    throw new ContrastDataError(
+      `the database holds no finished ingest run: run ${last} stopped before its end. Rerun the same ingest to finish it, or name the run with --run ${last} to analyse what it stored`,
+    );
   }
   const named = runList.find((r) => r.runId === runId);
   if (!named) throw new Error(`no run ${runId} in the database (runs: ${runList.map((r) => r.runId).join(', ')})`);

@@ -61,7 +61,9 @@ export async function spectraRows(db: SqlClient, q: SpectraKey, maxHz?: number):
   const nb = numbers(t, 'n_bins');
   for (let i = 1; i < n; i++) {
     if (f0[i] !== f0[0] || df[i] !== df[0] || nb[i] !== nb[0]) {
-      throw new Error(`spectra of ${q.stage}/${q.reference}/${q.averaging}: row ${i} has frequency axis ${f0[i]} + k·${df[i]} Hz × ${nb[i]}, the first ${f0[0]} + k·${df[0]} Hz × ${nb[0]}`);
+      throw new Error(
+        `spectra of ${q.stage}/${q.reference}/${q.averaging}: row ${i} has frequency axis ${f0[i]} + k·${df[i]} Hz × ${nb[i]}, the first ${f0[0]} + k·${df[0]} Hz × ${nb[0]}`,
+      );
     }
   }
   const nBins = Math.min(nb[0], maxHz === undefined ? nb[0] : binsUpTo(f0[0], df[0], maxHz));
@@ -80,7 +82,8 @@ export async function spectraRows(db: SqlClient, q: SpectraKey, maxHz?: number):
     const ch = column(batch, 'channel');
     for (let i = 0; i < batch.rowCount; i++) {
       const at = place.get(`${rec[i]}\u0000${ch[i]}`);
-      if (at === undefined) throw new Error(`spectra of ${q.stage}/${q.reference}/${q.averaging}: the power read has a row (${rec[i]}, ${ch[i]}) the keys read has not`);
+      if (at === undefined)
+        throw new Error(`spectra of ${q.stage}/${q.reference}/${q.averaging}: the power read has a row (${rec[i]}, ${ch[i]}) the keys read has not`);
       power.set(batch.values.subarray(i * nBins, (i + 1) * nBins), at * nBins);
     }
     copied += batch.rowCount;
@@ -127,7 +130,10 @@ export interface ChannelSpectra {
   power: Float32Array;
 }
 
-export async function channelSpectra(db: SqlClient, sel: { channel: string; stage: string; reference: string; averaging: string; estimator?: string | null }): Promise<ChannelSpectra> {
+export async function channelSpectra(
+  db: SqlClient,
+  sel: { channel: string; stage: string; reference: string; averaging: string; estimator?: string | null },
+): Promise<ChannelSpectra> {
   const where = `channel = ${literal(sel.channel)} AND stage = ${literal(sel.stage)} AND reference = ${literal(sel.reference)} AND averaging = ${literal(sel.averaging)}${estimatorCondition('estimator', sel.estimator)}`;
   const t = await db.query(
     `SELECT recording_id::VARCHAR AS recording_id, freq_start_hz::DOUBLE AS f0, freq_step_hz::DOUBLE AS df, n_bins::DOUBLE AS n_bins
@@ -138,7 +144,8 @@ export async function channelSpectra(db: SqlClient, sel: { channel: string; stag
   const f0 = numbers(t, 'f0');
   const df = numbers(t, 'df');
   for (let i = 1; i < n; i++) {
-    if (nb[i] !== nb[0] || f0[i] !== f0[0] || df[i] !== df[0]) throw new Error(`spectra of ${sel.channel} ${sel.stage}: recordings have different frequency axes`);
+    if (nb[i] !== nb[0] || f0[i] !== f0[0] || df[i] !== df[0])
+      throw new Error(`spectra of ${sel.channel} ${sel.stage}: recordings have different frequency axes`);
   }
   const recordingIds = texts(t, 'recording_id');
   const nBins = n > 0 ? nb[0] : 0;

@@ -40,7 +40,8 @@ export const NO_WORKFLOW: WorkflowState = { split: null, view: null, parts: new 
 const ISO = (col: string) => `strftime(${col}, '%Y-%m-%dT%H:%M:%S.%gZ') AS ${col}`;
 
 export async function readWorkflow(db: SqlClient, schema: CohortSchema): Promise<WorkflowState> {
-  if (!schema.has('subject_split', 'split_id', 'group_codes') || !schema.has('analysis_plans', 'plan') || !schema.has('plan_confirmations', 'plan_id')) return NO_WORKFLOW;
+  if (!schema.has('subject_split', 'split_id', 'group_codes') || !schema.has('analysis_plans', 'plan') || !schema.has('plan_confirmations', 'plan_id'))
+    return NO_WORKFLOW;
   const [splitRows, earlier, planRows, confirmationRows] = await Promise.all([
     db.query(`SELECT split_id, subject, part, seed::DOUBLE AS seed, fraction, stratify::VARCHAR AS stratify, blind_column, group_codes::VARCHAR AS group_codes, ${ISO('made_at')}
               FROM ${COHORT}.subject_split WHERE replaced_at IS NULL ORDER BY subject`),

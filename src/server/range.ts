@@ -8,10 +8,7 @@ export interface ByteRange {
   end: number;
 }
 
-export type RangeResult =
-  | { kind: 'none' }
-  | { kind: 'single'; range: ByteRange }
-  | { kind: 'unsatisfiable'; reason: string };
+export type RangeResult = { kind: 'none' } | { kind: 'single'; range: ByteRange } | { kind: 'unsatisfiable'; reason: string };
 
 const SINGLE_RANGE = /^bytes=(\d*)-(\d*)$/;
 

@@ -28,10 +28,7 @@ export function requestSegments(rawPath: string): string[] | null {
  * Resolve segments to a regular file whose real path (symlinks followed) lies inside `rootReal`
  * (itself a real path). Returns the real file path and its size, or null.
  */
-export async function resolveInside(
-  rootReal: string,
-  segments: string[],
-): Promise<{ file: string; size: number } | null> {
+export async function resolveInside(rootReal: string, segments: string[]): Promise<{ file: string; size: number } | null> {
   const candidate = path.join(rootReal, ...segments);
   let real: string;
   try {

@@ -142,13 +142,7 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     });
   }
 
-  function send(
-    res: http.ServerResponse,
-    req: http.IncomingMessage,
-    status: number,
-    text: string,
-    extra: Record<string, string> = {},
-  ): void {
+  function send(res: http.ServerResponse, req: http.IncomingMessage, status: number, text: string, extra: Record<string, string> = {}): void {
     const body = Buffer.from(text + '\n');
     res.writeHead(status, {
       ...SECURITY_HEADERS,
@@ -191,7 +185,12 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     }
     // the first page load: the token becomes a cookie, and the address loses it (history, bookmarks)
     if (given.length > 0 && (pathOnly === '/' || pathOnly.endsWith('.html'))) {
-      res.writeHead(302, { ...SECURITY_HEADERS, Location: withoutTokenParameter(pathOnly, query), 'Set-Cookie': tokenCookie(listeningPort, token), 'Content-Length': '0' });
+      res.writeHead(302, {
+        ...SECURITY_HEADERS,
+        Location: withoutTokenParameter(pathOnly, query),
+        'Set-Cookie': tokenCookie(listeningPort, token),
+        'Content-Length': '0',
+      });
       res.end();
       log(req, 302, 0);
       return;
@@ -213,7 +212,8 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     // Vite names files under assets/ by content hash, so they never change under one name.
     const cache = pathOnly.startsWith('/assets/') ? 'public, max-age=31536000, immutable' : 'no-cache';
     // the database carries its real file name, which the app shows (RFC 6266 §4.3, RFC 5987 ext-value)
-    const named: Record<string, string> = pathOnly === DATABASE_URL_PATH ? { 'Content-Disposition': `inline; filename*=UTF-8''${rfc5987(path.basename(dbFile))}` } : {};
+    const named: Record<string, string> =
+      pathOnly === DATABASE_URL_PATH ? { 'Content-Disposition': `inline; filename*=UTF-8''${rfc5987(path.basename(dbFile))}` } : {};
     await sendFile(req, res, target.file, target.size, cache, named);
   }
 

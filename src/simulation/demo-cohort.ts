@@ -40,11 +40,7 @@ export async function scenarioStamp(scenarioPath: string): Promise<string> {
 }
 
 /** Generates the cohort of scenarioPath into outDir unless the stamp there says it is up to date. */
-export async function ensureCohort(
-  scenarioPath: string,
-  outDir: string,
-  options: { onProgress?: (p: SimulateProgress) => void } = {},
-): Promise<EnsuredCohort> {
+export async function ensureCohort(scenarioPath: string, outDir: string, options: { onProgress?: (p: SimulateProgress) => void } = {}): Promise<EnsuredCohort> {
   const scenario = await loadScenario(scenarioPath);
   const stamp = await scenarioStamp(scenarioPath);
   const stampPath = path.join(outDir, STAMP_FILE);

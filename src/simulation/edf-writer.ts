@@ -112,14 +112,21 @@ export class EdfWriter {
 
   static async open(path: string, spec: EdfWriteSpec): Promise<EdfWriter> {
     const plus = spec.variant === 'EDF+C';
-    if (spec.variant !== 'EDF' && spec.variant !== 'EDF+C') throw new EdfFormatError(path, 'reserved', String(spec.variant), `variant "${spec.variant}" is not EDF or EDF+C`);
+    if (spec.variant !== 'EDF' && spec.variant !== 'EDF+C')
+      throw new EdfFormatError(path, 'reserved', String(spec.variant), `variant "${spec.variant}" is not EDF or EDF+C`);
     if (!plus && spec.annotations && spec.annotations.length > 0) {
-      throw new EdfFormatError(path, 'annotations', String(spec.annotations.length), `a plain EDF file cannot hold annotations (${spec.annotations.length} given); use EDF+C`);
+      throw new EdfFormatError(
+        path,
+        'annotations',
+        String(spec.annotations.length),
+        `a plain EDF file cannot hold annotations (${spec.annotations.length} given); use EDF+C`,
+      );
     }
     if (spec.signals.length === 0) throw new EdfFormatError(path, 'number of signals', '0', 'number of signals 0: at least one signal is needed');
     const d = spec.recordDurationS;
     const durText = numberField(path, 'duration of a data record', d, 8);
-    if (!(d > 0) || Number(durText) !== d) throw new EdfFormatError(path, 'duration of a data record', String(d), `record duration ${d} s is not positive or not exact in 8 characters`);
+    if (!(d > 0) || Number(durText) !== d)
+      throw new EdfFormatError(path, 'duration of a data record', String(d), `record duration ${d} s is not positive or not exact in 8 characters`);
 
     const planned: PlannedSignal[] = spec.signals.map((s) => {
       const pminText = numberField(path, 'physical minimum', s.physicalMin, 8).trim();
@@ -127,11 +134,22 @@ export class EdfWriter {
       const digitalMin = s.digitalMin ?? -32768;
       const digitalMax = s.digitalMax ?? 32767;
       if (!Number.isInteger(digitalMin) || !Number.isInteger(digitalMax) || digitalMin < -32768 || digitalMax > 32767 || digitalMin >= digitalMax) {
-        throw new EdfFormatError(path, 'digital minimum', String(digitalMin), `digital range ${digitalMin}..${digitalMax} of "${s.label}" is not an increasing 16-bit range`);
+        throw new EdfFormatError(
+          path,
+          'digital minimum',
+          String(digitalMin),
+          `digital range ${digitalMin}..${digitalMax} of "${s.label}" is not an increasing 16-bit range`,
+        );
       }
-      if (Number(pminText) === Number(pmaxText)) throw new EdfFormatError(path, 'physical minimum', pminText, `physical minimum ${pminText} equals physical maximum of "${s.label}"`);
+      if (Number(pminText) === Number(pmaxText))
+        throw new EdfFormatError(path, 'physical minimum', pminText, `physical minimum ${pminText} equals physical maximum of "${s.label}"`);
       if (!Number.isInteger(s.samplesPerRecord) || s.samplesPerRecord <= 0) {
-        throw new EdfFormatError(path, 'number of samples in each data record', String(s.samplesPerRecord), `samples per record ${s.samplesPerRecord} of "${s.label}" is not a positive integer`);
+        throw new EdfFormatError(
+          path,
+          'number of samples in each data record',
+          String(s.samplesPerRecord),
+          `samples per record ${s.samplesPerRecord} of "${s.label}" is not a positive integer`,
+        );
       }
       return {
         label: s.label,
@@ -156,7 +174,12 @@ export class EdfWriter {
         // eslint-disable-next-line no-control-regex -- the TAL delimiters are control bytes (EDF+ 2003 §2.2.2)
         if (/[\x00\x14\x15]/.test(a.text)) throw new EdfFormatError(path, 'annotations', a.text, `annotation text "${a.text}" contains a TAL delimiter byte`);
         if (!Number.isFinite(a.onsetS) || (a.durationS !== null && !(a.durationS >= 0))) {
-          throw new EdfFormatError(path, 'annotations', String(a.onsetS), `annotation at ${a.onsetS} s with duration ${a.durationS} is not a finite onset and non-negative duration`);
+          throw new EdfFormatError(
+            path,
+            'annotations',
+            String(a.onsetS),
+            `annotation at ${a.onsetS} s with duration ${a.durationS} is not a finite onset and non-negative duration`,
+          );
         }
         const r = Math.max(0, Math.floor(a.onsetS / d + 1e-9));
         const list = byRecord.get(r) ?? [];
@@ -164,7 +187,11 @@ export class EdfWriter {
         byRecord.set(r, list);
       }
       let fullest = 0;
-      for (const list of byRecord.values()) fullest = Math.max(fullest, list.reduce((acc, t) => acc + t.length, 0));
+      for (const list of byRecord.values())
+        fullest = Math.max(
+          fullest,
+          list.reduce((acc, t) => acc + t.length, 0),
+        );
       annotationSamples = Math.ceil((TIME_KEEPING_BYTES + fullest) / 2);
     }
 
@@ -188,12 +215,28 @@ export class EdfWriter {
       // Identification text is never quoted in errors (health data): check it here with a neutral message.
       if (name === 'local patient identification' || name === 'local recording identification') {
         const v = fixedValues[name];
-        if (!/^[\x20-\x7e]*$/.test(v) || v.length > width) throw new EdfFormatError(path, name, '(withheld)', `"${name}" must be printable ASCII of at most ${width} characters (content withheld)`);
+        if (!/^[\x20-\x7e]*$/.test(v) || v.length > width)
+          throw new EdfFormatError(path, name, '(withheld)', `"${name}" must be printable ASCII of at most ${width} characters (content withheld)`);
       }
       text += asciiField(path, name, fixedValues[name], width);
     }
     const all = plus
-      ? [...planned, { label: ANNOTATION_LABEL, transducer: '', physicalDimension: '', pminText: '-1', pmaxText: '1', physicalMin: -1, physicalMax: 1, digitalMin: -32768, digitalMax: 32767, prefilter: '', samplesPerRecord: annotationSamples }]
+      ? [
+          ...planned,
+          {
+            label: ANNOTATION_LABEL,
+            transducer: '',
+            physicalDimension: '',
+            pminText: '-1',
+            pmaxText: '1',
+            physicalMin: -1,
+            physicalMax: 1,
+            digitalMin: -32768,
+            digitalMax: 32767,
+            prefilter: '',
+            samplesPerRecord: annotationSamples,
+          },
+        ]
       : planned;
     const perSignal = (s: PlannedSignal): Record<(typeof SIGNAL_FIELDS)[number][0], string> => ({
       label: s.label,
@@ -241,7 +284,9 @@ export class EdfWriter {
     const k = data[0].length / sigs[0].samplesPerRecord;
     for (let s = 0; s < sigs.length; s++) {
       if (data[s].length !== k * sigs[s].samplesPerRecord || !Number.isInteger(k)) {
-        throw new RangeError(`${this.path}: signal "${sigs[s].label}" has ${data[s].length} samples, not ${k}·${sigs[s].samplesPerRecord} (whole records, the same count for every signal)`);
+        throw new RangeError(
+          `${this.path}: signal "${sigs[s].label}" has ${data[s].length} samples, not ${k}·${sigs[s].samplesPerRecord} (whole records, the same count for every signal)`,
+        );
       }
     }
     if (k === 0) return;

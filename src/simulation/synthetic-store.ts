@@ -94,8 +94,14 @@ export async function writeSyntheticDatabase(file: string, spec: SyntheticCohort
   }
   const nc = spec.channels.length;
   return {
-    path: file, runId, recordings: spec.recordings, spectraRows: spec.recordings * nc * spec.stages.length,
-    drawS: drawMs / 1000, writeS: writeMs / 1000, totalS: (performance.now() - t0) / 1000, fileBytes: statSync(file).size,
+    path: file,
+    runId,
+    recordings: spec.recordings,
+    spectraRows: spec.recordings * nc * spec.stages.length,
+    drawS: drawMs / 1000,
+    writeS: writeMs / 1000,
+    totalS: (performance.now() - t0) / 1000,
+    fileBytes: statSync(file).size,
   };
 }
 

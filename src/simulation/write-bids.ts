@@ -61,12 +61,15 @@ export async function writeBidsCopy(cohort: Cohort, outFolder: string, options: 
   const problems: CohortProblem[] = [];
   if (!BIDS_LABEL.test(task)) problems.push({ row: null, column: null, message: `task label '${task}' must be alphanumeric (BIDS)` });
   for (const r of cohort.recordings) {
-    if (!BIDS_LABEL.test(r.subject)) problems.push({ row: r.row, column: 'subject', message: `subject '${r.subject}' is not a BIDS label (letters and digits only)` });
-    if (r.session !== null && !BIDS_LABEL.test(r.session)) problems.push({ row: r.row, column: 'session', message: `session '${r.session}' is not a BIDS label (letters and digits only)` });
+    if (!BIDS_LABEL.test(r.subject))
+      problems.push({ row: r.row, column: 'subject', message: `subject '${r.subject}' is not a BIDS label (letters and digits only)` });
+    if (r.session !== null && !BIDS_LABEL.test(r.session))
+      problems.push({ row: r.row, column: 'session', message: `session '${r.session}' is not a BIDS label (letters and digits only)` });
   }
   for (const p of cohort.participants) {
     for (const [k, v] of Object.entries(p)) {
-      if (typeof v === 'string' && /[\t\r\n]/.test(v)) problems.push({ row: null, column: k, message: `value of '${k}' for subject '${p.subject}' holds a tab or line break, which a BIDS TSV cannot carry` });
+      if (typeof v === 'string' && /[\t\r\n]/.test(v))
+        problems.push({ row: null, column: k, message: `value of '${k}' for subject '${p.subject}' holds a tab or line break, which a BIDS TSV cannot carry` });
     }
   }
   const existing = await readdir(root).catch(() => [] as string[]);
@@ -74,10 +77,16 @@ export async function writeBidsCopy(cohort: Cohort, outFolder: string, options: 
   if (problems.length) throw new CohortError(outFolder, problems);
   await mkdir(root, { recursive: true });
 
-  await writeFile(path.join(root, 'dataset_description.json'), JSON.stringify({ Name: options.datasetName ?? 'bandwise BIDS copy', BIDSVersion: BIDS_VERSION, DatasetType: 'raw' }, null, 2) + '\n');
+  await writeFile(
+    path.join(root, 'dataset_description.json'),
+    JSON.stringify({ Name: options.datasetName ?? 'bandwise BIDS copy', BIDSVersion: BIDS_VERSION, DatasetType: 'raw' }, null, 2) + '\n',
+  );
 
   const participantColumns = cohort.columns.map((c) => c.name).filter((n) => n !== 'subject');
-  const ptsv = [['participant_id', ...participantColumns].join('\t'), ...cohort.participants.map((p) => [`sub-${p.subject}`, ...participantColumns.map((c) => tsvCell(p[c] ?? null))].join('\t'))];
+  const ptsv = [
+    ['participant_id', ...participantColumns].join('\t'),
+    ...cohort.participants.map((p) => [`sub-${p.subject}`, ...participantColumns.map((c) => tsvCell(p[c] ?? null))].join('\t')),
+  ];
   await writeFile(path.join(root, 'participants.tsv'), ptsv.join('\n') + '\n');
 
   // Several recordings with the same subject/session get run indices 1, 2, …
@@ -127,7 +136,7 @@ export async function writeBidsCopy(cohort: Cohort, outFolder: string, options: 
       const hyp = await readScoring(r.scoringPath, { ...options.scoring, recordingDurationS: recording.durationS, recording });
       scoringWarnings.push({ row: r.row, warnings: hyp.warnings });
       const rows = ['onset\tduration\tstage'];
-      for (let k = 0; k < hyp.stages.length; ) {
+      for (let k = 0; k < hyp.stages.length;) {
         let end = k + 1;
         while (end < hyp.stages.length && hyp.stages[end] === hyp.stages[k]) end++;
         if (hyp.stages[k] !== 'unscored') rows.push(`${k * hyp.epochS}\t${(end - k) * hyp.epochS}\t${hyp.stages[k]}`);

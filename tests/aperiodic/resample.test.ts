@@ -9,7 +9,17 @@ describe('rational resampler', () => {
     // outside reference: scipy.signal.resample_poly(x, up, down) of scipy 1.17, default window and padding
     const rng = new Random(3);
     const x = Float64Array.from({ length: 1537 }, (_, i) => 20 * Math.sin(0.05 * i) + 5 * rng.normal());
-    const ratios: [number, number][] = [[11, 10], [10, 11], [23, 20], [20, 23], [19, 10], [10, 19], [3, 2], [2, 4], [7, 1]];
+    const ratios: [number, number][] = [
+      [11, 10],
+      [10, 11],
+      [23, 20],
+      [20, 23],
+      [19, 10],
+      [10, 19],
+      [3, 2],
+      [2, 4],
+      [7, 1],
+    ];
     const ref = runPython<number[][]>(
       `from scipy.signal import resample_poly\nx = numpy.fromfile(inputs['x'])\nprint(json.dumps([list(resample_poly(x, u, d)) for u, d in ${JSON.stringify(ratios)}]))`,
       { x },

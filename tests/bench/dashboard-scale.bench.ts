@@ -86,12 +86,19 @@ export async function openToResult(appDir: string, file: string): Promise<Record
     const alert = await page.locator('[role=alert]').allInnerTexts();
     if (alert.length > 0) throw new Error(`the contrast view shows an error: ${alert.join('; ')}`);
     const marks = await page.evaluate(() =>
-      Object.fromEntries(performance.getEntriesByType('mark').filter((m) => m.name.startsWith('bandwise:')).map((m) => [m.name.slice(9), m.startTime])),
+      Object.fromEntries(
+        performance
+          .getEntriesByType('mark')
+          .filter((m) => m.name.startsWith('bandwise:'))
+          .map((m) => [m.name.slice(9), m.startTime]),
+      ),
     );
     const { metrics } = (await cdp.send('Performance.getMetrics')) as { metrics: { name: string; value: number }[] };
     const metric = (n: string) => (metrics.find((m) => m.name === n)?.value ?? Number.NaN) / 2 ** 20;
     // the browser is a child of this process (playwright launched it); its renderers are below it
-    const procs = descendants(process.pid).map(memoryOf).filter((m) => m !== null);
+    const procs = descendants(process.pid)
+      .map(memoryOf)
+      .filter((m) => m !== null);
     const renderers = procs.filter((m) => m.renderer);
     const n = await page.getByTestId('contrast-n').innerText();
     const clusters = await page.getByTestId('cluster-table').innerText();

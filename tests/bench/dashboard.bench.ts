@@ -9,7 +9,8 @@ import path from 'node:path';
 import { buildDashboard, openDashboard } from '../e2e/harness.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 
-const CONTRAST = '#/contrast?design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all&fminHz=0.5&fmaxHz=30&measure=log-psd&correction=cluster-mass&permutations=1000&seed=1';
+const CONTRAST =
+  '#/contrast?design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all&fminHz=0.5&fmaxHz=30&measure=log-psd&correction=cluster-mass&permutations=1000&seed=1';
 
 export async function run(): Promise<Record<string, unknown>> {
   const db = await demoDatabase();
@@ -24,7 +25,12 @@ export async function run(): Promise<Record<string, unknown>> {
       const firstPlotMs = await page.evaluate(() => performance.now());
       // where the time before the first plot went: the app's marks and the wasm download
       const loadMarks = await page.evaluate(() => ({
-        ...Object.fromEntries(performance.getEntriesByType('mark').filter((m) => m.name.startsWith('bandwise:')).map((m) => [m.name.slice(9), Math.round(m.startTime)])),
+        ...Object.fromEntries(
+          performance
+            .getEntriesByType('mark')
+            .filter((m) => m.name.startsWith('bandwise:'))
+            .map((m) => [m.name.slice(9), Math.round(m.startTime)]),
+        ),
         ...Object.fromEntries(
           (performance.getEntriesByType('resource') as PerformanceResourceTiming[])
             .filter((r) => r.name.endsWith('.wasm'))
@@ -36,7 +42,11 @@ export async function run(): Promise<Record<string, unknown>> {
       const clickToResult = async (): Promise<number> => {
         const t0 = await page.evaluate(() => performance.now());
         await page.getByTestId('run-contrast').click();
-        await page.waitForFunction(() => performance.getEntriesByName('bandwise:contrast-result').length > 0 && document.querySelector('[data-testid=statistic-map] svg') !== null, null, { timeout: 60_000 });
+        await page.waitForFunction(
+          () => performance.getEntriesByName('bandwise:contrast-result').length > 0 && document.querySelector('[data-testid=statistic-map] svg') !== null,
+          null,
+          { timeout: 60_000 },
+        );
         const t1 = await page.evaluate(() => performance.getEntriesByName('bandwise:contrast-result').at(-1)!.startTime);
         await page.evaluate(() => performance.clearMarks('bandwise:contrast-result'));
         await page.getByTestId('run-contrast').isEnabled();

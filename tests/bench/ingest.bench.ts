@@ -32,7 +32,9 @@ export async function writeBenchEdf(file: string, nChannels: number, fsHz: numbe
   const seconds = hours * 3600;
   const epochs = seconds / 30;
   const w = await EdfWriter.open(file, {
-    variant: 'EDF+C', startDate: '2020-01-01T22:00:00', recordDurationS: 1,
+    variant: 'EDF+C',
+    startDate: '2020-01-01T22:00:00',
+    recordDurationS: 1,
     signals: labels.map((label) => ({ label, physicalDimension: 'uV', physicalMin: -3200, physicalMax: 3200, samplesPerRecord: fsHz })),
     annotations: Array.from({ length: epochs }, (_, e) => ({ onsetS: e * 30, durationS: 30, text: STAGE_TEXT[Math.floor((e / 20) % 6)] })),
   });
@@ -52,7 +54,15 @@ export async function writeBenchEdf(file: string, nChannels: number, fsHz: numbe
   await w.close();
 }
 
-const cohortRecording = (file: string, subject: string) => ({ row: 1, subject, session: null, group: null, recordingPath: file, scoringPath: null, covariates: {} });
+const cohortRecording = (file: string, subject: string) => ({
+  row: 1,
+  subject,
+  session: null,
+  group: null,
+  recordingPath: file,
+  scoringPath: null,
+  covariates: {},
+});
 
 export async function singleWorker(dir: string, file: string, fit: boolean): Promise<{ seconds: number; cpuSeconds: number; channelSamplesPerS: number }> {
   const params = resolveIngestParams(fit ? {} : { fit: null });
@@ -72,7 +82,10 @@ export async function singleWorker(dir: string, file: string, fit: boolean): Pro
 }
 
 function rssChild(file: string): { maxRssMB: number; seconds: number } {
-  const r = spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), fileURLToPath(import.meta.url), '--rss-child', file], { encoding: 'utf8', maxBuffer: 1 << 24 });
+  const r = spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), fileURLToPath(import.meta.url), '--rss-child', file], {
+    encoding: 'utf8',
+    maxBuffer: 1 << 24,
+  });
   if (r.status !== 0) throw new Error(`rss child failed: ${r.stderr}`);
   return JSON.parse(r.stdout.trim().split('\n').pop()!);
 }
@@ -95,7 +108,11 @@ export async function run(): Promise<Record<string, unknown>> {
       theirs.push({ ...JSON.parse(out.trim().split('\n').pop()!), wall: (performance.now() - t0) / 1000 });
     }
     const med = (v: number[]) => [...v].sort((a, b) => a - b)[Math.floor(v.length / 2)];
-    const noFit = { seconds: med(ours.map((r) => r.seconds)), cpuSeconds: med(ours.map((r) => r.cpuSeconds)), channelSamplesPerS: med(ours.map((r) => r.channelSamplesPerS)) };
+    const noFit = {
+      seconds: med(ours.map((r) => r.seconds)),
+      cpuSeconds: med(ours.map((r) => r.cpuSeconds)),
+      channelSamplesPerS: med(ours.map((r) => r.channelSamplesPerS)),
+    };
     const py = { seconds: med(theirs.map((r) => r.seconds)), cpuSeconds: med(theirs.map((r) => r.cpu_seconds)) };
     const pyWall = med(theirs.map((r) => r.wall));
     const withFit = await singleWorker(dir, file, true);

@@ -69,8 +69,31 @@ function timeCompare(db: string, permutations: number, threads: number | 'defaul
   const loadBefore = load();
   const r = spawnSync(
     '/usr/bin/time',
-    ['-v', process.execPath, path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), 'compare', db, '--groups', 'control,patient', '--stage', 'N2', '--fmin', '1', '--fmax', '30',
-      '--permutations', String(permutations), '--seed', '1', '--out', out, '--no-ledger', '--quiet', ...(threads === 'default' ? [] : ['--threads', String(threads)])],
+    [
+      '-v',
+      process.execPath,
+      path.join(repo, 'bin/run-ts.mjs'),
+      path.join(repo, 'src/cli/main.ts'),
+      'compare',
+      db,
+      '--groups',
+      'control,patient',
+      '--stage',
+      'N2',
+      '--fmin',
+      '1',
+      '--fmax',
+      '30',
+      '--permutations',
+      String(permutations),
+      '--seed',
+      '1',
+      '--out',
+      out,
+      '--no-ledger',
+      '--quiet',
+      ...(threads === 'default' ? [] : ['--threads', String(threads)]),
+    ],
     { encoding: 'utf8' },
   );
   const loadAfter = load();
@@ -85,8 +108,13 @@ function timeCompare(db: string, permutations: number, threads: number | 'defaul
   const wallS = clock.reduce((acc, x) => acc * 60 + x, 0);
   const round = (x: number) => Math.round(x * 100) / 100;
   return {
-    permutations, threads, wallS: round(wallS), cpuS: round(Number(field('User time \\(seconds\\)')) + Number(field('System time \\(seconds\\)'))),
-    peakRssMB: round(Number(field('Maximum resident set size \\(kbytes\\)')) / 1024), loadBefore, loadAfter,
+    permutations,
+    threads,
+    wallS: round(wallS),
+    cpuS: round(Number(field('User time \\(seconds\\)')) + Number(field('System time \\(seconds\\)'))),
+    peakRssMB: round(Number(field('Maximum resident set size \\(kbytes\\)')) / 1024),
+    loadBefore,
+    loadAfter,
   };
 }
 
@@ -102,8 +130,18 @@ async function build(dir: string, recordings: number, channels: number, bins: nu
   const round = (x: number, d = 2) => Math.round(x * 10 ** d) / 10 ** d;
   const cpuS = (cpu.user + cpu.system) / 1e6;
   const point = {
-    recordings, channels, bins, spectraRows: r.spectraRows, totalS: round(r.totalS), cpuS: round(cpuS), drawS: round(r.drawS), writeS: round(r.writeS),
-    fileMB: round(r.fileBytes / 2 ** 20, 1), cpuUsPerRow: round((1e6 * cpuS) / r.spectraRows, 1), compare, ...(compareTwoThreads ? { compareTwoThreads } : {}),
+    recordings,
+    channels,
+    bins,
+    spectraRows: r.spectraRows,
+    totalS: round(r.totalS),
+    cpuS: round(cpuS),
+    drawS: round(r.drawS),
+    writeS: round(r.writeS),
+    fileMB: round(r.fileBytes / 2 ** 20, 1),
+    cpuUsPerRow: round((1e6 * cpuS) / r.spectraRows, 1),
+    compare,
+    ...(compareTwoThreads ? { compareTwoThreads } : {}),
   };
   if (permutationSeries.length) permutationRuns.push(...permutationSeries, compare);
   process.stderr.write(`large-cohort: ${JSON.stringify(point)}\n`);
@@ -166,7 +204,11 @@ export async function run(): Promise<Record<string, unknown>> {
       } else {
         const db = await cachedSyntheticDatabase(spec, 'large-cohort');
         full = {
-          recordings: 10_000, channels: 64, stages: 5, bins: 181, spectraRows: fullRows,
+          recordings: 10_000,
+          channels: 64,
+          stages: 5,
+          bins: 181,
+          spectraRows: fullRows,
           build: db.builtS === null ? 'cached' : { wallS: db.builtS, cpuS: db.builtCpuS },
           fileMB: Math.round(statSync(db.file).size / 2 ** 20),
           compare: timeCompare(db.file, 1000),

@@ -19,10 +19,20 @@ import { demoDatabase } from '../helpers/demo-db.ts';
 export async function run(): Promise<Record<string, unknown>> {
   const db = await demoDatabase();
   const sigma = { name: 'sigma', loHz: 12, hiHz: 16 };
-  const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'], permutations: 1000, seed: 1 });
+  const contrast = parseContrast({
+    design: 'groups',
+    groups: ['control', 'patient'],
+    stage: 'N2',
+    channels: ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'],
+    permutations: 1000,
+    seed: 1,
+  });
   const choices: PathChoices = {
     measures: ['absolute', 'relative', 'residual'],
-    relativeDenominatorsHz: [[0.5, 45], [1, 30]],
+    relativeDenominatorsHz: [
+      [0.5, 45],
+      [1, 30],
+    ],
     references: ['recorded', 'linked-mastoids'],
     averagings: ['mean', 'median'],
     summaries: ['mean'],

@@ -25,7 +25,14 @@ const SPECTRA_SIZE: BundleSize = {
   epochs: 1,
   bands: ['delta'],
 };
-const BAND_SIZE: BundleSize = { channels: 19, stages: ['N2'], references: ['recorded'], nBins: 181, epochs: 960, bands: ['so', 'delta', 'theta', 'alpha', 'sigma', 'beta'] };
+const BAND_SIZE: BundleSize = {
+  channels: 19,
+  stages: ['N2'],
+  references: ['recorded'],
+  nBins: 181,
+  epochs: 960,
+  bands: ['so', 'delta', 'theta', 'alpha', 'sigma', 'beta'],
+};
 
 function onlySpectra(b: RecordingBundle): RecordingBundle {
   return { ...b, bandPowers: [] };
@@ -61,7 +68,11 @@ export async function run(): Promise<Record<string, unknown>> {
     const rowwise = spectraBundles.slice(0, 2).flatMap((b) => b.spectra);
     const c = store.connection;
     await c.run('CREATE TABLE scratch_chunks (channel VARCHAR, stage VARCHAR, reference VARCHAR, averaging VARCHAR, power FLOAT[])');
-    const scratch = { name: 'scratch_chunks', doc: '', columns: tableDef('spectra').columns.filter((col) => ['channel', 'stage', 'reference', 'averaging', 'power'].includes(col.name)) };
+    const scratch = {
+      name: 'scratch_chunks',
+      doc: '',
+      columns: tableDef('spectra').columns.filter((col) => ['channel', 'stage', 'reference', 'averaging', 'power'].includes(col.name)),
+    };
     t = performance.now();
     await c.run('BEGIN TRANSACTION');
     await appendColumns(c, scratch, rowwise.length, {

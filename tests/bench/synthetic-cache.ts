@@ -13,7 +13,14 @@ import { writeSyntheticDatabase } from '../../src/simulation/synthetic-store.ts'
 import type { SyntheticCohortSpec } from '../../src/core/simulate/synthetic-database.ts';
 
 const repo = path.resolve(import.meta.dirname, '../..');
-const GENERATOR = ['src/core/simulate/synthetic-database.ts', 'src/core/simulate/spectrum.ts', 'src/simulation/synthetic-store.ts', 'ingest/store/schema.ts', 'ingest/store/spectra-order.ts', 'ingest/store/database.ts'];
+const GENERATOR = [
+  'src/core/simulate/synthetic-database.ts',
+  'src/core/simulate/spectrum.ts',
+  'src/simulation/synthetic-store.ts',
+  'ingest/store/schema.ts',
+  'ingest/store/spectra-order.ts',
+  'ingest/store/database.ts',
+];
 
 function generatorHash(): string {
   const h = createHash('sha256');

@@ -11,7 +11,8 @@ import { cohortError, tempFolder } from './fixtures.ts';
 // with _eeg.json, _channels.tsv (name, type, units first, in that order), _events.tsv (onset,
 // duration) beside it; participants.tsv with participant_id 'sub-<label>'; TSV missing = n/a.
 
-const eegJson = (fs: number, ref: string, line: number | 'n/a') => JSON.stringify({ TaskName: 'sleep', SamplingFrequency: fs, EEGReference: ref, PowerLineFrequency: line, SoftwareFilters: 'n/a' });
+const eegJson = (fs: number, ref: string, line: number | 'n/a') =>
+  JSON.stringify({ TaskName: 'sleep', SamplingFrequency: fs, EEGReference: ref, PowerLineFrequency: line, SoftwareFilters: 'n/a' });
 const channels = 'name\ttype\tunits\tstatus\nC3\tEEG\tuV\tgood\nM2\tEEG\tuV\tbad\nEOGL\tEOG\tuV\tn/a\n';
 const events = 'onset\tduration\tstage\n0\t60\tW\n60\t30\tN2\n';
 
@@ -56,7 +57,16 @@ describe('discoverBids', () => {
       { subject: '01', group: 'control', age: 34, sex: 'F' },
       { subject: '02', group: 'patient', age: null, sex: 'M' },
     ]);
-    expect(c.recordings.map((r) => [r.row, r.subject, r.session, r.group, path.relative(t.dir, r.recordingPath), r.scoringPath && path.relative(t.dir, r.scoringPath)])).toEqual([
+    expect(
+      c.recordings.map((r) => [
+        r.row,
+        r.subject,
+        r.session,
+        r.group,
+        path.relative(t.dir, r.recordingPath),
+        r.scoringPath && path.relative(t.dir, r.scoringPath),
+      ]),
+    ).toEqual([
       [1, '01', '1', 'control', 'sub-01/ses-1/eeg/sub-01_ses-1_task-sleep_eeg.edf', 'sub-01/ses-1/eeg/sub-01_ses-1_task-sleep_events.tsv'],
       [1, '01', '2', 'control', 'sub-01/ses-2/eeg/sub-01_ses-2_task-sleep_eeg.edf', null],
       [2, '02', null, 'patient', 'sub-02/eeg/sub-02_task-nap_eeg.edf', null],
@@ -132,7 +142,7 @@ describe('discoverBids problems', () => {
       "5|participant_id|participants.tsv: 'sub-09' has no EEG recording (sub-09/[ses-*/]eeg/*_eeg.edf or .bdf)",
       "-|participant_id|folder 'sub-03' has no row in participants.tsv",
       "-|-|sub-01/ses-1/eeg/sub-01_task-rest_ses-1_eeg.edf: entity 'ses' is out of order or repeated (BIDS order: sub, ses, task, acq, run)",
-      "-|-|sub-01/ses-1/eeg/sub-01_ses-2_task-rest_eeg.edf: ses-2 in the file name, but the folder is ses-1",
+      '-|-|sub-01/ses-1/eeg/sub-01_ses-2_task-rest_eeg.edf: ses-2 in the file name, but the folder is ses-1',
       '-|-|sub-01/ses-1/eeg/sub-01_ses-1_task-rest_eeg.dat: only EDF and BDF recordings are read (found .dat)',
       '-|PowerLineFrequency|sub-01/ses-1/eeg/sub-01_ses-1_task-hum_eeg.json: PowerLineFrequency must be 50, 60 or "n/a"',
       '-|-|sub-01/ses-1/eeg/sub-01_ses-1_task-hum_channels.tsv: the first columns must be name, type, units (BIDS), found type, name, units',
@@ -167,7 +177,9 @@ describe('discoverBids problems', () => {
     const msgs = e.problems.map((p) => p.message);
     expect(msgs).toContain('sub-01/eeg/sub-01_eeg.edf: the file name needs sub-<label> and task-<label>');
     expect(msgs).toContain("sub-01/eeg/sub-01_task-sleep_run-x_eeg.edf: 'run-x' — a run index must be a non-negative integer");
-    expect(msgs).toContain("sub-01/eeg/sub-01_task-sleep_desc-a_eeg.edf: 'desc-a' is not an EEG file-name entity (expected sub-, ses-, task-, acq-, run- in that order)");
+    expect(msgs).toContain(
+      "sub-01/eeg/sub-01_task-sleep_desc-a_eeg.edf: 'desc-a' is not an EEG file-name entity (expected sub-, ses-, task-, acq-, run- in that order)",
+    );
     expect(msgs.some((m) => m.startsWith('sub-01/eeg/sub-01_task-sleep_eeg.json: not valid JSON'))).toBe(true);
     expect(msgs).toContain('sub-01/eeg/sub-01_task-ok_eeg.json: SamplingFrequency must be a number (Hz)');
     expect(msgs).toContain('sub-01/eeg/sub-01_task-ok_eeg.json: EEGReference must be a string');

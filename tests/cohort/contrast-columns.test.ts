@@ -7,12 +7,17 @@ import { cohortError, tempFolder } from './fixtures.ts';
 const { dir, put } = tempFolder('bw-cohort-contrast-');
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 for (const f of ['a.edf', 'b.edf', 'c.edf']) put(f, 'x');
-const tablePath = put('c.tsv', 'subject\tgroup\trecording\tage\tsex\tarm\nS1\tcontrol\ta.edf\t30\tF\tx\nS2\tpatient\tb.edf\t41\tM\ty\nS3\tpatient\tc.edf\tn/a\tF\tx\n');
+const tablePath = put(
+  'c.tsv',
+  'subject\tgroup\trecording\tage\tsex\tarm\nS1\tcontrol\ta.edf\t30\tF\tx\nS2\tpatient\tb.edf\t41\tM\ty\nS3\tpatient\tc.edf\tn/a\tF\tx\n',
+);
 
 describe('checkContrastColumns', () => {
   it('counts recordings per group for a valid contrast', async () => {
     const c = await readCohortTable(tablePath);
-    expect(checkContrastColumns(c, { groups: ['control', 'patient'], covariate: 'age', nuisance: ['sex'] })).toEqual({ groupCounts: { control: 1, patient: 2 } });
+    expect(checkContrastColumns(c, { groups: ['control', 'patient'], covariate: 'age', nuisance: ['sex'] })).toEqual({
+      groupCounts: { control: 1, patient: 2 },
+    });
     expect(checkContrastColumns(c, { groupColumn: 'arm', groups: ['x', 'y'] })).toEqual({ groupCounts: { x: 2, y: 1 } });
   });
 

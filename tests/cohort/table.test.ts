@@ -122,12 +122,7 @@ describe('readCohortTable', () => {
   it('reads lights_off / lights_on per recording as clock times or seconds from the recording start (our convention, README)', async () => {
     const table = put(
       'lights.tsv',
-      [
-        'subject	recording	Lights_Off	lights_on	age',
-        'A01	edf/a1.edf	22:47	06:30:15	30',
-        'A02	edf/a2.edf	900	n/a	31',
-        'B07	edf/b1.edf		28800.5	32',
-      ].join('\n'),
+      ['subject	recording	Lights_Off	lights_on	age', 'A01	edf/a1.edf	22:47	06:30:15	30', 'A02	edf/a2.edf	900	n/a	31', 'B07	edf/b1.edf		28800.5	32'].join('\n'),
     );
     const c = await readCohortTable(table);
     // per recording, not participant covariates
@@ -143,7 +138,9 @@ describe('readCohortTable', () => {
       { row: 1, column: 'lights_on', message: "'-3' is neither a clock time (HH:MM or HH:MM:SS, 24-hour) nor seconds (≥ 0) from the recording start" },
     ]);
     // with per-recording problems, the row is kept with its problem (ingest records it and goes on)
-    const kept = await readCohortTable(put('lights-bad2.tsv', 'subject\trecording\tlights_off\nA01\tedf/a1.edf\tlate\nA02\tedf/a2.edf\t22:00\n'), { rowProblems: 'per-recording' });
+    const kept = await readCohortTable(put('lights-bad2.tsv', 'subject\trecording\tlights_off\nA01\tedf/a1.edf\tlate\nA02\tedf/a2.edf\t22:00\n'), {
+      rowProblems: 'per-recording',
+    });
     expect(kept.recordings.map((r) => r.problem?.column ?? null)).toEqual(['lights_off', null]);
   });
 });

@@ -13,7 +13,8 @@ import { cohortError, tempFolder } from './fixtures.ts';
 // sub-<label>/[ses-<label>/]eeg/; dataset_description.json with Name and BIDSVersion required;
 // participants.tsv starts with participant_id; _channels.tsv starts with name, type, units;
 // _eeg.json requires TaskName, EEGReference, SamplingFrequency, PowerLineFrequency, SoftwareFilters.
-const BIDS_EEG_FILE = /^sub-([a-zA-Z0-9]+)(?:_ses-([a-zA-Z0-9]+))?_task-[a-zA-Z0-9]+(?:_acq-[a-zA-Z0-9]+)?(?:_run-\d+)?_(eeg\.edf|eeg\.json|channels\.tsv|events\.tsv)$/;
+const BIDS_EEG_FILE =
+  /^sub-([a-zA-Z0-9]+)(?:_ses-([a-zA-Z0-9]+))?_task-[a-zA-Z0-9]+(?:_acq-[a-zA-Z0-9]+)?(?:_run-\d+)?_(eeg\.edf|eeg\.json|channels\.tsv|events\.tsv)$/;
 
 const src = tempFolder('bw-wbids-src-');
 const out = tempFolder('bw-wbids-out-');
@@ -28,9 +29,17 @@ beforeAll(() => {
   src.put('scores/.keep');
   edf('edf/s01a.edf');
   edf('edf/s01b.edf');
-  edf('edf/s02.edf', [[0, 120, 'Sleep stage W'], [120, 120, 'Sleep stage 2']]);
+  edf('edf/s02.edf', [
+    [0, 120, 'Sleep stage W'],
+    [120, 120, 'Sleep stage 2'],
+  ]);
   edf('edf/p03.edf');
-  edf('scores/p03-annotations.edf', [[0, 30, 'W'], [30, 180, 'N3'], [210, 30, 'R'], [100, null, 'Arousal']]);
+  edf('scores/p03-annotations.edf', [
+    [0, 30, 'W'],
+    [30, 180, 'N3'],
+    [210, 30, 'R'],
+    [100, null, 'Arousal'],
+  ]);
   src.put('scores/s01a.tsv', 'onset\tduration\tstage\n0\t60\tW\n60\t30\tS1\n90\t90\tS2\n180\t60\tREM\n');
   // Text scoring stopping early: epochs 6–7 are a gap (unscored) on both sides.
   src.put('scores/s01b.txt', 'W\nW\nN1\nN2\nS4\nS3\n');
@@ -55,7 +64,10 @@ describe('writeBidsCopy', () => {
 
     // Layout against the BIDS naming rules.
     const files: string[] = [];
-    const walk = (d: string) => readdirSync(d, { withFileTypes: true }).forEach((e) => (e.isDirectory() ? walk(path.join(d, e.name)) : files.push(path.relative(target, path.join(d, e.name)))));
+    const walk = (d: string) =>
+      readdirSync(d, { withFileTypes: true }).forEach((e) =>
+        e.isDirectory() ? walk(path.join(d, e.name)) : files.push(path.relative(target, path.join(d, e.name))),
+      );
     walk(target);
     const dataFiles = files.filter((f) => f.startsWith('sub-'));
     for (const f of dataFiles) {
@@ -78,7 +90,13 @@ describe('writeBidsCopy', () => {
     );
     const stem = path.join(target, 'sub-S01/ses-1/eeg/sub-S01_ses-1_task-sleep');
     expect(readFileSync(`${stem}_channels.tsv`, 'utf8')).toBe('name\ttype\tunits\tstatus\nC3\tEEG\tuV\tgood\n');
-    expect(JSON.parse(readFileSync(`${stem}_eeg.json`, 'utf8'))).toEqual({ TaskName: 'sleep', EEGReference: 'M2', SamplingFrequency: 100, PowerLineFrequency: 50, SoftwareFilters: 'n/a' });
+    expect(JSON.parse(readFileSync(`${stem}_eeg.json`, 'utf8'))).toEqual({
+      TaskName: 'sleep',
+      EEGReference: 'M2',
+      SamplingFrequency: 100,
+      PowerLineFrequency: 50,
+      SoftwareFilters: 'n/a',
+    });
     expect(readFileSync(`${stem}_events.tsv`, 'utf8')).toBe('onset\tduration\tstage\n0\t60\tW\n60\t30\tN1\n90\t90\tN2\n180\t60\tR\n');
     // Hard link (same inode) where the file system allows it, else a byte-equal copy.
     const a = statSync(table.recordings[0].recordingPath);
@@ -89,7 +107,8 @@ describe('writeBidsCopy', () => {
     const bids = await discoverBids(target);
     expect(bids.columns).toEqual(table.columns);
     expect(bids.participants).toEqual(table.participants);
-    const key = (c: typeof table) => c.recordings.map((r) => ({ subject: r.subject, session: r.session, group: r.group, covariates: r.covariates, scored: r.scoringPath !== null }));
+    const key = (c: typeof table) =>
+      c.recordings.map((r) => ({ subject: r.subject, session: r.session, group: r.group, covariates: r.covariates, scored: r.scoringPath !== null }));
     expect(key(bids)).toEqual(key(table));
     expect(bids.recordings[0].bids).toEqual({ samplingHz: 100, reference: 'M2', powerLineHz: 50, channels });
 
@@ -115,7 +134,10 @@ describe('writeBidsCopy', () => {
     const busy = path.join(out.dir, 'busy');
     out.put('busy/readme.txt', 'x');
     expect((await cohortError(writeBidsCopy(table, busy))).message).toContain('the output folder is not empty (1 entries)');
-    const renamed = { ...table, recordings: table.recordings.map((r, i) => (i === 2 ? { ...r, subject: 'S-02' } : i === 1 ? { ...r, session: 'night 2' } : r)) };
+    const renamed = {
+      ...table,
+      recordings: table.recordings.map((r, i) => (i === 2 ? { ...r, subject: 'S-02' } : i === 1 ? { ...r, session: 'night 2' } : r)),
+    };
     const e = await cohortError(writeBidsCopy(renamed, path.join(out.dir, 'fresh'), { task: 'sleep_1' }));
     expect(e.problems.map((p) => [p.row, p.column, p.message])).toEqual([
       [null, null, "task label 'sleep_1' must be alphanumeric (BIDS)"],

@@ -15,7 +15,15 @@ import { syntheticCohort } from './synthetic-cohort.ts';
 import { perGroupNumbers } from './leaks.ts';
 
 const blinding: Blinding = { column: 'group', codes: { control: 'group B', patient: 'group A' } };
-const stamp = { id: 'abc', madeAt: '2000-01-01T00:00:00.000Z', seed: 1, fraction: 0.5, stratify: ['group'], blindColumn: 'group', subjects: { exploration: 28, confirmation: 12 } };
+const stamp = {
+  id: 'abc',
+  madeAt: '2000-01-01T00:00:00.000Z',
+  seed: 1,
+  fraction: 0.5,
+  stratify: ['group'],
+  blindColumn: 'group',
+  subjects: { exploration: 28, confirmation: 12 },
+};
 
 /** 40 subjects (control and patient alternate); 28 explore: the first 32 but four patients, so 16 controls and 12 patients. A peak on C3 for everyone, on C4 for two subjects only. */
 function cohort(): { data: ContrastData; view: PartView } {
@@ -69,13 +77,20 @@ describe('blinded exploration', () => {
     expect(r.statistics.stat).toEqual(plain.statistics.stat);
     expect(r.statistics.pUncorrected).toEqual(plain.statistics.pUncorrected);
     expect(r.clusters).toEqual(plain.clusters);
-    expect({ ...r, part: undefined, split: undefined, blinded: undefined }).toEqual({ ...blindCompareResult(plain), part: undefined, split: undefined, blinded: undefined });
+    expect({ ...r, part: undefined, split: undefined, blinded: undefined }).toEqual({
+      ...blindCompareResult(plain),
+      part: undefined,
+      split: undefined,
+      blinded: undefined,
+    });
   });
 
   it('a plan locked with the codes runs on the real groups; a plan that mixes codes and values is refused', () => {
     const coded = parseContrast({ design: 'groups', groups: ['group A', 'group B'], stage: 'N2' });
     expect(unblindContrast(coded, blinding).groups).toEqual(['patient', 'control']);
     expect(unblindContrast(coded, null).groups).toEqual(['group A', 'group B']);
-    expect(() => unblindContrast(parseContrast({ design: 'groups', groups: ['group A', 'control'], stage: 'N2' }), blinding)).toThrow('names one group by its code');
+    expect(() => unblindContrast(parseContrast({ design: 'groups', groups: ['group A', 'control'], stage: 'N2' }), blinding)).toThrow(
+      'names one group by its code',
+    );
   });
 });

@@ -35,15 +35,36 @@ const NO_EFFECT = { offsetLog10: 0, exponent: 0, sigmaHeightLog10: 0 };
 const BANDS = ['delta', 'theta', 'alpha', 'sigma', 'beta'];
 const MEASURES = ['band-power', 'relative-band-power'] as const;
 /** channel choices of a path: each channel alone, or their average */
-const CHANNEL_CHOICES: { channels: string[]; average: boolean }[] = [{ channels: ['C3'], average: false }, { channels: ['C4'], average: false }, { channels: CHANNELS, average: true }];
+const CHANNEL_CHOICES: { channels: string[]; average: boolean }[] = [
+  { channels: ['C3'], average: false },
+  { channels: ['C4'], average: false },
+  { channels: CHANNELS, average: true },
+];
 const PERMUTATIONS = 499;
 
-const stamp = { id: 'sim', madeAt: '2000-01-01T00:00:00.000Z', seed: 0, fraction: 0.5, stratify: ['group'], blindColumn: 'group', subjects: { exploration: 0, confirmation: 0 } };
+const stamp = {
+  id: 'sim',
+  madeAt: '2000-01-01T00:00:00.000Z',
+  seed: 0,
+  fraction: 0.5,
+  stratify: ['group'],
+  blindColumn: 'group',
+  subjects: { exploration: 0, confirmation: 0 },
+};
 
 /** The split of a cohort into its two views (the exploration one blinded), as the commands store it. */
 function splitViews(data: ContrastData, seed: number): Record<Part, PartView> {
-  const parts = drawSplit(data.participants.map((p) => ({ subject: String(p.subject), stratum: stratumOf(p, ['group']) })), { fraction: 0.5, seed, stratify: ['group'] });
-  const blinding: Blinding = { column: 'group', codes: drawGroupCodes(data.participants.map((p) => String(p.group)), seed) };
+  const parts = drawSplit(
+    data.participants.map((p) => ({ subject: String(p.subject), stratum: stratumOf(p, ['group']) })),
+    { fraction: 0.5, seed, stratify: ['group'] },
+  );
+  const blinding: Blinding = {
+    column: 'group',
+    codes: drawGroupCodes(
+      data.participants.map((p) => String(p.group)),
+      seed,
+    ),
+  };
   const of = (part: Part) => new Set([...parts].filter(([, x]) => x === part).map(([s]) => s));
   return {
     exploration: { split: stamp, part: 'exploration', subjects: of('exploration'), blinding },
@@ -52,7 +73,17 @@ function splitViews(data: ContrastData, seed: number): Record<Part, PartView> {
 }
 
 const contrastOf = (measure: (typeof MEASURES)[number], band: string, choice: (typeof CHANNEL_CHOICES)[number], groups: [string, string]): Contrast =>
-  parseContrast({ design: 'groups', groups, stage: 'N2', measure, bands: [band], channels: choice.channels, channelAverage: choice.average, permutations: PERMUTATIONS, seed: 3 });
+  parseContrast({
+    design: 'groups',
+    groups,
+    stage: 'N2',
+    measure,
+    bands: [band],
+    channels: choice.channels,
+    channelAverage: choice.average,
+    permutations: PERMUTATIONS,
+    seed: 3,
+  });
 
 /** Welch's t and its two-tailed p for one column of a subjects × points matrix (Welch 1947). */
 function welchP(data: Float64Array, width: number, column: (row: Float64Array) => number, group: ArrayLike<number>): number {
@@ -71,7 +102,7 @@ function welchP(data: Float64Array, width: number, column: (row: Float64Array) =
   const a = varOf(0) / n[0];
   const b = varOf(1) / n[1];
   const t = (mean[1] - mean[0]) / Math.sqrt(a + b);
-  const df = (a + b) ** 2 / (a * a / (n[0] - 1) + b * b / (n[1] - 1));
+  const df = (a + b) ** 2 / ((a * a) / (n[0] - 1) + (b * b) / (n[1] - 1));
   return twoTailedP(t, df);
 }
 
@@ -121,7 +152,9 @@ describe('confirmation on the held-out part (synthetic cohorts)', () => {
     const level = 24 / 500;
     const lo = binomialQuantile(0.005, cohorts, level);
     const hi = binomialQuantile(0.995, cohorts, level);
-    console.log(`null, ${cohorts} cohorts: best of 30 exploration paths p < 0.05 in ${exploreHits}; confirmation p < 0.05 in ${confirmHits} (99 % interval ${lo}–${hi}); the path re-run on all subjects in ${reusedHits}`);
+    console.log(
+      `null, ${cohorts} cohorts: best of 30 exploration paths p < 0.05 in ${exploreHits}; confirmation p < 0.05 in ${confirmHits} (99 % interval ${lo}–${hi}); the path re-run on all subjects in ${reusedHits}`,
+    );
     expect(confirmHits).toBeGreaterThanOrEqual(lo);
     expect(confirmHits).toBeLessThanOrEqual(hi);
     expect(exploreHits).toBeGreaterThan(hi);
@@ -130,7 +163,17 @@ describe('confirmation on the held-out part (synthetic cohorts)', () => {
 
   it('with a planted offset, the confirmation has the power of a t test on half the sample (scipy.stats.nct)', () => {
     const delta = 0.16;
-    const locked = parseContrast({ design: 'groups', groups: ['group A', 'group B'], stage: 'N2', measure: 'band-power', bands: ['sigma'], channels: CHANNELS, channelAverage: true, permutations: PERMUTATIONS, seed: 3 });
+    const locked = parseContrast({
+      design: 'groups',
+      groups: ['group A', 'group B'],
+      stage: 'N2',
+      measure: 'band-power',
+      bands: ['sigma'],
+      channels: CHANNELS,
+      channelAverage: true,
+      permutations: PERMUTATIONS,
+      seed: 3,
+    });
     // σ of the locked measure, pooled within groups, from 4000 null recordings
     const big = syntheticCohort(4000, 99, NO_EFFECT);
     const a = assembleContrast({ ...locked, groups: ['control', 'patient'] }, big);
@@ -156,7 +199,9 @@ describe('confirmation on the held-out part (synthetic cohorts)', () => {
     }
     const lo = binomialQuantile(0.005, cohorts, Math.min(...expected));
     const hi = binomialQuantile(0.995, cohorts, Math.max(...expected));
-    console.log(`planted Δ = ${delta} log10, σ = ${sigma.toFixed(4)}: confirmation power ${(hits / cohorts).toFixed(3)} over ${cohorts} cohorts; scipy.stats.nct ${expected[0].toFixed(3)} (σ ± 2 SE: ${expected[1].toFixed(3)}–${expected[2].toFixed(3)}); 99 % interval ${lo}–${hi} hits`);
+    console.log(
+      `planted Δ = ${delta} log10, σ = ${sigma.toFixed(4)}: confirmation power ${(hits / cohorts).toFixed(3)} over ${cohorts} cohorts; scipy.stats.nct ${expected[0].toFixed(3)} (σ ± 2 SE: ${expected[1].toFixed(3)}–${expected[2].toFixed(3)}); 99 % interval ${lo}–${hi} hits`,
+    );
     expect(hits).toBeGreaterThanOrEqual(lo);
     expect(hits).toBeLessThanOrEqual(hi);
   });

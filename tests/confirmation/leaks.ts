@@ -10,7 +10,9 @@ export function countsIn(text: string, codes: readonly string[]): string[] {
 export function perGroupNumbers(value: unknown, codes: readonly string[], path = '$'): string[] {
   if (Array.isArray(value)) return value.flatMap((v, i) => perGroupNumbers(v, codes, `${path}[${i}]`));
   if (value === null || typeof value !== 'object') return typeof value === 'string' && countsIn(value, codes).length > 0 ? [`${path}: ${value}`] : [];
-  const own = Object.entries(value).filter(([k, v]) => codes.includes(k) && typeof v === 'number').map(([k]) => `${path}.${k}`);
+  const own = Object.entries(value)
+    .filter(([k, v]) => codes.includes(k) && typeof v === 'number')
+    .map(([k]) => `${path}.${k}`);
   return [...own, ...Object.entries(value).flatMap(([k, v]) => perGroupNumbers(v, codes, `${path}.${k}`))];
 }
 

@@ -11,7 +11,9 @@ import { codeNames, drawGroupCodes, labelsTellGroups } from '../../src/core/conf
 import { drawSplit, SplitError, stratumOf, type SplitSubject } from '../../src/core/confirmation/split.ts';
 
 /** A generated cohort: subjects s0…s(n−1), each in one of `strata` strata (sizes from the arbitrary). */
-const cohort = fc.array(fc.integer({ min: 0, max: 5 }), { minLength: 2, maxLength: 120 }).map((strata) => strata.map((k, i): SplitSubject => ({ subject: `s${i}`, stratum: `stratum ${k}` })));
+const cohort = fc
+  .array(fc.integer({ min: 0, max: 5 }), { minLength: 2, maxLength: 120 })
+  .map((strata) => strata.map((k, i): SplitSubject => ({ subject: `s${i}`, stratum: `stratum ${k}` })));
 const fraction = fc.double({ min: 0.05, max: 0.95, noNaN: true });
 const seed = fc.integer({ min: 0, max: 2 ** 31 - 1 });
 
@@ -95,13 +97,16 @@ describe('drawSplit on generated cohorts (fast-check, 300 cohorts per property)'
   });
 
   it('refuses a bad fraction or seed and a repeated subject, naming the value', () => {
-    const two = [{ subject: 'a', stratum: 'x' }, { subject: 'b', stratum: 'x' }];
+    const two = [
+      { subject: 'a', stratum: 'x' },
+      { subject: 'b', stratum: 'x' },
+    ];
     expect(() => drawSplit(two, { fraction: 1, seed: 1, stratify: [] })).toThrow('invalid fraction: 1');
     expect(() => drawSplit(two, { fraction: 0.5, seed: 1.5, stratify: [] })).toThrow('invalid seed: 1.5');
     expect(() => drawSplit([...two, two[0]], { fraction: 0.5, seed: 1, stratify: [] })).toThrow('a subject is listed twice');
   });
 
-  it('strata are the stratifying columns\' values, a missing value its own stratum', () => {
+  it("strata are the stratifying columns' values, a missing value its own stratum", () => {
     expect(stratumOf({ group: 'b', sex: 'F' }, ['group', 'sex'])).toBe('["b","F"]');
     expect(stratumOf({ group: null }, ['group'])).toBe('[null]');
     expect(stratumOf({ group: 'b' }, [])).toBe('[]');
@@ -128,9 +133,36 @@ describe('group codes of the blinding', () => {
 
   it('tells when subject labels give the groups away (a shared beginning per group, found in no other group)', () => {
     const rows = (labels: [string, string][]) => labels.map(([subject, group]) => ({ subject, group }));
-    expect(labelsTellGroups(rows([['ctl01', 'c'], ['ctl02', 'c'], ['pat01', 'p'], ['pat02', 'p']]))).toBe(true);
-    expect(labelsTellGroups(rows([['s01', 'c'], ['s02', 'p'], ['s03', 'c'], ['s04', 'p']]))).toBe(false);
+    expect(
+      labelsTellGroups(
+        rows([
+          ['ctl01', 'c'],
+          ['ctl02', 'c'],
+          ['pat01', 'p'],
+          ['pat02', 'p'],
+        ]),
+      ),
+    ).toBe(true);
+    expect(
+      labelsTellGroups(
+        rows([
+          ['s01', 'c'],
+          ['s02', 'p'],
+          ['s03', 'c'],
+          ['s04', 'p'],
+        ]),
+      ),
+    ).toBe(false);
     // "s0" is shared by both groups' labels: it tells nothing
-    expect(labelsTellGroups(rows([['s01', 'c'], ['s02', 'c'], ['s03', 'p'], ['s04', 'p']]))).toBe(false);
+    expect(
+      labelsTellGroups(
+        rows([
+          ['s01', 'c'],
+          ['s02', 'c'],
+          ['s03', 'p'],
+          ['s04', 'p'],
+        ]),
+      ),
+    ).toBe(false);
   });
 });

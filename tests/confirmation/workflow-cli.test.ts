@@ -60,7 +60,9 @@ describe('split, blinded exploration, lock, confirm and report on the demo cohor
     expect(r.stdout).toMatch(/^split [0-9a-f]{12}: exploration 18 subjects, confirmation 18 \(fraction 0\.5, seed 11, stratified by group \(2 strata\)\)/);
     expect(r.stdout).toContain('shown as group A, group B');
     expect(r.stdout).toContain('the subject labels tell the blinded groups apart');
-    const parts = await sql(`SELECT p.group AS g, s.part, count(*)::INTEGER AS n FROM subject_split s JOIN participants p USING (subject) GROUP BY ALL ORDER BY ALL`);
+    const parts = await sql(
+      `SELECT p.group AS g, s.part, count(*)::INTEGER AS n FROM subject_split s JOIN participants p USING (subject) GROUP BY ALL ORDER BY ALL`,
+    );
     expect(parts).toEqual([
       { g: 'control', part: 'confirmation', n: 9 },
       { g: 'control', part: 'exploration', n: 9 },
@@ -73,7 +75,21 @@ describe('split, blinded exploration, lock, confirm and report on the demo cohor
   });
 
   it('exploration reads the exploration part with coded groups; real group names are refused', () => {
-    const e1 = cli(['compare', db, ...CODED, '--stage', 'N2', '--measure', 'residual', '--out', file('e1.json'), '--tsv', file('e1.tsv'), '--points-tsv', file('e1-points.tsv')]);
+    const e1 = cli([
+      'compare',
+      db,
+      ...CODED,
+      '--stage',
+      'N2',
+      '--measure',
+      'residual',
+      '--out',
+      file('e1.json'),
+      '--tsv',
+      file('e1.tsv'),
+      '--points-tsv',
+      file('e1-points.tsv'),
+    ]);
     expect(e1.status, e1.stderr).toBe(0);
     // 18 explored subjects; ctl09 (a flat O2 channel, no clean epoch) is left out when it explores
     const [, n, left] = /n: both groups (\d+); excluded: (\d+)/.exec(e1.stdout)!.map(Number);
@@ -114,8 +130,14 @@ describe('split, blinded exploration, lock, confirm and report on the demo cohor
   });
 
   it('nothing printed or written while blinded names a real group or counts a coded group', () => {
-    const files = ['e1.json', 'e1.tsv', 'e1-points.tsv', 'e2.json', 'b.json', 'e1-methods.md', 'e1-methods.json', 'b-methods.md', 'b-methods.json'].map((f) => file(f));
-    const texts = [...printed.map((p) => ({ what: `output of bandwise ${p.command}`, text: p.text })), ...files.map((f) => ({ what: f, text: readFileSync(f, 'utf8') })), { what: 'ledger', text: readFileSync(ledger, 'utf8') }];
+    const files = ['e1.json', 'e1.tsv', 'e1-points.tsv', 'e2.json', 'b.json', 'e1-methods.md', 'e1-methods.json', 'b-methods.md', 'b-methods.json'].map((f) =>
+      file(f),
+    );
+    const texts = [
+      ...printed.map((p) => ({ what: `output of bandwise ${p.command}`, text: p.text })),
+      ...files.map((f) => ({ what: f, text: readFileSync(f, 'utf8') })),
+      { what: 'ledger', text: readFileSync(ledger, 'utf8') },
+    ];
     for (const { what, text } of texts) {
       expect(realNames(text, REAL), what).toEqual([]);
       expect(countsIn(text, CODES), what).toEqual([]);
@@ -145,7 +167,9 @@ describe('split, blinded exploration, lock, confirm and report on the demo cohor
     expect(c.subjects.length + c.exclusions.length).toBe(18);
     expect(cli(['report', file('conf.json'), '--out', file('conf-methods.md'), '--database', db]).status).toBe(0);
     const md = readFileSync(file('conf-methods.md'), 'utf8');
-    expect(md).toContain(`This is the confirmatory analysis of plan ${planId}, locked at ${c.plan.lockedAt} (SHA-256 of the plan's canonical JSON: ${c.plan.hash})`);
+    expect(md).toContain(
+      `This is the confirmatory analysis of plan ${planId}, locked at ${c.plan.lockedAt} (SHA-256 of the plan's canonical JSON: ${c.plan.hash})`,
+    );
     expect(md).toContain('before this analysis of the confirmation part');
     expect(md).toContain('records no analysis that included confirmation-part subjects before the plan was locked');
     expect(md).not.toContain('not the first confirmation');
@@ -158,7 +182,10 @@ describe('split, blinded exploration, lock, confirm and report on the demo cohor
     expect(json('conf2.json').plan.confirmationRun).toBe(2);
     cli(['report', file('conf2.json'), '--out', file('conf2-methods.md'), '--database', db]);
     expect(readFileSync(file('conf2-methods.md'), 'utf8')).toContain('**This is not the first confirmation of this plan** but confirmation 2');
-    const lines = readFileSync(ledger, 'utf8').trim().split('\n').map((l) => JSON.parse(l));
+    const lines = readFileSync(ledger, 'utf8')
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l));
     expect(lines.filter((l) => l.kind === 'compare' && l.part === 'confirmation').map((l) => l.confirmationRun)).toEqual([1, 2]);
     expect(lines.filter((l) => l.kind === 'lock')).toHaveLength(1);
   });
@@ -173,7 +200,9 @@ describe('split, blinded exploration, lock, confirm and report on the demo cohor
     expect(stale.stderr).toContain('no longer the current split');
     const lock = cli(['lock', db, '--contrast', file('plan.json')]);
     expect(lock.status, lock.stderr).toBe(0);
-    expect(lock.stderr).toMatch(/warning: the ledger shows \d+ analyses that included confirmation-part subjects before the plan was locked \(\d+ on an earlier split that shares subjects with this confirmation part\)/);
+    expect(lock.stderr).toMatch(
+      /warning: the ledger shows \d+ analyses that included confirmation-part subjects before the plan was locked \(\d+ on an earlier split that shares subjects with this confirmation part\)/,
+    );
     const late = lock.stdout.trim().split(' ')[1];
     expect(cli(['confirm', db, '--plan', late, '--out', file('late.json'), '--quiet']).status).toBe(0);
     expect(json('late.json').plan.analysedBeforeLock.earlierSplits).toBeGreaterThan(0);

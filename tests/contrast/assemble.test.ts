@@ -37,7 +37,19 @@ function cohort(nPerGroup: number, seed: number): ContrastData {
 describe('contrast JSON', () => {
   it('fills the documented defaults and names every bad key', () => {
     const c = parseContrast({ design: 'groups', groups: ['control', 'patient'] });
-    expect(c).toMatchObject({ stage: 'N2', reference: 'recorded', averaging: 'mean', channels: 'all', fminHz: 1, fmaxHz: 30, measure: 'log-psd', correction: 'cluster-mass', clusterP: 0.05, permutations: 1000, seed: 1 });
+    expect(c).toMatchObject({
+      stage: 'N2',
+      reference: 'recorded',
+      averaging: 'mean',
+      channels: 'all',
+      fminHz: 1,
+      fmaxHz: 30,
+      measure: 'log-psd',
+      correction: 'cluster-mass',
+      clusterP: 0.05,
+      permutations: 1000,
+      seed: 1,
+    });
     expect(() => parseContrast({ design: 'groups' })).toThrow(/groups: a groups design needs/);
     expect(() => parseContrast({ design: 'groups', groups: ['a', 'b'], fminHz: 20, fmaxHz: 10 })).toThrow(/fmaxHz \(10\) must exceed fminHz \(20\)/);
     expect(() => parseContrast({ design: 'groups', groups: ['a', 'b'], colour: 'red' })).toThrow(ContrastSpecError);
@@ -127,7 +139,13 @@ describe('assembling a contrast', () => {
   });
 
   it('round-trips the exclusion TSV', () => {
-    const list = [{ subject: 'x1', channel: null, reason: 'flat\tall night' }, { subject: 'x2', channel: 'C3', reason: 'hum' }];
-    expect(parseExclusionsTsv(exclusionsToTsv(list))).toEqual([{ subject: 'x1', channel: null, reason: 'flat all night' }, { subject: 'x2', channel: 'C3', reason: 'hum' }]);
+    const list = [
+      { subject: 'x1', channel: null, reason: 'flat\tall night' },
+      { subject: 'x2', channel: 'C3', reason: 'hum' },
+    ];
+    expect(parseExclusionsTsv(exclusionsToTsv(list))).toEqual([
+      { subject: 'x1', channel: null, reason: 'flat all night' },
+      { subject: 'x2', channel: 'C3', reason: 'hum' },
+    ]);
   });
 });

@@ -12,7 +12,20 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoDatabase } from '../helpers/demo-db.ts';
 
 const bin = path.join(import.meta.dirname, '..', '..', 'bin', 'bandwise.mjs');
-const common = ['--groups', 'control,patient', '--stage', 'N2', '--channels', 'C3,C4,Cz,P3,P4,Pz', '--permutations', '100', '--seed', '1', '--quiet', '--no-ledger'];
+const common = [
+  '--groups',
+  'control,patient',
+  '--stage',
+  'N2',
+  '--channels',
+  'C3,C4,Cz,P3,P4,Pz',
+  '--permutations',
+  '100',
+  '--seed',
+  '1',
+  '--quiet',
+  '--no-ledger',
+];
 let db = '';
 let dir = '';
 

@@ -49,7 +49,8 @@ function cohort(nPerGroup: number, seed: number, boost: number): ContrastData {
 }
 
 const used = (data: ContrastData) => new Set(data.participants.map((p) => `${p.subject}\u0000`));
-const contrast = (extra: Record<string, unknown> = {}) => parseContrast({ design: 'groups', groups: ['a', 'b'], fminHz: F0, fmaxHz: 20, permutations: 200, ...extra });
+const contrast = (extra: Record<string, unknown> = {}) =>
+  parseContrast({ design: 'groups', groups: ['a', 'b'], fminHz: F0, fmaxHz: 20, permutations: 200, ...extra });
 
 describe('channel layout of a contrast', () => {
   it('joins E-numbered channels by their stored positions, as the neighbours of those positions', () => {
@@ -57,7 +58,12 @@ describe('channel layout of a contrast', () => {
     const { layout, graph } = channelLayout(contrast(), NAMES, data, used(data), true);
     expect(layout.neighbours).toBe('positions');
     expect(layout.positions[9]).toEqual(NET[9].p);
-    expect(graph).toEqual(positionNeighbours(NET.map((e) => e.p), NAMES));
+    expect(graph).toEqual(
+      positionNeighbours(
+        NET.map((e) => e.p),
+        NAMES,
+      ),
+    );
     // without a graph (channel average, one channel) nothing is required
     expect(channelLayout(contrast(), ['E1'], { ...data, positions: [] }, used(data), false).graph).toBeNull();
   });
@@ -79,8 +85,13 @@ describe('channel layout of a contrast', () => {
     expect(channelLayout(contrast(), ['C3', 'Cz', 'C4'], { ...data, positions: undefined }, used(data), true).layout.neighbours).toBe('positions');
     // a table: its graph, and the channels it does not mention named
     const table = contrast({ neighbours: { E1: ['E2'], E2: ['E3'] } });
-    expect(channelLayout(table, ['E1', 'E2', 'E3'], some, used(data), true)).toEqual({ layout: { neighbours: 'table', positions: [NET[0].p, NET[1].p, null] }, graph: [[1], [0, 2], [1]] });
-    expect(() => channelLayout(table, ['E1', 'E2', 'E4'], some, used(data), true)).toThrow('channels E4 are not in the neighbour table; add them (a channel with no neighbours has a row of its own) or leave them out of the contrast');
+    expect(channelLayout(table, ['E1', 'E2', 'E3'], some, used(data), true)).toEqual({
+      layout: { neighbours: 'table', positions: [NET[0].p, NET[1].p, null] },
+      graph: [[1], [0, 2], [1]],
+    });
+    expect(() => channelLayout(table, ['E1', 'E2', 'E4'], some, used(data), true)).toThrow(
+      'channels E4 are not in the neighbour table; add them (a channel with no neighbours has a row of its own) or leave them out of the contrast',
+    );
   });
 
   it('places a scalp pair of stored electrodes halfway between them, and a pair of 10-10 names on the template', () => {
@@ -109,7 +120,9 @@ describe('channel layout of a contrast', () => {
     const [at] = channelLayout(contrast(), [cz.name], { ...data, positions: moved }, new Set(['s00\u0000', 's01\u0000']), false).layout.positions;
     expect(at!.z).toBeCloseTo(1, 12);
     const far = data.positions!.map((r) => (r.channel === cz.name && r.subject === 's03' ? { ...r, ...tilt(cz.p, 2 * MAX_SPREAD_DEG + 10) } : r));
-    expect(() => channelLayout(contrast(), NAMES, { ...data, positions: far }, used(data), true)).toThrow(/^channel E\d+ lies at different places in different recordings \(subject s03 \d+° from the mean of 4\)/);
+    expect(() => channelLayout(contrast(), NAMES, { ...data, positions: far }, used(data), true)).toThrow(
+      /^channel E\d+ lies at different places in different recordings \(subject s03 \d+° from the mean of 4\)/,
+    );
   });
 
   it('finds an effect planted on a patch of E-numbered electrodes as one cluster over the patch', () => {
@@ -124,7 +137,10 @@ describe('channel layout of a contrast', () => {
     expect(k.sign).toBe(1);
     // the cluster covers every patch electrode and reaches at most one neighbour step beyond it
     expect(k.channels).toEqual(expect.arrayContaining(PATCH));
-    const graph = positionNeighbours(NET.map((e) => e.p), NAMES);
+    const graph = positionNeighbours(
+      NET.map((e) => e.p),
+      NAMES,
+    );
     const nearPatch = new Set(PATCH.flatMap((c) => [c, ...graph[NAMES.indexOf(c)].map((i) => NAMES[i])]));
     for (const c of k.channels) expect(nearPatch.has(c), c).toBe(true);
     expect(k.fminHz).toBeGreaterThanOrEqual(10);

@@ -10,7 +10,8 @@ import { afterAll, describe, expect, it } from 'vitest';
 const repo = path.resolve(import.meta.dirname, '../..');
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-cli-input-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
-const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8' });
+const cli = (args: string[]) =>
+  spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8' });
 
 describe('compare and band-check refuse bad contrast input with exit status 2', () => {
   const truncated = path.join(dir, 'truncated.json');
@@ -33,7 +34,8 @@ describe('compare and band-check refuse bad contrast input with exit status 2', 
 // One band grammar for both commands (README "compare": LO-HI in Hz, name:LO-HI or a preset name;
 // docs/design.md's synopsis `band-check … --band LO-HI`): the same text is accepted or refused alike.
 describe('compare and band-check read --band with one grammar', () => {
-  const run = (command: string, band: string) => cli([command, path.join(dir, 'missing.duckdb'), '--groups', 'control,patient', '--band', band, '--out', path.join(dir, 'out.json')]);
+  const run = (command: string, band: string) =>
+    cli([command, path.join(dir, 'missing.duckdb'), '--groups', 'control,patient', '--band', band, '--out', path.join(dir, 'out.json')]);
   const PRESETS = 'delta, theta, alpha, sigma, beta, broadband, slow-sigma, fast-sigma';
   const refused: [string, string][] = [
     ['sigma 11-16', `invalid band 'sigma 11-16': expected LO-HI in Hz (e.g. 12-16), name:LO-HI, or a preset: ${PRESETS}`],
@@ -62,8 +64,16 @@ describe('compare and band-check read --band with one grammar', () => {
 // paired design compares every subject's two stages, so --groups would silently do nothing.
 describe('options that would be ignored are refused', () => {
   const cases: [string, string[], string][] = [
-    ['band-check', ['--groups', 'control,patient', '--band', 'sigma', '--measure', 'relative'], 'bandwise band-check: --measure is not used: the band check tests its own fixed set of measures (README "band-check")\n'],
-    ['compare', ['--design', 'paired', '--stages', 'N2,N3', '--groups', 'control,patient'], 'invalid contrast:\n  groups: "groups" is used by the groups design only (a paired design compares each subject\'s two conditions; leave subjects out with exclusions)\n'],
+    [
+      'band-check',
+      ['--groups', 'control,patient', '--band', 'sigma', '--measure', 'relative'],
+      'bandwise band-check: --measure is not used: the band check tests its own fixed set of measures (README "band-check")\n',
+    ],
+    [
+      'compare',
+      ['--design', 'paired', '--stages', 'N2,N3', '--groups', 'control,patient'],
+      'invalid contrast:\n  groups: "groups" is used by the groups design only (a paired design compares each subject\'s two conditions; leave subjects out with exclusions)\n',
+    ],
   ];
   it.each(cases)('%s %j', (command, args, message) => {
     const r = cli([command, path.join(dir, 'missing.duckdb'), ...args, '--out', path.join(dir, 'out.json')]);

@@ -20,9 +20,40 @@ beforeAll(async () => {
 }, 1_800_000);
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-function compare(name: string, args: string[]): { clusters: { sign: number; p: number; fminHz: number; fmaxHz: number; channels: string[] }[]; n: Record<string, number>; exclusions: unknown[]; contrast: Record<string, unknown>; statistics: { stat: number[]; freqsHz: number[]; channels: string[] } } {
+function compare(
+  name: string,
+  args: string[],
+): {
+  clusters: { sign: number; p: number; fminHz: number; fmaxHz: number; channels: string[] }[];
+  n: Record<string, number>;
+  exclusions: unknown[];
+  contrast: Record<string, unknown>;
+  statistics: { stat: number[]; freqsHz: number[]; channels: string[] };
+} {
   const out = path.join(dir, `${name}.json`);
-  execFileSync(process.execPath, [bin, 'compare', db, '--design', 'groups', '--groups', 'control,patient', '--stage', 'N2', '--out', out, '--tsv', path.join(dir, `${name}.tsv`), '--ledger', path.join(dir, 'ledger.jsonl'), '--quiet', ...args], { encoding: 'utf8' });
+  execFileSync(
+    process.execPath,
+    [
+      bin,
+      'compare',
+      db,
+      '--design',
+      'groups',
+      '--groups',
+      'control,patient',
+      '--stage',
+      'N2',
+      '--out',
+      out,
+      '--tsv',
+      path.join(dir, `${name}.tsv`),
+      '--ledger',
+      path.join(dir, 'ledger.jsonl'),
+      '--quiet',
+      ...args,
+    ],
+    { encoding: 'utf8' },
+  );
   return JSON.parse(readFileSync(out, 'utf8'));
 }
 

@@ -21,7 +21,8 @@ const repo = path.resolve(import.meta.dirname, '../..');
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-hd-cli-'));
 const SITES = ['F3', 'Fz', 'F4', 'C3', 'Cz', 'C4', 'P3', 'P4'];
 const NAMES = SITES.map((_, i) => `E${i + 1}`);
-const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8' });
+const cli = (args: string[]) =>
+  spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8' });
 const withPositions = path.join(dir, 'positions.duckdb');
 const without = path.join(dir, 'bare.duckdb');
 
@@ -65,7 +66,10 @@ describe('an E-numbered cohort from the command line', () => {
     expect(result.statistics.channels).toEqual(order);
     expect(result.channelLayout.neighbours).toBe('positions');
     // the graph is the one of the 10-10 sites the file gives (mm → unit sphere, rounded to 1 µm)
-    const graph = positionNeighbours(order.map((n) => electrodePosition(SITES[NAMES.indexOf(n)])!), order);
+    const graph = positionNeighbours(
+      order.map((n) => electrodePosition(SITES[NAMES.indexOf(n)])!),
+      order,
+    );
     expect(result.statistics.channelNeighbours).toEqual(graph);
     // 14 vs 6 µV spindles at 13.5 Hz in N2 on every channel: one positive cluster over the net
     expect(result.clusters[0].sign).toBe(1);
@@ -74,7 +78,20 @@ describe('an E-numbered cohort from the command line', () => {
     const rep = cli(['report', r.out, '--out', report]);
     expect(rep.status, rep.stderr).toBe(0);
     expect(readFileSync(report, 'utf8')).toContain("Delaunay triangulation of the channels' electrode positions (from the recordings' positions files");
-    const band = cli(['band-check', withPositions, '--band', '12-15', '--groups', 'a,b', '--permutations', '50', '--no-ledger', '--quiet', '--out', path.join(dir, 'band.json')]);
+    const band = cli([
+      'band-check',
+      withPositions,
+      '--band',
+      '12-15',
+      '--groups',
+      'a,b',
+      '--permutations',
+      '50',
+      '--no-ledger',
+      '--quiet',
+      '--out',
+      path.join(dir, 'band.json'),
+    ]);
     expect(band.status, band.stderr).toBe(0);
   });
 

@@ -14,10 +14,18 @@ import { plantedCentres, simulateCohort } from '../verdict/cohorts.ts';
 
 const fast = { name: 'fast', loHz: 12, hiHz: 15 };
 const who = { subject: 's1', condition: 'N2', stage: 'N2' as const };
-const peak = (channel: string, centerHz: number, height: number): PeakRow => ({ subject: 's1', session: null, channel, stage: 'N2', centerHz, height, bandwidthHz: 1 });
+const peak = (channel: string, centerHz: number, height: number): PeakRow => ({
+  subject: 's1',
+  session: null,
+  channel,
+  stage: 'N2',
+  centerHz,
+  height,
+  bandwidthHz: 1,
+});
 
 describe('individual band rule', () => {
-  it('centres the band on the median over channels of each channel\'s highest peak in the search range', () => {
+  it("centres the band on the median over channels of each channel's highest peak in the search range", () => {
     // C3: highest inside 11–16 Hz is 12.5 (17 Hz is outside); C4: 13.0; Cz: 14.0; Pz: none → median 13.0 (by hand)
     const peaks = [peak('C3', 12.5, 0.3), peak('C3', 14.8, 0.2), peak('C3', 17, 0.9), peak('C4', 13.0, 0.4), peak('Cz', 14.0, 0.1), peak('O1', 13.9, 0.5)];
     const r = individualBand(fast, { searchHz: [11, 16], halfWidthHz: 1.5 }, peaks, ['C3', 'C4', 'Cz', 'Pz'], who);
@@ -40,11 +48,21 @@ describe('individual bands on a simulated cohort (fast spindles 1 Hz slower in p
   const planted = plantedCentres('shift-1hz', 1);
   // search 11.8–16 Hz: above the slow spindle (11 Hz ± 2.5 %), around the fast one (13.5 Hz, patients 12.5 Hz)
   const contrast = parseContrast({
-    design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['Cz'], measure: 'band-power', bands: [fast], bandMethod: 'integral',
-    bandDefinition: 'individual', peakSearchHz: [11.8, 16], halfWidthHz: 1, permutations: 200, seed: 3,
+    design: 'groups',
+    groups: ['control', 'patient'],
+    stage: 'N2',
+    channels: ['Cz'],
+    measure: 'band-power',
+    bands: [fast],
+    bandMethod: 'integral',
+    bandDefinition: 'individual',
+    peakSearchHz: [11.8, 16],
+    halfWidthHz: 1,
+    permutations: 200,
+    seed: 3,
   });
 
-  it('finds each subject\'s planted fast-spindle centre', () => {
+  it("finds each subject's planted fast-spindle centre", () => {
     const found = individualBands(contrast, data, fast).centres;
     expect(found.length).toBe(40);
     const withPeak = found.filter((c) => c.centerHz !== null);
@@ -55,7 +73,7 @@ describe('individual bands on a simulated cohort (fast spindles 1 Hz slower in p
     for (const c of withPeak) expect([c.loHz, c.hiHz]).toEqual([c.centerHz! - 1, c.centerHz! + 1]);
   });
 
-  it('takes each subject\'s band power over its own band, equal to numpy\'s trapezoid over those bins', () => {
+  it("takes each subject's band power over its own band, equal to numpy's trapezoid over those bins", () => {
     const a = assembleContrast(contrast, data);
     const centres = new Map(a.individualCentres.map((c) => [c.subject, c]));
     const axis = data.spectra;
@@ -78,9 +96,11 @@ print(json.dumps(out))`,
     for (let i = 0; i < subjects.length; i++) expect(a.input.data[i]).toBeCloseTo(expected[i], 9);
   });
 
-  it('lists every analysed subject\'s centre in the result, and refuses a measure individual bands do not apply to', () => {
+  it("lists every analysed subject's centre in the result, and refuses a measure individual bands do not apply to", () => {
     const r = compare(contrast, data);
     expect(r.individualCentres?.length).toBe(40);
-    expect(() => compare(parseContrast({ ...contrast, measure: 'log-psd' }), data)).toThrow(/individual bands apply to the measures band-power and relative-band-power/);
+    expect(() => compare(parseContrast({ ...contrast, measure: 'log-psd' }), data)).toThrow(
+      /individual bands apply to the measures band-power and relative-band-power/,
+    );
   });
 });

@@ -79,12 +79,20 @@ describe('peak measures with peaks missing per channel × subject', () => {
     for (let c = 0; c < CHANNELS.length; c++) {
       const col = ref.centre.map((row) => row[c]);
       const count = (lo: number, hi: number) => col.slice(lo, hi).filter((v) => v !== null).length;
-      expect(r.valuesPerPoint![c]).toEqual({ channel: CHANNELS[c], freqHz: 13.5, band: 'sigma 11–16 Hz', n: { control: count(0, 8), patient: count(8, 16) }, leftOut: ref.t[c] === null });
+      expect(r.valuesPerPoint![c]).toEqual({
+        channel: CHANNELS[c],
+        freqHz: 13.5,
+        band: 'sigma 11–16 Hz',
+        n: { control: count(0, 8), patient: count(8, 16) },
+        leftOut: ref.t[c] === null,
+      });
       if (ref.t[c] === null) expect(r.statistics.stat[c]).toBeNaN();
       else expect(r.statistics.stat[c]).toBeCloseTo(ref.t[c]!, 9);
     }
     expect(r.valuesPerPoint!.map((p) => p.n)).toContainEqual({ control: 6, patient: 8 }); // C3: s02 and s05 without a peak
-    expect(r.notes).toEqual(['sigma 11–16 Hz: 2 channels left out for too few values (a point needs at least 2 values per group and 3 in all): M1 (control 1, patient 0), M2 (control 0, patient 0)']);
+    expect(r.notes).toEqual([
+      'sigma 11–16 Hz: 2 channels left out for too few values (a point needs at least 2 values per group and 3 in all): M1 (control 1, patient 0), M2 (control 0, patient 0)',
+    ]);
     // the planted 1-Hz slowing: a negative cluster over the scalp channels only
     expect(r.clusters[0].sign).toBe(-1);
     expect(r.clusters[0].p).toBeLessThan(0.05);
@@ -109,6 +117,8 @@ describe('peak measures with peaks missing per channel × subject', () => {
     }
     const m = assembleContrast(parseContrast({ ...base, measure: 'peak-center', channels: ['M1', 'M2'], channelAverage: true }), data);
     expect(Array.from(m.input.data).filter((v) => !Number.isNaN(v))).toHaveLength(1); // only s03 has a mastoid peak
-    expect(() => compare(parseContrast({ ...base, measure: 'peak-center', channels: ['M1', 'M2'], channelAverage: true }), data)).toThrow(/no point has at least 2 values per group/);
+    expect(() => compare(parseContrast({ ...base, measure: 'peak-center', channels: ['M1', 'M2'], channelAverage: true }), data)).toThrow(
+      /no point has at least 2 values per group/,
+    );
   });
 });

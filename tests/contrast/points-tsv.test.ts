@@ -26,14 +26,25 @@ function cohort(): ContrastData {
       const key = { subject, session: null, channel, stage: 'N2' as const };
       rows.push({ ...key, nEpochs: 60, flagged: false, flagReason: null, power: new Float32Array(60).fill(1) });
       // invented centres: controls near 13.5 Hz, patients near 12.5 Hz
-      if (channel === 'C3') peaks.push({ ...key, centerHz: (s < 5 ? 13.5 : 12.5) + 0.1 * ((s * 7) % 5 - 2), height: 0.5, bandwidthHz: 2 });
+      if (channel === 'C3') peaks.push({ ...key, centerHz: (s < 5 ? 13.5 : 12.5) + 0.1 * (((s * 7) % 5) - 2), height: 0.5, bandwidthHz: 2 });
     }
   }
   return { spectra: { freqStartHz: 0, freqStepHz: 0.5, nBins: 60, rows }, aperiodic: [], peaks, participants, exclusions: [] };
 }
 
 describe('compare --points-tsv with missing values', () => {
-  const result = compare(parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', measure: 'peak-center', bands: [{ name: 'sigma', loHz: 11, hiHz: 16 }], permutations: 200, seed: 3 }), cohort());
+  const result = compare(
+    parseContrast({
+      design: 'groups',
+      groups: ['control', 'patient'],
+      stage: 'N2',
+      measure: 'peak-center',
+      bands: [{ name: 'sigma', loHz: 11, hiHz: 16 }],
+      permutations: 200,
+      seed: 3,
+    }),
+    cohort(),
+  );
   const tsv = pointsTsv({ ...result, database: { file: 'x.duckdb', runId: 'r', toolVersion: '0', ingestParameters: {} } } as CompareRun);
 
   it('writes NA for a left-out point, never NaN, and numpy reads it back as missing', () => {
@@ -42,7 +53,11 @@ describe('compare --points-tsv with missing values', () => {
       ['M2', true],
     ]);
     expect(Number.isNaN(result.statistics.stat[1])).toBe(true); // the result itself keeps NaN
-    const fields = tsv.trim().split('\n').slice(1).flatMap((l) => l.split('\t'));
+    const fields = tsv
+      .trim()
+      .split('\n')
+      .slice(1)
+      .flatMap((l) => l.split('\t'));
     expect(fields.filter((f) => /nan|infinity/i.test(f))).toEqual([]);
     const lines = tsv.trim().split('\n');
     const header = lines[0].split('\t');

@@ -28,15 +28,16 @@ function data(references: Record<string, string | null>, sessions: Record<string
   return { spectra: { freqStartHz: 0, freqStepHz: 0.25, nBins: NBINS, rows }, aperiodic: [], peaks: [], participants, exclusions: [], recordedReferences };
 }
 
-const contrast = (over: Record<string, unknown> = {}) => parseContrast({ design: 'groups', groups: ['control', 'patient'], fminHz: 1, fmaxHz: 10, permutations: 10, ...over });
+const contrast = (over: Record<string, unknown> = {}) =>
+  parseContrast({ design: 'groups', groups: ['control', 'patient'], fminHz: 1, fmaxHz: 10, permutations: 10, ...over });
 
 describe('recorded references in a contrast', () => {
   it("refuses a 'recorded' contrast that mixes C3-M2 exports with C3 against a common reference, naming subjects and references", () => {
     const d = data({ a1: 'M2', a2: 'M2', m1: null, m2: 'REF', m3: 'Ref', m4: null });
     expect(() => assembleContrast(contrast(), d)).toThrow(ContrastDataError);
     expect(() => assembleContrast(contrast(), d)).toThrow(
-      "channel C3 was recorded against different references: M2 (a1, a2) and the common reference, not named in the label (m1, m2, m3, m4); " +
-        "channel C4 was recorded against different references: M1 (a1, a2) and the common reference, not named in the label (m1, m2, m3, m4). " +
+      'channel C3 was recorded against different references: M2 (a1, a2) and the common reference, not named in the label (m1, m2, m3, m4); ' +
+        'channel C4 was recorded against different references: M1 (a1, a2) and the common reference, not named in the label (m1, m2, m3, m4). ' +
         "Their 'recorded' spectra are different signals and are not pooled: compare on a reference computed alike for every recording (e.g. contralateral-mastoid), or choose channels recorded alike.",
     );
   });
@@ -46,7 +47,13 @@ describe('recorded references in a contrast', () => {
     // C4 alone still mixes M1 and the common reference
     expect(() => assembleContrast(contrast({ channels: ['C4'] }), d)).toThrow(/^channel C4 was recorded against different references: M1 \(a1, a2\)/);
     // without the two exports (left out in the quality screen) nothing is mixed
-    const left = { ...d, exclusions: [{ subject: 'a1', channel: null, reason: 'x' }, { subject: 'a2', channel: null, reason: 'x' }] };
+    const left = {
+      ...d,
+      exclusions: [
+        { subject: 'a1', channel: null, reason: 'x' },
+        { subject: 'a2', channel: null, reason: 'x' },
+      ],
+    };
     expect(assembleContrast(contrast(), left).subjects.map((s) => s.subject)).toEqual(['m1', 'm2', 'm3', 'm4']);
   });
 

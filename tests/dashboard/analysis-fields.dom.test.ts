@@ -190,7 +190,14 @@ describe('AnalysisHead', () => {
   it('shows one ledger count for every view: compare and band-check entries, significant below p 0.05', async () => {
     render(AnalysisHead, { title: 'Band check' });
     expect(screen.getByRole('heading').textContent).toBe('Band check');
-    const entry = (kind: string | undefined, smallestP: number | null) => ({ time: '2026-01-01T00:00:00Z', ...(kind ? { kind } : {}), contrast: {}, smallestP, n: {}, exclusions: 0 });
+    const entry = (kind: string | undefined, smallestP: number | null) => ({
+      time: '2026-01-01T00:00:00Z',
+      ...(kind ? { kind } : {}),
+      contrast: {},
+      smallestP,
+      n: {},
+      exclusions: 0,
+    });
     notes.ledger = [entry(undefined, 0.01), entry('compare', 0.2), entry('band-check', 0.049), entry('band-check', null)];
     await tick();
     expect(screen.getByTestId('ledger-count').textContent).toBe('Analyses run on this database: 4, significant: 2');
@@ -239,8 +246,19 @@ describe('RunControls', () => {
   });
 
   it('cannot run settings that do not parse, and says why', () => {
-    const run = new AnalysisRun<string, string, string>({ key: (i) => i, read: async () => '', start: () => ({ result: new Promise(() => undefined), cancel: () => undefined }) });
-    render(RunControls, { run, name: 'contrast', label: 'Run contrast', unit: 'permutations', ready: false, settingsError: 'invalid contrast:\n  fmaxHz: fmaxHz (1) must exceed fminHz (30)' });
+    const run = new AnalysisRun<string, string, string>({
+      key: (i) => i,
+      read: async () => '',
+      start: () => ({ result: new Promise(() => undefined), cancel: () => undefined }),
+    });
+    render(RunControls, {
+      run,
+      name: 'contrast',
+      label: 'Run contrast',
+      unit: 'permutations',
+      ready: false,
+      settingsError: 'invalid contrast:\n  fmaxHz: fmaxHz (1) must exceed fminHz (30)',
+    });
     expect((screen.getByTestId('run-contrast') as HTMLButtonElement).disabled).toBe(true);
     expect(screen.getByRole('alert').textContent).toContain('fmaxHz (1) must exceed fminHz (30)');
   });

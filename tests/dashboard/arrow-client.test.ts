@@ -36,7 +36,10 @@ describe('arrow client', () => {
   });
 
   it('reads equal-length lists row-major as a view of the batch buffer when they hold no null', () => {
-    const batch = listTable([[1, 2, 3], [4, 5, 6]]).batches[0];
+    const batch = listTable([
+      [1, 2, 3],
+      [4, 5, 6],
+    ]).batches[0];
     const m = listValues(batch, 'power', 3);
     expect(m).toBeInstanceOf(Float32Array);
     expect([...m]).toEqual([1, 2, 3, 4, 5, 6]);
@@ -44,18 +47,47 @@ describe('arrow client', () => {
   });
 
   it('copies a batch with a null value, which becomes NaN', () => {
-    expect([...listValues(listTable([[5, null], [7, 8]]).batches[0], 'power', 2)]).toEqual([5, Number.NaN, 7, 8]);
+    expect([
+      ...listValues(
+        listTable([
+          [5, null],
+          [7, 8],
+        ]).batches[0],
+        'power',
+        2,
+      ),
+    ]).toEqual([5, Number.NaN, 7, 8]);
   });
 
   it('fails loudly on a list of the wrong length, a null list or a missing column', () => {
     const one = (t: Table): RecordBatch => t.batches[0];
-    expect(() => listValues(one(listTable([[1, 2, 3], [4, 5]])), 'power', 3)).toThrow(/row 1: expected 3 values, got 2/);
+    expect(() =>
+      listValues(
+        one(
+          listTable([
+            [1, 2, 3],
+            [4, 5],
+          ]),
+        ),
+        'power',
+        3,
+      ),
+    ).toThrow(/row 1: expected 3 values, got 2/);
     expect(() => listValues(one(listTable([[1, 2, 3], null])), 'power', 3)).toThrow(/row 1: expected 3 values, got null/);
     expect(() => listValues(one(listTable([[1]])), 'nope', 1)).toThrow(/no column nope/);
   });
 
   it('list reads: batch by batch with the other columns as cells, from the stream when asked and there is one', async () => {
-    const t = new Table([...listTable([[1, 2], [3, 4]], { id: ['a', 'b'] }).batches, ...listTable([[5, 6]], { id: ['c'] }).batches]);
+    const t = new Table([
+      ...listTable(
+        [
+          [1, 2],
+          [3, 4],
+        ],
+        { id: ['a', 'b'] },
+      ).batches,
+      ...listTable([[5, 6]], { id: ['c'] }).batches,
+    ]);
     const streamed: string[] = [];
     const client = arrowClient({
       query: async () => t,

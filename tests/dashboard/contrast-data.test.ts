@@ -94,7 +94,12 @@ describe('contrast data read up to fmaxHz (duckdb-wasm) equals the whole lists (
   }
 
   it('binsUpTo keeps the bins a measure up to maxHz uses (f0 + k·df ≤ maxHz + 1e-9), counted directly', () => {
-    for (const [f0, df] of [[0, 0.25], [0, 0.2], [0.5, 0.1], [0, 1 / 3]]) {
+    for (const [f0, df] of [
+      [0, 0.25],
+      [0, 0.2],
+      [0.5, 0.1],
+      [0, 1 / 3],
+    ]) {
       for (const maxHz of [0, 0.7, 1, 12.2, 30, 44.9]) {
         let direct = 0;
         while (f0 + direct * df <= maxHz + 1e-9) direct++;

@@ -7,10 +7,13 @@ import { toTsv } from '../../src/dashboard/export/tsv.ts';
 
 describe('toTsv', () => {
   it('writes a header of keys and one line per row, numbers at full precision', () => {
-    const tsv = toTsv([{ key: 'subject' }, { key: 'power' }, { key: 'ok' }], [
-      { subject: 'sub-01', power: 0.1 + 0.2, ok: true },
-      { subject: 'sub-02', power: null, ok: false },
-    ]);
+    const tsv = toTsv(
+      [{ key: 'subject' }, { key: 'power' }, { key: 'ok' }],
+      [
+        { subject: 'sub-01', power: 0.1 + 0.2, ok: true },
+        { subject: 'sub-02', power: null, ok: false },
+      ],
+    );
     expect(tsv).toBe('subject\tpower\tok\nsub-01\t0.30000000000000004\ttrue\nsub-02\t\tfalse\n');
   });
 

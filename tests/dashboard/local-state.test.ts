@@ -57,11 +57,37 @@ describe('per-database lists in browser storage', () => {
 describe('contrast in the address bar', () => {
   it('gives back the same contrast through the hash, for each design', () => {
     const designs = [
-      { design: 'groups', groups: ['control', 'patient'], stage: 'N2', fminHz: 0.5, fmaxHz: 30, permutations: 1000, channels: ['C3', 'Cz'], correction: 'tfce' },
+      {
+        design: 'groups',
+        groups: ['control', 'patient'],
+        stage: 'N2',
+        fminHz: 0.5,
+        fmaxHz: 30,
+        permutations: 1000,
+        channels: ['C3', 'Cz'],
+        correction: 'tfce',
+      },
       { design: 'paired', stages: ['N2', 'N3'], measure: 'relative', relativeRangeHz: [1, 40], statistic: 'paired-t', channelAverage: true },
-      { design: 'covariate', covariate: 'age', nuisance: ['score'], measure: 'band-power', bands: [{ name: 'sigma', loHz: 12, hiHz: 16 }], seed: 7, clusterP: 0.01 },
+      {
+        design: 'covariate',
+        covariate: 'age',
+        nuisance: ['score'],
+        measure: 'band-power',
+        bands: [{ name: 'sigma', loHz: 12, hiHz: 16 }],
+        seed: 7,
+        clusterP: 0.01,
+      },
       // multitaper spectra and an individual band
-      { design: 'groups', groups: ['control', 'patient'], estimator: 'multitaper', measure: 'band-power', bands: [{ name: 'fast', loHz: 12, hiHz: 15 }], bandDefinition: 'individual', peakSearchHz: [11.5, 16], halfWidthHz: 1.25 },
+      {
+        design: 'groups',
+        groups: ['control', 'patient'],
+        estimator: 'multitaper',
+        measure: 'band-power',
+        bands: [{ name: 'fast', loHz: 12, hiHz: 15 }],
+        bandDefinition: 'individual',
+        peakSearchHz: [11.5, 16],
+        halfWidthHz: 1.25,
+      },
     ];
     for (const d of designs) {
       const c = parseContrast(d);
@@ -76,7 +102,10 @@ describe('contrast in the address bar', () => {
     const c = parseContrast({
       design: 'groups',
       groups: ['control', 'patient'],
-      exclusions: [{ subject: 'ctl 04', reason: 'movement, all night: 50% & more' }, { subject: 'pat02', channel: 'C3', stage: 'N2', reason: 'loose electrode' }],
+      exclusions: [
+        { subject: 'ctl 04', reason: 'movement, all night: 50% & more' },
+        { subject: 'pat02', channel: 'C3', stage: 'N2', reason: 'loose electrode' },
+      ],
     });
     const hash = formatHash({ view: 'contrast', params: { ...paramsFromContrast(c), run: '1' } });
     expect(contrastFromParams(parseHash(hash).params).exclusions).toEqual(c.exclusions);

@@ -29,6 +29,17 @@ describe('hash routes', () => {
       expect(v.summary.length).toBeGreaterThan(10);
     }
     // the seven views of issues 6 and 7, the two of issue 19 and the workflow of issue 18, all built
-    expect(VIEWS.filter((v) => v.ready).map((v) => v.id)).toEqual(['cohort', 'quality', 'spectra', 'contrast', 'band-check', 'robustness', 'workflow', 'power', 'deviation', 'report']);
+    expect(VIEWS.filter((v) => v.ready).map((v) => v.id)).toEqual([
+      'cohort',
+      'quality',
+      'spectra',
+      'contrast',
+      'band-check',
+      'robustness',
+      'workflow',
+      'power',
+      'deviation',
+      'report',
+    ]);
   });
 });

@@ -21,12 +21,7 @@ interface Reply {
 let cookie = '';
 
 /** Send a request with the path exactly as given (no URL normalisation, unlike fetch), with the access cookie. */
-function request(
-  port: number,
-  method: string,
-  rawPath: string,
-  headers: Record<string, string> = {},
-): Promise<Reply> {
+function request(port: number, method: string, rawPath: string, headers: Record<string, string> = {}): Promise<Reply> {
   return new Promise((resolve, reject) => {
     const req = http.request({ host: '127.0.0.1', port, method, path: rawPath, headers: { Cookie: cookie, ...headers } }, (res) => {
       const chunks: Buffer[] = [];
@@ -216,12 +211,8 @@ describe('dashboard server', () => {
   });
 
   it('fails loudly on a missing database or app folder', async () => {
-    await expect(startDashboardServer({ dbPath: path.join(dir, 'nope.duckdb'), appDir: dir })).rejects.toThrow(
-      /dbPath is not a readable file/,
-    );
-    await expect(
-      startDashboardServer({ dbPath: path.join(dir, 'cohort.duckdb'), appDir: path.join(dir, 'nope') }),
-    ).rejects.toThrow(/appDir is not a folder/);
+    await expect(startDashboardServer({ dbPath: path.join(dir, 'nope.duckdb'), appDir: dir })).rejects.toThrow(/dbPath is not a readable file/);
+    await expect(startDashboardServer({ dbPath: path.join(dir, 'cohort.duckdb'), appDir: path.join(dir, 'nope') })).rejects.toThrow(/appDir is not a folder/);
     const dbPath = path.join(dir, 'cohort.duckdb');
     const appDir = path.join(dir, 'app');
     await expect(startDashboardServer({ dbPath, appDir, port: 70000 })).rejects.toThrow(/port must be an integer/);

@@ -32,14 +32,21 @@ function expectSameData(a: ContrastData, b: ContrastData): void {
   expect(a.exclusions).toEqual(b.exclusions);
 }
 
-describe('band check, robustness and report data over duckdb-wasm equal the command line\'s on the demo database', () => {
+describe("band check, robustness and report data over duckdb-wasm equal the command line's on the demo database", () => {
   let file: string;
   let client: Awaited<ReturnType<typeof wasmClientFor>>;
   let schema: CohortSchema;
   let runList: RunInfo[];
   let excluded = '';
   let exclusions: { subject: string; channel: null; reason: string }[] = [];
-  const sigma = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'], permutations: 200, seed: 3 });
+  const sigma = parseContrast({
+    design: 'groups',
+    groups: ['control', 'patient'],
+    stage: 'N2',
+    channels: ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'],
+    permutations: 200,
+    seed: 3,
+  });
 
   beforeAll(async () => {
     file = await demoDatabase();
@@ -75,7 +82,13 @@ describe('band check, robustness and report data over duckdb-wasm equal the comm
     const theirs: PathDataSet[] = await withDatabase(file, async (node) => {
       const out: PathDataSet[] = [];
       for (const n of needs) {
-        const loaded = await loadBandCheckData(node, await cohortSchema(node), await runs(node), { ...sigma, reference: n.reference as typeof sigma.reference, averaging: n.averaging }, exclusions);
+        const loaded = await loadBandCheckData(
+          node,
+          await cohortSchema(node),
+          await runs(node),
+          { ...sigma, reference: n.reference as typeof sigma.reference, averaging: n.averaging },
+          exclusions,
+        );
         out.push({ ...n, fitRangeHz: loaded.fitRangeHz, data: loaded.data });
       }
       return out;

@@ -6,7 +6,15 @@
 import { describe, expect, it } from 'vitest';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { ledgerCounts } from '../../src/core/report/index.ts';
-import { bonferroni, defaultPathChoices, enumeratePaths, type BandCheckResult, type PathDataSet, type PathResult, type SpecificationCurve } from '../../src/core/verdict/index.ts';
+import {
+  bonferroni,
+  defaultPathChoices,
+  enumeratePaths,
+  type BandCheckResult,
+  type PathDataSet,
+  type PathResult,
+  type SpecificationCurve,
+} from '../../src/core/verdict/index.ts';
 import { bandCheckLedgerEntry, browserLedgerCounts, entryKind } from '../../src/dashboard/db/ledger-report.ts';
 import type { LedgerEntry } from '../../src/dashboard/db/local-store.ts';
 import { bandFromParams, withEdges } from '../../src/dashboard/analysis/band-text.ts';
@@ -18,7 +26,12 @@ import { paramsFromChoices, pathChoicesFromParams, RobustnessParamError, toggled
 
 const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'Cz'], permutations: 500, seed: 7 });
 const sigma = { name: 'sigma', loHz: 12, hiHz: 16 };
-const stored = { references: ['recorded', 'linked-mastoids'], averagings: ['mean', 'median'], estimators: ['welch' as const], fitRangesHz: [[1, 40]] as [number, number][] };
+const stored = {
+  references: ['recorded', 'linked-mastoids'],
+  averagings: ['mean', 'median'],
+  estimators: ['welch' as const],
+  fitRangesHz: [[1, 40]] as [number, number][],
+};
 
 describe('band check address bar', () => {
   it('round-trips contrast and band; a missing band is sigma 12–16 Hz; edges matching a preset take its name', () => {
@@ -44,7 +57,9 @@ describe('band check address bar', () => {
 });
 
 describe('robustness choices', () => {
-  const sets = stored.references.flatMap((reference) => stored.averagings.map((averaging) => ({ reference, averaging, fitRangeHz: [1, 40], data: { peaks: [{}] } }) as unknown as PathDataSet));
+  const sets = stored.references.flatMap((reference) =>
+    stored.averagings.map((averaging) => ({ reference, averaging, fitRangeHz: [1, 40], data: { peaks: [{}] } }) as unknown as PathDataSet),
+  );
 
   it('with no choice keys: every stored value, as src/core/verdict defaultPathChoices; 120 band-summary paths', () => {
     const { choices, test } = pathChoicesFromParams({}, contrast, sigma, stored);
@@ -57,7 +72,12 @@ describe('robustness choices', () => {
   });
 
   it('round-trips through the address bar; unticked values drop out; unknown or unstored values are refused', () => {
-    const { choices } = pathChoicesFromParams({ measures: 'absolute,residual', references: 'recorded', edges: '0', summaries: 'integral' }, contrast, sigma, stored);
+    const { choices } = pathChoicesFromParams(
+      { measures: 'absolute,residual', references: 'recorded', edges: '0', summaries: 'integral' },
+      contrast,
+      sigma,
+      stored,
+    );
     expect(choices.measures).toEqual(['absolute', 'residual']);
     expect(choices.bands).toEqual([sigma]);
     expect(enumeratePaths(choices)).toHaveLength((1 + 1) * 1 * 2 * 1 * 2);
@@ -68,7 +88,9 @@ describe('robustness choices', () => {
     expect(() => pathChoicesFromParams({ fits: '2-30' }, contrast, sigma, stored)).toThrow(/2–30 Hz is not stored \(stored: 1–40 Hz\)/);
     expect(() => pathChoicesFromParams({ denominators: '45-0.5' }, contrast, sigma, stored)).toThrow(/not a range/);
     expect(() => pathChoicesFromParams({ test: 'fast' }, contrast, sigma, stored)).toThrow(/test holds fast/);
-    expect(() => pathChoicesFromParams({ decisions: 'frequency' }, contrast, sigma, stored)).toThrow(/decisions holds frequency; allowed: power, power-and-frequency/);
+    expect(() => pathChoicesFromParams({ decisions: 'frequency' }, contrast, sigma, stored)).toThrow(
+      /decisions holds frequency; allowed: power, power-and-frequency/,
+    );
     expect(() => pathChoicesFromParams({ estimators: 'multitaper' }, contrast, sigma, stored)).toThrow(/estimators holds multitaper; allowed: welch/);
     expect(pathChoicesFromParams({}, contrast, sigma, { ...stored, fitRangesHz: [] }).choices.bandDefinitions).toEqual(['fixed']);
     expect(toggled(['a', 'c'], 'b', true, ['a', 'b', 'c'])).toEqual(['a', 'b', 'c']);
@@ -76,7 +98,12 @@ describe('robustness choices', () => {
   });
 
   it('decisions: power only, power and frequency, or both (each path once per decision); round-trips through the address bar', () => {
-    const { choices } = pathChoicesFromParams({ measures: 'residual', references: 'recorded', averagings: 'mean', edges: '0', decisions: 'power,power-and-frequency' }, contrast, sigma, stored);
+    const { choices } = pathChoicesFromParams(
+      { measures: 'residual', references: 'recorded', averagings: 'mean', edges: '0', decisions: 'power,power-and-frequency' },
+      contrast,
+      sigma,
+      stored,
+    );
     expect(choices.decisions).toEqual(['power', 'power-and-frequency']);
     const specs = enumeratePaths(choices);
     expect(specs.map((p) => p.decision)).toEqual(['power', 'power-and-frequency']);
@@ -93,42 +120,137 @@ describe('robustness choices', () => {
       significant: true,
       n: { control: 10, patient: 10 },
       rank: i + 1,
-      ...(p.decision === 'power-and-frequency' ? { frequency: { effect: -2.5, ciLow: -3.4, ciHigh: -1.6, differenceHz: -0.98, p: 0.002, n: { control: 10, patient: 9 }, withoutPeak: { control: 0, patient: 1 }, skipped: null } } : {}),
+      ...(p.decision === 'power-and-frequency'
+        ? {
+            frequency: {
+              effect: -2.5,
+              ciLow: -3.4,
+              ciHigh: -1.6,
+              differenceHz: -0.98,
+              p: 0.002,
+              n: { control: 10, patient: 9 },
+              withoutPeak: { control: 0, patient: 1 },
+              skipped: null,
+            },
+          }
+        : {}),
     }));
-    const curve = { paths, nPaths: 2, nSignificant: 2, shareSignificant: 1, nSignificantMajoritySign: 2, medianEffect: -1, alpha: 0.05 } as unknown as SpecificationCurve;
+    const curve = {
+      paths,
+      nPaths: 2,
+      nSignificant: 2,
+      shareSignificant: 1,
+      nSignificantMajoritySign: 2,
+      medianEffect: -1,
+      alpha: 0.05,
+    } as unknown as SpecificationCurve;
     expect(matrixRows(curve).rows.map((r) => r.label)).toEqual(['decided on power', 'decided on power and peak centre']);
     const rows = pathRows(curve);
     expect(rows[0]).toMatchObject({ decision: 'power', centre_effect: null, centre_difference_hz: null, centre_p: null });
-    expect(rows[1]).toMatchObject({ decision: 'power and peak centre', centre_effect: -2.5, centre_difference_hz: -0.98, centre_p: 0.002, without_peak: 'control 0, patient 1' });
+    expect(rows[1]).toMatchObject({
+      decision: 'power and peak centre',
+      centre_effect: -2.5,
+      centre_difference_hz: -0.98,
+      centre_p: 0.002,
+      without_peak: 'control 0, patient 1',
+    });
   });
 
   it('dot matrix: one row per value of a varied choice, one dot per path and choice it used; share stated', () => {
-    const { choices } = pathChoicesFromParams({ measures: 'absolute,residual', references: 'recorded', averagings: 'mean', summaries: 'mean', definitions: 'fixed' }, contrast, sigma, stored);
+    const { choices } = pathChoicesFromParams(
+      { measures: 'absolute,residual', references: 'recorded', averagings: 'mean', summaries: 'mean', definitions: 'fixed' },
+      contrast,
+      sigma,
+      stored,
+    );
     const specs = enumeratePaths(choices);
     // invented effects: path i has effect (i − 3), significant when |effect| ≥ 2
-    const paths: PathResult[] = specs.map((p, i) => ({ ...p, effect: i - 3, ciLow: i - 4, ciHigh: i - 2, effectKind: 'hedges-g', p: Math.abs(i - 3) >= 2 ? 0.01 : 0.5, significant: Math.abs(i - 3) >= 2, n: { control: 10, patient: 10 }, rank: i + 1 }));
-    const curve = { paths, nPaths: 6, nSignificant: 3, shareSignificant: 3 / 6, nSignificantMajoritySign: 2, medianEffect: -0.5, alpha: 0.05 } as unknown as SpecificationCurve;
+    const paths: PathResult[] = specs.map((p, i) => ({
+      ...p,
+      effect: i - 3,
+      ciLow: i - 4,
+      ciHigh: i - 2,
+      effectKind: 'hedges-g',
+      p: Math.abs(i - 3) >= 2 ? 0.01 : 0.5,
+      significant: Math.abs(i - 3) >= 2,
+      n: { control: 10, patient: 10 },
+      rank: i + 1,
+    }));
+    const curve = {
+      paths,
+      nPaths: 6,
+      nSignificant: 3,
+      shareSignificant: 3 / 6,
+      nSignificantMajoritySign: 2,
+      medianEffect: -0.5,
+      alpha: 0.05,
+    } as unknown as SpecificationCurve;
     const { rows, fixed } = matrixRows(curve);
     expect(rows.map((r) => r.label)).toEqual(['absolute log10 power', 'residual', 'band 11–17 Hz', 'band 12–16 Hz', 'band 13–15 Hz']);
-    expect(fixed).toEqual(['reference: recorded', 'averaging: mean over epochs', 'estimator: Welch', 'summary: mean density', 'band definition: fixed band', 'decision: decided on power', 'fit range: fit 1–40 Hz']);
+    expect(fixed).toEqual([
+      'reference: recorded',
+      'averaging: mean over epochs',
+      'estimator: Welch',
+      'summary: mean density',
+      'band definition: fixed band',
+      'decision: decided on power',
+      'fit range: fit 1–40 Hz',
+    ]);
     const dots = matrixDots(curve, rows);
     expect(dots).toHaveLength(6 * 2); // each path: its measure and its band edges
     expect(dots.filter((d) => d.significant)).toHaveLength(3 * 2); // effects −3, −2 and 2
     // with both estimators stored and both band definitions ticked, each is a row of the matrix
-    const both = pathChoicesFromParams({ measures: 'residual', references: 'recorded', averagings: 'mean', edges: '0', definitions: 'fixed,individual' }, contrast, sigma, { ...stored, estimators: ['welch', 'multitaper'] }).choices;
+    const both = pathChoicesFromParams(
+      { measures: 'residual', references: 'recorded', averagings: 'mean', edges: '0', definitions: 'fixed,individual' },
+      contrast,
+      sigma,
+      { ...stored, estimators: ['welch', 'multitaper'] },
+    ).choices;
     const varied = enumeratePaths(both).map((p, i) => ({ ...p, effect: i, rank: i + 1, significant: false }) as unknown as PathResult);
     expect(matrixRows({ ...curve, paths: varied }).rows.map((r) => r.label)).toEqual(['Welch', 'multitaper', 'fixed band', 'individual band']);
     expect(shareSentence(curve)).toBe('3 of 6 paths (50 %) have p < 0.05; 2 of them have the sign of the median effect (median g = −0.50).');
     // effect sizes of different measures are not pooled (issue 23): absolute paths have effects −3, −2, −1, residual ones 0, 1, 2
-    expect(measureSentence(curve)).toBe('By measure — absolute log10 power: 2 of 3 paths with p < 0.05, median g = −2.00; residual: 1 of 3 paths with p < 0.05, median g = 1.00.');
+    expect(measureSentence(curve)).toBe(
+      'By measure — absolute log10 power: 2 of 3 paths with p < 0.05, median g = −2.00; residual: 1 of 3 paths with p < 0.05, median g = 1.00.',
+    );
   });
 });
 
-const t = (p: number, effect = 0.5) => ({ measure: 'm', n: { control: 10, patient: 10 }, statistic: 'welch-t', t: 1, df: 18, effectKind: 'hedges-g', effect, ciLow: effect - 1, ciHigh: effect + 1, level: 0.95, difference: 0.1, p, permutations: 500, exact: false, seed: 7, excluded: [] });
+const t = (p: number, effect = 0.5) => ({
+  measure: 'm',
+  n: { control: 10, patient: 10 },
+  statistic: 'welch-t',
+  t: 1,
+  df: 18,
+  effectKind: 'hedges-g',
+  effect,
+  ciLow: effect - 1,
+  ciHigh: effect + 1,
+  level: 0.95,
+  difference: 0.1,
+  p,
+  permutations: 500,
+  exact: false,
+  seed: 7,
+  excluded: [],
+});
 
 /** An invented result; its decision family is the core's own Bonferroni over the four tests. */
 function fakeResult(peakCenterP: number | null = 0.002): BandCheckResult {
-  const tests = { raw: t(0.01), offset: t(0.2), exponent: t(0.5), periodic: t(0.004, -1), peakCenter: peakCenterP === null ? null : t(peakCenterP, -2), peakWidth: peakCenterP === null ? null : t(0.7), peakHeight: t(0.03), aperiodicInBand: t(0.3), lowerFlank: null, upperFlank: t(0.4), tilt: null, relative: t(0.02) };
+  const tests = {
+    raw: t(0.01),
+    offset: t(0.2),
+    exponent: t(0.5),
+    periodic: t(0.004, -1),
+    peakCenter: peakCenterP === null ? null : t(peakCenterP, -2),
+    peakWidth: peakCenterP === null ? null : t(0.7),
+    peakHeight: t(0.03),
+    aperiodicInBand: t(0.3),
+    lowerFlank: null,
+    upperFlank: t(0.4),
+    tilt: null,
+    relative: t(0.02),
+  };
   const family = bonferroni(
     [
       { test: 'periodic', p: 0.004 },
@@ -138,16 +260,52 @@ function fakeResult(peakCenterP: number | null = 0.002): BandCheckResult {
     ],
     0.05,
   );
-  const skipped = peakCenterP === null ? 'too few subjects with a fitted peak in sigma 12–16 Hz (control 1, patient 0; the test needs 2 per group and 3 in all)' : null;
-  const peakCenter = { withPeak: { control: 10, patient: 10 }, withoutPeak: { control: 0, patient: 0 }, means: [{ name: 'control', n: 10, centerHz: 13.5, widthHz: 1.8 }, { name: 'patient', n: 10, centerHz: 12.52, widthHz: 1.75 }], skipped, note: 'Every subject has a fitted peak in sigma 12–16 Hz on at least one of the channels.' };
-  return { kind: 'band-check', contrast, band: sigma, alpha: 0.05, tests, family, peakCenter, periodicKind: 'power-and-frequency-shift', flanks: { lower: null, upper: { name: 'upper flank', loHz: 16.25, hiHz: 20 }, widthHz: 4, note: 'no room for a lower flank inside the fit range 12–40 Hz' }, p: 0.008, n: { control: 10, patient: 10 }, verdict: 'band-specific' } as unknown as BandCheckResult;
+  const skipped =
+    peakCenterP === null ? 'too few subjects with a fitted peak in sigma 12–16 Hz (control 1, patient 0; the test needs 2 per group and 3 in all)' : null;
+  const peakCenter = {
+    withPeak: { control: 10, patient: 10 },
+    withoutPeak: { control: 0, patient: 0 },
+    means: [
+      { name: 'control', n: 10, centerHz: 13.5, widthHz: 1.8 },
+      { name: 'patient', n: 10, centerHz: 12.52, widthHz: 1.75 },
+    ],
+    skipped,
+    note: 'Every subject has a fitted peak in sigma 12–16 Hz on at least one of the channels.',
+  };
+  return {
+    kind: 'band-check',
+    contrast,
+    band: sigma,
+    alpha: 0.05,
+    tests,
+    family,
+    peakCenter,
+    periodicKind: 'power-and-frequency-shift',
+    flanks: { lower: null, upper: { name: 'upper flank', loHz: 16.25, hiHz: 20 }, widthHz: 4, note: 'no room for a lower flank inside the fit range 12–40 Hz' },
+    p: 0.008,
+    n: { control: 10, patient: 10 },
+    verdict: 'band-specific',
+  } as unknown as BandCheckResult;
 }
 
 describe('band check table and ledger', () => {
   it('effects in the fixed order with peak centre and width; adjusted p for the four deciding tests = min(1, 4p); a missing flank says why', () => {
     const rows = effectRows(fakeResult());
     expect(rows.map((r) => r.effect)).toEqual(EFFECTS.map((e) => e.label));
-    expect(rows.map((r) => r.effect)).toEqual(['raw band power', 'aperiodic offset', 'aperiodic exponent', 'periodic residual', 'peak centre frequency', 'peak width', 'peak height', 'aperiodic level in the band', 'lower flank', 'upper flank', 'flank difference (upper − lower)', 'relative band power']);
+    expect(rows.map((r) => r.effect)).toEqual([
+      'raw band power',
+      'aperiodic offset',
+      'aperiodic exponent',
+      'periodic residual',
+      'peak centre frequency',
+      'peak width',
+      'peak height',
+      'aperiodic level in the band',
+      'lower flank',
+      'upper flank',
+      'flank difference (upper − lower)',
+      'relative band power',
+    ]);
     const deciding = rows.filter((r) => r.decides);
     expect(deciding.map((r) => r.effect)).toEqual(['aperiodic offset', 'aperiodic exponent', 'periodic residual', 'peak centre frequency']);
     // Bonferroni over a family of four (Bonferroni inequality, common practice)
@@ -174,7 +332,9 @@ describe('band check table and ledger', () => {
     expect(periodicKindText('power')).toBe('a change of the periodic power (no shift of the peak frequency found)');
     expect(periodicKindText('power-and-frequency-shift')).toBe('a change of the periodic power and a shift of the peak frequency');
     expect(periodicKindText(null)).toBeNull();
-    expect(familyText(fakeResult())).toBe('periodic power, peak centre frequency, aperiodic offset and aperiodic exponent: 4 tests, Bonferroni-corrected at α = 0.05 (each passes at p ≤ 0.0125)');
+    expect(familyText(fakeResult())).toBe(
+      'periodic power, peak centre frequency, aperiodic offset and aperiodic exponent: 4 tests, Bonferroni-corrected at α = 0.05 (each passes at p ≤ 0.0125)',
+    );
     expect(peakCentreText(fakeResult())).toBe(
       'Mean centre of the highest fitted peak in the band: 13.50 Hz in control (width 1.80 Hz, n 10), 12.52 Hz in patient (width 1.75 Hz, n 10). Every subject has a fitted peak in sigma 12–16 Hz on at least one of the channels.',
     );
@@ -182,7 +342,14 @@ describe('band check table and ledger', () => {
 
   it('browser ledger counts equal src/core/report ledgerCounts; a band check entry records its band and adjusted p', () => {
     const entry = bandCheckLedgerEntry(fakeResult(), 2, '2026-01-01T00:00:00.000Z');
-    expect(entry).toEqual({ time: '2026-01-01T00:00:00.000Z', kind: 'band-check', contrast: { ...contrast, band: sigma }, smallestP: 0.008, n: { control: 10, patient: 10 }, exclusions: 2 });
+    expect(entry).toEqual({
+      time: '2026-01-01T00:00:00.000Z',
+      kind: 'band-check',
+      contrast: { ...contrast, band: sigma },
+      smallestP: 0.008,
+      n: { control: 10, patient: 10 },
+      exclusions: 2,
+    });
     const contrastEntry = (p: number | null): LedgerEntry => ({ time: 'x', contrast, smallestP: p, n: {}, exclusions: 0 });
     const list: LedgerEntry[] = [contrastEntry(0.001), contrastEntry(null), contrastEntry(0.05), entry];
     expect(list.map(entryKind)).toEqual(['compare', 'compare', 'compare', 'band-check']);

@@ -79,7 +79,7 @@ describe('the workflow in the dashboard (duckdb-wasm) on a blinded split', () =>
     expect([w.split, w.view, w.plans]).toEqual([null, null, []]);
   });
 
-  it('contrast rows: the exploration part, coded, row for row as the command line\'s client reads them; real group names refused; the confirmation part unblinded', async () => {
+  it("contrast rows: the exploration part, coded, row for row as the command line's client reads them; real group names refused; the confirmation part unblinded", async () => {
     const c = parseContrast({ design: 'groups', groups: ['group A', 'group B'], stage: 'N2', fminHz: 1, fmaxHz: 20 });
     const ours = await loadContrastData(client, schema, await runs(client), c, []);
     const theirs = await withDatabase(file, async (db) => loadContrastData(db, await cohortSchema(db), await runs(db), c, []));
@@ -94,14 +94,25 @@ describe('the workflow in the dashboard (duckdb-wasm) on a blinded split', () =>
     expect(ours.data.spectra.rows.every((r) => explored.has(r.subject))).toBe(true);
     expect(ours.data.participants.map((p) => [p.subject, p.group])).toEqual(theirs.data.participants.map((p) => [p.subject, p.group]));
     expect(new Set(ours.data.participants.map((p) => p.group))).toEqual(new Set(['group A', 'group B']));
-    await expect(loadContrastData(client, schema, await runs(client), parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2' }), [])).rejects.toThrow('are blinded while exploring');
-    const held = await loadContrastData(client, schema, await runs(client), parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2' }), [], { part: 'confirmation' });
+    await expect(
+      loadContrastData(client, schema, await runs(client), parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2' }), []),
+    ).rejects.toThrow('are blinded while exploring');
+    const held = await loadContrastData(
+      client,
+      schema,
+      await runs(client),
+      parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2' }),
+      [],
+      { part: 'confirmation' },
+    );
     expect(held.view).toMatchObject({ part: 'confirmation', blinding: null });
-    expect(new Set(held.data.spectra.rows.map((r) => r.subject))).toEqual(new Set([...split.split.parts].filter(([, p]) => p === 'confirmation').map(([s]) => s)));
+    expect(new Set(held.data.spectra.rows.map((r) => r.subject))).toEqual(
+      new Set([...split.split.parts].filter(([, p]) => p === 'confirmation').map(([s]) => s)),
+    );
     expect(new Set(held.data.participants.map((p) => p.group))).toEqual(new Set(['control', 'patient']));
   });
 
-  it('robustness and spectra rows, and the form\'s group values: the exploration part, coded', async () => {
+  it("robustness and spectra rows, and the form's group values: the exploration part, coded", async () => {
     const c = parseContrast({ design: 'groups', groups: ['group A', 'group B'], stage: 'N2' });
     const explored = [...split.split.parts].filter(([, p]) => p === 'exploration').map(([s]) => s);
     for (const set of await loadPathDataSets(client, schema, await runs(client), c, [{ reference: 'recorded', averaging: 'mean' }], [])) {
@@ -114,7 +125,7 @@ describe('the workflow in the dashboard (duckdb-wasm) on a blinded split', () =>
     expect((await loadChoices(client, schema)).textColumns.get('group')).toEqual(['group A', 'group B']);
   });
 
-  it('cohort view: the blinded column neither shown nor offered; each subject\'s part added', async () => {
+  it("cohort view: the blinded column neither shown nor offered; each subject's part added", async () => {
     const w = await readWorkflow(client, schema);
     expect(chooseGroupColumn(schema, 'group', 'group')).toBe('sex');
     const cohort = await loadCohort(client, schema, 'sex', w);

@@ -36,9 +36,7 @@ describe('dashboard in chromium: cohort view', () => {
     await page.goto(`${s.server.url}#/cohort`);
     const sizes = page.getByTestId('group-sizes').locator('tbody tr');
     await sizes.first().waitFor({ timeout: 60_000 });
-    const cells = await sizes.evaluateAll((rows) =>
-      rows.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim())),
-    );
+    const cells = await sizes.evaluateAll((rows) => rows.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim())));
     const expected = ['control', 'patient'].map((g) => {
       const members = FIXTURE_PARTICIPANTS.filter((p) => p.group === g);
       const ingested = String(members.filter((p) => p.ingested).length);
@@ -46,9 +44,7 @@ describe('dashboard in chromium: cohort view', () => {
     });
     expect(cells).toEqual(expected);
 
-    await expect
-      .poll(() => page.getByTestId('recordings').locator('tbody tr').count())
-      .toBe(FIXTURE_PARTICIPANTS.filter((p) => p.ingested).length);
+    await expect.poll(() => page.getByTestId('recordings').locator('tbody tr').count()).toBe(FIXTURE_PARTICIPANTS.filter((p) => p.ingested).length);
     const arch = await page.getByTestId('sleep-architecture').locator('thead').innerText();
     for (const h of ['N2 (min)', 'Total sleep (min)', 'Sleep efficiency (%)', 'N3 (% sleep)']) expect(arch).toContain(h);
     await expect.poll(() => page.getByTestId('participants').locator('tbody tr').count()).toBe(FIXTURE_PARTICIPANTS.length);
@@ -87,9 +83,7 @@ describe('dashboard in chromium: cohort view', () => {
     const { page } = s;
     await page.getByTestId('group-column').selectOption('sex');
     expect(new URL(page.url()).hash).toBe('#/cohort?by=sex');
-    await expect
-      .poll(() => page.getByTestId('group-sizes').locator('tbody tr td:first-child').allInnerTexts())
-      .toEqual(['F', 'M']);
+    await expect.poll(() => page.getByTestId('group-sizes').locator('tbody tr td:first-child').allInnerTexts()).toEqual(['F', 'M']);
     await page.getByRole('link', { name: 'Quality screen' }).click();
     await page.getByTestId('quality-view').waitFor();
     expect(new URL(page.url()).hash).toBe('#/quality');
@@ -101,32 +95,20 @@ describe('dashboard in chromium: cohort view', () => {
 
   it('exports tables as TSV and figures as SVG and PNG', async () => {
     const { page } = s;
-    const [tsv] = await Promise.all([
-      page.waitForEvent('download'),
-      page.getByTestId('group-sizes').getByRole('button', { name: 'Export TSV' }).click(),
-    ]);
+    const [tsv] = await Promise.all([page.waitForEvent('download'), page.getByTestId('group-sizes').getByRole('button', { name: 'Export TSV' }).click()]);
     const text = readFileSync(await tsv.path(), 'utf8');
     const females = FIXTURE_PARTICIPANTS.filter((p) => p.sex === 'F');
     const femaleRecordings = females.filter((p) => p.ingested).length;
     expect(text.split('\n')[0]).toBe('group\tsubjects\trecordings\twithSpectra');
     expect(text).toContain(`F\t${females.length}\t${femaleRecordings}\t${femaleRecordings}\n`);
-    const [svg] = await Promise.all([
-      page.waitForEvent('download'),
-      page.getByTestId('group-size-figure').getByRole('button', { name: 'SVG' }).click(),
-    ]);
+    const [svg] = await Promise.all([page.waitForEvent('download'), page.getByTestId('group-size-figure').getByRole('button', { name: 'SVG' }).click()]);
     expect(readFileSync(await svg.path(), 'utf8')).toMatch(/^<\?xml[^]*<svg[^]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
     // the stage figure has a legend: both the legend and the plot end up in the one SVG file
-    const [stages] = await Promise.all([
-      page.waitForEvent('download'),
-      page.getByTestId('stage-figure').getByRole('button', { name: 'SVG' }).click(),
-    ]);
+    const [stages] = await Promise.all([page.waitForEvent('download'), page.getByTestId('stage-figure').getByRole('button', { name: 'SVG' }).click()]);
     const stageSvg = readFileSync(await stages.path(), 'utf8');
     expect(stageSvg.match(/<svg/g)?.length).toBe(3);
     for (const label of ['N1', 'N3', 'sub-01', 'minutes']) expect(stageSvg).toContain(`>${label}`);
-    const [png] = await Promise.all([
-      page.waitForEvent('download'),
-      page.getByTestId('group-size-figure').getByRole('button', { name: 'PNG' }).click(),
-    ]);
+    const [png] = await Promise.all([page.waitForEvent('download'), page.getByTestId('group-size-figure').getByRole('button', { name: 'PNG' }).click()]);
     // PNG signature, PNG specification (ISO/IEC 15948) §5.2
     expect([...readFileSync(await png.path()).subarray(0, 8)]).toEqual([137, 80, 78, 71, 13, 10, 26, 10]);
   });

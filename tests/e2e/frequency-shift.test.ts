@@ -35,7 +35,9 @@ describe('dashboard band check on a planted spindle-frequency shift', () => {
 
   it('sigma 11–16 Hz over C3, C4, P3, P4: band-specific, a shift of the peak frequency, the centre row passing', async () => {
     const { page } = s;
-    await page.goto(`${s.server.url}#/band-check?design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&permutations=1000&seed=1&channels=C3,C4,P3,P4&band=sigma:11-16`);
+    await page.goto(
+      `${s.server.url}#/band-check?design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&permutations=1000&seed=1&channels=C3,C4,P3,P4&band=sigma:11-16`,
+    );
     await page.getByTestId('band-check-form').waitFor({ timeout: 60_000 });
     await expect.poll(() => page.getByTestId('run-band-check').isEnabled(), { timeout: 60_000 }).toBe(true);
     await page.getByTestId('run-band-check').click();
@@ -43,12 +45,17 @@ describe('dashboard band check on a planted spindle-frequency shift', () => {
     expect(await page.getByTestId('verdict-word').innerText()).toBe('band-specific');
     expect(await page.getByTestId('verdict-kind').innerText()).toMatch(/shift of the peak frequency/);
     expect(await page.getByTestId('verdict-sentence').innerText()).toMatch(/the sigma peak is (0\.[7-9]|1\.[0-3]) Hz lower in patient than in control/);
-    const rows = await page.getByTestId('effects-table').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
+    const rows = await page
+      .getByTestId('effects-table')
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
     const centre = rows.find((x) => x[0] === 'peak centre frequency')!;
     expect(centre[7]).toBe('yes');
     expect(Number(centre[6])).toBeCloseTo(Math.min(1, 4 * Number(centre[5])), 3);
     expect(Number(centre[6])).toBeLessThanOrEqual(0.05);
-    const means = Object.fromEntries([...(await page.getByTestId('peak-centre').innerText()).matchAll(/(\d+\.\d\d) Hz in (control|patient)/g)].map((m) => [m[2], Number(m[1])]));
+    const means = Object.fromEntries(
+      [...(await page.getByTestId('peak-centre').innerText()).matchAll(/(\d+\.\d\d) Hz in (control|patient)/g)].map((m) => [m[2], Number(m[1])]),
+    );
     expect(Math.abs(means.control - 13.5)).toBeLessThan(0.3);
     expect(Math.abs(means.patient - 12.5)).toBeLessThan(0.3);
     await page.screenshot({ path: path.join(OUTPUT, 'band-check-shift.png'), fullPage: true });

@@ -41,7 +41,7 @@ describe('dashboard in chromium on the demo database: power and deviation', () =
     if (dir) rmSync(dir, { recursive: true, force: true });
   });
 
-  it('power: the curve of the address\'s settings, equal to the same simulations in node', async () => {
+  it("power: the curve of the address's settings, equal to the same simulations in node", async () => {
     const { page } = s;
     await page.goto(`${s.server.url}#/power?${POWER}`);
     await page.getByTestId('power-form').waitFor({ timeout: 60_000 });
@@ -49,18 +49,23 @@ describe('dashboard in chromium on the demo database: power and deviation', () =
     await page.getByTestId('run-power').click();
     await page.getByTestId('power-result').waitFor({ timeout: 120_000 });
     await page.getByTestId('power-figure').locator('svg').first().waitFor();
-    const rows = await page.getByTestId('power-table').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
+    const rows = await page
+      .getByTestId('power-table')
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
     const { contrast, plan } = powerFromParams(Object.fromEntries(new URLSearchParams(POWER)));
     const expected = simulatePower(contrast, plan, await readData(contrast)).curve;
     console.log(`power on the demo: ${rows.map((r) => `n ${r[0]}: ${r[1]} [${r[2]}, ${r[3]}]`).join('; ')}`);
-    expect(rows.map((r) => [Number(r[0]), r[1], r[2], r[3], Number(r[4])])).toEqual(expected.map((p) => [p.nPerGroup, p.power.toFixed(3), p.ciLow.toFixed(3), p.ciHigh.toFixed(3), p.found]));
+    expect(rows.map((r) => [Number(r[0]), r[1], r[2], r[3], Number(r[4])])).toEqual(
+      expected.map((p) => [p.nPerGroup, p.power.toFixed(3), p.ciLow.toFixed(3), p.ciHigh.toFixed(3), p.found]),
+    );
     expect(await page.getByTestId('power-summary').innerText()).toContain('drawn from group = control (17 subjects)');
     expect(new URL(page.url()).hash).toContain('run=1');
     await page.screenshot({ path: path.join(OUTPUT, 'power.png'), fullPage: true });
     expect(s.consoleErrors).toEqual([]);
   });
 
-  it('deviation: the cohort view\'s subject link opens its map; shares equal node\'s', async () => {
+  it("deviation: the cohort view's subject link opens its map; shares equal node's", async () => {
     const { page } = s;
     await page.goto(`${s.server.url}#/cohort`);
     const link = page.getByTestId('recordings').locator('tbody a', { hasText: 'pat04' });
@@ -75,7 +80,10 @@ describe('dashboard in chromium on the demo database: power and deviation', () =
     const pat04 = r.subjects.find((x) => x.subject === 'pat04')!;
     console.log(`deviation on the demo: ${heading}`);
     expect(heading).toBe(`pat04 (patient): ${(100 * pat04.share).toFixed(1)} % of points beyond |z| > 2, mean z ${pat04.meanZ.toFixed(2)}`);
-    const groups = await page.getByTestId('deviation-groups').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
+    const groups = await page
+      .getByTestId('deviation-groups')
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
     expect(groups.map((g) => [g[0], Number(g[1]), g[2]])).toEqual(r.groups.map((g) => [g.group, g.n, g.shares.median.toFixed(3)]));
     // another channel's spectrum, then another subject from the table
     await page.getByTestId('deviation-channel').selectOption('Pz');

@@ -19,7 +19,20 @@ const OUTPUT = path.resolve('test-output/e2e');
 const BASE = 'design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&permutations=1000&seed=1';
 const CENTRO_PARIETAL = 'C3,C4,Cz,P3,P4,Pz';
 
-const EFFECT_NAMES = ['raw band power', 'aperiodic offset', 'aperiodic exponent', 'periodic residual', 'peak centre frequency', 'peak width', 'peak height', 'aperiodic level in the band', 'lower flank', 'upper flank', 'flank difference (upper − lower)', 'relative band power'];
+const EFFECT_NAMES = [
+  'raw band power',
+  'aperiodic offset',
+  'aperiodic exponent',
+  'periodic residual',
+  'peak centre frequency',
+  'peak width',
+  'peak height',
+  'aperiodic level in the band',
+  'lower flank',
+  'upper flank',
+  'flank difference (upper − lower)',
+  'relative band power',
+];
 
 const count = (t: string) => Number(/run on this database: (\d+)/.exec(t)![1]);
 
@@ -73,7 +86,10 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
     expect(r.verdict).toBe('broadband-offset');
     expect(r.sentence).toMatch(/^Broadband offset shift: the aperiodic offset .* is higher in patient than in control/);
     expect(r.after).toBe(r.before + 1);
-    const rows = await s.page.getByTestId('effects-table').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
+    const rows = await s.page
+      .getByTestId('effects-table')
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
     expect(rows.map((x) => x[0])).toEqual(EFFECT_NAMES);
     // Bonferroni over the four deciding tests (common practice): adjusted p = min(1, 4p), shown to 4 decimals
     const deciding = rows.filter((x) => x[7] === 'yes');
@@ -94,8 +110,13 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
     expect(r.sentence).toMatch(/^Band-specific: the periodic sigma power .* is lower in patient than in control/);
     expect(r.after).toBe(r.before + 1);
     // the scenario halves the spindles' amplitude and leaves their frequency: a power change, no shift
-    expect(await s.page.getByTestId('verdict-kind').innerText()).toBe("In the band's periodic part: a change of the periodic power (no shift of the peak frequency found).");
-    const rows = await s.page.getByTestId('effects-table').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
+    expect(await s.page.getByTestId('verdict-kind').innerText()).toBe(
+      "In the band's periodic part: a change of the periodic power (no shift of the peak frequency found).",
+    );
+    const rows = await s.page
+      .getByTestId('effects-table')
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
     expect(rows.map((x) => x[0])).toEqual(EFFECT_NAMES);
     const centre = rows.find((x) => x[0] === 'peak centre frequency')!;
     expect(Number(centre[6])).toBeCloseTo(Math.min(1, 4 * Number(centre[5])), 3);
@@ -169,14 +190,19 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
 
   it('robustness decided on power and on power and the peak centre: each path twice, the centre test in the table', async () => {
     const { page } = s;
-    await page.goto(`${s.server.url}#/robustness?${BASE}&channels=${CENTRO_PARIETAL}&band=sigma:12-16&measures=residual&edges=0&decisions=power,power-and-frequency`);
+    await page.goto(
+      `${s.server.url}#/robustness?${BASE}&channels=${CENTRO_PARIETAL}&band=sigma:12-16&measures=residual&edges=0&decisions=power,power-and-frequency`,
+    );
     await page.getByTestId('robustness-form').waitFor({ timeout: 60_000 });
     const expected = stored.fits * stored.references * stored.averagings * 2;
     await expect.poll(() => page.getByTestId('rb-path-count').innerText(), { timeout: 60_000 }).toContain(`${expected} paths × 1000 permutations`);
     expect(await page.getByTestId('rb-decision-power-and-frequency').isChecked()).toBe(true);
     await page.getByTestId('run-robustness').click();
     await page.getByTestId('robustness-decision').waitFor({ timeout: 120_000 });
-    const rows = await page.getByTestId('paths-table').locator('tbody tr').evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
+    const rows = await page
+      .getByTestId('paths-table')
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((t) => Array.from(t.querySelectorAll('td'), (d) => d.textContent?.trim() ?? '')));
     expect(rows).toHaveLength(expected);
     // columns: rank, path, choices, effect, CI low, CI high, p, significant, n, decided on, centre effect, centre difference, centre p, without a peak
     const both = rows.filter((r) => r[9] === 'power and peak centre');

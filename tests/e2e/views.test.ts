@@ -34,14 +34,19 @@ interface Truth {
  * channel and frequency and the spindle reduction stays at cluster p ≈ 0.11 (measured) — the
  * scenario's point; the residual takes the offset out.
  */
-const PLANTED = '#/contrast?design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=30&measure=residual&correction=cluster-mass&permutations=1000&seed=1';
+const PLANTED =
+  '#/contrast?design=groups&groupColumn=group&groups=control,patient&stage=N2&reference=recorded&channels=all&fminHz=1&fmaxHz=30&measure=residual&correction=cluster-mass&permutations=1000&seed=1';
 
 describe('dashboard in chromium on the demo database: quality, spectra, contrast', () => {
   let dir: string;
   let demoPath: string;
   let truth: Truth;
   let s: DashboardSession;
-  const participants = readFileSync(path.resolve('demo-cohort/participants.tsv'), 'utf8').trim().split('\n').slice(1).map((l) => l.split('\t'));
+  const participants = readFileSync(path.resolve('demo-cohort/participants.tsv'), 'utf8')
+    .trim()
+    .split('\n')
+    .slice(1)
+    .map((l) => l.split('\t'));
 
   beforeAll(async () => {
     demoPath = await demoDatabase();
@@ -61,7 +66,10 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     const { page } = s;
     await page.goto(`${s.server.url}#/cohort`);
     await page.getByTestId('group-sizes').locator('tbody tr').first().waitFor({ timeout: 60_000 });
-    const cells = await page.getByTestId('group-sizes').locator('tbody tr').evaluateAll((rows) => rows.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim())));
+    const cells = await page
+      .getByTestId('group-sizes')
+      .locator('tbody tr')
+      .evaluateAll((rows) => rows.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim())));
     // demoDatabase() fails loudly when a recording fails to ingest, so every participant has one recording
     const expected = ['control', 'patient'].map((g) => {
       const members = String(participants.filter((p) => p[1] === g).length);
@@ -75,8 +83,13 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     await page.getByRole('link', { name: 'Quality screen' }).click();
     await page.getByTestId('quality-grid').locator('svg').first().waitFor({ timeout: 60_000 });
     const flags = page.getByTestId('quality-flags');
-    await flags.getByRole('button', { name: 'Show all' }).click().catch(() => undefined);
-    const rows = await flags.locator('tbody tr').evaluateAll((trs) => trs.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim() ?? '')));
+    await flags
+      .getByRole('button', { name: 'Show all' })
+      .click()
+      .catch(() => undefined);
+    const rows = await flags
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim() ?? '')));
     const flagged = (subject: string, metric: string) => rows.filter((r) => r[0] === subject && r[3] === metric);
     const planted = truth.subjects.filter((t) => t.artifacts.length > 0);
     expect(planted.map((t) => t.artifacts[0].kind).sort()).toEqual(['flat', 'mains', 'movement']);
@@ -109,7 +122,9 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     await page.locator(`[data-testid=quality-grid] rect[data-cell="${hummed}|Cz"]`).click();
     await page.getByTestId('cell-spectrum').locator('svg').first().waitFor({ timeout: 30_000 });
     // the detail opens in view (issue 23): its top lies inside the window
-    expect(await page.getByTestId('cell-detail').evaluate((el) => el.getBoundingClientRect().top >= 0 && el.getBoundingClientRect().top < window.innerHeight)).toBe(true);
+    expect(
+      await page.getByTestId('cell-detail').evaluate((el) => el.getBoundingClientRect().top >= 0 && el.getBoundingClientRect().top < window.innerHeight),
+    ).toBe(true);
     expect(new URL(page.url()).hash).toContain(`subject=${hummed}`);
     expect(await page.getByTestId('cell-reasons').innerText()).toContain('50 Hz');
     await page.getByTestId('cell-band-power').locator('svg').first().waitFor();
@@ -142,7 +157,10 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     await page.getByTestId('contrast-result').waitFor({ timeout: 120_000 });
     await expect.poll(() => page.getByTestId('run-contrast').isEnabled()).toBe(true);
     const n = await page.getByTestId('contrast-n').innerText();
-    const clusters = await page.getByTestId('cluster-table').locator('tbody tr').evaluateAll((trs) => trs.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim() ?? '')));
+    const clusters = await page
+      .getByTestId('cluster-table')
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim() ?? '')));
     return { n, clusters };
   }
 
@@ -188,7 +206,18 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     const { page } = s;
     const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId('save-contrast').click()]);
     const saved = parseContrast(JSON.parse(readFileSync(await dl.path(), 'utf8')));
-    expect(saved).toMatchObject({ design: 'groups', groupColumn: 'group', groups: ['control', 'patient'], stage: 'N2', measure: 'residual', fminHz: 1, fmaxHz: 30, correction: 'cluster-mass', permutations: 1000, seed: 1 });
+    expect(saved).toMatchObject({
+      design: 'groups',
+      groupColumn: 'group',
+      groups: ['control', 'patient'],
+      stage: 'N2',
+      measure: 'residual',
+      fminHz: 1,
+      fmaxHz: 30,
+      correction: 'cluster-mass',
+      permutations: 1000,
+      seed: 1,
+    });
   });
 
   it('contrast: a saved link reopens the same result', async () => {
@@ -199,7 +228,10 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     await page.goto(resultLink);
     await page.getByTestId('contrast-result').waitFor({ timeout: 120_000 });
     await page.getByTestId('cluster-table').locator('tbody tr').first().waitFor();
-    const clusters = await page.getByTestId('cluster-table').locator('tbody tr').evaluateAll((trs) => trs.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim() ?? '')));
+    const clusters = await page
+      .getByTestId('cluster-table')
+      .locator('tbody tr')
+      .evaluateAll((trs) => trs.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent?.trim() ?? '')));
     expect(JSON.stringify(clusters)).toBe(clusterText);
     await page.close();
   });

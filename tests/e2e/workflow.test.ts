@@ -42,7 +42,15 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     const db = path.join(dir, 'cohort.duckdb');
     copyFileSync(await demoDatabase(), db);
     split = await makeSplit(db, { fraction: 0.5, seed: 11, stratify: ['group'], blindColumn: 'group', replace: false }, null);
-    planId = (await lockPlan(db, [parseContrast({ design: 'groups', groups: ['group A', 'group B'], stage: 'N2', measure: 'residual', permutations: 200 })], [], undefined, null)).plan.id;
+    planId = (
+      await lockPlan(
+        db,
+        [parseContrast({ design: 'groups', groups: ['group A', 'group B'], stage: 'N2', measure: 'residual', permutations: 200 })],
+        [],
+        undefined,
+        null,
+      )
+    ).plan.id;
     // the confirmation as `bandwise confirm` runs it (200 permutations keep it short)
     [confirmation] = await confirmPlan(db, planId, { ledger: path.join(dir, 'ledger.jsonl') });
     writeFileSync(path.join(dir, 'confirmation.json'), JSON.stringify(confirmation));
@@ -74,10 +82,16 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     const { page } = s;
     await page.goto(`${s.server.url}#/workflow`);
     await page.getByTestId('workflow-view').waitFor({ timeout: 60_000 });
-    expect(await page.getByTestId('split-state').innerText()).toContain(`Split ${split.split.stamp.id}, made ${split.split.stamp.madeAt}: exploration 18 subjects, confirmation 18 (seed 11, 50 % of each stratum for exploration, stratified by group)`);
+    expect(await page.getByTestId('split-state').innerText()).toContain(
+      `Split ${split.split.stamp.id}, made ${split.split.stamp.madeAt}: exploration 18 subjects, confirmation 18 (seed 11, 50 % of each stratum for exploration, stratified by group)`,
+    );
     expect(await page.getByTestId('blind-state').innerText()).toContain('the groups of "group" show as group A, group B');
     await page.getByTestId('plans').locator('tbody tr').first().waitFor();
-    const row = await page.getByTestId('plans').locator('tbody tr').first().evaluate((tr) => Array.from(tr.querySelectorAll('td'), (td) => td.textContent?.trim() ?? ''));
+    const row = await page
+      .getByTestId('plans')
+      .locator('tbody tr')
+      .first()
+      .evaluate((tr) => Array.from(tr.querySelectorAll('td'), (td) => td.textContent?.trim() ?? ''));
     expect(row[0]).toBe(planId);
     expect(row).toContain(confirmedAt);
     expect(row[4]).toContain('group B − group A (group), N2, residual');
@@ -89,7 +103,7 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     await page.screenshot({ path: path.join(OUTPUT, 'workflow.png'), fullPage: true });
   });
 
-  it('cohort: the blinded column neither shown nor offered; each subject\'s part shown', async () => {
+  it("cohort: the blinded column neither shown nor offered; each subject's part shown", async () => {
     const { page } = s;
     await page.goto(`${s.server.url}#/cohort?by=group`);
     await page.getByTestId('participants').locator('tbody tr').first().waitFor({ timeout: 60_000 });
@@ -101,7 +115,7 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     await blinded('cohort view');
   });
 
-  it('quality screen stays available on every subject of both parts, a cell\'s detail included, and shows no group', async () => {
+  it("quality screen stays available on every subject of both parts, a cell's detail included, and shows no group", async () => {
     const { page } = s;
     await page.goto(`${s.server.url}#/quality?subject=pat07&channel=Cz`);
     await page.getByTestId('quality-grid').locator('svg').first().waitFor({ timeout: 60_000 });

@@ -69,12 +69,21 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   });
 
   it('header byte count that disagrees with 256 + 256·ns (EDF 1992 §2.1)', async () => {
-    const e = await expectFormatError(variantOf((h) => (h.headerBytes = '1000')), 'number of bytes in header', '1000');
+    const e = await expectFormatError(
+      variantOf((h) => (h.headerBytes = '1000')),
+      'number of bytes in header',
+      '1000',
+    );
     expect(e.message).toContain('1024');
   });
 
   it('version other than "0" (EDF) or 0xFF "BIOSEMI" (BDF): the field is not quoted (a file that is not EDF can start with any text)', async () => {
-    const e = await expectFormatError(variantOf((h) => (h.version = '1')), 'version', 'content withheld', /not an EDF or BDF file/);
+    const e = await expectFormatError(
+      variantOf((h) => (h.version = '1')),
+      'version',
+      'content withheld',
+      /not an EDF or BDF file/,
+    );
     expect(e.message).not.toMatch(/"1"/);
   });
 
@@ -97,7 +106,11 @@ describe('bad-input catalogue (each a real malformed file)', () => {
     ['digital maximum', 'dmax', '2k', 'content withheld'],
     ['number of samples in each data record', 'spr', 'four', 'content withheld'],
   ] as const)('non-numeric signal field: %s of signal 1', async (field, key, value, shown) => {
-    const e = await expectFormatError(variantOf((h) => (h.signals[0][key] = value)), field, shown);
+    const e = await expectFormatError(
+      variantOf((h) => (h.signals[0][key] = value)),
+      field,
+      shown,
+    );
     expect(e.message).toContain('signal 1 ("EEG C3-M2")');
   });
 
@@ -114,7 +127,12 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   });
 
   it('digital limit outside 16 bits', async () => {
-    await expectFormatError(variantOf((h) => (h.signals[0].dmax = '40000')), 'digital maximum', '40000', /16-bit/);
+    await expectFormatError(
+      variantOf((h) => (h.signals[0].dmax = '40000')),
+      'digital maximum',
+      '40000',
+      /16-bit/,
+    );
   });
 
   it('physical minimum equal to physical maximum', async () => {
@@ -130,25 +148,33 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   });
 
   it('zero signals', async () => {
-    await expectFormatError(
-      save(handEdf({ ...goodEdfPlusSpec(), signals: [], data: new Uint8Array(0) })),
-      'number of signals',
-      '0',
-      /at least one signal/,
-    );
+    await expectFormatError(save(handEdf({ ...goodEdfPlusSpec(), signals: [], data: new Uint8Array(0) })), 'number of signals', '0', /at least one signal/);
   });
 
   it.each(['0', '-4'])('samples per record %s (not positive)', async (spr) => {
-    await expectFormatError(variantOf((h) => (h.signals[1].spr = spr)), 'number of samples in each data record', spr, /not positive/);
+    await expectFormatError(
+      variantOf((h) => (h.signals[1].spr = spr)),
+      'number of samples in each data record',
+      spr,
+      /not positive/,
+    );
   });
 
   it('record count larger than the file holds', async () => {
-    const e = await expectFormatError(variantOf((h) => (h.nRecords = '5')), 'number of data records', '5');
+    const e = await expectFormatError(
+      variantOf((h) => (h.nRecords = '5')),
+      'number of data records',
+      '5',
+    );
     expect(e.message).toMatch(/hold 3 records of 42 bytes/);
   });
 
   it('record count smaller than the file holds', async () => {
-    await expectFormatError(variantOf((h) => (h.nRecords = '1')), 'number of data records', '1');
+    await expectFormatError(
+      variantOf((h) => (h.nRecords = '1')),
+      'number of data records',
+      '1',
+    );
   });
 
   it('a final partial record is tolerated with a warning and ignored', async () => {
@@ -174,7 +200,9 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   it('record count -1 is derived from the file size with a warning', async () => {
     const f = await openEdf(variantOf((h) => (h.nRecords = '-1')));
     expect(f.header.nRecords).toBe(3);
-    expect(f.header.warnings).toEqual([{ field: 'number of data records', message: 'number of data records is -1 (unknown); 3 records derived from the file size' }]);
+    expect(f.header.warnings).toEqual([
+      { field: 'number of data records', message: 'number of data records is -1 (unknown); 3 records derived from the file size' },
+    ]);
     await f.close();
   });
 
@@ -196,7 +224,12 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   }
 
   it('annotation onset with a bad character (EDF+ 2003 §2.2.2: only + - . 0-9)', async () => {
-    const e = await expectFormatError(withRecordTal(2, '+1.0\x14\x14\x00+1.2a\x14Spindle\x14\x00'), 'annotations', 'TAL 2', /TAL 2: the onset \(5 bytes, content withheld\) is not a signed number/);
+    const e = await expectFormatError(
+      withRecordTal(2, '+1.0\x14\x14\x00+1.2a\x14Spindle\x14\x00'),
+      'annotations',
+      'TAL 2',
+      /TAL 2: the onset \(5 bytes, content withheld\) is not a signed number/,
+    );
     expect(e.record).toBe(2);
     expect(e.message).toContain('data record 3');
     expect(e.message).not.toContain('1.2a');
@@ -207,7 +240,12 @@ describe('bad-input catalogue (each a real malformed file)', () => {
   });
 
   it('annotation duration with a sign', async () => {
-    await expectFormatError(withRecordTal(1, '+0.5\x14\x14\x00+0.6\x15-3\x14Spindle\x14\x00'), 'annotations', '+0.6', /TAL 2 at onset \+0\.6: the duration \(2 bytes, content withheld\) is not an unsigned number/);
+    await expectFormatError(
+      withRecordTal(1, '+0.5\x14\x14\x00+0.6\x15-3\x14Spindle\x14\x00'),
+      'annotations',
+      '+0.6',
+      /TAL 2 at onset \+0\.6: the duration \(2 bytes, content withheld\) is not an unsigned number/,
+    );
   });
 
   it('annotation onset not followed by \\x14', async () => {
@@ -291,11 +329,21 @@ describe('BDF/BDF+ catalogue (24-bit; hand-built from goodBdfPlusSpec, 63-byte r
   });
 
   it('digital limit outside 24 bits', async () => {
-    await expectFormatError(bdfVariant((h) => (h.signals[0].dmax = '8388608')), 'digital maximum', '8388608', /outside the 24-bit range -8388608\.\.8388607 of BDF\+C/);
+    await expectFormatError(
+      bdfVariant((h) => (h.signals[0].dmax = '8388608')),
+      'digital maximum',
+      '8388608',
+      /outside the 24-bit range -8388608\.\.8388607 of BDF\+C/,
+    );
   });
 
   it('a 24-bit digital limit in a 16-bit EDF file', async () => {
-    await expectFormatError(variantOf((h) => (h.signals[0].dmin = '-8388608')), 'digital minimum', '-8388608', /16-bit range -32768\.\.32767 of EDF\+C/);
+    await expectFormatError(
+      variantOf((h) => (h.signals[0].dmin = '-8388608')),
+      'digital minimum',
+      '-8388608',
+      /16-bit range -32768\.\.32767 of EDF\+C/,
+    );
   });
 
   it.each([
@@ -309,7 +357,12 @@ describe('BDF/BDF+ catalogue (24-bit; hand-built from goodBdfPlusSpec, 63-byte r
     ['a BDF+ mark with the EDF version "0"', 'BDF+C', /a mark of BDF files, but the version field is that of EDF/],
     ['"24BIT" with the EDF version "0"', '24BIT', /a mark of BDF files/],
   ])('reserved field: %s', async (_, reserved, extra) => {
-    await expectFormatError(variantOf((h) => (h.reserved = reserved)), 'reserved', reserved, extra);
+    await expectFormatError(
+      variantOf((h) => (h.reserved = reserved)),
+      'reserved',
+      reserved,
+      extra,
+    );
   });
 
   it('BDF+D without a "BDF Annotations" signal', async () => {
@@ -334,15 +387,21 @@ describe('BDF/BDF+ catalogue (24-bit; hand-built from goodBdfPlusSpec, 63-byte r
   });
 
   it('record count larger than the file holds: counted in 3-byte samples', async () => {
-    const e = await expectFormatError(bdfVariant((h) => (h.nRecords = '4')), 'number of data records', '4');
+    const e = await expectFormatError(
+      bdfVariant((h) => (h.nRecords = '4')),
+      'number of data records',
+      '4',
+    );
     expect(e.message).toContain('189 data bytes hold 3 records of 63 bytes');
   });
 
   it('an incomplete last record and a record count of -1', async () => {
-    const f = await openEdf(bdfVariant((h) => {
-      h.nRecords = '-1';
-      h.data = concat([h.data, goodBdfRecord(3, '+1.5\x14\x14\x00').subarray(0, 40)]);
-    }));
+    const f = await openEdf(
+      bdfVariant((h) => {
+        h.nRecords = '-1';
+        h.data = concat([h.data, goodBdfRecord(3, '+1.5\x14\x14\x00').subarray(0, 40)]);
+      }),
+    );
     expect(f.header.nRecords).toBe(3);
     expect(f.warnings).toEqual([
       { field: 'number of data records', message: 'number of data records is -1 (unknown); 3 records derived from the file size' },
@@ -352,7 +411,12 @@ describe('BDF/BDF+ catalogue (24-bit; hand-built from goodBdfPlusSpec, 63-byte r
   });
 
   it('a version of 0xFF followed by other text is neither EDF nor BDF', async () => {
-    await expectFormatError(bdfVariant((h) => (h.version = '\xffBIOSEMX')), 'version', 'content withheld', /not an EDF or BDF file/);
+    await expectFormatError(
+      bdfVariant((h) => (h.version = '\xffBIOSEMX')),
+      'version',
+      'content withheld',
+      /not an EDF or BDF file/,
+    );
     expect(BDF_VERSION).toBe('\xffBIOSEMI');
   });
 });
@@ -362,7 +426,11 @@ describe('property: mutated headers give a valid header or an EdfFormatError (fa
   // Characters EDF header fields are made of, plus a few hostile ones.
   const charByte = fc.constantFrom(...' 0123456789+-.eEabcxX:,\x00\xff'.split('').map((c) => c.charCodeAt(0)));
   const mutation = fc.oneof(
-    fc.record({ kind: fc.constant('set' as const), at: fc.integer({ min: 0, max: base.length - 1 }), byte: fc.oneof(charByte, fc.integer({ min: 0, max: 255 })) }),
+    fc.record({
+      kind: fc.constant('set' as const),
+      at: fc.integer({ min: 0, max: base.length - 1 }),
+      byte: fc.oneof(charByte, fc.integer({ min: 0, max: 255 })),
+    }),
     fc.record({ kind: fc.constant('cut' as const), at: fc.integer({ min: 0, max: base.length }), byte: fc.constant(0) }),
   );
 

@@ -30,7 +30,16 @@ const SECONDS = 30 * STAGES.length;
 function channel(label: string, k: number, bits: 16 | 24): RefSignal {
   const dmax = bits === 16 ? 32767 : 8388607;
   const noise = `((double)((((unsigned)i * 2654435761u) ^ ${40503 * (k + 1)}u) % 2001u) / 20.0 - 50.0)`;
-  return { label, dim: 'uV', pmin: -500, pmax: 500, dmin: -dmax, dmax, fs: FS_HZ, expr: `${20 + 5 * k}.0*sin(2*M_PI*${9 + k}.5*t) + 30.0*sin(2*M_PI*0.8*t + ${k}.0) + ${noise}` };
+  return {
+    label,
+    dim: 'uV',
+    pmin: -500,
+    pmax: 500,
+    dmin: -dmax,
+    dmax,
+    fs: FS_HZ,
+    expr: `${20 + 5 * k}.0*sin(2*M_PI*${9 + k}.5*t) + 30.0*sin(2*M_PI*0.8*t + ${k}.0) + ${noise}`,
+  };
 }
 const LABELS = ['EEG F3-M2', 'EEG C3-M2', 'EEG C4-M1', 'EEG O2-M1'];
 const ANNOTATIONS: RefAnnotation[] = STAGES.map((s, e) => ({ onset100us: e * 300000, duration100us: 300000, text: `Sleep stage ${s}` }));
@@ -41,14 +50,32 @@ beforeAll(() => {
   tmp = makeTmpDir('bdf-pipeline');
   for (const bits of [16, 24] as const) {
     const fileType = bits === 16 ? 'EDFLIB_FILETYPE_EDFPLUS' : 'EDFLIB_FILETYPE_BDFPLUS';
-    const exe = compileWithLibedf(tmp.dir, `writer${bits}`, writerSource(LABELS.map((l, k) => channel(l, k, bits)), ANNOTATIONS, SECONDS, 'X', { fileType }));
+    const exe = compileWithLibedf(
+      tmp.dir,
+      `writer${bits}`,
+      writerSource(
+        LABELS.map((l, k) => channel(l, k, bits)),
+        ANNOTATIONS,
+        SECONDS,
+        'X',
+        { fileType },
+      ),
+    );
     files[bits] = join(tmp.dir, bits === 16 ? 'night.edf' : 'night.bdf');
     execFileSync(exe, [files[bits], join(tmp.dir, `night${bits}.raw`)]);
   }
 });
 afterAll(() => tmp?.cleanup());
 
-const recording = (path: string): CohortRecording => ({ row: 1, subject: 's1', session: null, group: null, recordingPath: path, scoringPath: null, covariates: {} });
+const recording = (path: string): CohortRecording => ({
+  row: 1,
+  subject: 's1',
+  session: null,
+  group: null,
+  recordingPath: path,
+  scoringPath: null,
+  covariates: {},
+});
 
 describe('processRecording on an EDF+ recording and its BDF+ copy', () => {
   it('stores the same spectra (within the EDF rounding), epochs and rejections', async () => {
@@ -68,7 +95,13 @@ describe('processRecording on an EDF+ recording and its BDF+ copy', () => {
     for (const a of edf.spectra) {
       const b = byKey.get(key(a))!;
       const bMean = byKey.get(key({ ...a, averaging: 'mean' }))!;
-      expect([b.nEpochs, b.nSegments, b.freqStartHz, b.freqStepHz, b.power.length]).toEqual([a.nEpochs, a.nSegments, a.freqStartHz, a.freqStepHz, a.power.length]);
+      expect([b.nEpochs, b.nSegments, b.freqStartHz, b.freqStepHz, b.power.length]).toEqual([
+        a.nEpochs,
+        a.nSegments,
+        a.freqStartHz,
+        a.freqStepHz,
+        a.power.length,
+      ]);
       const dMax = (maxDiffUv * maxDiffUv) / a.freqStepHz; // µV²/Hz
       for (let i = 0; i < a.power.length; i++) {
         const p = a.averaging === 'mean' ? b.power[i] : b.nEpochs * bMean.power[i];
@@ -77,7 +110,9 @@ describe('processRecording on an EDF+ recording and its BDF+ copy', () => {
         if (a.averaging === 'mean' && i > 0) worstMeanRel = Math.max(worstMeanRel, Math.abs(a.power[i] - b.power[i]) / a.power[i]);
       }
     }
-    console.log(`EDF+ vs BDF+ spectra: largest difference ${worstOfBound.toFixed(3)} of its bound; mean spectra ${worstMeanRel.toExponential(2)} relative (above 0 Hz)`);
+    console.log(
+      `EDF+ vs BDF+ spectra: largest difference ${worstOfBound.toFixed(3)} of its bound; mean spectra ${worstMeanRel.toExponential(2)} relative (above 0 Hz)`,
+    );
     expect(worstOfBound).toBeLessThanOrEqual(1);
     expect(worstMeanRel).toBeGreaterThan(0); // the two files really differ (16- vs 24-bit rounding)
     const rej = (x: typeof edf) => x.rejections.map((r) => `${r.channel}|${r.reference}|${r.epoch}|${r.reason}`).sort();

@@ -15,8 +15,26 @@ import { concat, goodBdfPlusSpec, goodBdfRecord, goodDigital24, handEdf, int24le
 const SECONDS = 20;
 // 24-bit digital ranges: full (±2^23), reduced and asymmetric; 256, 128 and 200 Hz in one file.
 const BDF_SIGNALS: RefSignal[] = [
-  { label: 'EEG C3-M2', dim: 'uV', pmin: -262144, pmax: 262143, dmin: -8388608, dmax: 8388607, fs: 256, expr: '150.0*sin(2*M_PI*7.0*t) + 0.001*(double)(i % 13)' },
-  { label: 'EOG LOC-M2', dim: 'uV', pmin: -3000, pmax: 5000, dmin: -500000, dmax: 600000, fs: 128, expr: '200.0*cos(2*M_PI*0.7*t) - 50.0 + (double)((i*7) % 5)' },
+  {
+    label: 'EEG C3-M2',
+    dim: 'uV',
+    pmin: -262144,
+    pmax: 262143,
+    dmin: -8388608,
+    dmax: 8388607,
+    fs: 256,
+    expr: '150.0*sin(2*M_PI*7.0*t) + 0.001*(double)(i % 13)',
+  },
+  {
+    label: 'EOG LOC-M2',
+    dim: 'uV',
+    pmin: -3000,
+    pmax: 5000,
+    dmin: -500000,
+    dmax: 600000,
+    fs: 128,
+    expr: '200.0*cos(2*M_PI*0.7*t) - 50.0 + (double)((i*7) % 5)',
+  },
   // exceeds ±100 µV half of the time: EDFlib clips those samples to the digital limits
   { label: 'EMG chin', dim: 'uV', pmin: -100, pmax: 100, dmin: -8388608, dmax: 8388607, fs: 200, expr: '130.0*sin(2*M_PI*0.5*t) + 0.37*(double)((i*37) % 11)' },
 ];
@@ -73,17 +91,30 @@ function save(name: string, bytes: Uint8Array): string {
 function libedfRead(path: string) {
   const rawOut = `${path}.libedf.raw`;
   const ref = parseReaderOutput(execFileSync(readerExe, [path, rawOut], { encoding: 'utf8' }));
-  return { ref, samples: readRaw(rawOut, ref.signals.map((s) => s.samples)) };
+  return {
+    ref,
+    samples: readRaw(
+      rawOut,
+      ref.signals.map((s) => s.samples),
+    ),
+  };
 }
 
 beforeAll(() => {
   tmp = makeTmpDir('bdf');
   // If gcc or libedf is missing these throw and every test below fails (no skip).
-  const writerExe = compileWithLibedf(tmp.dir, 'bdf_writer', writerSource(BDF_SIGNALS, BDF_ANNOTATIONS, SECONDS, 'Fictional_Testperson', { fileType: 'EDFLIB_FILETYPE_BDFPLUS' }));
+  const writerExe = compileWithLibedf(
+    tmp.dir,
+    'bdf_writer',
+    writerSource(BDF_SIGNALS, BDF_ANNOTATIONS, SECONDS, 'Fictional_Testperson', { fileType: 'EDFLIB_FILETYPE_BDFPLUS' }),
+  );
   readerExe = compileWithLibedf(tmp.dir, 'ref_reader', READER_SOURCE);
   bdfFile = join(tmp.dir, 'libedf.bdf');
   execFileSync(writerExe, [bdfFile, join(tmp.dir, 'libedf.raw')]);
-  rawValues = readRaw(join(tmp.dir, 'libedf.raw'), BDF_SIGNALS.map((s) => s.fs * SECONDS));
+  rawValues = readRaw(
+    join(tmp.dir, 'libedf.raw'),
+    BDF_SIGNALS.map((s) => s.fs * SECONDS),
+  );
 });
 afterAll(() => tmp?.cleanup());
 
@@ -93,7 +124,12 @@ describe('BDF+ written by libedf (EDFLIB_FILETYPE_BDFPLUS)', () => {
     expect(bytes[0]).toBe(0xff);
     expect(bytes.subarray(1, 8).toString('latin1')).toBe('BIOSEMI');
     expect(bytes.subarray(192, 197).toString('latin1')).toBe('BDF+C');
-    expect(bytes.subarray(256 + 16 * 3, 256 + 16 * 4).toString('latin1').trim()).toBe('BDF Annotations');
+    expect(
+      bytes
+        .subarray(256 + 16 * 3, 256 + 16 * 4)
+        .toString('latin1')
+        .trim(),
+    ).toBe('BDF Annotations');
   });
 
   it('header: variant BDF+C, 3 bytes per sample, 24-bit digital limits, rates and record layout', async () => {
@@ -156,10 +192,13 @@ describe('BDF+ written by libedf (EDFLIB_FILETYPE_BDFPLUS)', () => {
     const f = await openEdf(bdfFile);
     try {
       const mine = await readAll(f, [0, 1, 2], 4);
-      for (let k = 0; k < 3; k++) expect(maxAbsDiff(mine[k], samples[k])).toBeLessThanOrEqual(6e-8 * Math.max(Math.abs(BDF_SIGNALS[k].pmin), BDF_SIGNALS[k].pmax));
+      for (let k = 0; k < 3; k++)
+        expect(maxAbsDiff(mine[k], samples[k])).toBeLessThanOrEqual(6e-8 * Math.max(Math.abs(BDF_SIGNALS[k].pmin), BDF_SIGNALS[k].pmax));
       const counted = [0, 0, 0];
       for await (const b of f.readEpochs({ signals: [0, 1, 2], epochS: 4 })) b.atDigitalLimits!.forEach((n, k) => (counted[k] += n));
-      const atLimits = BDF_SIGNALS.map((s, k) => Array.from(samples[k]).filter((v) => Math.abs(v - s.pmin) < step(s) / 2 || Math.abs(v - s.pmax) < step(s) / 2).length);
+      const atLimits = BDF_SIGNALS.map(
+        (s, k) => Array.from(samples[k]).filter((v) => Math.abs(v - s.pmin) < step(s) / 2 || Math.abs(v - s.pmax) < step(s) / 2).length,
+      );
       expect(atLimits[2]).toBeGreaterThan(500);
       expect(counted).toEqual(atLimits);
     } finally {
@@ -175,7 +214,12 @@ describe('BDF+ written by libedf (EDFLIB_FILETYPE_BDFPLUS)', () => {
     const g = await openEdf(tailed, { sha256: true });
     await g.close();
     expect(g.header.nRecords).toBe(SECONDS);
-    expect(g.warnings).toEqual([{ field: 'file', message: `3 bytes after the last data record (less than one ${(256 + 128 + 200) * 3 + g.header.signals[3].samplesPerRecord * 3}-byte record) are ignored` }]);
+    expect(g.warnings).toEqual([
+      {
+        field: 'file',
+        message: `3 bytes after the last data record (less than one ${(256 + 128 + 200) * 3 + g.header.signals[3].samplesPerRecord * 3}-byte record) are ignored`,
+      },
+    ]);
     expect(g.sha256).toBe(sha256sum(tailed));
   });
 
@@ -200,14 +244,28 @@ describe('BDF+ written by libedf (EDFLIB_FILETYPE_BDFPLUS)', () => {
 describe('a BDF+ copy of an EDF+ recording (both written by libedf from the same physical values)', () => {
   // 16-bit EDF+: ±500 µV over ±32767 (step 0.0153 µV); 24-bit BDF+: the same range over ±8388607.
   const sig = (fsHz: number, expr: string, bits: 16 | 24): RefSignal => ({
-    label: 'EEG C4-M1', dim: 'uV', pmin: -500, pmax: 500, dmin: bits === 16 ? -32767 : -8388607, dmax: bits === 16 ? 32767 : 8388607, fs: fsHz, expr,
+    label: 'EEG C4-M1',
+    dim: 'uV',
+    pmin: -500,
+    pmax: 500,
+    dmin: bits === 16 ? -32767 : -8388607,
+    dmax: bits === 16 ? 32767 : 8388607,
+    fs: fsHz,
+    expr,
   });
   const expr = '40.0*sin(2*M_PI*11.0*t) + 25.0*sin(2*M_PI*2.3*t + 1.0) + 0.01*(double)((i*7919) % 1009)';
 
   it('gives the same samples within one digital step of the EDF', async () => {
     const files: string[] = [];
-    for (const [name, bits, fileType] of [['copy.edf', 16, 'EDFLIB_FILETYPE_EDFPLUS'], ['copy.bdf', 24, 'EDFLIB_FILETYPE_BDFPLUS']] as const) {
-      const exe = compileWithLibedf(tmp.dir, `copy_${bits}`, writerSource([sig(256, expr, bits)], [{ onset100us: 0, duration100us: 300000, text: 'Sleep stage W' }], 60, 'X', { fileType }));
+    for (const [name, bits, fileType] of [
+      ['copy.edf', 16, 'EDFLIB_FILETYPE_EDFPLUS'],
+      ['copy.bdf', 24, 'EDFLIB_FILETYPE_BDFPLUS'],
+    ] as const) {
+      const exe = compileWithLibedf(
+        tmp.dir,
+        `copy_${bits}`,
+        writerSource([sig(256, expr, bits)], [{ onset100us: 0, duration100us: 300000, text: 'Sleep stage W' }], 60, 'X', { fileType }),
+      );
       files.push(join(tmp.dir, name));
       execFileSync(exe, [files[files.length - 1], join(tmp.dir, `${name}.raw`)]);
     }
@@ -234,7 +292,12 @@ describe('plain BDF and BDF+D built byte by byte (helpers.ts)', () => {
 
   it('"24BIT" file: digital values across the whole 24-bit range decode exactly (sign extension), and libedf reads the same', async () => {
     const spec = goodBdfPlusSpec(4);
-    const plain = handEdf({ ...spec, reserved: '24BIT', signals: spec.signals.slice(0, 2), data: concat([0, 1, 2, 3].map((r) => goodBdfRecord(r, '').subarray(0, 18))) });
+    const plain = handEdf({
+      ...spec,
+      reserved: '24BIT',
+      signals: spec.signals.slice(0, 2),
+      data: concat([0, 1, 2, 3].map((r) => goodBdfRecord(r, '').subarray(0, 18))),
+    });
     const path = save('hand.bdf', plain);
     const f = await openEdf(path, { sha256: true });
     try {
@@ -261,7 +324,12 @@ describe('plain BDF and BDF+D built byte by byte (helpers.ts)', () => {
   it('BDF+D: record onsets from the time-keeping TALs in 3-byte samples, the gap reported, epochs across it dropped', async () => {
     const spec = goodBdfPlusSpec(4);
     spec.reserved = 'BDF+D';
-    spec.data = concat([goodBdfRecord(0, '+0\x14\x14\x00'), goodBdfRecord(1, '+0.5\x14\x14\x00+0.6\x14Spindle\x14\x00'), goodBdfRecord(2, '+3\x14\x14\x00'), goodBdfRecord(3, '+3.5\x14\x14\x00')]);
+    spec.data = concat([
+      goodBdfRecord(0, '+0\x14\x14\x00'),
+      goodBdfRecord(1, '+0.5\x14\x14\x00+0.6\x14Spindle\x14\x00'),
+      goodBdfRecord(2, '+3\x14\x14\x00'),
+      goodBdfRecord(3, '+3.5\x14\x14\x00'),
+    ]);
     const f = await openEdf(save('gap.bdf', handEdf(spec)));
     try {
       expect(f.header.variant).toBe('BDF+D');
@@ -280,15 +348,29 @@ describe('plain BDF and BDF+D built byte by byte (helpers.ts)', () => {
 
   it('a 16-kB-and-larger BDF+ record: annotation bytes read in slices give the same annotations, the hash its own pass', async () => {
     const records: Uint8Array[] = [];
-    for (let r = 0; r < 3; r++) records.push(int24le(Array.from({ length: 6000 }, (_, i) => ((i * 37 + r * 11) % 400001) - 200000)), talBytes(`+${r}\x14\x14\x00+${r}.25\x14Event ${r}\x14\x00`, 60));
-    const path = save('big.bdf', handEdf({
-      version: '\xffBIOSEMI', patient: 'X X X X', recording: 'Startdate X X X X', date: '01.01.20', time: '22.00.00', reserved: 'BDF+C', nRecords: '3', duration: '1',
-      signals: [
-        { label: 'EEG C3', dim: 'uV', pmin: '-200', pmax: '200', dmin: '-8388608', dmax: '8388607', spr: '6000' },
-        { label: 'BDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-8388608', dmax: '8388607', spr: '20' },
-      ],
-      data: concat(records),
-    }));
+    for (let r = 0; r < 3; r++)
+      records.push(
+        int24le(Array.from({ length: 6000 }, (_, i) => ((i * 37 + r * 11) % 400001) - 200000)),
+        talBytes(`+${r}\x14\x14\x00+${r}.25\x14Event ${r}\x14\x00`, 60),
+      );
+    const path = save(
+      'big.bdf',
+      handEdf({
+        version: '\xffBIOSEMI',
+        patient: 'X X X X',
+        recording: 'Startdate X X X X',
+        date: '01.01.20',
+        time: '22.00.00',
+        reserved: 'BDF+C',
+        nRecords: '3',
+        duration: '1',
+        signals: [
+          { label: 'EEG C3', dim: 'uV', pmin: '-200', pmax: '200', dmin: '-8388608', dmax: '8388607', spr: '6000' },
+          { label: 'BDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-8388608', dmax: '8388607', spr: '20' },
+        ],
+        data: concat(records),
+      }),
+    );
     const f = await openEdf(path, { sha256: true });
     await f.close();
     expect(f.annotations).toEqual([0, 1, 2].map((r) => ({ onsetS: r + 0.25, durationS: null, texts: [`Event ${r}`] })));
@@ -298,8 +380,18 @@ describe('plain BDF and BDF+D built byte by byte (helpers.ts)', () => {
 
 describe('a separate scoring file can be BDF+', () => {
   it('readScoring takes the stages from a .bdf annotation file written by libedf', async () => {
-    const stages: RefAnnotation[] = ['W', 'W', '1', '2', '2', '3', 'R', 'R'].map((s, e) => ({ onset100us: e * 300000, duration100us: 300000, text: `Sleep stage ${s}` }));
-    const exe = compileWithLibedf(tmp.dir, 'scoring_bdf', writerSource([{ label: 'Pleth', dim: '', pmin: -1, pmax: 1, dmin: -8388608, dmax: 8388607, fs: 1, expr: '0' }], stages, 240, 'X', { fileType: 'EDFLIB_FILETYPE_BDFPLUS' }));
+    const stages: RefAnnotation[] = ['W', 'W', '1', '2', '2', '3', 'R', 'R'].map((s, e) => ({
+      onset100us: e * 300000,
+      duration100us: 300000,
+      text: `Sleep stage ${s}`,
+    }));
+    const exe = compileWithLibedf(
+      tmp.dir,
+      'scoring_bdf',
+      writerSource([{ label: 'Pleth', dim: '', pmin: -1, pmax: 1, dmin: -8388608, dmax: 8388607, fs: 1, expr: '0' }], stages, 240, 'X', {
+        fileType: 'EDFLIB_FILETYPE_BDFPLUS',
+      }),
+    );
     const path = join(tmp.dir, 'scoring.bdf');
     execFileSync(exe, [path, join(tmp.dir, 'scoring.raw')]);
     const h = await readScoring(path);

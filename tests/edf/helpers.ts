@@ -60,7 +60,15 @@ export function handEdf(h: HandEdf): Uint8Array {
   s += field(h.duration, 8);
   s += field(h.ns ?? String(ns), 4);
   const per: [keyof HandSignal, number][] = [
-    ['label', 16], ['transducer', 80], ['dim', 8], ['pmin', 8], ['pmax', 8], ['dmin', 8], ['dmax', 8], ['prefilter', 80], ['spr', 8],
+    ['label', 16],
+    ['transducer', 80],
+    ['dim', 8],
+    ['pmin', 8],
+    ['pmax', 8],
+    ['dmin', 8],
+    ['dmax', 8],
+    ['prefilter', 80],
+    ['spr', 8],
   ];
   for (const [key, width] of per) for (const sig of h.signals) s += field(sig[key] ?? '', width);
   for (let i = 0; i < ns; i++) s += field('', 32);
@@ -108,7 +116,10 @@ export const FAKE_HOSPITAL = 'Bogusville_Sleep_Lab';
 
 /** Digital sample values of goodEdfPlusSpec's record r: signal 0 (4 per record), signal 1 (2 per record). */
 export function goodDigital(r: number): [number[], number[]] {
-  return [[r * 10 + 1, -r * 10 - 2, 300 + r, -2048], [r * 7 - 100, 2047]];
+  return [
+    [r * 10 + 1, -r * 10 - 2, 300 + r, -2048],
+    [r * 7 - 100, 2047],
+  ];
 }
 
 /**
@@ -132,7 +143,17 @@ export function goodEdfPlusSpec(nRecords = 3): HandEdf {
     nRecords: String(nRecords),
     duration: '0.5',
     signals: [
-      { label: 'EEG C3-M2', dim: 'uV', pmin: '-204.8', pmax: '204.7', dmin: '-2048', dmax: '2047', spr: '4', transducer: 'AgAgCl cup', prefilter: 'HP:0.3Hz LP:35Hz' },
+      {
+        label: 'EEG C3-M2',
+        dim: 'uV',
+        pmin: '-204.8',
+        pmax: '204.7',
+        dmin: '-2048',
+        dmax: '2047',
+        spr: '4',
+        transducer: 'AgAgCl cup',
+        prefilter: 'HP:0.3Hz LP:35Hz',
+      },
       { label: 'EMG chin', dim: 'uV', pmin: '-100', pmax: '100', dmin: '-2048', dmax: '2047', spr: '2' },
       { label: 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-32768', dmax: '32767', spr: '15' },
     ],
@@ -163,7 +184,10 @@ export function int24le(values: ArrayLike<number>): Uint8Array {
 
 /** Digital sample values of goodBdfPlusSpec's record r, spanning the 24-bit range: signal 0 (4 per record), signal 1 (2). */
 export function goodDigital24(r: number): [number[], number[]] {
-  return [[r * 100003 + 1, -r * 70001 - 2, 8388607 - r, -8388608 + r], [r * 7 - 8000000, 8388607 - 2 * r]];
+  return [
+    [r * 100003 + 1, -r * 70001 - 2, 8388607 - r, -8388608 + r],
+    [r * 7 - 8000000, 8388607 - 2 * r],
+  ];
 }
 
 /** One record of goodBdfPlusSpec's layout with a given annotation text (\x00-padded to 45 bytes = 15 samples of 3 bytes). */

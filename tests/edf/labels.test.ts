@@ -38,10 +38,34 @@ describe('parseChannelLabel', () => {
 
 describe('canonicalElectrode', () => {
   it('10-10 capitalisation', () => {
-    expect(['FP1', 'fpz', 'CZ', 'af3', 'FC1', 'cpz', 'PO8', 'OZ', 'IZ', 'NZ', 'ft10', 'tp9'].map(canonicalElectrode)).toEqual(['Fp1', 'Fpz', 'Cz', 'AF3', 'FC1', 'CPz', 'PO8', 'Oz', 'Iz', 'Nz', 'FT10', 'TP9']);
+    expect(['FP1', 'fpz', 'CZ', 'af3', 'FC1', 'cpz', 'PO8', 'OZ', 'IZ', 'NZ', 'ft10', 'tp9'].map(canonicalElectrode)).toEqual([
+      'Fp1',
+      'Fpz',
+      'Cz',
+      'AF3',
+      'FC1',
+      'CPz',
+      'PO8',
+      'Oz',
+      'Iz',
+      'Nz',
+      'FT10',
+      'TP9',
+    ]);
   });
   it('mastoids, earlobes and old temporal names are recognised as given', () => {
-    expect(['m1', 'M2', 'a1', 'A2', 'T3', 't4', 'T5', 'T6', 'T7', 'P8'].map(canonicalElectrode)).toEqual(['M1', 'M2', 'A1', 'A2', 'T3', 'T4', 'T5', 'T6', 'T7', 'P8']);
+    expect(['m1', 'M2', 'a1', 'A2', 'T3', 't4', 'T5', 'T6', 'T7', 'P8'].map(canonicalElectrode)).toEqual([
+      'M1',
+      'M2',
+      'A1',
+      'A2',
+      'T3',
+      'T4',
+      'T5',
+      'T6',
+      'T7',
+      'P8',
+    ]);
   });
   it('non-names give null', () => {
     expect(['Ref', 'LOC', 'C7', 'Fp3', 'Mz', 'Az', 'X1', '', 'EEG'].map(canonicalElectrode)).toEqual([null, null, null, null, null, null, null, null, null]);

@@ -20,7 +20,16 @@ const TYPES: [string, FileType, number][] = [
 
 /** Signals with symmetric digital limits ±dmax (16 or 24 bits). */
 const halfSecondSignals = (dmax: number): RefSignal[] => [
-  { label: 'EEG C4-M1', dim: 'uV', pmin: -500, pmax: 500, dmin: -dmax, dmax, fs: 256, expr: '80.0*sin(2*M_PI*10.0*t) + 20.0*sin(2*M_PI*1.3*t) + 0.5*(double)(i % 9)' },
+  {
+    label: 'EEG C4-M1',
+    dim: 'uV',
+    pmin: -500,
+    pmax: 500,
+    dmin: -dmax,
+    dmax,
+    fs: 256,
+    expr: '80.0*sin(2*M_PI*10.0*t) + 20.0*sin(2*M_PI*1.3*t) + 0.5*(double)(i % 9)',
+  },
   // a chin EMG recorded in millivolts
   { label: 'EMG chin', dim: 'mV', pmin: -0.5, pmax: 0.5, dmin: -dmax, dmax, fs: 512, expr: '0.2*sin(2*M_PI*40.0*t) + 0.001*(double)((i*13) % 17)' },
 ];
@@ -113,9 +122,17 @@ describe.each(TYPES)('%s written by libedf', (kind, fileType, dmax) => {
   it('0.5-s records, a signal in mV: layout, onsets, samples within one step, annotations', async () => {
     const f = await openEdf(half.path);
     try {
-      expect([f.header.variant, f.header.bytesPerSample, f.header.nRecords, f.header.recordDurationS]).toEqual([`${kind.slice(0, 3)}+C`, bytesPerSample, 120, 0.5]);
+      expect([f.header.variant, f.header.bytesPerSample, f.header.nRecords, f.header.recordDurationS]).toEqual([
+        `${kind.slice(0, 3)}+C`,
+        bytesPerSample,
+        120,
+        0.5,
+      ]);
       const ordinary = f.header.signals.filter((s) => !s.isAnnotation);
-      expect(ordinary.map((s) => [s.label, s.physicalDimension, s.samplesPerRecord, s.fsHz])).toEqual([['EEG C4-M1', 'uV', 128, 256], ['EMG chin', 'mV', 256, 512]]);
+      expect(ordinary.map((s) => [s.label, s.physicalDimension, s.samplesPerRecord, s.fsHz])).toEqual([
+        ['EEG C4-M1', 'uV', 128, 256],
+        ['EMG chin', 'mV', 256, 512],
+      ]);
       expect(f.recordOnsetsS[1]).toBe(0.5);
       expect(f.recordOnsetsS[119]).toBe(59.5);
       expect(f.warnings).toEqual([]);
@@ -125,7 +142,11 @@ describe.each(TYPES)('%s written by libedf', (kind, fileType, dmax) => {
       // the mV values come back in mV (the file's unit): 0.2-mV peaks, not 200
       expect(Math.max(...data[1])).toBeGreaterThan(0.19);
       expect(Math.max(...data[1])).toBeLessThan(0.22);
-      const want = HALF_SECOND_ANNOTATIONS.map((a) => ({ onsetS: a.onset100us / 1e4, durationS: a.duration100us < 0 ? null : a.duration100us / 1e4, texts: [a.text] }));
+      const want = HALF_SECOND_ANNOTATIONS.map((a) => ({
+        onsetS: a.onset100us / 1e4,
+        durationS: a.duration100us < 0 ? null : a.duration100us / 1e4,
+        texts: [a.text],
+      }));
       expect([...f.annotations].sort((a, b) => a.onsetS - b.onsetS)).toEqual(want.sort((a, b) => a.onsetS - b.onsetS));
     } finally {
       await f.close();
@@ -144,9 +165,14 @@ describe.each(TYPES)('%s written by libedf', (kind, fileType, dmax) => {
       for (const epochS of [30, 10]) {
         const { data, drops } = await readAll(f, signals, epochS);
         expect(drops).toEqual([]);
-        mixedSignals(dmax).forEach((s, k) => expect(stepsOff(data[k], mixed.planted[k], s, s.fs * MIXED_S), `${s.label}, ${epochS}-s epochs`).toBeLessThanOrEqual(1));
+        mixedSignals(dmax).forEach((s, k) =>
+          expect(stepsOff(data[k], mixed.planted[k], s, s.fs * MIXED_S), `${s.label}, ${epochS}-s epochs`).toBeLessThanOrEqual(1),
+        );
       }
-      expect(f.annotations.map((a) => [a.onsetS, a.texts[0]])).toEqual([[0, 'Sleep stage W'], [45, 'Lights off']]);
+      expect(f.annotations.map((a) => [a.onsetS, a.texts[0]])).toEqual([
+        [0, 'Sleep stage W'],
+        [45, 'Lights off'],
+      ]);
     } finally {
       await f.close();
     }
@@ -160,7 +186,9 @@ describe.each(TYPES)('%s written by libedf', (kind, fileType, dmax) => {
     const f = await openEdf(cut);
     try {
       expect(f.header.nRecords).toBe(119);
-      expect(f.warnings).toEqual([{ field: 'file', message: `the last data record is incomplete (${recordBytes - 100} of ${recordBytes} bytes) and is ignored` }]);
+      expect(f.warnings).toEqual([
+        { field: 'file', message: `the last data record is incomplete (${recordBytes - 100} of ${recordBytes} bytes) and is ignored` },
+      ]);
       // 59.5 s: one whole 30-s epoch, then the partial one is dropped as 'end'
       const { data, drops } = await readAll(f, [0, 1], 30);
       expect(drops).toEqual(['1:end']);
@@ -179,7 +207,9 @@ describe.each(TYPES)('%s written by libedf', (kind, fileType, dmax) => {
     const f = await openEdf(path);
     try {
       expect(f.header.nRecords).toBe(3);
-      expect(f.warnings).toEqual([{ field: 'number of data records', message: 'number of data records is -1 (unknown); 3 records derived from the file size' }]);
+      expect(f.warnings).toEqual([
+        { field: 'number of data records', message: 'number of data records is -1 (unknown); 3 records derived from the file size' },
+      ]);
       const signals = f.header.signals.filter((s) => !s.isAnnotation).map((s) => s.index);
       const { data } = await readAll(f, signals, 30);
       mixedSignals(dmax).forEach((s, k) => expect(stepsOff(data[k], mixed.planted[k], s, s.fs * MIXED_S)).toBeLessThanOrEqual(1));

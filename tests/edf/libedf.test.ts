@@ -73,7 +73,10 @@ beforeAll(() => {
   readerExe = compileWithLibedf(tmp.dir, 'ref_reader', READER_SOURCE);
   libedfFile = join(tmp.dir, 'libedf.edf');
   execFileSync(writerExe, [libedfFile, join(tmp.dir, 'libedf.raw')]);
-  rawValues = readRaw(join(tmp.dir, 'libedf.raw'), REF_SIGNALS.map((s) => s.fs * SECONDS));
+  rawValues = readRaw(
+    join(tmp.dir, 'libedf.raw'),
+    REF_SIGNALS.map((s) => s.fs * SECONDS),
+  );
 });
 afterAll(() => tmp?.cleanup());
 
@@ -137,7 +140,10 @@ describe('files written by libedf (EDFlib 1.23) read back through our reader', (
     const f = await openEdf(plain);
     try {
       expect(f.header.variant).toBe('EDF');
-      expect(f.header.warnings).toContainEqual({ field: 'label', message: 'signal 4: labelled "EDF Annotations" in a plain EDF file; read as an annotation signal' });
+      expect(f.header.warnings).toContainEqual({
+        field: 'label',
+        message: 'signal 4: labelled "EDF Annotations" in a plain EDF file; read as an annotation signal',
+      });
       const got = await readAll(f, [1], 10);
       expect(maxAbsDiff(got[0], rawValues[1])).toBeLessThanOrEqual(800 / 4095);
     } finally {
@@ -201,7 +207,10 @@ describe('files written by our EdfWriter read back through libedf', () => {
       ['EOG ROC-M1', 128, 128 * seconds, -250, 350.5, -2048, 2047, 'uV'],
       ['EMG chin', 200, 200 * seconds, -100, 100, -32768, 32767, 'uV'],
     ]);
-    const samples = readRaw(join(tmp.dir, 'ours.raw'), fsList.map((f) => f * seconds));
+    const samples = readRaw(
+      join(tmp.dir, 'ours.raw'),
+      fsList.map((f) => f * seconds),
+    );
     let clipped = 0;
     spec.signals.forEach((s, k) => {
       const step = (s.physicalMax - s.physicalMin) / ((s.digitalMax ?? 32767) - (s.digitalMin ?? -32768));

@@ -60,7 +60,9 @@ export function writerSource(signals: RefSignal[], annotations: RefAnnotation[],
   const sprList = spr.join(', ');
   const exprs = signals.map((s, k) => `    case ${k}: return ${s.expr};`).join('\n');
   const annots = annotations
-    .map((a) => `  if (edfwrite_annotation_utf8(h, ${a.onset100us}LL, ${a.duration100us}LL, ${cString(a.text)})) { fprintf(stderr, "annotation\\n"); return 5; }`)
+    .map(
+      (a) => `  if (edfwrite_annotation_utf8(h, ${a.onset100us}LL, ${a.duration100us}LL, ${cString(a.text)})) { fprintf(stderr, "annotation\\n"); return 5; }`,
+    )
     .join('\n');
   return `#include <stdio.h>
 #include <math.h>
@@ -165,7 +167,16 @@ export function parseReaderOutput(stdout: string): RefRead {
     if (key === 'START') out.start = rest;
     if (key === 'SIGNAL') {
       const [, label, samples, spr, pmin, pmax, dmin, dmax, dim] = rest.split('|');
-      out.signals.push({ label: label.trim(), samples: Number(samples), spr: Number(spr), pmin: Number(pmin), pmax: Number(pmax), dmin: Number(dmin), dmax: Number(dmax), dim: dim.trim() });
+      out.signals.push({
+        label: label.trim(),
+        samples: Number(samples),
+        spr: Number(spr),
+        pmin: Number(pmin),
+        pmax: Number(pmax),
+        dmin: Number(dmin),
+        dmax: Number(dmax),
+        dim: dim.trim(),
+      });
     }
     if (key === 'ANNOTATION') {
       const [onset, duration, hex] = rest.split('|');

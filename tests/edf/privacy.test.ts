@@ -8,7 +8,20 @@ import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openEdf } from '../../ingest/edf/reader.ts';
 import { parseEdfHeader } from '../../ingest/edf/header.ts';
-import { concat, FAKE_BIRTHDATE, FAKE_HOSPITAL, FAKE_PATIENT_CODE, FAKE_PATIENT_NAME, goodBdfPlusSpec, goodBdfRecord, goodEdfPlusSpec, goodRecord, handEdf, makeTmpDir, type HandEdf } from './helpers.ts';
+import {
+  concat,
+  FAKE_BIRTHDATE,
+  FAKE_HOSPITAL,
+  FAKE_PATIENT_CODE,
+  FAKE_PATIENT_NAME,
+  goodBdfPlusSpec,
+  goodBdfRecord,
+  goodEdfPlusSpec,
+  goodRecord,
+  handEdf,
+  makeTmpDir,
+  type HandEdf,
+} from './helpers.ts';
 
 const SECRETS = [FAKE_PATIENT_NAME, FAKE_BIRTHDATE, FAKE_PATIENT_CODE, FAKE_HOSPITAL, 'Quillfeather', 'Zebediah', '1952'];
 
@@ -183,15 +196,21 @@ describe('a fake identity never appears in an error or warning message', () => {
     writeFileSync(path, bytes);
     const messages = await messagesOf(path);
     // every broken file gives an error or a warning (the first, good one gives none)
-    if (i > 0) expect(messages.some((m) => m !== '[]'), what).toBe(true);
+    if (i > 0)
+      expect(
+        messages.some((m) => m !== '[]'),
+        what,
+      ).toBe(true);
     expectNoIdentity(messages, what);
   });
 
-  it('the catalogue reaches the reader\'s messages: broken annotations are named by record and TAL number', async () => {
+  it("the catalogue reaches the reader's messages: broken annotations are named by record and TAL number", async () => {
     const path = join(tmp.dir, 'identity-position.edf');
     writeFileSync(path, catalogue[2][1]);
     const [message] = await messagesOf(path);
-    expect(message).toMatch(/data record 2, field "annotations" of signal 3 \("EDF Annotations"\): TAL 2: the onset \(\d+ bytes, content withheld\) is not a signed number/);
+    expect(message).toMatch(
+      /data record 2, field "annotations" of signal 3 \("EDF Annotations"\): TAL 2: the onset \(\d+ bytes, content withheld\) is not a signed number/,
+    );
   });
 
   // 200 files, each the good identity file broken by 1–4 byte changes or a cut, none of which
@@ -211,7 +230,8 @@ describe('a fake identity never appears in an error or warning message', () => {
       fc.asyncProperty(fc.array(mutation, { minLength: 1, maxLength: 4 }), async (muts) => {
         let b = base.slice();
         for (const m of muts) {
-          if (m.cut && free[m.at] > 1100) b = b.slice(0, free[m.at]); // cuts inside the data records only
+          if (m.cut && free[m.at] > 1100)
+            b = b.slice(0, free[m.at]); // cuts inside the data records only
           else b[free[m.at]] = m.byte;
         }
         const path = join(tmp.dir, `mutated-${k++ % 4}.edf`);

@@ -37,7 +37,13 @@ function bigRecordEdf(nRecords: number): Uint8Array {
     records.push(int16le(Array.from({ length: 8192 }, (_, i) => ((i * 37 + r * 11) % 4001) - 2000)), talBytes(`+${r}\x14\x14\x00`, 30));
   }
   return handEdf({
-    patient: 'X X X X', recording: 'Startdate X X X X', date: '01.01.20', time: '22.00.00', reserved: 'EDF+C', nRecords: String(nRecords), duration: '1',
+    patient: 'X X X X',
+    recording: 'Startdate X X X X',
+    date: '01.01.20',
+    time: '22.00.00',
+    reserved: 'EDF+C',
+    nRecords: String(nRecords),
+    duration: '1',
     signals: [
       { label: 'EEG C3', dim: 'uV', pmin: '-200', pmax: '200', dmin: '-2048', dmax: '2047', spr: '8192' },
       { label: 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-32768', dmax: '32767', spr: '15' },
@@ -70,7 +76,9 @@ describe('SHA-256 of the file from openEdf, against sha256sum (coreutils)', () =
   it('plain EDF without an annotation signal', async () => {
     const spec = goodEdfPlusSpec(4);
     const plain = handEdf({
-      ...spec, reserved: '', signals: spec.signals.slice(0, 2),
+      ...spec,
+      reserved: '',
+      signals: spec.signals.slice(0, 2),
       data: concat(Array.from({ length: 4 }, (_, r) => concat([int16le([r, r + 1, r + 2, r + 3]), int16le([r, -r])]))),
     });
     const file = save('plain.edf', plain);

@@ -22,7 +22,9 @@ function save(name: string, bytes: Uint8Array): string {
 // EDF 1992 §2.2: phys = pmin + (dig − dmin)·(pmax − pmin)/(dmax − dmin), computed here in float64.
 const phys = (dig: number, pmin: number, pmax: number, dmin: number, dmax: number) => pmin + ((dig - dmin) * (pmax - pmin)) / (dmax - dmin);
 
-async function collect(gen: AsyncGenerator<EpochBlock>): Promise<{ epoch: number; onsetS: number; dropReason: EpochBlock['dropReason']; data: number[][] | null }[]> {
+async function collect(
+  gen: AsyncGenerator<EpochBlock>,
+): Promise<{ epoch: number; onsetS: number; dropReason: EpochBlock['dropReason']; data: number[][] | null }[]> {
   const out = [];
   for await (const b of gen) out.push({ epoch: b.epoch, onsetS: b.onsetS, dropReason: b.dropReason, data: b.data ? b.data.map((d) => Array.from(d)) : null });
   return out;
@@ -39,7 +41,20 @@ describe('hand-built EDF+C file', () => {
       expect(h.nRecords).toBe(4);
       expect(h.recordDurationS).toBe(0.5);
       const [eeg, emg, ann] = h.signals;
-      expect(eeg).toMatchObject({ index: 0, label: 'EEG C3-M2', transducer: 'AgAgCl cup', physicalDimension: 'uV', physicalMin: -204.8, physicalMax: 204.7, digitalMin: -2048, digitalMax: 2047, prefilter: 'HP:0.3Hz LP:35Hz', samplesPerRecord: 4, fsHz: 8, isAnnotation: false });
+      expect(eeg).toMatchObject({
+        index: 0,
+        label: 'EEG C3-M2',
+        transducer: 'AgAgCl cup',
+        physicalDimension: 'uV',
+        physicalMin: -204.8,
+        physicalMax: 204.7,
+        digitalMin: -2048,
+        digitalMax: 2047,
+        prefilter: 'HP:0.3Hz LP:35Hz',
+        samplesPerRecord: 4,
+        fsHz: 8,
+        isAnnotation: false,
+      });
       expect(eeg.gain).toBeCloseTo(0.1, 12);
       expect(eeg.offset).toBeCloseTo(phys(0, -204.8, 204.7, -2048, 2047), 12);
       expect(emg.fsHz).toBe(4);
@@ -50,7 +65,10 @@ describe('hand-built EDF+C file', () => {
 
       // 1-s epochs = 2 records; signals requested in reverse order.
       const blocks = await collect(f.readEpochs({ signals: [1, 0], epochS: 1 }));
-      expect(blocks.map((b) => [b.epoch, b.onsetS, b.dropReason])).toEqual([[0, 0, null], [1, 1, null]]);
+      expect(blocks.map((b) => [b.epoch, b.onsetS, b.dropReason])).toEqual([
+        [0, 0, null],
+        [1, 1, null],
+      ]);
       for (const b of blocks) {
         const want0: number[] = [];
         const want1: number[] = [];
@@ -174,7 +192,12 @@ describe('plain EDF built by hand', () => {
   });
 
   it('EDF+ year rule: yy = 84 is 2084, yy = 85 is 1985 (EDF+ 2003 §2.1.3.2)', async () => {
-    for (const [yy, year] of [['84', '2084'], ['85', '1985'], ['00', '2000'], ['99', '1999']]) {
+    for (const [yy, year] of [
+      ['84', '2084'],
+      ['85', '1985'],
+      ['00', '2000'],
+      ['99', '1999'],
+    ]) {
       const h = goodEdfPlusSpec();
       h.date = `15.06.${yy}`;
       const f = await openEdf(save(`y${yy}.edf`, handEdf(h)));

@@ -42,7 +42,9 @@ describe('header warnings', () => {
       expect(f.header.signals[0].physicalDimension).toBe('µV');
       expect(f.header.signals[1].physicalDimension).toBe('µV');
       expect(toMicrovolts(f.header.signals[0].physicalDimension)).toBe(1); // the pipeline takes it as µV
-      expect(f.warnings).toEqual([{ field: 'physical dimension', message: `signals 1, 2: "µ" written as ${spelling} (EDF asks for ASCII, e.g. "uV"); read as µ` }]);
+      expect(f.warnings).toEqual([
+        { field: 'physical dimension', message: `signals 1, 2: "µ" written as ${spelling} (EDF asks for ASCII, e.g. "uV"); read as µ` },
+      ]);
     }
     // plain ASCII "uV" and "mV" need no warning
     expect((await opened(edit((h) => (h.signals[1].dim = 'mV')))).warnings).toEqual([]);
@@ -71,9 +73,16 @@ describe('header warnings', () => {
   it('a warning about many signals names ten and counts the rest', async () => {
     const base = goodEdfPlusSpec(1);
     const many = Array.from({ length: 14 }, (_, k) => ({ ...base.signals[1], label: `EEG E${k + 1}`, pmin: '-1e2' }));
-    const f = await opened({ ...base, signals: [...many, base.signals[2]], data: concat([...many.map(() => int16le([1, 2])), goodRecord(0, '+0\x14\x14\x00').subarray(12)]) });
+    const f = await opened({
+      ...base,
+      signals: [...many, base.signals[2]],
+      data: concat([...many.map(() => int16le([1, 2])), goodRecord(0, '+0\x14\x14\x00').subarray(12)]),
+    });
     expect(f.warnings).toEqual([
-      { field: 'physical minimum', message: 'signals 1, 2, 3, 4, 5, 6, 7, 8, 9, 10 and 4 more: written with an exponent (EDF+ asks for plain decimals); read as a number' },
+      {
+        field: 'physical minimum',
+        message: 'signals 1, 2, 3, 4, 5, 6, 7, 8, 9, 10 and 4 more: written with an exponent (EDF+ asks for plain decimals); read as a number',
+      },
     ]);
     expect(f.header.signals[13].physicalMin).toBe(-100);
   });
@@ -81,7 +90,9 @@ describe('header warnings', () => {
   it('a record duration written with an exponent', async () => {
     const f = await opened(edit((h) => (h.duration = '5E-1')));
     expect(f.header.recordDurationS).toBe(0.5);
-    expect(f.warnings).toEqual([{ field: 'duration of a data record', message: 'written with an exponent ("5E-1"; EDF+ asks for plain decimals); read as 0.5 s' }]);
+    expect(f.warnings).toEqual([
+      { field: 'duration of a data record', message: 'written with an exponent ("5E-1"; EDF+ asks for plain decimals); read as 0.5 s' },
+    ]);
   });
 
   it('EDF+C without an annotation signal: record onsets k·duration', async () => {
@@ -105,7 +116,7 @@ describe('header warnings', () => {
   });
 });
 
-describe('warnings of the reader (EdfFile.warnings after the header\'s)', () => {
+describe("warnings of the reader (EdfFile.warnings after the header's)", () => {
   /** EDF+D with records at the given onsets (0.5-s records, goodEdfPlusSpec's layout). */
   function discontinuous(onsets: string[]): HandEdf {
     const h = goodEdfPlusSpec(onsets.length);
@@ -116,7 +127,10 @@ describe('warnings of the reader (EdfFile.warnings after the header\'s)', () => 
 
   it('EDF+D gaps: how many and their total length', async () => {
     const f = await opened(discontinuous(['0', '0.5', '3', '3.5', '10', '10.5']));
-    expect(f.gaps.map((g) => [g.startS, g.endS])).toEqual([[1, 3], [4, 10]]);
+    expect(f.gaps.map((g) => [g.startS, g.endS])).toEqual([
+      [1, 3],
+      [4, 10],
+    ]);
     expect(f.header.warnings).toEqual([]);
     expect(f.warnings).toEqual([{ field: 'annotations', message: '2 gaps between data records, 8 s in total; epochs that touch a gap are dropped' }]);
   });
@@ -126,11 +140,14 @@ describe('warnings of the reader (EdfFile.warnings after the header\'s)', () => 
     const f = await opened(discontinuous(['0', '0.5', '3.1', '3.6']));
     expect(f.warnings).toEqual([
       { field: 'annotations', message: '1 gap between data records, 2.1 s in total; epochs that touch a gap are dropped' },
-      { field: 'annotations', message: '1 of 1 segments after a gap start off the sample grid of the first record (by up to 100 ms); their epochs are read from the nearest sample' },
+      {
+        field: 'annotations',
+        message: '1 of 1 segments after a gap start off the sample grid of the first record (by up to 100 ms); their epochs are read from the nearest sample',
+      },
     ]);
   });
 
-  it('the header\'s warnings come first, then the reader\'s', async () => {
+  it("the header's warnings come first, then the reader's", async () => {
     const h = discontinuous(['0', '0.5', '3', '3.5']);
     h.nRecords = '-1';
     const f = await opened(h);

@@ -55,15 +55,27 @@ describe('the data cannot serve the contrast (exit 1, one line)', () => {
   }, 60_000);
 
   it('a constant nuisance covariate is named, with its one value', async () => {
-    await refused(['compare', db, '--design', 'covariate', '--covariate', 'age', '--nuisance', 'scanner', '--stage', 'N2', ...QUICK], 1, /nuisance covariate scanner has the same value \(1\) for all 8 subjects/);
+    await refused(
+      ['compare', db, '--design', 'covariate', '--covariate', 'age', '--nuisance', 'scanner', '--stage', 'N2', ...QUICK],
+      1,
+      /nuisance covariate scanner has the same value \(1\) for all 8 subjects/,
+    );
   }, 30_000);
 
   it('a group value that does not exist names the values that do', async () => {
-    await refused(['compare', db, '--groups', 'control,nobody', '--stage', 'N2', ...QUICK], 1, /no subject has group 'nobody'; its values are: control, patient/);
+    await refused(
+      ['compare', db, '--groups', 'control,nobody', '--stage', 'N2', ...QUICK],
+      1,
+      /no subject has group 'nobody'; its values are: control, patient/,
+    );
   }, 30_000);
 
   it('a text covariate is named as text, with the numeric columns there are', async () => {
-    await refused(['compare', db, '--design', 'covariate', '--covariate', 'site', '--stage', 'N2', ...QUICK], 1, /covariate site holds text \(not numbers\); numeric columns: age, scanner/);
+    await refused(
+      ['compare', db, '--design', 'covariate', '--covariate', 'site', '--stage', 'N2', ...QUICK],
+      1,
+      /covariate site holds text \(not numbers\); numeric columns: age, scanner/,
+    );
   }, 30_000);
 
   it('too few subjects after exclusions names who was left out and why', async () => {
@@ -77,15 +89,31 @@ describe('the data cannot serve the contrast (exit 1, one line)', () => {
 
   it('fmaxHz above the stored spectra is refused, not silently cut', async () => {
     // the stored spectra end at ingest's default --max-freq, 45 Hz
-    await refused(['compare', db, '--groups', 'control,patient', '--stage', 'N2', '--fmax', '100', ...QUICK], 1, /fmaxHz 100 Hz lies above the highest stored frequency, 45 Hz; ask for at most 45 Hz/);
+    await refused(
+      ['compare', db, '--groups', 'control,patient', '--stage', 'N2', '--fmax', '100', ...QUICK],
+      1,
+      /fmaxHz 100 Hz lies above the highest stored frequency, 45 Hz; ask for at most 45 Hz/,
+    );
   }, 30_000);
 });
 
 describe('a database bandwise did not write, or one cut short', () => {
   it('compare and band-check refuse a foreign DuckDB file and a truncated one', async () => {
-    await refused(['compare', at('foreign.duckdb'), '--groups', 'control,patient', '--stage', 'N2', ...QUICK], 1, /foreign\.duckdb was not written by bandwise \(it has no runs table; its tables: measurements\)/);
-    await refused(['band-check', at('foreign.duckdb'), '--groups', 'control,patient', '--stage', 'N2', '--band', '4-8', ...QUICK], 1, /was not written by bandwise/);
-    await refused(['compare', at('cut.duckdb'), '--groups', 'control,patient', '--stage', 'N2', ...QUICK], 1, /cut\.duckdb cannot be read as a DuckDB database \(damaged or cut short\)/);
+    await refused(
+      ['compare', at('foreign.duckdb'), '--groups', 'control,patient', '--stage', 'N2', ...QUICK],
+      1,
+      /foreign\.duckdb was not written by bandwise \(it has no runs table; its tables: measurements\)/,
+    );
+    await refused(
+      ['band-check', at('foreign.duckdb'), '--groups', 'control,patient', '--stage', 'N2', '--band', '4-8', ...QUICK],
+      1,
+      /was not written by bandwise/,
+    );
+    await refused(
+      ['compare', at('cut.duckdb'), '--groups', 'control,patient', '--stage', 'N2', ...QUICK],
+      1,
+      /cut\.duckdb cannot be read as a DuckDB database \(damaged or cut short\)/,
+    );
   }, 60_000);
 
   it('ingest refuses a foreign DuckDB file and leaves it as it was', async () => {

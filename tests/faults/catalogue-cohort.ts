@@ -88,7 +88,9 @@ export function writeCatalogueCohort(dir: string, opts: { permissionCase: boolea
   const table = path.join(dir, 'cohort.tsv');
   writeFileSync(
     table,
-    ['subject\tgroup\trecording\tscoring', ...rows.map((r, i) => `${r.subject}\t${i % 2 ? 'patient' : 'control'}\t${r.recording}\t${r.scoring || 'n/a'}`)].join('\n') + '\n',
+    ['subject\tgroup\trecording\tscoring', ...rows.map((r, i) => `${r.subject}\t${i % 2 ? 'patient' : 'control'}\t${r.recording}\t${r.scoring || 'n/a'}`)].join(
+      '\n',
+    ) + '\n',
   );
   return { table };
 }

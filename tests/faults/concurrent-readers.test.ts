@@ -17,7 +17,8 @@ import { cli, dumpAll, run } from './helpers.ts';
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-readers-'));
 const at = (f: string) => path.join(dir, f);
 const LABELS = ['EEG C3', 'EEG C4', 'EEG M1', 'EEG M2'];
-const EXPLAINED_READ = /is open for writing by another process \(PID \d+\), e\.g\. a bandwise ingest or merge still running\. A DuckDB database that one process writes cannot be read by any other until the writer has finished/;
+const EXPLAINED_READ =
+  /is open for writing by another process \(PID \d+\), e\.g\. a bandwise ingest or merge still running\. A DuckDB database that one process writes cannot be read by any other until the writer has finished/;
 const RAW = /Could not set lock|IO Error|Conflicting lock|\n\s+at /;
 
 function cohort(name: string, n: number, seed: number, stages: string[]): string {
@@ -90,7 +91,10 @@ describe('readers while an ingest writes another file', () => {
       expect(readFinished.code, readFinished.out).toBe(0);
       const result = JSON.parse(readFileSync(at('finished.json'), 'utf8')) as { n: Record<string, number> };
       expect(result.n).toEqual({ control: 3, patient: 3 });
-      for (const [what, r] of [['compare', readBusy], ['dashboard', dashBusy]] as const) {
+      for (const [what, r] of [
+        ['compare', readBusy],
+        ['dashboard', dashBusy],
+      ] as const) {
         expect(r.code, r.out).toBe(1);
         expect(r.out).toContain(`bandwise ${what}: ${busy} is open for writing`);
         expect(r.out).toMatch(EXPLAINED_READ);
@@ -111,7 +115,9 @@ describe('readers while an ingest writes another file', () => {
     try {
       const r = await run(['ingest', writerTable, '--out', finished, '--jobs', '1', '--no-fit']);
       expect(r.code, r.out).toBe(1);
-      expect(r.out).toMatch(/^bandwise ingest: .*finished\.duckdb is in use by another process \(PID \d+\): another bandwise ingest or merge writing it, or a reader/m);
+      expect(r.out).toMatch(
+        /^bandwise ingest: .*finished\.duckdb is in use by another process \(PID \d+\): another bandwise ingest or merge writing it, or a reader/m,
+      );
       expect(r.out).toMatch(/DuckDB lets only one process write a database, with no other process reading it meanwhile/);
       expect(r.out).not.toMatch(RAW);
     } finally {

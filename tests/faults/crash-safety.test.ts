@@ -164,7 +164,9 @@ describe(`SIGKILL at ${KILLS} random points of an ingest (seed ${SEED}), then a 
     // two cycles at a time (one per core); each is timed from its own child's events
     for (let k = 0; k < KILLS; k += 2) await Promise.all([cycle(k), cycle(k + 1)]);
     const points = plan.map((p) => (p.progress < 0 ? `${p.afterMs}` : `log ${Math.round(p.progress / 1024)} KiB+${p.afterMs}`)).join(', ');
-    console.log(`crash safety: reference run ${runMs} ms; kill points (ms from spawn, or log peak + ms): ${points}; ${killed}/${KILLS} killed; recordings stored at the kills: ${storedAtKill.join(' ')}`);
+    console.log(
+      `crash safety: reference run ${runMs} ms; kill points (ms from spawn, or log peak + ms): ${points}; ${killed}/${KILLS} killed; recordings stored at the kills: ${storedAtKill.join(' ')}`,
+    );
     // the kills landed all over the run: before anything was stored, midway, and (some) after the last recording
     expect(killed).toBeGreaterThanOrEqual(KILLS - 3);
     expect(storedAtKill.filter((n) => n === 0).length).toBeGreaterThan(0);

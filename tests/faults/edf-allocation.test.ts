@@ -94,7 +94,10 @@ function overBound(allocs: Alloc[], fileBytes: number): Alloc | null {
 }
 
 // Declared values: plausible ones, the largest each field's width can hold, and the edges
-const recordCount = fc.oneof(fc.constantFrom('-1', '0', '1', '2', '3', '99999999', '-99999', '1e8', ' 00003'), fc.integer({ min: -2, max: 99999999 }).map(String));
+const recordCount = fc.oneof(
+  fc.constantFrom('-1', '0', '1', '2', '3', '99999999', '-99999', '1e8', ' 00003'),
+  fc.integer({ min: -2, max: 99999999 }).map(String),
+);
 const samples = fc.oneof(fc.constantFrom('1', '2', '99999999', '0', '-1', '4096'), fc.integer({ min: 1, max: 99999999 }).map(String));
 const signalCount = fc.oneof(fc.constantFrom('1', '2', '3', '9999', '0', '-1'), fc.integer({ min: 1, max: 9999 }).map(String));
 const duration = fc.constantFrom('1', '0.5', '0', '0.0000001', '99999999', '30');
@@ -140,7 +143,10 @@ function hostileFile(declaredHeader: Declared): Uint8Array {
   const records: Uint8Array[] = [];
   let whole = 0;
   for (let r = 0, n = 0; n < d.dataBytes; r++) {
-    const rec = concat([...perSignal.map((k) => samples(new Array<number>(k).fill(7))), ...(d.annotationSignal ? [talBytes(`+${+(r * step).toFixed(7)}\x14\x14\x00`, 8 * bps)] : [])]);
+    const rec = concat([
+      ...perSignal.map((k) => samples(new Array<number>(k).fill(7))),
+      ...(d.annotationSignal ? [talBytes(`+${+(r * step).toFixed(7)}\x14\x14\x00`, 8 * bps)] : []),
+    ]);
     records.push(rec);
     n += rec.length;
     if (n <= d.dataBytes) whole = r + 1;
@@ -153,10 +159,18 @@ function hostileFile(declaredHeader: Declared): Uint8Array {
   const signals: HandEdf['signals'] = d.spr.map((spr, i) => ({ label: `EEG C${i + 3}`, dim: 'uV', pmin: '-3200', pmax: '3200', dmin, dmax, spr }));
   if (d.annotationSignal) signals.push({ label: d.bdf ? 'BDF Annotations' : 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin, dmax, spr: '8' });
   return handEdf({
-    patient: 'X X X X', recording: 'Startdate 01-JAN-2020 X X X', date: '01.01.20', time: '22.00.00',
+    patient: 'X X X X',
+    recording: 'Startdate 01-JAN-2020 X X X',
+    date: '01.01.20',
+    time: '22.00.00',
     ...(d.bdf ? { version: BDF_VERSION } : {}),
-    reserved: d.bdf ? (d.plus === '' ? '24BIT' : d.plus.replace('EDF', 'BDF')) : d.plus, nRecords: d.nRecords, duration: d.duration, signals, data,
-    ...(d.ns !== null ? { ns: d.ns } : {}), ...(d.headerBytes !== null ? { headerBytes: d.headerBytes } : {}),
+    reserved: d.bdf ? (d.plus === '' ? '24BIT' : d.plus.replace('EDF', 'BDF')) : d.plus,
+    nRecords: d.nRecords,
+    duration: d.duration,
+    signals,
+    data,
+    ...(d.ns !== null ? { ns: d.ns } : {}),
+    ...(d.headerBytes !== null ? { headerBytes: d.headerBytes } : {}),
   });
 }
 
@@ -168,7 +182,16 @@ afterAll(() => tmp?.cleanup());
 
 describe('allocation stays within the file whatever the header declares', () => {
   it('the wrapper sees the parser allocate (control: a valid file allocates its header buffer and onset tables)', async () => {
-    const bytes = hostileFile({ nRecords: '20', ns: null, headerBytes: null, spr: ['1', '1'], duration: '1', plus: 'EDF+C', dataBytes: 20 * 20, annotationSignal: true });
+    const bytes = hostileFile({
+      nRecords: '20',
+      ns: null,
+      headerBytes: null,
+      spr: ['1', '1'],
+      duration: '1',
+      plus: 'EDF+C',
+      dataBytes: 20 * 20,
+      annotationSignal: true,
+    });
     const file = path.join(tmp.dir, 'valid.edf');
     writeFileSync(file, bytes);
     const r = await recordAllocations(async () => {
@@ -215,7 +238,9 @@ describe('allocation stays within the file whatever the header declares', () => 
     expect(valid).toBeGreaterThan(50);
     expect(validBdf).toBeGreaterThan(25); // BDF headers are exercised on the accepting side too
     expect(rejected).toBeGreaterThan(500);
-    console.log(`header fuzz: ${valid} valid, ${rejected} rejected; largest allocation ${worst.toFixed(3)} × the file size; consistent declarations rejected for ${JSON.stringify(Object.fromEntries(reasons))}`);
+    console.log(
+      `header fuzz: ${valid} valid, ${rejected} rejected; largest allocation ${worst.toFixed(3)} × the file size; consistent declarations rejected for ${JSON.stringify(Object.fromEntries(reasons))}`,
+    );
   }, 60_000);
 
   it('parseTals: 2,000 random and mutated annotation lists: TALs or EdfFormatError, allocations within the bytes', async () => {

@@ -66,7 +66,14 @@ export function faultEdf(spec: FaultRecording): HandEdf {
     records.push(talBytes(tal, 2 * ANNOTATION_SPR));
   });
   const signals: HandSignal[] = spec.labels.map((label, c) => ({
-    label, dim: 'uV', pmin: '-3200', pmax: '3200', dmin: '-32768', dmax: '32767', spr: String(fs[c]), prefilter: 'HP:0.3Hz LP:35Hz',
+    label,
+    dim: 'uV',
+    pmin: '-3200',
+    pmax: '3200',
+    dmin: '-32768',
+    dmax: '32767',
+    spr: String(fs[c]),
+    prefilter: 'HP:0.3Hz LP:35Hz',
   }));
   signals.push({ label: 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-32768', dmax: '32767', spr: String(ANNOTATION_SPR) });
   return {

@@ -52,7 +52,7 @@ export async function dumpAll(file: string): Promise<Record<string, string[]>> {
   return withDb(file, async (q) => {
     const out: Record<string, string[]> = {};
     // the list of tables itself: a table left behind by an interrupted rewrite would show here
-    out['(tables)'] = (await q("SELECT table_name FROM duckdb_tables() ORDER BY table_name")).map((r) => String(r.table_name));
+    out['(tables)'] = (await q('SELECT table_name FROM duckdb_tables() ORDER BY table_name')).map((r) => String(r.table_name));
     for (const t of ALL_TABLES) {
       const cols = await q(`SELECT column_name, data_type FROM duckdb_columns() WHERE table_name = '${t}' ORDER BY column_index`);
       const kept = cols.filter((c) => !String(c.data_type).startsWith('TIMESTAMP')).map((c) => `"${String(c.column_name)}"`);

@@ -42,14 +42,34 @@ type Expected = { step: string; field: string | null; message: RegExp };
 const FAILS: Record<string, Expected> = {
   'truncated.edf': { step: 'open', field: 'file', message: /^truncated\.edf: file is truncated: 600 bytes, shorter than its 1536-byte header$/ },
   'header-size.edf': { step: 'open', field: 'number of bytes in header', message: /number of bytes in header 1000 disagrees with 256 \+ 256·5 signals = 1536/ },
-  'non-numeric.edf': { step: 'open', field: 'physical maximum', message: /signal 2 \("EEG C4"\): the value \(letters or other characters; content withheld\) is not a number/ },
+  'non-numeric.edf': {
+    step: 'open',
+    field: 'physical maximum',
+    message: /signal 2 \("EEG C4"\): the value \(letters or other characters; content withheld\) is not a number/,
+  },
   'digital-limits.edf': { step: 'open', field: 'digital minimum', message: /signal 3 \("EEG M1"\): digital minimum 100 is not below digital maximum 100/ },
-  'past-end.edf': { step: 'open', field: 'number of data records', message: /number of data records 400 disagrees with the file size: 321600 data bytes hold 300 records of 1072 bytes/ },
-  'annotation-garbage.edf': { step: 'open', field: 'annotations', message: /data record 4, field "annotations" .*: TAL 1: the onset \(3 bytes, content withheld\) is not a signed number/ },
+  'past-end.edf': {
+    step: 'open',
+    field: 'number of data records',
+    message: /number of data records 400 disagrees with the file size: 321600 data bytes hold 300 records of 1072 bytes/,
+  },
+  'annotation-garbage.edf': {
+    step: 'open',
+    field: 'annotations',
+    message: /data record 4, field "annotations" .*: TAL 1: the onset \(3 bytes, content withheld\) is not a signed number/,
+  },
   'scored-long.edf': { step: 'scoring', field: null, message: /^long\.txt: .*scoring runs past the recording end \(300 s\) at epochs 10–13/s },
-  'scored-unknown.edf': { step: 'scoring', field: null, message: /^unknown\.txt: .*unknown stage label \(text #[0-9a-f]{8}, line 5\) at epoch 4 .*unknown stage label \(text #[0-9a-f]{8}, line 8\) at epoch 7/s },
+  'scored-unknown.edf': {
+    step: 'scoring',
+    field: null,
+    message: /^unknown\.txt: .*unknown stage label \(text #[0-9a-f]{8}, line 5\) at epoch 4 .*unknown stage label \(text #[0-9a-f]{8}, line 8\) at epoch 7/s,
+  },
   'duplicate.edf': { step: 'cohort', field: 'subject', message: /^cohort table row 16, column 'subject': subject 'g02' \(no session\) is already in row 2$/ },
-  'folder.edf': { step: 'cohort', field: 'recording', message: /^cohort table row 17, column 'recording': 'folder\.edf' is not a file but a folder \(folder\.edf\)$/ },
+  'folder.edf': {
+    step: 'cohort',
+    field: 'recording',
+    message: /^cohort table row 17, column 'recording': 'folder\.edf' is not a file but a folder \(folder\.edf\)$/,
+  },
   'pipe.edf': { step: 'cohort', field: 'recording', message: /'pipe\.edf' is not a file but a FIFO \(named pipe\)/ },
   'locked.edf': { step: 'open', field: 'file', message: /cannot open the file \(EACCES\): .*permission denied/ },
 };
@@ -59,7 +79,10 @@ describe('ingest fault catalogue: one cohort, each bad input a real file, folder
   it('the child really ran without permission overrides, so mode 000 denies (else the permission case proves nothing)', () => {
     if (isRoot) {
       // CapEff of the child (proc(5)): bits 1 (dac_override) and 2 (dac_read_search) are clear
-      const capEff = execFileSync(DROP_DAC[0], [...DROP_DAC.slice(1), 'grep', 'CapEff', '/proc/self/status']).toString().trim().split(/\s+/)[1];
+      const capEff = execFileSync(DROP_DAC[0], [...DROP_DAC.slice(1), 'grep', 'CapEff', '/proc/self/status'])
+        .toString()
+        .trim()
+        .split(/\s+/)[1];
       expect(BigInt(`0x${capEff}`) & 0b110n).toBe(0n);
     }
     const probe = spawnSync(obeyModes[0] ?? 'cat', [...obeyModes.slice(1), ...(obeyModes.length ? ['cat'] : []), path.join(cohortDir, 'locked.edf')]);
@@ -102,7 +125,7 @@ describe('ingest fault catalogue: one cohort, each bad input a real file, folder
       expect(byFile[`${s}.edf`]).toMatchObject({ n_epochs: 10, channels: 4, epochs: 10, spectra: (4 + 2) * 5 * 2 });
     }
     // the second row for g02 added no participant: g02 once, with row 2's group
-    const g02 = await withDb(db, (q) => q("SELECT \"group\" FROM participants WHERE subject = 'g02'"));
+    const g02 = await withDb(db, (q) => q('SELECT "group" FROM participants WHERE subject = \'g02\''));
     expect(g02).toEqual([{ group: 'patient' }]);
   });
 
@@ -115,24 +138,48 @@ describe('ingest fault catalogue: one cohort, each bad input a real file, folder
     const rec = await withDb(db, (q) => q("SELECT n_epochs_dropped FROM recordings WHERE file_name = 'gaps.edf'"));
     expect(rec[0].n_epochs_dropped).toBe(1);
     // the gap is kept as a warning of that recording (EDF+ 2003 §2.1.3.1: EDF+D may be discontinuous)
-    const warnings = await withDb(db, (q) => q('SELECT w.file, w.step, w.field, w.message, w.recording_id = r.recording_id AS own FROM warnings w JOIN recordings r ON r.file_name = w.file'));
-    expect(warnings).toEqual([{ file: 'gaps.edf', step: 'open', field: 'annotations', message: '1 gap between data records, 15 s in total; epochs that touch a gap are dropped', own: true }]);
+    const warnings = await withDb(db, (q) =>
+      q('SELECT w.file, w.step, w.field, w.message, w.recording_id = r.recording_id AS own FROM warnings w JOIN recordings r ON r.file_name = w.file'),
+    );
+    expect(warnings).toEqual([
+      {
+        file: 'gaps.edf',
+        step: 'open',
+        field: 'annotations',
+        message: '1 gap between data records, 15 s in total; epochs that touch a gap are dropped',
+        own: true,
+      },
+    ]);
     // N3 is epochs 4 and 5: with 5 dropped, at most one N3 epoch can enter its spectrum (g01 has two candidates)
     const n3 = await withDb(db, (q) =>
-      q("SELECT file_name, max(spectra.n_epochs) AS n FROM spectra JOIN recordings USING (recording_id) WHERE stage = 'N3' AND reference = 'recorded' AND file_name IN ('gaps.edf', 'g01.edf') GROUP BY file_name ORDER BY file_name"),
+      q(
+        "SELECT file_name, max(spectra.n_epochs) AS n FROM spectra JOIN recordings USING (recording_id) WHERE stage = 'N3' AND reference = 'recorded' AND file_name IN ('gaps.edf', 'g01.edf') GROUP BY file_name ORDER BY file_name",
+      ),
     );
-    expect(n3).toEqual([{ file_name: 'g01.edf', n: 2 }, { file_name: 'gaps.edf', n: 1 }]);
+    expect(n3).toEqual([
+      { file_name: 'g01.edf', n: 2 },
+      { file_name: 'gaps.edf', n: 1 },
+    ]);
   });
 
   it('mixed sampling rates are stored on one frequency grid; the mastoid reference they cannot support is skipped with its reason in reference_skips', async () => {
-    const ch = await withDb(db, (q) => q("SELECT channel, fs_hz FROM channels JOIN recordings USING (recording_id) WHERE file_name = 'mixed-rates.edf' ORDER BY channel"));
-    expect(ch).toEqual([{ channel: 'C3', fs_hz: 128 }, { channel: 'C4', fs_hz: 256 }, { channel: 'M1', fs_hz: 128 }, { channel: 'M2', fs_hz: 256 }]);
+    const ch = await withDb(db, (q) =>
+      q("SELECT channel, fs_hz FROM channels JOIN recordings USING (recording_id) WHERE file_name = 'mixed-rates.edf' ORDER BY channel"),
+    );
+    expect(ch).toEqual([
+      { channel: 'C3', fs_hz: 128 },
+      { channel: 'C4', fs_hz: 256 },
+      { channel: 'M1', fs_hz: 128 },
+      { channel: 'M2', fs_hz: 256 },
+    ]);
     // 4-s Welch segments at either rate: 0.25-Hz bins, 0–45 Hz = 181 bins (README "Spectra")
     const grid = await withDb(db, (q) =>
       q("SELECT DISTINCT freq_step_hz, n_bins, reference FROM spectra JOIN recordings USING (recording_id) WHERE file_name = 'mixed-rates.edf'"),
     );
     expect(grid).toEqual([{ freq_step_hz: 0.25, n_bins: 181, reference: 'recorded' }]);
-    const skips = await withDb(db, (q) => q('SELECT file_name, s.reference, reason FROM reference_skips s JOIN recordings USING (recording_id) ORDER BY file_name'));
+    const skips = await withDb(db, (q) =>
+      q('SELECT file_name, s.reference, reason FROM reference_skips s JOIN recordings USING (recording_id) ORDER BY file_name'),
+    );
     expect(skips).toEqual([
       { file_name: 'mixed-rates.edf', reference: 'linked-mastoids', reason: 'mastoid and scalp channels have different sampling rates' },
       { file_name: 'no-mastoids.edf', reference: 'linked-mastoids', reason: 'mastoid M1/A1 and M2/A2 not recorded' },
@@ -150,7 +197,8 @@ describe('disk full for the output database', () => {
   const EIGHT = Array.from({ length: 8 }, (_, i) => `d${i + 1}`);
   beforeAll(() => {
     mkdirSync(goodDir, { recursive: true });
-    for (const [i, s] of EIGHT.entries()) writeFileSync(path.join(goodDir, `${s}.edf`), faultEdfBytes({ labels: ['EEG C3', 'EEG C4', 'EEG M1', 'EEG M2'], seed: 60 + i }));
+    for (const [i, s] of EIGHT.entries())
+      writeFileSync(path.join(goodDir, `${s}.edf`), faultEdfBytes({ labels: ['EEG C3', 'EEG C4', 'EEG M1', 'EEG M2'], seed: 60 + i }));
     table = path.join(goodDir, 'cohort.tsv');
     writeFileSync(table, ['subject\trecording', ...EIGHT.map((s) => `${s}\t${s}.edf`)].join('\n') + '\n');
     mkdirSync(diskDir);

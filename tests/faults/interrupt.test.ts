@@ -93,7 +93,10 @@ describe('SIGINT and SIGTERM during an ingest', () => {
   }, 120_000);
 
   it('compare, band-check and the dashboard refuse the unfinished run unless it is named', async () => {
-    for (const [command, extra] of [['compare', QUICK], ['band-check', [...QUICK, '--band', '11-16']]] as const) {
+    for (const [command, extra] of [
+      ['compare', QUICK],
+      ['band-check', [...QUICK, '--band', '11-16']],
+    ] as const) {
       const r = await run([command, db, ...extra, '--out', at(`${command}.json`)]);
       expect(r.code, r.out).toBe(1);
       expect(r.out.trim()).toBe(
@@ -109,7 +112,24 @@ describe('SIGINT and SIGTERM during an ingest', () => {
 
   it('named with --run, the unfinished run is analysed, and the result and the methods text say so', async () => {
     // a covariate design needs three subjects, whatever their groups
-    const r = await run(['compare', db, '--design', 'covariate', '--covariate', 'age', '--stage', 'N2', '--permutations', '20', '--quiet', '--no-ledger', '--run', runId, '--out', at('named.json')]);
+    const r = await run([
+      'compare',
+      db,
+      '--design',
+      'covariate',
+      '--covariate',
+      'age',
+      '--stage',
+      'N2',
+      '--permutations',
+      '20',
+      '--quiet',
+      '--no-ledger',
+      '--run',
+      runId,
+      '--out',
+      at('named.json'),
+    ]);
     expect(r.code, r.out).toBe(0);
     expect(r.out).toContain(`run ${runId} is unfinished`);
     const result = JSON.parse(readFileSync(at('named.json'), 'utf8'));
@@ -170,7 +190,9 @@ describe('a write-ahead log left by a killed writer', () => {
     const inst = await DuckDBInstance.create(db, { checkpoint_threshold: '1TB' });
     const c = await inst.connect();
     await c.run('PRAGMA disable_checkpoint_on_shutdown');
-    await c.run("INSERT INTO ingest_errors (run_id, file, step, field, message, logged_at) VALUES ('test', NULL, 'test', NULL, 'a row only in the log', now())");
+    await c.run(
+      "INSERT INTO ingest_errors (run_id, file, step, field, message, logged_at) VALUES ('test', NULL, 'test', NULL, 'a row only in the log', now())",
+    );
     c.closeSync();
     inst.closeSync();
     expect(statSync(`${db}.wal`).size).toBeGreaterThan(0);

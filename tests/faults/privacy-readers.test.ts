@@ -42,14 +42,38 @@ function clean(bytes: Buffer | string, where: string): void {
 beforeAll(async () => {
   const rows: string[] = [];
   for (let i = 0; i < 6; i++) {
-    writeFileSync(at(`p${i + 1}.edf`), faultEdfBytes({ labels: ['EEG C3', 'EEG C4', 'EEG M1', 'EEG M2'], seed: 110 + i, patient: PATIENT_ID, recording: RECORDING_ID, stages: STAGES_10 }));
+    writeFileSync(
+      at(`p${i + 1}.edf`),
+      faultEdfBytes({ labels: ['EEG C3', 'EEG C4', 'EEG M1', 'EEG M2'], seed: 110 + i, patient: PATIENT_ID, recording: RECORDING_ID, stages: STAGES_10 }),
+    );
     rows.push(`p${i + 1}\t${i % 2 ? 'patient' : 'control'}\tp${i + 1}.edf`);
   }
   writeFileSync(at('cohort.tsv'), ['subject\tgroup\trecording', ...rows].join('\n') + '\n');
   const steps: [string, string[]][] = [
     // 3 N2 epochs per recording: --min-epochs 2 keeps their spectra unflagged, so compare uses them
-    ['ingest', ['ingest', at('cohort.tsv'), '--out', at('db.duckdb'), '--jobs', '1', '--no-fit', '--min-epochs', '2', '--reference', 'recorded,linked-mastoids']],
-    ['compare', ['compare', at('db.duckdb'), '--groups', 'control,patient', '--stage', 'N2', '--permutations', '200', '--out', at('result.json'), '--tsv', at('clusters.tsv'), '--points-tsv', at('points.tsv')]],
+    [
+      'ingest',
+      ['ingest', at('cohort.tsv'), '--out', at('db.duckdb'), '--jobs', '1', '--no-fit', '--min-epochs', '2', '--reference', 'recorded,linked-mastoids'],
+    ],
+    [
+      'compare',
+      [
+        'compare',
+        at('db.duckdb'),
+        '--groups',
+        'control,patient',
+        '--stage',
+        'N2',
+        '--permutations',
+        '200',
+        '--out',
+        at('result.json'),
+        '--tsv',
+        at('clusters.tsv'),
+        '--points-tsv',
+        at('points.tsv'),
+      ],
+    ],
     ['report', ['report', at('result.json'), '--out', at('methods.md')]],
   ];
   for (const [name, args] of steps) {
@@ -88,7 +112,10 @@ describe('planted EDF identification never reaches readers', () => {
     const server = await startDashboardServer({ dbPath: at('db.duckdb'), appDir });
     const seen: string[] = [];
     const fetchAll = async (p: string, init?: RequestInit) => {
-      const res = await fetch(new URL(p, server.url), { ...init, headers: { ...(init?.headers as Record<string, string> | undefined), ...accessCookie(server.url) } });
+      const res = await fetch(new URL(p, server.url), {
+        ...init,
+        headers: { ...(init?.headers as Record<string, string> | undefined), ...accessCookie(server.url) },
+      });
       const body = Buffer.from(await res.arrayBuffer());
       clean(body, `${init?.method ?? 'GET'} ${p} body`);
       clean([...res.headers].map(([k, v]) => `${k}: ${v}`).join('\n'), `${p} headers`);
@@ -96,7 +123,8 @@ describe('planted EDF identification never reaches readers', () => {
       return { res, body };
     };
     try {
-      const walk = (d: string): string[] => readdirSync(d).flatMap((f) => (statSync(path.join(d, f)).isDirectory() ? walk(path.join(d, f)) : [path.join(d, f)]));
+      const walk = (d: string): string[] =>
+        readdirSync(d).flatMap((f) => (statSync(path.join(d, f)).isDirectory() ? walk(path.join(d, f)) : [path.join(d, f)]));
       const appFiles = walk(appDir).map((f) => '/' + path.relative(appDir, f).split(path.sep).join('/'));
       expect(appFiles).toContain('/index.html');
       expect((await fetchAll('/')).res.status).toBe(200);
@@ -106,7 +134,8 @@ describe('planted EDF identification never reaches readers', () => {
       const whole = await fetchAll(DATABASE_URL_PATH);
       expect(whole.body.equals(db)).toBe(true); // the served bytes are the database's
       expect((await fetchAll(DATABASE_URL_PATH, { headers: { Range: `bytes=4096-${Math.min(db.length, 300_000) - 1}` } })).res.status).toBe(206);
-      for (const p of [`${DATABASE_URL_PATH}.wal`, '/p1.edf', '/../p1.edf', '/data/../../p1.edf', '/nothing-here']) expect((await fetchAll(p)).res.status, p).toBe(404);
+      for (const p of [`${DATABASE_URL_PATH}.wal`, '/p1.edf', '/../p1.edf', '/data/../../p1.edf', '/nothing-here'])
+        expect((await fetchAll(p)).res.status, p).toBe(404);
       expect((await fetchAll('/', { method: 'POST' })).res.status).toBe(405);
     } finally {
       await server.close();

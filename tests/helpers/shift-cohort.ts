@@ -16,7 +16,8 @@ const covariates = { ageMean: 40, ageSd: 10, femaleFraction: 0.5, scoreMean: 10,
 /** Invented scenario: the demo's background and spindles, fewer subjects and channels, a short all-N2 night. */
 export const SCENARIO = {
   name: 'spindle frequency shift (invented)',
-  description: 'Invented: 8 controls and 8 patients, 10 min of N2; patients’ fast spindles are 1 Hz slower (12.5 instead of 13.5 Hz) with the same amplitude; nothing else differs.',
+  description:
+    'Invented: 8 controls and 8 patients, 10 min of N2; patients’ fast spindles are 1 Hz slower (12.5 instead of 13.5 Hz) with the same amplitude; nothing else differs.',
   seed: 4242,
   nightMin: 10,
   stages: Array(20).fill('N2'),
@@ -31,7 +32,19 @@ export const SCENARIO = {
     R: { offset: 1.6, exponent: 2.1 },
   },
   background: { sources: ['Fz', 'Cz', 'Pz', 'Oz', 'C5', 'C6'].map((site) => ({ site, widthDeg: 40, weight: 1 })), electrodeWeight: 0.25 },
-  rhythms: [{ name: 'fast-spindle', kind: 'bursts', site: 'CPz', widthDeg: 50, centerHz: 13.5, amplitudeUv: 18, durationS: [0.5, 2], burstFrequencySdHz: 0.3, perMinute: { N2: 6 } }],
+  rhythms: [
+    {
+      name: 'fast-spindle',
+      kind: 'bursts',
+      site: 'CPz',
+      widthDeg: 50,
+      centerHz: 13.5,
+      amplitudeUv: 18,
+      durationS: [0.5, 2],
+      burstFrequencySdHz: 0.3,
+      perMinute: { N2: 6 },
+    },
+  ],
   variability: { offsetSd: 0.1, exponentSd: 0.08, rhythmAmplitudeSdLog10: 0.1, rhythmFrequencySdFraction: 0.025 },
   groups: [
     { name: 'control', codePrefix: 'ctl', size: 8, fsHz: 128, covariates },

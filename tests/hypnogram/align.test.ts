@@ -22,17 +22,24 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 const at = (name: string) => path.join(dir, name);
 
 /** The scoring as the scorer wrote it, onsets from the scoring file's start: W 10 min, N2 20 min, W 15 min. */
-const SCORED: LibedfAnnotation[] = [[0, 600, 'Sleep stage W'], [600, 1200, 'Sleep stage 2'], [1800, 900, 'Sleep stage W']];
-/** What it means on a 60-min recording that started 15 min before the scoring file: epochs 0–29 unscored. */
-const ALIGNED: Stage[] = [
-  ...Array<Stage>(30).fill('unscored'),
-  ...Array<Stage>(20).fill('W'),
-  ...Array<Stage>(40).fill('N2'),
-  ...Array<Stage>(30).fill('W'),
+const SCORED: LibedfAnnotation[] = [
+  [0, 600, 'Sleep stage W'],
+  [600, 1200, 'Sleep stage 2'],
+  [1800, 900, 'Sleep stage W'],
 ];
+/** What it means on a 60-min recording that started 15 min before the scoring file: epochs 0–29 unscored. */
+const ALIGNED: Stage[] = [...Array<Stage>(30).fill('unscored'), ...Array<Stage>(20).fill('W'), ...Array<Stage>(40).fill('N2'), ...Array<Stage>(30).fill('W')];
 
 const params = (p: Partial<ScoringParams> = {}) => ({ ...DEFAULT_SCORING_PARAMS, ...p, epochS: 30 });
-const rec = (scoringPath: string | null, recordingPath = at('rec.edf')): CohortRecording => ({ row: 1, subject: 's1', session: null, group: null, recordingPath, scoringPath, covariates: {} });
+const rec = (scoringPath: string | null, recordingPath = at('rec.edf')): CohortRecording => ({
+  row: 1,
+  subject: 's1',
+  session: null,
+  group: null,
+  recordingPath,
+  scoringPath,
+  covariates: {},
+});
 async function score(scoringPath: string | null, recordingPath = at('rec.edf'), p: Partial<ScoringParams> = {}) {
   const edf = await openEdf(recordingPath);
   try {
@@ -42,7 +49,10 @@ async function score(scoringPath: string | null, recordingPath = at('rec.edf'), 
   }
 }
 async function refused(p: Promise<unknown>): Promise<ScoringError> {
-  const e = await p.then(() => null, (x: unknown) => x);
+  const e = await p.then(
+    () => null,
+    (x: unknown) => x,
+  );
   expect(e).toBeInstanceOf(ScoringError);
   return e as ScoringError;
 }
@@ -59,15 +69,31 @@ beforeAll(() => {
   writeLibedf(dir, at('late-10s.edf'), { start: [2020, 1, 1, 22, 15, 10], seconds: 0, signal: null, annotations: SCORED });
   writeLibedf(dir, at('other-day.edf'), { start: [2020, 1, 3, 22, 15, 0], seconds: 0, signal: null, annotations: SCORED });
   writeLibedf(dir, at('after-end.edf'), { start: [2020, 1, 1, 23, 30, 0], seconds: 0, signal: null, annotations: SCORED });
-  writeLibedf(dir, at('early.edf'), { start: [2020, 1, 1, 21, 55, 0], seconds: 0, signal: null, annotations: [[0, 300, 'Sleep stage ?'], [300, 3600, 'Sleep stage 2']] });
+  writeLibedf(dir, at('early.edf'), {
+    start: [2020, 1, 1, 21, 55, 0],
+    seconds: 0,
+    signal: null,
+    annotations: [
+      [0, 300, 'Sleep stage ?'],
+      [300, 3600, 'Sleep stage 2'],
+    ],
+  });
   // record duration 0, built by hand (EDF+ 2003 allows it for annotation-only files): 22:15:00
   const records = SCORED.map(([o, d, t]) => talBytes(`+0\x14\x14\x00+${o}\x15${d}\x14${t}\x14\x00`, 60));
-  writeFileSync(at('zero.edf'), handEdf({
-    patient: 'X X X X', recording: 'Startdate 01-JAN-2020 X X X', date: '01.01.20', time: '22.15.00', reserved: 'EDF+C',
-    nRecords: String(records.length), duration: '0',
-    signals: [{ label: 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-32768', dmax: '32767', spr: '30' }],
-    data: concat(records),
-  }));
+  writeFileSync(
+    at('zero.edf'),
+    handEdf({
+      patient: 'X X X X',
+      recording: 'Startdate 01-JAN-2020 X X X',
+      date: '01.01.20',
+      time: '22.15.00',
+      reserved: 'EDF+C',
+      nRecords: String(records.length),
+      duration: '0',
+      signals: [{ label: 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-32768', dmax: '32767', spr: '30' }],
+      data: concat(records),
+    }),
+  );
 });
 
 describe('a separate scoring EDF+ is placed on its recording by absolute time', () => {
@@ -98,7 +124,9 @@ describe('a separate scoring EDF+ is placed on its recording by absolute time', 
     expect(r.shiftS).toBeCloseTo(900, 9);
     expect(r.hypnogram.stages).toEqual(ALIGNED);
     const w = r.hypnogram.warnings.find((x) => x.kind === 'scoring-shift-snapped')!;
-    expect(w.message).toBe('the scoring starts 900.5 s after the recording (scoring file 2020-01-01 22:15:00.5, recording 2020-01-01 22:00:00): 0.5 s off the 30-s epoch grid, below the 1-s resolution of EDF header clocks; moved onto the grid (shift 900 s)');
+    expect(w.message).toBe(
+      'the scoring starts 900.5 s after the recording (scoring file 2020-01-01 22:15:00.5, recording 2020-01-01 22:00:00): 0.5 s off the 30-s epoch grid, below the 1-s resolution of EDF header clocks; moved onto the grid (shift 900 s)',
+    );
   });
 
   it('a shift 1 s or more off the epoch grid is refused in one error with both start times', async () => {

@@ -51,7 +51,15 @@ describe('scoring from EDF+ annotations', () => {
   });
 
   it('rejects scoring whole epochs past the recording end, naming the epochs and label', () => {
-    const e = scoringError(() => score([{ onsetS: 0, durationS: 90, texts: ['N2'] }, { onsetS: 90, durationS: 90, texts: ['N3'] }], { recordingDurationS: 120 }));
+    const e = scoringError(() =>
+      score(
+        [
+          { onsetS: 0, durationS: 90, texts: ['N2'] },
+          { onsetS: 90, durationS: 90, texts: ['N3'] },
+        ],
+        { recordingDurationS: 120 },
+      ),
+    );
     expect(e.file).toBe('night.edf');
     expect(e.epochs).toEqual([4, 5]);
     expect(e.message).toMatch(/past the recording end \(120 s\) at epochs 4–5 \(120–180 s\): 'N3'/);
@@ -60,7 +68,13 @@ describe('scoring from EDF+ annotations', () => {
 
   it('drops only a partial last epoch, with a warning', () => {
     // 135 s = 4 whole epochs + 15 s: epoch 4 is partial.
-    const h = score([{ onsetS: 0, durationS: 90, texts: ['N2'] }, { onsetS: 90, durationS: 45, texts: ['R'] }], { recordingDurationS: 135 });
+    const h = score(
+      [
+        { onsetS: 0, durationS: 90, texts: ['N2'] },
+        { onsetS: 90, durationS: 45, texts: ['R'] },
+      ],
+      { recordingDurationS: 135 },
+    );
     expect(h.stages).toEqual(['N2', 'N2', 'N2', 'R']);
     const w = h.warnings.find((x) => x.kind === 'truncated');
     expect(w?.epochs).toEqual([4]);
@@ -71,14 +85,27 @@ describe('scoring from EDF+ annotations', () => {
   });
 
   it('rejects overlaps naming the epochs and both labels', () => {
-    const e = scoringError(() => score([{ onsetS: 0, durationS: 90, texts: ['Sleep stage 2'] }, { onsetS: 60, durationS: 60, texts: ['Sleep stage 3'] }]));
+    const e = scoringError(() =>
+      score([
+        { onsetS: 0, durationS: 90, texts: ['Sleep stage 2'] },
+        { onsetS: 60, durationS: 60, texts: ['Sleep stage 3'] },
+      ]),
+    );
     expect(e.epochs).toEqual([2]);
     // recognised stage labels may be shown
     expect(e.message).toContain("overlapping scoring at epoch 2 (60–90 s): 'Sleep stage 2' (annotation at 0 s) and 'Sleep stage 3' (annotation at 60 s)");
   });
 
   it('rejects onsets off the epoch grid and durations that are not whole epochs', () => {
-    const e = scoringError(() => score([{ onsetS: 45, durationS: 30, texts: ['N2'] }, { onsetS: 90, durationS: 45, texts: ['N3'] }], { recordingDurationS: 300 }));
+    const e = scoringError(() =>
+      score(
+        [
+          { onsetS: 45, durationS: 30, texts: ['N2'] },
+          { onsetS: 90, durationS: 45, texts: ['N3'] },
+        ],
+        { recordingDurationS: 300 },
+      ),
+    );
     expect(e.problems.map((p) => p.kind)).toEqual(['off-grid', 'duration-off-grid']);
     expect(e.message).toContain("'N2' (annotation at 45 s): onset 45 s is not on the 30-s epoch grid (inside epoch 1 (30–60 s))");
     expect(e.message).toContain("'N3' (annotation at 90 s): duration 45 s from epoch 3 (90–120 s) is not a whole number of 30-s epochs");
@@ -107,7 +134,12 @@ describe('scoring from EDF+ annotations', () => {
   });
 
   it('collects several problems into one error and refuses a file without stages', () => {
-    const e = scoringError(() => score([{ onsetS: 15, durationS: 30, texts: ['N2'] }, { onsetS: 30, durationS: 30, texts: ['N7'] }]));
+    const e = scoringError(() =>
+      score([
+        { onsetS: 15, durationS: 30, texts: ['N2'] },
+        { onsetS: 30, durationS: 30, texts: ['N7'] },
+      ]),
+    );
     expect(e.problems).toHaveLength(2);
     expect(e.message).toMatch(/2 scoring problems/);
     const none = scoringError(() => score([{ onsetS: 0, durationS: null, texts: ['Arousal'] }]));

@@ -37,7 +37,10 @@ describe('scoring tables (TSV/CSV)', () => {
   });
 
   it('reads a CSV with quoted fields and a trial_type column mixing stages and events', async () => {
-    const p = file('b.csv', 'onset,duration,trial_type\r\n0,30,"Sleep stage W"\r\n30,30,"Sleep stage 2"\r\n40,0.5,"Arousal, short"\r\n60,30,"Sleep stage ""R"""\r\n');
+    const p = file(
+      'b.csv',
+      'onset,duration,trial_type\r\n0,30,"Sleep stage W"\r\n30,30,"Sleep stage 2"\r\n40,0.5,"Arousal, short"\r\n60,30,"Sleep stage ""R"""\r\n',
+    );
     // '"Sleep stage ""R"""' unquotes to 'Sleep stage "R"', which looks like a stage label but is unknown.
     const e = await scoringError(readScoringTable(p));
     expect(e.message).toContain(`unknown stage label (${hash8('Sleep stage "R"')}, row 4) at epoch 2 (60–90 s)`);
@@ -61,7 +64,9 @@ describe('scoring tables (TSV/CSV)', () => {
   });
 
   it('names missing columns, bad numbers and ragged rows', async () => {
-    expect((await scoringError(readScoringTable(file('f.tsv', 'onset\tlabel\n0\tW\n')))).message).toMatch(/no 'duration' column[\s\S]*no stage column: expected one of stage, trial_type, description/);
+    expect((await scoringError(readScoringTable(file('f.tsv', 'onset\tlabel\n0\tW\n')))).message).toMatch(
+      /no 'duration' column[\s\S]*no stage column: expected one of stage, trial_type, description/,
+    );
     const bad = await scoringError(readScoringTable(file('g.tsv', 'onset\tduration\tstage\nabc\t30\tW\n30\tlong\tN2\n60\t30\n')));
     expect(bad.message).toContain("row 1, column 'onset': onset 'abc' is not a number of seconds");
     expect(bad.message).toContain("row 2, column 'duration': duration 'long' is not a number of seconds");
@@ -100,7 +105,11 @@ describe('scoring text files (one label per epoch)', () => {
     const h = await readScoringText(file('e.txt', 'N2\nN2\nR\n'), { recordingDurationS: 100, epochS: 20 });
     expect(h.epochS).toBe(20);
     expect(h.stages).toEqual(['N2', 'N2', 'R', 'unscored', 'unscored']);
-    expect(h.warnings[0]).toEqual({ kind: 'scoring-ends-early', epochs: [3, 4], message: 'scoring ends early: no scoring for epochs 3–4 (60–100 s) after the last scored epoch; set to unscored' });
+    expect(h.warnings[0]).toEqual({
+      kind: 'scoring-ends-early',
+      epochs: [3, 4],
+      message: 'scoring ends early: no scoring for epochs 3–4 (60–100 s) after the last scored epoch; set to unscored',
+    });
     expect(h.partial).toBe(true);
   });
 });

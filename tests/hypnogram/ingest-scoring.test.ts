@@ -31,7 +31,12 @@ const IDENTITY = `Pt ${SECRET} 29-FEB-1952`;
 const fill = (n: number, s: Stage) => Array<Stage>(n).fill(s);
 
 /** Scoring as the scorer wrote it, onsets from the scoring file's start (22:15:00): W 10 min, N2 20 min, W 15 min. */
-const SCORED: LibedfAnnotation[] = [[0, 600, 'Sleep stage W'], [600, 1200, 'Sleep stage 2'], [700, null, IDENTITY], [1800, 900, 'Sleep stage W']];
+const SCORED: LibedfAnnotation[] = [
+  [0, 600, 'Sleep stage W'],
+  [600, 1200, 'Sleep stage 2'],
+  [700, null, IDENTITY],
+  [1800, 900, 'Sleep stage W'],
+];
 /** On the 60-min recording that started at 22:00:00: epochs 0–29 unscored, 30–49 W, 50–89 N2, 90–119 W. */
 const LATE = [...fill(30, 'unscored'), ...fill(20, 'W'), ...fill(40, 'N2'), ...fill(30, 'W')];
 // The signal follows the intended stages: 12.5-Hz waves in N2 (1500–2700 s), 9.5 Hz in W, a 3.1-Hz background throughout.
@@ -39,8 +44,24 @@ const LATE_SIGNAL = '5*sin(2*M_PI*3.1*t) + ((t >= 1500 && t < 2700) ? 20*sin(2*M
 const PLAIN = '5*sin(2*M_PI*3.1*t) + 2*sin(2*M_PI*11*t)';
 
 /** The lights night, 120 epochs of 30 s (planted). */
-const NIGHT: [number, number, Stage][] = [[0, 20, 'W'], [20, 4, 'N1'], [24, 36, 'N2'], [60, 20, 'N3'], [80, 6, 'W'], [86, 14, 'N2'], [100, 10, 'R'], [110, 10, 'W']];
-const LABEL: Record<Stage, string> = { W: 'Sleep stage W', N1: 'Sleep stage 1', N2: 'Sleep stage 2', N3: 'Sleep stage 3', R: 'Sleep stage R', unscored: 'Sleep stage ?' };
+const NIGHT: [number, number, Stage][] = [
+  [0, 20, 'W'],
+  [20, 4, 'N1'],
+  [24, 36, 'N2'],
+  [60, 20, 'N3'],
+  [80, 6, 'W'],
+  [86, 14, 'N2'],
+  [100, 10, 'R'],
+  [110, 10, 'W'],
+];
+const LABEL: Record<Stage, string> = {
+  W: 'Sleep stage W',
+  N1: 'Sleep stage 1',
+  N2: 'Sleep stage 2',
+  N3: 'Sleep stage 3',
+  R: 'Sleep stage R',
+  unscored: 'Sleep stage ?',
+};
 
 let runA: IngestSummary;
 let cliB: { code: number | null; out: string };
@@ -70,14 +91,45 @@ beforeAll(async () => {
   writeLibedf(dir, at('rec-day.edf'), { ...common, seconds: 3600, signal: PLAIN, annotations: [] });
   writeLibedf(dir, at('hyp-day.edf'), { start: [2020, 1, 3, 22, 15, 0], seconds: 0, signal: null, annotations: SCORED });
   // trailing unscored labels after the last sample
-  writeLibedf(dir, at('rec-trail.edf'), { ...common, seconds: 1800, signal: PLAIN, annotations: [[0, 1800, 'Sleep stage 2'], [1800, 60, 'Sleep stage ?'], [1860, 30, 'Movement time']] });
+  writeLibedf(dir, at('rec-trail.edf'), {
+    ...common,
+    seconds: 1800,
+    signal: PLAIN,
+    annotations: [
+      [0, 1800, 'Sleep stage 2'],
+      [1800, 60, 'Sleep stage ?'],
+      [1860, 30, 'Movement time'],
+    ],
+  });
   // a scored stage past the end (epochs 60–61 of a 60-epoch recording)
-  writeLibedf(dir, at('rec-past.edf'), { ...common, seconds: 1800, signal: PLAIN, annotations: [[0, 1740, 'Sleep stage 2'], [1740, 120, 'Sleep stage R']] });
+  writeLibedf(dir, at('rec-past.edf'), {
+    ...common,
+    seconds: 1800,
+    signal: PLAIN,
+    annotations: [
+      [0, 1740, 'Sleep stage 2'],
+      [1740, 120, 'Sleep stage R'],
+    ],
+  });
   // lights off at 290 s (inside epoch 9), lights on at 3450 s (start of epoch 115)
   const night: LibedfAnnotation[] = NIGHT.map(([e, n, s]) => [e * 30, n * 30, LABEL[s]]);
-  writeLibedf(dir, at('rec-lights.edf'), { ...common, seconds: 3600, signal: PLAIN, annotations: [...night, [290, null, 'Lights off'], [3450, null, 'Lights on'], [1000, null, IDENTITY]] });
+  writeLibedf(dir, at('rec-lights.edf'), {
+    ...common,
+    seconds: 3600,
+    signal: PLAIN,
+    annotations: [...night, [290, null, 'Lights off'], [3450, null, 'Lights on'], [1000, null, IDENTITY]],
+  });
   // labels only a label map knows, and an unknown one that looks like a stage label
-  writeLibedf(dir, at('rec-map.edf'), { ...common, seconds: 660, signal: PLAIN, annotations: [[0, 300, 'Stadium W'], [300, 300, 'Stadium 2'], [600, 60, `Sleep stage ${SECRET}`]] });
+  writeLibedf(dir, at('rec-map.edf'), {
+    ...common,
+    seconds: 660,
+    signal: PLAIN,
+    annotations: [
+      [0, 300, 'Stadium W'],
+      [300, 300, 'Stadium 2'],
+      [600, 60, `Sleep stage ${SECRET}`],
+    ],
+  });
   writeFileSync(at('map.tsv'), 'label\tstage\nStadium W\tW\nStadium 2\tN2\n');
   writeFileSync(
     at('cohort.tsv'),
@@ -95,8 +147,30 @@ beforeAll(async () => {
   const noOutliers = { ...resolveIngestParams().rejection, outlierZ: 1e9 }; // identical epochs: the robust z rule is off
   runA = await runIngest(at('cohort.tsv'), at('a.duckdb'), { jobs: 2, params: { rejection: noOutliers, fit: null } });
   cliB = await new Promise((resolve) => {
-    const p = spawn(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/ingest/cli-entry.ts'), 'ingest', at('cohort.tsv'), '--out', at('b.duckdb'),
-      '--jobs', '2', '--quiet', '--no-fit', '--outlier-z', '1e9', '--trim-scoring', '--label-map', at('map.tsv'), '--unknown-as-unscored', '--lights-on-texts', 'Lights on,LON'], { stdio: ['ignore', 'pipe', 'pipe'] });
+    const p = spawn(
+      process.execPath,
+      [
+        path.join(repo, 'bin/run-ts.mjs'),
+        path.join(repo, 'tests/ingest/cli-entry.ts'),
+        'ingest',
+        at('cohort.tsv'),
+        '--out',
+        at('b.duckdb'),
+        '--jobs',
+        '2',
+        '--quiet',
+        '--no-fit',
+        '--outlier-z',
+        '1e9',
+        '--trim-scoring',
+        '--label-map',
+        at('map.tsv'),
+        '--unknown-as-unscored',
+        '--lights-on-texts',
+        'Lights on,LON',
+      ],
+      { stdio: ['ignore', 'pipe', 'pipe'] },
+    );
     let out = '';
     p.stdout.on('data', (d) => (out += d));
     p.stderr.on('data', (d) => (out += d));
@@ -109,11 +183,21 @@ describe('ingest with the defaults', () => {
     expect(runA.done).toBe(4);
     expect(await stagesOf(at('a.duckdb'), 'rec-late.edf')).toEqual(LATE);
     expect((await recordingRow(at('a.duckdb'), 'rec-late.edf')).scoring_shift_s).toBe(900);
-    const row = (await query(at('a.duckdb'), `SELECT s.n_epochs, s.power FROM spectra s JOIN recordings r USING (recording_id)
-      WHERE r.file_name = 'rec-late.edf' AND s.stage = 'N2' AND s.reference = 'recorded' AND s.averaging = 'mean'`))[0];
+    const row = (
+      await query(
+        at('a.duckdb'),
+        `SELECT s.n_epochs, s.power FROM spectra s JOIN recordings r USING (recording_id)
+      WHERE r.file_name = 'rec-late.edf' AND s.stage = 'N2' AND s.reference = 'recorded' AND s.averaging = 'mean'`,
+      )
+    )[0];
     expect(row.n_epochs).toBe(40);
     const ref = at('late.f64');
-    const summary = JSON.parse(execFileSync('python3', [path.join(repo, 'tests/ingest/scipy_pipeline.py'), at('rec-late.edf'), '30', '4', '45', ref], { encoding: 'utf8' }).trim().split('\n').pop()!);
+    const summary = JSON.parse(
+      execFileSync('python3', [path.join(repo, 'tests/ingest/scipy_pipeline.py'), at('rec-late.edf'), '30', '4', '45', ref], { encoding: 'utf8' })
+        .trim()
+        .split('\n')
+        .pop()!,
+    );
     const perEpoch = new Float64Array(readFileSync(ref).buffer.slice(0));
     const nBins = summary.n_bins as number;
     const power = row.power as number[];
@@ -170,8 +254,17 @@ describe('ingest with the defaults', () => {
     // lights from the cohort table (22:20 and 23:00 on a 22:00:00 recording): 1200–3600 s, epochs 40–119:
     // TRT 40 min; TST = N2 50–89 = 20 min; SE 50 %; latency (1500 − 1200) s = 5 min; WASO = W 90–119 = 15 min; no R.
     const late = await recordingRow(at('a.duckdb'), 'rec-late.edf');
-    expect([late.lights_off_s, late.lights_on_s, late.lights_source, late.trt_min, late.tst_min, late.se_pct, late.sol_min, late.waso_min, late.rem_latency_min])
-      .toEqual([1200, 3600, 'table', 40, 20, 50, 5, 15, null]);
+    expect([
+      late.lights_off_s,
+      late.lights_on_s,
+      late.lights_source,
+      late.trt_min,
+      late.tst_min,
+      late.se_pct,
+      late.sol_min,
+      late.waso_min,
+      late.rem_latency_min,
+    ]).toEqual([1200, 3600, 'table', 40, 20, 50, 5, 15, null]);
     // no lights anywhere: the scored period stands in (epochs 0–59 of the trailing case)
     const trail = await recordingRow(at('a.duckdb'), 'rec-trail.edf');
     expect([trail.lights_off_s, trail.lights_on_s, trail.lights_source, trail.trt_min, trail.se_pct]).toEqual([null, null, 'none', 30, 100]);
@@ -183,7 +276,13 @@ describe('ingest with --trim-scoring, --label-map and --unknown-as-unscored', ()
     expect(cliB.code, cliB.out).toBe(3); // the other-day scoring still fails
     const [run] = await query(at('b.duckdb'), 'SELECT parameters FROM runs');
     const p = JSON.parse(String(run.parameters));
-    expect(p.scoring).toEqual({ ...DEFAULT_SCORING_PARAMS, labelMap: { 'Stadium W': 'W', 'Stadium 2': 'N2' }, unknownAs: 'unscored', trimScoredOutside: true, lightsOnTexts: ['Lights on', 'LON'] });
+    expect(p.scoring).toEqual({
+      ...DEFAULT_SCORING_PARAMS,
+      labelMap: { 'Stadium W': 'W', 'Stadium 2': 'N2' },
+      unknownAs: 'unscored',
+      trimScoredOutside: true,
+      lightsOnTexts: ['Lights on', 'LON'],
+    });
   });
 
   it('trims scored stages past the end, reads the label map, scores an unknown label as unscored', async () => {
@@ -195,7 +294,15 @@ describe('ingest with --trim-scoring, --label-map and --unknown-as-unscored', ()
 describe('no free text of annotations or identity anywhere', () => {
   it('not in the warnings, not in ingest_errors, not in any byte of either database', async () => {
     for (const file of ['rec-late.edf', 'rec-lights.edf']) {
-      const rec: CohortRecording = { row: 1, subject: 's', session: null, group: null, recordingPath: at(file), scoringPath: file === 'rec-late.edf' ? at('hyp-late.edf') : null, covariates: {} };
+      const rec: CohortRecording = {
+        row: 1,
+        subject: 's',
+        session: null,
+        group: null,
+        recordingPath: at(file),
+        scoringPath: file === 'rec-late.edf' ? at('hyp-late.edf') : null,
+        covariates: {},
+      };
       const edf = await openEdf(at(file));
       const r = await scoringForRecording(edf, rec, { ...DEFAULT_SCORING_PARAMS, epochS: 30 });
       await edf.close();

@@ -6,13 +6,34 @@ describe('stage labels', () => {
   // AASM Manual (Iber et al. 2007): stages W, N1, N2, N3, R; older (4-stage) scoring maps
   // S1→N1, S2→N2, S3 and S4→N3, REM→R (also listed in shared/STANDARDS.md).
   const aasm: [string, Stage][] = [
-    ['W', 'W'], ['N1', 'N1'], ['N2', 'N2'], ['N3', 'N3'], ['R', 'R'],
-    ['Sleep stage W', 'W'], ['S1', 'N1'], ['1', 'N1'], ['Stage 1', 'N1'], ['S2', 'N2'], ['Stage 2', 'N2'],
-    ['S3', 'N3'], ['S4', 'N3'], ['Stage 3', 'N3'], ['Stage 4', 'N3'], ['Sleep stage 4', 'N3'],
-    ['REM', 'R'], ['Stage R', 'R'], ['Sleep stage R', 'R'],
+    ['W', 'W'],
+    ['N1', 'N1'],
+    ['N2', 'N2'],
+    ['N3', 'N3'],
+    ['R', 'R'],
+    ['Sleep stage W', 'W'],
+    ['S1', 'N1'],
+    ['1', 'N1'],
+    ['Stage 1', 'N1'],
+    ['S2', 'N2'],
+    ['Stage 2', 'N2'],
+    ['S3', 'N3'],
+    ['S4', 'N3'],
+    ['Stage 3', 'N3'],
+    ['Stage 4', 'N3'],
+    ['Sleep stage 4', 'N3'],
+    ['REM', 'R'],
+    ['Stage R', 'R'],
+    ['Sleep stage R', 'R'],
     // movement / unknown → unscored (brief; common practice)
-    ['movement', 'unscored'], ['Movement time', 'unscored'], ['unknown', 'unscored'], ['?', 'unscored'],
-    ['M', 'unscored'], ['MT', 'unscored'], ['U', 'unscored'], ['Sleep stage ?', 'unscored'],
+    ['movement', 'unscored'],
+    ['Movement time', 'unscored'],
+    ['unknown', 'unscored'],
+    ['?', 'unscored'],
+    ['M', 'unscored'],
+    ['MT', 'unscored'],
+    ['U', 'unscored'],
+    ['Sleep stage ?', 'unscored'],
   ];
   it.each(aasm)('%s → %s', (label, stage) => {
     expect(stageFromLabel(label)).toBe(stage);
@@ -29,7 +50,16 @@ describe('stage labels', () => {
 
   it('maps the EDF+ hypnogram-as-signal codes W,1,2,3,4,R,M = 0..6 and 9 = unscored', () => {
     // EDF+ specification (Kemp & Olivan 2003), hypnogram stored as a signal.
-    const expected: [number, Stage][] = [[0, 'W'], [1, 'N1'], [2, 'N2'], [3, 'N3'], [4, 'N3'], [5, 'R'], [6, 'unscored'], [9, 'unscored']];
+    const expected: [number, Stage][] = [
+      [0, 'W'],
+      [1, 'N1'],
+      [2, 'N2'],
+      [3, 'N3'],
+      [4, 'N3'],
+      [5, 'R'],
+      [6, 'unscored'],
+      [9, 'unscored'],
+    ];
     for (const [code, stage] of expected) {
       expect(stageFromSignalCode(code)).toBe(stage);
       expect(stageFromLabel(String(code))).toBe(stage);

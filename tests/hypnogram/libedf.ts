@@ -36,10 +36,13 @@ export interface LibedfSpec {
  */
 export function writeLibedf(workDir: string, out: string, spec: LibedfSpec): string {
   const [y, mo, d, hh, mi, s] = spec.start ?? [2020, 1, 1, 22, 0, 0];
-  const lines = spec.annotations.map(([o, du, t]) => `  if (edfwrite_annotation_utf8(h, ${Math.round(o * 1e4)}LL, ${du === null ? -1 : Math.round(du * 1e4)}LL, ${cString(t)}) != 0) return 3;`);
-  const signal = spec.signal === null
-    ? ''
-    : `
+  const lines = spec.annotations.map(
+    ([o, du, t]) => `  if (edfwrite_annotation_utf8(h, ${Math.round(o * 1e4)}LL, ${du === null ? -1 : Math.round(du * 1e4)}LL, ${cString(t)}) != 0) return 3;`,
+  );
+  const signal =
+    spec.signal === null
+      ? ''
+      : `
   edf_set_samplefrequency(h, 0, 100);
   edf_set_physical_maximum(h, 0, 500); edf_set_physical_minimum(h, 0, -500);
   edf_set_digital_maximum(h, 0, 32767); edf_set_digital_minimum(h, 0, -32768);

@@ -18,10 +18,22 @@ import { writeLibedf, type LibedfAnnotation } from './libedf.ts';
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-hyp-lights-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 const at = (name: string) => path.join(dir, name);
-const STAGES: LibedfAnnotation[] = [[0, 600, 'Sleep stage W'], [600, 3000, 'Sleep stage 2']];
+const STAGES: LibedfAnnotation[] = [
+  [0, 600, 'Sleep stage W'],
+  [600, 3000, 'Sleep stage 2'],
+];
 
 async function score(recording: string, scoring: string | null, p: Partial<ScoringParams> = {}, lights?: { off: LightsCell | null; on: LightsCell | null }) {
-  const rec: CohortRecording = { row: 1, subject: 's', session: null, group: null, recordingPath: recording, scoringPath: scoring, covariates: {}, ...(lights ? { lights } : {}) };
+  const rec: CohortRecording = {
+    row: 1,
+    subject: 's',
+    session: null,
+    group: null,
+    recordingPath: recording,
+    scoringPath: scoring,
+    covariates: {},
+    ...(lights ? { lights } : {}),
+  };
   const edf = await openEdf(recording);
   try {
     return await scoringForRecording(edf, rec, { ...DEFAULT_SCORING_PARAMS, ...p, epochS: 30 });
@@ -36,7 +48,15 @@ beforeAll(() => {
   writeLibedf(dir, at('codes.edf'), { seconds: 3600, signal: '0', annotations: [...STAGES, [300, null, 'LOFF'], [3300, null, 'LON']] });
   writeLibedf(dir, at('plain.edf'), { seconds: 3600, signal: '0', annotations: [] });
   // a separate scoring file 15 min after its recording, with lights off at its own 0 s
-  writeLibedf(dir, at('late.edf'), { start: [2020, 1, 1, 22, 15, 0], seconds: 0, signal: null, annotations: [[0, 2700, 'Sleep stage 2'], [0, null, 'Lights off']] });
+  writeLibedf(dir, at('late.edf'), {
+    start: [2020, 1, 1, 22, 15, 0],
+    seconds: 0,
+    signal: null,
+    annotations: [
+      [0, 2700, 'Sleep stage 2'],
+      [0, null, 'Lights off'],
+    ],
+  });
   writeLibedf(dir, at('midnight.edf'), { start: [2020, 1, 1, 23, 30, 0], seconds: 3600, signal: '0', annotations: [[0, 3600, 'Sleep stage 2']] });
 });
 
@@ -79,7 +99,9 @@ describe('lights from the cohort table', () => {
     // lights off 23:20 is 600 s before the recording start: the start is taken, with a warning
     const early = await score(at('midnight.edf'), null, {}, { off: { clockS: 23 * 3600 + 20 * 60 }, on: null });
     expect(early.lights).toEqual({ offS: 0, onS: null, source: 'table' });
-    expect(early.hypnogram.warnings).toEqual([{ kind: 'lights-outside', epochs: [], message: 'lights off at -600 s is before the recording start: the recording start is taken' }]);
+    expect(early.hypnogram.warnings).toEqual([
+      { kind: 'lights-outside', epochs: [], message: 'lights off at -600 s is before the recording start: the recording start is taken' },
+    ]);
   });
 });
 
@@ -99,12 +121,16 @@ describe('resolveLights', () => {
   it('drops lights on that is not after lights off, the scoring window standing in', () => {
     const r = resolveLights({ off: [200], on: [100] }, undefined, 0, 300, night);
     expect(r.lights).toEqual({ offS: null, onS: null, source: 'none' });
-    expect(r.warnings).toEqual([{ kind: 'lights-order', epochs: [], message: 'lights on (100 s) is not after lights off (200 s): lights times ignored, the scoring window stands in' }]);
+    expect(r.warnings).toEqual([
+      { kind: 'lights-order', epochs: [], message: 'lights on (100 s) is not after lights off (200 s): lights times ignored, the scoring window stands in' },
+    ]);
     // only lights on, before the first scored epoch (epoch 4 = 120 s)
     const late = hyp([...Array<Stage>(4).fill('unscored'), ...Array<Stage>(6).fill('N2')]);
     const r2 = resolveLights({ off: [], on: [90] }, undefined, 0, 300, late);
     expect(r2.lights.source).toBe('none');
-    expect(r2.warnings[0].message).toBe('lights on (90 s) is not after lights off (120 s, start of scoring): lights times ignored, the scoring window stands in');
+    expect(r2.warnings[0].message).toBe(
+      'lights on (90 s) is not after lights off (120 s, start of scoring): lights times ignored, the scoring window stands in',
+    );
   });
 
   it('moves lights on after the recording end to the end', () => {

@@ -74,9 +74,17 @@ describe('partial scoring: starts late, ends early, gaps', () => {
     expect(h.stages).toEqual(['unscored', 'unscored', 'N2', 'N2', 'unscored', 'R', 'unscored', 'unscored']);
     expect(h.partial).toBe(true);
     expect(h.warnings).toEqual([
-      { kind: 'scoring-starts-late', epochs: [0, 1], message: 'scoring starts late: no scoring for epochs 0–1 (0–60 s) before the first scored epoch; set to unscored' },
+      {
+        kind: 'scoring-starts-late',
+        epochs: [0, 1],
+        message: 'scoring starts late: no scoring for epochs 0–1 (0–60 s) before the first scored epoch; set to unscored',
+      },
       { kind: 'gap', epochs: [4], message: 'no scoring for epoch 4 (120–150 s): set to unscored' },
-      { kind: 'scoring-ends-early', epochs: [6, 7], message: 'scoring ends early: no scoring for epochs 6–7 (180–240 s) after the last scored epoch; set to unscored' },
+      {
+        kind: 'scoring-ends-early',
+        epochs: [6, 7],
+        message: 'scoring ends early: no scoring for epochs 6–7 (180–240 s) after the last scored epoch; set to unscored',
+      },
     ]);
   });
 

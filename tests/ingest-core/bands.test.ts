@@ -43,7 +43,18 @@ print(json.dumps(out))`,
     const p = welch(sine, fs, { segmentS: 4 }).psd;
     expect(bandPower(p, { name: 'peak', loHz: 9, hiHz: 11 }, 0, 0.25, 'integral')).toBeCloseTo(200, 6);
     const whole = bandPower(psd, { name: 'x', loHz: 0.5, hiHz: 12 }, 0, step, 'integral');
-    const parts = ['delta', 'theta', 'alpha'].reduce((s, n) => s + bandPower(psd, DEFAULT_BANDS.find((b) => b.name === n)!, 0, step, 'integral'), 0);
+    const parts = ['delta', 'theta', 'alpha'].reduce(
+      (s, n) =>
+        s +
+        bandPower(
+          psd,
+          DEFAULT_BANDS.find((b) => b.name === n)!,
+          0,
+          step,
+          'integral',
+        ),
+      0,
+    );
     expect(parts).toBeCloseTo(whole, 8);
   });
 
@@ -77,7 +88,9 @@ print(json.dumps(out))`,
     // a preset is a copy: changing it does not change the next parse
     parseBand('alpha').hiHz = 99;
     expect(parseBand('alpha').hiHz).toBe(12);
-    expect(() => parseBand('gamma')).toThrow(/^invalid band 'gamma': expected LO-HI in Hz \(e\.g\. 12-16\), name:LO-HI, or a preset: delta, theta, alpha, sigma, beta, broadband, slow-sigma, fast-sigma$/);
+    expect(() => parseBand('gamma')).toThrow(
+      /^invalid band 'gamma': expected LO-HI in Hz \(e\.g\. 12-16\), name:LO-HI, or a preset: delta, theta, alpha, sigma, beta, broadband, slow-sigma, fast-sigma$/,
+    );
     expect(() => parseBand('8-4')).toThrow(/^band '8–4 Hz': invalid edges 8–4 Hz$/);
     expect(() => parseBand(' :8-12')).toThrow(/band without a name/);
     expect(() => parseBand('a:b:8-12')).toThrow(/invalid band 'a:b:8-12'/);

@@ -43,9 +43,12 @@ describe('spectral outliers (modified z, Iglewicz & Hoaglin 1993)', () => {
     const v = Float64Array.from({ length: 41 }, () => rng.normal() * 2 + 5);
     const idx = Int32Array.from({ length: 30 }, (_, i) => i + 5);
     // outside reference: scipy.stats.median_abs_deviation(scale='normal') = MAD / Φ⁻¹(3/4) = 1.4826·MAD
-    const z = runPython<number[]>(`from scipy.stats import median_abs_deviation
+    const z = runPython<number[]>(
+      `from scipy.stats import median_abs_deviation
 v = numpy.fromfile(inputs['v'])[5:35]
-print(json.dumps((numpy.abs(v - numpy.median(v)) / median_abs_deviation(v, scale='normal')).tolist()))`, { v });
+print(json.dumps((numpy.abs(v - numpy.median(v)) / median_abs_deviation(v, scale='normal')).tolist()))`,
+      { v },
+    );
     const ours = modifiedZ(v, idx);
     // 1.4826 vs 1/Φ⁻¹(0.75) = 1.482602…: relative difference 1.5e-6
     z.forEach((zi, i) => expect(Math.abs(ours[i] - zi)).toBeLessThan(1e-5 * Math.max(1, zi)));
@@ -63,7 +66,10 @@ print(json.dumps((numpy.abs(v - numpy.median(v)) / median_abs_deviation(v, scale
     broad[45] = 9;
     eligible[45] = 0; // already rejected in the time domain: not judged, not in the median
     const out = spectralOutliers(broad, muscle, group, eligible, 3.5);
-    expect(out.map((o) => [o.epoch, o.reason])).toEqual([[10, 'broadband-outlier'], [40, 'muscle-outlier']]);
+    expect(out.map((o) => [o.epoch, o.reason])).toEqual([
+      [10, 'broadband-outlier'],
+      [40, 'muscle-outlier'],
+    ]);
     expect(out[0].value).toBeGreaterThan(3.5);
     // epochs outside any group (stage index −1) are never judged
     expect(spectralOutliers(broad, muscle, new Int32Array(n).fill(-1), eligible)).toEqual([]);
@@ -80,7 +86,10 @@ print(json.dumps((numpy.abs(v - numpy.median(v)) / median_abs_deviation(v, scale
     const broad = Float64Array.from(muscle, (m) => m + 1);
     const group = new Int32Array(14);
     const eligible = new Uint8Array(14).fill(1);
-    const plain = modifiedZ(muscle, Int32Array.from({ length: 14 }, (_, i) => i));
+    const plain = modifiedZ(
+      muscle,
+      Int32Array.from({ length: 14 }, (_, i) => i),
+    );
     expect(plain.filter((z) => z > 3.5).length).toBe(6);
     expect(spectralOutliers(broad, muscle, group, eligible, 3.5).length).toBe(6);
     const floors = { broadband: [0.0186], muscle: [0.0186] };

@@ -1,7 +1,13 @@
 import { describe, expect, it } from 'vitest';
 import { runPython } from '../helpers/python.ts';
 import {
-  averageStage, chiSquareMedianRatio, hannWindow, overlapCorrelation, stageMean, stageMedian, welchDegreesOfFreedom,
+  averageStage,
+  chiSquareMedianRatio,
+  hannWindow,
+  overlapCorrelation,
+  stageMean,
+  stageMedian,
+  welchDegreesOfFreedom,
 } from '../../src/core/spectrum/stage-average.ts';
 import { Welch } from '../../src/core/spectrum/welch.ts';
 import { Random } from '../../src/core/stats/random.ts';
@@ -21,7 +27,7 @@ print(json.dumps([float(chi2.median(v) / v) for v in ${JSON.stringify(nus)}]))`)
     const w = hannWindow(1024);
     expect(overlapCorrelation(w, 512, 1)).toBeCloseTo(1 / 6, 10);
     expect(overlapCorrelation(w, 512, 2)).toBe(0);
-    expect(welchDegreesOfFreedom(14, w, 512)).toBeCloseTo(28 / (1 + 2 * (13 / 14) / 36), 10);
+    expect(welchDegreesOfFreedom(14, w, 512)).toBeCloseTo(28 / (1 + (2 * (13 / 14)) / 36), 10);
     expect(welchDegreesOfFreedom(1, w, 512)).toBe(2);
   });
 
@@ -73,7 +79,7 @@ print(json.dumps([float(chi2.median(v) / v) for v in ${JSON.stringify(nus)}]))`)
     expect(Math.abs(interiorMean(mean) / truth - 1)).toBeLessThan(0.01);
     expect(Math.abs(interiorMean(med) / truth - 1)).toBeLessThan(0.01);
     // without the correction the median is biased low by 1 − b(ν) ≈ 2.5 %
-    expect(interiorMean(med) * chiSquareMedianRatio(nu) / truth).toBeLessThan(0.985);
+    expect((interiorMean(med) * chiSquareMedianRatio(nu)) / truth).toBeLessThan(0.985);
   });
 
   it('flags a stage with too few clean epochs but still stores its count', () => {

@@ -51,7 +51,7 @@ beforeAll(async () => {
   const scenario = JSON.parse(readFileSync(path.resolve(import.meta.dirname, '../../demo-cohort/scenario.json'), 'utf8'));
   scenario.nightMin = 20;
   scenario.groups = scenario.groups.map((g: object) => ({ ...g, size: 3 }));
-  scenario.subjects = { 'pat02': { fsHz: 128 } };
+  scenario.subjects = { pat02: { fsHz: 128 } };
   scenario.artifacts = [
     { kind: 'movement', subject: 'ctl02', epochFraction: 0.25, rmsUv: 150, durationS: [2, 8] },
     { kind: 'mains', subject: 'pat03', frequencyHz: 50, amplitudeUv: 25, channels: 'all' },
@@ -88,7 +88,8 @@ describe('ingest of the demo cohort as a table and as its BIDS copy', () => {
   });
 
   it('has the same tables with the same columns and types', async () => {
-    const names = async (db: string) => (await rows(`SELECT table_name FROM duckdb_tables() WHERE database_name = '${db}' ORDER BY table_name`)).map((r) => r.table_name);
+    const names = async (db: string) =>
+      (await rows(`SELECT table_name FROM duckdb_tables() WHERE database_name = '${db}' ORDER BY table_name`)).map((r) => r.table_name);
     expect(await names('b')).toEqual(await names('t'));
     expect(await names('t')).toEqual([...TABLE_NAMES].sort());
     for (const table of TABLE_NAMES) expect(await columnsOf('b', table), table).toEqual(await columnsOf('t', table));
@@ -97,7 +98,11 @@ describe('ingest of the demo cohort as a table and as its BIDS copy', () => {
   it('stores equal rows in every table, compared by DuckDB (EXCEPT ALL both ways)', async () => {
     for (const table of TABLE_NAMES) {
       const drop = EXCLUDED[table] ?? [];
-      const cols = (await columnsOf('t', table)).map((r) => r.column_name as string).filter((n) => !drop.includes(n)).map(quoteIdent).join(', ');
+      const cols = (await columnsOf('t', table))
+        .map((r) => r.column_name as string)
+        .filter((n) => !drop.includes(n))
+        .map(quoteIdent)
+        .join(', ');
       const q = quoteIdent(table);
       const [{ n: nt }] = await rows(`SELECT count(*)::INTEGER AS n FROM t.${q}`);
       const [{ n: nb }] = await rows(`SELECT count(*)::INTEGER AS n FROM b.${q}`);
@@ -111,9 +116,13 @@ describe('ingest of the demo cohort as a table and as its BIDS copy', () => {
   });
 
   it('has planted artifacts in the compared content (rejections and a mains flag)', async () => {
-    const [{ n: rejected }] = await rows(`SELECT count(*)::INTEGER AS n FROM t.epoch_rejections e JOIN t.recordings r USING (recording_id) WHERE r.subject = 'ctl02'`);
+    const [{ n: rejected }] = await rows(
+      `SELECT count(*)::INTEGER AS n FROM t.epoch_rejections e JOIN t.recordings r USING (recording_id) WHERE r.subject = 'ctl02'`,
+    );
     expect(rejected).toBeGreaterThan(0);
-    const flagged = await rows(`SELECT DISTINCT r.subject FROM t.quality q JOIN t.recordings r USING (recording_id) WHERE q.flagged AND q.metric ILIKE '%mains%'`);
+    const flagged = await rows(
+      `SELECT DISTINCT r.subject FROM t.quality q JOIN t.recordings r USING (recording_id) WHERE q.flagged AND q.metric ILIKE '%mains%'`,
+    );
     expect(flagged.map((r) => r.subject)).toContain('pat03');
   });
 
@@ -148,8 +157,14 @@ describe('ingest of the demo cohort as a table and as its BIDS copy', () => {
 
   it('writes participants.tsv whose participant_id and columns agree with the participants table', async () => {
     // BIDS: participants.tsv, first column participant_id = 'sub-<label>', n/a for missing values
-    const [bHead, ...bBody] = readFileSync(path.join(bidsRoot, 'participants.tsv'), 'utf8').trimEnd().split('\n').map((l) => l.split('\t'));
-    const [tHead, ...tBody] = tableText.trimEnd().split('\n').map((l) => l.split('\t'));
+    const [bHead, ...bBody] = readFileSync(path.join(bidsRoot, 'participants.tsv'), 'utf8')
+      .trimEnd()
+      .split('\n')
+      .map((l) => l.split('\t'));
+    const [tHead, ...tBody] = tableText
+      .trimEnd()
+      .split('\n')
+      .map((l) => l.split('\t'));
     const kept = tHead.filter((h) => h !== 'recording' && h !== 'scoring');
     expect(bHead).toEqual(['participant_id', ...kept.slice(1)]);
     expect(bBody.map((r) => [r[0].replace(/^sub-/, ''), ...r.slice(1)])).toEqual(tBody.map((r) => kept.map((h) => r[tHead.indexOf(h)])));

@@ -29,7 +29,10 @@ describe('compare on worker threads', () => {
     dir = mkdtempSync(path.join(os.tmpdir(), 'bandwise-compare-threads-'));
     file = path.join(dir, 'synthetic.duckdb');
     // a strong exponent effect, so the groups contrasts find clusters (the comparison is not between empty results)
-    await writeSyntheticDatabase(file, syntheticSpec({ recordings: 24, channelCount: 6, nBins: 61, seed: 3, effect: { offsetLog10: 0.3, exponent: 0.4, sigmaHeightLog10: -0.1 } }));
+    await writeSyntheticDatabase(
+      file,
+      syntheticSpec({ recordings: 24, channelCount: 6, nBins: 61, seed: 3, effect: { offsetLog10: 0.3, exponent: 0.4, sigmaHeightLog10: -0.1 } }),
+    );
   });
 
   afterAll(() => rmSync(dir, { recursive: true, force: true }));

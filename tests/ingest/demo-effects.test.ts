@@ -13,7 +13,14 @@ import { writeSimulatedCohort } from '../../src/simulation/write-cohort.ts';
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-demo-'));
 const db = path.join(dir, 'demo.duckdb');
 const step = 0.25;
-interface Row { subject: string; group: string; channel: string; power: number[]; fsHz: number; nBins: number }
+interface Row {
+  subject: string;
+  group: string;
+  channel: string;
+  power: number[];
+  fsHz: number;
+  nBins: number;
+}
 let rows: Row[] = [];
 let truth: any;
 
@@ -21,17 +28,19 @@ beforeAll(async () => {
   const scenario = JSON.parse(readFileSync(path.resolve(import.meta.dirname, '../../demo-cohort/scenario.json'), 'utf8'));
   scenario.groups = scenario.groups.map((g: object) => ({ ...g, size: 5 }));
   scenario.artifacts = [];
-  scenario.subjects = { 'ctl05': { fsHz: 128 }, 'pat03': { fsHz: 128 } };
+  scenario.subjects = { ctl05: { fsHz: 128 }, pat03: { fsHz: 128 } };
   const files = await writeSimulatedCohort(scenario, dir);
   truth = JSON.parse(readFileSync(files.truthPath, 'utf8'));
   const summary = await runIngest(files.participantsPath, db, { jobs: 2, params: { fit: null } });
   expect(summary).toMatchObject({ done: 10, failed: [] });
   const inst = await DuckDBInstance.create(db, { access_mode: 'READ_ONLY' });
   const c = await inst.connect();
-  const got = (await c.runAndReadAll(`SELECT r.subject, p."group", s.channel, s.power, s.n_bins, s.freq_step_hz, ch.fs_hz
+  const got = (
+    await c.runAndReadAll(`SELECT r.subject, p."group", s.channel, s.power, s.n_bins, s.freq_step_hz, ch.fs_hz
     FROM spectra s JOIN recordings r USING (recording_id) JOIN participants p USING (subject)
     JOIN channels ch ON ch.recording_id = s.recording_id AND ch.channel = s.channel
-    WHERE s.stage = 'N2' AND s.reference = 'recorded' AND s.averaging = 'mean'`)).getRowObjectsJS() as Record<string, any>[];
+    WHERE s.stage = 'N2' AND s.reference = 'recorded' AND s.averaging = 'mean'`)
+  ).getRowObjectsJS() as Record<string, any>[];
   rows = got.map((r) => ({ subject: r.subject, group: r.group, channel: r.channel, power: r.power as number[], fsHz: r.fs_hz, nBins: r.n_bins }));
   expect(got.every((r) => r.freq_step_hz === step)).toBe(true);
   c.closeSync();
@@ -58,10 +67,15 @@ describe('demo cohort: planted effects in the stored spectra', () => {
   });
 
   it('shows the broadband offset: patients − controls at 20–30 Hz equals the truth’s difference', () => {
-    const level = (g: string, fromTruth: boolean) => mean(rows.filter((r) => r.group === g).map((r) => {
-      const a = subjectTruth(r.subject).aperiodic.N2[r.channel];
-      return mean(BETA.map((k) => (fromTruth ? aperiodic(a, k * step) : Math.log10(r.power[k]))));
-    }));
+    const level = (g: string, fromTruth: boolean) =>
+      mean(
+        rows
+          .filter((r) => r.group === g)
+          .map((r) => {
+            const a = subjectTruth(r.subject).aperiodic.N2[r.channel];
+            return mean(BETA.map((k) => (fromTruth ? aperiodic(a, k * step) : Math.log10(r.power[k]))));
+          }),
+      );
     const stored = level('patient', false) - level('control', false);
     const planted = level('patient', true) - level('control', true);
     expect(Math.abs(stored - planted)).toBeLessThan(0.02);
@@ -70,12 +84,17 @@ describe('demo cohort: planted effects in the stored spectra', () => {
 
   it('shows the fast-spindle reduction over C3, C4, Cz, P3, P4, Pz in N2 at each subject’s spindle frequency', () => {
     const sites = ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'];
-    const height = (g: string, fromTruth: boolean) => mean(rows.filter((r) => r.group === g && sites.includes(r.channel)).map((r) => {
-      const t = subjectTruth(r.subject);
-      const peak = t.peaks.N2[r.channel].find((p: { rhythm: string }) => p.rhythm === 'fast-spindle');
-      const k = Math.round(peak.centerHz / step);
-      return fromTruth ? peak.heightLog10 : Math.log10(r.power[k]) - aperiodic(t.aperiodic.N2[r.channel], k * step);
-    }));
+    const height = (g: string, fromTruth: boolean) =>
+      mean(
+        rows
+          .filter((r) => r.group === g && sites.includes(r.channel))
+          .map((r) => {
+            const t = subjectTruth(r.subject);
+            const peak = t.peaks.N2[r.channel].find((p: { rhythm: string }) => p.rhythm === 'fast-spindle');
+            const k = Math.round(peak.centerHz / step);
+            return fromTruth ? peak.heightLog10 : Math.log10(r.power[k]) - aperiodic(t.aperiodic.N2[r.channel], k * step);
+          }),
+      );
     const stored = height('patient', false) - height('control', false);
     const planted = height('patient', true) - height('control', true);
     expect(Math.abs(stored - planted)).toBeLessThan(0.05);

@@ -26,7 +26,11 @@ const SECONDS = EPOCHS * 30;
 const STAGES = Array.from({ length: EPOCHS }, (_, e) => (e < 2 ? 'W' : 'N2'));
 const N2_EPOCHS = STAGES.map((s, e) => (s === 'N2' ? e : -1)).filter((e) => e >= 0);
 // stage annotations as EDF+ texts (EDF+ 2003 §2.2.4 example "Sleep stage 2"), onsets in 100 µs
-const ANNOTATIONS: RefAnnotation[] = STAGES.map((s, e) => ({ onset100us: e * 30 * 10_000, duration100us: 30 * 10_000, text: s === 'W' ? 'Sleep stage W' : 'Sleep stage 2' }));
+const ANNOTATIONS: RefAnnotation[] = STAGES.map((s, e) => ({
+  onset100us: e * 30 * 10_000,
+  duration100us: 30 * 10_000,
+  text: s === 'W' ? 'Sleep stage W' : 'Sleep stage 2',
+}));
 
 /** C expression: a pseudo-random value in [−a, a) (fractional part of a scaled sine, a common hash), plus a sine. */
 const noise = (seed: number, a: number, sineHz: number, sineUv: number) => {
@@ -58,11 +62,22 @@ function write(name: string, signals: RefSignal[]): string {
   const raw = path.join(tmp.dir, `${name}.raw`);
   execFileSync(exe, [file, raw]);
   const all = new Float64Array(readFileSync(raw).buffer.slice(0));
-  planted.set(name, signals.map((_, k) => all.slice(k * FS * SECONDS, (k + 1) * FS * SECONDS)));
+  planted.set(
+    name,
+    signals.map((_, k) => all.slice(k * FS * SECONDS, (k + 1) * FS * SECONDS)),
+  );
   return file;
 }
 
-const rec = (subject: string, file: string): CohortRecording => ({ row: 1, subject, session: null, group: null, recordingPath: file, scoringPath: null, covariates: {} });
+const rec = (subject: string, file: string): CohortRecording => ({
+  row: 1,
+  subject,
+  session: null,
+  group: null,
+  recordingPath: file,
+  scoringPath: null,
+  covariates: {},
+});
 
 /** Mean over the given epochs of scipy.signal.welch per 30-s epoch (Hann, 4-s segments, 50 % overlap, constant detrend, density), 0–45 Hz. */
 function scipyStageMean(x: Float64Array, epochs: number[]): number[] {
@@ -91,7 +106,10 @@ beforeAll(async () => {
   tmp = makeTmpDir('derivations');
   // if gcc or libedf is missing this throws and every test fails (no skip)
   aasmFile = write('aasm', aasm(0));
-  bundle = await processRecording(rec('aasm', aasmFile), resolveIngestParams({ references: ['recorded', 'contralateral-mastoid', 'linked-mastoids', 'average', 'bipolar'], fit: null }));
+  bundle = await processRecording(
+    rec('aasm', aasmFile),
+    resolveIngestParams({ references: ['recorded', 'contralateral-mastoid', 'linked-mastoids', 'average', 'bipolar'], fit: null }),
+  );
 }, 120_000);
 afterAll(() => tmp?.cleanup());
 
@@ -152,7 +170,12 @@ describe('a cohort mixing AASM exports and monopolar recordings', () => {
     const dir = tmp.dir;
     const table = path.join(dir, 'cohort.tsv');
     // two of each kind, one of each kind per group
-    writeFileSync(table, ['subject\tgroup\trecording', 'aasm1\tcontrol\taasm.edf', 'mono1\tcontrol\tmono.edf', 'aasm2\tpatient\taasm2.edf', 'mono2\tpatient\tmono2.edf'].join('\n') + '\n');
+    writeFileSync(
+      table,
+      ['subject\tgroup\trecording', 'aasm1\tcontrol\taasm.edf', 'mono1\tcontrol\tmono.edf', 'aasm2\tpatient\taasm2.edf', 'mono2\tpatient\tmono2.edf'].join(
+        '\n',
+      ) + '\n',
+    );
     write('aasm2', aasm(10));
     write('mono', monopolar(20));
     write('mono2', monopolar(30));
@@ -162,7 +185,16 @@ describe('a cohort mixing AASM exports and monopolar recordings', () => {
   }, 120_000);
 
   const contrast = (reference: string) =>
-    parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', reference, channels: ['C3', 'C4'], fminHz: 1, fmaxHz: 20, permutations: 10 });
+    parseContrast({
+      design: 'groups',
+      groups: ['control', 'patient'],
+      stage: 'N2',
+      reference,
+      channels: ['C3', 'C4'],
+      fminHz: 1,
+      fmaxHz: 20,
+      permutations: 10,
+    });
 
   it("refuses to pool 'recorded' C3 and C4, naming the recordings and their references", async () => {
     const run = compareDatabase(db, contrast('recorded'), [], undefined, undefined, { threads: 1 });

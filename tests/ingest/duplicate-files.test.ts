@@ -29,7 +29,9 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 describe('the same file in several rows', () => {
   it('is refused for every row sharing it, naming all of them, whatever the timing (3 runs, 2 workers)', async () => {
-    const sha = execFileSync('sha256sum', [at('r1.edf')]).toString().split(' ')[0];
+    const sha = execFileSync('sha256sum', [at('r1.edf')])
+      .toString()
+      .split(' ')[0];
     const outcomes: string[] = [];
     for (let k = 0; k < 3; k++) {
       const db = at(`dup-${k}.duckdb`);
@@ -39,7 +41,7 @@ describe('the same file in several rows', () => {
       const stored = await withDb(db, (q) => q('SELECT subject, file_sha256 FROM recordings ORDER BY subject'));
       expect(stored.map((r) => r.subject)).toEqual(['b', 'd', 'f']);
       expect(stored.map((r) => r.file_sha256)).not.toContain(sha);
-      const errors = await withDb(db, (q) => q("SELECT file, step, field, message FROM ingest_errors ORDER BY message, file"));
+      const errors = await withDb(db, (q) => q('SELECT file, step, field, message FROM ingest_errors ORDER BY message, file'));
       expect(errors).toHaveLength(3);
       const all =
         `rows 1, 3 and 5 (subjects a, c and e) hold the same recording (files r1.edf, r1.edf and copy-of-r1.edf, SHA-256 ${sha.slice(0, 12)}…); ` +

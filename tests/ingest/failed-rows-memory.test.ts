@@ -27,7 +27,21 @@ function ingestMissing(rows: number): { status: number | null; maxRssKB: number;
   const timeOut = path.join(dir, `time-${rows}.txt`);
   const r = spawnSync(
     '/usr/bin/time',
-    ['-f', '%M', '-o', timeOut, process.execPath, path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/faults/cli-entry.ts'), 'ingest', table, '--out', db, '--jobs', '1'],
+    [
+      '-f',
+      '%M',
+      '-o',
+      timeOut,
+      process.execPath,
+      path.join(repo, 'bin/run-ts.mjs'),
+      path.join(repo, 'tests/faults/cli-entry.ts'),
+      'ingest',
+      table,
+      '--out',
+      db,
+      '--jobs',
+      '1',
+    ],
     { encoding: 'utf8', maxBuffer: 64 * 2 ** 20 },
   );
   const maxRssKB = Number(spawnSync('tail', ['-1', timeOut], { encoding: 'utf8' }).stdout.trim());
@@ -39,10 +53,20 @@ describe(`a cohort table of ${LARGE.toLocaleString('en-US')} missing recordings`
     const small = ingestMissing(SMALL);
     const large = ingestMissing(LARGE);
     const perRowKB = (large.maxRssKB - small.maxRssKB) / (LARGE - SMALL);
-    console.log(JSON.stringify({ smallRows: SMALL, largeRows: LARGE, smallMaxRssMB: Math.round(small.maxRssKB / 1024), largeMaxRssMB: Math.round(large.maxRssKB / 1024), perRowKB: Number(perRowKB.toFixed(2)) }));
+    console.log(
+      JSON.stringify({
+        smallRows: SMALL,
+        largeRows: LARGE,
+        smallMaxRssMB: Math.round(small.maxRssKB / 1024),
+        largeMaxRssMB: Math.round(large.maxRssKB / 1024),
+        perRowKB: Number(perRowKB.toFixed(2)),
+      }),
+    );
     // nothing stored: exit 1 (README, exit statuses); every row in ingest_errors, each once
     expect(large.status, large.out.slice(0, 2000)).toBe(1);
-    expect(await withDb(large.db, (q) => q("SELECT count(*)::INTEGER AS n, count(DISTINCT file)::INTEGER AS files FROM ingest_errors WHERE step = 'cohort'"))).toEqual([{ n: LARGE, files: LARGE }]);
+    expect(
+      await withDb(large.db, (q) => q("SELECT count(*)::INTEGER AS n, count(DISTINCT file)::INTEGER AS files FROM ingest_errors WHERE step = 'cohort'")),
+    ).toEqual([{ n: LARGE, files: LARGE }]);
     // the terminal gets the first 50 failures and a count of the rest, not 100,000 lines
     expect(large.out).toContain(`… and ${LARGE - 50} more failures, all in the database's ingest_errors table`);
     expect(large.out.split('\n').filter((l) => l.startsWith('  failed ')).length).toBe(50);

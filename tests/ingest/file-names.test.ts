@@ -58,7 +58,11 @@ describe('file names stored', () => {
     const errors = await withDb(db, (q) => q('SELECT file, step, message FROM ingest_errors'));
     expect(errors).toEqual([{ file: 'night1.edf', step: 'cohort', message: "cohort table row 3, column 'recording': recording file not found: 'night1.edf'" }]);
     const lines = (await allText(db)).split('\n');
-    for (const f of [...FOLDERS, 'elsewhere', dir]) expect(lines.filter((l) => l.includes(f)).map((l) => l.slice(0, 40)), f).toEqual([]);
+    for (const f of [...FOLDERS, 'elsewhere', dir])
+      expect(
+        lines.filter((l) => l.includes(f)).map((l) => l.slice(0, 40)),
+        f,
+      ).toEqual([]);
   }, 60_000);
 
   it('relative to the table, or as the table gives it', async () => {
@@ -94,9 +98,15 @@ describe('file names stored', () => {
     // the failed row is named by its row: its errors say nothing of its path
     const fresh = at('hash-only.duckdb');
     await runIngest(table, fresh, { jobs: 1, params: PARAMS, fileNames: 'hash' });
-    expect(await withDb(fresh, (q) => q('SELECT file, message FROM ingest_errors'))).toEqual([{ file: 'row 3', message: "cohort table row 3, column 'recording': recording file not found: 'file of row 3'" }]);
+    expect(await withDb(fresh, (q) => q('SELECT file, message FROM ingest_errors'))).toEqual([
+      { file: 'row 3', message: "cohort table row 3, column 'recording': recording file not found: 'file of row 3'" },
+    ]);
     const lines = (await allText(fresh)).split('\n');
-    for (const f of [...FOLDERS, 'elsewhere', 'night1', 'night2', dir]) expect(lines.filter((l) => l.includes(f)).map((l) => l.slice(0, 40)), f).toEqual([]);
+    for (const f of [...FOLDERS, 'elsewhere', 'night1', 'night2', dir])
+      expect(
+        lines.filter((l) => l.includes(f)).map((l) => l.slice(0, 40)),
+        f,
+      ).toEqual([]);
   }, 60_000);
 });
 

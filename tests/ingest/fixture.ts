@@ -53,16 +53,34 @@ export async function writeFixtureEdf(
     if (label === 'EEG C3') for (const e of opts.artifactEpochs ?? []) x[e * 30 * fs + 100] += 900;
     return x;
   });
-  const signals: EdfWriteSignal[] = labels.map((label) => ({ label, physicalDimension: 'uV', physicalMin: -3200, physicalMax: 3200, samplesPerRecord: fs, prefilter: 'HP:0.3Hz LP:70Hz' }));
-  await writeEdfFile(file, {
-    variant: 'EDF+C', startDate: '2020-01-01T22:00:00', recordDurationS: 1, signals,
-    annotations: stages.map((st, e) => ({ onsetS: e * 30, durationS: 30, text: LABEL_OF[st] })),
-  }, data);
+  const signals: EdfWriteSignal[] = labels.map((label) => ({
+    label,
+    physicalDimension: 'uV',
+    physicalMin: -3200,
+    physicalMax: 3200,
+    samplesPerRecord: fs,
+    prefilter: 'HP:0.3Hz LP:70Hz',
+  }));
+  await writeEdfFile(
+    file,
+    {
+      variant: 'EDF+C',
+      startDate: '2020-01-01T22:00:00',
+      recordDurationS: 1,
+      signals,
+      annotations: stages.map((st, e) => ({ onsetS: e * 30, durationS: 30, text: LABEL_OF[st] })),
+    },
+    data,
+  );
   return stages;
 }
 
 /** Writes `subjects` recordings and cohort.tsv into dir; returns the table path. */
-export async function writeFixtureCohort(dir: string, subjects = 3, opts: { fsHz?: number; nEpochs?: number } = {}): Promise<{ table: string; recordings: FixtureRecording[] }> {
+export async function writeFixtureCohort(
+  dir: string,
+  subjects = 3,
+  opts: { fsHz?: number; nEpochs?: number } = {},
+): Promise<{ table: string; recordings: FixtureRecording[] }> {
   mkdirSync(dir, { recursive: true });
   const recordings: FixtureRecording[] = [];
   for (let s = 0; s < subjects; s++) {

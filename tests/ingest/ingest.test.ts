@@ -11,23 +11,44 @@ import { writeFixtureCohort } from './fixture.ts';
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-ingest-'));
 let table = '';
 const repo = path.resolve(import.meta.dirname, '../..');
-const cli = (args: string[]) => spawn(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/ingest/cli-entry.ts'), 'ingest', ...args], { stdio: ['ignore', 'pipe', 'pipe'] });
-const exitOf = (p: ReturnType<typeof cli>) => new Promise<{ code: number | null; signal: string | null; out: string }>((resolve) => {
-  let out = '';
-  p.stdout!.on('data', (d) => (out += d));
-  p.stderr!.on('data', (d) => (out += d));
-  p.on('close', (code, signal) => resolve({ code, signal, out }));
-});
+const cli = (args: string[]) =>
+  spawn(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/ingest/cli-entry.ts'), 'ingest', ...args], {
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+const exitOf = (p: ReturnType<typeof cli>) =>
+  new Promise<{ code: number | null; signal: string | null; out: string }>((resolve) => {
+    let out = '';
+    p.stdout!.on('data', (d) => (out += d));
+    p.stderr!.on('data', (d) => (out += d));
+    p.on('close', (code, signal) => resolve({ code, signal, out }));
+  });
 
 /** Every table's rows, timestamps left out (they differ between runs), sorted, as JSON text. */
 async function dump(db: string): Promise<Record<string, string[]>> {
   const inst = await DuckDBInstance.create(db, { access_mode: 'READ_ONLY' });
   const c = await inst.connect();
   const out: Record<string, string[]> = {};
-  for (const t of ['runs', 'participants', 'recordings', 'channels', 'epochs', 'epoch_rejections', 'spectra', 'epoch_band_power', 'aperiodic', 'peaks', 'quality', 'ingest_errors', 'warnings']) {
+  for (const t of [
+    'runs',
+    'participants',
+    'recordings',
+    'channels',
+    'epochs',
+    'epoch_rejections',
+    'spectra',
+    'epoch_band_power',
+    'aperiodic',
+    'peaks',
+    'quality',
+    'ingest_errors',
+    'warnings',
+  ]) {
     const times: Record<string, string> = { runs: 'started_at, finished_at', recordings: 'ingested_at', ingest_errors: 'logged_at', warnings: 'logged_at' };
     const r = await c.runAndReadAll(`SELECT * ${times[t] ? `EXCLUDE (${times[t]})` : ''} FROM ${t}`);
-    out[t] = r.getRowObjectsJson().map((row) => JSON.stringify(row)).sort();
+    out[t] = r
+      .getRowObjectsJson()
+      .map((row) => JSON.stringify(row))
+      .sort();
   }
   c.closeSync();
   inst.closeSync();
@@ -56,7 +77,7 @@ describe('runIngest into DuckDB', () => {
     expect(await count(db, 'SELECT count(*) FROM recordings')).toBe(4);
     // 8 channels × 5 stages × 2 averagings
     expect(await count(db, 'SELECT count(*) FROM spectra')).toBe(4 * 80);
-    expect(await count(db, "SELECT count(*) FROM spectra WHERE len(power) <> n_bins OR n_bins <> 181 OR freq_step_hz <> 0.25")).toBe(0);
+    expect(await count(db, 'SELECT count(*) FROM spectra WHERE len(power) <> n_bins OR n_bins <> 181 OR freq_step_hz <> 0.25')).toBe(0);
     expect(await count(db, 'SELECT count(*) FROM aperiodic')).toBe(4 * 80);
     expect(await count(db, "SELECT count(*) FROM epoch_rejections WHERE channel = 'C3' AND reason = 'amplitude'")).toBe(2);
     expect(await count(db, 'SELECT count(*) FROM epochs')).toBe(4 * 72);

@@ -12,7 +12,7 @@ const dir = mkdtempSync(path.join(tmpdir(), 'bw-irasa-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 describe('IRASA at ingest (on request)', () => {
-  it('stores one irasa row per channel and stage, equal to IRASA over that stage\'s clean epochs', async () => {
+  it("stores one irasa row per channel and stage, equal to IRASA over that stage's clean epochs", async () => {
     const file = path.join(dir, 'r.edf');
     const labels = ['EEG C3', 'EEG C4', 'EEG M1', 'EEG M2'];
     const stages = await writeFixtureEdf(file, { seed: 9, fsHz: 128, nEpochs: 24, labels, artifactEpochs: [9] });

@@ -46,7 +46,9 @@ describe('mains lines as a parameter', () => {
   });
 
   it('refuses mains frequencies other than 50 and 60 Hz and a non-positive half-width', () => {
-    expect(() => resolveIngestParams({ quality: { ...resolveIngestParams().quality, mainsHz: [55 as 50] } })).toThrow(/mains frequencies must be 50, 60 or both, got \[55\]/);
+    expect(() => resolveIngestParams({ quality: { ...resolveIngestParams().quality, mainsHz: [55 as 50] } })).toThrow(
+      /mains frequencies must be 50, 60 or both, got \[55\]/,
+    );
     expect(() => resolveIngestParams({ quality: { ...resolveIngestParams().quality, mainsHz: [] } })).toThrow(/got \[\]/);
     expect(() => resolveIngestParams({ quality: { ...resolveIngestParams().quality, mainsHalfWidthHz: 0 } })).toThrow(/half-width must be positive, got 0 Hz/);
   });

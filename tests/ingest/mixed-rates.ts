@@ -20,8 +20,26 @@ const noise = (amp: number, salt: number) => `${amp.toFixed(3)}*((double)((((uns
 export function mixedSignals(seed = 0): RefSignal[] {
   const g = (1 + 0.1 * seed).toFixed(3);
   return [
-    { label: 'EEG C3', dim: 'uV', pmin: -400, pmax: 400, dmin: -32768, dmax: 32767, fs: 256, expr: `${g}*(30.0*sin(2*M_PI*10.0*t) + 12.0*sin(2*M_PI*13.5*t)) + ${noise(40, 12345 + seed)}` },
-    { label: 'EEG C4', dim: 'uV', pmin: -400, pmax: 400, dmin: -32768, dmax: 32767, fs: 256, expr: `${g}*(25.0*sin(2*M_PI*6.0*t) + 8.0*sin(2*M_PI*31.0*t)) + ${noise(30, 777 + seed)}` },
+    {
+      label: 'EEG C3',
+      dim: 'uV',
+      pmin: -400,
+      pmax: 400,
+      dmin: -32768,
+      dmax: 32767,
+      fs: 256,
+      expr: `${g}*(30.0*sin(2*M_PI*10.0*t) + 12.0*sin(2*M_PI*13.5*t)) + ${noise(40, 12345 + seed)}`,
+    },
+    {
+      label: 'EEG C4',
+      dim: 'uV',
+      pmin: -400,
+      pmax: 400,
+      dmin: -32768,
+      dmax: 32767,
+      fs: 256,
+      expr: `${g}*(25.0*sin(2*M_PI*6.0*t) + 8.0*sin(2*M_PI*31.0*t)) + ${noise(30, 777 + seed)}`,
+    },
     { label: 'EMG Slow', dim: 'uV', pmin: -200, pmax: 200, dmin: -32768, dmax: 32767, fs: 1, expr: `20.0*sin(2*M_PI*0.05*t) + ${noise(10, 31 + seed)}` },
     { label: 'EMG Chin', dim: 'uV', pmin: -200, pmax: 200, dmin: -32768, dmax: 32767, fs: 20, expr: `15.0*sin(2*M_PI*3.0*t) + ${noise(20, 4242 + seed)}` },
     { label: 'EMG Leg', dim: 'mV', pmin: -0.2, pmax: 0.2, dmin: -32768, dmax: 32767, fs: 64, expr: `0.01*sin(2*M_PI*20.0*t) + ${noise(0.02, 99 + seed)}` },
@@ -34,7 +52,11 @@ export const MIXED_SIGNALS = mixedSignals(0);
 /** Stages of the 12 epochs: 4 W then 8 N2, as annotated. */
 export const MIXED_STAGES = ['W', 'W', 'W', 'W', 'N2', 'N2', 'N2', 'N2', 'N2', 'N2', 'N2', 'N2'] as const;
 
-const ANNOTATIONS: RefAnnotation[] = MIXED_STAGES.map((s, e) => ({ onset100us: e * 300000, duration100us: 300000, text: s === 'W' ? 'Sleep stage W' : 'Sleep stage 2' }));
+const ANNOTATIONS: RefAnnotation[] = MIXED_STAGES.map((s, e) => ({
+  onset100us: e * 300000,
+  duration100us: 300000,
+  text: s === 'W' ? 'Sleep stage W' : 'Sleep stage 2',
+}));
 
 /**
  * Writes the recording (mixedSignals(seed)) to dir/name.edf with libedf and reads it back with libedf. Returns the file

@@ -23,17 +23,37 @@ import { makeTmpDir } from '../edf/helpers.ts';
 import { wasmClientFor } from '../dashboard/wasm-client.ts';
 import { writeMixedRates } from './mixed-rates.ts';
 
-const SUBJECTS = [['s1', 'control'], ['s2', 'control'], ['s3', 'patient'], ['s4', 'patient']];
+const SUBJECTS = [
+  ['s1', 'control'],
+  ['s2', 'control'],
+  ['s3', 'patient'],
+  ['s4', 'patient'],
+];
 let tmp: ReturnType<typeof makeTmpDir>;
 let db: string;
 let client: Awaited<ReturnType<typeof wasmClientFor>>;
 /** Every stored N2/recorded/mean list, by subject and channel, as node-api reads it. */
 const stored = new Map<string, number[]>();
 
-const contrast = (over: Record<string, unknown>) => parseContrast({
-  design: 'groups', groupColumn: 'group', groups: ['control', 'patient'], stage: 'N2', reference: 'recorded', averaging: 'mean',
-  channels: 'all', fminHz: 1, fmaxHz: 30, measure: 'log-psd', statistic: 'welch-t', correction: 'cluster-mass', clusterP: 0.05, permutations: 20, seed: 1, ...over,
-});
+const contrast = (over: Record<string, unknown>) =>
+  parseContrast({
+    design: 'groups',
+    groupColumn: 'group',
+    groups: ['control', 'patient'],
+    stage: 'N2',
+    reference: 'recorded',
+    averaging: 'mean',
+    channels: 'all',
+    fminHz: 1,
+    fmaxHz: 30,
+    measure: 'log-psd',
+    statistic: 'welch-t',
+    correction: 'cluster-mass',
+    clusterP: 0.05,
+    permutations: 20,
+    seed: 1,
+    ...over,
+  });
 
 beforeAll(async () => {
   tmp = makeTmpDir('mixed-readers');
@@ -45,7 +65,9 @@ beforeAll(async () => {
   expect(summary.failed).toEqual([]);
   const inst = await DuckDBInstance.create(db, { access_mode: 'READ_ONLY' });
   const c = await inst.connect();
-  const r = await c.runAndReadAll("SELECT r.subject, s.channel, s.power FROM spectra s JOIN recordings r USING (recording_id) WHERE s.stage = 'N2' AND s.reference = 'recorded' AND s.averaging = 'mean'");
+  const r = await c.runAndReadAll(
+    "SELECT r.subject, s.channel, s.power FROM spectra s JOIN recordings r USING (recording_id) WHERE s.stage = 'N2' AND s.reference = 'recorded' AND s.averaging = 'mean'",
+  );
   for (const [id, ch, p] of r.getRowsJson()) stored.set(`${id}|${ch}`, (p as number[]).map(Number));
   c.closeSync();
   inst.closeSync();
@@ -64,7 +86,7 @@ describe('spectra of one recording with different lengths', () => {
     expect(Object.fromEntries([...lengths].sort())).toEqual({ C3: 181, C4: 181, Chin: 41, Fast: 181, Leg: 129, Slow: 3 });
   });
 
-  it('the command line reads the channels that reach the recording\'s range, or the channels asked for', async () => {
+  it("the command line reads the channels that reach the recording's range, or the channels asked for", async () => {
     await withDatabase(db, async (node) => {
       const runId = (await runs(node))[0].runId;
       const all = await spectraRows(node, { runId, stage: 'N2', reference: 'recorded', averaging: 'mean' });
@@ -98,7 +120,7 @@ describe('spectra of one recording with different lengths', () => {
     }
   });
 
-  it('the dashboard\'s spectra view loads them', async () => {
+  it("the dashboard's spectra view loads them", async () => {
     const rows = await loadSpectraRows(client, await cohortSchema(client), await runs(client), { stage: 'N2', reference: 'recorded', averaging: 'mean' });
     expect(rows.nBins).toBe(181);
     expect(rows.channels.sort()).toEqual(['C3', 'C4', 'Fast']);
@@ -110,7 +132,11 @@ describe('spectra of one recording with different lengths', () => {
     const web = await databaseFacts(client, db, await runs(client), c);
     expect(web).toEqual(cli);
     expect(cli.samplingRatesHz).toEqual([1, 20, 64, 256, 512]);
-    expect(cli.fitRangesHz).toEqual([[1, 10], [1, 32], [1, 40]]); // Chin, Leg, the rest; the 1-Hz channel has none
+    expect(cli.fitRangesHz).toEqual([
+      [1, 10],
+      [1, 32],
+      [1, 40],
+    ]); // Chin, Leg, the rest; the 1-Hz channel has none
     expect(cli.warnings.recordingsByStatus).toEqual({ 'ok-with-warnings': 4 });
     const text = methodsReport(await compareDatabase(db, c, [], undefined, undefined, { threads: 1 }), cli, null).markdown;
     expect(text).toContain('each channel at most up to its own Nyquist frequency');

@@ -27,7 +27,10 @@ beforeAll(async () => {
   // outside reference: numpy decode of the EDF (Kemp et al. 1992), then per epoch the multitaper
   // estimate built from scipy.signal.windows.dpss tapers (tests/ingest/scipy_pipeline.py)
   const out = path.join(dir, 'ref.f64');
-  const line = execFileSync('python3', [path.join(import.meta.dirname, 'scipy_pipeline.py'), file, '30', '4', '45', out, '2', '3'], { encoding: 'utf8' }).trim().split('\n').pop()!;
+  const line = execFileSync('python3', [path.join(import.meta.dirname, 'scipy_pipeline.py'), file, '30', '4', '45', out, '2', '3'], { encoding: 'utf8' })
+    .trim()
+    .split('\n')
+    .pop()!;
   const summary = JSON.parse(line);
   ref = { spectra: new Float64Array(readFileSync(out).buffer.slice(0)), nBins: summary.n_bins, labels: summary.labels };
 });
@@ -36,8 +39,14 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 describe('ingest with multitaper spectra', () => {
   it('stores a multitaper row beside every Welch row, with the same keys, epochs and segments', () => {
     const key = (s: (typeof bundle.spectra)[number]) => `${s.channel}|${s.stage}|${s.reference}|${s.averaging}|${s.nEpochs}|${s.nSegments}|${s.power.length}`;
-    const welch = bundle.spectra.filter((s) => (s.estimator ?? 'welch') === 'welch').map(key).sort();
-    const mt = bundle.spectra.filter((s) => s.estimator === 'multitaper').map(key).sort();
+    const welch = bundle.spectra
+      .filter((s) => (s.estimator ?? 'welch') === 'welch')
+      .map(key)
+      .sort();
+    const mt = bundle.spectra
+      .filter((s) => s.estimator === 'multitaper')
+      .map(key)
+      .sort();
     expect(welch.length).toBe(8 * 5 * 2); // 8 EEG channels × 5 stages × mean/median
     expect(mt).toEqual(welch);
   });
@@ -68,7 +77,10 @@ describe('ingest with multitaper spectra', () => {
     for (const estimator of ['welch', 'multitaper']) {
       const peaks = bundle.peaks.filter((p) => (p.estimator ?? 'welch') === estimator && p.stage === 'N2' && p.averaging === 'mean' && p.channel === 'C4');
       // the fixture's spindle is a 13.5-Hz sine; the multitaper estimate smooths it over ±W = ±0.5 Hz
-      expect(peaks.some((p) => Math.abs(p.centerHz - 13.5) <= 0.5), estimator).toBe(true);
+      expect(
+        peaks.some((p) => Math.abs(p.centerHz - 13.5) <= 0.5),
+        estimator,
+      ).toBe(true);
     }
   });
 
@@ -90,9 +102,14 @@ describe('ingest with multitaper spectra', () => {
     const mt = await spectraRows(db, { ...q, estimator: 'multitaper' });
     await expect(aperiodicRows(db, { ...q, estimator: 'multitaper' }, 'fit')).resolves.toHaveLength(8);
     await store.close();
-    const expected = (estimator: string, channel: string) => bundle.spectra.find((s) => (s.estimator ?? 'welch') === estimator && s.stage === 'N2' && s.averaging === 'mean' && s.channel === channel)!.power;
+    const expected = (estimator: string, channel: string) =>
+      bundle.spectra.find((s) => (s.estimator ?? 'welch') === estimator && s.stage === 'N2' && s.averaging === 'mean' && s.channel === channel)!.power;
     expect(byDefault.rows.length).toBe(8);
-    for (const [got, estimator] of [[byDefault, 'welch'], [welch, 'welch'], [mt, 'multitaper']] as const) {
+    for (const [got, estimator] of [
+      [byDefault, 'welch'],
+      [welch, 'welch'],
+      [mt, 'multitaper'],
+    ] as const) {
       for (const row of got.rows) expect(Array.from(row.power), `${estimator} ${row.channel}`).toEqual(Array.from(expected(estimator, row.channel)));
     }
   });

@@ -44,7 +44,8 @@ interface Job {
 function scipyStageMeans(jobs: Job[]): number[][] {
   const arrays = Object.fromEntries(MIXED_SIGNALS.map((s, k) => [`s${k}`, samples[k]]));
   const spec = jobs.map((j) => ({ k: signalOf(j.label), fs: MIXED_SIGNALS[signalOf(j.label)].fs, epochs: j.epochs, n_bins: j.nBins, scale: j.scale }));
-  return runPython<number[][]>(`from scipy.signal import welch
+  return runPython<number[][]>(
+    `from scipy.signal import welch
 out = []
 for j in ${JSON.stringify(spec)}:
     x = numpy.fromfile(inputs['s%d' % j['k']]) * j['scale']
@@ -52,7 +53,9 @@ for j in ${JSON.stringify(spec)}:
     n = 30 * fs
     ps = [welch(x[e * n:(e + 1) * n], fs, nperseg=4 * fs, noverlap=2 * fs)[1][:j['n_bins']] for e in j['epochs']]
     out.append(numpy.mean(ps, axis=0).tolist())
-print(json.dumps(out))`, arrays);
+print(json.dumps(out))`,
+    arrays,
+  );
 }
 
 const maxRel = (a: ArrayLike<number>, b: ArrayLike<number>, from = 1) => {
@@ -79,7 +82,12 @@ describe('each channel follows its own Nyquist frequency', () => {
 
   it('stores each slow channel to its own Nyquist frequency, equal to scipy there', () => {
     // 1 Hz → 0–0.5 Hz (3 bins); 20 Hz → 0–10 Hz (41); 64 Hz → 0–32 Hz (129); 512 Hz → 0–45 Hz (181)
-    const cells: [string, string, number, number][] = [['Slow', 'EMG Slow', 3, 1], ['Chin', 'EMG Chin', 41, 1], ['Leg', 'EMG Leg', 129, 1000], ['Fast', 'EMG Fast', 181, 1]];
+    const cells: [string, string, number, number][] = [
+      ['Slow', 'EMG Slow', 3, 1],
+      ['Chin', 'EMG Chin', 41, 1],
+      ['Leg', 'EMG Leg', 129, 1000],
+      ['Fast', 'EMG Fast', 181, 1],
+    ];
     // EMG Leg is stored in mV and scaled to µV: its PSD in µV²/Hz is 10⁶ × the mV²/Hz one
     const expected = scipyStageMeans(cells.map(([ch, label, nBins, scale]) => ({ label, epochs: keptEpochs(ch, 'N2'), nBins, scale })));
     cells.forEach(([ch, , nBins], i) => {
@@ -112,13 +120,19 @@ describe('each channel follows its own Nyquist frequency', () => {
 
   it('says what each slow channel cannot reach, one warning per channel and rule', () => {
     const w = (bundle.warnings ?? []).map((x) => `${x.step}|${x.field}|${x.message}`);
-    expect(w).toContain('spectra|bands|channel Chin (20 Hz sampling, Nyquist 10 Hz): band power not computed for alpha (8–12 Hz), sigma (12–16 Hz), beta (16–30 Hz), broadband (0.5–45 Hz)');
+    expect(w).toContain(
+      'spectra|bands|channel Chin (20 Hz sampling, Nyquist 10 Hz): band power not computed for alpha (8–12 Hz), sigma (12–16 Hz), beta (16–30 Hz), broadband (0.5–45 Hz)',
+    );
     expect(w).toContain('spectra|rejection.muscleHz|channel Chin (20 Hz sampling, Nyquist 10 Hz): the muscle outlier rule (25–45 Hz) is not applied');
-    expect(w).toContain('spectra|rejection.broadbandHz|channel Chin (20 Hz sampling, Nyquist 10 Hz): the broadband outlier rule uses 0.5–10 Hz instead of 0.5–45 Hz');
+    expect(w).toContain(
+      'spectra|rejection.broadbandHz|channel Chin (20 Hz sampling, Nyquist 10 Hz): the broadband outlier rule uses 0.5–10 Hz instead of 0.5–45 Hz',
+    );
     expect(w).toContain('fit|fit.fitRangeHz|channel Chin (20 Hz sampling, Nyquist 10 Hz): aperiodic fit over 1–10 Hz instead of 1–40 Hz');
     expect(w).toContain('fit|fit.fitRangeHz|channel Slow (1 Hz sampling, Nyquist 0.5 Hz): no aperiodic fit (fit range 1–40 Hz)');
     expect(w).toContain('spectra|rejection.broadbandHz|channel Slow (1 Hz sampling, Nyquist 0.5 Hz): the broadband outlier rule (0.5–45 Hz) is not applied');
-    expect(w).toContain('spectra|rejection.flatRunS|channel Slow (1 Hz sampling, Nyquist 0.5 Hz): the flat-run rule (1 s) is not applied: one sample lasts 1 s');
+    expect(w).toContain(
+      'spectra|rejection.flatRunS|channel Slow (1 Hz sampling, Nyquist 0.5 Hz): the flat-run rule (1 s) is not applied: one sample lasts 1 s',
+    );
     expect(w).toContain('spectra|bands|channel Leg (64 Hz sampling, Nyquist 32 Hz): band power not computed for broadband (0.5–45 Hz)');
     expect(w.filter((x) => /channel (C3|C4|Fast) /.test(x))).toEqual([]);
   });

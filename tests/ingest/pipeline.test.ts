@@ -23,10 +23,18 @@ let ref: { spectra: Float64Array; nBins: number; nEpochs: number; labels: string
 
 beforeAll(async () => {
   stages = await writeFixtureEdf(file, { seed: 5, fsHz: 128, nEpochs: 48, artifactEpochs: [5, 21] });
-  bundle = await processRecording(rec, resolveIngestParams({ references: ['recorded', 'linked-mastoids', 'average', 'bipolar'], bipolarPairs: ['F3-C3'], fit: null, epochSpectra: { maxHz: 30 } }));
+  bundle = await processRecording(
+    rec,
+    resolveIngestParams({ references: ['recorded', 'linked-mastoids', 'average', 'bipolar'], bipolarPairs: ['F3-C3'], fit: null, epochSpectra: { maxHz: 30 } }),
+  );
   // outside reference: numpy memmap decode of the EDF (Kemp et al. 1992) + scipy.signal.welch per epoch
   const out = path.join(dir, 'ref.f64');
-  const summary = JSON.parse(execFileSync('python3', [path.join(import.meta.dirname, 'scipy_pipeline.py'), file, '30', '4', '45', out], { encoding: 'utf8' }).trim().split('\n').pop()!);
+  const summary = JSON.parse(
+    execFileSync('python3', [path.join(import.meta.dirname, 'scipy_pipeline.py'), file, '30', '4', '45', out], { encoding: 'utf8' })
+      .trim()
+      .split('\n')
+      .pop()!,
+  );
   ref = { spectra: new Float64Array(readFileSync(out).buffer.slice(0)), nBins: summary.n_bins, nEpochs: summary.n_epochs, labels: summary.labels };
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -66,7 +74,9 @@ describe('processRecording', () => {
     const others = recorded.filter((r) => r.reason === 'amplitude' && r.channel !== 'C3');
     expect(others).toEqual([]);
     // the spike is C3's own, so C3 against the linked mastoids is rejected in the same epochs
-    expect(bundle.rejections.filter((r) => r.reference === 'linked-mastoids' && r.channel === 'C3' && r.reason === 'amplitude').map((r) => r.epoch)).toEqual([5, 21]);
+    expect(bundle.rejections.filter((r) => r.reference === 'linked-mastoids' && r.channel === 'C3' && r.reason === 'amplitude').map((r) => r.epoch)).toEqual([
+      5, 21,
+    ]);
     // modified z > 3.5 on Gaussian-like log powers: expect only a few percent of epochs
     const outliers = recorded.filter((r) => r.reason.endsWith('outlier'));
     expect(outliers.length / (48 * 8)).toBeLessThan(0.06);
@@ -84,7 +94,15 @@ describe('processRecording', () => {
 
   it('re-references before the spectrum: linked mastoids and bipolar equal scipy on the derived signals', async () => {
     // outlier rule off, so the clean epochs are known: W epochs minus the C3 spike epoch 5
-    const b2 = await processRecording(rec, resolveIngestParams({ references: ['linked-mastoids', 'bipolar'], bipolarPairs: ['F3-C3'], rejection: { ...resolveIngestParams().rejection, outlierZ: 1e9 }, fit: null }));
+    const b2 = await processRecording(
+      rec,
+      resolveIngestParams({
+        references: ['linked-mastoids', 'bipolar'],
+        bipolarPairs: ['F3-C3'],
+        rejection: { ...resolveIngestParams().rejection, outlierZ: 1e9 },
+        fit: null,
+      }),
+    );
     const rows = stages.map((st, e) => (st === 'W' && e !== 5 ? e : -1)).filter((e) => e >= 0);
     const lm = b2.spectra.find((s) => s.reference === 'linked-mastoids' && s.channel === 'C3' && s.stage === 'W' && s.averaging === 'mean')!;
     const bp = b2.spectra.find((s) => s.reference === 'bipolar' && s.channel === 'F3-C3' && s.stage === 'W' && s.averaging === 'mean')!;
@@ -96,7 +114,8 @@ describe('processRecording', () => {
     }
     await edf.close();
     // outside reference: scipy.signal.welch on C3 − (M1+M2)/2 and F3 − C3, mean over the same epochs
-    const expected = runPython<number[][]>(`from scipy.signal import welch
+    const expected = runPython<number[][]>(
+      `from scipy.signal import welch
 x = numpy.fromfile(inputs['x']).reshape(9, -1)
 lab = ${JSON.stringify(FIXTURE_LABELS.map((l) => l.split(' ')[1]))}
 i = {l: k for k, l in enumerate(lab)}
@@ -105,14 +124,16 @@ out = []
 for sig in sigs:
     ps = [welch(sig[e * 3840:(e + 1) * 3840], 128, nperseg=512, noverlap=256)[1][:181] for e in ${JSON.stringify(rows)}]
     out.append(numpy.mean(ps, axis=0).tolist())
-print(json.dumps(out))`, { x });
+print(json.dumps(out))`,
+      { x },
+    );
     expect(maxRel(lm.power, expected[0])).toBeLessThan(1e-4);
     expect(maxRel(bp.power, expected[1])).toBeLessThan(1e-4);
     expect(bundle.spectra.some((s) => s.reference === 'average' && s.channel === 'M1')).toBe(false); // mastoids out of the average
     expect(bundle.referenceSkips).toEqual([]);
   });
 
-  it('stores each epoch\'s spectrum (--epoch-spectra) to 30 Hz, log10 power within half a quantisation step of scipy\'s', async () => {
+  it("stores each epoch's spectrum (--epoch-spectra) to 30 Hz, log10 power within half a quantisation step of scipy's", async () => {
     expect(bundle.epochSpectra!.map((b) => b.channel)).toEqual(['F3', 'F4', 'C3', 'C4', 'O1', 'O2', 'M1', 'M2']);
     let worst = 0;
     for (const b of bundle.epochSpectra!) {
@@ -133,8 +154,14 @@ print(json.dumps(out))`, { x });
     const store = await openStore(path.join(dir, 'es.duckdb'), { create: true });
     const { runId } = await store.beginRun('0.1.0', {});
     const id = await store.writeRecording({ ...bundle, runId });
-    const rows = await store.exclusive(async () => (await store.connection.runAndReadAll(
-      "SELECT epoch, log10_min, log10_step, levels FROM epoch_spectra WHERE recording_id = $1 AND channel = 'C4' ORDER BY epoch", [id])).getRowObjectsJS());
+    const rows = await store.exclusive(async () =>
+      (
+        await store.connection.runAndReadAll(
+          "SELECT epoch, log10_min, log10_step, levels FROM epoch_spectra WHERE recording_id = $1 AND channel = 'C4' ORDER BY epoch",
+          [id],
+        )
+      ).getRowObjectsJS(),
+    );
     await store.close();
     const c4 = bundle.epochSpectra!.find((b) => b.channel === 'C4')!;
     expect(rows.length).toBe(48);

@@ -19,7 +19,13 @@ const dir = mkdtempSync(path.join(tmpdir(), 'bw-positions-'));
 const LABELS = ['EEG E1', 'EEG E2', 'EEG E3', 'EEG E4', 'EEG E5', 'EEG C3'];
 // five electrodes on a sphere of radius 90 mm about the origin (E5: 54² + 72² = 90²), so the
 // fitted head centre is the origin and each direction is the position over 90 mm (geometry)
-const MM: [string, number, number, number][] = [['E1', 0, 0, 90], ['E2', -90, 0, 0], ['E3', 0, 90, 0], ['E4', 90, 0, 0], ['E5', 54, 0, 72]];
+const MM: [string, number, number, number][] = [
+  ['E1', 0, 0, 90],
+  ['E2', -90, 0, 0],
+  ['E3', 0, 90, 0],
+  ['E4', 90, 0, 0],
+  ['E5', 54, 0, 72],
+];
 const tsv = (scale: number) => 'name\tx\ty\tz\ttype\n' + MM.map(([n, x, y, z]) => [n, x * scale, y * scale, z * scale, 'cup'].join('\t')).join('\n') + '\n';
 const params = { fit: null, references: ['recorded' as const] };
 let inst: DuckDBInstance;
@@ -34,7 +40,10 @@ const rows = async (db: string, sql: string) => {
   }
 };
 const channelsOf = (db: string, subject: string) =>
-  rows(db, `SELECT ch.channel, ch.x, ch.y, ch.z, ch.position_source, ch.x_m, ch.y_m, ch.z_m FROM d.channels ch JOIN d.recordings r USING (recording_id) WHERE r.subject = '${subject}' ORDER BY ch.channel`);
+  rows(
+    db,
+    `SELECT ch.channel, ch.x, ch.y, ch.z, ch.position_source, ch.x_m, ch.y_m, ch.z_m FROM d.channels ch JOIN d.recordings r USING (recording_id) WHERE r.subject = '${subject}' ORDER BY ch.channel`,
+  );
 
 beforeAll(async () => {
   inst = await DuckDBInstance.create(':memory:');
@@ -46,11 +55,18 @@ beforeAll(async () => {
   };
   put('dataset_description.json', JSON.stringify({ Name: 'invented', BIDSVersion: '1.9.0' }));
   put('participants.tsv', 'participant_id\tgroup\nsub-01\ta\nsub-02\tb\nsub-03\tb\n');
-  for (const [s, unit, scale] of [['01', 'mm', 1], ['02', 'm', 0.001], ['03', null, 0]] as const) {
+  for (const [s, unit, scale] of [
+    ['01', 'mm', 1],
+    ['02', 'm', 0.001],
+    ['03', null, 0],
+  ] as const) {
     const base = `sub-${s}/eeg/sub-${s}`;
     mkdirSync(path.join(bids, `sub-${s}/eeg`), { recursive: true });
     await writeFixtureEdf(path.join(bids, `${base}_task-sleep_eeg.edf`), { seed: Number(s), fsHz: 128, nEpochs: 8, labels: LABELS });
-    put(`${base}_task-sleep_eeg.json`, JSON.stringify({ TaskName: 'sleep', SamplingFrequency: 128, EEGReference: 'n/a', PowerLineFrequency: 50, SoftwareFilters: 'n/a' }));
+    put(
+      `${base}_task-sleep_eeg.json`,
+      JSON.stringify({ TaskName: 'sleep', SamplingFrequency: 128, EEGReference: 'n/a', PowerLineFrequency: 50, SoftwareFilters: 'n/a' }),
+    );
     if (unit === null) continue; // sub-03: no electrodes file
     put(`${base}_electrodes.tsv`, tsv(scale));
     put(`${base}_coordsystem.json`, JSON.stringify({ EEGCoordinateSystem: 'CapTrak', EEGCoordinateUnits: unit }));
@@ -64,7 +80,12 @@ beforeAll(async () => {
   writeFileSync(path.join(table, 'own.tsv'), tsv(0.1));
   writeFileSync(path.join(table, 'shared.tsv'), tsv(0.1).replace('E1\t0\t0\t9', 'E1\t0\t9\t0').replace('E3\t0\t9\t0', 'E3\t0\t0\t9'));
   writeFileSync(path.join(table, 'cohort.tsv'), 'subject\trecording\tpositions\ns1\ts1.edf\town.tsv\ns2\ts2.edf\tn/a\n');
-  await runIngest(path.join(table, 'cohort.tsv'), path.join(dir, 'table.duckdb'), { jobs: 2, params, positions: path.join(table, 'shared.tsv'), positionsUnit: 'cm' });
+  await runIngest(path.join(table, 'cohort.tsv'), path.join(dir, 'table.duckdb'), {
+    jobs: 2,
+    params,
+    positions: path.join(table, 'shared.tsv'),
+    positionsUnit: 'cm',
+  });
 }, 120_000);
 
 afterAll(() => {
@@ -98,8 +119,13 @@ describe('electrode positions in the database', () => {
     const got = await channelsOf(path.join(dir, 'bids.duckdb'), '03');
     expect(got.find((r) => r.channel === 'E1')).toMatchObject({ position_source: 'none', x: null, y: null, z: null, x_m: null });
     expect(got.find((r) => r.channel === 'C3')).toMatchObject({ position_source: 'template' });
-    const warnings = await rows(path.join(dir, 'bids.duckdb'), `SELECT w.message FROM d.warnings w JOIN d.recordings r USING (recording_id) WHERE r.subject = '03' AND w.field = 'positions'`);
-    expect(warnings.map((w) => w.message)).toEqual(['channels E1, E2, E3, E4, E5 have no position (no positions file and not 10-10 names); spatial contrasts over them need a neighbour table']);
+    const warnings = await rows(
+      path.join(dir, 'bids.duckdb'),
+      `SELECT w.message FROM d.warnings w JOIN d.recordings r USING (recording_id) WHERE r.subject = '03' AND w.field = 'positions'`,
+    );
+    expect(warnings.map((w) => w.message)).toEqual([
+      'channels E1, E2, E3, E4, E5 have no position (no positions file and not 10-10 names); spatial contrasts over them need a neighbour table',
+    ]);
   });
 
   it('takes a cohort table positions column before --positions, in the unit --positions-unit gives', async () => {

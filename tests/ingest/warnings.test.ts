@@ -32,7 +32,10 @@ beforeAll(async () => {
   const put = (name: string, bytes: Uint8Array) => writeFileSync(path.join(tmp.dir, name), bytes);
   put('clean.edf', faultEdfBytes({ labels: EEG, seed: 1 }));
   put('gaps.edf', faultEdfBytes({ labels: EEG, seed: 2, gap: { startS: 150, lengthS: 15 } }));
-  put('minus-one.edf', faultEdfBytes({ labels: EEG, seed: 3 }, (h) => (h.nRecords = '-1')));
+  put(
+    'minus-one.edf',
+    faultEdfBytes({ labels: EEG, seed: 3 }, (h) => (h.nRecords = '-1')),
+  );
   const whole = faultEdfBytes({ labels: EEG, seed: 4 });
   put('cut.edf', whole.subarray(0, whole.length - 100));
   // stages by annotation, but the first and last epochs carry free text instead (invented, with a fake name)
@@ -48,7 +51,9 @@ beforeAll(async () => {
 afterAll(() => tmp?.cleanup());
 
 const warningsOf = (file: string) =>
-  withDb(db, (q) => q(`SELECT step, field, message FROM warnings WHERE file = '${file}' ORDER BY step, field, message`)) as Promise<{ step: string; field: string | null; message: string }[]>;
+  withDb(db, (q) => q(`SELECT step, field, message FROM warnings WHERE file = '${file}' ORDER BY step, field, message`)) as Promise<
+    { step: string; field: string | null; message: string }[]
+  >;
 
 describe('warnings are kept', () => {
   it('stores every recording, none failed, and counts the warnings in the summary', async () => {
@@ -73,7 +78,7 @@ describe('warnings are kept', () => {
     expect(await warningsOf('clean.edf')).toEqual([]);
   });
 
-  it('keeps the reader\'s notes with their header field (EDF 1992 §2.1 number of data records; §2.2 records)', async () => {
+  it("keeps the reader's notes with their header field (EDF 1992 §2.1 number of data records; §2.2 records)", async () => {
     expect(await warningsOf('gaps.edf')).toEqual([
       { step: 'open', field: 'annotations', message: '1 gap between data records, 15 s in total; epochs that touch a gap are dropped' },
     ]);
@@ -81,31 +86,56 @@ describe('warnings are kept', () => {
       { step: 'open', field: 'number of data records', message: 'number of data records is -1 (unknown); 300 records derived from the file size' },
     ]);
     const cut = await warningsOf('cut.edf');
-    expect(cut).toContainEqual({ step: 'open', field: 'file', message: `the last data record is incomplete (${RECORD_BYTES - 100} of ${RECORD_BYTES} bytes) and is ignored` });
+    expect(cut).toContainEqual({
+      step: 'open',
+      field: 'file',
+      message: `the last data record is incomplete (${RECORD_BYTES - 100} of ${RECORD_BYTES} bytes) and is ignored`,
+    });
     const latin1 = await warningsOf('latin1.edf');
-    expect(latin1).toEqual([
-      { step: 'open', field: 'local patient identification', message: 'holds bytes outside printable ASCII (content withheld)' },
-    ]);
+    expect(latin1).toEqual([{ step: 'open', field: 'local patient identification', message: 'holds bytes outside printable ASCII (content withheld)' }]);
   });
 
   it('keeps the scoring notes by epoch and time, never by their text', async () => {
     // 'Lights off' at 0 s is a lights marker, not an ignored event; the last text is named by its hash
     expect(await warningsOf('late.edf')).toEqual([
       { step: 'scoring', field: 'ignored-events', message: 'text #bf0a3222 (not a stage label): 1 event(s) ignored at epoch 9 (270–300 s), first at 270 s' },
-      { step: 'scoring', field: 'scoring-ends-early', message: 'scoring ends early: no scoring for epoch 9 (270–300 s) after the last scored epoch; set to unscored' },
-      { step: 'scoring', field: 'scoring-starts-late', message: 'scoring starts late: no scoring for epoch 0 (0–30 s) before the first scored epoch; set to unscored' },
+      {
+        step: 'scoring',
+        field: 'scoring-ends-early',
+        message: 'scoring ends early: no scoring for epoch 9 (270–300 s) after the last scored epoch; set to unscored',
+      },
+      {
+        step: 'scoring',
+        field: 'scoring-starts-late',
+        message: 'scoring starts late: no scoring for epoch 0 (0–30 s) before the first scored epoch; set to unscored',
+      },
     ]);
   });
 
   it('keeps converted units and what each slow channel cannot reach', async () => {
     const mixed = await warningsOf('mixed.edf');
-    expect(mixed).toContainEqual({ step: 'channels', field: 'physical dimension', message: 'channel Leg: recorded in mV, samples and physical limits scaled ×1000 to µV' });
-    expect(mixed).toContainEqual({ step: 'spectra', field: 'bands', message: 'channel Chin (20 Hz sampling, Nyquist 10 Hz): band power not computed for alpha (8–12 Hz), sigma (12–16 Hz), beta (16–30 Hz), broadband (0.5–45 Hz)' });
+    expect(mixed).toContainEqual({
+      step: 'channels',
+      field: 'physical dimension',
+      message: 'channel Leg: recorded in mV, samples and physical limits scaled ×1000 to µV',
+    });
+    expect(mixed).toContainEqual({
+      step: 'spectra',
+      field: 'bands',
+      message:
+        'channel Chin (20 Hz sampling, Nyquist 10 Hz): band power not computed for alpha (8–12 Hz), sigma (12–16 Hz), beta (16–30 Hz), broadband (0.5–45 Hz)',
+    });
     expect(mixed.filter((w) => /channel (C3|C4|Fast)\b/.test(w.message))).toEqual([]);
     // physical limits in µV like the samples, the unit as recorded beside them
-    const leg = await withDb(db, (q) => q("SELECT unit, recorded_unit, physical_min, physical_max FROM channels JOIN recordings USING (recording_id) WHERE file_name = 'mixed.edf' AND channel = 'Leg'"));
+    const leg = await withDb(db, (q) =>
+      q(
+        "SELECT unit, recorded_unit, physical_min, physical_max FROM channels JOIN recordings USING (recording_id) WHERE file_name = 'mixed.edf' AND channel = 'Leg'",
+      ),
+    );
     expect(leg).toEqual([{ unit: 'µV', recorded_unit: 'mV', physical_min: -200, physical_max: 200 }]);
-    const c3 = await withDb(db, (q) => q("SELECT unit, recorded_unit, physical_min FROM channels JOIN recordings USING (recording_id) WHERE file_name = 'mixed.edf' AND channel = 'C3'"));
+    const c3 = await withDb(db, (q) =>
+      q("SELECT unit, recorded_unit, physical_min FROM channels JOIN recordings USING (recording_id) WHERE file_name = 'mixed.edf' AND channel = 'C3'"),
+    );
     expect(c3).toEqual([{ unit: 'µV', recorded_unit: 'uV', physical_min: -400 }]);
   });
 

@@ -31,7 +31,13 @@ describe('ingest worker bundle', () => {
       const reply = await new Promise<Record<string, unknown>>((resolve, reject) => {
         worker.once('message', resolve);
         worker.once('error', reject);
-        worker.postMessage({ id: 7, kind: 'process', rec: { row: 1, subject: 's', session: null, group: null, recordingPath: '/nonexistent/x.edf', scoringPath: null, covariates: {} }, params: {}, runId: 'r' });
+        worker.postMessage({
+          id: 7,
+          kind: 'process',
+          rec: { row: 1, subject: 's', session: null, group: null, recordingPath: '/nonexistent/x.edf', scoringPath: null, covariates: {} },
+          params: {},
+          runId: 'r',
+        });
       });
       expect(reply).toMatchObject({ id: 7, kind: 'failed', step: 'open', field: 'file' });
       expect(String(reply.message)).toMatch(/cannot open the file \(ENOENT\)/);

@@ -21,7 +21,9 @@ function sourceFiles(dir: string): string[] {
 function importsOf(file: string): string[] {
   const text = readFileSync(file, 'utf8');
   const out: string[] = [];
-  for (const m of text.matchAll(/(?:^|[\s;])(?:import|export)\s[^'"]*?from\s*['"]([^'"]+)['"]|(?:^|[\s;])import\s*['"]([^'"]+)['"]|import\(\s*['"]([^'"]+)['"]\s*\)/gm)) {
+  for (const m of text.matchAll(
+    /(?:^|[\s;])(?:import|export)\s[^'"]*?from\s*['"]([^'"]+)['"]|(?:^|[\s;])import\s*['"]([^'"]+)['"]|import\(\s*['"]([^'"]+)['"]\s*\)/gm,
+  )) {
     out.push(m[1] ?? m[2] ?? m[3]);
   }
   return out;

@@ -5,7 +5,8 @@
 import { describe, expect, it } from 'vitest';
 import { ChannelSelectionError, selectChannels, toMicrovolts, type SignalDescription } from '../../src/core/montage/channel-selection.ts';
 
-const header = (labels: [string, string?][], fsHz = 256): SignalDescription[] => labels.map(([label, dim], index) => ({ index, label, physicalDimension: dim ?? 'uV', fsHz }));
+const header = (labels: [string, string?][], fsHz = 256): SignalDescription[] =>
+  labels.map(([label, dim], index) => ({ index, label, physicalDimension: dim ?? 'uV', fsHz }));
 const BY_TYPE = { channelTypes: ['EEG'], includeChannels: [], excludeChannels: [] };
 
 describe('selectChannels', () => {
@@ -41,16 +42,36 @@ describe('selectChannels', () => {
     expect(() => selectChannels(net, [], BY_TYPE)).toThrow('no channel selected (types EEG)');
     const onFile = new Set(['E1', 'E2', 'E3', 'E4', 'TEMP']);
     const s = selectChannels(net, [{ name: 'E2', type: 'EOG' }], BY_TYPE, onFile);
-    expect(s.map((c) => [c.name, c.montage.type])).toEqual([['E1', 'EEG'], ['E3', 'EEG']]);
+    expect(s.map((c) => [c.name, c.montage.type])).toEqual([
+      ['E1', 'EEG'],
+      ['E3', 'EEG'],
+    ]);
   });
 
   it('a BIDS channels row overrides the type and leaves bad channels out', () => {
-    const s = selectChannels(header([['C3'], ['C4'], ['Fp1']]), [{ name: 'C4', status: 'bad' }, { name: 'Fp1', type: 'eog' }], BY_TYPE);
+    const s = selectChannels(
+      header([['C3'], ['C4'], ['Fp1']]),
+      [
+        { name: 'C4', status: 'bad' },
+        { name: 'Fp1', type: 'eog' },
+      ],
+      BY_TYPE,
+    );
     expect(s.map((c) => c.name)).toEqual(['C3']);
   });
 
   it('scales voltage units to µV and refuses other units and rates, naming the field', () => {
-    expect(selectChannels(header([['EEG C3', 'mV'], ['EEG C4', 'µV'], ['EEG O1', '']]), [], BY_TYPE).map((c) => c.toUv)).toEqual([1000, 1, 1]);
+    expect(
+      selectChannels(
+        header([
+          ['EEG C3', 'mV'],
+          ['EEG C4', 'µV'],
+          ['EEG O1', ''],
+        ]),
+        [],
+        BY_TYPE,
+      ).map((c) => c.toUv),
+    ).toEqual([1000, 1, 1]);
     const err = (() => {
       try {
         selectChannels(header([['SpO2', '%']]), [], { ...BY_TYPE, includeChannels: ['SpO2'] });

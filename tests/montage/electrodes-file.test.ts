@@ -52,8 +52,19 @@ describe('electrodes TSV', () => {
     expect(() => parseCoordsystem('{"EEGCoordinateUnits":"inch"}', 'c.json')).toThrow('c.json: coordinate unit "inch" is not one of m, cm, mm');
     expect(() => parseCoordsystem('{}', 'c.json')).toThrow(/EEGCoordinateUnits is missing/);
     // BIDS: sub-<label>[_ses-<label>][_acq-<label>][_run-<index>][_space-<label>]_electrodes.tsv; no task entity
-    const rec = new Map([['sub', '01'], ['ses', 'night'], ['task', 'sleep'], ['acq', 'hd']]);
-    const files = ['sub-01_ses-night_electrodes.tsv', 'sub-01_ses-night_acq-hd_electrodes.tsv', 'sub-01_ses-night_acq-lo_electrodes.tsv', 'sub-02_ses-night_electrodes.tsv', 'sub-01_ses-night_task-sleep_eeg.edf'];
+    const rec = new Map([
+      ['sub', '01'],
+      ['ses', 'night'],
+      ['task', 'sleep'],
+      ['acq', 'hd'],
+    ]);
+    const files = [
+      'sub-01_ses-night_electrodes.tsv',
+      'sub-01_ses-night_acq-hd_electrodes.tsv',
+      'sub-01_ses-night_acq-lo_electrodes.tsv',
+      'sub-02_ses-night_electrodes.tsv',
+      'sub-01_ses-night_task-sleep_eeg.edf',
+    ];
     expect(bidsElectrodesFile(files, rec)).toBe('sub-01_ses-night_acq-hd_electrodes.tsv');
     expect(bidsElectrodesFile(['sub-01_ses-night_space-CapTrak_electrodes.tsv', 'sub-01_ses-night_space-Other_electrodes.tsv'], rec)).toEqual({
       ambiguous: ['sub-01_ses-night_space-CapTrak_electrodes.tsv', 'sub-01_ses-night_space-Other_electrodes.tsv'],
@@ -97,7 +108,13 @@ print(json.dumps([u[0], u[1], u[2], float(numpy.sqrt(u[3] + (u[:3] ** 2).sum()))
   });
 
   it('places channels by the file, a scalp pair halfway, 10-10 names by the template, others nowhere', () => {
-    const layout = headLayout(parseElectrodesTsv(MM.replace('E5\t63.64\t0\t63.64', 'E5\t0\t-90\t0').replace('n/a\tn/a\tn/a', '90\t0\t0'), { file: 'e.tsv', unit: 'mm', coordinateSystem: 'CapTrak' }));
+    const layout = headLayout(
+      parseElectrodesTsv(MM.replace('E5\t63.64\t0\t63.64', 'E5\t0\t-90\t0').replace('n/a\tn/a\tn/a', '90\t0\t0'), {
+        file: 'e.tsv',
+        unit: 'mm',
+        coordinateSystem: 'CapTrak',
+      }),
+    );
     // five points of a 90-mm sphere about the origin: the fit is the origin, directions the unit axes
     expect(layout.sphere!.radius).toBeCloseTo(0.09, 10);
     const e3 = placeChannel('E3', 'E3', layout);
@@ -109,7 +126,9 @@ print(json.dumps([u[0], u[1], u[2], float(numpy.sqrt(u[3] + (u[:3] ** 2).sum()))
     expect(pair.y).toBeCloseTo(Math.SQRT1_2, 12);
     expect(pair.z).toBeCloseTo(Math.SQRT1_2, 12);
     // against a mastoid the channel sits at its electrode (as on the template: C3-M2 at C3)
-    const withMastoid = headLayout(parseElectrodesTsv(`${MM.replace('n/a\tn/a\tn/a', '90\t0\t0')}M2\t60\t-30\t-60\n`, { file: 'e.tsv', unit: 'mm', coordinateSystem: 'CapTrak' }));
+    const withMastoid = headLayout(
+      parseElectrodesTsv(`${MM.replace('n/a\tn/a\tn/a', '90\t0\t0')}M2\t60\t-30\t-60\n`, { file: 'e.tsv', unit: 'mm', coordinateSystem: 'CapTrak' }),
+    );
     expect(placeChannel('E3-M2', 'E3', withMastoid).position!.y).toBeCloseTo(1, 9);
     expect(placeChannel('C3', 'C3', layout)).toEqual({ position: electrodePosition('C3'), metres: null, source: 'template' });
     expect(placeChannel('E99', 'E99', layout)).toEqual({ position: null, metres: null, source: 'none' });

@@ -57,7 +57,11 @@ describe('channelPosition and pairPositions', () => {
   // 70 and 90 %; the 10-10 extension puts POz at 80 %. So the arc midpoint of Fpz–Cz is Fz and
   // that of Pz–Oz is POz.
   it('a scalp pair sits halfway between its electrodes on the sphere', () => {
-    for (const [pair, mid] of [['Fpz-Cz', 'Fz'], ['Pz-Oz', 'POz'], ['Cz-Fpz', 'Fz']]) {
+    for (const [pair, mid] of [
+      ['Fpz-Cz', 'Fz'],
+      ['Pz-Oz', 'POz'],
+      ['Cz-Fpz', 'Fz'],
+    ]) {
       const p = channelPosition(pair)!;
       const q = electrodePosition(mid)!;
       expect([p.x, p.y, p.z].map((v) => Number(v.toFixed(12)))).toEqual([q.x, q.y, q.z].map((v) => Number(v.toFixed(12))));

@@ -72,7 +72,8 @@ describe('planReferences on a mixed montage (C3-M2, C4-M1, Pz-Oz, Fpz-Cz, Pz-M1,
   it('linked mastoids and average are skipped: the channels have no common reference', () => {
     const reasons = skips.filter((s) => s.reference === 'linked-mastoids' || s.reference === 'average');
     expect(reasons.map((s) => s.reference)).toEqual(['linked-mastoids', 'average']);
-    for (const s of reasons) expect(s.reason).toBe('channels are stored as derivations against different references (M2, M1, Oz, Cz, A2); the common reference is unknown');
+    for (const s of reasons)
+      expect(s.reason).toBe('channels are stored as derivations against different references (M2, M1, Oz, Cz, A2); the common reference is unknown');
   });
 });
 

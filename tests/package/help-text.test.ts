@@ -33,7 +33,7 @@ describe('help text', () => {
     for (const c of COMMANDS) expect(text).toMatch(new RegExp(`^ {2}${c} +\\S`, 'm'));
   });
 
-  it.each(COMMANDS)('%s --help gives each default once, in words, never as commander\'s JSON', (command) => {
+  it.each(COMMANDS)("%s --help gives each default once, in words, never as commander's JSON", (command) => {
     const text = help([command, '--help']);
     const entries = optionEntries(text);
     expect(entries.length).toBeGreaterThan(0); // at least --help

@@ -60,7 +60,16 @@ describe('the package', () => {
   });
 
   it('the tarball holds the built command, its two workers, the app, the demo scenario and the README, and no sources', () => {
-    for (const f of ['package.json', 'README.md', 'dist/cli/bandwise.js', 'dist/cli/ingest-worker.js', 'dist/cli/compare-worker.js', 'dist/dashboard/index.html', 'demo-cohort/scenario.json', 'demo-cohort/participants.tsv']) {
+    for (const f of [
+      'package.json',
+      'README.md',
+      'dist/cli/bandwise.js',
+      'dist/cli/ingest-worker.js',
+      'dist/cli/compare-worker.js',
+      'dist/dashboard/index.html',
+      'demo-cohort/scenario.json',
+      'demo-cohort/participants.tsv',
+    ]) {
       expect(packed).toContain(f);
     }
     const expected = /^(dist\/cli\/[\w.-]+\.js|dist\/dashboard\/.+|demo-cohort\/(scenario\.json|participants\.tsv)|package\.json|README\.md)$/;
@@ -68,8 +77,12 @@ describe('the package', () => {
     expect(packed.filter((f) => f.endsWith('.ts'))).toEqual([]);
   });
 
-  it('the built command imports only Node\'s own modules and the runtime dependencies: no tsx, esbuild or vite', () => {
-    const pkg = JSON.parse(readFileSync(path.join(repo, 'package.json'), 'utf8')) as { dependencies: Record<string, string>; devDependencies: Record<string, string>; bin: Record<string, string> };
+  it("the built command imports only Node's own modules and the runtime dependencies: no tsx, esbuild or vite", () => {
+    const pkg = JSON.parse(readFileSync(path.join(repo, 'package.json'), 'utf8')) as {
+      dependencies: Record<string, string>;
+      devDependencies: Record<string, string>;
+      bin: Record<string, string>;
+    };
     expect(pkg.bin.bandwise).toBe('dist/cli/bandwise.js');
     for (const tool of ['tsx', 'esbuild', 'vite']) {
       expect(pkg.dependencies[tool]).toBeUndefined();

@@ -13,7 +13,8 @@ import { writeSyntheticDatabase } from '../../src/simulation/synthetic-store.ts'
 const repo = path.resolve(import.meta.dirname, '../..');
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-planning-cli-'));
 const db = path.join(dir, 'cohort.duckdb');
-const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8' });
+const cli = (args: string[]) =>
+  spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), ...args], { encoding: 'utf8' });
 const contrast = (name: string, json: object) => {
   const file = path.join(dir, name);
   writeFileSync(file, JSON.stringify(json));
@@ -32,12 +33,50 @@ describe('bandwise power', () => {
   it('writes the curve as JSON and TSV with every parameter; a negative effect reads as a number', () => {
     const out = path.join(dir, 'power.json');
     const tsv = path.join(dir, 'power.tsv');
-    const r = cli(['power', db, '--contrast', logPsd, '--reference-group', 'control', '--effect', '-0.2', '--band', '10-14', '--channels', 'Fp1,Fpz', '--n', '5,10', '--simulations', '6', '--seed', '3', '--out', out, '--tsv', tsv, '--quiet']);
+    const r = cli([
+      'power',
+      db,
+      '--contrast',
+      logPsd,
+      '--reference-group',
+      'control',
+      '--effect',
+      '-0.2',
+      '--band',
+      '10-14',
+      '--channels',
+      'Fp1,Fpz',
+      '--n',
+      '5,10',
+      '--simulations',
+      '6',
+      '--seed',
+      '3',
+      '--out',
+      out,
+      '--tsv',
+      tsv,
+      '--quiet',
+    ]);
     expect(r.status, r.stderr).toBe(0);
     const j = JSON.parse(readFileSync(out, 'utf8'));
-    expect(j).toMatchObject({ kind: 'power', referenceGroup: 'control', effect: -0.2, effectUnit: 'log10', band: { loHz: 10, hiHz: 14 }, plantedChannels: ['Fp1', 'Fpz'], simulations: 6, seed: 3, alpha: 0.05, contrast: { permutations: 50, correction: 'cluster-mass' } });
+    expect(j).toMatchObject({
+      kind: 'power',
+      referenceGroup: 'control',
+      effect: -0.2,
+      effectUnit: 'log10',
+      band: { loHz: 10, hiHz: 14 },
+      plantedChannels: ['Fp1', 'Fpz'],
+      simulations: 6,
+      seed: 3,
+      alpha: 0.05,
+      contrast: { permutations: 50, correction: 'cluster-mass' },
+    });
     expect(j.referenceSubjects).toHaveLength(20);
-    expect(j.curve.map((p: { nPerGroup: number; simulations: number }) => [p.nPerGroup, p.simulations])).toEqual([[5, 6], [10, 6]]);
+    expect(j.curve.map((p: { nPerGroup: number; simulations: number }) => [p.nPerGroup, p.simulations])).toEqual([
+      [5, 6],
+      [10, 6],
+    ]);
     expect(j.method.interval).toBe('Clopper–Pearson exact 95 % interval of the share found');
     expect(j.note).toMatch(/research tool/);
     const lines = readFileSync(tsv, 'utf8').trim().split('\n');
@@ -47,15 +86,54 @@ describe('bandwise power', () => {
   });
 
   const refused: [string, string[], number, string][] = [
-    ['a measure without a planting rule', ['--contrast', contrast('peak.json', { design: 'groups', groups: ['control', 'patient'], measure: 'peak-height', bands: ['sigma'] }), '--band', '12-16'], 2, 'bandwise power: measure peak-height takes no planted effect; use log-psd, relative, residual, band-power, relative-band-power, offset, exponent'],
-    ['a band for the offset', ['--contrast', contrast('offset.json', { design: 'groups', groups: ['control', 'patient'], measure: 'offset' }), '--band', '12-16'], 2, 'bandwise power: measure offset has no frequency axis: give no band'],
+    [
+      'a measure without a planting rule',
+      ['--contrast', contrast('peak.json', { design: 'groups', groups: ['control', 'patient'], measure: 'peak-height', bands: ['sigma'] }), '--band', '12-16'],
+      2,
+      'bandwise power: measure peak-height takes no planted effect; use log-psd, relative, residual, band-power, relative-band-power, offset, exponent',
+    ],
+    [
+      'a band for the offset',
+      ['--contrast', contrast('offset.json', { design: 'groups', groups: ['control', 'patient'], measure: 'offset' }), '--band', '12-16'],
+      2,
+      'bandwise power: measure offset has no frequency axis: give no band',
+    ],
     ['no band for log-psd', ['--contrast', logPsd], 2, 'bandwise power: measure log-psd needs the band to plant the effect in (--band LO-HI)'],
-    ['a covariate design', ['--contrast', contrast('cov.json', { design: 'covariate', covariate: 'age' }), '--band', '12-16'], 2, 'bandwise power: power simulates two groups: the contrast must be a groups design, not covariate'],
-    ['a planted channel the contrast lacks', ['--contrast', logPsd, '--band', '12-16', '--channels', 'Oz'], 1, "bandwise power: channel Oz is not one of the contrast's channels (AF7, Fp1, Fp2, Fpz)"],
-    ['an unknown reference group', ['--contrast', logPsd, '--band', '12-16', '--reference-group', 'nobody'], 1, 'bandwise power: reference group group = nobody has 0 subjects with data; at least 2 are needed'],
+    [
+      'a covariate design',
+      ['--contrast', contrast('cov.json', { design: 'covariate', covariate: 'age' }), '--band', '12-16'],
+      2,
+      'bandwise power: power simulates two groups: the contrast must be a groups design, not covariate',
+    ],
+    [
+      'a planted channel the contrast lacks',
+      ['--contrast', logPsd, '--band', '12-16', '--channels', 'Oz'],
+      1,
+      "bandwise power: channel Oz is not one of the contrast's channels (AF7, Fp1, Fp2, Fpz)",
+    ],
+    [
+      'an unknown reference group',
+      ['--contrast', logPsd, '--band', '12-16', '--reference-group', 'nobody'],
+      1,
+      'bandwise power: reference group group = nobody has 0 subjects with data; at least 2 are needed',
+    ],
   ];
   it.each(refused)('refuses %s in one line (exit status %#)', (_what, args, status, message) => {
-    const base = ['power', db, '--reference-group', 'control', '--effect', '0.1', '--n', '5', '--simulations', '2', '--out', path.join(dir, 'x.json'), '--quiet'];
+    const base = [
+      'power',
+      db,
+      '--reference-group',
+      'control',
+      '--effect',
+      '0.1',
+      '--n',
+      '5',
+      '--simulations',
+      '2',
+      '--out',
+      path.join(dir, 'x.json'),
+      '--quiet',
+    ];
     const r = cli([...base, ...args]);
     expect(r.status, r.stderr).toBe(status);
     expect(r.stderr).toBe(`${message}\n`);
@@ -64,10 +142,29 @@ describe('bandwise power', () => {
 });
 
 describe('bandwise deviation', () => {
-  it('writes every subject\'s z map and the summaries', () => {
+  it("writes every subject's z map and the summaries", () => {
     const out = path.join(dir, 'deviation.json');
     const tsv = path.join(dir, 'deviation.tsv');
-    const r = cli(['deviation', db, '--reference-group', 'control', '--stage', 'N2', '--measure', 'log-psd', '--covariates', 'age', '--fmin', '4', '--fmax', '20', '--out', out, '--tsv', tsv]);
+    const r = cli([
+      'deviation',
+      db,
+      '--reference-group',
+      'control',
+      '--stage',
+      'N2',
+      '--measure',
+      'log-psd',
+      '--covariates',
+      'age',
+      '--fmin',
+      '4',
+      '--fmax',
+      '20',
+      '--out',
+      out,
+      '--tsv',
+      tsv,
+    ]);
     expect(r.status, r.stderr).toBe(0);
     const j = JSON.parse(readFileSync(out, 'utf8'));
     expect(j.kind).toBe('deviation');
@@ -79,7 +176,10 @@ describe('bandwise deviation', () => {
     expect(j.subjects[0].z[0]).toHaveLength(j.freqsHz.length);
     expect(j.reference).toMatchObject({ group: 'control', n: 20 });
     expect(j.modelColumns).toEqual(['intercept', 'age']);
-    expect(j.groups.map((g: { group: string; n: number }) => [g.group, g.n])).toEqual([['control', 20], ['patient', 20]]);
+    expect(j.groups.map((g: { group: string; n: number }) => [g.group, g.n])).toEqual([
+      ['control', 20],
+      ['patient', 20],
+    ]);
     expect(j.note).toMatch(/an individual deviation is not a clinical finding/);
     expect(readFileSync(tsv, 'utf8').split('\n')[0]).toBe('subject\tgroup\treference\tshare_beyond_2\texpected_share\tmean_z');
   });

@@ -21,7 +21,9 @@ const sd = (a: number[]) => Math.sqrt(a.reduce((x, y) => x + (y - mean(a)) ** 2,
 const corr = (a: number[], b: number[]) => {
   const ma = mean(a);
   const mb = mean(b);
-  let sab = 0, saa = 0, sbb = 0;
+  let sab = 0,
+    saa = 0,
+    sbb = 0;
   a.forEach((x, i) => {
     sab += (x - ma) * (b[i] - mb);
     saa += (x - ma) ** 2;
@@ -68,21 +70,38 @@ print(json.dumps(Z.ravel().tolist()))`,
   });
 });
 
-describe('reference subjects\' z', () => {
+describe("reference subjects' z", () => {
   it('iid normal values: mean 0 and spread √(df/(df − 2)) of t with m − 2 df, within 0.03', () => {
     // 60 reference subjects × 400 independent points, N(2, 0.3²): leave-one-out z ~ t(58)
     const rng = new Random(17);
     const subjects = Array.from({ length: 90 }, (_, i) => `s${String(i).padStart(3, '0')}`);
     const freqStepHz = 0.25;
     const nBins = 400; // 1–100.75 Hz
-    const rows = subjects.map((subject) => ({ subject, session: null, channel: 'Cz', stage: 'N2' as const, nEpochs: 100, flagged: false, flagReason: null, power: Float32Array.from({ length: nBins }, () => 10 ** (2 + 0.3 * rng.normal())) }));
-    const data: ContrastData = { spectra: { freqStartHz: 1, freqStepHz, nBins, rows }, aperiodic: [], peaks: [], participants: subjects.map((subject, i) => ({ subject, group: i < 60 ? 'control' : 'patient' })), exclusions: [] };
+    const rows = subjects.map((subject) => ({
+      subject,
+      session: null,
+      channel: 'Cz',
+      stage: 'N2' as const,
+      nEpochs: 100,
+      flagged: false,
+      flagReason: null,
+      power: Float32Array.from({ length: nBins }, () => 10 ** (2 + 0.3 * rng.normal())),
+    }));
+    const data: ContrastData = {
+      spectra: { freqStartHz: 1, freqStepHz, nBins, rows },
+      aperiodic: [],
+      peaks: [],
+      participants: subjects.map((subject, i) => ({ subject, group: i < 60 ? 'control' : 'patient' })),
+      exclusions: [],
+    };
     const r = deviation(parseDeviationSpec({ referenceGroup: 'control', fminHz: 1, fmaxHz: 101 }), data);
     const z = r.subjects.filter((s) => s.reference).flatMap((s) => s.z.flat() as number[]);
     const df = r.method.degreesOfFreedom.reference;
     expect(df).toBe(58);
     expect(z.length).toBe(60 * 400);
-    console.log(`iid normal: reference z mean ${mean(z).toFixed(4)}, SD ${sd(z).toFixed(4)} (t(${df}): ${Math.sqrt(df / (df - 2)).toFixed(4)}); share beyond |z| > 2: ${r.expectedShare.toFixed(4)} (normal theory ${r.expectedShareNormal.toFixed(4)})`);
+    console.log(
+      `iid normal: reference z mean ${mean(z).toFixed(4)}, SD ${sd(z).toFixed(4)} (t(${df}): ${Math.sqrt(df / (df - 2)).toFixed(4)}); share beyond |z| > 2: ${r.expectedShare.toFixed(4)} (normal theory ${r.expectedShareNormal.toFixed(4)})`,
+    );
     expect(Math.abs(mean(z))).toBeLessThan(0.03);
     expect(Math.abs(sd(z) - Math.sqrt(df / (df - 2)))).toBeLessThan(0.03);
     expect(Math.abs(r.expectedShare - r.expectedShareNormal)).toBeLessThan(0.01);
@@ -115,14 +134,21 @@ describe('a planted deviant subject', () => {
     const { data } = syntheticCohort(80, 6, 5, (s, ch, f) => (s === 7 && planted(ch, f) ? 0.03 : 0));
     const r = deviation(parseDeviationSpec({ referenceGroup: 'control', measure: 'residual' }), data);
     const ranked = [...r.subjects].sort((a, b) => b.share - a.share);
-    console.log(`largest shares: ${ranked.slice(0, 3).map((s) => `${s.subject} ${(100 * s.share).toFixed(1)} %`).join(', ')}; expected ${(100 * r.expectedShare).toFixed(1)} %`);
+    console.log(
+      `largest shares: ${ranked
+        .slice(0, 3)
+        .map((s) => `${s.subject} ${(100 * s.share).toFixed(1)} %`)
+        .join(', ')}; expected ${(100 * r.expectedShare).toFixed(1)} %`,
+    );
     expect(ranked[0].subject).toBe(deviant);
     const s = r.subjects.find((x) => x.subject === deviant)!;
     const inside: number[] = [];
     const outside: number[] = [];
     r.channels.forEach((ch, c) => r.freqsHz.forEach((f, i) => (planted(ch, f) ? inside : outside).push(s.z[c][i]!)));
     const beyond = (a: number[]) => a.filter((z) => Math.abs(z) > 2).length / a.length;
-    console.log(`${deviant}: ${(100 * beyond(inside)).toFixed(0)} % of the planted points beyond |z| > 2 (min z ${Math.min(...inside).toFixed(1)}), ${(100 * beyond(outside)).toFixed(1)} % elsewhere`);
+    console.log(
+      `${deviant}: ${(100 * beyond(inside)).toFixed(0)} % of the planted points beyond |z| > 2 (min z ${Math.min(...inside).toFixed(1)}), ${(100 * beyond(outside)).toFixed(1)} % elsewhere`,
+    );
     expect(Math.min(...inside)).toBeGreaterThan(2);
     expect(beyond(outside)).toBeLessThan(0.15);
     // the patients' share distribution: one extreme subject, a typical median
@@ -141,7 +167,10 @@ describe('covariate adjustment', () => {
       const r = deviation(parseDeviationSpec({ referenceGroup: 'control', covariates }), data);
       const patients = r.subjects.filter((s) => !s.reference);
       const age = new Map(data.participants.map((p) => [p.subject, p.age as number]));
-      return corr(patients.map((s) => s.meanZ), patients.map((s) => age.get(s.subject)!));
+      return corr(
+        patients.map((s) => s.meanZ),
+        patients.map((s) => age.get(s.subject)!),
+      );
     };
     const before = others([]);
     const after = others(['age']);
@@ -154,7 +183,7 @@ describe('covariate adjustment', () => {
 });
 
 describe('the reference band of one subject', () => {
-  it('holds the other reference subjects\' 5–95 % range, moved to the subject\'s covariates', () => {
+  it("holds the other reference subjects' 5–95 % range, moved to the subject's covariates", () => {
     const { data } = syntheticCohort(60, 2, 3);
     const model = fitDeviation(parseDeviationSpec({ referenceGroup: 'control' }), data);
     const band = referenceBand(model, 0);

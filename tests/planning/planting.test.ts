@@ -47,27 +47,42 @@ describe('planted region', () => {
     const r = plantedRegion(c, measureLayout(c, axis), ['C3', 'C4'], ['C3', 'C4'], null, ['C4']);
     expect(Array.from(r.region)).toEqual([0, 1]);
     expect(() => plantedRegion(c, measureLayout(c, axis), ['C3'], ['C3'], sigma, 'all')).toThrow('measure offset has no frequency axis: give no band');
-    expect(() => plantedRegion(contrast({}), measureLayout(contrast({}), axis), ['C3'], ['C3'], null, 'all')).toThrow('measure log-psd needs the band to plant the effect in (--band LO-HI)');
+    expect(() => plantedRegion(contrast({}), measureLayout(contrast({}), axis), ['C3'], ['C3'], null, 'all')).toThrow(
+      'measure log-psd needs the band to plant the effect in (--band LO-HI)',
+    );
     for (const m of ['knee', 'peak-height', 'peak-center', 'peak-width'] as const) {
-      expect(() => plantingRule(m)).toThrow(`measure ${m} takes no planted effect; use log-psd, relative, residual, band-power, relative-band-power, offset, exponent`);
+      expect(() => plantingRule(m)).toThrow(
+        `measure ${m} takes no planted effect; use log-psd, relative, residual, band-power, relative-band-power, offset, exponent`,
+      );
     }
     expect(plantingRule('exponent')).toMatch(/exponent units \(not log10\)/);
-    expect(() => plantedRegion(contrast({}), measureLayout(contrast({}), axis), ['C3'], ['C3'], sigma, ['O1'])).toThrow("channel O1 is not one of the contrast's channels (C3)");
-    expect(() => plantedRegion(contrast({}), measureLayout(contrast({}), axis), ['C3'], ['C3'], { name: 'g', loHz: 35, hiHz: 40 }, 'all')).toThrow('no point of the contrast lies in 35–40 Hz');
+    expect(() => plantedRegion(contrast({}), measureLayout(contrast({}), axis), ['C3'], ['C3'], sigma, ['O1'])).toThrow(
+      "channel O1 is not one of the contrast's channels (C3)",
+    );
+    expect(() => plantedRegion(contrast({}), measureLayout(contrast({}), axis), ['C3'], ['C3'], { name: 'g', loHz: 35, hiHz: 40 }, 'all')).toThrow(
+      'no point of the contrast lies in 35–40 Hz',
+    );
   });
 
   it('a paired or covariate contrast is refused: power simulates two groups', () => {
     const { data } = syntheticCohort(10, 2, 1);
     const plan = { referenceGroup: 'control', effect: 0.1, band: sigma, channels: 'all' as const, nPerGroup: [5], simulations: 2, seed: 1, alpha: 0.05 };
     expect(() => preparePower(parseContrast({ design: 'covariate', covariate: 'age' }), plan, data)).toThrow(PlanningInputError);
-    expect(() => preparePower(contrast({ groups: ['control', 'patient'] }), { ...plan, referenceGroup: 'nobody' }, data)).toThrow('reference group group = nobody has 0 subjects with data; at least 2 are needed');
+    expect(() => preparePower(contrast({ groups: ['control', 'patient'] }), { ...plan, referenceGroup: 'nobody' }, data)).toThrow(
+      'reference group group = nobody has 0 subjects with data; at least 2 are needed',
+    );
   });
 });
 
 describe('a simulated study', () => {
   it('draws whole reference rows with replacement and shifts only the second group', () => {
     const P = 3;
-    const ref = { data: Float64Array.from({ length: 4 * P }, (_, i) => 10 * Math.floor(i / P) + (i % P)), nSubjects: 4, nPoints: P, nuisance: [{ name: 'age', values: [20, 30, 40, 50] }] };
+    const ref = {
+      data: Float64Array.from({ length: 4 * P }, (_, i) => 10 * Math.floor(i / P) + (i % P)),
+      nSubjects: 4,
+      nPoints: P,
+      nuisance: [{ name: 'age', values: [20, 30, 40, 50] }],
+    };
     const shift = Float64Array.from([0, 0.5, 0]);
     const s = drawStudy(ref, 5, shift, new Random(7));
     expect(Array.from(s.group)).toEqual([0, 0, 0, 0, 0, 1, 1, 1, 1, 1]);
@@ -99,6 +114,9 @@ describe('found or not', () => {
   it('no correction: a point with uncorrected p ≤ alpha in the region, of the planted sign', () => {
     expect(judgeStudy(result({}), 'none', region, 0.1, 0.05)).toEqual({ found: false, any: true }); // point 1 p 0.2, point 2 negative
     expect(judgeStudy(result({}), 'none', region, -0.1, 0.05)).toEqual({ found: true, any: true });
-    expect(judgeStudy(result({ tfce: { pCorrected: [1, 0.04, 1, 1] } as PermutationTestResult['tfce'] }), 'tfce', region, 0.1, 0.05)).toEqual({ found: true, any: true });
+    expect(judgeStudy(result({ tfce: { pCorrected: [1, 0.04, 1, 1] } as PermutationTestResult['tfce'] }), 'tfce', region, 0.1, 0.05)).toEqual({
+      found: true,
+      any: true,
+    });
   });
 });

@@ -18,10 +18,27 @@ import { syntheticCohort } from './synthetic-cohort.ts';
 import { preparePower } from '../../src/core/planning/index.ts';
 
 const { data } = syntheticCohort(400, 1, 11);
-const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', measure: 'band-power', bands: ['sigma'], channels: ['Fp1'], correction: 'none' });
+const contrast = parseContrast({
+  design: 'groups',
+  groups: ['control', 'patient'],
+  stage: 'N2',
+  measure: 'band-power',
+  bands: ['sigma'],
+  channels: ['Fp1'],
+  correction: 'none',
+});
 const SIZES = [8, 16, 32];
 const K = 4000;
-const plan = (effect: number) => ({ referenceGroup: 'control', effect, band: { name: 'sigma', loHz: 12, hiHz: 16 }, channels: 'all' as const, nPerGroup: SIZES, simulations: K, seed: 5, alpha: 0.05 });
+const plan = (effect: number) => ({
+  referenceGroup: 'control',
+  effect,
+  band: { name: 'sigma', loHz: 12, hiHz: 16 },
+  channels: 'all' as const,
+  nPerGroup: SIZES,
+  simulations: K,
+  seed: 5,
+  alpha: 0.05,
+});
 
 function analytic(effect: number): number[] {
   const reference = preparePower(contrast, plan(effect), data).reference;
@@ -42,12 +59,14 @@ print(json.dumps(out))`,
 }
 
 describe('power of one channel × band mean without correction', () => {
-  it.each([0, 0.12])('matches the noncentral t power of Welch\'s t (effect %s log10)', (effect) => {
+  it.each([0, 0.12])("matches the noncentral t power of Welch's t (effect %s log10)", (effect) => {
     const expected = analytic(effect);
     const r = simulatePower(contrast, plan(effect), data);
     r.curve.forEach((p, i) => {
       const tolerance = 2.576 * Math.sqrt((expected[i] * (1 - expected[i])) / K) + 0.01;
-      console.log(`effect ${effect}, n ${p.nPerGroup}: simulated ${p.power.toFixed(4)} [${p.ciLow.toFixed(4)}, ${p.ciHigh.toFixed(4)}], analytical ${expected[i].toFixed(4)}, tolerance ${tolerance.toFixed(4)}`);
+      console.log(
+        `effect ${effect}, n ${p.nPerGroup}: simulated ${p.power.toFixed(4)} [${p.ciLow.toFixed(4)}, ${p.ciHigh.toFixed(4)}], analytical ${expected[i].toFixed(4)}, tolerance ${tolerance.toFixed(4)}`,
+      );
       expect(Math.abs(p.power - expected[i])).toBeLessThanOrEqual(tolerance);
       expect(p.simulations).toBe(K);
     });

@@ -10,9 +10,30 @@ import { simulatePower, type PowerPoint } from '../../src/core/planning/index.ts
 import { syntheticCohort } from './synthetic-cohort.ts';
 
 const { data } = syntheticCohort(120, 4, 21);
-const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', fminHz: 8, fmaxHz: 16, permutations: 199, measure: 'residual' });
+const contrast = parseContrast({
+  design: 'groups',
+  groups: ['control', 'patient'],
+  stage: 'N2',
+  fminHz: 8,
+  fmaxHz: 16,
+  permutations: 199,
+  measure: 'residual',
+});
 const curve = (effect: number) =>
-  simulatePower(contrast, { referenceGroup: 'control', effect, band: { name: 'b', loHz: 11, hiHz: 15 }, channels: ['Fp1', 'Fpz'], nPerGroup: [6, 12, 24], simulations: 100, seed: 9, alpha: 0.05 }, data).curve;
+  simulatePower(
+    contrast,
+    {
+      referenceGroup: 'control',
+      effect,
+      band: { name: 'b', loHz: 11, hiHz: 15 },
+      channels: ['Fp1', 'Fpz'],
+      nPerGroup: [6, 12, 24],
+      simulations: 100,
+      seed: 9,
+      alpha: 0.05,
+    },
+    data,
+  ).curve;
 const text = (c: PowerPoint[]) => c.map((p) => `n ${p.nPerGroup}: ${p.power.toFixed(2)} [${p.ciLow.toFixed(2)}, ${p.ciHigh.toFixed(2)}]`).join('; ');
 
 describe('power grows with n and with the effect', () => {

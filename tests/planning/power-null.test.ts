@@ -15,9 +15,30 @@ import { syntheticCohort } from './synthetic-cohort.ts';
 describe('power at effect 0', () => {
   it('equals the family-wise error rate of cluster-mass correction (99 % binomial interval around 0.05)', () => {
     const { data } = syntheticCohort(120, 4, 21);
-    const contrast = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', fminHz: 8, fmaxHz: 16, permutations: 199, correction: 'cluster-mass' });
+    const contrast = parseContrast({
+      design: 'groups',
+      groups: ['control', 'patient'],
+      stage: 'N2',
+      fminHz: 8,
+      fmaxHz: 16,
+      permutations: 199,
+      correction: 'cluster-mass',
+    });
     const K = 800;
-    const r = simulatePower(contrast, { referenceGroup: 'control', effect: 0, band: { name: 'all', loHz: 8, hiHz: 16 }, channels: 'all', nPerGroup: [12], simulations: K, seed: 3, alpha: 0.05 }, data);
+    const r = simulatePower(
+      contrast,
+      {
+        referenceGroup: 'control',
+        effect: 0,
+        band: { name: 'all', loHz: 8, hiHz: 16 },
+        channels: 'all',
+        nPerGroup: [12],
+        simulations: K,
+        seed: 3,
+        alpha: 0.05,
+      },
+      data,
+    );
     const p = r.curve[0];
     const lo = binomialQuantile(0.005, K, 0.05);
     const hi = binomialQuantile(0.995, K, 0.05);

@@ -14,7 +14,12 @@ export interface SyntheticCohort {
   ages: number[];
 }
 
-export function syntheticCohort(recordings: number, channelCount: number, seed: number, change?: (subject: number, channel: string, freqHz: number, ageYears: number) => number): SyntheticCohort {
+export function syntheticCohort(
+  recordings: number,
+  channelCount: number,
+  seed: number,
+  change?: (subject: number, channel: string, freqHz: number, ageYears: number) => number,
+): SyntheticCohort {
   const spec = syntheticSpec({ recordings, channelCount, stages: ['N2'], seed, effect: { offsetLog10: 0, exponent: 0, sigmaHeightLog10: 0 } });
   const rows: SpectrumRow[] = [];
   const aperiodic: AperiodicRow[] = [];
@@ -34,7 +39,13 @@ export function syntheticCohort(recordings: number, channelCount: number, seed: 
     });
   }
   return {
-    data: { spectra: { freqStartHz: spec.freqStartHz, freqStepHz: spec.freqStepHz, nBins: spec.nBins, rows }, aperiodic, peaks: [], participants, exclusions: [] },
+    data: {
+      spectra: { freqStartHz: spec.freqStartHz, freqStepHz: spec.freqStepHz, nBins: spec.nBins, rows },
+      aperiodic,
+      peaks: [],
+      participants,
+      exclusions: [],
+    },
     spec,
     ages,
   };

@@ -33,7 +33,12 @@ describe('cohort distance', () => {
     const spectra = Array.from({ length: 12 }, (_, i) =>
       Float64Array.from(shape, (p) => p * Math.pow(10, 0.05 * rng.normal() + (i === 7 ? 0.6 * rng.normal() : 0))),
     );
-    const rows = cohortDistance('C4', 'N2', freqs, spectra.map((power, i) => ({ recordingId: `r${i}`, power })));
+    const rows = cohortDistance(
+      'C4',
+      'N2',
+      freqs,
+      spectra.map((power, i) => ({ recordingId: `r${i}`, power })),
+    );
     const z = numpyZ(spectra);
     rows.forEach((r, i) => expect(r.value!).toBeCloseTo(z[i], 9));
     expect(rows.filter((r) => r.flagged).map((r) => r.recordingId)).toEqual(['r7']);
@@ -46,7 +51,12 @@ describe('cohort distance', () => {
     // |d − 0.10| = [0.05, 0.05, 0.05, 0.05, 0, 0.85, 0.10]; MAD = 0.05
     // z = (d − 0.10) / (1.4826 · 0.05) = [−0.6745, −0.6745, 0.6745, 0.6745, 0, 11.466, −1.349]
     const c = [0, 0.1, -0.1, 0.2, -0.05, 1.0, 0.05];
-    const rows = cohortDistance('O1', 'N3', freqs, c.map((ci, i) => ({ recordingId: `s${i}`, power: Float64Array.from(shape, (p) => p * Math.pow(10, ci)) })));
+    const rows = cohortDistance(
+      'O1',
+      'N3',
+      freqs,
+      c.map((ci, i) => ({ recordingId: `s${i}`, power: Float64Array.from(shape, (p) => p * Math.pow(10, ci)) })),
+    );
     const expectedD = [0.05, 0.05, 0.15, 0.15, 0.1, 0.95, 0];
     const expectedZ = expectedD.map((d) => (d - 0.1) / (1.4826 * 0.05));
     rows.forEach((r, i) => {
@@ -60,7 +70,12 @@ describe('cohort distance', () => {
   });
 
   it('too few recordings: not assessable; bad power: a typed error', () => {
-    const few = cohortDistance('C3', 'N2', freqs, [0, 1, 2].map((i) => ({ recordingId: `x${i}`, power: shape })));
+    const few = cohortDistance(
+      'C3',
+      'N2',
+      freqs,
+      [0, 1, 2].map((i) => ({ recordingId: `x${i}`, power: shape })),
+    );
     expect(few.every((r) => r.value === null && !r.flagged)).toBe(true);
     expect(few[0].reason).toMatch(/3 recordings, fewer than 5/);
     const bad = Float64Array.from(shape);

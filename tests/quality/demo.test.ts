@@ -56,7 +56,10 @@ describe('quality screen on the demo cohort', () => {
     const planted = (q: { subject: string }) => ['pat07', 'ctl09', 'ctl14'].includes(q.subject);
     const cells = new Set(rows.filter((q) => !planted(q)).map((q) => `${q.subject}/${q.channel}`));
     const flaggedCells = new Set(rows.filter((q) => !planted(q) && q.flagged).map((q) => `${q.subject}/${q.channel}`));
-    console.log(`clean channels flagged: ${flaggedCells.size} of ${cells.size}`, [...new Set(rows.filter((q) => !planted(q) && q.flagged).map((q) => `${q.subject}/${q.channel}: ${q.metric}`))].slice(0, 10));
+    console.log(
+      `clean channels flagged: ${flaggedCells.size} of ${cells.size}`,
+      [...new Set(rows.filter((q) => !planted(q) && q.flagged).map((q) => `${q.subject}/${q.channel}: ${q.metric}`))].slice(0, 10),
+    );
     expect(cells.size).toBeGreaterThan(300);
     expect(flaggedCells.size / cells.size).toBeLessThanOrEqual(0.05);
   });

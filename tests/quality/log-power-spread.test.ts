@@ -1,6 +1,13 @@
 import { describe, expect, it } from 'vitest';
 import { runPython } from '../helpers/python.ts';
-import { bandRelativeVariance, BIN_COVARIANCE_LAGS, hannBinCovariance, log10PowerSd, stageLogPowerSd, welchBinCovariance } from '../../src/core/quality/log-power-spread.ts';
+import {
+  bandRelativeVariance,
+  BIN_COVARIANCE_LAGS,
+  hannBinCovariance,
+  log10PowerSd,
+  stageLogPowerSd,
+  welchBinCovariance,
+} from '../../src/core/quality/log-power-spread.ts';
 import { hannWindow, welchDegreesOfFreedom } from '../../src/core/spectrum/stage-average.ts';
 import { bandBins } from '../../src/core/spectrum/bands.ts';
 
@@ -78,7 +85,9 @@ print(json.dumps(out))
       const spectra = Float32Array.from(r.spectra);
       const sdBroad = stageLogPowerSd(spectra, nBins, rows, broad.first, broad.last, cov);
       const sdMuscle = stageLogPowerSd(spectra, nBins, rows, muscle.first, muscle.last, cov);
-      console.log(`${name}: broadband ours ${sdBroad.toFixed(4)} vs simulated ${r.sdBroad.toFixed(4)}; muscle ours ${sdMuscle.toFixed(4)} vs ${r.sdMuscle.toFixed(4)}`);
+      console.log(
+        `${name}: broadband ours ${sdBroad.toFixed(4)} vs simulated ${r.sdBroad.toFixed(4)}; muscle ours ${sdMuscle.toFixed(4)} vs ${r.sdMuscle.toFixed(4)}`,
+      );
       expect(Math.abs(sdBroad / r.sdBroad - 1)).toBeLessThan(0.05);
       expect(Math.abs(sdMuscle / r.sdMuscle - 1)).toBeLessThan(0.05);
     });

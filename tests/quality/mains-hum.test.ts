@@ -74,7 +74,9 @@ describe('mains hum', () => {
     expect(row.value).toBeNull();
     expect(row.flagged).toBe(false);
     expect(row.reason).toMatch(/not assessable: spectrum ends at 45 Hz/);
-    expect(() => mainsHum(cell, f45, p45, { lineHz: 50, halfWidthHz: 1, innerHz: 3, outerHz: 8, thresholdDb: 6 })).toThrow(/needs 58 Hz \(compute a high-range spectrum\)/);
+    expect(() => mainsHum(cell, f45, p45, { lineHz: 50, halfWidthHz: 1, innerHz: 3, outerHz: 8, thresholdDb: 6 })).toThrow(
+      /needs 58 Hz \(compute a high-range spectrum\)/,
+    );
     expect(mainsRatioDb(f45, p45, 50)).toBeNull();
   });
 

@@ -52,7 +52,11 @@ describe('narrow spikes', () => {
     expect(row.flagged).toBe(true);
     expect(row.spikes).toHaveLength(1);
     expect(Math.abs(row.spikes[0].freqHz - 23.1)).toBeLessThanOrEqual(0.125);
-    const noiseOnly = welch(Float64Array.from({ length: 120 * fs }, () => 5 * rng.normal()), fs, { segmentS: 4, maxFreqHz: 45 });
+    const noiseOnly = welch(
+      Float64Array.from({ length: 120 * fs }, () => 5 * rng.normal()),
+      fs,
+      { segmentS: 4, maxFreqHz: 45 },
+    );
     expect(narrowSpikes(cell, noiseOnly.freqsHz, noiseOnly.psd).flagged).toBe(false);
   });
 
@@ -77,7 +81,9 @@ describe('narrow spikes', () => {
     const p = spectrum([]);
     const k = 23 / STEP;
     p[k] *= 20;
-    expect(findNarrowSpikes(freqs, p, { heightLog10: 0.5, maxWidthHz: 0.75, neighbourhoodHz: 2, fminHz: 2, fmaxHz: Infinity, excludeHz: [[22, 24]] })).toEqual([]);
+    expect(findNarrowSpikes(freqs, p, { heightLog10: 0.5, maxWidthHz: 0.75, neighbourhoodHz: 2, fminHz: 2, fmaxHz: Infinity, excludeHz: [[22, 24]] })).toEqual(
+      [],
+    );
     const q = spectrum([]);
     q[180 - 2] *= 20; // 44.5 Hz: its ±2 Hz neighbourhood leaves the spectrum
     expect(findNarrowSpikes(freqs, q)).toEqual([]);

@@ -18,7 +18,16 @@ describe('the limit c_n against a brute-force simulation in numpy', () => {
   // values per n, about 930 expected exceedances at z0 = 3.5 (relative standard error 3.3 %);
   // our c_n carries its own Monte Carlo error (outlier-limit.ts: 1.5 % in c at n = 10, about 6 %
   // in the rate), so the share must lie within 20 % (40 % at n = 5, where c_n is least certain).
-  const cases: [number, number][] = [[5, 3.5], [10, 3.5], [14, 3.5], [20, 3.5], [40, 3.5], [100, 3.5], [14, 3], [40, 4]];
+  const cases: [number, number][] = [
+    [5, 3.5],
+    [10, 3.5],
+    [14, 3.5],
+    [20, 3.5],
+    [40, 3.5],
+    [100, 3.5],
+    [14, 3],
+    [40, 4],
+  ];
   const limits = cases.map(([n, z]) => outlierCriticalZ(n, z));
   const shares = runPython<number[]>(`
 rng = numpy.random.default_rng(5)

@@ -6,7 +6,14 @@ const cell = { channel: 'C3', stage: 'N1' as const };
 
 describe('outlier-share: removals against the rule’s chance rate (issue 24)', () => {
   // outside reference: scipy.stats.binom.sf(k − 1, n, 2Φ(−3.5)) = P(X ≥ k)
-  const cases: [number, number][] = [[14, 1], [14, 2], [40, 2], [300, 3], [300, 1], [1000, 4]];
+  const cases: [number, number][] = [
+    [14, 1],
+    [14, 2],
+    [40, 2],
+    [300, 3],
+    [300, 1],
+    [1000, 4],
+  ];
   const tails = runPython<number[]>(`from scipy.stats import binom, norm
 p = 2 * norm.sf(3.5)
 print(json.dumps([float(binom.sf(k - 1, n, p)) for n, k in ${JSON.stringify(cases)}]))`);

@@ -38,12 +38,20 @@ interface Context {
   recordingId: string;
 }
 
-const key = (stage: Stage, reference = 'recorded', averaging = 'mean') => (ctx: Context) => ({ runId: ctx.runId, stage, reference, averaging });
+const key =
+  (stage: Stage, reference = 'recorded', averaging = 'mean') =>
+  (ctx: Context) => ({ runId: ctx.runId, stage, reference, averaging });
 const sigma = parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', channels: ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'] });
 const contrasts = {
   'log-psd N2': parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', fmaxHz: 30 }),
   'residual paired N2/N3 linked-mastoids': parseContrast({ design: 'paired', stages: ['N2', 'N3'], measure: 'residual', reference: 'linked-mastoids' }),
-  'peak-height N2': parseContrast({ design: 'groups', groups: ['control', 'patient'], stage: 'N2', measure: 'peak-height', bands: [{ name: 'sigma', loHz: 12, hiHz: 16 }] }),
+  'peak-height N2': parseContrast({
+    design: 'groups',
+    groups: ['control', 'patient'],
+    stage: 'N2',
+    measure: 'peak-height',
+    bands: [{ name: 'sigma', loHz: 12, hiHz: 16 }],
+  }),
   'exponent N3 median': parseContrast({ design: 'covariate', covariate: 'age', stage: 'N3', measure: 'exponent', averaging: 'median' }),
 };
 const exclusions = [{ subject: 'ctl01', channel: null, reason: 'test exclusion' }];
@@ -56,7 +64,11 @@ const CALLS: Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>[]
   },
   {
     participants: (db, ctx) => cohort.participants(db, ctx.schema),
-    groupSizes: async (db, ctx) => [await cohort.groupSizes(db, ctx.schema, null), await cohort.groupSizes(db, ctx.schema, 'group'), await cohort.groupSizes(db, ctx.schema, 'sex')],
+    groupSizes: async (db, ctx) => [
+      await cohort.groupSizes(db, ctx.schema, null),
+      await cohort.groupSizes(db, ctx.schema, 'group'),
+      await cohort.groupSizes(db, ctx.schema, 'sex'),
+    ],
     recordingsOverview: async (db, ctx) => [await cohort.recordingsOverview(db, ctx.schema, 'group'), await cohort.recordingsOverview(db, ctx.schema, null)],
     ingestErrors: (db, ctx) => cohort.ingestErrors(db, ctx.schema),
     sleepArchitectureBySubject: (db, ctx) => cohort.sleepArchitectureBySubject(db, ctx.runId),
@@ -72,7 +84,10 @@ const CALLS: Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>[]
     storedReferences: (db, ctx) => spectra.storedReferences(db, ctx.runId),
   },
   {
-    aperiodicRows: async (db, ctx) => [await fits.aperiodicRows(db, key('N2')(ctx), 'fit'), await fits.aperiodicRows(db, key('R', 'linked-mastoids', 'median')(ctx), 'fit')],
+    aperiodicRows: async (db, ctx) => [
+      await fits.aperiodicRows(db, key('N2')(ctx), 'fit'),
+      await fits.aperiodicRows(db, key('R', 'linked-mastoids', 'median')(ctx), 'fit'),
+    ],
     aperiodicInFitRange: async (db, ctx) => {
       const [range] = await fits.storedFitRanges(db, ctx.runId, 'N2', 'recorded', 'mean', 'fit');
       return fits.aperiodicInFitRange(db, key('N2')(ctx), 'fit', range);
@@ -104,12 +119,23 @@ const CALLS: Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>[]
     contrastParticipants: (db, ctx) => contrastData.contrastParticipants(db, ctx.schema),
     loadContrastData: async (db, ctx) => {
       const out = [];
-      for (const c of Object.values(contrasts)) out.push(await contrastData.loadContrastData(db, ctx.schema, ctx.runList, c, exclusions, { maxHz: contrastData.contrastMaxHz(c) }));
+      for (const c of Object.values(contrasts))
+        out.push(await contrastData.loadContrastData(db, ctx.schema, ctx.runList, c, exclusions, { maxHz: contrastData.contrastMaxHz(c) }));
       return out;
     },
     loadBandCheckData: (db, ctx) => bandCheckData.loadBandCheckData(db, ctx.schema, ctx.runList, sigma, exclusions, ctx.runId),
     loadPathDataSets: (db, ctx) =>
-      bandCheckData.loadPathDataSets(db, ctx.schema, ctx.runList, sigma, [{ reference: 'recorded', averaging: 'mean' }, { reference: 'linked-mastoids', averaging: 'median' }], exclusions),
+      bandCheckData.loadPathDataSets(
+        db,
+        ctx.schema,
+        ctx.runList,
+        sigma,
+        [
+          { reference: 'recorded', averaging: 'mean' },
+          { reference: 'linked-mastoids', averaging: 'median' },
+        ],
+        exclusions,
+      ),
   },
   {
     // the demo has no split: both answer "no split"; the split's own rows over both engines: tests/dashboard/workflow.test.ts
@@ -121,7 +147,12 @@ const calls = Object.assign({}, ...CALLS) as Record<string, (db: SqlClient, ctx:
 
 async function contextOf(db: SqlClient): Promise<Context> {
   const runList = await runsModule.runs(db);
-  return { schema: await schemaModule.cohortSchema(db), runList, runId: runsModule.chooseRun(runList).runId, recordingId: (await quality.recordingSubjects(db))[0].recordingId };
+  return {
+    schema: await schemaModule.cohortSchema(db),
+    runList,
+    runId: runsModule.chooseRun(runList).runId,
+    recordingId: (await quality.recordingSubjects(db))[0].recordingId,
+  };
 }
 
 /** Every cell of a result, so a query that returns nothing cannot pass as equal. */
@@ -154,14 +185,32 @@ describe('every named query gives the same answer through the Node client and th
   });
 
   it('runs every exported query of src/queries', () => {
-    const exported = Object.values(MODULES).flatMap((m) => Object.entries(m).filter(([, v]) => typeof v === 'function').map(([name]) => name));
+    const exported = Object.values(MODULES).flatMap((m) =>
+      Object.entries(m)
+        .filter(([, v]) => typeof v === 'function')
+        .map(([name]) => name),
+    );
     expect(exported.filter((name) => !NOT_QUERIES.has(name)).sort()).toEqual(Object.keys(calls).sort());
   });
 
   it('the demo has what the queries read: one run, 36 recordings, 13 EEG channels', async () => {
     expect(nodeCtx.runList).toHaveLength(1);
     expect(await reportFacts.recordingCount(node, nodeCtx.runId)).toBe(36);
-    expect((await quality.channelList(node)).map((c) => c.channel).sort()).toEqual(['C3', 'C4', 'Cz', 'F3', 'F4', 'Fz', 'M1', 'M2', 'O1', 'O2', 'P3', 'P4', 'Pz']);
+    expect((await quality.channelList(node)).map((c) => c.channel).sort()).toEqual([
+      'C3',
+      'C4',
+      'Cz',
+      'F3',
+      'F4',
+      'Fz',
+      'M1',
+      'M2',
+      'O1',
+      'O2',
+      'P3',
+      'P4',
+      'Pz',
+    ]);
   });
 
   for (const name of Object.keys(calls)) {

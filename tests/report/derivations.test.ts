@@ -28,7 +28,9 @@ describe('methods text: derivations', () => {
   it('says how a contralateral-mastoid analysis used AASM derivations and monopolar channels', () => {
     const contralateral = { ...cmp, contrast: { ...cmp.contrast, reference: 'contralateral-mastoid' as const, channels: ['C3'] } };
     const text = methodsReport(contralateral, { ...FACTS, recordedDerivations: derivations }, LEDGER).markdown;
-    expect(text).toContain('C3 against M2 in 12 recordings. A channel recorded against the contralateral mastoid (the AASM derivations, e.g. C3-M2 and C4-M1) was used as recorded; a channel recorded against a common reference was referred to the contralateral mastoid (left − M2, right − M1).');
+    expect(text).toContain(
+      'C3 against M2 in 12 recordings. A channel recorded against the contralateral mastoid (the AASM derivations, e.g. C3-M2 and C4-M1) was used as recorded; a channel recorded against a common reference was referred to the contralateral mastoid (left − M2, right − M1).',
+    );
   });
 
   it('says nothing of derivations when the facts do not hold them', () => {

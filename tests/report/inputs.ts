@@ -11,9 +11,23 @@ import { resolveIngestParams } from '../../ingest/pipeline.ts';
 import { FIT_RANGE_HZ, simulateCohort } from '../verdict/cohorts.ts';
 
 export const CONTRAST_JSON = {
-  design: 'groups', groupColumn: 'group', groups: ['control', 'patient'], stage: 'N2', reference: 'recorded', averaging: 'mean',
-  channels: ['Cz'], fminHz: 1, fmaxHz: 30, measure: 'log-psd', statistic: 'welch-t', correction: 'cluster-mass', clusterP: 0.05,
-  permutations: 200, seed: 5, relativeRangeHz: [0.5, 45], bandMethod: 'mean',
+  design: 'groups',
+  groupColumn: 'group',
+  groups: ['control', 'patient'],
+  stage: 'N2',
+  reference: 'recorded',
+  averaging: 'mean',
+  channels: ['Cz'],
+  fminHz: 1,
+  fmaxHz: 30,
+  measure: 'log-psd',
+  statistic: 'welch-t',
+  correction: 'cluster-mass',
+  clusterP: 0.05,
+  permutations: 200,
+  seed: 5,
+  relativeRangeHz: [0.5, 45],
+  bandMethod: 'mean',
 } as const;
 
 export const FACTS: DatabaseFacts = {

@@ -24,9 +24,13 @@ describe('methods report', () => {
 
   it('says where the channel neighbours of a spatial cluster test came from', () => {
     // the fixed compare has no channel neighbours; the same result with a two-channel graph
-    const spatial = (neighbours: 'table' | 'positions') => methodsReport({ ...cmp, statistics: { ...cmp.statistics, channelNeighbours: [[1], [0]] }, channelLayout: { neighbours, positions: [] } }, FACTS, LEDGER).markdown;
+    const spatial = (neighbours: 'table' | 'positions') =>
+      methodsReport({ ...cmp, statistics: { ...cmp.statistics, channelNeighbours: [[1], [0]] }, channelLayout: { neighbours, positions: [] } }, FACTS, LEDGER)
+        .markdown;
     expect(spatial('table')).toContain('and neighbouring channels (the neighbour table given with the contrast);');
-    expect(spatial('positions')).toContain("and neighbouring channels (Delaunay triangulation of the channels' electrode positions (from the recordings' positions files, else the idealised 10-10 positions of their names) projected onto a disk, edges longer than twice the median edge dropped);");
+    expect(spatial('positions')).toContain(
+      "and neighbouring channels (Delaunay triangulation of the channels' electrode positions (from the recordings' positions files, else the idealised 10-10 positions of their names) projected onto a disk, edges longer than twice the median edge dropped);",
+    );
     expect(methodsReport(cmp, FACTS, LEDGER).markdown).not.toContain('neighbouring channels');
   });
 
@@ -37,7 +41,15 @@ describe('methods report', () => {
         expect(text, key).toContain(`- ${key}: ${typeof value === 'object' ? JSON.stringify(value) : String(value)}`);
       }
       // the values of the JSON as given also appear in the prose
-      for (const v of [CONTRAST_JSON.stage, CONTRAST_JSON.groups[0], CONTRAST_JSON.groups[1], `${CONTRAST_JSON.fminHz}–${CONTRAST_JSON.fmaxHz} Hz`, `seed ${CONTRAST_JSON.seed}`, `${CONTRAST_JSON.permutations} random`]) expect(text).toContain(v);
+      for (const v of [
+        CONTRAST_JSON.stage,
+        CONTRAST_JSON.groups[0],
+        CONTRAST_JSON.groups[1],
+        `${CONTRAST_JSON.fminHz}–${CONTRAST_JSON.fmaxHz} Hz`,
+        `seed ${CONTRAST_JSON.seed}`,
+        `${CONTRAST_JSON.permutations} random`,
+      ])
+        expect(text).toContain(v);
     }
   });
 
@@ -45,7 +57,9 @@ describe('methods report', () => {
     const text = methodsReport(check, FACTS, LEDGER).markdown;
     // 1300/52000 = 2.5 %; all stages (1300 + 260)/(52000 + 26000) = 2.0 % (by hand)
     // chance per outlier rule 2Φ(−3.5)·52000 = 4.6526e-4·52000 = 24.2 (scipy.stats.norm.sf, by hand)
-    expect(text).toContain('In N2, 1300 of 52000 channel-epochs (2.5 %) were rejected (amplitude 400, broadband-outlier 700, muscle-outlier 200; chance under Gaussian scatter: at most 24.2 per outlier rule)');
+    expect(text).toContain(
+      'In N2, 1300 of 52000 channel-epochs (2.5 %) were rejected (amplitude 400, broadband-outlier 700, muscle-outlier 200; chance under Gaussian scatter: at most 24.2 per outlier rule)',
+    );
     expect(text).toContain('each outlier rule is expected to remove 0.047 % of clean channel-epochs, the two together at most 0.093 %');
     expect(text).toContain('1560 of 78000 channel-epochs (2.0 %)');
     // frequency resolution 1/segment length (Welch 1967): 1/4 s = 0.25 Hz
@@ -88,7 +102,7 @@ describe('methods report', () => {
     const mtFacts = { ...FACTS, ingestParameters: { ...(FACTS.ingestParameters as Record<string, unknown>), multitaper: { nw: 2, k: 3 } } };
     const text = methodsReport(compare(mtContrast, simulateCohort('both', 3)), mtFacts, LEDGER).markdown;
     // 2W = 2NW/T = 2·2/4 s = 1 Hz (Thomson 1982; by hand)
-    expect(text).toContain('multitaper estimate stored beside Welch\'s (Thomson 1982)');
+    expect(text).toContain("multitaper estimate stored beside Welch's (Thomson 1982)");
     expect(text).toContain('K = 3 discrete prolate spheroidal (Slepian) tapers with time-half-bandwidth NW = 2');
     expect(text).toContain('a frequency resolution 2W = 2NW/T = 1 Hz');
     expect(text).toContain('Thomson, D. J. (1982). Spectrum estimation and harmonic analysis. Proceedings of the IEEE, 70(9), 1055–1096.');
@@ -98,9 +112,14 @@ describe('methods report', () => {
   });
 
   it('states the individual band rule and the subjects without a peak in a band check with individual bands', () => {
-    const ind = bandCheck({ ...contrast, bandDefinition: 'individual', peakSearchHz: [11.8, 16], halfWidthHz: 1.5 }, { name: 'sigma', loHz: 12, hiHz: 16 }, simulateCohort('both', 3), { fitRangeHz: FIT_RANGE_HZ });
+    const ind = bandCheck(
+      { ...contrast, bandDefinition: 'individual', peakSearchHz: [11.8, 16], halfWidthHz: 1.5 },
+      { name: 'sigma', loHz: 12, hiHz: 16 },
+      simulateCohort('both', 3),
+      { fitRangeHz: FIT_RANGE_HZ },
+    );
     const text = methodsReport(ind, FACTS, LEDGER).markdown;
-    expect(text).toContain('The band was individual: centred on each subject\'s own fitted peak in 11.8–16 Hz');
+    expect(text).toContain("The band was individual: centred on each subject's own fitted peak in 11.8–16 Hz");
     expect(text).toContain('with a half-width of 1.5 Hz');
     expect(text).toMatch(/\d+ of 40 subject-conditions have a fitted peak in 11.8–16 Hz/);
   });

@@ -17,7 +17,17 @@ describe('cluster scripts', () => {
   });
 
   it('the array script has one task per shard, resources, per-task logs; the merge lists every shard file', () => {
-    const s = clusterScripts({ cohort: 'cohort.tsv', out: '/data/run/cohort.duckdb', shards: 3, partition: 'long', cpus: 4, mem: '8G', time: '1-00:00:00', command: 'bandwise', ingestOptions: ['--reference', 'recorded,average'] });
+    const s = clusterScripts({
+      cohort: 'cohort.tsv',
+      out: '/data/run/cohort.duckdb',
+      shards: 3,
+      partition: 'long',
+      cpus: 4,
+      mem: '8G',
+      time: '1-00:00:00',
+      command: 'bandwise',
+      ingestOptions: ['--reference', 'recorded,average'],
+    });
     expect(s.ingest).toMatch(/^#SBATCH --array=1-3$/m);
     expect(s.ingest).toMatch(/^#SBATCH --partition=long$/m);
     expect(s.ingest).toMatch(/^#SBATCH --cpus-per-task=4$/m);
@@ -48,14 +58,46 @@ describe('cluster scripts', () => {
 
   it('bandwise cluster-script writes the three scripts (executable) and prints how to submit', () => {
     const out = path.join(dir, 'res', 'cohort.duckdb');
-    const r = spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/cli-entry.ts'), 'cluster-script', path.join(dir, 'cohort.tsv'), '--out', out, '--shards', '5', '--time', '30', '--', '--no-fit'], { encoding: 'utf8' });
+    const r = spawnSync(
+      process.execPath,
+      [
+        path.join(repo, 'bin/run-ts.mjs'),
+        path.join(repo, 'tests/scale/cli-entry.ts'),
+        'cluster-script',
+        path.join(dir, 'cohort.tsv'),
+        '--out',
+        out,
+        '--shards',
+        '5',
+        '--time',
+        '30',
+        '--',
+        '--no-fit',
+      ],
+      { encoding: 'utf8' },
+    );
     expect(r.status, r.stderr).toBe(0);
     expect(r.stdout).toMatch(/submit with:\n {2}bash .*res\/cohort\.slurm\/submit\.sh/);
     const ingest = readFileSync(path.join(dir, 'res', 'cohort.slurm', 'ingest.sbatch'), 'utf8');
     expect(ingest).toMatch(/^#SBATCH --array=1-5$/m);
     expect(ingest).toMatch(/--quiet --no-fit$/m);
     expect(statSync(path.join(dir, 'res', 'cohort.slurm', 'submit.sh')).mode & 0o111).not.toBe(0);
-    const bad = spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/cli-entry.ts'), 'cluster-script', 'c.tsv', '--out', out, '--shards', '2', '--mem', 'lots'], { encoding: 'utf8' });
+    const bad = spawnSync(
+      process.execPath,
+      [
+        path.join(repo, 'bin/run-ts.mjs'),
+        path.join(repo, 'tests/scale/cli-entry.ts'),
+        'cluster-script',
+        'c.tsv',
+        '--out',
+        out,
+        '--shards',
+        '2',
+        '--mem',
+        'lots',
+      ],
+      { encoding: 'utf8' },
+    );
     expect(bad.status).toBe(1);
     expect(bad.stderr).toMatch(/bandwise cluster-script: --mem 'lots'/);
   });

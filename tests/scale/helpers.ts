@@ -54,7 +54,9 @@ export async function compareDatabases(a: string, b: string): Promise<TableDiffe
       table: name,
       rowsA: await n(`SELECT count(*) FROM a.${name}`),
       rowsB: await n(`SELECT count(*) FROM b.${name}`),
-      differing: await n(`SELECT count(*) FROM ((SELECT ${cols} FROM a.${name} EXCEPT ALL SELECT ${cols} FROM b.${name}) UNION ALL (SELECT ${cols} FROM b.${name} EXCEPT ALL SELECT ${cols} FROM a.${name}))`),
+      differing: await n(
+        `SELECT count(*) FROM ((SELECT ${cols} FROM a.${name} EXCEPT ALL SELECT ${cols} FROM b.${name}) UNION ALL (SELECT ${cols} FROM b.${name} EXCEPT ALL SELECT ${cols} FROM a.${name}))`,
+      ),
     });
   }
   c.closeSync();

@@ -89,7 +89,10 @@ print(json.dumps(list((d - numpy.median(d)) / (1.4826 * numpy.median(numpy.abs(d
     expect(s.duplicatesDropped).toBe(2);
     for (const d of await compareDatabases(at('single.duckdb'), at('dup.duckdb'))) expect(d, d.table).toMatchObject({ differing: 0 });
     copyFileSync(shards[0], at('changed.duckdb'));
-    await exec(at('changed.duckdb'), `UPDATE spectra SET power = list_transform(power, x -> x * 1.0001::FLOAT) WHERE channel = 'C3' AND stage = 'N2' AND averaging = 'mean'`);
+    await exec(
+      at('changed.duckdb'),
+      `UPDATE spectra SET power = list_transform(power, x -> x * 1.0001::FLOAT) WHERE channel = 'C3' AND stage = 'N2' AND averaging = 'mean'`,
+    );
     await expect(mergeShards([at('single.duckdb'), at('changed.duckdb')], at('bad.duckdb'))).rejects.toThrow(
       /recording [0-9a-f]{16} \(sub0[14]\.edf\) is stored in both .*single\.duckdb and .*changed\.duckdb with different spectra rows/,
     );
@@ -119,7 +122,8 @@ print(json.dumps(list((d - numpy.median(d)) / (1.4826 * numpy.median(numpy.abs(d
   });
 
   it('bandwise merge --help explains the command; the command merges and exits 0, refuses with exit 1', () => {
-    const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/cli-entry.ts'), ...args], { encoding: 'utf8' });
+    const cli = (args: string[]) =>
+      spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/cli-entry.ts'), ...args], { encoding: 'utf8' });
     const help = cli(['merge', '--help']);
     expect(help.status).toBe(0);
     expect(help.stdout).toMatch(/--out <file>/);

@@ -29,7 +29,8 @@ const SECRETS = [NAME, 'Wendelin', 'Harrowgate', BIRTH, 'MAR-1961', CODE, 'QX881
 const dir = mkdtempSync(path.join(tmpdir(), 'bw-privacy-'));
 const at = (f: string) => path.join(dir, f);
 const repo = path.resolve(import.meta.dirname, '../..');
-const cli = (args: string[]) => spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/cli-entry.ts'), ...args], { encoding: 'utf8' });
+const cli = (args: string[]) =>
+  spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/cli-entry.ts'), ...args], { encoding: 'utf8' });
 const STAGE_TEXT = ['Sleep stage W', 'Sleep stage 1', 'Sleep stage 2', 'Sleep stage 3', 'Sleep stage R'];
 
 async function writeNamedEdf(file: string, seed: number, nEpochs: number): Promise<void> {
@@ -45,7 +46,11 @@ async function writeNamedEdf(file: string, seed: number, nEpochs: number): Promi
   await writeEdfFile(
     file,
     {
-      variant: 'EDF+C', startDate: '2020-01-01T22:00:00', recordDurationS: 1, patientId: PATIENT_ID, recordingId: RECORDING_ID,
+      variant: 'EDF+C',
+      startDate: '2020-01-01T22:00:00',
+      recordDurationS: 1,
+      patientId: PATIENT_ID,
+      recordingId: RECORDING_ID,
       signals: labels.map((label) => ({ label, physicalDimension: 'uV', physicalMin: -3200, physicalMax: 3200, samplesPerRecord: fs })),
       annotations: Array.from({ length: nEpochs }, (_, e) => ({ onsetS: 30 * e, durationS: 30, text: STAGE_TEXT[Math.floor((5 * e) / nEpochs)] })),
     },
@@ -91,7 +96,10 @@ beforeAll(async () => {
   await writeNamedEdf(at('rec6.edf'), 46, 20);
   const full = readFileSync(at('rec6.edf'));
   writeFileSync(at('rec6.edf'), full.subarray(0, 256 * 6 + 1000));
-  writeFileSync(at('cohort.tsv'), ['subject\tgroup\trecording', ...[1, 2, 3, 4, 5, 6].map((s) => `p${s}\t${s % 2 ? 'a' : 'b'}\trec${s}.edf`)].join('\n') + '\n');
+  writeFileSync(
+    at('cohort.tsv'),
+    ['subject\tgroup\trecording', ...[1, 2, 3, 4, 5, 6].map((s) => `p${s}\t${s % 2 ? 'a' : 'b'}\trec${s}.edf`)].join('\n') + '\n',
+  );
   const r = cli(['ingest', at('cohort.tsv'), '--out', at('db.duckdb'), '--jobs', '1', '--no-fit']);
   ingestOut = r.stdout + r.stderr;
   expect(r.status, ingestOut).toBe(3); // partly failed: rec6
@@ -125,6 +133,10 @@ describe('EDF identification text never reaches the database', () => {
       clean(await allValues(at(f)), `a query result of ${f}`);
       for (const text of fileBytes(at(f))) clean(text, `${f} bytes`);
     }
-    expect(readdirSync(dir).filter((f) => f.endsWith('.duckdb')).sort()).toEqual(['db.duckdb', 'merged.duckdb', 'shard1.duckdb', 'shard2.duckdb']);
+    expect(
+      readdirSync(dir)
+        .filter((f) => f.endsWith('.duckdb'))
+        .sort(),
+    ).toEqual(['db.duckdb', 'merged.duckdb', 'shard1.duckdb', 'shard2.duckdb']);
   });
 });

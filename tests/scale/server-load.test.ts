@@ -69,7 +69,9 @@ beforeAll(async () => {
   symlinkSync(path.join(dir, 'private'), path.join(app, 'assets', 'linked-dir')); // a folder link out of the app
   symlinkSync(path.join(dir, 'private', 'secret.txt'), path.join(app, 'linked.txt')); // a file link out of it
   symlinkSync(path.join(dir, 'cohort.duckdb'), path.join(app, 'db-link.duckdb')); // the database, by a link from the app
-  child = spawn(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/serve-child.ts'), path.join(dir, 'cohort.duckdb'), app], { stdio: ['ignore', 'pipe', 'inherit'] });
+  child = spawn(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'tests/scale/serve-child.ts'), path.join(dir, 'cohort.duckdb'), app], {
+    stdio: ['ignore', 'pipe', 'inherit'],
+  });
   const line = await new Promise<string>((resolve, reject) => {
     let out = '';
     child.stdout!.on('data', (d) => {
@@ -97,12 +99,15 @@ describe('dashboard server under load', () => {
     const agent = new http.Agent({ keepAlive: true, maxSockets: 20 });
     const get = (start: number, end: number) =>
       new Promise<{ status: number; body: Buffer }>((resolve, reject) => {
-        const req = http.get({ host: '127.0.0.1', port: url.port, path: '/data/cohort.duckdb', agent, headers: { Range: `bytes=${start}-${end}`, ...accessCookie(url.href) } }, (res) => {
-          const parts: Buffer[] = [];
-          res.on('data', (d: Buffer) => parts.push(d));
-          res.on('end', () => resolve({ status: res.statusCode ?? 0, body: Buffer.concat(parts) }));
-          res.on('error', reject);
-        });
+        const req = http.get(
+          { host: '127.0.0.1', port: url.port, path: '/data/cohort.duckdb', agent, headers: { Range: `bytes=${start}-${end}`, ...accessCookie(url.href) } },
+          (res) => {
+            const parts: Buffer[] = [];
+            res.on('data', (d: Buffer) => parts.push(d));
+            res.on('end', () => resolve({ status: res.statusCode ?? 0, body: Buffer.concat(parts) }));
+            res.on('error', reject);
+          },
+        );
         req.on('error', reject);
       });
     // warm-up (JIT, buffers), then the baseline
@@ -138,7 +143,16 @@ describe('dashboard server under load', () => {
     const seconds = (performance.now() - t0) / 1000;
     const after = rssKb();
     agent.destroy();
-    console.log(JSON.stringify({ requests: 10_000, clients: 20, seconds: Math.round(seconds * 100) / 100, perS: Math.round(10_000 / seconds), mib: Math.round((first.bytes + second.bytes) / 2 ** 20), rssMB: [mb(before), mb(middle), mb(after)] }));
+    console.log(
+      JSON.stringify({
+        requests: 10_000,
+        clients: 20,
+        seconds: Math.round(seconds * 100) / 100,
+        perS: Math.round(10_000 / seconds),
+        mib: Math.round((first.bytes + second.bytes) / 2 ** 20),
+        rssMB: [mb(before), mb(middle), mb(after)],
+      }),
+    );
     expect(first.bad + second.bad).toBe(0);
     expect(after - before).toBeLessThan(64 * 1024);
     expect(after - middle).toBeLessThan(24 * 1024);
@@ -177,10 +191,17 @@ describe('dashboard server under load', () => {
 
   it('refuses symlinks out of the folder, the database by another name, double-encoded and absolute paths', async () => {
     const paths = [
-      '/linked.txt', '/assets/linked-dir/secret.txt', '/assets/linked-dir/', '/db-link.duckdb',
-      '/%252e%252e/private/secret.txt', '/assets/%252e%252e%252f%252e%252e%252fprivate%252fsecret.txt', '/%25252e%25252e/private/secret.txt',
-      `/${encodeURIComponent(path.join(dir, 'private', 'secret.txt'))}`, `//${dir.slice(1)}/private/secret.txt`,
-      `/%2f${dir.slice(1)}/private/secret.txt`, '/data/%2e%2e/private/secret.txt',
+      '/linked.txt',
+      '/assets/linked-dir/secret.txt',
+      '/assets/linked-dir/',
+      '/db-link.duckdb',
+      '/%252e%252e/private/secret.txt',
+      '/assets/%252e%252e%252f%252e%252e%252fprivate%252fsecret.txt',
+      '/%25252e%25252e/private/secret.txt',
+      `/${encodeURIComponent(path.join(dir, 'private', 'secret.txt'))}`,
+      `//${dir.slice(1)}/private/secret.txt`,
+      `/%2f${dir.slice(1)}/private/secret.txt`,
+      '/data/%2e%2e/private/secret.txt',
     ];
     for (const p of paths) {
       const answer = await raw(`GET ${p} HTTP/1.1\r\n${host()}Connection: close\r\n\r\n`);
@@ -191,7 +212,10 @@ describe('dashboard server under load', () => {
 
   it('listens on 127.0.0.1 only: another address of this machine refuses the connection', async () => {
     expect(url.hostname).toBe('127.0.0.1');
-    const others = Object.values(networkInterfaces()).flat().filter((a) => a && !a.internal).map((a) => a!.address);
+    const others = Object.values(networkInterfaces())
+      .flat()
+      .filter((a) => a && !a.internal)
+      .map((a) => a!.address);
     for (const address of [...others, '::1']) {
       const result = await new Promise<string>((resolve) => {
         const s = net.connect({ host: address, port: Number(url.port) });

@@ -5,7 +5,13 @@ import type { CohortRecording } from '../../ingest/cohort/types.ts';
 import { runPython } from '../helpers/python.ts';
 
 const rec = (subject: string, session: string | null, file: string, row = 1): CohortRecording => ({
-  row, subject, session, group: null, recordingPath: `/cohort/${file}`, scoringPath: null, covariates: {},
+  row,
+  subject,
+  session,
+  group: null,
+  recordingPath: `/cohort/${file}`,
+  scoringPath: null,
+  covariates: {},
 });
 
 describe('parseShard', () => {
@@ -31,8 +37,14 @@ describe('parseShard', () => {
 describe('selectShard', () => {
   it('assigns sorted index i to shard (i mod N) + 1, whatever the table order (checked against Python sorted())', () => {
     const recs = [
-      rec('s10', null, 'b.edf'), rec('s02', 'night2', 'c.edf'), rec('s02', 'night1', 'd.edf'), rec('s02', null, 'z.edf'),
-      rec('s01', null, 'y.edf'), rec('S01', null, 'x.edf'), rec('s10', null, 'a.edf'), rec('s03', 'n1', 'e.edf'),
+      rec('s10', null, 'b.edf'),
+      rec('s02', 'night2', 'c.edf'),
+      rec('s02', 'night1', 'd.edf'),
+      rec('s02', null, 'z.edf'),
+      rec('s01', null, 'y.edf'),
+      rec('S01', null, 'x.edf'),
+      rec('s10', null, 'a.edf'),
+      rec('s03', 'n1', 'e.edf'),
     ];
     // Outside reference: Python's tuple ordering (code-point order; equal to UTF-16 order for these ASCII names),
     // with a missing session sorting first ((0, '') < (1, session)).
@@ -55,17 +67,25 @@ print(json.dumps([[r[2] for i, r in enumerate(order) if i % n == k - 1] for k in
       file: fc.stringMatching(/^[a-z]{1,5}$/),
     });
     fc.assert(
-      fc.property(fc.uniqueArray(recording, { maxLength: 40, selector: (r) => `${r.subject}|${r.session}|${r.file}` }), fc.integer({ min: 1, max: 7 }), fc.integer(), (rs, n, seed) => {
-        const recs = rs.map((r, i) => rec(r.subject, r.session, r.file, i + 1));
-        const shuffled = [...recs].sort((a, b) => ((a.row * 7919 + seed) % 101) - ((b.row * 7919 + seed) % 101));
-        const shards = Array.from({ length: n }, (_, k) => selectShard(recs, k + 1, n));
-        const again = Array.from({ length: n }, (_, k) => selectShard(shuffled, k + 1, n));
-        const rows = shards.flat().map((r) => r.row).sort((a, b) => a - b);
-        expect(rows).toEqual(recs.map((r) => r.row));
-        const sizes = shards.map((s) => s.length);
-        expect(Math.max(...sizes) - Math.min(...sizes)).toBeLessThanOrEqual(1);
-        expect(again.map((s) => s.map((r) => r.row))).toEqual(shards.map((s) => s.map((r) => r.row)));
-      }),
+      fc.property(
+        fc.uniqueArray(recording, { maxLength: 40, selector: (r) => `${r.subject}|${r.session}|${r.file}` }),
+        fc.integer({ min: 1, max: 7 }),
+        fc.integer(),
+        (rs, n, seed) => {
+          const recs = rs.map((r, i) => rec(r.subject, r.session, r.file, i + 1));
+          const shuffled = [...recs].sort((a, b) => ((a.row * 7919 + seed) % 101) - ((b.row * 7919 + seed) % 101));
+          const shards = Array.from({ length: n }, (_, k) => selectShard(recs, k + 1, n));
+          const again = Array.from({ length: n }, (_, k) => selectShard(shuffled, k + 1, n));
+          const rows = shards
+            .flat()
+            .map((r) => r.row)
+            .sort((a, b) => a - b);
+          expect(rows).toEqual(recs.map((r) => r.row));
+          const sizes = shards.map((s) => s.length);
+          expect(Math.max(...sizes) - Math.min(...sizes)).toBeLessThanOrEqual(1);
+          expect(again.map((s) => s.map((r) => r.row))).toEqual(shards.map((s) => s.map((r) => r.row)));
+        },
+      ),
       { numRuns: 300 },
     );
   });

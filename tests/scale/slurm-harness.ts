@@ -137,7 +137,19 @@ export async function startSlurm(cpus = 4): Promise<SlurmCluster> {
   };
   try {
     // munged in the foreground as user munge, with its own socket, pid, seed and log under dir
-    daemon(munged, ['--foreground', `--socket=${socket}`, `--pid-file=${mungeDir}/munged.pid`, `--log-file=${mungeDir}/munged.log`, `--seed-file=${mungeDir}/munged.seed`, `--key-file=${key}`], 'munged.out', { uid, gid });
+    daemon(
+      munged,
+      [
+        '--foreground',
+        `--socket=${socket}`,
+        `--pid-file=${mungeDir}/munged.pid`,
+        `--log-file=${mungeDir}/munged.log`,
+        `--seed-file=${mungeDir}/munged.seed`,
+        `--key-file=${key}`,
+      ],
+      'munged.out',
+      { uid, gid },
+    );
     await waitFor(() => existsSync(socket), 10_000, 'munged socket');
     daemon(slurmctld, ['-D', '-i', '-f', conf], 'slurmctld.out');
     daemon(slurmd, ['-D', '-N', NODE, '-f', conf], 'slurmd.out');

@@ -40,7 +40,17 @@ afterAll(async () => {
 /** scontrol's view of a job (finished jobs stay for MinJobAge, 300 s by default): one record per (array) task. */
 function jobRecords(id: string): Record<string, string>[] {
   const text = cluster!.client('scontrol', ['show', 'job', '-o', id]);
-  return text.trim().split('\n').map((line) => Object.fromEntries(line.trim().split(/\s+/).map((kv) => [kv.slice(0, kv.indexOf('=')), kv.slice(kv.indexOf('=') + 1)])));
+  return text
+    .trim()
+    .split('\n')
+    .map((line) =>
+      Object.fromEntries(
+        line
+          .trim()
+          .split(/\s+/)
+          .map((kv) => [kv.slice(0, kv.indexOf('=')), kv.slice(kv.indexOf('=') + 1)]),
+      ),
+    );
 }
 
 describe('Slurm job array ingest', () => {
@@ -71,7 +81,12 @@ describe('Slurm job array ingest', () => {
     const logs = readdirSync(w.scripts.logDir).sort();
     const err = (f: string) => (existsSync(path.join(w.scripts.logDir, f)) ? readFileSync(path.join(w.scripts.logDir, f), 'utf8') : '');
     const why = `${tasks.map((t) => `${t.JobId}_${t.ArrayTaskId} ${t.JobState} ${t.ExitCode}`).join('; ')}\n${logs.map((f) => `${f}: ${err(f).slice(-400)}`).join('\n')}`;
-    expect(tasks.map((t) => `${t.ArrayTaskId}:${t.JobState}:${t.ExitCode}`).sort(), why).toEqual(['1:COMPLETED:0:0', '2:COMPLETED:0:0', '3:COMPLETED:0:0', '4:COMPLETED:0:0']);
+    expect(tasks.map((t) => `${t.ArrayTaskId}:${t.JobState}:${t.ExitCode}`).sort(), why).toEqual([
+      '1:COMPLETED:0:0',
+      '2:COMPLETED:0:0',
+      '3:COMPLETED:0:0',
+      '4:COMPLETED:0:0',
+    ]);
     const [mergeJob] = jobRecords(mergeId);
     expect(`${mergeJob.JobState}:${mergeJob.ExitCode}`, why).toBe('COMPLETED:0:0');
     expect(mergeJob.Dependency).toBeDefined();

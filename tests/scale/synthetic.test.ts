@@ -19,16 +19,25 @@ describe('synthetic database', () => {
     const r = await writeSyntheticDatabase(file, spec, { batch: 7 });
     expect(r).toMatchObject({ recordings: 20, spectraRows: 400 });
     expect(readHeaderStorageNumber(file)).toBeLessThanOrEqual(67); // v1.4 for duckdb-wasm (DuckDB storage docs)
-    const counts = await queryRows(file, `SELECT (SELECT count(*)::INTEGER FROM recordings) AS rec, (SELECT count(*)::INTEGER FROM spectra) AS sp,
+    const counts = await queryRows(
+      file,
+      `SELECT (SELECT count(*)::INTEGER FROM recordings) AS rec, (SELECT count(*)::INTEGER FROM spectra) AS sp,
       (SELECT count(*)::INTEGER FROM aperiodic) AS ap, (SELECT count(*)::INTEGER FROM channels) AS ch, (SELECT count(*)::INTEGER FROM participants) AS pa,
-      (SELECT count(*)::INTEGER FROM spectra WHERE n_bins <> 181 OR len(power) <> 181 OR power[1] <> 0 OR list_min(power[2:]) <= 0) AS odd`);
+      (SELECT count(*)::INTEGER FROM spectra WHERE n_bins <> 181 OR len(power) <> 181 OR power[1] <> 0 OR list_min(power[2:]) <= 0) AS odd`,
+    );
     expect(counts).toEqual([{ rec: 20, sp: 400, ap: 400, ch: 80, pa: 20, odd: 0 }]);
     // the stored spectra are the pure draw, whatever the batch size and order
     const again = drawRecording(spec, 13);
-    const stored = await queryRows(file, `SELECT s.power FROM spectra s JOIN recordings r USING (recording_id) WHERE r.subject = 'syn00014' AND s.channel = '${spec.channels[2]}' AND s.stage = 'N2'`);
+    const stored = await queryRows(
+      file,
+      `SELECT s.power FROM spectra s JOIN recordings r USING (recording_id) WHERE r.subject = 'syn00014' AND s.channel = '${spec.channels[2]}' AND s.stage = 'N2'`,
+    );
     expect(Float32Array.from(stored[0].power as number[])).toEqual(again.power.subarray((2 * 5 + 2) * 181, (2 * 5 + 3) * 181));
     const groups = await queryRows(file, `SELECT "group", count(*)::INTEGER AS n FROM participants GROUP BY ALL ORDER BY 1`);
-    expect(groups).toEqual([{ group: 'control', n: 10 }, { group: 'patient', n: 10 }]);
+    expect(groups).toEqual([
+      { group: 'control', n: 10 },
+      { group: 'patient', n: 10 },
+    ]);
   });
 
   it('spectra scatter around the model 10^L(f) as numpy evaluates it, with the Welch-average noise (Gamma(n, 1/n))', () => {
@@ -46,7 +55,16 @@ b, chi, h, c, w = numpy.fromfile(inputs['m'])
 L = b - numpy.log10(f ** chi) + h * numpy.exp(-(f - c) ** 2 / (2 * w ** 2))
 q = p / 10 ** L
 print(json.dumps({'mean': float(q.mean()), 'sd': float(q.std(ddof=1))}))`,
-      { p: power, m: [rec.offset[s], rec.exponent[s], model.peaks[0].height + (rec.index % 2 ? spec.effect.sigmaHeightLog10 : 0), model.peaks[0].centerHz, model.peaks[0].widthHz] },
+      {
+        p: power,
+        m: [
+          rec.offset[s],
+          rec.exponent[s],
+          model.peaks[0].height + (rec.index % 2 ? spec.effect.sigmaHeightLog10 : 0),
+          model.peaks[0].centerHz,
+          model.peaks[0].widthHz,
+        ],
+      },
     );
     // 180 bins: the mean of the ratio is within 4 standard errors of 1, its SD within 25 % of 1/sqrt(n) (float32 rounding is far smaller)
     expect(Math.abs(out.mean - 1)).toBeLessThan(4 / Math.sqrt(n * 180));

@@ -59,6 +59,8 @@ if (missing.length > 0) {
 }
 
 if (spawnSync('python3', ['-c', 'import numpy, scipy'], { stdio: 'ignore' }).status !== 0) {
-  console.error('npm test needs python3 with numpy and scipy (the reference for the numeric checks): e.g. `apt-get install -y python3-numpy python3-scipy` or `python3 -m pip install numpy scipy`');
+  console.error(
+    'npm test needs python3 with numpy and scipy (the reference for the numeric checks): e.g. `apt-get install -y python3-numpy python3-scipy` or `python3 -m pip install numpy scipy`',
+  );
   process.exit(1);
 }

@@ -22,7 +22,19 @@ const scenario: Scenario = baseScenario({
     { name: 'control', codePrefix: 'ctl', size: 2, fsHz: 256, covariates: { ageMean: 40, ageSd: 10, femaleFraction: 0.5, scoreMean: 10, scoreSd: 3 } },
     { name: 'patient', codePrefix: 'pat', size: 1, fsHz: 128, covariates: { ageMean: 45, ageSd: 10, femaleFraction: 0.5, scoreMean: 20, scoreSd: 3 } },
   ],
-  rhythms: [{ name: 'fast-spindle', kind: 'bursts', site: 'CPz', widthDeg: 40, centerHz: 13.5, amplitudeUv: 15, durationS: [0.5, 2], burstFrequencySdHz: 0.3, perMinute: { N2: 5 } }],
+  rhythms: [
+    {
+      name: 'fast-spindle',
+      kind: 'bursts',
+      site: 'CPz',
+      widthDeg: 40,
+      centerHz: 13.5,
+      amplitudeUv: 15,
+      durationS: [0.5, 2],
+      burstFrequencySdHz: 0.3,
+      perMinute: { N2: 5 },
+    },
+  ],
   artifacts: [{ kind: 'flat', subject: 'ctl02', channel: 'O2', valueUv: 0, noiseSdUv: 0 }],
 });
 
@@ -79,7 +91,10 @@ describe('writeSimulatedCohort', () => {
       expect(scoring.stages).toEqual(plan.stages);
     }
 
-    const table = readFileSync(files.participantsPath, 'utf8').trim().split('\n').map((l) => l.split('\t'));
+    const table = readFileSync(files.participantsPath, 'utf8')
+      .trim()
+      .split('\n')
+      .map((l) => l.split('\t'));
     expect(table[0]).toEqual(['subject', 'group', 'recording', 'scoring', 'age', 'sex', 'score']);
     expect(table.slice(1).map((r) => [r[0], r[1], r[2], r[3]])).toEqual([
       ['ctl01', 'control', 'ctl01.edf', 'ctl01_scoring.tsv'],

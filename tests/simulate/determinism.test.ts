@@ -5,11 +5,19 @@ import { baseScenario } from './scenarios.ts';
 
 const withEvents = baseScenario({
   nightMin: 20,
-  groups: [
-    { name: 'control', codePrefix: 'ctl', size: 2, fsHz: 128, covariates: { ageMean: 40, ageSd: 10, femaleFraction: 0.5, scoreMean: 10, scoreSd: 3 } },
-  ],
+  groups: [{ name: 'control', codePrefix: 'ctl', size: 2, fsHz: 128, covariates: { ageMean: 40, ageSd: 10, femaleFraction: 0.5, scoreMean: 10, scoreSd: 3 } }],
   rhythms: [
-    { name: 'fast-spindle', kind: 'bursts', site: 'CPz', widthDeg: 40, centerHz: 13.5, amplitudeUv: 15, durationS: [0.5, 2], burstFrequencySdHz: 0.3, perMinute: { N2: 5 } },
+    {
+      name: 'fast-spindle',
+      kind: 'bursts',
+      site: 'CPz',
+      widthDeg: 40,
+      centerHz: 13.5,
+      amplitudeUv: 15,
+      durationS: [0.5, 2],
+      burstFrequencySdHz: 0.3,
+      perMinute: { N2: 5 },
+    },
     { name: 'alpha', kind: 'narrowband', site: 'Oz', widthDeg: 40, centerHz: 10, bandwidthHz: 0.6, rmsUv: { W: 14 } },
   ],
   artifacts: [
@@ -52,7 +60,19 @@ describe('determinism', () => {
     const inOrder = epochs();
     const n = inOrder.length;
     const reversed = epochs(withEvents, 0, [...Array(n).keys()].reverse());
-    const shuffled = epochs(withEvents, 0, [7, 2, 30, 3, 0, 39, 1, 15, 14, 16, ...[...Array(n).keys()].filter((i) => ![7, 2, 30, 3, 0, 39, 1, 15, 14, 16].includes(i))]);
+    const shuffled = epochs(withEvents, 0, [
+      7,
+      2,
+      30,
+      3,
+      0,
+      39,
+      1,
+      15,
+      14,
+      16,
+      ...[...Array(n).keys()].filter((i) => ![7, 2, 30, 3, 0, 39, 1, 15, 14, 16].includes(i)),
+    ]);
     expect(bytes(reversed).equals(bytes(inOrder))).toBe(true);
     expect(bytes(shuffled).equals(bytes(inOrder))).toBe(true);
   });
@@ -90,8 +110,17 @@ describe('determinism', () => {
 describe('stage sequence', () => {
   const demoLike = baseScenario({
     nightMin: 60,
-    hypnogram: { wakeAtStartMin: 6, cycleMin: { N1: 2, N2: 10, N3: 9, N2late: 4, R: 5 }, n3PerCycle: 0.6, rPerCycle: 1.4, jitter: 0.25, awakeningsPerHour: 1.5 },
-    groups: [{ name: 'control', codePrefix: 'ctl', size: 12, fsHz: 256, covariates: { ageMean: 40, ageSd: 10, femaleFraction: 0.5, scoreMean: 10, scoreSd: 3 } }],
+    hypnogram: {
+      wakeAtStartMin: 6,
+      cycleMin: { N1: 2, N2: 10, N3: 9, N2late: 4, R: 5 },
+      n3PerCycle: 0.6,
+      rPerCycle: 1.4,
+      jitter: 0.25,
+      awakeningsPerHour: 1.5,
+    },
+    groups: [
+      { name: 'control', codePrefix: 'ctl', size: 12, fsHz: 256, covariates: { ageMean: 40, ageSd: 10, femaleFraction: 0.5, scoreMean: 10, scoreSd: 3 } },
+    ],
   });
 
   it('starts awake, then N1 → N2 → N3 in the first cycle, has every stage and 120 epochs', () => {
@@ -160,8 +189,16 @@ describe('artifacts and truth', () => {
   it('bad scenarios fail with the field named', () => {
     expect(() => checkScenario({ ...withEvents, channels: ['C3', 'Xy9'] })).toThrow(/channels\[1\].*Xy9/);
     expect(() => checkScenario({ ...withEvents, reference: { label: 'REF', site: 'Cz' } })).toThrow(ScenarioError);
-    expect(() => checkScenario({ ...withEvents, artifacts: [{ kind: 'flat', subject: 'ctl09', channel: 'O2', valueUv: 0, noiseSdUv: 0 }] })).toThrow(/artifacts\[0\]\.subject/);
+    expect(() => checkScenario({ ...withEvents, artifacts: [{ kind: 'flat', subject: 'ctl09', channel: 'O2', valueUv: 0, noiseSdUv: 0 }] })).toThrow(
+      /artifacts\[0\]\.subject/,
+    );
     expect(() => checkScenario({ ...withEvents, nightMin: 10.25 })).toThrow(/nightMin/);
-    expect(() => checkScenario({ ...withEvents, artifacts: [{ kind: 'mains', subject: 'ctl01', frequencyHz: 60, amplitudeUv: 1, channels: 'all' }], groups: [{ ...withEvents.groups[0], fsHz: 100 }] })).toThrow(/Nyquist/);
+    expect(() =>
+      checkScenario({
+        ...withEvents,
+        artifacts: [{ kind: 'mains', subject: 'ctl01', frequencyHz: 60, amplitudeUv: 1, channels: 'all' }],
+        groups: [{ ...withEvents.groups[0], fsHz: 100 }],
+      }),
+    ).toThrow(/Nyquist/);
   });
 });

@@ -14,7 +14,17 @@ import { runPython } from '../helpers/python.ts';
 import { baseScenario, fixedStages, generateNight } from './scenarios.ts';
 
 const covariates = { ageMean: 40, ageSd: 10, femaleFraction: 0.5, scoreMean: 10, scoreSd: 3 };
-const fastSpindle = { name: 'fast-spindle', kind: 'bursts', site: 'CPz', widthDeg: 40, centerHz: 13.5, amplitudeUv: 15, durationS: [0.5, 2], burstFrequencySdHz: 0.3, perMinute: { N2: 5 } } as const;
+const fastSpindle = {
+  name: 'fast-spindle',
+  kind: 'bursts',
+  site: 'CPz',
+  widthDeg: 40,
+  centerHz: 13.5,
+  amplitudeUv: 15,
+  durationS: [0.5, 2],
+  burstFrequencySdHz: 0.3,
+  perMinute: { N2: 5 },
+} as const;
 
 function scenario(effects: Scenario['effects'], frequencySd = 0): Scenario {
   const base = baseScenario();

@@ -84,8 +84,28 @@ describe('spindle peaks (10 min of N2 with slow and fast spindle bursts)', () =>
   const scenario = baseScenario({
     ...fixedStages('N2', 20),
     rhythms: [
-      { name: 'slow-spindle', kind: 'bursts', site: 'Fz', widthDeg: 35, centerHz: 11, amplitudeUv: 13, durationS: [0.5, 2], burstFrequencySdHz: 0.3, perMinute: { N2: 4 } },
-      { name: 'fast-spindle', kind: 'bursts', site: 'CPz', widthDeg: 40, centerHz: 13.5, amplitudeUv: 15, durationS: [0.5, 2], burstFrequencySdHz: 0.3, perMinute: { N2: 5 } },
+      {
+        name: 'slow-spindle',
+        kind: 'bursts',
+        site: 'Fz',
+        widthDeg: 35,
+        centerHz: 11,
+        amplitudeUv: 13,
+        durationS: [0.5, 2],
+        burstFrequencySdHz: 0.3,
+        perMinute: { N2: 4 },
+      },
+      {
+        name: 'fast-spindle',
+        kind: 'bursts',
+        site: 'CPz',
+        widthDeg: 40,
+        centerHz: 13.5,
+        amplitudeUv: 15,
+        durationS: [0.5, 2],
+        burstFrequencySdHz: 0.3,
+        perMinute: { N2: 5 },
+      },
     ],
   });
   const plan = planNight(scenario, 0);

@@ -73,7 +73,7 @@ describe('Slepian tapers', () => {
     });
   });
 
-  it('follow scipy\'s sign convention without alignment (even: positive sum; odd: positive first lobe)', () => {
+  it("follow scipy's sign convention without alignment (even: positive sum; odd: positive first lobe)", () => {
     cases.forEach(([n, nw, k], c) => {
       const t = slepianTapers(n, nw, k);
       for (let j = 0; j < k; j++) expect(maxAbs(t.tapers[j], ref[c].v[j])).toBeLessThan(1e-8);

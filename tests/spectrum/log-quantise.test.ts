@@ -10,7 +10,7 @@ import { Random } from '../../src/core/stats/random.ts';
 import { runPython } from '../helpers/python.ts';
 
 describe('log10 power quantised to 16 bits', () => {
-  it('keeps every bin within half a step of numpy\'s log10, the step being the row\'s range / 65535', () => {
+  it("keeps every bin within half a step of numpy's log10, the step being the row's range / 65535", () => {
     const rng = new Random(17);
     const rows = 50;
     const n = 121;
@@ -39,7 +39,7 @@ describe('log10 power quantised to 16 bits', () => {
     expect(worstLog10).toBeLessThan(5e-5); // ≈ 4.6 decades / 131070 = 3.5e-5: 0.008 % in power
   });
 
-  it('stores a flat channel\'s zero power as the floor, and refuses a value that is not a number', () => {
+  it("stores a flat channel's zero power as the floor, and refuses a value that is not a number", () => {
     const levels = new Uint16Array(3);
     const q = quantiseLog10([0, 0, 0], 0, 3, levels, 0);
     expect([q.lo, q.step, ...levels]).toEqual([Math.log10(FLOOR_UV2_PER_HZ), 0, 0, 0, 0]);

@@ -1,6 +1,13 @@
 import { describe, expect, it } from 'vitest';
 import { Multitaper, multitaper } from '../../src/core/spectrum/multitaper.ts';
-import { chiSquareMedianRatio, hannWindow, stageMean, stageMedian, taperDegreesOfFreedom, welchDegreesOfFreedom } from '../../src/core/spectrum/stage-average.ts';
+import {
+  chiSquareMedianRatio,
+  hannWindow,
+  stageMean,
+  stageMedian,
+  taperDegreesOfFreedom,
+  welchDegreesOfFreedom,
+} from '../../src/core/spectrum/stage-average.ts';
 import { Random } from '../../src/core/stats/random.ts';
 import { runPython } from '../helpers/python.ts';
 
@@ -40,7 +47,7 @@ def mt(x, fs, nperseg, noverlap, nw, k):
 `;
 
 describe('multitaper PSD', () => {
-  it('equals a numpy/scipy reference built with scipy\'s dpss tapers to 1e-6 relative per bin', () => {
+  it("equals a numpy/scipy reference built with scipy's dpss tapers to 1e-6 relative per bin", () => {
     const cases: { fs: number; segmentS: number; nw: number; k: number; offset?: number; overlap?: number }[] = [
       { fs: 128, segmentS: 4, nw: 2, k: 3 },
       { fs: 250, segmentS: 4, nw: 2, k: 3 },
@@ -94,7 +101,7 @@ describe('multitaper PSD', () => {
     const q = multitaper(sine, fs, { segmentS: 4, nw: 2 });
     let inside = 0;
     for (let b = 0; b < q.psd.length; b++) if (Math.abs(q.freqsHz[b] - 10) <= 1 + 1e-9) inside += q.psd[b] * 0.25;
-    expect(Math.abs(inside / (A * A / 2) - 1)).toBeLessThan(1e-3);
+    expect(Math.abs(inside / ((A * A) / 2) - 1)).toBeLessThan(1e-3);
     expect(est.halfBandwidthHz).toBe(0.5); // 2W = 2NW/T = 1 Hz for NW = 2, T = 4 s
   });
 
@@ -105,7 +112,7 @@ describe('multitaper PSD', () => {
 });
 
 describe('multitaper degrees of freedom and the median of epoch spectra', () => {
-  it('taperDegreesOfFreedom with one unit-energy Hann window equals Welch\'s ν', () => {
+  it("taperDegreesOfFreedom with one unit-energy Hann window equals Welch's ν", () => {
     const w = hannWindow(400);
     let e = 0;
     for (const v of w) e += v * v;
@@ -167,6 +174,6 @@ describe('multitaper degrees of freedom and the median of epoch spectra', () => 
     expect(Math.abs(interiorMean(mean) / truth - 1)).toBeLessThan(0.005);
     expect(Math.abs(interiorMean(med) / truth - 1)).toBeLessThan(0.005);
     // without the correction the median is biased low by 1 − b(ν) ≈ 1.3 %
-    expect(interiorMean(med) * chiSquareMedianRatio(nu) / truth).toBeLessThan(0.995);
+    expect((interiorMean(med) * chiSquareMedianRatio(nu)) / truth).toBeLessThan(0.995);
   });
 });

@@ -1,5 +1,15 @@
 import { describe, expect, it } from 'vitest';
-import { AdjacencyError, channelsMissingFrom, delaunayNeighbours, distanceNeighbours, neighbourTable, parseNeighbourTsv, positionNeighbours, RIM_EDGE_FACTOR, tableNeighbours } from '../../src/core/montage/adjacency.ts';
+import {
+  AdjacencyError,
+  channelsMissingFrom,
+  delaunayNeighbours,
+  distanceNeighbours,
+  neighbourTable,
+  parseNeighbourTsv,
+  positionNeighbours,
+  RIM_EDGE_FACTOR,
+  tableNeighbours,
+} from '../../src/core/montage/adjacency.ts';
 import { channelPosition, electrodePosition, projectToDisk, type Position3 } from '../../src/core/montage/positions.ts';
 import { TEN_TEN_64 } from '../../src/core/simulate/synthetic-database.ts';
 import { runPython } from '../helpers/python.ts';
@@ -110,7 +120,13 @@ edges = sorted(edges)
 length = [float(numpy.linalg.norm(p[a] - p[b])) for a, b in edges]
 limit = ${RIM_EDGE_FACTOR} * float(numpy.median(length))
 print(json.dumps([[a, b] for (a, b), l in zip(edges, length) if l <= limit]))`,
-      { xy: pos.flatMap((p) => { const d = projectToDisk(p); return [d.x, d.y]; }), p: pos.flatMap((p) => [p.x, p.y, p.z]) },
+      {
+        xy: pos.flatMap((p) => {
+          const d = projectToDisk(p);
+          return [d.x, d.y];
+        }),
+        p: pos.flatMap((p) => [p.x, p.y, p.z]),
+      },
     );
     const nb = positionNeighbours(pos, [...TEN_TEN_64]);
     expect(edgeSet(nb)).toEqual(ref.map(([a, b]) => `${a}-${b}`).sort());

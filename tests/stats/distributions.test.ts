@@ -36,11 +36,12 @@ print(json.dumps({"cdf": [float(stats.t.cdf(t, d)) for d in dfs for t in ts],
   "p2": [float(2 * stats.t.sf(abs(t), d)) for d in dfs for t in ts]}))`,
     );
     let i = 0;
-    for (const d of dfs) for (const t of ts) {
-      expect(Math.abs(tCdf(t, d) - ref.cdf[i])).toBeLessThan(1e-10);
-      expect(Math.abs(twoTailedP(t, d) - ref.p2[i])).toBeLessThan(1e-10);
-      i++;
-    }
+    for (const d of dfs)
+      for (const t of ts) {
+        expect(Math.abs(tCdf(t, d) - ref.cdf[i])).toBeLessThan(1e-10);
+        expect(Math.abs(twoTailedP(t, d) - ref.p2[i])).toBeLessThan(1e-10);
+        i++;
+      }
     i = 0;
     for (const d of dfs) for (const p of ps) expect(Math.abs(tQuantile(p, d) - ref.q[i++]) / Math.max(1, Math.abs(ref.q[i - 1]))).toBeLessThan(1e-8);
   });

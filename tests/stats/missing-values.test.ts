@@ -21,7 +21,16 @@ const group = Array.from({ length: n }, (_, s) => (s < 6 ? 0 : 1));
 const first = Float64Array.from({ length: n * P }, (_, i) => 1 + rng.normal() + (group[Math.floor(i / P)] === 1 ? 0.2 * (i % P) : 0));
 const second = Float64Array.from(first, (x) => x + 0.5 + 0.7 * rng.normal());
 // missing values: scattered, plus point 4 with one group-0 value left and point 5 with none
-const holes = [[0, 0], [3, 0], [9, 0], [2, 1], [7, 2], [12, 3], [13, 3], [1, 1]];
+const holes = [
+  [0, 0],
+  [3, 0],
+  [9, 0],
+  [2, 1],
+  [7, 2],
+  [12, 3],
+  [13, 3],
+  [1, 1],
+];
 for (const [s, p] of holes) first[s * P + p] = NaN;
 second[5 * P + 2] = NaN;
 second[10 * P + 0] = NaN;
@@ -92,7 +101,10 @@ describe('missing values per point equal scipy on the values present', () => {
   });
 
   it('Student t with per-point df', () => {
-    const r = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group }, allowMissing: true }, { ...quick, statistic: 'student-t' });
+    const r = runPermutationTest(
+      { channels, freqsHz, data: first, design: { kind: 'groups', group }, allowMissing: true },
+      { ...quick, statistic: 'student-t' },
+    );
     for (let p = 0; p < 4; p++) {
       near(r.stat[p], ref[p].student!.t, `t[${p}]`);
       near((r.df as number[])[p], ref[p].student!.df, `df[${p}]`);
@@ -104,7 +116,10 @@ describe('missing values per point equal scipy on the values present', () => {
     const paired = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'paired', second }, allowMissing: true }, quick);
     const one = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'one-sample' }, allowMissing: true }, quick);
     for (let p = 0; p < P; p++) {
-      for (const [res, r] of [[paired, ref[p].paired], [one, ref[p].one]] as const) {
+      for (const [res, r] of [
+        [paired, ref[p].paired],
+        [one, ref[p].one],
+      ] as const) {
         if (!r) {
           expect(res.stat[p]).toBeNaN();
           continue;
@@ -121,7 +136,10 @@ describe('missing values per point equal scipy on the values present', () => {
     // 9 subjects (4 vs 5), one point, two missing values: C(9, 4) = 126 relabellings
     const x = Float64Array.from([0.3, NaN, 1.1, 0.8, 1.9, 2.4, NaN, 1.7, 2.2]);
     const g = [0, 0, 0, 0, 1, 1, 1, 1, 1];
-    const r = runPermutationTest({ channels: ['Cz'], freqsHz: [13], data: x, design: { kind: 'groups', group: g }, allowMissing: true }, { permutations: 1000, clusterP: 1 - 1e-9, frequencyAdjacency: false });
+    const r = runPermutationTest(
+      { channels: ['Cz'], freqsHz: [13], data: x, design: { kind: 'groups', group: g }, allowMissing: true },
+      { permutations: 1000, clusterP: 1 - 1e-9, frequencyAdjacency: false },
+    );
     expect(r.exact).toBe(true);
     expect(r.permutations).toBe(126);
     const py = runPython<{ p: number; t: number }>(
@@ -154,9 +172,15 @@ print(json.dumps({"p": sum(1 for v in null if v >= obs * (1 - 1e-9)) / len(null)
 
   it('refuses missing values where they are not supported, and a NaN without allowMissing', () => {
     const covariate = Array.from({ length: n }, (_, s) => 30 + s);
-    expect(() => runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate }, allowMissing: true }, quick)).toThrow(/not for a covariate design/);
-    expect(() => runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group } }, quick)).toThrow(/subject row 0, channel C3, 10 Hz is not a finite number/);
+    expect(() => runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate }, allowMissing: true }, quick)).toThrow(
+      /not for a covariate design/,
+    );
+    expect(() => runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group } }, quick)).toThrow(
+      /subject row 0, channel C3, 10 Hz is not a finite number/,
+    );
     const none = new Float64Array(n * P).fill(NaN);
-    expect(() => runPermutationTest({ channels, freqsHz, data: none, design: { kind: 'groups', group }, allowMissing: true }, quick)).toThrow(/no point has at least 2 values per group/);
+    expect(() => runPermutationTest({ channels, freqsHz, data: none, design: { kind: 'groups', group }, allowMissing: true }, quick)).toThrow(
+      /no point has at least 2 values per group/,
+    );
   });
 });

@@ -30,7 +30,9 @@ describe('family-wise error under the null', () => {
     // 99 % central interval of Binomial(200, 0.05) from @stdlib/stats-base-dists-binomial-quantile
     const lo = binomialQuantile(0.005, datasets, 0.05);
     const hi = binomialQuantile(0.995, datasets, 0.05);
-    console.log(`null FWER over ${datasets} datasets × 500 permutations: cluster mass ${clusterHits}/${datasets} = ${(clusterHits / datasets).toFixed(3)}, TFCE ${tfceHits}/${datasets} = ${(tfceHits / datasets).toFixed(3)}; 99 % binomial interval [${lo}, ${hi}]`);
+    console.log(
+      `null FWER over ${datasets} datasets × 500 permutations: cluster mass ${clusterHits}/${datasets} = ${(clusterHits / datasets).toFixed(3)}, TFCE ${tfceHits}/${datasets} = ${(tfceHits / datasets).toFixed(3)}; 99 % binomial interval [${lo}, ${hi}]`,
+    );
     expect(clusterHits).toBeGreaterThanOrEqual(lo);
     expect(clusterHits).toBeLessThanOrEqual(hi);
     expect(tfceHits).toBeGreaterThanOrEqual(lo);
@@ -50,9 +52,14 @@ describe('a planted effect', () => {
     for (const c of plantedChannels) for (let f = 20; f <= 30; f++) planted.add(c * nFreqs + f);
     const P = channels.length * nFreqs;
     for (let s = 16; s < 32; s++) for (const p of planted) data[s * P + p] += 1.6;
-    const r = runPermutationTest({ channels, freqsHz, data, design: { kind: 'groups', group, groupNames: ['control', 'patient'] } }, { permutations: 1000, seed: 5, tfce: true });
+    const r = runPermutationTest(
+      { channels, freqsHz, data, design: { kind: 'groups', group, groupNames: ['control', 'patient'] } },
+      { permutations: 1000, seed: 5, tfce: true },
+    );
     const best = r.clusters[0];
-    console.log(`planted effect: best cluster p = ${best.p}, ${best.fminHz}–${best.fmaxHz} Hz, channels ${best.channels.join(',')}, ${best.points.length} points`);
+    console.log(
+      `planted effect: best cluster p = ${best.p}, ${best.fminHz}–${best.fmaxHz} Hz, channels ${best.channels.join(',')}, ${best.points.length} points`,
+    );
     expect(best.p).toBeLessThanOrEqual(0.01);
     expect(best.sign).toBe(1);
     const covered = best.points.filter((p) => planted.has(p)).length;

@@ -38,9 +38,14 @@ describe('planted effect in simulated spectra', () => {
       });
     }
     const group = Array.from({ length: n }, (_, s) => (s < 20 ? 0 : 1));
-    const r = runPermutationTest({ channels, freqsHz, data, design: { kind: 'groups', group, groupNames: ['control', 'patient'] } }, { permutations: 1000, seed: 3 });
+    const r = runPermutationTest(
+      { channels, freqsHz, data, design: { kind: 'groups', group, groupNames: ['control', 'patient'] } },
+      { permutations: 1000, seed: 3 },
+    );
     const significant = r.clusters.filter((c) => c.p <= 0.05);
-    console.log(`simulated spindle reduction: ${significant.map((c) => `sign ${c.sign}, p ${c.p.toFixed(4)}, ${c.fminHz}–${c.fmaxHz} Hz, ${c.channels.join(',')}`).join('; ')}`);
+    console.log(
+      `simulated spindle reduction: ${significant.map((c) => `sign ${c.sign}, p ${c.p.toFixed(4)}, ${c.fminHz}–${c.fmaxHz} Hz, ${c.channels.join(',')}`).join('; ')}`,
+    );
     expect(significant.length).toBe(1);
     const best = significant[0];
     expect(best.sign).toBe(-1); // patients − controls

@@ -133,14 +133,21 @@ describe('point statistics equal scipy.stats', () => {
     const r = runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate } }, quick);
     close(r.effect.value, ref.pearson.r, 'r');
     close(r.pUncorrected, ref.pearson.p, 'p');
-    close(r.stat, ref.pearson.r.map((x) => x * Math.sqrt((n - 2) / (1 - x * x))), 't');
+    close(
+      r.stat,
+      ref.pearson.r.map((x) => x * Math.sqrt((n - 2) / (1 - x * x))),
+      't',
+    );
     expect(Math.abs(ref.pearson.r[0])).toBeGreaterThan(0.3); // the planted correlation at point 0
     close(r.effect.ciLow, ref.fisher.lo, 'ci low');
     close(r.effect.ciHigh, ref.fisher.hi, 'ci high');
   });
 
   it('Spearman rho with tied values (spearmanr, ties averaged)', () => {
-    const r = runPermutationTest({ channels, freqsHz, data: tied, design: { kind: 'covariate', covariate: tiedCovariate } }, { ...quick, statistic: 'spearman' });
+    const r = runPermutationTest(
+      { channels, freqsHz, data: tied, design: { kind: 'covariate', covariate: tiedCovariate } },
+      { ...quick, statistic: 'spearman' },
+    );
     close(r.effect.value, ref.spearman.r, 'rho');
     close(r.pUncorrected, ref.spearman.p, 'p');
   });
@@ -182,8 +189,14 @@ describe('point statistics equal scipy.stats', () => {
     const bad = Float64Array.from(first);
     bad[3 * P + 4] = NaN;
     expect(() => runPermutationTest({ channels, freqsHz, data: bad, design: { kind: 'groups', group } }, quick)).toThrow(/subject row 3, channel C4, 10.5 Hz/);
-    expect(() => runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group: group.map((g) => g * 2) } }, quick)).toThrow(/design.group\[6\]/);
-    expect(() => runPermutationTest({ channels, freqsHz, data: first.subarray(1), design: { kind: 'one-sample' } }, quick)).toThrow(/multiple of channels × bins/);
-    expect(() => runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate, nuisance: [{ name: 'dup', values: covariate }] } }, quick)).toThrow(/collinear/);
+    expect(() => runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'groups', group: group.map((g) => g * 2) } }, quick)).toThrow(
+      /design.group\[6\]/,
+    );
+    expect(() => runPermutationTest({ channels, freqsHz, data: first.subarray(1), design: { kind: 'one-sample' } }, quick)).toThrow(
+      /multiple of channels × bins/,
+    );
+    expect(() =>
+      runPermutationTest({ channels, freqsHz, data: first, design: { kind: 'covariate', covariate, nuisance: [{ name: 'dup', values: covariate }] } }, quick),
+    ).toThrow(/collinear/);
   });
 });

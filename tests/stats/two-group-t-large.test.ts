@@ -37,7 +37,12 @@ function columns(ps: number[]): number[] {
   return out;
 }
 
-interface Ref { welch: number[]; welchDf: number[]; student: number[]; welchPerm: number[] }
+interface Ref {
+  welch: number[];
+  welchDf: number[];
+  student: number[];
+  welchPerm: number[];
+}
 const ref = runPython<Ref>(
   `from scipy import stats
 x = numpy.fromfile(inputs['x']).reshape(${n}, ${points.length})

@@ -16,7 +16,9 @@ let store: Store;
 beforeAll(async () => {
   tmp = tempDir();
   store = await openStore(join(tmp.dir, 'chunks.duckdb'), { create: true });
-  await store.connection.run('CREATE TABLE every_type (i INTEGER, d DOUBLE, f FLOAT, b BOOLEAN, s VARCHAR, j JSON, t TIMESTAMP, l FLOAT[], k INTEGER NOT NULL)');
+  await store.connection.run(
+    'CREATE TABLE every_type (i INTEGER, d DOUBLE, f FLOAT, b BOOLEAN, s VARCHAR, j JSON, t TIMESTAMP, l FLOAT[], k INTEGER NOT NULL)',
+  );
 });
 afterAll(async () => {
   await store?.close();
@@ -56,7 +58,7 @@ describe('appendColumns: every column type into DuckDB, read back by DuckDB SQL'
       l: (r) => Float32Array.from({ length: r % 4 }, (_, k) => r + k / 4),
       k: (r) => r,
     });
-    const rows = await sql(store, "SELECT i, d, f, b, s, j::VARCHAR AS j, epoch_ms(t)::DOUBLE AS t, l, k FROM every_type ORDER BY k");
+    const rows = await sql(store, 'SELECT i, d, f, b, s, j::VARCHAR AS j, epoch_ms(t)::DOUBLE AS t, l, k FROM every_type ORDER BY k');
     expect(rows.length).toBe(N);
     for (let r = 0; r < N; r++) {
       const row = rows[r];
@@ -77,11 +79,29 @@ describe('appendColumns: every column type into DuckDB, read back by DuckDB SQL'
   });
 
   it('a bad value or a null in a NOT NULL column fails with table, column and row', async () => {
-    const base = { i: () => 1, d: () => 1, f: () => 1, b: () => true, s: () => 'x', j: () => '{}', t: () => new Date(T0), l: () => new Float32Array(1), k: () => 1 };
-    await expect(appendColumns(store.connection, TABLE, 3, { ...base, i: (r) => (r === 2 ? 1.5 : 1) })).rejects.toThrow(/table every_type, column i, row 2: expected a 32-bit integer, got 1\.5/);
-    await expect(appendColumns(store.connection, TABLE, 3, { ...base, d: (r) => (r === 1 ? Number.NaN : 1) })).rejects.toThrow(/column d, row 1: expected a finite number/);
-    await expect(appendColumns(store.connection, TABLE, 3, { ...base, s: (r) => (r === 1 ? 7 : 'x') })).rejects.toThrow(/column s, row 1: expected a string, got 7/);
-    await expect(appendColumns(store.connection, TABLE, 3, { ...base, k: (r) => (r === 2 ? null : 1) })).rejects.toThrow(/column k, row 2: null in a NOT NULL column/);
+    const base = {
+      i: () => 1,
+      d: () => 1,
+      f: () => 1,
+      b: () => true,
+      s: () => 'x',
+      j: () => '{}',
+      t: () => new Date(T0),
+      l: () => new Float32Array(1),
+      k: () => 1,
+    };
+    await expect(appendColumns(store.connection, TABLE, 3, { ...base, i: (r) => (r === 2 ? 1.5 : 1) })).rejects.toThrow(
+      /table every_type, column i, row 2: expected a 32-bit integer, got 1\.5/,
+    );
+    await expect(appendColumns(store.connection, TABLE, 3, { ...base, d: (r) => (r === 1 ? Number.NaN : 1) })).rejects.toThrow(
+      /column d, row 1: expected a finite number/,
+    );
+    await expect(appendColumns(store.connection, TABLE, 3, { ...base, s: (r) => (r === 1 ? 7 : 'x') })).rejects.toThrow(
+      /column s, row 1: expected a string, got 7/,
+    );
+    await expect(appendColumns(store.connection, TABLE, 3, { ...base, k: (r) => (r === 2 ? null : 1) })).rejects.toThrow(
+      /column k, row 2: null in a NOT NULL column/,
+    );
     const mislabelled: TableDef = { ...TABLE, columns: TABLE.columns.map((c) => (c.name === 'd' ? { ...c, type: 'INTEGER' } : c)) };
     await expect(appendColumns(store.connection, mislabelled, 1, base)).rejects.toThrow(/column d: database column is DOUBLE, schema.ts says INTEGER/);
   });

@@ -35,7 +35,7 @@ beforeAll(async () => {
 afterAll(cleanup);
 
 describe('merge of the warnings table', () => {
-  it('keeps each recording\'s warnings once with it, and the warning of no recording once', async () => {
+  it("keeps each recording's warnings once with it, and the warning of no recording once", async () => {
     const store = await openStore(merged, { readOnly: true });
     try {
       const rows = await sql(store, 'SELECT recording_id, file, step, message FROM warnings ORDER BY file, step, message');
@@ -45,7 +45,9 @@ describe('merge of the warnings table', () => {
         const id = recordingIdFor(runId, makeBundle(runId, s).recording.fileSha256);
         expect(rows.filter((r) => r.recording_id === id).map((r) => r.file)).toEqual([`rec-${s}.edf`, `rec-${s}.edf`]);
       }
-      expect(rows.filter((r) => r.recording_id === null)).toEqual([{ recording_id: null, file: 'cohort.tsv', step: 'cohort', message: 'an invented cohort-level note' }]);
+      expect(rows.filter((r) => r.recording_id === null)).toEqual([
+        { recording_id: null, file: 'cohort.tsv', step: 'cohort', message: 'an invented cohort-level note' },
+      ]);
     } finally {
       await store.close();
     }

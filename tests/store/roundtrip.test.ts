@@ -46,7 +46,11 @@ describe('round trip of a recording bundle', () => {
     recordingId = await store.writeRecording(bundle);
     await store.writeParticipants(
       ['subject', 'group', 'age', 'score'],
-      [['sub-7', 'control', '41', 'n/a'], ['sub-8', 'patient', '39.5', ''], ['sub-9', 'patient', 'n/a', '']],
+      [
+        ['sub-7', 'control', '41', 'n/a'],
+        ['sub-8', 'patient', '39.5', ''],
+        ['sub-9', 'patient', 'n/a', ''],
+      ],
     );
     await store.finishRun(runId);
     await store.close();

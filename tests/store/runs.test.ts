@@ -32,7 +32,13 @@ describe('runs', () => {
 
   it('canonical JSON sorts keys at every level and the run id is its SHA-256 prefix (python3 hashlib)', async () => {
     expect(canonicalJson(SAME_REORDERED)).toBe('{"fmaxHz":45,"references":["recorded","average"],"welch":{"overlapFraction":0.5,"segmentS":4}}');
-    const py = execFileSync('python3', ['-c', `import hashlib,json,sys; print(hashlib.sha256(json.dumps(json.loads(sys.argv[1]), sort_keys=True, separators=(',',':')).encode()).hexdigest()[:16])`, JSON.stringify(PARAMS)]).toString().trim();
+    const py = execFileSync('python3', [
+      '-c',
+      `import hashlib,json,sys; print(hashlib.sha256(json.dumps(json.loads(sys.argv[1]), sort_keys=True, separators=(',',':')).encode()).hexdigest()[:16])`,
+      JSON.stringify(PARAMS),
+    ])
+      .toString()
+      .trim();
     const { runId } = await store.beginRun('0.1.0', PARAMS);
     expect(runId).toBe(py);
   });

@@ -37,10 +37,20 @@ describe('schema names equal docs/design.md', () => {
   afterAll(cleanup);
 
   it('parses the twelve tables docs/design.md lists', () => {
-    expect([...design.keys()].sort()).toEqual(
-      ['aperiodic', 'channels', 'epoch_band_power', 'epoch_rejections', 'epochs', 'ingest_errors',
-        'participants', 'peaks', 'quality', 'recordings', 'runs', 'spectra'],
-    );
+    expect([...design.keys()].sort()).toEqual([
+      'aperiodic',
+      'channels',
+      'epoch_band_power',
+      'epoch_rejections',
+      'epochs',
+      'ingest_errors',
+      'participants',
+      'peaks',
+      'quality',
+      'recordings',
+      'runs',
+      'spectra',
+    ]);
   });
 
   // DESIGN names the warnings table in words ("a warnings table beside it (recording, step, field, message)"),
@@ -80,7 +90,9 @@ describe('schema names equal docs/design.md', () => {
     const store = await openStore(file, { create: true });
     await sql(store, 'ALTER TABLE epoch_rejections DROP COLUMN reference'); // as files written before the column existed
     await store.close();
-    await expect(openStore(file, { create: true })).rejects.toThrow(/earlier version of bandwise \(missing columns: epoch_rejections\.reference\); write into a new database file/);
+    await expect(openStore(file, { create: true })).rejects.toThrow(
+      /earlier version of bandwise \(missing columns: epoch_rejections\.reference\); write into a new database file/,
+    );
     const again = await openStore(file, { readOnly: true });
     const cols = await sql(again, "SELECT column_name FROM duckdb_columns() WHERE table_name = 'epoch_rejections' ORDER BY column_index");
     await again.close();

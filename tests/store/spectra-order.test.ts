@@ -58,7 +58,10 @@ describe('spectra stored in stage, reference, averaging, recording, channel orde
     const added = await sql(store, 'SELECT count(*)::INTEGER AS n FROM (SELECT * FROM spectra EXCEPT ALL SELECT * FROM before)');
     expect(Number(lost[0].n)).toBe(0);
     expect(Number(added[0].n)).toBe(0);
-    const cols = await sql(store, "SELECT column_name, data_type FROM duckdb_columns() WHERE table_name = 'spectra' AND database_name = current_database() ORDER BY column_index");
+    const cols = await sql(
+      store,
+      "SELECT column_name, data_type FROM duckdb_columns() WHERE table_name = 'spectra' AND database_name = current_database() ORDER BY column_index",
+    );
     const colsBefore = await sql(store, "SELECT column_name, data_type FROM duckdb_columns() WHERE table_name = 'before' ORDER BY column_index");
     expect(cols).toEqual(colsBefore);
     expect(await sql(store, "SELECT table_name FROM duckdb_tables() WHERE table_name = 'spectra_sorting'")).toEqual([]);

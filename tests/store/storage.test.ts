@@ -83,8 +83,10 @@ describe('storage version readable by duckdb-wasm 1.32', () => {
     conn.query("ATTACH 'cohort.duckdb' AS cohort (READ_ONLY)");
     const want = bundle.spectra.find((s) => s.channel === 'E2' && s.stage === 'N3' && s.reference === 'average' && s.averaging === 'median')!;
     const rows = conn
-      .query(`SELECT n_bins, power FROM cohort.spectra WHERE recording_id = '${recordingId}' AND channel = 'E2'
-              AND stage = 'N3' AND reference = 'average' AND averaging = 'median'`)
+      .query(
+        `SELECT n_bins, power FROM cohort.spectra WHERE recording_id = '${recordingId}' AND channel = 'E2'
+              AND stage = 'N3' AND reference = 'average' AND averaging = 'median'`,
+      )
       .toArray()
       .map((r) => r.toJSON());
     expect(rows).toHaveLength(1);

@@ -47,7 +47,10 @@ describe('one transaction per recording', () => {
     await expect(store.writeRecording(bad)).rejects.toBeInstanceOf(StoreError);
     const id = recordingIdFor(runId, bad.recording.fileSha256);
     const left = await rowsOf(store, id);
-    expect(Object.values(left).every((n) => n === 0), JSON.stringify(left)).toBe(true);
+    expect(
+      Object.values(left).every((n) => n === 0),
+      JSON.stringify(left),
+    ).toBe(true);
     expect(await store.hasRecording(runId, bad.recording.fileSha256)).toBe(false);
 
     block.bandIdx[block.bandIdx.length - 1] = 0;
@@ -62,7 +65,10 @@ describe('one transaction per recording', () => {
     await expect(store.writeRecording(bad)).rejects.toThrow(/(PRIMARY KEY|Duplicate key|constraint)/i);
     const id = recordingIdFor(runId, bad.recording.fileSha256);
     const left = await rowsOf(store, id);
-    expect(Object.values(left).every((n) => n === 0), JSON.stringify(left)).toBe(true);
+    expect(
+      Object.values(left).every((n) => n === 0),
+      JSON.stringify(left),
+    ).toBe(true);
   });
 
   it('a NaN in the last-but-one table is refused, naming table, column and row', async () => {
@@ -70,7 +76,10 @@ describe('one transaction per recording', () => {
     bad.quality[0].value = Number.NaN;
     await expect(store.writeRecording(bad)).rejects.toThrow(/table quality, column value, row 0: expected a finite number/);
     const left = await rowsOf(store, recordingIdFor(runId, bad.recording.fileSha256));
-    expect(Object.values(left).every((n) => n === 0), JSON.stringify(left)).toBe(true);
+    expect(
+      Object.values(left).every((n) => n === 0),
+      JSON.stringify(left),
+    ).toBe(true);
   });
 
   it('writing a stored recording again is refused by name', async () => {
@@ -82,8 +91,18 @@ describe('one transaction per recording', () => {
     const id = recordingIdFor(runId, first.recording.fileSha256);
     const rows = await rowsOf(store, id);
     expect(rows).toEqual({
-      recordings: 1, channels: 3, epochs: 40, epoch_rejections: 1, spectra: 3 * 2 * 2 * 2,
-      epoch_band_power: 3 * 40 * 3, epoch_spectra: 0, aperiodic: 1, peaks: 1, quality: 1, reference_skips: 1, warnings: 2,
+      recordings: 1,
+      channels: 3,
+      epochs: 40,
+      epoch_rejections: 1,
+      spectra: 3 * 2 * 2 * 2,
+      epoch_band_power: 3 * 40 * 3,
+      epoch_spectra: 0,
+      aperiodic: 1,
+      peaks: 1,
+      quality: 1,
+      reference_skips: 1,
+      warnings: 2,
     });
     expect(await count(store, 'recordings')).toBe(2);
   });

@@ -80,8 +80,12 @@ describe('band check on the demo cohort', () => {
       const q = async (sql: string) => Number((await store.connection.runAndReadAll(sql)).getRowObjectsJS()[0].n);
       counts = {
         // rejections of the recorded channels (the channels table), as the report counts them
-        rejected: await q("SELECT count(*) AS n FROM epoch_rejections x, epochs e WHERE x.recording_id = e.recording_id AND x.epoch = e.epoch AND e.stage = 'N2' AND x.reference = 'recorded'"),
-        total: await q("SELECT sum(c.k) AS n FROM epochs e, (SELECT recording_id, count(*) AS k FROM channels GROUP BY recording_id) c WHERE e.recording_id = c.recording_id AND e.stage = 'N2' AND e.drop_reason IS NULL"),
+        rejected: await q(
+          "SELECT count(*) AS n FROM epoch_rejections x, epochs e WHERE x.recording_id = e.recording_id AND x.epoch = e.epoch AND e.stage = 'N2' AND x.reference = 'recorded'",
+        ),
+        total: await q(
+          "SELECT sum(c.k) AS n FROM epochs e, (SELECT recording_id, count(*) AS k FROM channels GROUP BY recording_id) c WHERE e.recording_id = c.recording_id AND e.stage = 'N2' AND e.drop_reason IS NULL",
+        ),
       };
     } finally {
       await store.close();

@@ -10,26 +10,61 @@ import { decideVerdict, type PeakCenterInputs, type ScalarTest, type VerdictInpu
 const words = { up: 'higher in patient than in control', down: 'lower in patient than in control' };
 
 function test(p: number, effect: number, difference: number | null = effect): ScalarTest {
-  return { measure: 'x', n: { control: 20, patient: 20 }, statistic: 'welch-t', t: effect * 3, df: 38, effectKind: 'hedges-g', effect, ciLow: effect - 0.6, ciHigh: effect + 0.6, level: 0.95, difference, p, permutations: 300, exact: false, seed: 1, excluded: [] };
+  return {
+    measure: 'x',
+    n: { control: 20, patient: 20 },
+    statistic: 'welch-t',
+    t: effect * 3,
+    df: 38,
+    effectKind: 'hedges-g',
+    effect,
+    ciLow: effect - 0.6,
+    ciHigh: effect + 0.6,
+    level: 0.95,
+    difference,
+    p,
+    permutations: 300,
+    exact: false,
+    seed: 1,
+    excluded: [],
+  };
 }
 
 const pass = (effect: number, difference?: number) => test(0.004, effect, difference); // below α/4 = 0.0125
 const fail = (effect = 0.1) => test(0.5, effect);
 const centre = (t: ScalarTest | null): PeakCenterInputs => ({
   test: t,
-  means: [{ name: 'control', centerHz: 13.5 }, { name: 'patient', centerHz: 12.5 }],
+  means: [
+    { name: 'control', centerHz: 13.5 },
+    { name: 'patient', centerHz: 12.5 },
+  ],
   withoutPeak: { control: 0, patient: 2 },
   skipped: t ? null : 'too few subjects with a fitted peak in sigma 12–16 Hz (control 1, patient 0; the test needs 2 per group and 3 in all)',
 });
 
 function inputs(o: Partial<VerdictInputs>): VerdictInputs {
-  return { periodic: fail(), peakCenter: centre(fail()), offset: fail(), exponent: fail(), aperiodicInBand: fail(), lowerFlank: fail(), upperFlank: fail(), tilt: fail(), ...o };
+  return {
+    periodic: fail(),
+    peakCenter: centre(fail()),
+    offset: fail(),
+    exponent: fail(),
+    aperiodicInBand: fail(),
+    lowerFlank: fail(),
+    upperFlank: fail(),
+    tilt: fail(),
+    ...o,
+  };
 }
 
 describe('decision rules with the peak-centre test', () => {
   it('Bonferroni over four tests: p = 0.015 passes at α/3 but not at α/4', () => {
     const d = decideVerdict(inputs({ offset: test(0.015, 1) }), 'sigma', words);
-    expect(d.family.map((f) => [f.test, f.threshold, f.passed])).toEqual([['periodic', 0.0125, false], ['peakCenter', 0.0125, false], ['offset', 0.0125, false], ['exponent', 0.0125, false]]);
+    expect(d.family.map((f) => [f.test, f.threshold, f.passed])).toEqual([
+      ['periodic', 0.0125, false],
+      ['peakCenter', 0.0125, false],
+      ['offset', 0.0125, false],
+      ['exponent', 0.0125, false],
+    ]);
     expect(d.family[2].adjustedP).toBeCloseTo(0.06, 12);
     expect(d.verdict).toBe('no-evidence');
   });
@@ -37,7 +72,9 @@ describe('decision rules with the peak-centre test', () => {
   it('2d: only the centre passes → band-specific frequency shift, named in Hz with the group means and the left-out counts', () => {
     const d = decideVerdict(inputs({ peakCenter: centre(pass(-2.5, -1.02)) }), 'sigma', words);
     expect([d.verdict, d.rule, d.periodicKind]).toEqual(['band-specific', '2d', 'frequency-shift']);
-    expect(d.sentence).toMatch(/^Band-specific frequency shift: the sigma peak is 1\.0 Hz lower in patient than in control \(centre of the highest fitted peak in the band, mean 13\.50 Hz in control, 12\.50 Hz in patient; g = −2\.50 .*left out without a peak in the band: control 0, patient 2\)/);
+    expect(d.sentence).toMatch(
+      /^Band-specific frequency shift: the sigma peak is 1\.0 Hz lower in patient than in control \(centre of the highest fitted peak in the band, mean 13\.50 Hz in control, 12\.50 Hz in patient; g = −2\.50 .*left out without a peak in the band: control 0, patient 2\)/,
+    );
   });
 
   it('2c: the centre passes with an aperiodic change that moves the band level → mixed', () => {
@@ -67,7 +104,11 @@ describe('decision rules with the peak-centre test', () => {
   });
 
   it('a covariate has no difference in Hz: the direction only', () => {
-    const d = decideVerdict(inputs({ peakCenter: { ...centre({ ...test(0.002, -0.6, null), effectKind: 'r' }), means: [{ name: 'all subjects', centerHz: 13.1 }] } }), 'sigma', { up: 'higher with higher age', down: 'lower with higher age' });
+    const d = decideVerdict(
+      inputs({ peakCenter: { ...centre({ ...test(0.002, -0.6, null), effectKind: 'r' }), means: [{ name: 'all subjects', centerHz: 13.1 }] } }),
+      'sigma',
+      { up: 'higher with higher age', down: 'lower with higher age' },
+    );
     expect(d.sentence).toContain('the sigma peak frequency is lower with higher age (centre of the highest fitted peak in the band; r');
   });
 });

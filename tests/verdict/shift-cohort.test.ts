@@ -34,7 +34,27 @@ describe('a planted spindle-frequency shift through simulate, ingest and band-ch
     const out = path.join(dir, 'sigma.json');
     const program = new Command().exitOverride();
     registerBandCheck(program);
-    const args = ['band-check', db, '--groups', 'control,patient', '--stage', 'N2', '--channels', 'C3,C4,P3,P4', '--band', 'sigma:11-16', '--permutations', '1000', '--seed', '1', '--quiet', '--out', out, '--ledger', path.join(dir, 'ledger.jsonl')];
+    const args = [
+      'band-check',
+      db,
+      '--groups',
+      'control,patient',
+      '--stage',
+      'N2',
+      '--channels',
+      'C3,C4,P3,P4',
+      '--band',
+      'sigma:11-16',
+      '--permutations',
+      '1000',
+      '--seed',
+      '1',
+      '--quiet',
+      '--out',
+      out,
+      '--ledger',
+      path.join(dir, 'ledger.jsonl'),
+    ];
     await program.parseAsync(['node', 'bandwise', ...args]);
     const r = JSON.parse(readFileSync(out, 'utf8')) as BandCheckRun;
     expect(r.verdict).toBe('band-specific');

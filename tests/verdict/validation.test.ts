@@ -36,7 +36,10 @@ const EXPECTED: Record<ScenarioName, Verdict> = {
 function right(s: ScenarioName, r: BandCheckResult): boolean {
   if (r.verdict !== EXPECTED[s]) return false;
   if (!s.startsWith('shift')) return true;
-  return (r.periodicKind === 'frequency-shift' || r.periodicKind === 'power-and-frequency-shift') && /the sigma peak is \d\.\d+ Hz lower in patient than in control/.test(r.sentence);
+  return (
+    (r.periodicKind === 'frequency-shift' || r.periodicKind === 'power-and-frequency-shift') &&
+    /the sigma peak is \d\.\d+ Hz lower in patient than in control/.test(r.sentence)
+  );
 }
 
 describe('band check numbers against numpy/scipy', () => {
@@ -112,7 +115,10 @@ for k, v in {'peakCenter': centre, 'peakWidth': width}.items():
             'n': [n0, n1], 'missing': [int((grp == 0).sum()) - n0, int((grp == 1).sum()) - n1], 'means': [float(x0.mean()), float(x1.mean())]}
 print(json.dumps(out))
 `,
-      { peaks: data.peaks.flatMap((p) => [index.get(p.subject)!, p.centerHz, p.height, p.bandwidthHz]), group: data.participants.map((p) => (p.group === 'patient' ? 1 : 0)) },
+      {
+        peaks: data.peaks.flatMap((p) => [index.get(p.subject)!, p.centerHz, p.height, p.bandwidthHz]),
+        group: data.participants.map((p) => (p.group === 'patient' ? 1 : 0)),
+      },
     );
     for (const name of ['peakCenter', 'peakWidth'] as const) {
       const t = r.tests[name]!;
@@ -125,14 +131,24 @@ print(json.dumps(out))
     expect(c.missing[1]).toBeGreaterThan(0); // some patients' slowed peak was fitted below 12 Hz: the left-out path is exercised
     expect(r.peakCenter.withoutPeak).toEqual({ control: c.missing[0], patient: c.missing[1] });
     expect(r.peakCenter.withPeak).toEqual({ control: c.n[0], patient: c.n[1] });
-    expect(r.peakCenter.means.map((m) => [m.name, m.n])).toEqual([['control', c.n[0]], ['patient', c.n[1]]]);
+    expect(r.peakCenter.means.map((m) => [m.name, m.n])).toEqual([
+      ['control', c.n[0]],
+      ['patient', c.n[1]],
+    ]);
     expect(r.peakCenter.means[0].centerHz).toBeCloseTo(c.means[0], 9);
     expect(r.peakCenter.means[1].widthHz).toBeCloseTo(py.peakWidth.means[1], 9);
     expect(r.figure.peakCenters).toEqual(r.peakCenter.means);
     // the sentence names the shift with the difference of the group means, one decimal
-    expect(r.sentence).toContain(`the sigma peak is ${Math.abs(c.d).toFixed(1)} Hz lower in patient than in control (centre of the highest fitted peak in the band, mean ${c.means[0].toFixed(2)} Hz in control, ${c.means[1].toFixed(2)} Hz in patient`);
+    expect(r.sentence).toContain(
+      `the sigma peak is ${Math.abs(c.d).toFixed(1)} Hz lower in patient than in control (centre of the highest fitted peak in the band, mean ${c.means[0].toFixed(2)} Hz in control, ${c.means[1].toFixed(2)} Hz in patient`,
+    );
     expect(r.sentence).toContain(`left out without a peak in the band: control ${c.missing[0]}, patient ${c.missing[1]}`);
-    expect(r.family.map((f) => [f.test, f.threshold])).toEqual([['periodic', 0.0125], ['peakCenter', 0.0125], ['offset', 0.0125], ['exponent', 0.0125]]);
+    expect(r.family.map((f) => [f.test, f.threshold])).toEqual([
+      ['periodic', 0.0125],
+      ['peakCenter', 0.0125],
+      ['offset', 0.0125],
+      ['exponent', 0.0125],
+    ]);
   });
 });
 
@@ -143,33 +159,39 @@ describe('peak centres against the planted centres (20 cohorts of 40 subjects pe
   // fast spindles merge into one broad fitted peak between them. The group difference the test
   // rests on is within 0.35 Hz of the planted difference in every cohort and within 0.15 Hz on
   // average over the cohorts.
-  it.each(['null', 'shift-0.5hz', 'shift-1hz'] as const)('%s', (scenario) => {
-    const errors: number[] = [];
-    const differenceErrors: number[] = [];
-    for (let k = 0; k < 20; k++) {
-      const data = simulateCohort(scenario, k);
-      const r = bandCheck({ ...contrast, permutations: 1 }, SIGMA, data, { fitRangeHz: FIT_RANGE_HZ });
-      const planted = plantedCentres(scenario, k);
-      // each subject's highest fitted peak in 12–16 Hz (the selection checked against numpy above)
-      const best = new Map<string, { centerHz: number; height: number }>();
-      for (const p of data.peaks) if (p.centerHz >= 12 && p.centerHz <= 16 && p.height > (best.get(p.subject)?.height ?? -Infinity)) best.set(p.subject, p);
-      for (const [subject, p] of best) errors.push(Math.abs(p.centerHz - planted.get(subject)!));
-      const mean = (g: string) => {
-        const xs = [...planted].filter(([s]) => s.startsWith(g)).map(([, c]) => c);
-        return xs.reduce((a, b) => a + b, 0) / xs.length;
-      };
-      differenceErrors.push(r.tests.peakCenter!.difference! - (mean('p') - mean('c')));
-    }
-    errors.sort((a, b) => a - b);
-    const within = errors.filter((e) => e <= 0.5).length / errors.length;
-    const median = errors[Math.floor(errors.length / 2)];
-    const meanDiffError = differenceErrors.reduce((a, b) => a + b, 0) / differenceErrors.length;
-    console.log(`${scenario}: ${errors.length} subjects with a peak, ${(100 * within).toFixed(1)} % within 0.5 Hz, median error ${median.toFixed(3)} Hz; group difference error mean ${meanDiffError.toFixed(3)} Hz, largest ${Math.max(...differenceErrors.map(Math.abs)).toFixed(3)} Hz`);
-    expect(within).toBeGreaterThanOrEqual(0.9);
-    expect(median).toBeLessThanOrEqual(0.1);
-    for (const e of differenceErrors) expect(Math.abs(e)).toBeLessThanOrEqual(0.35);
-    expect(Math.abs(meanDiffError)).toBeLessThanOrEqual(0.15);
-  }, 120_000);
+  it.each(['null', 'shift-0.5hz', 'shift-1hz'] as const)(
+    '%s',
+    (scenario) => {
+      const errors: number[] = [];
+      const differenceErrors: number[] = [];
+      for (let k = 0; k < 20; k++) {
+        const data = simulateCohort(scenario, k);
+        const r = bandCheck({ ...contrast, permutations: 1 }, SIGMA, data, { fitRangeHz: FIT_RANGE_HZ });
+        const planted = plantedCentres(scenario, k);
+        // each subject's highest fitted peak in 12–16 Hz (the selection checked against numpy above)
+        const best = new Map<string, { centerHz: number; height: number }>();
+        for (const p of data.peaks) if (p.centerHz >= 12 && p.centerHz <= 16 && p.height > (best.get(p.subject)?.height ?? -Infinity)) best.set(p.subject, p);
+        for (const [subject, p] of best) errors.push(Math.abs(p.centerHz - planted.get(subject)!));
+        const mean = (g: string) => {
+          const xs = [...planted].filter(([s]) => s.startsWith(g)).map(([, c]) => c);
+          return xs.reduce((a, b) => a + b, 0) / xs.length;
+        };
+        differenceErrors.push(r.tests.peakCenter!.difference! - (mean('p') - mean('c')));
+      }
+      errors.sort((a, b) => a - b);
+      const within = errors.filter((e) => e <= 0.5).length / errors.length;
+      const median = errors[Math.floor(errors.length / 2)];
+      const meanDiffError = differenceErrors.reduce((a, b) => a + b, 0) / differenceErrors.length;
+      console.log(
+        `${scenario}: ${errors.length} subjects with a peak, ${(100 * within).toFixed(1)} % within 0.5 Hz, median error ${median.toFixed(3)} Hz; group difference error mean ${meanDiffError.toFixed(3)} Hz, largest ${Math.max(...differenceErrors.map(Math.abs)).toFixed(3)} Hz`,
+      );
+      expect(within).toBeGreaterThanOrEqual(0.9);
+      expect(median).toBeLessThanOrEqual(0.1);
+      for (const e of differenceErrors) expect(Math.abs(e)).toBeLessThanOrEqual(0.35);
+      expect(Math.abs(meanDiffError)).toBeLessThanOrEqual(0.15);
+    },
+    120_000,
+  );
 });
 
 describe('verdict on simulated cohorts (50 per scenario, 20 vs 20, 300 permutations per test)', () => {

@@ -14,7 +14,10 @@ import type { ScalarTest } from '../verdict/scalar-test.ts';
 /** The key of a pooled count. */
 export const POOLED = 'both groups';
 
-const countsText = (n: Readonly<Record<string, number>>) => Object.entries(n).map(([g, k]) => `${g} ${k}`).join(', ');
+const countsText = (n: Readonly<Record<string, number>>) =>
+  Object.entries(n)
+    .map(([g, k]) => `${g} ${k}`)
+    .join(', ');
 const sum = (n: Readonly<Record<string, number>>) => Object.values(n).reduce((a, b) => a + b, 0);
 
 /** One count over the groups. */
@@ -49,7 +52,10 @@ const blindTest = <T extends ScalarTest | null>(t: T): T => (t === null ? t : { 
 
 export function blindBandCheckResult(r: BandCheckResult): BandCheckResult {
   const weights = r.tests.peakHeight.n;
-  const presence = Object.keys(r.peakPresence).length > 1 ? { [POOLED]: Object.entries(r.peakPresence).reduce((a, [g, share]) => a + share * (weights[g] ?? 0), 0) / Math.max(1, sum(weights)) } : r.peakPresence;
+  const presence =
+    Object.keys(r.peakPresence).length > 1
+      ? { [POOLED]: Object.entries(r.peakPresence).reduce((a, [g, share]) => a + share * (weights[g] ?? 0), 0) / Math.max(1, sum(weights)) }
+      : r.peakPresence;
   const pc = r.peakCenter;
   const tests = Object.fromEntries(Object.entries(r.tests).map(([k, t]) => [k, blindTest(t)])) as unknown as BandCheckResult['tests'];
   return {

@@ -42,7 +42,8 @@ export function drawGroupCodes(values: readonly string[], seed: number): Record<
 export function codeOf(b: Blinding, value: string | number | null): string | null {
   if (value === null) return null;
   const code = b.codes[String(value)];
-  if (code === undefined) throw new BlindingError(`the participants column "${b.column}" holds a value the blinded split did not code; make a new split (bandwise split --replace)`);
+  if (code === undefined)
+    throw new BlindingError(`the participants column "${b.column}" holds a value the blinded split did not code; make a new split (bandwise split --replace)`);
   return code;
 }
 
@@ -62,7 +63,9 @@ const isCode = (b: Blinding, name: string) => Object.values(b.codes).includes(na
 export function requireCodedGroups(c: Contrast, b: Blinding | null): void {
   if (!comparesBlindedGroups(c, b)) return;
   if (!c.groups!.every((g) => isCode(b!, g))) {
-    throw new BlindingError(`the groups of "${b!.column}" are blinded while exploring: name them by their codes (${Object.values(b!.codes).sort().join(', ')})`);
+    throw new BlindingError(
+      `the groups of "${b!.column}" are blinded while exploring: name them by their codes (${Object.values(b!.codes).sort().join(', ')})`,
+    );
   }
 }
 
@@ -87,11 +90,12 @@ export function labelsTellGroups(rows: readonly { subject: string; group: string
   const byGroup = new Map<string, string[]>();
   for (const r of rows) if (r.group !== null) byGroup.set(r.group, [...(byGroup.get(r.group) ?? []), r.subject]);
   if (byGroup.size < 2) return false;
-  const prefix = (labels: string[]) => labels.reduce((p, l) => {
-    let i = 0;
-    while (i < p.length && i < l.length && p[i] === l[i]) i++;
-    return p.slice(0, i);
-  });
+  const prefix = (labels: string[]) =>
+    labels.reduce((p, l) => {
+      let i = 0;
+      while (i < p.length && i < l.length && p[i] === l[i]) i++;
+      return p.slice(0, i);
+    });
   return [...byGroup].every(([g, labels]) => {
     const p = prefix(labels);
     return p.length >= 2 && [...byGroup].every(([h, others]) => h === g || others.every((l) => !l.startsWith(p)));

@@ -41,10 +41,12 @@ export function partParagraph(r: PartFields & { contrast: Contrast; clusters?: C
   const part = { part: r.part, split: r.split };
   if (r.part === 'exploration' || !r.plan) {
     let s = `This analysis used the ${r.part} part of ${splitText(part)}; the other ${r.split.subjects[r.part === 'exploration' ? 'confirmation' : 'exploration']} were not analysed. `;
-    s += r.part === 'exploration'
-      ? 'It is exploratory: trying analysis choices on this part is what it is for, and its p-values confirm nothing; a plan fixed from it is confirmed on the held-out part (bandwise lock, bandwise confirm).'
-      : 'It was not run under a locked plan.';
-    if (r.blinded) s += ` The groups of "${r.contrast.groupColumn}" were blinded: shown under codes assigned from the split's seed, with group sizes pooled over the groups, so the direction of a difference could not be tied to a group.`;
+    s +=
+      r.part === 'exploration'
+        ? 'It is exploratory: trying analysis choices on this part is what it is for, and its p-values confirm nothing; a plan fixed from it is confirmed on the held-out part (bandwise lock, bandwise confirm).'
+        : 'It was not run under a locked plan.';
+    if (r.blinded)
+      s += ` The groups of "${r.contrast.groupColumn}" were blinded: shown under codes assigned from the split's seed, with group sizes pooled over the groups, so the direction of a difference could not be tied to a group.`;
     return s;
   }
   const p = r.plan;
@@ -54,7 +56,10 @@ export function partParagraph(r: PartFields & { contrast: Contrast; clusters?: C
     `the contrast was run as locked on the confirmation part of ${splitText(part)}, none of them in the exploration part.` +
     unblindingText(p.lockedContrast, r.contrast);
   const best = r.clusters && r.clusters.length > 0 ? Math.min(...r.clusters.map((k) => k.p)) : null;
-  s += p.contrasts > 1 ? ` The plan holds ${p.contrasts} contrasts (this is contrast ${p.contrastIndex}); each is judged at α = 0.05/${p.contrasts} = ${g3(p.alpha)} (Bonferroni).` : ` It is judged at α = ${g3(p.alpha)}.`;
+  s +=
+    p.contrasts > 1
+      ? ` The plan holds ${p.contrasts} contrasts (this is contrast ${p.contrastIndex}); each is judged at α = 0.05/${p.contrasts} = ${g3(p.alpha)} (Bonferroni).`
+      : ` It is judged at α = ${g3(p.alpha)}.`;
   s += best === null ? ' No cluster formed: not confirmed.' : ` Smallest cluster p = ${g3(best)}: ${best < p.alpha ? 'confirmed' : 'not confirmed'}.`;
   if (p.confirmationRun > 1) {
     s += `\n\n**This is not the first confirmation of this plan** but confirmation ${p.confirmationRun} (earlier: ${p.earlierConfirmations.join(', ')}). Only the first confirmation is a test held out from every choice; a repeat is another look at the same subjects and is not a new confirmation.`;
@@ -64,7 +69,8 @@ export function partParagraph(r: PartFields & { contrast: Contrast; clusters?: C
   s += looked
     ? `\n\n**The plan was locked after data of the confirmation part had been analysed:** ${looksText(l)}. Its contrasts may have been chosen knowing those data, so this result is not a held-out confirmation.`
     : '\n\nThe ledger of this database records no analysis that included confirmation-part subjects before the plan was locked.';
-  s += ' (The ledger lists what the command line ran with a ledger; the dashboard keeps its own list in the browser and, while a split exists, reads the exploration part only.)';
+  s +=
+    ' (The ledger lists what the command line ran with a ledger; the dashboard keeps its own list in the browser and, while a split exists, reads the exploration part only.)';
   return s;
 }
 

@@ -38,7 +38,8 @@ export function stratumOf(row: Readonly<Record<string, unknown>>, columns: reado
 }
 
 export function checkSplitSettings(s: SplitSettings): void {
-  if (!(Number.isFinite(s.fraction) && s.fraction > 0 && s.fraction < 1)) throw new SplitError(`invalid fraction: ${s.fraction} (the exploration part's share, between 0 and 1, e.g. 0.5)`);
+  if (!(Number.isFinite(s.fraction) && s.fraction > 0 && s.fraction < 1))
+    throw new SplitError(`invalid fraction: ${s.fraction} (the exploration part's share, between 0 and 1, e.g. 0.5)`);
   if (!Number.isSafeInteger(s.seed)) throw new SplitError(`invalid seed: ${s.seed} (a whole number)`);
 }
 
@@ -81,7 +82,9 @@ export function drawSplit(subjects: readonly SplitSubject[], settings: SplitSett
   }
   const explore = [...out.values()].filter((p) => p === 'exploration').length;
   if (explore === 0 || explore === total) {
-    throw new SplitError(`with fraction ${F}, ${total} subject${total === 1 ? '' : 's'} leave the ${explore === 0 ? 'exploration' : 'confirmation'} part empty`);
+    throw new SplitError(
+      `with fraction ${F}, ${total} subject${total === 1 ? '' : 's'} leave the ${explore === 0 ? 'exploration' : 'confirmation'} part empty`,
+    );
   }
   return out;
 }

@@ -85,7 +85,9 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
   // channels: those asked for, or every channel stored for this stage
   const stored = [...new Set(data.spectra.rows.filter((r) => conds.some((d) => d.stage === r.stage)).map((r) => r.channel))];
   const channels = c.channels === 'all' ? stored : c.channels;
-  for (const ch of channels) if (!stored.includes(ch)) throw new ContrastDataError(`channel ${ch} has no stored ${conds.map((d) => d.stage).join('/')} spectra for reference ${c.reference}`);
+  for (const ch of channels)
+    if (!stored.includes(ch))
+      throw new ContrastDataError(`channel ${ch} has no stored ${conds.map((d) => d.stage).join('/')} spectra for reference ${c.reference}`);
   if (channels.length === 0) throw new ContrastDataError(`no stored spectra for stage ${c.stage}, reference ${c.reference}, averaging ${c.averaging}`);
 
   // the columns the design names exist, with values of the right kind
@@ -96,7 +98,12 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
   // exclusions the contrast carries and those given beside it (a TSV, a browser's list); one of
   // another stage, or of a channel the contrast does not use, does not apply
   const userExcluded = new Map<string, Exclusion[]>();
-  const carried = c.exclusions.map((x): Exclusion => ({ subject: x.subject, channel: x.channel ?? null, ...(x.stage ? { stage: x.stage } : {}), reason: x.reason }));
+  const carried = c.exclusions.map((x): Exclusion => ({
+    subject: x.subject,
+    channel: x.channel ?? null,
+    ...(x.stage ? { stage: x.stage } : {}),
+    reason: x.reason,
+  }));
   for (const e of [...data.exclusions, ...carried]) {
     if (e.stage !== undefined && !conds.some((d) => d.stage === e.stage)) continue;
     if (e.channel !== null && !channels.includes(e.channel)) continue;
@@ -146,7 +153,12 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
     if (channelsOut.length > 0 && !missingOk) {
       const e = channelsOut[0];
       const needs = c.design === 'covariate' ? 'a covariate design' : 'a design with nuisance covariates';
-      excluded.push({ subject, channel: e.channel, ...stageOf(e), reason: `excluded: ${e.reason} (${needs} needs a value at every channel, so the subject is left out)` });
+      excluded.push({
+        subject,
+        channel: e.channel,
+        ...stageOf(e),
+        reason: `excluded: ${e.reason} (${needs} needs a value at every channel, so the subject is left out)`,
+      });
       continue;
     }
     if (c.design !== 'paired' || !c.sessions) {
@@ -236,14 +248,17 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
       continue;
     }
     const stays = c.channelAverage ? 'left out of the channel average; the subject stays' : 'that channel is missing; the subject stays';
-    for (const e of cand.channelsOut) excluded.push({ subject: cand.subject, channel: e.channel, ...stageOf(e), reason: `excluded: ${e.reason} (${stays})`, subjectStays: true });
+    for (const e of cand.channelsOut)
+      excluded.push({ subject: cand.subject, channel: e.channel, ...stageOf(e), reason: `excluded: ${e.reason} (${stays})`, subjectStays: true });
     anyExcludedChannel ||= wroteMissing;
     kept.push(cand);
   }
 
   // 'recorded' spectra of one channel recorded against different references are not pooled
   if (c.reference === 'recorded' && data.recordedReferences) {
-    const used = kept.flatMap((k) => conds.map((d) => ({ subject: k.subject, session: d.session ?? sessionsOf.get(k.subject)!.values().next().value ?? null })));
+    const used = kept.flatMap((k) =>
+      conds.map((d) => ({ subject: k.subject, session: d.session ?? sessionsOf.get(k.subject)!.values().next().value ?? null })),
+    );
     const mixed = mixedRecordedReferences(channels, used, data.recordedReferences);
     if (mixed) throw new ContrastDataError(mixed);
   }
@@ -284,7 +299,16 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
   };
   const inAnalysis = new Set(kept.map((k) => k.subject));
   const individualCentres = centres.filter((x) => inAnalysis.has(x.subject));
-  return { input, layout, subjects: kept.map((k) => ({ subject: k.subject, group: k.group })), excluded, nPerGroup, channels: pointChannels, individualCentres, channelLayout: channelLayoutOfPoints };
+  return {
+    input,
+    layout,
+    subjects: kept.map((k) => ({ subject: k.subject, group: k.group })),
+    excluded,
+    nPerGroup,
+    channels: pointChannels,
+    individualCentres,
+    channelLayout: channelLayoutOfPoints,
+  };
 }
 
 function nuisanceColumns(c: Contrast, kept: { nuisance: number[] }[]): { name: string; values: number[] }[] {

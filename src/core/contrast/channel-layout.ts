@@ -64,7 +64,9 @@ function channelPositions(channels: readonly string[], data: ContrastData, used:
     for (const item of list) if (angleDeg(item.p, mean) > angleDeg(worst.p, mean)) worst = item;
     const spread = angleDeg(worst.p, mean);
     if (!(r > 0) || spread > MAX_SPREAD_DEG) {
-      throw new ContrastDataError(`channel ${ch} lies at different places in different recordings (subject ${worst.subject} ${spread.toFixed(0)}° from the mean of ${list.length}): one contrast cannot pool two electrode layouts under one channel name`);
+      throw new ContrastDataError(
+        `channel ${ch} lies at different places in different recordings (subject ${worst.subject} ${spread.toFixed(0)}° from the mean of ${list.length}): one contrast cannot pool two electrode layouts under one channel name`,
+      );
     }
     return mean;
   };
@@ -96,12 +98,21 @@ function pairPosition(name: string, stored: (ch: string) => Position3 | null): P
  * no graph and nothing required. Throws ContrastDataError naming the channels that have neither a
  * position nor a row in the neighbour table.
  */
-export function channelLayout(c: Contrast, channels: readonly string[], data: ContrastData, used: ReadonlySet<string>, spatial: boolean): { layout: ChannelLayout; graph: number[][] | null } {
+export function channelLayout(
+  c: Contrast,
+  channels: readonly string[],
+  data: ContrastData,
+  used: ReadonlySet<string>,
+  spatial: boolean,
+): { layout: ChannelLayout; graph: number[][] | null } {
   const positions = channelPositions(channels, data, used);
   if (!spatial) return { layout: { neighbours: 'none', positions }, graph: null };
   if (c.neighbours) {
     const missing = channelsMissingFrom(c.neighbours, channels);
-    if (missing.length > 0) throw new ContrastDataError(`channels ${nameList(missing)} are not in the neighbour table; add them (a channel with no neighbours has a row of its own) or leave them out of the contrast`);
+    if (missing.length > 0)
+      throw new ContrastDataError(
+        `channels ${nameList(missing)} are not in the neighbour table; add them (a channel with no neighbours has a row of its own) or leave them out of the contrast`,
+      );
     return { layout: { neighbours: 'table', positions }, graph: tableNeighbours(c.neighbours, [...channels]) };
   }
   const missing = channels.filter((_, i) => positions[i] === null);

@@ -27,7 +27,8 @@ export function parseExclusionsTsv(text: string, file = 'exclusions'): Exclusion
     if (!subject) throw new Error(`${file}: row ${i + 1} has no subject`);
     const ch = col('channel') >= 0 ? (cells[col('channel')] ?? '').trim() : '';
     const st = col('stage') >= 0 ? (cells[col('stage')] ?? '').trim() : '';
-    if (st !== '' && st.toLowerCase() !== 'all' && !(SCORED_STAGES as readonly string[]).includes(st)) throw new Error(`${file}: row ${i + 1} has stage "${st}" (expected ${SCORED_STAGES.join(', ')} or all)`);
+    if (st !== '' && st.toLowerCase() !== 'all' && !(SCORED_STAGES as readonly string[]).includes(st))
+      throw new Error(`${file}: row ${i + 1} has stage "${st}" (expected ${SCORED_STAGES.join(', ')} or all)`);
     const reason = col('reason') >= 0 ? (cells[col('reason')] ?? '').trim() : '';
     const stage = st === '' || st.toLowerCase() === 'all' ? {} : { stage: st as Exclude<Stage, 'unscored'> };
     return { subject, channel: ch === '' || ch.toLowerCase() === 'all' ? null : ch, ...stage, reason: reason || 'no reason given' };

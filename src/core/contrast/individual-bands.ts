@@ -18,7 +18,10 @@ import type { Contrast } from './spec.ts';
 
 /** The search range and half-width a contrast gives a band (defaults above). */
 export function individualRule(c: Pick<Contrast, 'peakSearchHz' | 'halfWidthHz'>, band: Band): { searchHz: [number, number]; halfWidthHz: number } {
-  return { searchHz: c.peakSearchHz ? [c.peakSearchHz[0], c.peakSearchHz[1]] : [band.loHz, band.hiHz], halfWidthHz: c.halfWidthHz ?? (band.hiHz - band.loHz) / 2 };
+  return {
+    searchHz: c.peakSearchHz ? [c.peakSearchHz[0], c.peakSearchHz[1]] : [band.loHz, band.hiHz],
+    halfWidthHz: c.halfWidthHz ?? (band.hiHz - band.loHz) / 2,
+  };
 }
 
 /** One subject's band in one condition. */
@@ -67,7 +70,13 @@ export function individualBand(
   if (centres.length === 0) {
     return {
       band,
-      centre: { ...base, centerHz: null, loHz: band.loHz, hiHz: band.hiHz, note: `no fitted peak in ${slo}–${shi} Hz on any channel: the fixed band ${band.loHz}–${band.hiHz} Hz is used` },
+      centre: {
+        ...base,
+        centerHz: null,
+        loHz: band.loHz,
+        hiHz: band.hiHz,
+        note: `no fitted peak in ${slo}–${shi} Hz on any channel: the fixed band ${band.loHz}–${band.hiHz} Hz is used`,
+      },
     };
   }
   const centerHz = median(centres);
@@ -103,19 +112,24 @@ export function individualBands(c: Contrast, data: ContrastData, band: Band): Su
     if (!peaksOf.has(k)) peaksOf.set(k, []);
     peaksOf.get(k)!.push(p);
   }
-  const channelsOf = (stage: Stage) => (c.channels === 'all' ? [...new Set(data.spectra.rows.filter((r) => r.stage === stage).map((r) => r.channel))] : c.channels);
+  const channelsOf = (stage: Stage) =>
+    c.channels === 'all' ? [...new Set(data.spectra.rows.filter((r) => r.stage === stage).map((r) => r.channel))] : c.channels;
   const bands = new Map<string, Band[]>();
   const centres: IndividualCentre[] = [];
   for (const subject of [...sessions.keys()].sort()) {
     const own = sessions.get(subject)!;
     const per: Band[] = [];
     for (const cond of conds) {
-      const session = cond.session ?? (own.size === 1 ? own.values().next().value ?? null : undefined);
+      const session = cond.session ?? (own.size === 1 ? (own.values().next().value ?? null) : undefined);
       if (session === undefined) {
         per.push(band);
         continue;
       }
-      const found = individualBand(band, rule, peaksOf.get(`${subject}\u0000${session ?? ''}\u0000${cond.stage}`) ?? [], channelsOf(cond.stage), { subject, condition: cond.name, stage: cond.stage });
+      const found = individualBand(band, rule, peaksOf.get(`${subject}\u0000${session ?? ''}\u0000${cond.stage}`) ?? [], channelsOf(cond.stage), {
+        subject,
+        condition: cond.name,
+        stage: cond.stage,
+      });
       per.push(found.band);
       centres.push(found.centre);
     }

@@ -59,7 +59,8 @@ export function measureLayout(c: Contrast, axis: FrequencyAxis): MeasureLayout {
   if (BANDED.includes(c.measure)) {
     const bands = [...(c.bands ?? [])].sort((a, b) => a.loHz + a.hiHz - (b.loHz + b.hiHz));
     const centres = bands.map((b) => (b.loHz + b.hiHz) / 2);
-    for (let i = 1; i < centres.length; i++) if (!(centres[i] > centres[i - 1])) throw new Error(`bands ${bands[i - 1].name} and ${bands[i].name} share a centre`);
+    for (let i = 1; i < centres.length; i++)
+      if (!(centres[i] > centres[i - 1])) throw new Error(`bands ${bands[i - 1].name} and ${bands[i].name} share a centre`);
     const individual = c.bandDefinition === 'individual' && INDIVIDUAL_BAND_MEASURES.includes(c.measure);
     const names = bands
       .map((b) => {
@@ -159,6 +160,10 @@ export function highestPeak(peaks: readonly PeakRow[], b: Band): PeakRow | undef
 export function measureNeeds(measure: MeasureName, bandDefinition: BandDefinition = 'fixed'): { aperiodic: boolean; peaks: boolean } {
   return {
     aperiodic: measure === 'residual' || measure === 'offset' || measure === 'exponent' || measure === 'knee',
-    peaks: measure === 'peak-height' || measure === 'peak-center' || measure === 'peak-width' || (bandDefinition === 'individual' && INDIVIDUAL_BAND_MEASURES.includes(measure)),
+    peaks:
+      measure === 'peak-height' ||
+      measure === 'peak-center' ||
+      measure === 'peak-width' ||
+      (bandDefinition === 'individual' && INDIVIDUAL_BAND_MEASURES.includes(measure)),
   };
 }

@@ -16,7 +16,11 @@ const NAMED = 20;
 function numericColumns(participants: Participants): string[] {
   const names = new Set(participants.flatMap((p) => Object.keys(p)));
   names.delete('subject');
-  return [...names].filter((n) => participants.some((p) => typeof p[n] === 'number') && participants.every((p) => p[n] === null || p[n] === undefined || typeof p[n] === 'number')).sort();
+  return [...names]
+    .filter(
+      (n) => participants.some((p) => typeof p[n] === 'number') && participants.every((p) => p[n] === null || p[n] === undefined || typeof p[n] === 'number'),
+    )
+    .sort();
 }
 
 function requireColumn(participants: Participants, name: string, role: string): void {
@@ -36,7 +40,14 @@ function requireNumeric(participants: Participants, name: string, role: string):
 export function checkColumns(c: Contrast, participants: Participants): void {
   if (c.design === 'groups') {
     requireColumn(participants, c.groupColumn, 'group column');
-    const values = [...new Set(participants.map((p) => p[c.groupColumn]).filter((v) => v !== null && v !== undefined).map(String))].sort();
+    const values = [
+      ...new Set(
+        participants
+          .map((p) => p[c.groupColumn])
+          .filter((v) => v !== null && v !== undefined)
+          .map(String),
+      ),
+    ].sort();
     for (const g of c.groups ?? []) {
       if (!values.includes(g)) throw new ContrastDataError(`no subject has ${c.groupColumn} '${g}'; its values are: ${values.join(', ') || 'none'}`);
     }
@@ -64,7 +75,9 @@ export function checkNuisanceVaries(c: Contrast, kept: readonly { nuisance: numb
   c.nuisance.forEach((name, i) => {
     const first = kept[0].nuisance[i];
     if (kept.every((k) => k.nuisance[i] === first)) {
-      throw new ContrastDataError(`nuisance covariate ${name} has the same value (${first}) for all ${kept.length} subjects: it cannot be adjusted for; leave it out`);
+      throw new ContrastDataError(
+        `nuisance covariate ${name} has the same value (${first}) for all ${kept.length} subjects: it cannot be adjusted for; leave it out`,
+      );
     }
   });
 }

@@ -51,7 +51,8 @@ export function mixedRecordedReferences(
         if (!subjects.includes(u.subject)) subjects.push(u.subject);
       }
     }
-    if (groups.size > 1) lines.push(`channel ${channel} was recorded against different references: ${list([...groups].map(([ref, subjects]) => `${ref} (${names(subjects)})`))}`);
+    if (groups.size > 1)
+      lines.push(`channel ${channel} was recorded against different references: ${list([...groups].map(([ref, subjects]) => `${ref} (${names(subjects)})`))}`);
   }
   if (lines.length === 0) return null;
   return (

@@ -10,8 +10,15 @@ import type { ContrastData, Exclusion } from './data.ts';
 import { assembleContrast, type AssembledContrast, type Participation } from './assemble.ts';
 import type { ChannelLayout } from './channel-layout.ts';
 import {
-  finishPermutationTest, preparePermutationTest, runPermutations,
-  type PermutationTestOptions, type PermutationTestResult, type NullMaxima, type PermutationRange, type PreparedPermutationTest, type ProgressCallback,
+  finishPermutationTest,
+  preparePermutationTest,
+  runPermutations,
+  type PermutationTestOptions,
+  type PermutationTestResult,
+  type NullMaxima,
+  type PermutationRange,
+  type PreparedPermutationTest,
+  type ProgressCallback,
 } from '../stats/index.ts';
 
 export const RESEARCH_NOTE = 'bandwise is a research tool. Its results are not a diagnosis and must not be used for clinical decisions.';
@@ -110,7 +117,13 @@ function pointValues(a: AssembledContrast, s: PermutationTestResult): { valuesPe
     s.freqsHz.map((freqHz, f) => {
       const p = ci * F + f;
       const b = a.layout.bands[f];
-      return { channel, freqHz, band: b ? `${b.name} ${b.loHz}–${b.hiHz} Hz` : null, n: Object.fromEntries(names.map((g, k) => [g, m.nPerPoint[k][p]])), leftOut: leftOut.has(p) };
+      return {
+        channel,
+        freqHz,
+        band: b ? `${b.name} ${b.loHz}–${b.hiHz} Hz` : null,
+        n: Object.fromEntries(names.map((g, k) => [g, m.nPerPoint[k][p]])),
+        leftOut: leftOut.has(p),
+      };
     }),
   );
   const notes: string[] = [];
@@ -118,7 +131,14 @@ function pointValues(a: AssembledContrast, s: PermutationTestResult): { valuesPe
     const out = points.filter((q, i) => i % F === f && q.leftOut);
     if (out.length === 0) continue;
     const where = out[0].band ?? `${out[0].freqHz} Hz`;
-    const list = out.map((q) => `${q.channel} (${Object.entries(q.n).map(([g, k]) => `${g} ${k}`).join(', ')})`).join(', ');
+    const list = out
+      .map(
+        (q) =>
+          `${q.channel} (${Object.entries(q.n)
+            .map(([g, k]) => `${g} ${k}`)
+            .join(', ')})`,
+      )
+      .join(', ');
     notes.push(`${where}: ${out.length} channel${out.length === 1 ? '' : 's'} left out for too few values (a point needs ${m.minimum}): ${list}`);
   }
   return { valuesPerPoint: points, notes };

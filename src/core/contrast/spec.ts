@@ -22,11 +22,21 @@ const band = z.union([z.string(), bandObject]).transform((b, ctx): Band => {
 });
 
 /** A subject, or one channel of it, left out of the contrast, in every stage or one: the contrast carries its exclusions. */
-const exclusion = z
-  .object({ subject: z.string().min(1), channel: z.string().min(1).optional(), stage: stage.optional(), reason: z.string().min(1) })
-  .strict();
+const exclusion = z.object({ subject: z.string().min(1), channel: z.string().min(1).optional(), stage: stage.optional(), reason: z.string().min(1) }).strict();
 
-export const MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent', 'knee', 'peak-height', 'peak-center', 'peak-width'] as const;
+export const MEASURES = [
+  'log-psd',
+  'relative',
+  'residual',
+  'band-power',
+  'relative-band-power',
+  'offset',
+  'exponent',
+  'knee',
+  'peak-height',
+  'peak-center',
+  'peak-width',
+] as const;
 export type MeasureName = (typeof MEASURES)[number];
 
 /**
@@ -89,7 +99,12 @@ export const contrastSchema = z
     statistic: z.enum(['welch-t', 'student-t', 'paired-t', 'pearson', 'spearman', 'linear-model-t']).optional(),
     correction: z.enum(['cluster-mass', 'cluster-size', 'tfce', 'none']).default('cluster-mass'),
     clusterP: z.number().gt(0).lt(1).default(0.05),
-    permutations: z.number().int().positive().max(MAX_PERMUTATIONS, { message: `at most ${MAX_PERMUTATIONS.toLocaleString('en-US')} permutations (p then resolves 10⁻⁶)` }).default(1000),
+    permutations: z
+      .number()
+      .int()
+      .positive()
+      .max(MAX_PERMUTATIONS, { message: `at most ${MAX_PERMUTATIONS.toLocaleString('en-US')} permutations (p then resolves 10⁻⁶)` })
+      .default(1000),
     seed: z.number().int().default(1),
     /** subjects or channels left out (a channel exclusion is missing data for that channel where the design allows it) */
     exclusions: z.array(exclusion).default([]),
@@ -99,22 +114,40 @@ export const contrastSchema = z
      * in the contrast are ignored), instead of the neighbours of the stored positions
      */
     neighbours: z
-      .record(z.string().min(1), z.array(z.string().min(1)), { error: '"neighbours" must be a table {channel: [neighbour, …]} (the command line reads a TSV file with --neighbours)' })
+      .record(z.string().min(1), z.array(z.string().min(1)), {
+        error: '"neighbours" must be a table {channel: [neighbour, …]} (the command line reads a TSV file with --neighbours)',
+      })
       .optional(),
   })
   .strict()
   .superRefine((c, ctx) => {
     if (c.fmaxHz <= c.fminHz) ctx.addIssue({ code: 'custom', path: ['fmaxHz'], message: `fmaxHz (${c.fmaxHz}) must exceed fminHz (${c.fminHz})` });
     if (c.design === 'groups' && !c.groups) ctx.addIssue({ code: 'custom', path: ['groups'], message: 'a groups design needs "groups": [first, second]' });
-    if (c.design === 'paired' && !c.stages === !c.sessions) ctx.addIssue({ code: 'custom', path: ['stages'], message: 'a paired design needs either "stages" or "sessions" (two values)' });
-    if (c.design === 'covariate' && !c.covariate) ctx.addIssue({ code: 'custom', path: ['covariate'], message: 'a covariate design needs "covariate": <numeric participants column>' });
+    if (c.design === 'paired' && !c.stages === !c.sessions)
+      ctx.addIssue({ code: 'custom', path: ['stages'], message: 'a paired design needs either "stages" or "sessions" (two values)' });
+    if (c.design === 'covariate' && !c.covariate)
+      ctx.addIssue({ code: 'custom', path: ['covariate'], message: 'a covariate design needs "covariate": <numeric participants column>' });
     // a key the design does not use is refused, never silently ignored
-    const others = c.design === 'paired' ? "a paired design compares each subject's two conditions" : 'a covariate design uses every subject with a value of the covariate';
-    if (c.design !== 'groups' && c.groups) ctx.addIssue({ code: 'custom', path: ['groups'], message: `"groups" is used by the groups design only (${others}; leave subjects out with exclusions)` });
-    for (const k of ['stages', 'sessions'] as const) if (c.design !== 'paired' && c[k]) ctx.addIssue({ code: 'custom', path: [k], message: `"${k}" is used by the paired design only` });
-    if (c.design !== 'covariate' && c.covariate) ctx.addIssue({ code: 'custom', path: ['covariate'], message: '"covariate" is used by the covariate design only (nuisance covariates go in "nuisance")' });
-    if (c.peakSearchHz && !(c.peakSearchHz[1] > c.peakSearchHz[0])) ctx.addIssue({ code: 'custom', path: ['peakSearchHz'], message: `the search range's upper edge (${c.peakSearchHz[1]}) must exceed its lower edge (${c.peakSearchHz[0]})` });
-    if (c.peakSearchHz && c.bands && c.bands.length > 1) ctx.addIssue({ code: 'custom', path: ['peakSearchHz'], message: 'one search range serves one band: give one band, or leave peakSearchHz out to search each band within its own edges' });
+    const others =
+      c.design === 'paired' ? "a paired design compares each subject's two conditions" : 'a covariate design uses every subject with a value of the covariate';
+    if (c.design !== 'groups' && c.groups)
+      ctx.addIssue({ code: 'custom', path: ['groups'], message: `"groups" is used by the groups design only (${others}; leave subjects out with exclusions)` });
+    for (const k of ['stages', 'sessions'] as const)
+      if (c.design !== 'paired' && c[k]) ctx.addIssue({ code: 'custom', path: [k], message: `"${k}" is used by the paired design only` });
+    if (c.design !== 'covariate' && c.covariate)
+      ctx.addIssue({ code: 'custom', path: ['covariate'], message: '"covariate" is used by the covariate design only (nuisance covariates go in "nuisance")' });
+    if (c.peakSearchHz && !(c.peakSearchHz[1] > c.peakSearchHz[0]))
+      ctx.addIssue({
+        code: 'custom',
+        path: ['peakSearchHz'],
+        message: `the search range's upper edge (${c.peakSearchHz[1]}) must exceed its lower edge (${c.peakSearchHz[0]})`,
+      });
+    if (c.peakSearchHz && c.bands && c.bands.length > 1)
+      ctx.addIssue({
+        code: 'custom',
+        path: ['peakSearchHz'],
+        message: 'one search range serves one band: give one band, or leave peakSearchHz out to search each band within its own edges',
+      });
     if ((c.measure === 'band-power' || c.measure === 'relative-band-power' || c.measure.startsWith('peak-')) && !(c.bands && c.bands.length > 0)) {
       ctx.addIssue({ code: 'custom', path: ['bands'], message: `measure ${c.measure} needs "bands": [{name, loHz, hiHz}, …]` });
     }

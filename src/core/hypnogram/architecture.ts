@@ -50,7 +50,10 @@ const TOL_S = 1e-4;
  */
 export function sleepArchitecture(stages: readonly Stage[], epochS: number, lights: LightsTimes | null = null): SleepArchitecture {
   if (!(epochS > 0) || !Number.isFinite(epochS)) throw new RangeError(`sleepArchitecture: epochS must be a positive number of seconds, got ${epochS}`);
-  for (const [name, t] of [['lights off', lights?.offS ?? null], ['lights on', lights?.onS ?? null]] as const) {
+  for (const [name, t] of [
+    ['lights off', lights?.offS ?? null],
+    ['lights on', lights?.onS ?? null],
+  ] as const) {
     if (t !== null && !Number.isFinite(t)) throw new RangeError(`sleepArchitecture: ${name} must be a number of seconds, got ${t}`);
   }
   const epochMin = epochS / 60;

@@ -79,18 +79,26 @@ export function positionNeighbours(pos: readonly Position3[], names: readonly st
   // a triangulation leaves a repeated point without neighbours: say so instead
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < i; j++) {
-      if (chord(pos[i], pos[j]) < 1e-9) throw new AdjacencyError(`channels "${names[j]}" and "${names[i]}" sit at one position; give a neighbour table instead`, 'channel', names[i]);
+      if (chord(pos[i], pos[j]) < 1e-9)
+        throw new AdjacencyError(`channels "${names[j]}" and "${names[i]}" sit at one position; give a neighbour table instead`, 'channel', names[i]);
     }
   }
   const flat = pos.map(projectToDisk);
-  const delaunay = Delaunay.from(flat, (p) => p.x, (p) => p.y);
+  const delaunay = Delaunay.from(
+    flat,
+    (p) => p.x,
+    (p) => p.y,
+  );
   const edges: [number, number, number][] = [];
   for (let i = 0; i < n; i++) for (const j of delaunay.neighbors(i)) if (j > i) edges.push([i, j, chord(pos[i], pos[j])]);
   const lengths = edges.map((e) => e[2]).sort((a, b) => a - b);
   const mid = lengths.length / 2;
   const median = lengths.length % 2 === 1 ? lengths[Math.floor(mid)] : (lengths[mid - 1] + lengths[mid]) / 2;
   const limit = Math.min(RIM_EDGE_FACTOR * median, options.maxDistance ?? Infinity);
-  return symmetric(n, edges.filter((e) => e[2] <= limit).map(([a, b]): [number, number] => [a, b]));
+  return symmetric(
+    n,
+    edges.filter((e) => e[2] <= limit).map(([a, b]): [number, number] => [a, b]),
+  );
 }
 
 /** Delaunay neighbours of channel names at their 10-10 positions (positionNeighbours). */
@@ -134,7 +142,8 @@ export function neighbourTable(text: string): NeighbourTable {
     headerSeen = true;
     if (first && name.toLowerCase() === 'channel') continue;
     const key = name.toUpperCase();
-    if (lineOf.has(key)) throw new AdjacencyError(`neighbour table line ${li + 1}: channel "${name}" is on line ${lineOf.get(key)} already`, `line ${li + 1}`, name);
+    if (lineOf.has(key))
+      throw new AdjacencyError(`neighbour table line ${li + 1}: channel "${name}" is on line ${lineOf.get(key)} already`, `line ${li + 1}`, name);
     lineOf.set(key, li + 1);
     const neighbours = line
       .slice(tab + 1)

@@ -39,7 +39,10 @@ const HEAD_RADIUS_M: [number, number] = [0.05, 0.15];
 export function headLayout(layout: ElectrodeLayout): HeadLayout {
   const notes = [...layout.notes];
   const sphere = fitSphere(layout.electrodes);
-  if (!sphere) notes.push(`${layout.file}: the ${layout.electrodes.length} positions do not fix a head sphere (fewer than 4, or on one plane); directions are taken from the coordinate origin`);
+  if (!sphere)
+    notes.push(
+      `${layout.file}: the ${layout.electrodes.length} positions do not fix a head sphere (fewer than 4, or on one plane); directions are taken from the coordinate origin`,
+    );
   else if (sphere.radius < HEAD_RADIUS_M[0] || sphere.radius > HEAD_RADIUS_M[1]) {
     notes.push(`${layout.file}: the fitted head radius is ${sphere.radius.toPrecision(3)} m with coordinates in ${layout.unit}; check the unit`);
   }
@@ -74,7 +77,12 @@ export function placeChannel(name: string, electrode: string, head: HeadLayout |
     const a = pair ? head.byName.get(pair[1].toUpperCase()) : undefined;
     const b = pair && !REFERENCE_SITE.test(pair[2]) ? head.byName.get(pair[2].toUpperCase()) : undefined;
     const mid = a && b ? midpoint(a.unit, b.unit) : null;
-    if (a && b && mid) return { position: mid, metres: { x: (a.metres.x + b.metres.x) / 2, y: (a.metres.y + b.metres.y) / 2, z: (a.metres.z + b.metres.z) / 2 }, source: 'file' };
+    if (a && b && mid)
+      return {
+        position: mid,
+        metres: { x: (a.metres.x + b.metres.x) / 2, y: (a.metres.y + b.metres.y) / 2, z: (a.metres.z + b.metres.z) / 2 },
+        source: 'file',
+      };
     const hit = head.byName.get(electrode.trim().toUpperCase());
     if (hit) return { position: hit.unit, metres: hit.metres, source: 'file' };
   }

@@ -115,7 +115,10 @@ export function selectChannels(
     out.push({ index: s.index, name, montage: { ...parsed, type, fsHz: s.fsHz }, derivation, toUv });
   }
   if (out.length === 0) {
-    throw new ChannelSelectionError('label', `no channel selected (types ${options.channelTypes.join(', ')}${options.includeChannels.length ? `, include ${options.includeChannels.join(', ')}` : ''})`);
+    throw new ChannelSelectionError(
+      'label',
+      `no channel selected (types ${options.channelTypes.join(', ')}${options.includeChannels.length ? `, include ${options.includeChannels.join(', ')}` : ''})`,
+    );
   }
   // Two channels with the same name (e.g. C3-M2 and C3-M1): name both by the derivation.
   const count = new Map<string, number>();

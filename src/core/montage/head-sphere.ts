@@ -51,7 +51,8 @@ export function fitSphere(points: readonly Position3[]): Sphere | null {
   if (!(r2 > 0)) return null;
   const radius = Math.sqrt(r2);
   let misfit = 0;
-  for (const p of points) misfit += Math.abs(Math.hypot((p.x - mx) / spread - u[0], (p.y - my) / spread - u[1], (p.z - mz) / spread - u[2]) - radius) / points.length;
+  for (const p of points)
+    misfit += Math.abs(Math.hypot((p.x - mx) / spread - u[0], (p.y - my) / spread - u[1], (p.z - mz) / spread - u[2]) - radius) / points.length;
   if (misfit > 0.2 * radius) return null;
   return { centre: { x: mx + u[0] * spread, y: my + u[1] * spread, z: mz + u[2] * spread }, radius: radius * spread };
 }

@@ -46,13 +46,7 @@ export { hemisphere };
 
 export type ReferenceKind = 'recorded' | 'linked-mastoids' | 'contralateral-mastoid' | 'average' | 'bipolar';
 
-export const REFERENCE_KINDS: readonly ReferenceKind[] = [
-  'recorded',
-  'linked-mastoids',
-  'contralateral-mastoid',
-  'average',
-  'bipolar',
-];
+export const REFERENCE_KINDS: readonly ReferenceKind[] = ['recorded', 'linked-mastoids', 'contralateral-mastoid', 'average', 'bipolar'];
 
 /** One recorded channel as the planner needs it (the fields of parseChannelLabel plus fs). */
 export interface MontageChannel {
@@ -119,10 +113,7 @@ function recordedName(c: MontageChannel): string {
  * Plans the requested references for one recording. Returns one plan per supported reference and
  * one skip, with a plain reason, per reference (or bipolar pair) the montage cannot support.
  */
-export function planReferences(
-  channels: readonly MontageChannel[],
-  request: ReferenceRequest,
-): { plans: ReferencePlan[]; skips: ReferenceSkip[] } {
+export function planReferences(channels: readonly MontageChannel[], request: ReferenceRequest): { plans: ReferencePlan[]; skips: ReferenceSkip[] } {
   const plans: ReferencePlan[] = [];
   const skips: ReferenceSkip[] = [];
   for (const r of request.references) {
@@ -164,7 +155,10 @@ export function planReferences(
       const channel = derivationName(c.electrode!, d);
       const first = outputs.find((o) => o.channel === channel);
       if (first) {
-        skips.push({ reference: kind, reason: `${c.electrode}-${c.reference}: ${channel} is already stored from ${channels[first.source].electrode}-${channels[first.source].reference}` });
+        skips.push({
+          reference: kind,
+          reason: `${c.electrode}-${c.reference}: ${channel} is already stored from ${channels[first.source].electrode}-${channels[first.source].reference}`,
+        });
         continue;
       }
       outputs.push({ channel, source: i, signal: -1, referredTo: d.referredTo });

@@ -55,7 +55,8 @@ export function covariateDesign(names: readonly string[], values: Record<string,
     }
     const levels = [...new Set(v.filter((x, s) => reference[s] && x !== null).map(String))].sort();
     v.forEach((x, s) => x !== null && !levels.includes(String(x)) && refuse(s, `${name} = ${String(x)} does not occur in the reference group`));
-    for (const level of levels.slice(1)) columns.push({ name: `${name}=${level}`, values: Float64Array.from(v, (x) => (x === null ? NaN : String(x) === level ? 1 : 0)) });
+    for (const level of levels.slice(1))
+      columns.push({ name: `${name}=${level}`, values: Float64Array.from(v, (x) => (x === null ? NaN : String(x) === level ? 1 : 0)) });
     covariates.push({ name, kind: 'categorical', baseline: levels[0] ?? null, levels });
   }
   const p = columns.length;

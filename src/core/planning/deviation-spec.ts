@@ -58,8 +58,10 @@ export function parseDeviationSpec(value: unknown): DeviationSpec {
     const lines = r.error.issues.map((i) => `  ${i.path.join('.') || '(settings)'}: ${i.message}`);
     throw new DeviationSpecError(`invalid deviation settings:\n${lines.join('\n')}`);
   }
-  if (new Set(r.data.covariates).size !== r.data.covariates.length) throw new DeviationSpecError(`invalid deviation settings:\n  covariates: a column is named twice (${r.data.covariates.join(', ')})`);
-  if (r.data.covariates.includes(r.data.groupColumn)) throw new DeviationSpecError(`invalid deviation settings:\n  covariates: ${r.data.groupColumn} is the group column`);
+  if (new Set(r.data.covariates).size !== r.data.covariates.length)
+    throw new DeviationSpecError(`invalid deviation settings:\n  covariates: a column is named twice (${r.data.covariates.join(', ')})`);
+  if (r.data.covariates.includes(r.data.groupColumn))
+    throw new DeviationSpecError(`invalid deviation settings:\n  covariates: ${r.data.groupColumn} is the group column`);
   try {
     measureContrast(r.data);
   } catch (e) {

@@ -114,8 +114,16 @@ function covariateValues(names: readonly string[], data: ContrastData, subjects:
 /** Fits the reference group at every point and scores every subject (see the module comment). */
 export function fitDeviation(spec: DeviationSpec, data: ContrastData): DeviationModel & { excluded: Exclusion[] } {
   const all = subjectMatrix(measureContrast(spec), data);
-  const values = covariateValues(spec.covariates, data, all.subjects.map((s) => s.subject));
-  const designAll = covariateDesign(spec.covariates, values, all.subjects.map((s) => s.group === spec.referenceGroup));
+  const values = covariateValues(
+    spec.covariates,
+    data,
+    all.subjects.map((s) => s.subject),
+  );
+  const designAll = covariateDesign(
+    spec.covariates,
+    values,
+    all.subjects.map((s) => s.group === spec.referenceGroup),
+  );
   const excluded = [...all.excluded];
   // subjects that cannot be predicted (a missing covariate, an unknown level) are not scored
   const keep = all.subjects.map((_, s) => s).filter((s) => !designAll.unusable.has(s));
@@ -134,7 +142,9 @@ export function fitDeviation(spec: DeviationSpec, data: ContrastData): Deviation
   const refs = [...isReference.keys()].filter((i) => isReference[i] === 1);
   const m = refs.length;
   if (m - p - 1 < 2) {
-    throw new PlanningInputError(`the reference group ${spec.groupColumn} = ${spec.referenceGroup} has ${m} subject${m === 1 ? '' : 's'} with data; scoring with ${p} model term${p === 1 ? '' : 's'} (intercept${p > 1 ? ' and covariates' : ''}) needs at least ${p + 3}`);
+    throw new PlanningInputError(
+      `the reference group ${spec.groupColumn} = ${spec.referenceGroup} has ${m} subject${m === 1 ? '' : 's'} with data; scoring with ${p} model term${p === 1 ? '' : 's'} (intercept${p > 1 ? ' and covariates' : ''}) needs at least ${p + 3}`,
+    );
   }
 
   // normal equations of the reference group: A = XᵀX, β = A⁻¹XᵀY
@@ -150,12 +160,14 @@ export function fitDeviation(spec: DeviationSpec, data: ContrastData): Deviation
     }
   }
   const xtxInverse = spdInverse(a, p);
-  if (!xtxInverse) throw new PlanningInputError(`the covariates ${spec.covariates.join(', ')} are constant or collinear in the reference group: they cannot be regressed out`);
+  if (!xtxInverse)
+    throw new PlanningInputError(`the covariates ${spec.covariates.join(', ')} are constant or collinear in the reference group: they cannot be regressed out`);
   const beta = new Float64Array(p * W);
-  for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) {
-    const c = xtxInverse[i * p + j];
-    for (let q = 0; q < W; q++) beta[i * W + q] += c * xty[j * W + q];
-  }
+  for (let i = 0; i < p; i++)
+    for (let j = 0; j < p; j++) {
+      const c = xtxInverse[i * p + j];
+      for (let q = 0; q < W; q++) beta[i * W + q] += c * xty[j * W + q];
+    }
 
   // residuals e = y − xᵀβ of every subject; SSE over the reference group
   const e = new Float64Array(S * W);
@@ -220,13 +232,18 @@ export function deviationResult(spec: DeviationSpec, model: DeviationModel & { e
   const p = design.nColumns;
   const subjects: SubjectDeviation[] = matrix.subjects.map((sub, s) => {
     const { share, meanZ } = rowSummary(z, s, W);
-    const map = Array.from({ length: C }, (_, c) => Array.from({ length: F }, (_, f) => {
-      const v = z[s * W + c * F + f];
-      return Number.isFinite(v) ? v : null;
-    }));
+    const map = Array.from({ length: C }, (_, c) =>
+      Array.from({ length: F }, (_, f) => {
+        const v = z[s * W + c * F + f];
+        return Number.isFinite(v) ? v : null;
+      }),
+    );
     return { subject: sub.subject, group: sub.group, reference: isReference[s] === 1, share, meanZ, z: map };
   });
-  const refShares = subjects.filter((s) => s.reference).map((s) => s.share).filter(Number.isFinite);
+  const refShares = subjects
+    .filter((s) => s.reference)
+    .map((s) => s.share)
+    .filter(Number.isFinite);
   const expectedShare = refShares.reduce((a, b) => a + b, 0) / refShares.length;
   const [referenceShare95] = quantiles(refShares, [0.95]);
   const groupNames = [...new Set(subjects.map((s) => s.group))].sort((a, b) => (a === null ? 1 : b === null ? -1 : a.localeCompare(b)));
@@ -244,7 +261,10 @@ export function deviationResult(spec: DeviationSpec, model: DeviationModel & { e
       meanZ: meanZs.reduce((a, b) => a + b, 0) / meanZs.length,
     };
   });
-  const covariateText = spec.covariates.length === 0 ? 'the reference mean and standard deviation' : `a least-squares fit on ${design.columnNames.slice(1).join(', ')} (numeric covariates centred, text covariates as indicator columns)`;
+  const covariateText =
+    spec.covariates.length === 0
+      ? 'the reference mean and standard deviation'
+      : `a least-squares fit on ${design.columnNames.slice(1).join(', ')} (numeric covariates centred, text covariates as indicator columns)`;
   return {
     kind: 'deviation',
     note: `${RESEARCH_NOTE} A deviation from a reference group is a statistical description for research; an individual deviation is not a clinical finding.`,
@@ -252,7 +272,12 @@ export function deviationResult(spec: DeviationSpec, model: DeviationModel & { e
     measure: matrix.layout.description,
     channels: matrix.channels,
     freqsHz: matrix.freqsHz,
-    reference: { groupColumn: spec.groupColumn, group: spec.referenceGroup, n: m, subjects: matrix.subjects.filter((_, s) => isReference[s] === 1).map((s) => s.subject) },
+    reference: {
+      groupColumn: spec.groupColumn,
+      group: spec.referenceGroup,
+      n: m,
+      subjects: matrix.subjects.filter((_, s) => isReference[s] === 1).map((s) => s.subject),
+    },
     covariates: design.covariates,
     modelColumns: design.columnNames,
     method: {

@@ -12,14 +12,40 @@ export { PLANTABLE_MEASURES, PlanningInputError, isPlantable, measureTakesBand, 
 export { drawStudy, type ReferenceRows, type SimulatedStudy } from './resample.ts';
 export { judgeStudy, type Correction, type SimulationOutcome } from './overlap.ts';
 export {
-  POWER_INTERVAL_LEVEL, checkPowerPlan, jobCount, powerResult, preparePower, runSimulation, simulatePower, simulationJob,
-  type PowerPlan, type PowerPoint, type PowerResult, type PreparedPower,
+  POWER_INTERVAL_LEVEL,
+  checkPowerPlan,
+  jobCount,
+  powerResult,
+  preparePower,
+  runSimulation,
+  simulatePower,
+  simulationJob,
+  type PowerPlan,
+  type PowerPoint,
+  type PowerResult,
+  type PreparedPower,
 } from './power.ts';
-export { DEVIATION_MEASURES, DeviationSpecError, deviationSpecSchema, measureContrast, parseDeviationSpec, type DeviationSpec, type DeviationSpecJson } from './deviation-spec.ts';
+export {
+  DEVIATION_MEASURES,
+  DeviationSpecError,
+  deviationSpecSchema,
+  measureContrast,
+  parseDeviationSpec,
+  type DeviationSpec,
+  type DeviationSpecJson,
+} from './deviation-spec.ts';
 export { subjectMatrix, type SubjectMatrix } from './subject-matrix.ts';
 export { covariateDesign, type CovariateDesign } from './covariates.ts';
 export {
-  DEVIANT_Z, deviation, deviationResult, fitDeviation, referenceBand,
-  type DeviationModel, type DeviationResult, type ReferenceBand, type ShareSummary, type SubjectDeviation,
+  DEVIANT_Z,
+  deviation,
+  deviationResult,
+  fitDeviation,
+  referenceBand,
+  type DeviationModel,
+  type DeviationResult,
+  type ReferenceBand,
+  type ShareSummary,
+  type SubjectDeviation,
 } from './deviation.ts';
 export { quantiles } from './quantile.ts';

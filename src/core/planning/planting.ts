@@ -26,7 +26,15 @@ export class PlanningInputError extends Error {
   override name = 'PlanningInputError';
 }
 
-export const PLANTABLE_MEASURES = ['log-psd', 'relative', 'residual', 'band-power', 'relative-band-power', 'offset', 'exponent'] as const satisfies readonly MeasureName[];
+export const PLANTABLE_MEASURES = [
+  'log-psd',
+  'relative',
+  'residual',
+  'band-power',
+  'relative-band-power',
+  'offset',
+  'exponent',
+] as const satisfies readonly MeasureName[];
 
 const RULES: Record<(typeof PLANTABLE_MEASURES)[number], string> = {
   'log-psd': 'log10 PSD + effect at each planted bin (PSD × 10^effect)',
@@ -83,11 +91,15 @@ export function plantedRegion(
   if (!takesBand && band !== null) throw new PlanningInputError(`measure ${c.measure} has no frequency axis: give no band`);
   const planted = channels === 'all' ? [...contrastChannels] : [...channels];
   if (planted.length === 0) throw new PlanningInputError('no channel to plant the effect in');
-  for (const ch of planted) if (!contrastChannels.includes(ch)) throw new PlanningInputError(`channel ${ch} is not one of the contrast's channels (${contrastChannels.join(', ')})`);
+  for (const ch of planted)
+    if (!contrastChannels.includes(ch)) throw new PlanningInputError(`channel ${ch} is not one of the contrast's channels (${contrastChannels.join(', ')})`);
   if (new Set(planted).size !== planted.length) throw new PlanningInputError(`a planted channel is named twice: ${planted.join(', ')}`);
   const F = layout.freqsHz.length;
   const inBand = layout.freqsHz.map((f) => band === null || (f >= band.loHz - 1e-9 && f <= band.hiHz + 1e-9));
-  if (!inBand.includes(true)) throw new PlanningInputError(`no point of the contrast lies in ${band!.loHz}–${band!.hiHz} Hz (its points: ${layout.freqsHz[0]}–${layout.freqsHz[F - 1]} Hz)`);
+  if (!inBand.includes(true))
+    throw new PlanningInputError(
+      `no point of the contrast lies in ${band!.loHz}–${band!.hiHz} Hz (its points: ${layout.freqsHz[0]}–${layout.freqsHz[F - 1]} Hz)`,
+    );
   const averaged = pointChannels.length === 1 && c.channelAverage;
   const region = new Uint8Array(pointChannels.length * F);
   const weight = new Float64Array(pointChannels.length * F);

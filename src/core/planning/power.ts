@@ -97,14 +97,18 @@ export function preparePower(c: Contrast, plan: PowerPlan, data: ContrastData): 
   // the reference group alone: both "groups" of the assembly are the reference group
   const assembled = assembleContrast({ ...c, groups: [plan.referenceGroup, plan.referenceGroup] }, data);
   const N = assembled.subjects.length;
-  if (N < 2) throw new PlanningInputError(`reference group ${c.groupColumn} = ${plan.referenceGroup} has ${N} subject${N === 1 ? '' : 's'} with data; at least 2 are needed`);
+  if (N < 2)
+    throw new PlanningInputError(
+      `reference group ${c.groupColumn} = ${plan.referenceGroup} has ${N} subject${N === 1 ? '' : 's'} with data; at least 2 are needed`,
+    );
   const input = assembled.input;
   const members = c.channels === 'all' ? [...new Set(data.spectra.rows.filter((r) => r.stage === c.stage).map((r) => r.channel))] : c.channels;
   const planted = plantedRegion(c, assembled.layout, members, input.channels, plan.band, plan.channels);
   const options = { ...statsOptions(c), frequencyAdjacency: assembled.layout.frequencyAdjacency };
   const design = input.design;
   const nuisance = design.kind === 'groups' ? (design.nuisance ?? []) : [];
-  const channelNeighbours = input.channelNeighbours !== undefined ? input.channelNeighbours : input.channels.length >= 2 ? delaunayNeighbours(input.channels) : null;
+  const channelNeighbours =
+    input.channelNeighbours !== undefined ? input.channelNeighbours : input.channels.length >= 2 ? delaunayNeighbours(input.channels) : null;
   return {
     contrast: c,
     plan,
@@ -217,7 +221,10 @@ export function powerResult(p: PreparedPower, outcomes: readonly SimulationOutco
   const N = p.reference.nSubjects;
   const notes: string[] = [];
   const beyond = plan.nPerGroup.filter((n) => n > N);
-  if (beyond.length > 0) notes.push(`n per group ${beyond.join(', ')} exceeds the ${N} reference subjects: each simulated group repeats subjects, and the curve cannot hold more between-subject variety than the reference group has`);
+  if (beyond.length > 0)
+    notes.push(
+      `n per group ${beyond.join(', ')} exceeds the ${N} reference subjects: each simulated group repeats subjects, and the curve cannot hold more between-subject variety than the reference group has`,
+    );
   const correctionText = {
     'cluster-mass': 'a cluster (cluster mass) with permutation p ≤ alpha',
     'cluster-size': 'a cluster (cluster size) with permutation p ≤ alpha',
@@ -243,9 +250,10 @@ export function powerResult(p: PreparedPower, outcomes: readonly SimulationOutco
     method: {
       resampling: `each simulated study draws two groups of n subjects with replacement from the ${N} subjects of ${c.groupColumn} = ${plan.referenceGroup} (whole channel × frequency rows, so their covariance is kept; nuisance covariates travel with their subject) and plants the effect in the second group`,
       significance: `significant: ${correctionText}; ${c.permutations} permutations, cluster-forming p ${c.clusterP}, statistic ${c.statistic ?? 'the design default'}`,
-      found: plan.effect === 0
-        ? 'found: a significant finding of either sign that shares a point with the planted region (effect 0: the false-finding rate there)'
-        : `found: a significant finding of the planted sign (${plan.effect > 0 ? 'positive' : 'negative'}, second group minus first) that shares at least one point with the planted region`,
+      found:
+        plan.effect === 0
+          ? 'found: a significant finding of either sign that shares a point with the planted region (effect 0: the false-finding rate there)'
+          : `found: a significant finding of the planted sign (${plan.effect > 0 ? 'positive' : 'negative'}, second group minus first) that shares at least one point with the planted region`,
       interval: `Clopper–Pearson exact ${Math.round(POWER_INTERVAL_LEVEL * 100)} % interval of the share found`,
       seeds: `simulation k at n draws from the seed derived from (seed ${plan.seed}, 1, n, k) and permutes with the seed derived from (seed ${plan.seed}, 2, n, k); the contrast's own seed is not used`,
     },

@@ -49,7 +49,8 @@ export function subjectMatrix(c: Contrast, data: ContrastData): SubjectMatrix {
   const stored = [...new Set(rows.map((r) => r.channel))];
   const channels = c.channels === 'all' ? stored : c.channels;
   if (channels.length === 0) throw new ContrastDataError(`no stored spectra for stage ${c.stage}, reference ${c.reference}, averaging ${c.averaging}`);
-  for (const ch of channels) if (!stored.includes(ch)) throw new ContrastDataError(`channel ${ch} has no stored ${c.stage} spectra for reference ${c.reference}`);
+  for (const ch of channels)
+    if (!stored.includes(ch)) throw new ContrastDataError(`channel ${ch} has no stored ${c.stage} spectra for reference ${c.reference}`);
 
   const participants = new Map(data.participants.map((p) => [String(p.subject), p]));
   const own = new Map<string, Exclusion[]>();
@@ -72,7 +73,8 @@ export function subjectMatrix(c: Contrast, data: ContrastData): SubjectMatrix {
       continue;
     }
     const sessions = sessionsOf.get(subject)!;
-    if (c.session === undefined && sessions.size > 1) throw new ContrastDataError(`subject ${subject} has several sessions (${[...sessions].join(', ')}): say which one with "session"`);
+    if (c.session === undefined && sessions.size > 1)
+      throw new ContrastDataError(`subject ${subject} has several sessions (${[...sessions].join(', ')}): say which one with "session"`);
     const session = c.session ?? sessions.values().next().value ?? null;
     const values = matrix.subarray(kept.length * width, (kept.length + 1) * width);
     let reason: Exclusion | null = null;

@@ -69,8 +69,13 @@ export function cohortDistance(
   const base = { channel, stage, metric: 'cohort-distance' as const };
   if (n < options.minRecordings) {
     return spectra.map((s, i) => ({
-      ...base, recordingId: s.recordingId, distanceLog10: distance[i], value: null, flagged: false,
-      reason: `not assessable: ${n} recordings, fewer than ${options.minRecordings}`, severity: 0,
+      ...base,
+      recordingId: s.recordingId,
+      distanceLog10: distance[i],
+      value: null,
+      flagged: false,
+      reason: `not assessable: ${n} recordings, fewer than ${options.minRecordings}`,
+      severity: 0,
     }));
   }
   const med = median(distance);
@@ -80,8 +85,13 @@ export function cohortDistance(
     if (mad === 0) {
       const differs = d !== med;
       return {
-        ...base, recordingId: s.recordingId, distanceLog10: d, value: null, flagged: differs,
-        reason: differs ? 'spectrum differs from a cohort whose distances do not vary (MAD 0)' : null, severity: differs ? clampSeverity(Infinity) : 0,
+        ...base,
+        recordingId: s.recordingId,
+        distanceLog10: d,
+        value: null,
+        flagged: differs,
+        reason: differs ? 'spectrum differs from a cohort whose distances do not vary (MAD 0)' : null,
+        severity: differs ? clampSeverity(Infinity) : 0,
       };
     }
     const z = (d - med) / (1.4826 * mad);

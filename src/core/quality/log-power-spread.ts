@@ -95,14 +95,7 @@ export function log10PowerSd(relativeVariance: number): number {
  * (row e = spectra[e·nBins …], µV²/Hz), the band's shape taken as the median of each bin over
  * those epochs. NaN for no rows.
  */
-export function stageLogPowerSd(
-  spectra: Float32Array,
-  nBins: number,
-  rows: ArrayLike<number>,
-  first: number,
-  last: number,
-  cov: ArrayLike<number>,
-): number {
+export function stageLogPowerSd(spectra: Float32Array, nBins: number, rows: ArrayLike<number>, first: number, last: number, cov: ArrayLike<number>): number {
   const n = rows.length;
   if (n === 0) return NaN;
   const shape = new Float64Array(nBins);

@@ -47,11 +47,7 @@ export interface NarrowSpike {
 }
 
 /** All narrow spikes of one spectrum, strongest first. */
-export function findNarrowSpikes(
-  freqsHz: ArrayLike<number>,
-  power: ArrayLike<number>,
-  options: NarrowSpikeOptions = DEFAULT_NARROW_SPIKE,
-): NarrowSpike[] {
+export function findNarrowSpikes(freqsHz: ArrayLike<number>, power: ArrayLike<number>, options: NarrowSpikeOptions = DEFAULT_NARROW_SPIKE): NarrowSpike[] {
   const n = freqsHz.length;
   if (power.length !== n) throw new QualityInputError(`freqsHz has ${n} bins, power ${power.length}`);
   const out: NarrowSpike[] = [];
@@ -111,7 +107,11 @@ export function narrowSpikes(
   const base = { ...cell, metric: 'narrow-spike' as const, spikes };
   if (spikes.length === 0) return { ...base, value: 0, flagged: false, reason: null, severity: 0 };
   const top = spikes[0];
-  const where = spikes.slice(0, 3).map((s) => `${s.freqHz.toFixed(2)} Hz`).join(', ') + (spikes.length > 3 ? ` and ${spikes.length - 3} more` : '');
+  const where =
+    spikes
+      .slice(0, 3)
+      .map((s) => `${s.freqHz.toFixed(2)} Hz`)
+      .join(', ') + (spikes.length > 3 ? ` and ${spikes.length - 3} more` : '');
   const reason =
     `narrow spike${spikes.length > 1 ? 's' : ''} at ${where}: largest ${Math.pow(10, top.excessLog10).toFixed(1)}× ` +
     `its ±${options.neighbourhoodHz} Hz neighbourhood median, ${top.widthHz.toFixed(2)} Hz wide at half height ` +

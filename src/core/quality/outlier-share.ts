@@ -24,18 +24,19 @@ const RULES = ['muscle-outlier', 'broadband-outlier'] as const;
  * than chance would: real artefacts, or a scatter the rule does not expect — it may be the rule,
  * not the data. nJudged < 5: the rule did not run (value null).
  */
-export function outlierShare(
-  cell: Cell,
-  nJudged: number,
-  rejectedByReason: Readonly<Record<string, number>>,
-  options: OutlierShareOptions,
-): QualityRow {
+export function outlierShare(cell: Cell, nJudged: number, rejectedByReason: Readonly<Record<string, number>>, options: OutlierShareOptions): QualityRow {
   if (!Number.isInteger(nJudged) || nJudged < 0) throw new QualityInputError(`invalid nJudged: ${nJudged}`);
   const alpha = options.alpha ?? DEFAULT_OUTLIER_SHARE_ALPHA;
   if (!(alpha > 0 && alpha < 1)) throw new QualityInputError(`invalid alpha: ${alpha}`);
   const base = { ...cell, metric: 'outlier-share' as const };
   if (nJudged < MIN_OUTLIER_GROUP) {
-    return { ...base, value: null, flagged: false, reason: `only ${nJudged} epochs passed the time-domain checks: the outlier rules need ${MIN_OUTLIER_GROUP}`, severity: 0 };
+    return {
+      ...base,
+      value: null,
+      flagged: false,
+      reason: `only ${nJudged} epochs passed the time-domain checks: the outlier rules need ${MIN_OUTLIER_GROUP}`,
+      severity: 0,
+    };
   }
   const p = outlierRate(options.outlierZ);
   let removed = 0;

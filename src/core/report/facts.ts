@@ -14,7 +14,14 @@ export interface IngestParameterFacts {
   bipolarPairs: string[];
   rejection: { maxPeakToPeakUv: number; flatSdUv: number; flatRunS: number; outlierZ: number; broadbandHz: [number, number]; muscleHz: [number, number] };
   minEpochs: number;
-  fit: { fitRangeHz: [number, number]; aperiodicForm?: string; maxPeaks?: number; peakWidthHz?: [number, number]; peakMinHeight?: number; peakThresholdSd?: number } | null;
+  fit: {
+    fitRangeHz: [number, number];
+    aperiodicForm?: string;
+    maxPeaks?: number;
+    peakWidthHz?: [number, number];
+    peakMinHeight?: number;
+    peakThresholdSd?: number;
+  } | null;
   /** the multitaper estimate's NW and K, null when the run stored Welch only */
   multitaper: { nw: number; k: number } | null;
 }

@@ -1,4 +1,13 @@
 /** Methods reports of compare and band-check results (pure; Node gathers the facts in src/analysis/report-facts.ts). */
 export { methodsReport, type MethodsReport, type MethodsParameters, type ReportableResult } from './methods.ts';
-export { ingestParameterFacts, ledgerCounts, ReportInputError, type DatabaseFacts, type IngestParameterFacts, type LedgerCounts, type StageEpochCounts, type WarningFacts } from './facts.ts';
+export {
+  ingestParameterFacts,
+  ledgerCounts,
+  ReportInputError,
+  type DatabaseFacts,
+  type IngestParameterFacts,
+  type LedgerCounts,
+  type StageEpochCounts,
+  type WarningFacts,
+} from './facts.ts';
 export { REFERENCE_LIST, type ReferenceKey } from './references.ts';

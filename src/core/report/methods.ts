@@ -14,12 +14,14 @@ import type { ScalarTest } from '../verdict/scalar-test.ts';
 import { fmt } from '../verdict/rules.ts';
 import { ingestParameterFacts, ReportInputError, type DatabaseFacts, type IngestParameterFacts, type LedgerCounts } from './facts.ts';
 import { REFERENCE_LIST, type ReferenceKey } from './references.ts';
-import { referenceKey } from '../montage/labels.ts';
+import { derivationText, warningText } from './data-text.ts';
 import { outlierRate } from '../quality/outlier-limit.ts';
 import { partParagraph } from '../confirmation/methods-text.ts';
 import type { PartFields } from '../confirmation/stamp.ts';
 
-export type ReportableResult = (CompareResult | BandCheckResult) & { database?: { file: string; runId: string; toolVersion: string; ingestParameters: unknown; runFinished?: boolean } } & PartFields;
+export type ReportableResult = (CompareResult | BandCheckResult) & {
+  database?: { file: string; runId: string; toolVersion: string; ingestParameters: unknown; runFinished?: boolean };
+} & PartFields;
 
 export interface MethodsParameters {
   kind: 'compare' | 'band-check';
@@ -71,17 +73,23 @@ const STATISTIC_WORDS: Record<string, string> = {
 };
 
 function designText(c: Contrast, n: Record<string, number>, refs: Set<ReferenceKey>): string {
-  const sizes = Object.entries(n).map(([k, v]) => `${k} n = ${v}`).join(', ');
+  const sizes = Object.entries(n)
+    .map(([k, v]) => `${k} n = ${v}`)
+    .join(', ');
   let s: string;
-  if (c.design === 'groups') s = `Two independent groups were compared, taken from the participants column "${c.groupColumn}": ${c.groups![0]} and ${c.groups![1]} (${sizes}); differences are ${c.groups![1]} minus ${c.groups![0]}.`;
-  else if (c.design === 'paired' && c.stages) s = `Stages ${c.stages[0]} and ${c.stages[1]} were compared within subjects (${sizes}); differences are ${c.stages[1]} minus ${c.stages[0]}, permuted by sign flips of the differences.`;
-  else if (c.design === 'paired') s = `Sessions ${c.sessions![0]} and ${c.sessions![1]} were compared within subjects (${sizes}); differences are session ${c.sessions![1]} minus session ${c.sessions![0]}, permuted by sign flips of the differences.`;
+  if (c.design === 'groups')
+    s = `Two independent groups were compared, taken from the participants column "${c.groupColumn}": ${c.groups![0]} and ${c.groups![1]} (${sizes}); differences are ${c.groups![1]} minus ${c.groups![0]}.`;
+  else if (c.design === 'paired' && c.stages)
+    s = `Stages ${c.stages[0]} and ${c.stages[1]} were compared within subjects (${sizes}); differences are ${c.stages[1]} minus ${c.stages[0]}, permuted by sign flips of the differences.`;
+  else if (c.design === 'paired')
+    s = `Sessions ${c.sessions![0]} and ${c.sessions![1]} were compared within subjects (${sizes}); differences are session ${c.sessions![1]} minus session ${c.sessions![0]}, permuted by sign flips of the differences.`;
   else s = `The measure was correlated with the participants column "${c.covariate}" (${sizes}); the covariate was permuted across subjects.`;
   if (c.nuisance.length > 0) {
     refs.add('freedman1983');
     refs.add('winkler2014');
   }
-  if (c.nuisance.length > 0) s += ` The analysis adjusted for ${list(c.nuisance.map((x) => `"${x}"`))} in a linear model, with permutation of the reduced model's residuals (Freedman & Lane 1983; Winkler et al. 2014).`;
+  if (c.nuisance.length > 0)
+    s += ` The analysis adjusted for ${list(c.nuisance.map((x) => `"${x}"`))} in a linear model, with permutation of the reduced model's residuals (Freedman & Lane 1983; Winkler et al. 2014).`;
   if (c.session !== undefined) s += ` Session ${c.session} was used.`;
   return s;
 }
@@ -100,13 +108,15 @@ function spectralSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseFa
     ? `${facts.recordings} recordings (sampling rates ${facts.samplingRatesHz.join(', ')} Hz; ${facts.channelsPerRecording.min === facts.channelsPerRecording.max ? facts.channelsPerRecording.min : `${facts.channelsPerRecording.min}–${facts.channelsPerRecording.max}`} channels each) were processed by bandwise ${facts.toolVersion} (ingest run ${facts.runId}, database ${facts.file}). `
     : '';
   // a channel sampled below 2·maxFreqHz is stored, banded and fitted up to its own Nyquist frequency
-  const slow = facts && facts.samplingRatesHz.some((fs) => fs / 2 < f.maxFreqHz) ? ', each channel at most up to its own Nyquist frequency (half its sampling rate)' : '';
+  const slow =
+    facts && facts.samplingRatesHz.some((fs) => fs / 2 < f.maxFreqHz) ? ', each channel at most up to its own Nyquist frequency (half its sampling rate)' : '';
   const refsText = f.references.map((r) => REFERENCE_WORDS[r] ?? r).join('; ');
   const bipolar = f.bipolarPairs.length ? ` (bipolar pairs ${f.bipolarPairs.join(', ')})` : '';
   let avg: string;
   if (c.averaging === 'median') {
     refs.add('wilson1931');
-    avg = 'the median across clean epochs, divided by the median of χ²ν/ν (Wilson & Hilferty 1931 approximation, ν the equivalent degrees of freedom of one epoch) so that it estimates the same density as the mean';
+    avg =
+      'the median across clean epochs, divided by the median of χ²ν/ν (Wilson & Hilferty 1931 approximation, ν the equivalent degrees of freedom of one epoch) so that it estimates the same density as the mean';
   } else avg = 'the mean across clean epochs';
   return (
     `${recs}Sleep was scored in ${f.epochS}-s epochs with the AASM stages W, N1, N2, N3 and R. ` +
@@ -128,59 +138,15 @@ function estimatorText(f: IngestParameterFacts, c: Contrast, refs: Set<Reference
   const { nw, k } = f.multitaper;
   return (
     `This analysis used the multitaper estimate stored beside Welch's (Thomson 1982): on the same segments and frequency grid, each segment's mean removed and its density the equally weighted mean of the eigenspectra of K = ${k} discrete prolate spheroidal (Slepian) tapers with time-half-bandwidth NW = ${g3(nw)} (computed as eigenvectors of the tridiagonal matrix of Percival & Walden 1993), ` +
-    `a frequency resolution 2W = 2NW/T = ${g3((2 * nw) / f.segmentS)} Hz; segments and epochs were averaged as for Welch's estimate${c.averaging === 'median' ? ', the median corrected with the multitaper estimate\'s equivalent degrees of freedom (2K per segment, less for overlapping segments)' : ''}; epoch rejection used the Welch spectra. `
+    `a frequency resolution 2W = 2NW/T = ${g3((2 * nw) / f.segmentS)} Hz; segments and epochs were averaged as for Welch's estimate${c.averaging === 'median' ? ", the median corrected with the multitaper estimate's equivalent degrees of freedom (2K per segment, less for overlapping segments)" : ''}; epoch rejection used the Welch spectra. `
   );
 }
 
 // How the analysis' reference was obtained from channels recorded as derivations (planReferences, src/core/montage/reference.ts).
-const DERIVATION_RULES: Record<string, string> = {
-  recorded: "The 'recorded' spectra of a channel were pooled only where every recording named the same reference for it.",
-  'linked-mastoids': 'A channel recorded against both mastoids (a label such as C3-M1M2) was used as recorded; a channel recorded against a common reference was referred to the mean of M1 and M2.',
-  'contralateral-mastoid': 'A channel recorded against the contralateral mastoid (the AASM derivations, e.g. C3-M2 and C4-M1) was used as recorded; a channel recorded against a common reference was referred to the contralateral mastoid (left − M2, right − M1).',
-  average: 'The common average was computed only in recordings whose EEG channels share one reference.',
-  bipolar: 'A scalp-to-scalp derivation stored in a file (e.g. Pz-Oz) was used as recorded; other pairs were computed as the difference of two channels recorded against the same reference.',
-};
-
-/** The derivations the analysed channels were recorded as (from the EDF labels) and how the reference was obtained from them. */
-function derivationText(facts: DatabaseFacts | null, c: Contrast, channels: string[]): string | null {
-  const all = facts?.recordedDerivations;
-  if (!all || all.length === 0) return null;
-  const wanted = new Set(channels);
-  // per channel: reference (one spelling) → recordings
-  const byChannel = new Map<string, Map<string, number>>();
-  for (const d of all) {
-    if (wanted.size > 0 && !wanted.has(d.channel)) continue;
-    const ref = referenceKey(d.referenceElectrode) ?? 'the common reference (none named in the label)';
-    if (!byChannel.has(d.channel)) byChannel.set(d.channel, new Map());
-    const refs = byChannel.get(d.channel)!;
-    refs.set(ref, (refs.get(ref) ?? 0) + d.recordings);
-  }
-  if (byChannel.size === 0) return null;
-  const parts = [...byChannel].map(([ch, refs]) => `${ch} against ${list([...refs].map(([r, n]) => `${r} in ${n} recording${n === 1 ? '' : 's'}`))}`);
-  return `EEG channels as recorded (the reference named in each EDF channel label): ${parts.join('; ')}. ${DERIVATION_RULES[c.reference] ?? ''}`.trim();
-}
-
 /** The channel names an analysis used: the contrast's list, or the result's (none for an average over all: every channel). */
 function analysedChannels(c: Contrast, resultChannels: string[]): string[] {
   if (c.channels !== 'all') return c.channels;
   return c.channelAverage ? [] : resultChannels;
-}
-
-/** What the ingest kept in its warnings table (per step) and how many recordings are partial (recordings.status). */
-function warningText(facts: DatabaseFacts): string {
-  const { byStep, recordingsByStatus } = facts.warnings;
-  const total = Object.values(byStep).reduce((a, b) => a + b, 0);
-  const partial = Object.entries(recordingsByStatus).filter(([k]) => k.startsWith('partial')).sort();
-  const nPartial = partial.reduce((a, [, v]) => a + v, 0);
-  const withWarnings = recordingsByStatus['ok-with-warnings'] ?? 0;
-  if (total === 0 && nPartial === 0) return 'The ingest kept no warnings: every recording was read whole, with its scoring complete.';
-  const steps = Object.entries(byStep).sort().map(([k, v]) => `${k} ${v}`).join(', ');
-  const are = (n: number) => (n === 1 ? 'is' : 'are');
-  let s = `The ingest kept ${total} warning${total === 1 ? '' : 's'} (by step: ${steps}; listed in the database's warnings table). `;
-  s += nPartial > 0
-    ? `Of the ${facts.recordings} recordings, ${nPartial} ${are(nPartial)} partial (${partial.map(([k, v]) => `${k} ${v}`).join(', ')}; partial data lack part of the signal, partial scoring leaves part of the night unscored)`
-    : `None of the ${facts.recordings} recordings is partial`;
-  return s + (withWarnings > 0 ? ` and ${withWarnings} ${are(withWarnings)} complete with warnings.` : '.');
 }
 
 const stagesOf = (c: Contrast): string[] => (c.design === 'paired' && c.stages ? [...c.stages] : [c.stage]);
@@ -198,8 +164,13 @@ function rejectionSection(f: IngestParameterFacts, c: Contrast, facts: DatabaseF
   if (facts && facts.epochs.length > 0) {
     const used = facts.epochs.filter((e) => stagesOf(c).includes(e.stage));
     const all = facts.epochs.reduce((a, e) => ({ n: a.n + e.channelEpochs, k: a.k + e.rejected }), { n: 0, k: 0 });
-    const reasons = (e: { byReason: Record<string, number> }) => Object.entries(e.byReason).sort().map(([k, v]) => `${k} ${v}`).join(', ') || 'none';
-    for (const e of used) s += ` In ${e.stage}, ${e.rejected} of ${e.channelEpochs} channel-epochs (${pct(e.rejected, e.channelEpochs)}) were rejected (${reasons(e)}; chance under Gaussian scatter: at most ${g3(rate * e.channelEpochs)} per outlier rule).`;
+    const reasons = (e: { byReason: Record<string, number> }) =>
+      Object.entries(e.byReason)
+        .sort()
+        .map(([k, v]) => `${k} ${v}`)
+        .join(', ') || 'none';
+    for (const e of used)
+      s += ` In ${e.stage}, ${e.rejected} of ${e.channelEpochs} channel-epochs (${pct(e.rejected, e.channelEpochs)}) were rejected (${reasons(e)}; chance under Gaussian scatter: at most ${g3(rate * e.channelEpochs)} per outlier rule).`;
     s += ` Over all stages, ${all.k} of ${all.n} channel-epochs (${pct(all.k, all.n)}) were rejected.`;
   }
   return s;
@@ -209,7 +180,12 @@ function aperiodicSection(f: IngestParameterFacts, facts: DatabaseFacts | null, 
   if (!f.fit) return usesFit ? 'No aperiodic fit was stored by the ingest run.' : null;
   refs.add('donoghue2020');
   const ranges = facts?.fitRangesHz ?? [];
-  const stated = ranges.length === 1 ? `${hz(ranges[0])} for every subject (as stored)` : ranges.length > 1 ? `ranges ${ranges.map(hz).join(', ')} (several stored)` : hz(f.fit.fitRangeHz);
+  const stated =
+    ranges.length === 1
+      ? `${hz(ranges[0])} for every subject (as stored)`
+      : ranges.length > 1
+        ? `ranges ${ranges.map(hz).join(', ')} (several stored)`
+        : hz(f.fit.fitRangeHz);
   let s =
     `Each stored stage spectrum was decomposed into an aperiodic component and Gaussian peaks (Donoghue et al. 2020): log10 P(f) = b − log10(k + f^χ) + Σ h·exp(−(f − c)²/(2w²)), with offset b, exponent χ and knee k ` +
     `(${f.fit.aperiodicForm === 'knee' ? 'knee fitted' : 'k = 0, a plain power law'}), fitted over ${stated}` +
@@ -223,12 +199,21 @@ function aperiodicSection(f: IngestParameterFacts, facts: DatabaseFacts | null, 
 }
 
 function exclusionSection(ex: Exclusion[], n: Record<string, number>): string {
-  const sizes = Object.entries(n).map(([k, v]) => `${k} ${v}`).join(', ');
+  const sizes = Object.entries(n)
+    .map(([k, v]) => `${k} ${v}`)
+    .join(', ');
   const line = (e: Exclusion) => `- ${e.subject}${e.channel ? ` (${e.channel}${e.stage ? `, ${e.stage}` : ''})` : e.stage ? ` (${e.stage})` : ''}: ${e.reason}`;
   const out = ex.filter((e) => !e.subjectStays);
   const stays = ex.filter((e) => e.subjectStays);
-  const parts = [out.length === 0 ? `No subject was left out (analysed: ${sizes}).` : `${out.length} subject${out.length === 1 ? ' was' : 's were'} left out (analysed: ${sizes}):\n\n${out.map(line).join('\n')}`];
-  if (stays.length > 0) parts.push(`Excluded channels were treated as missing data, the subject kept for its other channels (each point's statistic uses the subjects with a value there):\n\n${stays.map(line).join('\n')}`);
+  const parts = [
+    out.length === 0
+      ? `No subject was left out (analysed: ${sizes}).`
+      : `${out.length} subject${out.length === 1 ? ' was' : 's were'} left out (analysed: ${sizes}):\n\n${out.map(line).join('\n')}`,
+  ];
+  if (stays.length > 0)
+    parts.push(
+      `Excluded channels were treated as missing data, the subject kept for its other channels (each point's statistic uses the subjects with a value there):\n\n${stays.map(line).join('\n')}`,
+    );
   return parts.join('\n\n');
 }
 
@@ -279,14 +264,35 @@ function compareStatistics(r: CompareResult, refs: Set<ReferenceKey>): { text: s
     `The measure was ${r.measure}, over ${c.fminHz}–${c.fmaxHz} Hz in ${channelText(c, s.channels.length === 1 && c.channelAverage ? [s.channels[0]] : s.channels)}. ` +
     `The point statistic was ${STATISTIC_WORDS[s.statistic] ?? s.statistic} at every ${s.channels.length > 1 ? 'channel × frequency point' : 'frequency point'}. ${corr} ` +
     `Effect sizes are ${s.effect.kind === 'hedges-g' ? "Hedges' g with a large-sample interval (Hedges & Olkin 1985)" : 'correlations with a Fisher z interval (Fisher 1921)'} at the ${g3(s.effect.level * 100)} % level.`;
-  const json = { statistic: s.statistic, correction: c.correction, clusterP: c.clusterP, threshold: s.threshold, clusterMeasure: s.clusterMeasure, tfce: s.tfce ? { E: s.tfce.E, H: s.tfce.H, dh: s.tfce.dh } : null, permutations: s.permutations, exact: s.exact, seed: s.seed, pValueRule: s.pValueRule, effectSize: s.effect.kind, confidenceLevel: s.effect.level, channels: s.channels, frequencyAdjacency: s.frequencyAdjacency, spatialNeighbours: s.channelNeighbours !== null };
+  const json = {
+    statistic: s.statistic,
+    correction: c.correction,
+    clusterP: c.clusterP,
+    threshold: s.threshold,
+    clusterMeasure: s.clusterMeasure,
+    tfce: s.tfce ? { E: s.tfce.E, H: s.tfce.H, dh: s.tfce.dh } : null,
+    permutations: s.permutations,
+    exact: s.exact,
+    seed: s.seed,
+    pValueRule: s.pValueRule,
+    effectSize: s.effect.kind,
+    confidenceLevel: s.effect.level,
+    channels: s.channels,
+    frequencyAdjacency: s.frequencyAdjacency,
+    spatialNeighbours: s.channelNeighbours !== null,
+  };
   return { text, json };
 }
 
 function compareResults(r: CompareResult): string {
   const sig = r.clusters.filter((k) => k.p < 0.05);
   if (r.clusters.length === 0) return 'No cluster formed.';
-  const lines = r.clusters.slice(0, 10).map((k) => `- ${k.sign > 0 ? 'positive' : 'negative'} cluster (${signText(r.contrast, k.sign)}), ${k.fminHz}–${k.fmaxHz} Hz, channels ${k.channels.join(', ')}: ${r.contrast.correction === 'cluster-size' ? 'size' : 'mass'} ${g3(r.contrast.correction === 'cluster-size' ? k.size : k.mass)}, p = ${g3(k.p)}`);
+  const lines = r.clusters
+    .slice(0, 10)
+    .map(
+      (k) =>
+        `- ${k.sign > 0 ? 'positive' : 'negative'} cluster (${signText(r.contrast, k.sign)}), ${k.fminHz}–${k.fmaxHz} Hz, channels ${k.channels.join(', ')}: ${r.contrast.correction === 'cluster-size' ? 'size' : 'mass'} ${g3(r.contrast.correction === 'cluster-size' ? k.size : k.mass)}, p = ${g3(k.p)}`,
+    );
   return `${r.clusters.length} cluster${r.clusters.length === 1 ? '' : 's'} formed, ${sig.length} with p < 0.05${r.clusters.length > 10 ? ' (the 10 smallest p shown)' : ''}:\n\n${lines.join('\n')}`;
 }
 
@@ -294,7 +300,9 @@ function testLine(name: string, t: ScalarTest | null | undefined, missing = 'no 
   if (!t) return `- ${name}: not computed (${missing})`;
   const e = t.effectKind === 'hedges-g' ? 'g' : t.effectKind;
   const d = t.difference !== null ? `, difference ${g3(t.difference)}` : '';
-  return `- ${name} — ${t.measure}: ${e} = ${fmt(t.effect)} [${fmt(t.ciLow)}, ${fmt(t.ciHigh)}]${d}, t = ${fmt(t.t)}, p = ${g3(t.p)} (${Object.entries(t.n).map(([k, v]) => `${k} ${v}`).join(', ')})`;
+  return `- ${name} — ${t.measure}: ${e} = ${fmt(t.effect)} [${fmt(t.ciLow)}, ${fmt(t.ciHigh)}]${d}, t = ${fmt(t.t)}, p = ${g3(t.p)} (${Object.entries(t.n)
+    .map(([k, v]) => `${k} ${v}`)
+    .join(', ')})`;
 }
 
 function bandStatistics(r: BandCheckResult, refs: Set<ReferenceKey>): { text: string; json: Record<string, unknown> } {
@@ -313,12 +321,40 @@ function bandStatistics(r: BandCheckResult, refs: Set<ReferenceKey>): { text: st
       ? `The band was individual: centred on each subject's own fitted peak in ${hz(r.individual.searchHz)} (the median over the channels of each channel's highest fitted peak there) with a half-width of ${g3(r.individual.halfWidthHz)} Hz, the flanks following it; a subject without a fitted peak there kept the fixed band. ${r.individual.note} `
       : '') +
     `Each of the following was computed per subject and tested on its own with ${STATISTIC_WORDS[t.raw.statistic] ?? t.raw.statistic} and a two-tailed permutation test of |t| (${permutationText(t.raw, relabellingWord(c))}; p = (1 + number of permutations with |t*| ≥ |t|)/(1 + permutations), Phipson & Smyth 2010): ` +
-    `log10 band power (${c.bandMethod === 'mean' ? 'mean density' : 'trapezoid integral'}); the aperiodic offset and exponent; the residual averaged over the band's bins (periodic power); the height of the highest fitted peak in the band (0 where none); the centre frequency and the full width at half maximum of that peak (Hz; mean over the channels with a peak in the band; subjects without one on any channel left out of these two tests only${r.peakCenter ? `: ${Object.entries(r.peakCenter.withoutPeak).map(([k, v]) => `${k} ${v}`).join(', ')}` : ''}); the aperiodic component averaged over the band; ` +
+    `log10 band power (${c.bandMethod === 'mean' ? 'mean density' : 'trapezoid integral'}); the aperiodic offset and exponent; the residual averaged over the band's bins (periodic power); the height of the highest fitted peak in the band (0 where none); the centre frequency and the full width at half maximum of that peak (Hz; mean over the channels with a peak in the band; subjects without one on any channel left out of these two tests only${
+      r.peakCenter
+        ? `: ${Object.entries(r.peakCenter.withoutPeak)
+            .map(([k, v]) => `${k} ${v}`)
+            .join(', ')}`
+        : ''
+    }); the aperiodic component averaged over the band; ` +
     `log10 power in flanks of ${r.flanks.widthHz} Hz just below (${L ? `${L.loHz}–${L.hiHz} Hz` : 'none'}) and above (${U ? `${U.loHz}–${U.hiHz} Hz` : 'none'}) the band${r.flanks.note ? ` (${r.flanks.note})` : ''} and their difference (upper minus lower); and log10 relative band power (band integral over the integral across ${hz(r.normalisation.denominatorHz)}). ` +
     `The verdict rests on ${r.family.length === 4 ? 'four tests — the periodic power, the peak centre (a shift of the peak is a band-specific change), the offset and the exponent —' : 'the periodic, offset and exponent tests,'} Bonferroni-corrected at α = ${r.alpha} (each passes at p ≤ ${g3(r.alpha / r.family.length)}); the aperiodic level in the band, the flanks and their difference tell the kinds of a passing aperiodic effect apart (rules in the bandwise README). ` +
     `To show how far the effect extends, log10 PSD over ${c.fminHz}–${c.fmaxHz} Hz was tested at every frequency with cluster-based permutation (Maris & Oostenveld 2007; |t| above ${g3(fw.threshold.t)}, two-tailed p = ${c.clusterP} with ${fw.threshold.df} degrees of freedom; ${pRule(t.raw)}). ` +
     `Effect sizes are ${t.raw.effectKind === 'hedges-g' ? "Hedges' g with a large-sample interval (Hedges & Olkin 1985)" : 'correlations with a Fisher z interval (Fisher 1921)'} at the ${g3(t.raw.level * 100)} % level.`;
-  const json = { statistic: t.raw.statistic, permutations: t.raw.permutations, exact: t.raw.exact, seed: r.seed, alpha: r.alpha, decisionCorrection: 'bonferroni', family: r.family, flanks: r.flanks, relativeDenominatorHz: r.normalisation.denominatorHz, frequencyWise: { correction: c.correction, clusterP: c.clusterP, threshold: fw.threshold, clusterMeasure: fw.clusterMeasure, pValueRule: fw.pValueRule, fminHz: c.fminHz, fmaxHz: c.fmaxHz }, effectSize: t.raw.effectKind, confidenceLevel: t.raw.level, channels: r.channels };
+  const json = {
+    statistic: t.raw.statistic,
+    permutations: t.raw.permutations,
+    exact: t.raw.exact,
+    seed: r.seed,
+    alpha: r.alpha,
+    decisionCorrection: 'bonferroni',
+    family: r.family,
+    flanks: r.flanks,
+    relativeDenominatorHz: r.normalisation.denominatorHz,
+    frequencyWise: {
+      correction: c.correction,
+      clusterP: c.clusterP,
+      threshold: fw.threshold,
+      clusterMeasure: fw.clusterMeasure,
+      pValueRule: fw.pValueRule,
+      fminHz: c.fminHz,
+      fmaxHz: c.fmaxHz,
+    },
+    effectSize: t.raw.effectKind,
+    confidenceLevel: t.raw.level,
+    channels: r.channels,
+  };
   return { text, json };
 }
 
@@ -338,8 +374,12 @@ function bandResults(r: BandCheckResult): string {
     testLine('flank difference', t.tilt),
     testLine('relative band power', t.relative),
   ];
-  const presence = Object.entries(r.peakPresence).map(([k, v]) => `${k} ${(100 * v).toFixed(0)} %`).join(', ');
-  const centres = r.peakCenter?.means.map((m) => `${m.name} ${m.centerHz.toFixed(2)} Hz (width ${m.widthHz.toFixed(2)} Hz${m.n === null ? '' : `, n = ${m.n}`})`).join(', ');
+  const presence = Object.entries(r.peakPresence)
+    .map(([k, v]) => `${k} ${(100 * v).toFixed(0)} %`)
+    .join(', ');
+  const centres = r.peakCenter?.means
+    .map((m) => `${m.name} ${m.centerHz.toFixed(2)} Hz (width ${m.widthHz.toFixed(2)} Hz${m.n === null ? '' : `, n = ${m.n}`})`)
+    .join(', ');
   const kind = r.periodicKind ? ` Periodic change: ${r.periodicKind}.` : '';
   return (
     `Verdict: **${r.verdict}** (rule ${r.rule}).${kind} ${r.sentence}\n\n${lines.join('\n')}\n\n` +
@@ -352,13 +392,17 @@ function bandResults(r: BandCheckResult): string {
 
 function ledgerSection(l: LedgerCounts | null): string {
   if (!l) return 'No ledger was given, so the number of analyses run on this database is not known.';
-  const kinds = Object.entries(l.byKind).map(([k, v]) => `${v} ${k}`).join(', ');
+  const kinds = Object.entries(l.byKind)
+    .map(([k, v]) => `${v} ${k}`)
+    .join(', ');
   return `The ledger of this database records ${l.analyses} analys${l.analyses === 1 ? 'is' : 'es'} (${kinds || 'none'}), of which ${l.significant} had p < 0.05. A result chosen from many analyses overstates the evidence; weigh this one against that count.`;
 }
 
 /** The contrast's keys and values, one per line, as set for this analysis. */
 function contrastList(c: Contrast): string {
-  return Object.entries(c).map(([k, v]) => `- ${k}: ${typeof v === 'object' ? JSON.stringify(v) : String(v)}`).join('\n');
+  return Object.entries(c)
+    .map(([k, v]) => `- ${k}: ${typeof v === 'object' ? JSON.stringify(v) : String(v)}`)
+    .join('\n');
 }
 
 export function methodsReport(result: ReportableResult, facts: DatabaseFacts | null, ledger: LedgerCounts | null): MethodsReport {
@@ -412,7 +456,9 @@ export function methodsReport(result: ReportableResult, facts: DatabaseFacts | n
     exclusions: result.exclusions,
     statistics: stats.json,
     ledger,
-    ...(facts?.recordedDerivations ? { recordedDerivations: facts.recordedDerivations.filter((d) => channels.length === 0 || channels.includes(d.channel)) } : {}),
+    ...(facts?.recordedDerivations
+      ? { recordedDerivations: facts.recordedDerivations.filter((d) => channels.length === 0 || channels.includes(d.channel)) }
+      : {}),
     ...(result.part ? { split: { part: result.part, split: result.split, blinded: result.blinded, plan: result.plan } } : {}),
     references: keys.map((k) => REFERENCE_LIST[k]),
     note: RESEARCH_NOTE,

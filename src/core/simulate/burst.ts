@@ -59,15 +59,7 @@ export function expectedBurstDensity(fHz: number, train: BurstTrain): number {
 }
 
 /** Adds one burst to x starting at sample `start` (samples past the end of x are dropped). */
-export function addBurst(
-  x: Float64Array,
-  start: number,
-  durationS: number,
-  fsHz: number,
-  amplitudeUv: number,
-  frequencyHz: number,
-  phase: number,
-): void {
+export function addBurst(x: Float64Array, start: number, durationS: number, fsHz: number, amplitudeUv: number, frequencyHz: number, phase: number): void {
   const n = Math.round(durationS * fsHz);
   const end = Math.min(x.length, start + n);
   const w = (2 * Math.PI * frequencyHz) / fsHz;

@@ -1,7 +1,20 @@
 /** Synthetic sleep EEG with known ground truth (pure; the Node glue is src/simulation/). */
 export type {
-  ArtifactSpec, BackgroundSource, BackgroundSpec, BurstRhythm, CovariateSpec, EffectSpec, GroupSpec,
-  HypnogramSpec, NarrowbandRhythm, ReferenceSpec, RhythmSpec, Scenario, ScoredStage, StageAperiodic, VariabilitySpec,
+  ArtifactSpec,
+  BackgroundSource,
+  BackgroundSpec,
+  BurstRhythm,
+  CovariateSpec,
+  EffectSpec,
+  GroupSpec,
+  HypnogramSpec,
+  NarrowbandRhythm,
+  ReferenceSpec,
+  RhythmSpec,
+  Scenario,
+  ScoredStage,
+  StageAperiodic,
+  VariabilitySpec,
 } from './scenario.ts';
 export { ScenarioError } from './scenario.ts';
 export { checkScenario } from './validate.ts';
@@ -10,8 +23,14 @@ export { planNight, isMovementEpoch, type NightPlan, type PlannedRhythm, type Pl
 export { NightGenerator, generateEpoch } from './generate.ts';
 export { groundTruth, MODEL_TEXT, type CohortTruth } from './ground-truth.ts';
 export {
-  backgroundDensity, backgroundWeight, channelCoefficients, expectedDensity, rhythmDensity,
-  subjectTruth, type PeakTruth, type SubjectTruth,
+  backgroundDensity,
+  backgroundWeight,
+  channelCoefficients,
+  expectedDensity,
+  rhythmDensity,
+  subjectTruth,
+  type PeakTruth,
+  type SubjectTruth,
 } from './truth.ts';
 export { simulateSpectrum, gammaDeviate, type SpectrumParams } from './spectrum.ts';
 export { generateStages } from './hypnogram.ts';

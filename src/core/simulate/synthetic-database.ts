@@ -26,13 +26,70 @@ import { simulateSpectrum } from './spectrum.ts';
 
 /** 64 electrode names of the 10-10 system (ACNS guideline 2016), front to back. */
 export const TEN_TEN_64: readonly string[] = [
-  'Fp1', 'Fpz', 'Fp2', 'AF7', 'AF3', 'AFz', 'AF4', 'AF8',
-  'F7', 'F5', 'F3', 'F1', 'Fz', 'F2', 'F4', 'F6', 'F8',
-  'FT7', 'FC5', 'FC3', 'FC1', 'FCz', 'FC2', 'FC4', 'FC6', 'FT8',
-  'T7', 'C5', 'C3', 'C1', 'Cz', 'C2', 'C4', 'C6', 'T8',
-  'TP7', 'CP5', 'CP3', 'CP1', 'CPz', 'CP2', 'CP4', 'CP6', 'TP8',
-  'P7', 'P5', 'P3', 'P1', 'Pz', 'P2', 'P4', 'P6', 'P8',
-  'PO7', 'PO3', 'POz', 'PO4', 'PO8', 'O1', 'Oz', 'O2', 'TP9', 'TP10', 'Iz',
+  'Fp1',
+  'Fpz',
+  'Fp2',
+  'AF7',
+  'AF3',
+  'AFz',
+  'AF4',
+  'AF8',
+  'F7',
+  'F5',
+  'F3',
+  'F1',
+  'Fz',
+  'F2',
+  'F4',
+  'F6',
+  'F8',
+  'FT7',
+  'FC5',
+  'FC3',
+  'FC1',
+  'FCz',
+  'FC2',
+  'FC4',
+  'FC6',
+  'FT8',
+  'T7',
+  'C5',
+  'C3',
+  'C1',
+  'Cz',
+  'C2',
+  'C4',
+  'C6',
+  'T8',
+  'TP7',
+  'CP5',
+  'CP3',
+  'CP1',
+  'CPz',
+  'CP2',
+  'CP4',
+  'CP6',
+  'TP8',
+  'P7',
+  'P5',
+  'P3',
+  'P1',
+  'Pz',
+  'P2',
+  'P4',
+  'P6',
+  'P8',
+  'PO7',
+  'PO3',
+  'POz',
+  'PO4',
+  'PO8',
+  'O1',
+  'Oz',
+  'O2',
+  'TP9',
+  'TP10',
+  'Iz',
 ];
 
 export interface StageModel {
@@ -96,7 +153,8 @@ export function syntheticSpec(partial: Partial<SyntheticCohortSpec> & { channelC
   }
   if (!Number.isInteger(spec.recordings) || spec.recordings < 1) throw new RangeError(`recordings must be a whole number ≥ 1, got ${spec.recordings}`);
   if (!Number.isInteger(spec.nBins) || spec.nBins < 2) throw new RangeError(`nBins must be a whole number ≥ 2, got ${spec.nBins}`);
-  if (!(spec.freqStepHz > 0) || !(spec.freqStartHz >= 0)) throw new RangeError(`invalid frequency axis: start ${spec.freqStartHz} Hz, step ${spec.freqStepHz} Hz`);
+  if (!(spec.freqStepHz > 0) || !(spec.freqStartHz >= 0))
+    throw new RangeError(`invalid frequency axis: start ${spec.freqStartHz} Hz, step ${spec.freqStepHz} Hz`);
   if (spec.channels.length === 0 || spec.stages.length === 0) throw new RangeError('at least one channel and one stage are needed');
   return spec;
 }
@@ -170,7 +228,12 @@ export function drawRecording(spec: SyntheticCohortSpec, index: number): Synthet
       const peaks = model.peaks.map((p) =>
         spec.stages[s] === 'N2' && p.centerHz === 13 ? { ...p, height: p.height + spec.effect.sigmaHeightLog10 * inGroup2 } : p,
       );
-      const psd = simulateSpectrum({ aperiodic: { offset: offset[at], exponent: exponent[at], knee: 0 }, peaks }, freqs, 1.9 * spec.segmentsPerEpoch * nEpochs[s], rng);
+      const psd = simulateSpectrum(
+        { aperiodic: { offset: offset[at], exponent: exponent[at], knee: 0 }, peaks },
+        freqs,
+        1.9 * spec.segmentsPerEpoch * nEpochs[s],
+        rng,
+      );
       const base = at * nb;
       for (let k = 0; k < psd.length; k++) power[base + first + k] = psd[k];
     }

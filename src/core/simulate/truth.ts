@@ -121,7 +121,14 @@ export interface SubjectTruth {
   /** Peaks above the aperiodic part per stage and channel (heights below 0.005 left out). */
   peaks: Record<ScoredStage, Record<string, PeakTruth[]>>;
   /** The subject's rhythms; amplitudeUvByStage is the RMS (narrowband) or the envelope peak (bursts) at unit gain. */
-  rhythms: { name: string; kind: string; site: string; centerHz: number; amplitudeUvByStage: Record<ScoredStage, number>; perMinuteByStage?: Record<ScoredStage, number> }[];
+  rhythms: {
+    name: string;
+    kind: string;
+    site: string;
+    centerHz: number;
+    amplitudeUvByStage: Record<ScoredStage, number>;
+    perMinuteByStage?: Record<ScoredStage, number>;
+  }[];
   artifacts: (
     | { kind: 'mains'; frequencyHz: number; amplitudeUv: number; channels: string[] }
     | { kind: 'flat'; channel: string; valueUv: number; noiseSdUv: number }

@@ -83,7 +83,8 @@ export function checkScenario(s: Scenario): void {
     } else if (e.kind === 'rhythm-frequency') {
       const r = s.rhythms.find((x) => x.name === e.rhythm);
       if (!r) fail(`effects[${i}].rhythm`, e.rhythm, 'no such rhythm');
-      if (!(Number.isFinite(e.shiftHz) && r.centerHz + e.shiftHz > 0)) fail(`effects[${i}].shiftHz`, e.shiftHz, `the shifted centre ${r.centerHz} + shiftHz must be > 0 Hz`);
+      if (!(Number.isFinite(e.shiftHz) && r.centerHz + e.shiftHz > 0))
+        fail(`effects[${i}].shiftHz`, e.shiftHz, `the shifted centre ${r.centerHz} + shiftHz must be > 0 Hz`);
     }
   });
   s.artifacts.forEach((a, i) => {

@@ -277,9 +277,7 @@ function selectRange(freqsHz: ArrayLike<number>, power: ArrayLike<number>, lo: n
   }
   const n = first < 0 ? 0 : last - first + 1;
   if (n === 0 || freqsHz[0] > lo || freqsHz[freqsHz.length - 1] < hi) {
-    throw new SpectrumFitError(
-      `fitRangeHz: [${lo}, ${hi}] Hz is not covered by the frequencies ${freqsHz[0]}–${freqsHz[freqsHz.length - 1]} Hz`,
-    );
+    throw new SpectrumFitError(`fitRangeHz: [${lo}, ${hi}] Hz is not covered by the frequencies ${freqsHz[0]}–${freqsHz[freqsHz.length - 1]} Hz`);
   }
   if (n < 8) throw new SpectrumFitError(`fitRangeHz: only ${n} frequency bins in [${lo}, ${hi}] Hz (need at least 8)`);
   const freqs = new Float64Array(n);

@@ -69,12 +69,7 @@ export function parseBand(text: string): Band {
 }
 
 /** First and last bin index (inclusive) with loHz ≤ f ≤ hiHz, or null when no bin falls inside. */
-export function bandBins(
-  band: Band,
-  freqStartHz: number,
-  freqStepHz: number,
-  nBins: number,
-): { first: number; last: number } | null {
+export function bandBins(band: Band, freqStartHz: number, freqStepHz: number, nBins: number): { first: number; last: number } | null {
   const eps = 1e-9;
   const first = Math.max(0, Math.ceil((band.loHz - freqStartHz) / freqStepHz - eps));
   const last = Math.min(nBins - 1, Math.floor((band.hiHz - freqStartHz) / freqStepHz + eps));
@@ -96,13 +91,7 @@ export function trapezoid(psd: ArrayLike<number>, first: number, last: number, f
 }
 
 /** Band power of one spectrum; NaN when no bin lies inside the band. */
-export function bandPower(
-  psd: ArrayLike<number>,
-  band: Band,
-  freqStartHz: number,
-  freqStepHz: number,
-  method: BandMethod = 'mean',
-): number {
+export function bandPower(psd: ArrayLike<number>, band: Band, freqStartHz: number, freqStepHz: number, method: BandMethod = 'mean'): number {
   const bins = bandBins(band, freqStartHz, freqStepHz, psd.length);
   if (!bins) return NaN;
   return method === 'mean' ? meanDensity(psd, bins.first, bins.last) : trapezoid(psd, bins.first, bins.last, freqStepHz);
@@ -147,9 +136,7 @@ export class BandPowerTable {
 
   compute(psd: ArrayLike<number>, out: Float64Array | Float32Array): void {
     for (let b = 0; b < this.bands.length; b++) {
-      out[b] = this.method === 'mean'
-        ? meanDensity(psd, this.first[b], this.last[b])
-        : trapezoid(psd, this.first[b], this.last[b], this.freqStepHz);
+      out[b] = this.method === 'mean' ? meanDensity(psd, this.first[b], this.last[b]) : trapezoid(psd, this.first[b], this.last[b], this.freqStepHz);
     }
   }
 }

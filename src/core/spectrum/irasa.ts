@@ -144,7 +144,15 @@ export class Irasa {
       aperiodicPsd[k] = medianInPlace(pair);
       oscillatoryPsd[k] = totalPsd[k] - aperiodicPsd[k];
     }
-    return { freqsHz, totalPsd, aperiodicPsd, oscillatoryPsd, fit: this.fitPowerLaw(freqsHz, aperiodicPsd), maxFreqHz: this.maxFreqHz, nSegments: this.totalCount };
+    return {
+      freqsHz,
+      totalPsd,
+      aperiodicPsd,
+      oscillatoryPsd,
+      fit: this.fitPowerLaw(freqsHz, aperiodicPsd),
+      maxFreqHz: this.maxFreqHz,
+      nSegments: this.totalCount,
+    };
   }
 
   private fitPowerLaw(freqsHz: Float64Array, psd: Float64Array): IrasaFit {

@@ -172,7 +172,11 @@ export class Multitaper {
 }
 
 /** Multitaper PSD of a whole signal, segments averaged by their mean (as welch() with average 'mean'). */
-export function multitaper(x: ArrayLike<number>, fsHz: number, options: MultitaperOptions = {}): { freqsHz: Float64Array; psd: Float64Array; nSegments: number } {
+export function multitaper(
+  x: ArrayLike<number>,
+  fsHz: number,
+  options: MultitaperOptions = {},
+): { freqsHz: Float64Array; psd: Float64Array; nSegments: number } {
   const est = new Multitaper(fsHz, options);
   const psd = new Float64Array(est.nBins);
   const nSegments = est.mean(x, 0, x.length, psd);

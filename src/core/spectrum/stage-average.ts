@@ -143,13 +143,7 @@ export const DEFAULT_MIN_EPOCHS = 10;
  * Mean and median average of one stage's clean epochs. Returns null for no epochs; a stage with
  * fewer than minEpochs epochs is still averaged but flagged 'too-few-epochs'.
  */
-export function averageStage(
-  spectra: Float32Array,
-  nBins: number,
-  rows: ArrayLike<number>,
-  nu: number,
-  minEpochs = DEFAULT_MIN_EPOCHS,
-): StageAverage | null {
+export function averageStage(spectra: Float32Array, nBins: number, rows: ArrayLike<number>, nu: number, minEpochs = DEFAULT_MIN_EPOCHS): StageAverage | null {
   if (rows.length === 0) return null;
   const mean = new Float64Array(nBins);
   const median = new Float64Array(nBins);

@@ -85,12 +85,7 @@ export class Welch {
    * Calls onSegment with the one-sided density of each segment of x[start … start+length).
    * The array handed out is reused for the next segment. Returns the number of segments.
    */
-  forEachSegment(
-    x: ArrayLike<number>,
-    start: number,
-    length: number,
-    onSegment: (psd: Float64Array, index: number) => void,
-  ): number {
+  forEachSegment(x: ArrayLike<number>, start: number, length: number, onSegment: (psd: Float64Array, index: number) => void): number {
     const count = this.segmentCount(length);
     const n = this.nPerSeg;
     const buf = this.buffer;
@@ -195,11 +190,7 @@ export interface WelchResult {
  * Welch PSD of a whole signal, averaged over segments by mean, or by median divided by the
  * median bias (as scipy.signal.welch with average='median').
  */
-export function welch(
-  x: ArrayLike<number>,
-  fsHz: number,
-  options: WelchOptions & { average?: 'mean' | 'median' } = {},
-): WelchResult {
+export function welch(x: ArrayLike<number>, fsHz: number, options: WelchOptions & { average?: 'mean' | 'median' } = {}): WelchResult {
   const est = new Welch(fsHz, options);
   const psd = new Float64Array(est.nBins);
   let nSegments: number;

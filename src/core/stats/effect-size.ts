@@ -85,7 +85,14 @@ export function hedgesGOneSample(d: ArrayLike<number>, nSubjects: number, nPoint
 }
 
 /** Correlation effect with Fisher-z interval; r per point, nuisance = number of nuisance covariates. */
-export function correlationEffect(kind: 'r' | 'partial-r', r: ArrayLike<number>, slope: Float64Array | null, nSubjects: number, nuisance: number, level: number): EffectSize {
+export function correlationEffect(
+  kind: 'r' | 'partial-r',
+  r: ArrayLike<number>,
+  slope: Float64Array | null,
+  nSubjects: number,
+  nuisance: number,
+  level: number,
+): EffectSize {
   const P = r.length;
   const z = zCrit(level);
   const se = 1 / Math.sqrt(nSubjects - 3 - nuisance);

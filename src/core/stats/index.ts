@@ -197,7 +197,21 @@ export interface MissingResult {
   minimum: string;
 }
 
-export { runPermutationTest, preparePermutationTest, finishPermutationTest, PermutationTestInputError, type PreparedPermutationTest } from './permutation-test.ts';
-export { runPermutations, concatNullMaxima, permutationP, type NullMaxima, type PermutationRange, type PermutationTest, type ProgressCallback } from './permutation-engine.ts';
+export {
+  runPermutationTest,
+  preparePermutationTest,
+  finishPermutationTest,
+  PermutationTestInputError,
+  type PreparedPermutationTest,
+} from './permutation-test.ts';
+export {
+  runPermutations,
+  concatNullMaxima,
+  permutationP,
+  type NullMaxima,
+  type PermutationRange,
+  type PermutationTest,
+  type ProgressCallback,
+} from './permutation-engine.ts';
 export { tCdf, tQuantile, normalQuantile, twoTailedP, twoTailedCriticalT, fisherZ, fisherZInverse, correlationToT } from './distributions.ts';
 export { TFCE_DEFAULTS, type TfceParameters } from './tfce.ts';

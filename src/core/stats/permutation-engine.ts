@@ -74,7 +74,8 @@ export function concatNullMaxima(parts: NullMaxima[]): NullMaxima {
   if (parts.length === 0) throw new RangeError('no partial permutation runs to join');
   const sorted = [...parts].sort((a, b) => a.from - b.from);
   for (let i = 1; i < sorted.length; i++) {
-    if (sorted[i].from !== sorted[i - 1].to) throw new RangeError(`partial runs are not contiguous: [${sorted[i - 1].from}, ${sorted[i - 1].to}) then [${sorted[i].from}, ${sorted[i].to})`);
+    if (sorted[i].from !== sorted[i - 1].to)
+      throw new RangeError(`partial runs are not contiguous: [${sorted[i - 1].from}, ${sorted[i - 1].to}) then [${sorted[i].from}, ${sorted[i].to})`);
   }
   const join = (key: 'cluster' | 'tfce'): Float64Array | null => {
     if (sorted[0][key] === null) return null;

@@ -4,7 +4,16 @@
  * and turn observed maps and null maxima into the JSON-able result (finishPermutationTest).
  * Types and conventions are documented in index.ts.
  */
-import type { PermutationTestInput, PermutationTestOptions, PermutationTestResult, ClusterResult, Design, EffectResult, Matrix, StatisticName } from './index.ts';
+import type {
+  PermutationTestInput,
+  PermutationTestOptions,
+  PermutationTestResult,
+  ClusterResult,
+  Design,
+  EffectResult,
+  Matrix,
+  StatisticName,
+} from './index.ts';
 import type { PointStatistic } from './point-statistic.ts';
 import { TwoGroupT } from './two-group-t.ts';
 import { OneSampleT } from './one-sample-t.ts';
@@ -113,7 +122,12 @@ function buildKernel(
 ): { kernel: PointStatistic; statistic: StatisticName; labels?: Uint8Array; d?: Float64Array; missing: MissingSummary | null } {
   const design: Design = input.design;
   const data = input.data;
-  const noMissing = (what: string) => fail('data', 'NaN', `missing values per point are supported for two groups (welch-t, student-t), paired-t and one-sample-t, not for ${what}: every subject needs a value at every point`);
+  const noMissing = (what: string) =>
+    fail(
+      'data',
+      'NaN',
+      `missing values per point are supported for two groups (welch-t, student-t), paired-t and one-sample-t, not for ${what}: every subject needs a value at every point`,
+    );
   switch (design.kind) {
     case 'groups': {
       checkFinite('design.group', design.group, n);
@@ -128,7 +142,8 @@ function buildKernel(
       if (count[0] < 2 || count[1] < 2) fail('design.group', count, `each group needs at least 2 subjects, got ${count[0]} and ${count[1]}`);
       const nuisance = checkNuisance(design, n);
       if (nuisance.length > 0) {
-        if (statistic !== undefined && statistic !== 'linear-model-t') fail('options.statistic', statistic, 'with nuisance covariates the statistic is linear-model-t');
+        if (statistic !== undefined && statistic !== 'linear-model-t')
+          fail('options.statistic', statistic, 'with nuisance covariates the statistic is linear-model-t');
         if (dataMissing) noMissing('a linear model with nuisance covariates');
         return { kernel: new LinearModelT(data, n, P, labels, nuisance), statistic: 'linear-model-t', labels, missing: null };
       }
@@ -160,7 +175,8 @@ function buildKernel(
       if (dataMissing) noMissing('a covariate design');
       const nuisance = checkNuisance(design, n);
       if (nuisance.length > 0) {
-        if (statistic !== undefined && statistic !== 'linear-model-t') fail('options.statistic', statistic, 'with nuisance covariates the statistic is linear-model-t');
+        if (statistic !== undefined && statistic !== 'linear-model-t')
+          fail('options.statistic', statistic, 'with nuisance covariates the statistic is linear-model-t');
         return { kernel: new LinearModelT(data, n, P, design.covariate, nuisance), statistic: 'linear-model-t', missing: null };
       }
       const chosen = statistic ?? 'pearson';
@@ -193,7 +209,8 @@ export function preparePermutationTest(input: PermutationTestInput, options: Per
   if (new Set(channels).size !== channels.length) fail('channels', channels, 'channel names must be unique');
   if (!Array.isArray(freqsHz) || freqsHz.length === 0) fail('freqsHz', freqsHz, 'at least one frequency bin is needed');
   for (let f = 0; f < freqsHz.length; f++) {
-    if (!Number.isFinite(freqsHz[f]) || (f > 0 && !(freqsHz[f] > freqsHz[f - 1]))) fail(`freqsHz[${f}]`, freqsHz[f], 'frequencies must be finite and ascending');
+    if (!Number.isFinite(freqsHz[f]) || (f > 0 && !(freqsHz[f] > freqsHz[f - 1])))
+      fail(`freqsHz[${f}]`, freqsHz[f], 'frequencies must be finite and ascending');
   }
   const P = channels.length * freqsHz.length;
   const { n, missing: dataMissing } = checkMatrix('data', input.data, input);
@@ -212,7 +229,8 @@ export function preparePermutationTest(input: PermutationTestInput, options: Per
 
   const { kernel, statistic, labels, d, missing } = buildKernel(input, n, P, options.statistic, dataMissing);
   if (kernel.df < 1) fail('data', n, `too few subjects for ${statistic}: ${kernel.df} degrees of freedom`);
-  if (missing && !missing.keep.includes(1)) fail('data', missing.missing, `no point has ${minimumText(missing.counts.length === 2)}: every point has too many missing values`);
+  if (missing && !missing.keep.includes(1))
+    fail('data', missing.missing, `no point has ${minimumText(missing.counts.length === 2)}: every point has too many missing values`);
   if (!varies(input, n, P)) fail('data', n, 'the data do not vary: every subject has the same value at every point, so there is no difference to test');
   const stat = new Float64Array(P);
   const df = new Float64Array(P);
@@ -337,7 +355,14 @@ export function finishPermutationTest(prepared: PreparedPermutationTest, nulls: 
 }
 
 function effectResult(e: EffectSize): EffectResult {
-  return { kind: e.kind, value: Array.from(e.value), ciLow: Array.from(e.ciLow), ciHigh: Array.from(e.ciHigh), level: e.level, difference: e.difference ? Array.from(e.difference) : null };
+  return {
+    kind: e.kind,
+    value: Array.from(e.value),
+    ciLow: Array.from(e.ciLow),
+    ciHigh: Array.from(e.ciHigh),
+    level: e.level,
+    difference: e.difference ? Array.from(e.difference) : null,
+  };
 }
 
 /** The whole contrast on one thread. onProgress(done, total) is called as permutations finish. */

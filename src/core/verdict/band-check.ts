@@ -118,7 +118,12 @@ function flankBand(name: string, lo: number, hi: number, axis: ContrastData['spe
 }
 
 /** Flanks of equal width just below and above the band, inside the fit range, without the band's edge bins. */
-export function bandFlanks(band: Band, widthHz: number, fitRangeHz: [number, number], axis: ContrastData['spectra']): { lower: Band | null; upper: Band | null; note: string | null } {
+export function bandFlanks(
+  band: Band,
+  widthHz: number,
+  fitRangeHz: [number, number],
+  axis: ContrastData['spectra'],
+): { lower: Band | null; upper: Band | null; note: string | null } {
   const step = axis.freqStepHz;
   const lowest = Math.max(fitRangeHz[0], axis.freqStartHz > 0 ? axis.freqStartHz : step);
   const highest = Math.min(fitRangeHz[1], axis.freqStartHz + (axis.nBins - 1) * step);
@@ -127,7 +132,8 @@ export function bandFlanks(band: Band, widthHz: number, fitRangeHz: [number, num
   const notes: string[] = [];
   const short = (f: Band | null, side: string) => {
     if (!f) notes.push(`no room for a ${side} flank inside the fit range ${fitRangeHz[0]}–${fitRangeHz[1]} Hz`);
-    else if (f.hiHz - f.loHz < widthHz - 2 * step - 1e-9) notes.push(`the ${side} flank is cut to ${f.loHz}–${f.hiHz} Hz by the fit range ${fitRangeHz[0]}–${fitRangeHz[1]} Hz`);
+    else if (f.hiHz - f.loHz < widthHz - 2 * step - 1e-9)
+      notes.push(`the ${side} flank is cut to ${f.loHz}–${f.hiHz} Hz by the fit range ${fitRangeHz[0]}–${fitRangeHz[1]} Hz`);
   };
   short(lower, 'lower');
   short(upper, 'upper');
@@ -147,9 +153,12 @@ function normalisationNote(raw: ScalarTest, rel: ScalarTest, range: [number, num
   const a = raw.p < alpha;
   const r = rel.p < alpha;
   const both = `absolute ${describeTest(raw)}; relative ${describeTest(rel)}`;
-  if (a && !r) return `Relative normalisation hides the effect seen in absolute band power (${both}): a change shared by the band and the ${range[0]}–${range[1]} Hz denominator cancels in the ratio.`;
-  if (!a && r) return `Relative normalisation creates an effect absent from absolute band power (${both}): the ${range[0]}–${range[1]} Hz denominator differs, so the ratio changes though the band's own power does not.`;
-  if (a && r && Math.sign(raw.effect) !== Math.sign(rel.effect)) return `Relative normalisation reverses the sign of the effect (${both}): the ${range[0]}–${range[1]} Hz denominator changes more than the band.`;
+  if (a && !r)
+    return `Relative normalisation hides the effect seen in absolute band power (${both}): a change shared by the band and the ${range[0]}–${range[1]} Hz denominator cancels in the ratio.`;
+  if (!a && r)
+    return `Relative normalisation creates an effect absent from absolute band power (${both}): the ${range[0]}–${range[1]} Hz denominator differs, so the ratio changes though the band's own power does not.`;
+  if (a && r && Math.sign(raw.effect) !== Math.sign(rel.effect))
+    return `Relative normalisation reverses the sign of the effect (${both}): the ${range[0]}–${range[1]} Hz denominator changes more than the band.`;
   return null;
 }
 
@@ -169,10 +178,15 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
   const alpha = options.alpha ?? 0.05;
   if (!(alpha > 0 && alpha < 1)) throw new BandCheckError(`alpha must lie in (0, 1), got ${alpha}`);
   const [fitLo, fitHi] = options.fitRangeHz;
-  if (!(Number.isFinite(fitLo) && Number.isFinite(fitHi) && fitHi > fitLo && fitLo > 0)) throw new BandCheckError(`fitRangeHz: invalid aperiodic fit range ${fitLo}–${fitHi} Hz`);
-  if (band.loHz < fitLo || band.hiHz > fitHi) throw new BandCheckError(`band ${band.name} ${band.loHz}–${band.hiHz} Hz lies outside the aperiodic fit range ${fitLo}–${fitHi} Hz, so its residual is not defined`);
+  if (!(Number.isFinite(fitLo) && Number.isFinite(fitHi) && fitHi > fitLo && fitLo > 0))
+    throw new BandCheckError(`fitRangeHz: invalid aperiodic fit range ${fitLo}–${fitHi} Hz`);
+  if (band.loHz < fitLo || band.hiHz > fitHi)
+    throw new BandCheckError(
+      `band ${band.name} ${band.loHz}–${band.hiHz} Hz lies outside the aperiodic fit range ${fitLo}–${fitHi} Hz, so its residual is not defined`,
+    );
   const axis = data.spectra;
-  if (!bandBins(band, axis.freqStartHz, axis.freqStepHz, axis.nBins)) throw new BandCheckError(`band ${band.name} ${band.loHz}–${band.hiHz} Hz holds no spectrum bin`);
+  if (!bandBins(band, axis.freqStartHz, axis.freqStepHz, axis.nBins))
+    throw new BandCheckError(`band ${band.name} ${band.loHz}–${band.hiHz} Hz holds no spectrum bin`);
   const widthHz = options.flankWidthHz ?? band.hiHz - band.loHz;
   if (!(widthHz > 0)) throw new BandCheckError(`flankWidthHz must be positive, got ${widthHz}`);
   const flanks = bandFlanks(band, widthHz, options.fitRangeHz, axis);
@@ -190,21 +204,37 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
   // spectral measures over the band: a fixed band's bins, or each subject's own band inside the span of all of them
   const span = individual?.span ?? band;
   const inBand = individual
-    ? (r: Float64Array, freqs: readonly number[], subject: string, condition: 0 | 1) => { const b = individual.bandOf(subject, condition); return bandMean(r, freqs, b.loHz, b.hiHz); }
+    ? (r: Float64Array, freqs: readonly number[], subject: string, condition: 0 | 1) => {
+        const b = individual.bandOf(subject, condition);
+        return bandMean(r, freqs, b.loHz, b.hiHz);
+      }
     : (r: Float64Array) => rowMean(r);
   const residual = () => assembleAveraged(c, data, { measure: 'residual', fminHz: span.loHz, fmaxHz: span.hiHz });
   const steps: { name: keyof BandCheckTests; values: () => ScalarValues | null }[] = [
     { name: 'raw', values: () => reduce(`${power} in ${bandText}`, assembleAveraged(c, data, { measure: 'band-power', bands: [band] }, bandsFor), first) },
-    { name: 'offset', values: () => reduce(`aperiodic offset (log10 µV²/Hz), fit ${fitLo}–${fitHi} Hz`, assembleAveraged(c, data, { measure: 'offset' }), first) },
+    {
+      name: 'offset',
+      values: () => reduce(`aperiodic offset (log10 µV²/Hz), fit ${fitLo}–${fitHi} Hz`, assembleAveraged(c, data, { measure: 'offset' }), first),
+    },
     { name: 'exponent', values: () => reduce(`aperiodic exponent, fit ${fitLo}–${fitHi} Hz`, assembleAveraged(c, data, { measure: 'exponent' }), first) },
     {
       name: 'periodic',
       values: () => {
         const a = residual();
-        return reduce(`residual (log10 PSD minus the aperiodic fit) averaged over ${bandText}`, a, (r, subject, cond) => inBand(r, a.input.freqsHz, subject, cond));
+        return reduce(`residual (log10 PSD minus the aperiodic fit) averaged over ${bandText}`, a, (r, subject, cond) =>
+          inBand(r, a.input.freqsHz, subject, cond),
+        );
       },
     },
-    { name: 'peakHeight', values: () => reduce(`height of the highest fitted peak in ${peakBand.name} ${peakBand.loHz}–${peakBand.hiHz} Hz (log10 above the aperiodic fit, 0 where none)`, assembleAveraged(c, data, { measure: 'peak-height', bands: [peakBand], bandDefinition: 'fixed' }), first) },
+    {
+      name: 'peakHeight',
+      values: () =>
+        reduce(
+          `height of the highest fitted peak in ${peakBand.name} ${peakBand.loHz}–${peakBand.hiHz} Hz (log10 above the aperiodic fit, 0 where none)`,
+          assembleAveraged(c, data, { measure: 'peak-height', bands: [peakBand], bandDefinition: 'fixed' }),
+          first,
+        ),
+    },
     { name: 'peakCenter', values: () => peaks.center },
     { name: 'peakWidth', values: () => peaks.width },
     {
@@ -216,22 +246,57 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
           `fitted aperiodic component (log10 µV²/Hz) averaged over ${bandText}`,
           parts,
           // aperiodic = log10 PSD − residual, bin by bin, then the band mean
-          ([logPsd, res], subject, cond) => inBand(logPsd.map((v, i) => v - res[i]), freqs, subject, cond),
+          ([logPsd, res], subject, cond) =>
+            inBand(
+              logPsd.map((v, i) => v - res[i]),
+              freqs,
+              subject,
+              cond,
+            ),
         );
       },
     },
-    { name: 'lowerFlank', values: () => (flanks.lower ? reduce(`${power} in the lower flank ${individual ? 'below each subject\'s band' : `${flanks.lower.loHz}–${flanks.lower.hiHz} Hz`}`, assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.lower] }, bandsFor), first) : null) },
-    { name: 'upperFlank', values: () => (flanks.upper ? reduce(`${power} in the upper flank ${individual ? 'above each subject\'s band' : `${flanks.upper.loHz}–${flanks.upper.hiHz} Hz`}`, assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.upper] }, bandsFor), first) : null) },
+    {
+      name: 'lowerFlank',
+      values: () =>
+        flanks.lower
+          ? reduce(
+              `${power} in the lower flank ${individual ? "below each subject's band" : `${flanks.lower.loHz}–${flanks.lower.hiHz} Hz`}`,
+              assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.lower] }, bandsFor),
+              first,
+            )
+          : null,
+    },
+    {
+      name: 'upperFlank',
+      values: () =>
+        flanks.upper
+          ? reduce(
+              `${power} in the upper flank ${individual ? "above each subject's band" : `${flanks.upper.loHz}–${flanks.upper.hiHz} Hz`}`,
+              assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.upper] }, bandsFor),
+              first,
+            )
+          : null,
+    },
     {
       name: 'tilt',
       values: () =>
         flanks.lower && flanks.upper
-          ? reduce(`upper minus lower flank ${power}`, assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.lower, flanks.upper] }, bandsFor), (r) => r[1] - r[0]) // bands are ordered by centre
+          ? reduce(
+              `upper minus lower flank ${power}`,
+              assembleAveraged(c, data, { measure: 'band-power', bands: [flanks.lower, flanks.upper] }, bandsFor),
+              (r) => r[1] - r[0],
+            ) // bands are ordered by centre
           : null,
     },
     {
       name: 'relative',
-      values: () => reduce(`log10 relative band power in ${bandText}: band integral / integral over ${c.relativeRangeHz[0]}–${c.relativeRangeHz[1]} Hz`, assembleAveraged(c, data, { measure: 'relative-band-power', bands: [band] }, bandsFor), first),
+      values: () =>
+        reduce(
+          `log10 relative band power in ${bandText}: band integral / integral over ${c.relativeRangeHz[0]}–${c.relativeRangeHz[1]} Hz`,
+          assembleAveraged(c, data, { measure: 'relative-band-power', bands: [band] }, bandsFor),
+          first,
+        ),
     },
   ];
   const total = steps.length + 1;
@@ -306,7 +371,9 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
     n: t.periodic.n,
     exclusions,
     figure,
-    individual: individual ? { searchHz: individual.rule.searchHz, halfWidthHz: individual.rule.halfWidthHz, centres: individual.centres, note: individual.note } : null,
+    individual: individual
+      ? { searchHz: individual.rule.searchHz, halfWidthHz: individual.rule.halfWidthHz, centres: individual.centres, note: individual.note }
+      : null,
   };
 }
 
@@ -316,7 +383,14 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
  * the fixed flank where a subject's has no room); the span of every subject's band, over which
  * the spectral measures are read before each subject's own bins are averaged.
  */
-function individualSetup(c: Contrast, data: ContrastData, band: Band, widthHz: number, fitRangeHz: [number, number], fixedFlanks: { lower: Band | null; upper: Band | null }) {
+function individualSetup(
+  c: Contrast,
+  data: ContrastData,
+  band: Band,
+  widthHz: number,
+  fitRangeHz: [number, number],
+  fixedFlanks: { lower: Band | null; upper: Band | null },
+) {
   const rule = individualRule(c, band);
   const found = individualBands(c, data, band);
   const axis = data.spectra;
@@ -333,10 +407,11 @@ function individualSetup(c: Contrast, data: ContrastData, band: Band, widthHz: n
   };
   let lo = band.loHz;
   let hi = band.hiHz;
-  for (const per of found.bands.values()) for (const b of per) {
-    lo = Math.min(lo, cut(b).loHz);
-    hi = Math.max(hi, cut(b).hiHz);
-  }
+  for (const per of found.bands.values())
+    for (const b of per) {
+      lo = Math.min(lo, cut(b).loHz);
+      hi = Math.max(hi, cut(b).hiHz);
+    }
   const without = found.centres.filter((x) => x.centerHz === null).length;
   const words = `centred on each subject's fitted peak in ${rule.searchHz[0]}–${rule.searchHz[1]} Hz (median over the channels) ±${rule.halfWidthHz} Hz; the fixed ${band.loHz}–${band.hiHz} Hz where none`;
   const note = `${found.centres.length - without} of ${found.centres.length} subject-conditions have a fitted peak in ${rule.searchHz[0]}–${rule.searchHz[1]} Hz${without > 0 ? `; ${without} use the fixed band` : ''}. The peak tests look for the peak in the search range.`;
@@ -371,6 +446,12 @@ function peakPresence(v: ScalarValues | undefined): Record<string, number> {
 }
 
 /** One band check per channel set (each averaged), same band and options. */
-export function bandCheckSets(contrastBase: Contrast, band: Band, data: ContrastData, sets: { name: string; channels: string[] }[], options: BandCheckOptions): { name: string; result: BandCheckResult }[] {
+export function bandCheckSets(
+  contrastBase: Contrast,
+  band: Band,
+  data: ContrastData,
+  sets: { name: string; channels: string[] }[],
+  options: BandCheckOptions,
+): { name: string; result: BandCheckResult }[] {
   return sets.map((s) => ({ name: s.name, result: bandCheck({ ...contrastBase, channels: s.channels }, band, data, options) }));
 }

@@ -60,7 +60,7 @@ export function bandCheckFigure(
     const [a, b] = design.conditionNames ?? ['first', 'second'];
     conditions.push({ name: a, which: 'data' }, { name: b, which: 'second' });
   } else conditions.push({ name: '', which: 'data' });
-  const groupOf = (i: number) => (design.kind === 'groups' ? residual.subjects[i].group ?? 'all subjects' : 'all subjects');
+  const groupOf = (i: number) => (design.kind === 'groups' ? (residual.subjects[i].group ?? 'all subjects') : 'all subjects');
   const names = design.kind === 'groups' ? (design.groupNames ?? []) : ['all subjects'];
   const series: FigureSeries[] = [];
   for (const cond of conditions) {

@@ -158,7 +158,8 @@ export function edgeVariants(band: Band, shiftHz = 1): Band[] {
   return out;
 }
 
-const sameRange = (a: readonly number[] | null, b: readonly number[] | null) => a !== null && b !== null && Math.abs(a[0] - b[0]) < 1e-9 && Math.abs(a[1] - b[1]) < 1e-9;
+const sameRange = (a: readonly number[] | null, b: readonly number[] | null) =>
+  a !== null && b !== null && Math.abs(a[0] - b[0]) < 1e-9 && Math.abs(a[1] - b[1]) < 1e-9;
 
 /** The distinct fit ranges stored in the data sets (for the choice of fit ranges). */
 export function availableFitRanges(sets: readonly PathDataSet[]): [number, number][] {
@@ -172,7 +173,8 @@ export type PathTest = 'band-summary' | 'frequency-wise';
 /** Every combination of the choices, a choice that does not apply to a measure taken once. */
 export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summary'): PathSpec[] {
   const out: PathSpec[] = [];
-  for (const k of ['measures', 'references', 'averagings', 'bands'] as const) if (choices[k].length === 0) throw new PathError(`choices.${k}: at least one value is needed`);
+  for (const k of ['measures', 'references', 'averagings', 'bands'] as const)
+    if (choices[k].length === 0) throw new PathError(`choices.${k}: at least one value is needed`);
   for (const band of choices.bands) checkBand(band);
   const decisions = choices.decisions ?? ['power'];
   if (decisions.length === 0) throw new PathError('choices.decisions: at least one value is needed');
@@ -191,22 +193,39 @@ export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summ
     for (const reference of choices.references)
       for (const averaging of choices.averagings)
         for (const estimator of estimators)
-        for (const denominatorHz of denominators)
-          for (const summary of summaries)
-            for (const fitRangeHz of fitRanges)
-              for (const band of choices.bands)
-              for (const bandDefinition of definitions)
-              for (const decision of decisions) {
-                const edges = bandDefinition === 'fixed' ? `${band.loHz}–${band.hiHz} Hz` : `the individual band (fixed ${band.loHz}–${band.hiHz} Hz)`;
-                const description =
-                  measure === 'absolute'
-                    ? summary ? `log10 band power (${summary === 'mean' ? 'mean density' : 'trapezoid integral'}) ${edges}` : `log10 PSD at each bin of ${edges}`
-                    : measure === 'relative'
-                      ? test === 'band-summary' ? `log10 relative band power ${edges} / ${denominatorHz![0]}–${denominatorHz![1]} Hz` : `log10 relative PSD (over the ${denominatorHz![0]}–${denominatorHz![1]} Hz integral) at each bin of ${edges}`
-                      : `residual ${test === 'band-summary' ? 'averaged over' : 'at each bin of'} ${edges} (fit ${fitRangeHz![0]}–${fitRangeHz![1]} Hz)`;
-                const decided = decision === 'power' ? '' : '; decided on power and the peak centre (Bonferroni ×2)';
-                out.push({ id: out.length + 1, measure, denominatorHz, reference, averaging, estimator, summary, fitRangeHz, band, bandDefinition, decision, description: `${description}; ${reference}, ${averaging}, ${estimator}${decided}` });
-              }
+          for (const denominatorHz of denominators)
+            for (const summary of summaries)
+              for (const fitRangeHz of fitRanges)
+                for (const band of choices.bands)
+                  for (const bandDefinition of definitions)
+                    for (const decision of decisions) {
+                      const edges = bandDefinition === 'fixed' ? `${band.loHz}–${band.hiHz} Hz` : `the individual band (fixed ${band.loHz}–${band.hiHz} Hz)`;
+                      const description =
+                        measure === 'absolute'
+                          ? summary
+                            ? `log10 band power (${summary === 'mean' ? 'mean density' : 'trapezoid integral'}) ${edges}`
+                            : `log10 PSD at each bin of ${edges}`
+                          : measure === 'relative'
+                            ? test === 'band-summary'
+                              ? `log10 relative band power ${edges} / ${denominatorHz![0]}–${denominatorHz![1]} Hz`
+                              : `log10 relative PSD (over the ${denominatorHz![0]}–${denominatorHz![1]} Hz integral) at each bin of ${edges}`
+                            : `residual ${test === 'band-summary' ? 'averaged over' : 'at each bin of'} ${edges} (fit ${fitRangeHz![0]}–${fitRangeHz![1]} Hz)`;
+                      const decided = decision === 'power' ? '' : '; decided on power and the peak centre (Bonferroni ×2)';
+                      out.push({
+                        id: out.length + 1,
+                        measure,
+                        denominatorHz,
+                        reference,
+                        averaging,
+                        estimator,
+                        summary,
+                        fitRangeHz,
+                        band,
+                        bandDefinition,
+                        decision,
+                        description: `${description}; ${reference}, ${averaging}, ${estimator}${decided}`,
+                      });
+                    }
   }
   return out;
 }
@@ -214,7 +233,9 @@ export function enumeratePaths(choices: PathChoices, test: PathTest = 'band-summ
 /** The (reference, averaging, estimator) data sets the choices need: the caller loads rows for each. */
 export function pathDataNeeds(choices: PathChoices): { reference: string; averaging: Averaging; estimator: EstimatorName }[] {
   const estimators = choices.estimators ?? ['welch'];
-  return choices.references.flatMap((reference) => choices.averagings.flatMap((averaging) => estimators.map((estimator) => ({ reference, averaging, estimator }))));
+  return choices.references.flatMap((reference) =>
+    choices.averagings.flatMap((averaging) => estimators.map((estimator) => ({ reference, averaging, estimator }))),
+  );
 }
 
 export interface PathRunOptions {
@@ -229,11 +250,17 @@ export interface PathRunOptions {
 
 function findSet(sets: readonly PathDataSet[], p: PathSpec): PathDataSet {
   const candidates = sets.filter((s) => s.reference === p.reference && s.averaging === p.averaging && (s.estimator ?? 'welch') === p.estimator);
-  if (candidates.length === 0) throw new PathError(`no data set for reference ${p.reference}, averaging ${p.averaging}, estimator ${p.estimator} (have: ${sets.map((s) => `${s.reference}/${s.averaging}/${s.estimator ?? 'welch'}`).join(', ')})`);
+  if (candidates.length === 0)
+    throw new PathError(
+      `no data set for reference ${p.reference}, averaging ${p.averaging}, estimator ${p.estimator} (have: ${sets.map((s) => `${s.reference}/${s.averaging}/${s.estimator ?? 'welch'}`).join(', ')})`,
+    );
   if (p.measure !== 'residual') return candidates[0];
   const hit = candidates.find((s) => sameRange(s.fitRangeHz, p.fitRangeHz));
   if (!hit) {
-    const have = availableFitRanges(candidates).map((r) => `${r[0]}–${r[1]} Hz`).join(', ') || 'none';
+    const have =
+      availableFitRanges(candidates)
+        .map((r) => `${r[0]}–${r[1]} Hz`)
+        .join(', ') || 'none';
     throw new PathError(`aperiodic fit range ${p.fitRangeHz![0]}–${p.fitRangeHz![1]} Hz is not stored for ${p.reference}/${p.averaging} (stored: ${have})`);
   }
   return hit;
@@ -245,7 +272,13 @@ function findSet(sets: readonly PathDataSet[], p: PathSpec): PathDataSet {
  * and the variants widen or narrow its half-width.
  */
 function pathContrast(c: Contrast, p: PathSpec, given: Band): Contrast {
-  const base: Contrast = { ...c, reference: p.reference as Contrast['reference'], averaging: p.averaging, estimator: p.estimator, bandDefinition: p.bandDefinition };
+  const base: Contrast = {
+    ...c,
+    reference: p.reference as Contrast['reference'],
+    averaging: p.averaging,
+    estimator: p.estimator,
+    bandDefinition: p.bandDefinition,
+  };
   if (p.bandDefinition === 'fixed') return base;
   const half = (c.halfWidthHz ?? (given.hiHz - given.loHz) / 2) + (p.band.hiHz - p.band.loHz - (given.hiHz - given.loHz)) / 2;
   return { ...base, peakSearchHz: c.peakSearchHz ?? [given.loHz, given.hiHz], halfWidthHz: Math.max(half, 1e-6) };
@@ -253,9 +286,16 @@ function pathContrast(c: Contrast, p: PathSpec, given: Band): Contrast {
 
 function pathValues(c: Contrast, p: PathSpec, data: ContrastData, given: Band) {
   const base = pathContrast(c, p, given);
-  if (p.measure === 'absolute') return reduce(p.description, assembleAveraged(base, data, { measure: 'band-power', bands: [p.band], bandMethod: p.summary! }), (r) => r[0]);
-  if (p.measure === 'relative') return reduce(p.description, assembleAveraged(base, data, { measure: 'relative-band-power', bands: [p.band], relativeRangeHz: p.denominatorHz! }), (r) => r[0]);
-  if (p.bandDefinition === 'fixed') return reduce(p.description, assembleAveraged(base, data, { measure: 'residual', fminHz: p.band.loHz, fmaxHz: p.band.hiHz }), rowMean);
+  if (p.measure === 'absolute')
+    return reduce(p.description, assembleAveraged(base, data, { measure: 'band-power', bands: [p.band], bandMethod: p.summary! }), (r) => r[0]);
+  if (p.measure === 'relative')
+    return reduce(
+      p.description,
+      assembleAveraged(base, data, { measure: 'relative-band-power', bands: [p.band], relativeRangeHz: p.denominatorHz! }),
+      (r) => r[0],
+    );
+  if (p.bandDefinition === 'fixed')
+    return reduce(p.description, assembleAveraged(base, data, { measure: 'residual', fminHz: p.band.loHz, fmaxHz: p.band.hiHz }), rowMean);
   // the residual over each subject's own band: read over the span of all of them, then each subject's bins averaged
   const own = individualBands(base, data, p.band);
   let lo = p.band.loHz;
@@ -309,7 +349,13 @@ export function defaultPathChoices(c: Contrast, band: Band, sets: readonly PathD
 }
 
 /** The peak-centre test of a path (the band check's frequency test on the path's rows and band). */
-function frequencyTest(c: Contrast, p: PathSpec, data: ContrastData, given: Band, so: { statistic: Contrast['statistic']; permutations: number; seed: number }): PathFrequency {
+function frequencyTest(
+  c: Contrast,
+  p: PathSpec,
+  data: ContrastData,
+  given: Band,
+  so: { statistic: Contrast['statistic']; permutations: number; seed: number },
+): PathFrequency {
   const base = { ...pathContrast(c, p, given), bandDefinition: 'fixed' as const };
   // an individual band's peak is looked for in its search range
   const where = p.bandDefinition === 'individual' ? { name: p.band.name, loHz: base.peakSearchHz![0], hiHz: base.peakSearchHz![1] } : p.band;
@@ -321,7 +367,13 @@ function frequencyTest(c: Contrast, p: PathSpec, data: ContrastData, given: Band
 }
 
 /** Runs every path and returns the specification curve; `band` is the band as given (its variants are in choices.bands). */
-export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoices, sets: readonly PathDataSet[], options: PathRunOptions = {}): SpecificationCurve {
+export function runPaths(
+  contrastBase: Contrast,
+  band: Band,
+  choices: PathChoices,
+  sets: readonly PathDataSet[],
+  options: PathRunOptions = {},
+): SpecificationCurve {
   const alpha = options.alpha ?? 0.05;
   const permutations = options.permutations ?? contrastBase.permutations;
   const test = options.test ?? 'band-summary';
@@ -329,7 +381,10 @@ export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoice
   const notes: string[] = [];
   if (choices.measures.includes('residual')) {
     const stored = availableFitRanges(sets);
-    if (stored.length < 2) notes.push(`aperiodic fit range not varied: the database stores ${stored.length === 0 ? 'no fit' : `one fit range (${stored[0][0]}–${stored[0][1]} Hz)`}`);
+    if (stored.length < 2)
+      notes.push(
+        `aperiodic fit range not varied: the database stores ${stored.length === 0 ? 'no fit' : `one fit range (${stored[0][0]}–${stored[0][1]} Hz)`}`,
+      );
   }
   const so = { statistic: contrastBase.statistic, permutations, seed: contrastBase.seed };
   // a path decided on both shares its power test with its power-only twin, and its centre test with every path of the same data set and band
@@ -341,7 +396,10 @@ export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoice
     const powerKey = JSON.stringify([p.measure, p.denominatorHz, p.reference, p.averaging, p.estimator, p.summary, p.fitRangeHz, p.band, p.bandDefinition]);
     let t = powerTests.get(powerKey);
     if (!t) {
-      if (p.bandDefinition === 'individual' && data.peaks.length === 0) throw new PathError(`no fitted peaks in the data set for reference ${p.reference}, averaging ${p.averaging}, estimator ${p.estimator}: individual bands need the stored peaks`);
+      if (p.bandDefinition === 'individual' && data.peaks.length === 0)
+        throw new PathError(
+          `no fitted peaks in the data set for reference ${p.reference}, averaging ${p.averaging}, estimator ${p.estimator}: individual bands need the stored peaks`,
+        );
       if (test === 'band-summary') t = runScalarTest(pathValues(contrastBase, p, data, band), so);
       else {
         const fc = spectralContrast(contrastBase, p, permutations);
@@ -353,7 +411,10 @@ export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoice
     }
     let frequency: PathFrequency | null = null;
     if (p.decision === 'power-and-frequency') {
-      if (data.peaks.length === 0) throw new PathError(`no fitted peaks in the data set for reference ${p.reference}, averaging ${p.averaging}: a path decided on frequency needs the stored peaks`);
+      if (data.peaks.length === 0)
+        throw new PathError(
+          `no fitted peaks in the data set for reference ${p.reference}, averaging ${p.averaging}: a path decided on frequency needs the stored peaks`,
+        );
       const byBand = frequencyTests.get(set) ?? new Map<string, PathFrequency>();
       frequencyTests.set(set, byBand);
       const bandKey = `${p.band.loHz}-${p.band.hiHz}-${p.bandDefinition}`;
@@ -363,11 +424,23 @@ export function runPaths(contrastBase: Contrast, band: Band, choices: PathChoice
     // Bonferroni over the two tests of a path decided on power and frequency
     const pathP = frequency ? Math.min(1, 2 * Math.min(t.p, frequency.p)) : t.p;
     options.onProgress?.(i + 1, specs.length);
-    return { ...p, effect: t.effect, ciLow: t.ciLow, ciHigh: t.ciHigh, effectKind: t.effectKind, p: pathP, significant: pathP < alpha, n: t.n, ...(frequency ? { frequency } : {}), rank: 0 };
+    return {
+      ...p,
+      effect: t.effect,
+      ciLow: t.ciLow,
+      ciHigh: t.ciHigh,
+      effectKind: t.effectKind,
+      p: pathP,
+      significant: pathP < alpha,
+      n: t.n,
+      ...(frequency ? { frequency } : {}),
+      rank: 0,
+    };
   });
   results.sort((a, b) => a.effect - b.effect || a.id - b.id);
   results.forEach((r, i) => (r.rank = i + 1));
-  const mid = results.length % 2 === 1 ? results[(results.length - 1) / 2].effect : (results[results.length / 2 - 1].effect + results[results.length / 2].effect) / 2;
+  const mid =
+    results.length % 2 === 1 ? results[(results.length - 1) / 2].effect : (results[results.length / 2 - 1].effect + results[results.length / 2].effect) / 2;
   const nSignificant = results.filter((r) => r.significant).length;
   return {
     kind: 'robustness',

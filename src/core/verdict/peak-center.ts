@@ -53,7 +53,8 @@ export interface PeakValues {
   summary: PeakCenterSummary;
 }
 
-const groupKey = (v: ScalarValues, i: number): string => (v.design.kind === 'groups' ? (v.subjects[i].group ?? 'all') : v.design.kind === 'paired' ? 'pairs' : 'subjects');
+const groupKey = (v: ScalarValues, i: number): string =>
+  v.design.kind === 'groups' ? (v.subjects[i].group ?? 'all') : v.design.kind === 'paired' ? 'pairs' : 'subjects';
 
 /** The values of the subjects at the given indices (same design rows). */
 function keepOnly(v: ScalarValues, idx: number[], leftOut: Exclusion[]): ScalarValues {
@@ -78,8 +79,16 @@ function mean(values: Float64Array, idx: number[]): number {
 export function peakValues(c: Contrast, data: ContrastData, band: Band, channelsText: string): PeakValues {
   const bandText = `${band.name} ${band.loHz}–${band.hiHz} Hz`;
   const first = (r: Float64Array) => r[0];
-  const center = reduce(`centre frequency (Hz) of the highest fitted peak in ${bandText}, mean over the channels with one`, assembleAveraged(c, data, { measure: 'peak-center', bands: [band] }), first);
-  const width = reduce(`full width at half maximum (Hz) of the highest fitted peak in ${bandText}, mean over the channels with one`, assembleAveraged(c, data, { measure: 'peak-width', bands: [band] }), first);
+  const center = reduce(
+    `centre frequency (Hz) of the highest fitted peak in ${bandText}, mean over the channels with one`,
+    assembleAveraged(c, data, { measure: 'peak-center', bands: [band] }),
+    first,
+  );
+  const width = reduce(
+    `full width at half maximum (Hz) of the highest fitted peak in ${bandText}, mean over the channels with one`,
+    assembleAveraged(c, data, { measure: 'peak-width', bands: [band] }),
+    first,
+  );
   const has = (i: number) => !Number.isNaN(center.values[i]) && (center.second === null || !Number.isNaN(center.second[i]));
   const keys = center.design.kind === 'groups' ? (center.design.groupNames ?? []) : [center.design.kind === 'paired' ? 'pairs' : 'subjects'];
   const withPeak: Record<string, number> = Object.fromEntries(keys.map((k) => [k, 0]));
@@ -99,7 +108,11 @@ export function peakValues(c: Contrast, data: ContrastData, band: Band, channels
   });
   const counts = Object.values(withPeak);
   const tooFew = kept.length < MIN_IN_ALL || (center.design.kind === 'groups' && counts.some((k) => k < MIN_PER_GROUP));
-  const skipped = tooFew ? `too few subjects with a fitted peak in ${bandText} (${Object.entries(withPeak).map(([g, k]) => `${g} ${k}`).join(', ')}; the test needs ${center.design.kind === 'groups' ? `${MIN_PER_GROUP} per group and ` : ''}${MIN_IN_ALL} in all)` : null;
+  const skipped = tooFew
+    ? `too few subjects with a fitted peak in ${bandText} (${Object.entries(withPeak)
+        .map(([g, k]) => `${g} ${k}`)
+        .join(', ')}; the test needs ${center.design.kind === 'groups' ? `${MIN_PER_GROUP} per group and ` : ''}${MIN_IN_ALL} in all)`
+    : null;
   const means: PeakGroupMean[] = [];
   if (center.design.kind === 'groups') {
     for (const g of keys) {
@@ -115,7 +128,9 @@ export function peakValues(c: Contrast, data: ContrastData, band: Band, channels
   const note =
     total === 0
       ? `Every subject has a fitted peak in ${bandText} on at least one of the channels.`
-      : `Subjects without a fitted peak in ${bandText} on any of the channels (${Object.entries(withoutPeak).map(([g, k]) => `${g} ${k}`).join(', ')}) are left out of the peak-centre and width tests (they have no centre) and stay in every other test.`;
+      : `Subjects without a fitted peak in ${bandText} on any of the channels (${Object.entries(withoutPeak)
+          .map(([g, k]) => `${g} ${k}`)
+          .join(', ')}) are left out of the peak-centre and width tests (they have no centre) and stay in every other test.`;
   const summary: PeakCenterSummary = { withPeak, withoutPeak, means, skipped, note };
   if (tooFew) return { center: null, width: null, summary };
   return { center: keepOnly(center, kept, leftOut), width: keepOnly(width, kept, leftOut), summary };

@@ -140,7 +140,10 @@ export function formatHz(x: number): string {
 }
 
 /** "control 1, patient 0" */
-const countsText = (c: Record<string, number>) => Object.entries(c).map(([g, k]) => `${g} ${k}`).join(', ');
+const countsText = (c: Record<string, number>) =>
+  Object.entries(c)
+    .map(([g, k]) => `${g} ${k}`)
+    .join(', ');
 
 /** The peak-centre test in words: "the sigma peak is 1.0 Hz lower in patient than in control (…)". */
 function shiftWords(x: PeakCenterInputs, bandName: string, words: DirectionWords, adjusted: string): string {
@@ -150,7 +153,9 @@ function shiftWords(x: PeakCenterInputs, bandName: string, words: DirectionWords
   const left = Object.values(x.withoutPeak).some((k) => k > 0) ? `; left out without a peak in the band: ${countsText(x.withoutPeak)}` : '';
   const detail = `centre of the highest fitted peak in the band${x.means.length > 1 ? `, mean ${means}` : ''}; ${describeTest(t)}; ${adjusted}${left}`;
   // a correlation has no difference in Hz: the direction only
-  return t.difference === null ? `the ${bandName} peak frequency is ${dir} (${detail})` : `the ${bandName} peak is ${formatHz(t.difference)} Hz ${dir} (${detail})`;
+  return t.difference === null
+    ? `the ${bandName} peak frequency is ${dir} (${detail})`
+    : `the ${bandName} peak is ${formatHz(t.difference)} Hz ${dir} (${detail})`;
 }
 
 export function decideVerdict(x: VerdictInputs, bandName: string, words: DirectionWords, alpha = 0.05): VerdictDecision {
@@ -188,7 +193,11 @@ export function decideVerdict(x: VerdictInputs, bandName: string, words: Directi
   });
 
   if (!P && !F && !O && !E) {
-    return done('no-evidence', '1', `No evidence: neither ${per} nor ${off} nor ${exp} differs, and ${noShift}, at α = ${alpha} after Bonferroni correction over these ${m} tests.`);
+    return done(
+      'no-evidence',
+      '1',
+      `No evidence: neither ${per} nor ${off} nor ${exp} differs, and ${noShift}, at α = ${alpha} after Bonferroni correction over these ${m} tests.`,
+    );
   }
   const aperiodicPasses = O || E;
   const ap = [O ? off : null, E ? exp : null].filter(Boolean).join(' and ');
@@ -196,21 +205,37 @@ export function decideVerdict(x: VerdictInputs, bandName: string, words: Directi
     // a peak that moves toward or away from a band edge changes the power averaged over the band by itself
     const also = F ? `; ${shift}; part of the power change may come from the peak moving relative to the band's edges` : '';
     if (aperiodicPasses && x.aperiodicInBand.p < alpha && sign(x.aperiodicInBand) === sign(x.periodic)) {
-      return done('mixed', '2a', `Mixed: ${per} is ${dir(x.periodic)}${also}, and ${ap} also differs, so that ${inBand} is ${dir(x.aperiodicInBand)} as well: the raw band effect is partly band-specific and partly broadband.`);
+      return done(
+        'mixed',
+        '2a',
+        `Mixed: ${per} is ${dir(x.periodic)}${also}, and ${ap} also differs, so that ${inBand} is ${dir(x.aperiodicInBand)} as well: the raw band effect is partly band-specific and partly broadband.`,
+      );
     }
     if (aperiodicPasses) {
       const why = x.aperiodicInBand.p < alpha ? `moves the band's level the other way (${inBandBare})` : `leaves the band's level unchanged (${inBandBare})`;
-      return done('band-specific', '2b', `Band-specific: ${per} is ${dir(x.periodic)}${also}; ${ap} also differs but ${why}, so it cannot account for the band change.`);
+      return done(
+        'band-specific',
+        '2b',
+        `Band-specific: ${per} is ${dir(x.periodic)}${also}; ${ap} also differs but ${why}, so it cannot account for the band change.`,
+      );
     }
     return done('band-specific', '2b', `Band-specific: ${per} is ${dir(x.periodic)}${also}, while neither ${off} nor ${exp} differs.`);
   }
   const samePower = `while ${per} does not differ`;
   if (F) {
     if (aperiodicPasses && x.aperiodicInBand.p < alpha) {
-      return done('mixed', '2c', `Mixed: ${shift}, ${samePower}; ${ap} also differs, so that ${inBand} is ${dir(x.aperiodicInBand)}: the peak shifts while the band's power changes broadband.`);
+      return done(
+        'mixed',
+        '2c',
+        `Mixed: ${shift}, ${samePower}; ${ap} also differs, so that ${inBand} is ${dir(x.aperiodicInBand)}: the peak shifts while the band's power changes broadband.`,
+      );
     }
     if (aperiodicPasses) {
-      return done('band-specific', '2d', `Band-specific frequency shift: ${shift}, ${samePower}; ${ap} also differs but leaves the band's level unchanged (${inBandBare}), and an aperiodic change does not move a peak's centre above the fit.`);
+      return done(
+        'band-specific',
+        '2d',
+        `Band-specific frequency shift: ${shift}, ${samePower}; ${ap} also differs but leaves the band's level unchanged (${inBandBare}), and an aperiodic change does not move a peak's centre above the fit.`,
+      );
     }
     return done('band-specific', '2d', `Band-specific frequency shift: ${shift}, ${samePower}, and neither ${off} nor ${exp} differs.`);
   }
@@ -218,14 +243,30 @@ export function decideVerdict(x: VerdictInputs, bandName: string, words: Directi
   const flanks = [L ? `lower flank ${describeTest(L)}` : null, U ? `upper flank ${describeTest(U)}` : null].filter(Boolean).join('; ');
   const noPer = `the periodic part does not differ (power ${describeTest(x.periodic)}, ${adj(0)}; ${C.test ? `peak centre ${describeTest(C.test)}, ${adj(1)}` : `peak centre not tested: ${C.skipped}`})`;
   if (E && T && T.p < alpha && sign(T) === -sign(x.exponent)) {
-    return done('exponent-change', '3a', `Exponent change: ${exp} is ${dir(x.exponent)} and the flanks tilt accordingly (upper minus lower flank ${describeTest(T)}), while ${noPer}.`);
+    return done(
+      'exponent-change',
+      '3a',
+      `Exponent change: ${exp} is ${dir(x.exponent)} and the flanks tilt accordingly (upper minus lower flank ${describeTest(T)}), while ${noPer}.`,
+    );
   }
   const sameWay = (f: ScalarTest | null) => f === null || sign(f) === sign(x.offset);
   if (O && (L || U) && sameWay(L) && sameWay(U)) {
-    return done('broadband-offset', '3b', `Broadband offset shift: ${off} is ${dir(x.offset)}, the flanks below and above the band move the same way (${flanks}), and ${noPer}.`);
+    return done(
+      'broadband-offset',
+      '3b',
+      `Broadband offset shift: ${off} is ${dir(x.offset)}, the flanks below and above the band move the same way (${flanks}), and ${noPer}.`,
+    );
   }
   if (E) {
-    return done('exponent-change', '3c', `Exponent change: ${exp} is ${dir(x.exponent)} and ${noPer}; the flanks do not show a clear tilt (${T ? `upper minus lower flank ${describeTest(T)}` : 'no room for both flanks'}).`);
+    return done(
+      'exponent-change',
+      '3c',
+      `Exponent change: ${exp} is ${dir(x.exponent)} and ${noPer}; the flanks do not show a clear tilt (${T ? `upper minus lower flank ${describeTest(T)}` : 'no room for both flanks'}).`,
+    );
   }
-  return done('broadband-offset', '3d', `Broadband offset shift: ${off} is ${dir(x.offset)} and ${noPer}; the flanks do not both move with it (${flanks || 'no room for flanks'}).`);
+  return done(
+    'broadband-offset',
+    '3d',
+    `Broadband offset shift: ${off} is ${dir(x.offset)} and ${noPer}; the flanks do not both move with it (${flanks || 'no room for flanks'}).`,
+  );
 }

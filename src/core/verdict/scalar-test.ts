@@ -15,7 +15,14 @@
 import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData, Exclusion } from '../contrast/data.ts';
 import { assembleContrast, type AssembledContrast, type BandResolver, type Participation } from '../contrast/assemble.ts';
-import { preparePermutationTest, runPermutationTest, type PermutationTestInput, type Design, type ProgressCallback, type StatisticName } from '../stats/index.ts';
+import {
+  preparePermutationTest,
+  runPermutationTest,
+  type PermutationTestInput,
+  type Design,
+  type ProgressCallback,
+  type StatisticName,
+} from '../stats/index.ts';
 
 /** Two-tailed cluster-forming p that makes the threshold |t| ≈ 1e-9: every non-zero t is its own cluster. */
 const ONE_POINT_CLUSTER_P = 1 - 1e-9;
@@ -95,8 +102,17 @@ export function combine(measure: string, parts: AssembledContrast[], f: (rows: F
   };
   subjects.forEach((s, k) => {
     const rows = parts.map((_, j) => (j === 0 ? keptRows[k] : index[j].get(s.subject)!));
-    values[k] = f(parts.map((a, j) => pick(a, rows[j], 'data')), s.subject, 0);
-    if (second) second[k] = f(parts.map((a, j) => pick(a, rows[j], 'second')), s.subject, 1);
+    values[k] = f(
+      parts.map((a, j) => pick(a, rows[j], 'data')),
+      s.subject,
+      0,
+    );
+    if (second)
+      second[k] = f(
+        parts.map((a, j) => pick(a, rows[j], 'second')),
+        s.subject,
+        1,
+      );
   });
   return { measure, subjects, excluded, values, second, design: first.input.design, rows: keptRows };
 }
@@ -141,9 +157,19 @@ function subsetDesign(design: Design, rows: number[], second: Float64Array | nul
   const take = (v: ArrayLike<number>) => rows.map((r) => v[r]);
   switch (design.kind) {
     case 'groups':
-      return { kind: 'groups', group: take(design.group), groupNames: design.groupNames, ...(design.nuisance ? { nuisance: design.nuisance.map((c) => ({ name: c.name, values: take(c.values) })) } : {}) };
+      return {
+        kind: 'groups',
+        group: take(design.group),
+        groupNames: design.groupNames,
+        ...(design.nuisance ? { nuisance: design.nuisance.map((c) => ({ name: c.name, values: take(c.values) })) } : {}),
+      };
     case 'covariate':
-      return { kind: 'covariate', covariate: take(design.covariate), covariateName: design.covariateName, ...(design.nuisance ? { nuisance: design.nuisance.map((c) => ({ name: c.name, values: take(c.values) })) } : {}) };
+      return {
+        kind: 'covariate',
+        covariate: take(design.covariate),
+        covariateName: design.covariateName,
+        ...(design.nuisance ? { nuisance: design.nuisance.map((c) => ({ name: c.name, values: take(c.values) })) } : {}),
+      };
     case 'paired':
       return { kind: 'paired', second: second!, conditionNames: design.conditionNames };
     case 'one-sample':
@@ -174,7 +200,10 @@ function scalarInput(v: ScalarValues): PermutationTestInput {
 }
 
 /** The effect size of one value per subject with its interval, without permutations. */
-export function scalarEffect(v: ScalarValues, o: Pick<ScalarTestOptions, 'statistic' | 'confidenceLevel'>): Pick<ScalarTest, 'effectKind' | 'effect' | 'ciLow' | 'ciHigh' | 'level' | 'n'> {
+export function scalarEffect(
+  v: ScalarValues,
+  o: Pick<ScalarTestOptions, 'statistic' | 'confidenceLevel'>,
+): Pick<ScalarTest, 'effectKind' | 'effect' | 'ciLow' | 'ciHigh' | 'level' | 'n'> {
   const input = scalarInput(v);
   const e = preparePermutationTest(input, { statistic: o.statistic, permutations: 1, clusterMeasure: 'none', confidenceLevel: o.confidenceLevel }).effect;
   return { effectKind: e.kind, effect: e.value[0], ciLow: e.ciLow[0], ciHigh: e.ciHigh[0], level: e.level, n: nPerGroup(input.design, v.values.length) };
@@ -184,16 +213,20 @@ export function scalarEffect(v: ScalarValues, o: Pick<ScalarTestOptions, 'statis
 export function runScalarTest(v: ScalarValues, o: ScalarTestOptions): ScalarTest {
   const input = scalarInput(v);
   const design = input.design;
-  const r = runPermutationTest(input, {
-    statistic: o.statistic,
-    permutations: o.permutations,
-    seed: o.seed,
-    clusterP: ONE_POINT_CLUSTER_P,
-    clusterMeasure: 'mass',
-    frequencyAdjacency: false,
-    tfce: false,
-    confidenceLevel: o.confidenceLevel,
-  }, o.onProgress);
+  const r = runPermutationTest(
+    input,
+    {
+      statistic: o.statistic,
+      permutations: o.permutations,
+      seed: o.seed,
+      clusterP: ONE_POINT_CLUSTER_P,
+      clusterMeasure: 'mass',
+      frequencyAdjacency: false,
+      tfce: false,
+      confidenceLevel: o.confidenceLevel,
+    },
+    o.onProgress,
+  );
   const df = Array.isArray(r.df) ? r.df[0] : r.df;
   return {
     measure: v.measure,

@@ -31,7 +31,9 @@ export class AnalysisForm {
   readonly params = $derived.by(() => this.address.route.params);
 
   /** The settings with the defaults of a new analysis under them (once the database's choices are known). */
-  readonly values: Readonly<Record<string, string>> = $derived.by(() => (this.choices.value === null ? this.params : { ...formDefaults(this.choices.value), ...this.params }));
+  readonly values: Readonly<Record<string, string>> = $derived.by(() =>
+    this.choices.value === null ? this.params : { ...formDefaults(this.choices.value), ...this.params },
+  );
 
   /** The contrast JSON the settings spell, for the form's fields ({} while a value does not parse). */
   readonly draft: Record<string, unknown> = $derived.by(() => {

@@ -6,7 +6,22 @@ import { bandText, parseBandText } from './band-text.ts';
 
 const LIST_KEYS = ['groups', 'stages', 'sessions', 'nuisance'] as const;
 const NUMBER_KEYS = ['fminHz', 'fmaxHz', 'clusterP', 'permutations', 'seed'] as const;
-const TEXT_KEYS = ['design', 'groupColumn', 'covariate', 'session', 'stage', 'reference', 'averaging', 'measure', 'statistic', 'correction', 'bandMethod', 'aperiodicMethod', 'estimator', 'bandDefinition'] as const;
+const TEXT_KEYS = [
+  'design',
+  'groupColumn',
+  'covariate',
+  'session',
+  'stage',
+  'reference',
+  'averaging',
+  'measure',
+  'statistic',
+  'correction',
+  'bandMethod',
+  'aperiodicMethod',
+  'estimator',
+  'bandDefinition',
+] as const;
 
 /** The contrast JSON written by a hash's parameters (not yet validated). */
 export function contrastJsonFromParams(params: Readonly<Record<string, string>>): ContrastJson {

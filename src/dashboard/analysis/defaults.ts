@@ -43,7 +43,9 @@ export function defaultReference(stored: readonly string[]): string {
 
 /** The address-bar settings of a new analysis: two groups of the `group` column (or the first text column), the default stage and reference. */
 export function formDefaults(c: FormChoices): Record<string, string> {
-  const column = c.textColumns.has(CONTRAST_DEFAULTS.groupColumn) ? CONTRAST_DEFAULTS.groupColumn : ([...c.textColumns.keys()][0] ?? CONTRAST_DEFAULTS.groupColumn);
+  const column = c.textColumns.has(CONTRAST_DEFAULTS.groupColumn)
+    ? CONTRAST_DEFAULTS.groupColumn
+    : ([...c.textColumns.keys()][0] ?? CONTRAST_DEFAULTS.groupColumn);
   const values = c.textColumns.get(column) ?? [];
   return {
     design: 'groups',

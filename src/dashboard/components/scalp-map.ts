@@ -18,9 +18,7 @@ export interface MapElectrode {
 export const MAP_RADIUS = 1.05;
 
 /** Disk positions of the channels that have one: stored x, y, z when given, else from the name (10-10 table; a scalp pair at its midpoint). */
-export function mapElectrodes(
-  values: readonly { channel: string; value: number; position?: Position3 | null }[],
-): MapElectrode[] {
+export function mapElectrodes(values: readonly { channel: string; value: number; position?: Position3 | null }[]): MapElectrode[] {
   const out: MapElectrode[] = [];
   for (const v of values) {
     const p = v.position ?? channelPosition(v.channel);
@@ -107,8 +105,26 @@ export function scalpMapPlot(electrodes: readonly MapElectrode[], o: ScalpMapOpt
     marks: [
       Plot.raster({ x1: -1, x2: 1, y1: -1, y2: 1, fill: (x: number, y: number) => inverseDistance(electrodes, x, y), pixelSize: 3, interpolate: null }),
       Plot.line(outline, { x: 'x', y: 'y', z: 'part', stroke: '#1d232b', strokeWidth: 1.5 }),
-      Plot.link(electrodes.filter((e) => e.pair), { x1: (e: MapElectrode) => e.pair!.x1, y1: (e: MapElectrode) => e.pair!.y1, x2: (e: MapElectrode) => e.pair!.x2, y2: (e: MapElectrode) => e.pair!.y2, stroke: '#1d232b', strokeWidth: 1, strokeDasharray: '3,2' }),
-      Plot.dot(electrodes, { x: 'x', y: 'y', r: 4.5, fill: 'value', stroke: (e: MapElectrode) => (marked.has(e.channel) ? 'white' : '#1d232b'), strokeWidth: (e: MapElectrode) => (marked.has(e.channel) ? 2.5 : 0.8) }),
+      Plot.link(
+        electrodes.filter((e) => e.pair),
+        {
+          x1: (e: MapElectrode) => e.pair!.x1,
+          y1: (e: MapElectrode) => e.pair!.y1,
+          x2: (e: MapElectrode) => e.pair!.x2,
+          y2: (e: MapElectrode) => e.pair!.y2,
+          stroke: '#1d232b',
+          strokeWidth: 1,
+          strokeDasharray: '3,2',
+        },
+      ),
+      Plot.dot(electrodes, {
+        x: 'x',
+        y: 'y',
+        r: 4.5,
+        fill: 'value',
+        stroke: (e: MapElectrode) => (marked.has(e.channel) ? 'white' : '#1d232b'),
+        strokeWidth: (e: MapElectrode) => (marked.has(e.channel) ? 2.5 : 0.8),
+      }),
       Plot.text(electrodes, { x: 'x', y: 'y', text: 'channel', dy: -10, fontSize: 10, fill: '#1d232b', stroke: 'white', strokeWidth: 3, paintOrder: 'stroke' }),
     ],
   };

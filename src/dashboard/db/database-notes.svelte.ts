@@ -2,16 +2,7 @@
 // (db/local-store.ts) and shared by the quality screen and every contrast.
 import type { Exclusion } from '../../core/contrast/data.ts';
 import { exclusionsToTsv, parseExclusionsTsv } from '../../core/contrast/exclusions.ts';
-import {
-  appendLedger,
-  databaseKey,
-  loadExclusions,
-  loadLedger,
-  saveExclusions,
-  withExclusion,
-  withoutExclusion,
-  type LedgerEntry,
-} from './local-store.ts';
+import { appendLedger, databaseKey, loadExclusions, loadLedger, saveExclusions, withExclusion, withoutExclusion, type LedgerEntry } from './local-store.ts';
 import { browserLedgerCounts } from './ledger-report.ts';
 import type { RunInfo } from '../../queries/runs.ts';
 

@@ -6,7 +6,11 @@ import type { RunInfo } from '../../queries/runs.ts';
 
 /** The key prefix of one database's entries. */
 export function databaseKey(runs: readonly RunInfo[], source: string): string {
-  const ids = runs.map((r) => r.runId).sort().join('+') || 'no-run';
+  const ids =
+    runs
+      .map((r) => r.runId)
+      .sort()
+      .join('+') || 'no-run';
   return `bandwise:${ids}:${source.split('/').pop() ?? source}`;
 }
 

@@ -2,7 +2,11 @@
 
 /** Make a file name from a title: lower case, words joined by '-'. */
 export function fileNameFrom(title: string, extension: string): string {
-  const stem = title.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '') || 'export';
+  const stem =
+    title
+      .toLowerCase()
+      .replace(/[^a-z0-9]+/g, '-')
+      .replace(/^-+|-+$/g, '') || 'export';
   return `${stem}.${extension}`;
 }
 

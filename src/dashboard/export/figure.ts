@@ -67,9 +67,7 @@ export async function svgToPng(svg: SVGSVGElement, scale = 2): Promise<Blob> {
     if (ctx === null) throw new Error('no 2D canvas available for PNG export');
     ctx.scale(scale, scale);
     ctx.drawImage(img, 0, 0, width, height);
-    return await new Promise<Blob>((resolve, reject) =>
-      canvas.toBlob((b) => (b ? resolve(b) : reject(new Error('PNG encoding failed'))), 'image/png'),
-    );
+    return await new Promise<Blob>((resolve, reject) => canvas.toBlob((b) => (b ? resolve(b) : reject(new Error('PNG encoding failed'))), 'image/png'));
   } finally {
     URL.revokeObjectURL(url);
   }

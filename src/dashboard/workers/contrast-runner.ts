@@ -77,7 +77,10 @@ export function startContrast(
           if (part === 0 && done[0] === 0) performance.mark('bandwise:permutations-started');
           done[part] = m.done;
           total[part] = m.total;
-          onProgress(done.reduce((a, b) => a + b, 0), total.reduce((a, b) => a + b, 0));
+          onProgress(
+            done.reduce((a, b) => a + b, 0),
+            total.reduce((a, b) => a + b, 0),
+          );
         } else if (m.kind === 'nulls') {
           others.push(m.nulls);
           worker.terminate();

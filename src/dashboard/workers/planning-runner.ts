@@ -20,7 +20,11 @@ function powerWorkerCount(): number {
   return (globalThis.navigator?.hardwareConcurrency ?? 1) >= 2 ? 2 : 1;
 }
 
-function start<T>(requests: PlanningRequest[], onProgress: (done: number, total: number) => void, pick: (m: PlanningReply) => { result: T; seconds: number } | null): RunningPlanning<T> {
+function start<T>(
+  requests: PlanningRequest[],
+  onProgress: (done: number, total: number) => void,
+  pick: (m: PlanningReply) => { result: T; seconds: number } | null,
+): RunningPlanning<T> {
   const workers = requests.map(() => new Worker(new URL('./planning.worker.ts', import.meta.url), { type: 'module' }));
   const stop = () => workers.forEach((w) => w.terminate());
   const done = new Array<number>(workers.length).fill(0);
@@ -39,7 +43,10 @@ function start<T>(requests: PlanningRequest[], onProgress: (done: number, total:
         if (m.kind === 'progress') {
           done[part] = m.done;
           total[part] = m.total;
-          onProgress(done.reduce((a, b) => a + b, 0), total.reduce((a, b) => a + b, 0));
+          onProgress(
+            done.reduce((a, b) => a + b, 0),
+            total.reduce((a, b) => a + b, 0),
+          );
         } else if (m.kind === 'outcomes') {
           others.push(...m.outcomes);
           worker.terminate();
@@ -59,11 +66,21 @@ function start<T>(requests: PlanningRequest[], onProgress: (done: number, total:
   return { result, cancel: () => settle?.(new PlanningCancelled('cancelled')) };
 }
 
-export function startPower(contrast: Contrast, plan: PowerPlan, data: ContrastData, onProgress: (done: number, total: number) => void, parts = powerWorkerCount()): RunningPlanning<PowerResult> {
+export function startPower(
+  contrast: Contrast,
+  plan: PowerPlan,
+  data: ContrastData,
+  onProgress: (done: number, total: number) => void,
+  parts = powerWorkerCount(),
+): RunningPlanning<PowerResult> {
   const requests: PlanningRequest[] = Array.from({ length: parts }, (_, part) => ({ kind: 'power', contrast, plan, data, part, parts }));
   return start(requests, onProgress, (m) => (m.kind === 'power' ? { result: m.result, seconds: m.seconds } : null));
 }
 
 export function startDeviation(spec: DeviationSpec, data: ContrastData, subject: string | null): RunningPlanning<DeviationAnswer> {
-  return start([{ kind: 'deviation', spec, data, subject }], () => {}, (m) => (m.kind === 'deviation' ? { result: m.answer, seconds: m.seconds } : null));
+  return start(
+    [{ kind: 'deviation', spec, data, subject }],
+    () => {},
+    (m) => (m.kind === 'deviation' ? { result: m.answer, seconds: m.seconds } : null),
+  );
 }

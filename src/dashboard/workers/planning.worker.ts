@@ -1,6 +1,17 @@
 // Runs a power simulation (its share of the simulations) or a deviation off the page's thread, with
 // src/core/planning. Progress goes back at most every 50 ms; the page cancels by terminating.
-import { fitDeviation, deviationResult, jobCount, powerResult, preparePower, referenceBand, runSimulation, simulationJob, type PreparedPower, type SimulationOutcome } from '../../core/planning/index.ts';
+import {
+  fitDeviation,
+  deviationResult,
+  jobCount,
+  powerResult,
+  preparePower,
+  referenceBand,
+  runSimulation,
+  simulationJob,
+  type PreparedPower,
+  type SimulationOutcome,
+} from '../../core/planning/index.ts';
 import type { PlanningReply, PlanningRequest } from './planning-protocol.ts';
 
 const post = (m: PlanningReply) => (self as unknown as Worker).postMessage(m);
@@ -44,7 +55,11 @@ self.onmessage = (e: MessageEvent<PlanningRequest>) => {
     } else {
       const model = fitDeviation(req.spec, req.data);
       const index = req.subject === null ? -1 : model.matrix.subjects.findIndex((s) => s.subject === req.subject);
-      post({ kind: 'deviation', answer: { result: deviationResult(req.spec, model), subject: index >= 0 ? req.subject : null, band: index >= 0 ? referenceBand(model, index) : null }, seconds: (performance.now() - t0) / 1000 });
+      post({
+        kind: 'deviation',
+        answer: { result: deviationResult(req.spec, model), subject: index >= 0 ? req.subject : null, band: index >= 0 ? referenceBand(model, index) : null },
+        seconds: (performance.now() - t0) / 1000,
+      });
     }
   } catch (err) {
     post({ kind: 'error', message: err instanceof Error ? err.message : String(err) });

@@ -14,7 +14,10 @@ export interface RunningJob<T> {
 type ResultOf<R extends VerdictRequest> = R['kind'] extends 'band-check' ? BandCheckResult : SpecificationCurve;
 
 /** Start a band check or a robustness run in a new worker; the worker ends with the job. */
-export function startVerdictJob<R extends VerdictRequest>(request: R, onProgress: (step: string, done: number, total: number) => void): RunningJob<ResultOf<R>> {
+export function startVerdictJob<R extends VerdictRequest>(
+  request: R,
+  onProgress: (step: string, done: number, total: number) => void,
+): RunningJob<ResultOf<R>> {
   const worker = new Worker(new URL('./verdict.worker.ts', import.meta.url), { type: 'module' });
   let fail: ((e: Error) => void) | null = null;
   const result = new Promise<{ result: ResultOf<R>; seconds: number }>((resolve, reject) => {

@@ -50,7 +50,8 @@ function centreMarks(fig: BandCheckFigure, labels: boolean): Plot.Markish[] {
     if (s) rows.push({ series: seriesLabel(s), centerHz: m.centerHz, text: `${m.centerHz.toFixed(2)} Hz` });
   }
   const marks: Plot.Markish[] = [Plot.ruleX(rows, { x: 'centerHz', stroke: 'series', strokeWidth: 1.4, strokeDasharray: '2,3' })];
-  if (labels) marks.push(Plot.text(rows, { x: 'centerHz', text: 'text', fill: 'series', frameAnchor: 'bottom', dy: -4, rotate: -90, textAnchor: 'start', fontSize: 10 }));
+  if (labels)
+    marks.push(Plot.text(rows, { x: 'centerHz', text: 'text', fill: 'series', frameAnchor: 'bottom', dy: -4, rotate: -90, textAnchor: 'start', fontSize: 10 }));
   return marks;
 }
 
@@ -92,7 +93,12 @@ export function residualPanel(fig: BandCheckFigure): Plot.PlotOptions {
     x: x(fig, null),
     y: { label: 'mean residual (log10)', grid: true },
     color: { ...colour(fig), legend: false },
-    marks: [...shadeMarks(fig, false), Plot.ruleY([0], { stroke: '#888' }), Plot.line(rows, { x: 'f', y: 'residual', stroke: 'series', strokeWidth: 1.8 }), ...centreMarks(fig, false)],
+    marks: [
+      ...shadeMarks(fig, false),
+      Plot.ruleY([0], { stroke: '#888' }),
+      Plot.line(rows, { x: 'f', y: 'residual', stroke: 'series', strokeWidth: 1.8 }),
+      ...centreMarks(fig, false),
+    ],
   };
 }
 
@@ -113,7 +119,14 @@ export function effectPanel(fig: BandCheckFigure, alpha: number): Plot.PlotOptio
       Plot.areaY(rows, { x: 'f', y1: 'low', y2: 'high', fill: '#555', fillOpacity: 0.18 }),
       Plot.line(rows, { x: 'f', y: 'value', stroke: '#222', strokeWidth: 1.6 }),
       Plot.rectX(sig, { x1: 'fminHz', x2: 'fmaxHz', fill: '#c0392b', fillOpacity: 0.12 }),
-      Plot.text(sig, { x: (k: (typeof sig)[number]) => (k.fminHz + k.fmaxHz) / 2, text: (k: (typeof sig)[number]) => `cluster p = ${k.p.toFixed(3)}`, frameAnchor: 'bottom', dy: -4, fontSize: 10, fill: '#a93226' }),
+      Plot.text(sig, {
+        x: (k: (typeof sig)[number]) => (k.fminHz + k.fmaxHz) / 2,
+        text: (k: (typeof sig)[number]) => `cluster p = ${k.p.toFixed(3)}`,
+        frameAnchor: 'bottom',
+        dy: -4,
+        fontSize: 10,
+        fill: '#a93226',
+      }),
     ],
   };
 }

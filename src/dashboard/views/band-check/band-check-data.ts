@@ -33,7 +33,20 @@ function missingText(r: BandCheckResult, key: keyof BandCheckTests): string {
 export function effectRows(r: BandCheckResult): Row[] {
   return EFFECTS.map(({ key, label, decides }) => {
     const t = r.tests[key];
-    if (t === null) return { effect: label, measure: missingText(r, key), kind: null, size: null, ci_low: null, ci_high: null, difference: null, t: null, p: null, p_adjusted: null, decides };
+    if (t === null)
+      return {
+        effect: label,
+        measure: missingText(r, key),
+        kind: null,
+        size: null,
+        ci_low: null,
+        ci_high: null,
+        difference: null,
+        t: null,
+        p: null,
+        p_adjusted: null,
+        decides,
+      };
     return {
       effect: label,
       measure: t.measure,
@@ -60,7 +73,12 @@ export function periodicKindText(kind: PeriodicKind | null): string | null {
 
 /** The decision family in words: "periodic power, peak centre frequency, aperiodic offset and aperiodic exponent: 4 tests, Bonferroni-corrected at α = 0.05 (each passes at p ≤ 0.0125)". */
 export function familyText(r: BandCheckResult): string {
-  const names: Record<string, string> = { periodic: 'periodic power', peakCenter: 'peak centre frequency', offset: 'aperiodic offset', exponent: 'aperiodic exponent' };
+  const names: Record<string, string> = {
+    periodic: 'periodic power',
+    peakCenter: 'peak centre frequency',
+    offset: 'aperiodic offset',
+    exponent: 'aperiodic exponent',
+  };
   const list = r.family.map((f) => names[f.test] ?? f.test);
   const words = list.length > 1 ? `${list.slice(0, -1).join(', ')} and ${list[list.length - 1]}` : list.join('');
   return `${words}: ${r.family.length} tests, Bonferroni-corrected at α = ${r.alpha} (each passes at p ≤ ${Number((r.alpha / r.family.length).toPrecision(4))})`;
@@ -70,10 +88,14 @@ export function familyText(r: BandCheckResult): string {
 export function peakCentreText(r: BandCheckResult): string {
   const s = r.peakCenter;
   const means = s.means.map((m) => `${m.centerHz.toFixed(2)} Hz in ${m.name} (width ${m.widthHz.toFixed(2)} Hz, n ${m.n})`).join(', ');
-  return [means ? `Mean centre of the highest fitted peak in the band: ${means}.` : null, s.skipped ? `Peak centre not tested: ${s.skipped}.` : null, s.note].filter(Boolean).join(' ');
+  return [means ? `Mean centre of the highest fitted peak in the band: ${means}.` : null, s.skipped ? `Peak centre not tested: ${s.skipped}.` : null, s.note]
+    .filter(Boolean)
+    .join(' ');
 }
 
 /** Group sizes in words: "control 20, patient 19". */
 export function sizesText(n: Record<string, number>): string {
-  return Object.entries(n).map(([g, k]) => `${g} ${k}`).join(', ');
+  return Object.entries(n)
+    .map(([g, k]) => `${g} ${k}`)
+    .join(', ');
 }

@@ -31,13 +31,15 @@ const STAGE_KEYS: Record<string, string> = { W: 'w_min', N1: 'n1_min', N2: 'n2_m
 
 /** Minutes per stage of each recording, stacked, one bar per recording. */
 export function stageMinutesPlot(recordings: readonly Row[]): Plot.PlotOptions {
-  const long = recordings.flatMap((r) =>
-    SCORED_STAGES.map((stage) => ({
-      recording: `${r.subject}${r.session ? ` ${r.session}` : ''}`,
-      stage,
-      minutes: (r[STAGE_KEYS[stage]] as number | null) ?? 0,
-    })),
-  ).filter((d) => d.minutes > 0);
+  const long = recordings
+    .flatMap((r) =>
+      SCORED_STAGES.map((stage) => ({
+        recording: `${r.subject}${r.session ? ` ${r.session}` : ''}`,
+        stage,
+        minutes: (r[STAGE_KEYS[stage]] as number | null) ?? 0,
+      })),
+    )
+    .filter((d) => d.minutes > 0);
   const bars = new Set(long.map((d) => d.recording)).size;
   return {
     height: 50 + 22 * bars,

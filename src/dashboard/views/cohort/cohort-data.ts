@@ -39,5 +39,12 @@ export async function loadCohort(db: SqlClient, schema: CohortSchema, groupColum
     if (hidden !== null) delete rest[hidden];
     return workflow.split ? { ...rest, part: workflow.parts.get(String(r.subject)) ?? null } : rest;
   });
-  return { groupColumn, sizes, participantColumns: workflow.split ? [...columns, { name: 'part', type: 'VARCHAR' }] : columns, participants: rows, recordings, errors };
+  return {
+    groupColumn,
+    sizes,
+    participantColumns: workflow.split ? [...columns, { name: 'part', type: 'VARCHAR' }] : columns,
+    participants: rows,
+    recordings,
+    errors,
+  };
 }

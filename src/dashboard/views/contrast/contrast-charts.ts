@@ -65,7 +65,14 @@ export function statisticMapPlot(r: CompareResult): Plot.PlotOptions {
     },
     color: { type: 'linear', scheme: 'rdbu', reverse: true, domain: [-m, m], legend: 'ramp', label: statisticLabel(r.contrast, s.statistic) },
     marks: [
-      Plot.rect(cells, { x1: 'x1', x2: 'x2', y1: 'y1', y2: 'y2', fill: 't', title: (d: (typeof cells)[number]) => `${d.channel} ${d.f} Hz: t = ${d.t.toFixed(2)}` }),
+      Plot.rect(cells, {
+        x1: 'x1',
+        x2: 'x2',
+        y1: 'y1',
+        y2: 'y2',
+        fill: 't',
+        title: (d: (typeof cells)[number]) => `${d.channel} ${d.f} Hz: t = ${d.t.toFixed(2)}`,
+      }),
       Plot.link(outlines, { x1: 'x1', x2: 'x2', y1: 'y1', y2: 'y2', stroke: '#111', strokeWidth: 2 }),
     ],
   };

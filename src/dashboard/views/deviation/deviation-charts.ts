@@ -10,18 +10,34 @@ export function zMapPlot(r: DeviationResult, subjectIndex: number): Plot.PlotOpt
   const s = r.subjects[subjectIndex];
   const F = r.freqsHz.length;
   const half = F > 1 ? (r.freqsHz[1] - r.freqsHz[0]) / 2 : 0.5;
-  const cells = r.channels.flatMap((channel, c) =>
-    r.freqsHz.map((f, i) => ({ x1: f - half, x2: f + half, y1: c, y2: c + 1, z: s.z[c][i], channel, f })),
-  );
+  const cells = r.channels.flatMap((channel, c) => r.freqsHz.map((f, i) => ({ x1: f - half, x2: f + half, y1: c, y2: c + 1, z: s.z[c][i], channel, f })));
   return {
     height: 60 + 22 * r.channels.length,
     marginLeft: 60,
     x: { label: F > 1 ? 'frequency (Hz)' : null, ticks: F > 1 ? undefined : [] },
     y: { label: null, domain: [r.channels.length, 0], ticks: r.channels.map((_, i) => i + 0.5), tickFormat: (v: number) => r.channels[Math.floor(v)] ?? '' },
-    color: { type: 'linear', scheme: 'rdbu', reverse: true, domain: [-Z_LIMIT, Z_LIMIT], clamp: true, legend: 'ramp', label: `z of ${s.subject} against ${r.reference.group}` },
+    color: {
+      type: 'linear',
+      scheme: 'rdbu',
+      reverse: true,
+      domain: [-Z_LIMIT, Z_LIMIT],
+      clamp: true,
+      legend: 'ramp',
+      label: `z of ${s.subject} against ${r.reference.group}`,
+    },
     marks: [
-      Plot.rect(cells, { x1: 'x1', x2: 'x2', y1: 'y1', y2: 'y2', fill: (d: (typeof cells)[number]) => d.z ?? NaN, title: (d: (typeof cells)[number]) => `${d.channel} ${d.f} Hz: z = ${d.z === null ? '–' : d.z.toFixed(2)}` }),
-      Plot.rect(cells.filter((d) => d.z !== null && Math.abs(d.z) > 2), { x1: 'x1', x2: 'x2', y1: 'y1', y2: 'y2', stroke: '#111', strokeWidth: 0.6 }),
+      Plot.rect(cells, {
+        x1: 'x1',
+        x2: 'x2',
+        y1: 'y1',
+        y2: 'y2',
+        fill: (d: (typeof cells)[number]) => d.z ?? NaN,
+        title: (d: (typeof cells)[number]) => `${d.channel} ${d.f} Hz: z = ${d.z === null ? '–' : d.z.toFixed(2)}`,
+      }),
+      Plot.rect(
+        cells.filter((d) => d.z !== null && Math.abs(d.z) > 2),
+        { x1: 'x1', x2: 'x2', y1: 'y1', y2: 'y2', stroke: '#111', strokeWidth: 0.6 },
+      ),
     ],
   };
 }
@@ -54,7 +70,14 @@ export function sharesPlot(r: DeviationResult, subject: string | null): Plot.Plo
     y: { label: null },
     marks: [
       Plot.ruleX([r.expectedShare], { stroke: '#888', strokeDasharray: '4,3' }),
-      Plot.dot(rows, { x: 'share', y: 'group', fill: (d: (typeof rows)[number]) => (d.chosen ? '#d55e00' : '#0072b2'), r: (d: (typeof rows)[number]) => (d.chosen ? 6 : 3.5), fillOpacity: 0.75, title: (d: (typeof rows)[number]) => `${d.subject}: ${(100 * d.share).toFixed(1)} %` }),
+      Plot.dot(rows, {
+        x: 'share',
+        y: 'group',
+        fill: (d: (typeof rows)[number]) => (d.chosen ? '#d55e00' : '#0072b2'),
+        r: (d: (typeof rows)[number]) => (d.chosen ? 6 : 3.5),
+        fillOpacity: 0.75,
+        title: (d: (typeof rows)[number]) => `${d.subject}: ${(100 * d.share).toFixed(1)} %`,
+      }),
     ],
   };
 }

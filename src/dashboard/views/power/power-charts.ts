@@ -3,7 +3,10 @@ import * as Plot from '@observablehq/plot';
 import type { PowerResult } from '../../../core/planning/index.ts';
 
 export function powerCurvePlot(r: PowerResult): Plot.PlotOptions {
-  const rows = r.curve.map((p) => ({ ...p, title: `n = ${p.nPerGroup} per group: power ${p.power.toFixed(3)} [${p.ciLow.toFixed(3)}, ${p.ciHigh.toFixed(3)}], ${p.found} of ${p.simulations} simulations` }));
+  const rows = r.curve.map((p) => ({
+    ...p,
+    title: `n = ${p.nPerGroup} per group: power ${p.power.toFixed(3)} [${p.ciLow.toFixed(3)}, ${p.ciHigh.toFixed(3)}], ${p.found} of ${p.simulations} simulations`,
+  }));
   return {
     height: 300,
     x: { label: 'subjects per group', grid: true, inset: 24, ticks: rows.map((p) => p.nPerGroup), tickFormat: 'd' },

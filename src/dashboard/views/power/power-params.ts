@@ -26,7 +26,9 @@ export function powerFromParams(params: Readonly<Record<string, string>>): { con
     effect: number('effect', get('effect')),
     band: measureTakesBand(contrast.measure) ? bandFromParams(params) : null,
     channels: channels === 'all' ? 'all' : channels.split(',').filter((c) => c !== ''),
-    nPerGroup: get('n').split(',').map((n) => number('n', n)),
+    nPerGroup: get('n')
+      .split(',')
+      .map((n) => number('n', n)),
     simulations: number('simulations', get('simulations')),
     seed: contrast.seed,
     alpha: number('alpha', get('alpha')),

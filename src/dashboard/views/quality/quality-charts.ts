@@ -50,8 +50,7 @@ export function qualityGridPlot(
         x: 'channel',
         y: 'subject',
         fill,
-        title: (c: GridCell) =>
-          `${c.subject} · ${c.channel}\nscore ${c.score.toFixed(2)}${c.reasons.length ? `\n${c.reasons.join('\n')}` : ''}`,
+        title: (c: GridCell) => `${c.subject} · ${c.channel}\nscore ${c.score.toFixed(2)}${c.reasons.length ? `\n${c.reasons.join('\n')}` : ''}`,
         render: clickableCells(shown, onSelect),
       }),
       Plot.cell(flagged, { x: 'channel', y: 'subject', fill: 'none', stroke: '#1d232b', strokeWidth: 1.2, inset: 1.5 }),

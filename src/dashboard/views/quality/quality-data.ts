@@ -41,7 +41,15 @@ export interface QualityData {
 }
 
 function asCoreRow(r: QualityRecord): QualityRow {
-  return { channel: r.channel, stage: r.stage as Stage | null, metric: r.metric as QualityMetric, value: r.value, flagged: r.flagged, reason: r.reason, severity: r.severity };
+  return {
+    channel: r.channel,
+    stage: r.stage as Stage | null,
+    metric: r.metric as QualityMetric,
+    value: r.value,
+    flagged: r.flagged,
+    reason: r.reason,
+    severity: r.severity,
+  };
 }
 
 export function buildGrid(
@@ -71,7 +79,16 @@ export function buildGrid(
         const m = perMetric[r.metric];
         if (m === undefined || r.severity > m.severity) perMetric[r.metric] = { value: r.value, severity: r.severity };
       }
-      cells.push({ recordingId: rec.recordingId, subject: rec.subject, channel, score: s.score, nFlagged: s.nFlagged, worst: s.worst, reasons: s.reasons, metrics: perMetric });
+      cells.push({
+        recordingId: rec.recordingId,
+        subject: rec.subject,
+        channel,
+        score: s.score,
+        nFlagged: s.nFlagged,
+        worst: s.worst,
+        reasons: s.reasons,
+        metrics: perMetric,
+      });
     }
   }
   return { channels, metrics, cells };
@@ -85,7 +102,11 @@ export function defaultGridStage(stages: readonly string[]): string {
 /** The grid of one stage: its rows and the rows that are not per stage ('all': every row). */
 export function gridForStage(d: QualityData, stage: string): Pick<QualityData, 'channels' | 'metrics' | 'cells'> {
   if (stage === 'all') return { channels: d.channels, metrics: d.metrics, cells: d.cells };
-  return buildGrid(d.recordings, d.channelOrder, d.rows.filter((r) => r.stage === null || r.stage === stage));
+  return buildGrid(
+    d.recordings,
+    d.channelOrder,
+    d.rows.filter((r) => r.stage === null || r.stage === stage),
+  );
 }
 
 export async function loadQuality(db: SqlClient, schema: CohortSchema): Promise<QualityData> {

@@ -16,7 +16,8 @@ export function parseResultJson(text: string, fileName: string): ReportableResul
     throw new ResultFileError(`${fileName}: cannot be read as JSON (${(e as Error).message})`);
   }
   const kind = (value as { kind?: unknown } | null)?.kind;
-  if (kind !== 'compare' && kind !== 'band-check') throw new ResultFileError(`${fileName}: "kind" is ${JSON.stringify(kind)}, expected "compare" or "band-check" (a result of a contrast or a band check)`);
+  if (kind !== 'compare' && kind !== 'band-check')
+    throw new ResultFileError(`${fileName}: "kind" is ${JSON.stringify(kind)}, expected "compare" or "band-check" (a result of a contrast or a band check)`);
   const c = (value as { contrast?: unknown }).contrast;
   if (c === null || typeof c !== 'object') throw new ResultFileError(`${fileName}: no "contrast" object`);
   if (!Array.isArray((value as { exclusions?: unknown }).exclusions)) throw new ResultFileError(`${fileName}: no "exclusions" list`);

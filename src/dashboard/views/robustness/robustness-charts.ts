@@ -13,7 +13,14 @@ const xScale = (n: number, label: string | null): Plot.ScaleOptions => ({ domain
 
 export function curvePanel(curve: SpecificationCurve): Plot.PlotOptions {
   const kind = curve.paths[0]?.effectKind === 'hedges-g' ? "Hedges' g" : (curve.paths[0]?.effectKind ?? 'effect');
-  const rows = curve.paths.map((p) => ({ rank: p.rank, effect: p.effect, low: p.ciLow, high: p.ciHigh, status: p.significant ? `p < ${curve.alpha}` : `p ≥ ${curve.alpha}`, title: `${p.description}\n${kind} = ${p.effect.toFixed(2)} [${p.ciLow.toFixed(2)}, ${p.ciHigh.toFixed(2)}], p = ${p.p.toPrecision(3)}` }));
+  const rows = curve.paths.map((p) => ({
+    rank: p.rank,
+    effect: p.effect,
+    low: p.ciLow,
+    high: p.ciHigh,
+    status: p.significant ? `p < ${curve.alpha}` : `p ≥ ${curve.alpha}`,
+    title: `${p.description}\n${kind} = ${p.effect.toFixed(2)} [${p.ciLow.toFixed(2)}, ${p.ciHigh.toFixed(2)}], p = ${p.p.toPrecision(3)}`,
+  }));
   return {
     height: 260,
     marginLeft: MARGIN_LEFT,
@@ -37,7 +44,10 @@ export function matrixPanel(curve: SpecificationCurve, rows: readonly MatrixRow[
     x: xScale(curve.nPaths, 'path (sorted by effect size)'),
     y: { domain: rows.map((r) => r.label), label: null, tickSize: 0 },
     marks: [
-      Plot.gridY(rows.map((r) => r.label), { stroke: '#ddd', strokeOpacity: 1 }),
+      Plot.gridY(
+        rows.map((r) => r.label),
+        { stroke: '#ddd', strokeOpacity: 1 },
+      ),
       Plot.dot(dots, { x: 'rank', y: 'label', fill: (d: (typeof dots)[number]) => (d.significant ? SIGNIFICANT : NOT_SIGNIFICANT), r: 2.6 }),
     ],
   };

@@ -9,7 +9,10 @@ const hz = (r: readonly number[]) => `${r[0]}–${r[1]} Hz`;
 /** The value a path took for each choice (null: the choice does not apply to its measure). */
 export function pathChoiceValues(p: PathResult): { choice: string; value: string | null }[] {
   return [
-    { choice: 'measure', value: p.measure === 'absolute' ? 'absolute log10 power' : p.measure === 'relative' ? `relative to ${hz(p.denominatorHz!)}` : 'residual' },
+    {
+      choice: 'measure',
+      value: p.measure === 'absolute' ? 'absolute log10 power' : p.measure === 'relative' ? `relative to ${hz(p.denominatorHz!)}` : 'residual',
+    },
     { choice: 'reference', value: p.reference },
     { choice: 'averaging', value: `${p.averaging} over epochs` },
     { choice: 'estimator', value: p.estimator === 'welch' ? 'Welch' : 'multitaper' },
@@ -90,13 +93,18 @@ export function measureSentence(curve: SpecificationCurve): string {
   }
   const parts = [...byMeasure].map(([name, ps]) => {
     const kind = ps[0].effectKind === 'hedges-g' ? 'g' : ps[0].effectKind;
-    const med = median(ps.map((p) => p.effect)).toFixed(2).replace('-', '−');
+    const med = median(ps.map((p) => p.effect))
+      .toFixed(2)
+      .replace('-', '−');
     return `${name}: ${ps.filter((p) => p.significant).length} of ${ps.length} paths with p < ${curve.alpha}, median ${kind} = ${med}`;
   });
   return `By measure — ${parts.join('; ')}.`;
 }
 
-const counts = (n: Record<string, number>) => Object.entries(n).map(([g, k]) => `${g} ${k}`).join(', ');
+const counts = (n: Record<string, number>) =>
+  Object.entries(n)
+    .map(([g, k]) => `${g} ${k}`)
+    .join(', ');
 
 /** The table of paths, in curve order; a path decided on power and frequency states its peak-centre test. */
 export function pathRows(curve: SpecificationCurve): Row[] {

@@ -4,7 +4,15 @@
 // stores (defaultPathChoices); decided on power only.
 import { BAND_DEFINITIONS, type BandDefinition, type Contrast, type EstimatorName } from '../../../core/contrast/spec.ts';
 import type { Band, BandMethod } from '../../../core/spectrum/bands.ts';
-import { edgeVariants, PATH_DECISIONS, type PathChoices, type PathDataSet, type PathDecision, type PathMeasure, type PathTest } from '../../../core/verdict/index.ts';
+import {
+  edgeVariants,
+  PATH_DECISIONS,
+  type PathChoices,
+  type PathDataSet,
+  type PathDecision,
+  type PathMeasure,
+  type PathTest,
+} from '../../../core/verdict/index.ts';
 
 type Averaging = PathDataSet['averaging'];
 
@@ -30,7 +38,8 @@ const rangeText = (r: readonly number[]) => `${r[0]}-${r[1]}`;
 function parseRange(text: string, key: string): [number, number] {
   const m = /^([\d.]+)-([\d.]+)$/.exec(text);
   const r: [number, number] = m ? [Number(m[1]), Number(m[2])] : [NaN, NaN];
-  if (!(Number.isFinite(r[0]) && Number.isFinite(r[1]) && r[1] > r[0])) throw new RobustnessParamError(`address bar: ${key} holds ${text}, not a range lo-hi in Hz`);
+  if (!(Number.isFinite(r[0]) && Number.isFinite(r[1]) && r[1] > r[0]))
+    throw new RobustnessParamError(`address bar: ${key} holds ${text}, not a range lo-hi in Hz`);
   return r;
 }
 
@@ -54,11 +63,19 @@ export function defaultDenominators(c: Contrast): [number, number][] {
 }
 
 /** Choices and test of the address bar; values the database does not store are refused. */
-export function pathChoicesFromParams(params: Readonly<Record<string, string>>, c: Contrast, band: Band, stored: StoredChoices): { choices: PathChoices; test: PathTest } {
+export function pathChoicesFromParams(
+  params: Readonly<Record<string, string>>,
+  c: Contrast,
+  band: Band,
+  stored: StoredChoices,
+): { choices: PathChoices; test: PathTest } {
   const fits = list(params, 'fits');
   const fitRangesHz = fits === null ? stored.fitRangesHz.map((r) => [...r] as [number, number]) : fits.map((f) => parseRange(f, 'fits'));
   for (const r of fitRangesHz) {
-    if (!stored.fitRangesHz.some((s) => s[0] === r[0] && s[1] === r[1])) throw new RobustnessParamError(`address bar: fit range ${r[0]}–${r[1]} Hz is not stored (stored: ${stored.fitRangesHz.map((s) => `${s[0]}–${s[1]} Hz`).join(', ') || 'none'})`);
+    if (!stored.fitRangesHz.some((s) => s[0] === r[0] && s[1] === r[1]))
+      throw new RobustnessParamError(
+        `address bar: fit range ${r[0]}–${r[1]} Hz is not stored (stored: ${stored.fitRangesHz.map((s) => `${s[0]}–${s[1]} Hz`).join(', ') || 'none'})`,
+      );
   }
   const dens = list(params, 'denominators');
   const test = (params.test ?? 'band-summary') as PathTest;
@@ -75,7 +92,12 @@ export function pathChoicesFromParams(params: Readonly<Record<string, string>>, 
       decisions: pick<PathDecision>(list(params, 'decisions'), PATH_DECISIONS, ['power'], 'decisions'),
       estimators: pick(list(params, 'estimators'), stored.estimators, stored.estimators, 'estimators'),
       // individual bands need the fitted peaks, stored with the fits
-      bandDefinitions: pick<BandDefinition>(list(params, 'definitions'), BAND_DEFINITIONS, stored.fitRangesHz.length > 0 ? BAND_DEFINITIONS : ['fixed'], 'definitions'),
+      bandDefinitions: pick<BandDefinition>(
+        list(params, 'definitions'),
+        BAND_DEFINITIONS,
+        stored.fitRangesHz.length > 0 ? BAND_DEFINITIONS : ['fixed'],
+        'definitions',
+      ),
     },
     test,
   };

@@ -51,11 +51,25 @@ export async function loadSpectraRows(
   // the spectra view shows the Welch estimate
   const q = { runId: run.runId, ...sel, estimator: storedEstimator(schema, 'welch') };
   // issued together: duckdb-wasm runs them one after another in its worker, without waits between
-  const [s, aperiodic, participants, { view }] = await Promise.all([spectraRows(db, q), aperiodicRows(db, q, 'fit'), contrastParticipants(db, schema), workflowOf(db, schema)]);
+  const [s, aperiodic, participants, { view }] = await Promise.all([
+    spectraRows(db, q),
+    aperiodicRows(db, q, 'fit'),
+    contrastParticipants(db, schema),
+    workflowOf(db, schema),
+  ]);
   performance.mark('bandwise:spectra-rows');
   // while a split exists, the exploration part's subjects only (groups coded while blinded)
   const rows = keepSubjects(s.rows, view);
-  return { runId: run.runId, stage: sel.stage, reference: sel.reference, ...s, rows, aperiodic: keepSubjects(aperiodic, view), participants: partParticipants(participants, view), channels: [...new Set(rows.map((r) => r.channel))] };
+  return {
+    runId: run.runId,
+    stage: sel.stage,
+    reference: sel.reference,
+    ...s,
+    rows,
+    aperiodic: keepSubjects(aperiodic, view),
+    participants: partParticipants(participants, view),
+    channels: [...new Set(rows.map((r) => r.channel))],
+  };
 }
 
 export interface GroupCurve {
@@ -98,7 +112,15 @@ export function measureSettings(measure: SpectrumMeasure, fminHz: number, fmaxHz
  */
 export function groupSpectra(
   d: SpectraRows,
-  o: { groupColumn: string; channels: readonly string[]; measure: SpectrumMeasure; fminHz: number; fmaxHz: number; relativeRangeHz: [number, number]; exclusions: readonly Exclusion[] },
+  o: {
+    groupColumn: string;
+    channels: readonly string[];
+    measure: SpectrumMeasure;
+    fminHz: number;
+    fmaxHz: number;
+    relativeRangeHz: [number, number];
+    exclusions: readonly Exclusion[];
+  },
 ): GroupSpectra {
   const c = measureSettings(o.measure, o.fminHz, o.fmaxHz, o.relativeRangeHz);
   const axis = { freqStartHz: d.freqStartHz, freqStepHz: d.freqStepHz, nBins: d.nBins };

@@ -8,7 +8,11 @@ import type { WorkflowState } from '../../../queries/workflow.ts';
 /** A contrast in a few words: what is compared, where, on which measure. */
 export function contrastSummary(c: Contrast): string {
   const what =
-    c.design === 'groups' ? `${c.groups![1]} − ${c.groups![0]} (${c.groupColumn})` : c.design === 'paired' ? `${(c.stages ?? c.sessions ?? []).join(' vs ')} paired` : `correlation with ${c.covariate}`;
+    c.design === 'groups'
+      ? `${c.groups![1]} − ${c.groups![0]} (${c.groupColumn})`
+      : c.design === 'paired'
+        ? `${(c.stages ?? c.sessions ?? []).join(' vs ')} paired`
+        : `correlation with ${c.covariate}`;
   const channels = c.channels === 'all' ? 'all channels' : c.channels.join(' ');
   const bands = c.bands?.length ? `, ${c.bands.map((b) => `${b.name} ${b.loHz}–${b.hiHz} Hz`).join(', ')}` : '';
   return `${what}, ${c.stage}, ${c.measure}${bands}, ${c.fminHz}–${c.fmaxHz} Hz, ${channels}${c.channelAverage ? ' averaged' : ''}, ${c.correction}`;
