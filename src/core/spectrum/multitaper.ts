@@ -1,5 +1,6 @@
 import { RealFftPower } from './real-fft.ts';
 import { slepianTapers, type SlepianTapers } from './dpss.ts';
+import { addOneSided, addPairPower } from './pair-power.ts';
 
 /**
  * The multitaper power spectral density (Thomson 1982, Proc. IEEE 70:1055–1096; Percival &
@@ -147,18 +148,9 @@ export class Multitaper {
         }
       }
       const y = this.fft.pairTransform();
-      // |A_k|² + |B_k|² = (|Z_k|² + |Z_{n−k}|²)/2, with Z_n = Z_0 (two-for-one real FFT)
-      raw[0] += y[0] * y[0] + y[1] * y[1];
-      for (let b = 1; b < this.nBins; b++) {
-        const r = n - b;
-        raw[b] += 0.5 * (y[2 * b] * y[2 * b] + y[2 * b + 1] * y[2 * b + 1] + y[2 * r] * y[2 * r] + y[2 * r + 1] * y[2 * r + 1]);
-      }
+      addPairPower(y, n, this.nBins, raw);
     }
-    const evenNyquist = n % 2 === 0 ? n / 2 : -1;
-    for (let b = 0; b < this.nBins; b++) {
-      const doubled = b !== 0 && b !== evenNyquist; // one-sided: double all but DC and Nyquist
-      sum[b] += raw[b] * this.scale * (doubled ? 2 : 1);
-    }
+    addOneSided(raw, this.scale, n, this.nBins, sum);
     return count;
   }
 

@@ -1,6 +1,7 @@
 import { RealFftPower } from './real-fft.ts';
 import { medianBias } from './median-bias.ts';
 import { medianInPlace } from '../stats/median.ts';
+import { addOneSided, addPairPower } from './pair-power.ts';
 
 /**
  * Welch's averaged, modified periodogram (Welch 1967, IEEE Trans. Audio Electroacoust. 15:70–73),
@@ -91,7 +92,6 @@ export class Welch {
     const buf = this.buffer;
     const full = this.full;
     const out = this.segment;
-    const evenNyquist = n % 2 === 0 ? n / 2 : -1;
     for (let s = 0; s < count; s++) {
       const o = start + s * this.step;
       let mean = 0;
@@ -99,10 +99,8 @@ export class Welch {
       mean /= n; // detrend 'constant': remove the segment mean
       for (let i = 0; i < n; i++) buf[i] = (x[o + i] - mean) * this.window[i];
       this.fft.power(buf, full);
-      for (let k = 0; k < this.nBins; k++) {
-        const doubled = k !== 0 && k !== evenNyquist; // one-sided: double all but DC and Nyquist
-        out[k] = full[k] * this.scale * (doubled ? 2 : 1);
-      }
+      out.fill(0);
+      addOneSided(full, this.scale, n, this.nBins, out);
       onSegment(out, s);
     }
     return count;
@@ -155,18 +153,9 @@ export class Welch {
       y[3] += mb * (n / 4);
       y[2 * n - 2] += ma * (n / 4);
       y[2 * n - 1] += mb * (n / 4);
-      // |A_k|² + |B_k|² = (|Z_k|² + |Z_{n−k}|²)/2, with Z_n = Z_0
-      raw[0] += y[0] * y[0] + y[1] * y[1];
-      for (let k = 1; k < this.nBins; k++) {
-        const m = n - k;
-        raw[k] += 0.5 * (y[2 * k] * y[2 * k] + y[2 * k + 1] * y[2 * k + 1] + y[2 * m] * y[2 * m] + y[2 * m + 1] * y[2 * m + 1]);
-      }
+      addPairPower(y, n, this.nBins, raw);
     }
-    const evenNyquist = n % 2 === 0 ? n / 2 : -1;
-    for (let k = 0; k < this.nBins; k++) {
-      const doubled = k !== 0 && k !== evenNyquist; // one-sided: double all but DC and Nyquist
-      sum[k] += raw[k] * this.scale * (doubled ? 2 : 1);
-    }
+    addOneSided(raw, this.scale, n, this.nBins, sum);
     return count;
   }
 
