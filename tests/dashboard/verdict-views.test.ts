@@ -99,7 +99,7 @@ describe('robustness choices', () => {
 
   it('decisions: power only, power and frequency, or both (each path once per decision); round-trips through the address bar', () => {
     const { choices } = pathChoicesFromParams(
-      { measures: 'residual', references: 'recorded', averagings: 'mean', edges: '0', decisions: 'power,power-and-frequency' },
+      { measures: 'residual', references: 'recorded', averagings: 'mean', edges: '0', definitions: 'fixed', decisions: 'power,power-and-frequency' },
       contrast,
       sigma,
       stored,

@@ -22,6 +22,7 @@ import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 import { countsIn, perGroupNumbers, realNames } from '../confirmation/leaks.ts';
 import { buildDashboard, openDashboard, type DashboardSession } from './harness.ts';
+import { PATH_COLUMNS } from '../../src/dashboard/views/robustness/columns.ts';
 
 const OUTPUT = path.resolve('test-output/e2e');
 const REAL = ['control', 'patient'];
@@ -197,7 +198,9 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     await expect.poll(() => page.getByTestId('run-robustness').isEnabled(), { timeout: 60_000 }).toBe(true);
     await page.getByTestId('run-robustness').click();
     await page.getByTestId('robustness-result').waitFor({ timeout: 240_000 });
-    const n = await page.getByTestId('paths-table').locator('tbody tr td:last-child').allInnerTexts();
+    // the n column, wherever the table places it (src/dashboard/views/robustness/columns.ts)
+    const nth = PATH_COLUMNS.findIndex((c) => c.key === 'n') + 1;
+    const n = await page.getByTestId('paths-table').locator(`tbody tr td:nth-child(${nth})`).allInnerTexts();
     expect(n.length).toBeGreaterThan(0);
     for (const x of n) expect(x).toMatch(/^both groups \d+$/);
     expect(await page.getByTestId('result-part').innerText()).toContain('groups blinded, group sizes pooled');
