@@ -58,10 +58,13 @@ describe('the contrast JSON carries its exclusions', () => {
 
   it('applies a whole-subject exclusion of the contrast JSON like one given beside it', () => {
     const data = cohort();
-    const inJson = assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'], exclusions: [{ subject: 's01', reason: 'movement' }] }), data);
+    const inJson = assembleContrast(
+      parseContrast({ design: 'groups', groups: ['a', 'b'], fmaxHz: 20, exclusions: [{ subject: 's01', reason: 'movement' }] }),
+      data,
+    );
     expect(inJson.nPerGroup).toEqual({ a: 5, b: 6 });
     expect(inJson.excluded).toEqual([{ subject: 's01', channel: null, reason: 'excluded: movement' }]);
-    const beside = assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'] }), {
+    const beside = assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'], fmaxHz: 20 }), {
       ...data,
       exclusions: [{ subject: 's01', channel: null, reason: 'movement' }],
     });
@@ -132,7 +135,7 @@ describe('a channel exclusion is missing data for that channel only', () => {
   });
 
   it('a design that needs every channel (covariate) leaves the subject out, saying why', () => {
-    const c = parseContrast({ design: 'covariate', covariate: 'age', exclusions: [{ subject: 's03', channel: 'F3', reason: 'hum' }] });
+    const c = parseContrast({ design: 'covariate', covariate: 'age', fmaxHz: 20, exclusions: [{ subject: 's03', channel: 'F3', reason: 'hum' }] });
     const a = assembleContrast(c, cohort());
     expect(a.nPerGroup).toEqual({ subjects: 11 });
     expect(a.excluded).toEqual([
@@ -161,13 +164,15 @@ describe('stage-specific exclusions', () => {
   it('apply only to the stage they name', () => {
     const data = cohort();
     const n2 = (stage: 'N2' | 'N3') =>
-      assembleContrast(parseContrast({ design: 'groups', groups: ['a', 'b'], stage: 'N2', exclusions: [{ subject: 's07', stage, reason: 'arousals' }] }), data)
-        .nPerGroup;
+      assembleContrast(
+        parseContrast({ design: 'groups', groups: ['a', 'b'], stage: 'N2', fmaxHz: 20, exclusions: [{ subject: 's07', stage, reason: 'arousals' }] }),
+        data,
+      ).nPerGroup;
     expect(n2('N3')).toEqual({ a: 6, b: 6 });
     expect(n2('N2')).toEqual({ a: 6, b: 5 });
     // a paired N2–N3 contrast loses the pair when either stage is excluded
     const paired = assembleContrast(
-      parseContrast({ design: 'paired', stages: ['N2', 'N3'], exclusions: [{ subject: 's07', stage: 'N3', reason: 'arousals' }] }),
+      parseContrast({ design: 'paired', stages: ['N2', 'N3'], fmaxHz: 20, exclusions: [{ subject: 's07', stage: 'N3', reason: 'arousals' }] }),
       data,
     );
     expect(paired.nPerGroup).toEqual({ pairs: 11 });

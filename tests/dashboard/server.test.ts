@@ -233,7 +233,9 @@ describe('the served database’s file name', () => {
     writeFileSync(path.join(dir, 'app', 'index.html'), '<!doctype html>');
     const s = await startDashboardServer({ dbPath: path.join(dir, name), appDir: path.join(dir, 'app') });
     try {
-      const r = await request(Number(new URL(s.url).port), 'HEAD', '/data/cohort.duckdb');
+      const port = Number(new URL(s.url).port);
+      // this server's own access cookie (the token its address carries)
+      const r = await request(port, 'HEAD', '/data/cohort.duckdb', { Cookie: `bandwise-${port}=${new URL(s.url).searchParams.get('token')}` });
       expect(r.headers['content-disposition']).toBe("inline; filename*=UTF-8''night%20study%20%E2%80%93%202025%20%22a%22.duckdb");
       expect(servedDatabaseName(r.headers['content-disposition'] ?? null)).toBe(name);
       expect(servedDatabaseName(null)).toBeNull();

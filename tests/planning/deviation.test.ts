@@ -94,7 +94,7 @@ describe("reference subjects' z", () => {
       participants: subjects.map((subject, i) => ({ subject, group: i < 60 ? 'control' : 'patient' })),
       exclusions: [],
     };
-    const r = deviation(parseDeviationSpec({ referenceGroup: 'control', fminHz: 1, fmaxHz: 101 }), data);
+    const r = deviation(parseDeviationSpec({ referenceGroup: 'control', fminHz: 1, fmaxHz: 100.75 }), data);
     const z = r.subjects.filter((s) => s.reference).flatMap((s) => s.z.flat() as number[]);
     const df = r.method.degreesOfFreedom.reference;
     expect(df).toBe(58);
