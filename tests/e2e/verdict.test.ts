@@ -171,7 +171,8 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
     await page.goto(`${s.server.url}#/robustness?${BASE}&channels=${CENTRO_PARIETAL}&band=sigma:12-16`);
     await page.getByTestId('robustness-form').waitFor({ timeout: 60_000 });
     // absolute × 2 summaries + relative × 2 denominators + residual × stored fit ranges, × references × averagings × 3 band edges
-    const expected = (2 + 2 + stored.fits) * stored.references * stored.averagings * 3;
+    // × 2 band definitions (fixed and individual: the demo stores fits, hence peaks)
+    const expected = (2 + 2 + stored.fits) * stored.references * stored.averagings * 3 * 2;
     await expect.poll(() => page.getByTestId('rb-path-count').innerText(), { timeout: 60_000 }).toContain(`${expected} paths × 1000 permutations`);
     if (stored.fits === 1) expect(await page.getByTestId('rb-one-fit').innerText()).toContain('only one fit range is stored');
     await page.getByTestId('run-robustness').click();
@@ -191,9 +192,10 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
   it('robustness decided on power and on power and the peak centre: each path twice, the centre test in the table', async () => {
     const { page } = s;
     await page.goto(
-      `${s.server.url}#/robustness?${BASE}&channels=${CENTRO_PARIETAL}&band=sigma:12-16&measures=residual&edges=0&decisions=power,power-and-frequency`,
+      `${s.server.url}#/robustness?${BASE}&channels=${CENTRO_PARIETAL}&band=sigma:12-16&measures=residual&edges=0&definitions=fixed&decisions=power,power-and-frequency`,
     );
     await page.getByTestId('robustness-form').waitFor({ timeout: 60_000 });
+    // × 2 decisions (fixed band edges and definition)
     const expected = stored.fits * stored.references * stored.averagings * 2;
     await expect.poll(() => page.getByTestId('rb-path-count').innerText(), { timeout: 60_000 }).toContain(`${expected} paths × 1000 permutations`);
     expect(await page.getByTestId('rb-decision-power-and-frequency').isChecked()).toBe(true);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { concatNullMaxima, preparePermutationTest, runPermutationTest, runPermutations } from '../../src/core/stats/index.ts';
+import { concatNullMaxima, preparePermutationTest, runPermutationTest, dataVary, runPermutations } from '../../src/core/stats/index.ts';
 import { binomial, makeScheme, relabelling } from '../../src/core/stats/relabelling.ts';
 import { Random } from '../../src/core/stats/random.ts';
 
@@ -129,15 +129,21 @@ describe('splitting permutations over ranges', () => {
 });
 
 describe('data that do not vary', () => {
-  // a t statistic divides by the spread of the data; with none it is undefined, not 0 (common practice)
-  it('is refused with a sentence saying so, not reported as t = 0, p = 1', () => {
+  // a t statistic divides by the spread of the data; with none it is undefined, not 0 (common practice):
+  // a contrast refuses such data (src/core/contrast/run.ts prepareAssembled, a ContrastDataError)
+  it('are told apart from data that vary at one point at least (paired: the differences)', () => {
     const data = new Float64Array(6 * 2).fill(1.5);
     const input = { channels: ['Cz'], freqsHz: [10, 11], data, design: { kind: 'groups' as const, group: [0, 0, 0, 1, 1, 1] } };
-    expect(() => runPermutationTest(input, { permutations: 20 })).toThrow(/data: the data do not vary: every subject has the same value at every point/);
+    expect(dataVary(input)).toBe(false);
     const second = new Float64Array(6 * 2).fill(2.5);
-    expect(() => runPermutationTest({ ...input, design: { kind: 'paired', second } }, { permutations: 20 })).toThrow(/the data do not vary/);
+    expect(dataVary({ ...input, design: { kind: 'paired', second } })).toBe(false);
+    // missing values are left out
+    data[2] = NaN;
+    expect(dataVary(input)).toBe(false);
+    data[2] = 1.5;
     // one point that varies is enough to test
     data[0] = 2;
+    expect(dataVary(input)).toBe(true);
     expect(runPermutationTest(input, { permutations: 20 }).stat).toHaveLength(2);
   });
 });

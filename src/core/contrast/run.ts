@@ -12,6 +12,7 @@ import type { ChannelLayout } from './channel-layout.ts';
 import {
   finishPermutationTest,
   preparePermutationTest,
+  dataVary,
   runPermutations,
   type PermutationTestOptions,
   type PermutationTestResult,
@@ -98,6 +99,8 @@ export function checkBandDefinition(c: Contrast): Contrast {
 export function prepareAssembled(c: Contrast, assembled: AssembledContrast): PreparedCompare {
   const options = statsOptions(c);
   options.frequencyAdjacency = assembled.layout.frequencyAdjacency;
+  if (!dataVary(assembled.input))
+    throw new ContrastDataError('the data do not vary: every subject has the same value at every point, so there is no difference to test');
   return { contrast: c, assembled, prepared: preparePermutationTest(assembled.input, options) };
 }
 

@@ -200,6 +200,7 @@ export interface MissingResult {
 export {
   runPermutationTest,
   preparePermutationTest,
+  dataVary,
   finishPermutationTest,
   PermutationTestInputError,
   type PreparedPermutationTest,

@@ -92,7 +92,15 @@ function checkMatrix(field: string, data: Matrix, input: PermutationTestInput): 
 }
 
 /** Whether some point's values (paired: second minus first) differ between subjects; missing values are passed over. */
-function varies(input: PermutationTestInput, n: number, P: number): boolean {
+/**
+ * Whether any point's values differ between subjects (paired: the differences), missing values
+ * left out. A contrast with none has nothing to test (a t statistic divides by the spread: with
+ * none it is undefined, not 0; common practice); contrasts refuse it (src/core/contrast/run.ts),
+ * while a band check's single value (e.g. a peak height of 0 for everyone) is tested as it is.
+ */
+export function dataVary(input: PermutationTestInput): boolean {
+  const P = input.channels.length * input.freqsHz.length;
+  const n = Math.floor(input.data.length / P);
   const second = input.design.kind === 'paired' ? input.design.second : null;
   for (let p = 0; p < P; p++) {
     let first = NaN;
@@ -231,7 +239,6 @@ export function preparePermutationTest(input: PermutationTestInput, options: Per
   if (kernel.df < 1) fail('data', n, `too few subjects for ${statistic}: ${kernel.df} degrees of freedom`);
   if (missing && !missing.keep.includes(1))
     fail('data', missing.missing, `no point has ${minimumText(missing.counts.length === 2)}: every point has too many missing values`);
-  if (!varies(input, n, P)) fail('data', n, 'the data do not vary: every subject has the same value at every point, so there is no difference to test');
   const stat = new Float64Array(P);
   const df = new Float64Array(P);
   kernel.compute(kernel.observedRelabelling(), stat, df);
