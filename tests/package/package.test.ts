@@ -94,8 +94,11 @@ describe('the package', () => {
     expect(files.length).toBeGreaterThan(3);
     for (const f of files) {
       const text = readFileSync(path.join(repo, f), 'utf8');
-      // static imports and re-exports, import(), require()
-      for (const m of text.matchAll(/(?:\bfrom\s*|\bimport\s*\(?\s*|\brequire\s*\(\s*)["']([^"']+)["']/g)) specifiers.add(m[1]);
+      // static imports and re-exports (statements at a line's start in esbuild's unminified output), import(), require();
+      // SQL text in the bundle ("… from 'recordings'") is not an import
+      const imports =
+        /^\s*(?:import|export)\s[^'"\n]*?from\s*["']([^"'\n]+)["']|^\s*import\s*["']([^"'\n]+)["']|\bimport\(\s*["']([^"'\n]+)["']\s*\)|\brequire\(\s*["']([^"'\n]+)["']\s*\)/gm;
+      for (const m of text.matchAll(imports)) specifiers.add(m[1] ?? m[2] ?? m[3] ?? m[4]);
     }
     const bare = [...specifiers].filter((s) => !s.startsWith('.'));
     // the packages' JavaScript is bundled (bin/build.mjs); DuckDB's native binding is loaded from node_modules

@@ -69,7 +69,7 @@ describe('planted region', () => {
     const plan = { referenceGroup: 'control', effect: 0.1, band: sigma, channels: 'all' as const, nPerGroup: [5], simulations: 2, seed: 1, alpha: 0.05 };
     expect(() => preparePower(parseContrast({ design: 'covariate', covariate: 'age' }), plan, data)).toThrow(PlanningInputError);
     expect(() => preparePower(contrast({ groups: ['control', 'patient'] }), { ...plan, referenceGroup: 'nobody' }, data)).toThrow(
-      'reference group group = nobody has 0 subjects with data; at least 2 are needed',
+      "no subject has group 'nobody'; its values are: control, patient",
     );
   });
 });
