@@ -83,7 +83,7 @@ describe('the data cannot serve the contrast (exit 1, one line)', () => {
     await refused(
       ['compare', db, '--groups', 'control,patient', '--stage', 'N2', '--exclusions', at('excl.tsv'), ...QUICK],
       1,
-      /too few subjects: control 1, patient 4 \(each group needs at least 2\); left out: s1 \(excluded in the quality screen: noisy\), s3 \(excluded in the quality screen: movement\), s5 \(excluded in the quality screen: noisy\)/,
+      /too few subjects: control 1, patient 4 \(each group needs at least 2\); left out: s1 \(excluded: noisy\), s3 \(excluded: movement\), s5 \(excluded: noisy\)/,
     );
   }, 30_000);
 
