@@ -66,7 +66,13 @@ describe("band check, robustness and report data over duckdb-wasm equal the comm
     const band = { name: 'sigma', loHz: 12, hiHz: 16 };
     const a = bandCheck(sigma, band, ours.data, { fitRangeHz: ours.fitRangeHz });
     const b = await bandCheckDatabase(file, sigma, band, exclusions);
-    expect(b.database).toEqual({ file: file.split('/').pop(), runId: ours.runId, toolVersion: ours.toolVersion, ingestParameters: ours.runParameters, runFinished: true });
+    expect(b.database).toEqual({
+      file: file.split('/').pop(),
+      runId: ours.runId,
+      toolVersion: ours.toolVersion,
+      ingestParameters: ours.runParameters,
+      runFinished: true,
+    });
     expect(a.verdict).toBe(b.verdict);
     expect(a.family).toEqual(b.family);
     expect(a.tests).toEqual(b.tests);
