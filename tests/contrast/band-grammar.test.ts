@@ -11,7 +11,9 @@ import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoDatabase } from '../helpers/demo-db.ts';
 
-const bin = path.join(import.meta.dirname, '..', '..', 'bin', 'bandwise.mjs');
+// the command from its sources (bin/run-ts.mjs runs src/cli/main.ts through tsx)
+const bin = path.join(import.meta.dirname, '..', '..', 'bin', 'run-ts.mjs');
+const main = path.join(import.meta.dirname, '..', '..', 'src', 'cli', 'main.ts');
 const common = [
   '--groups',
   'control,patient',
@@ -47,7 +49,7 @@ interface Written {
 
 async function run(command: string, name: string, args: string[]): Promise<Written> {
   const out = path.join(dir, `${name}.json`);
-  await promisify(execFile)(process.execPath, [bin, command, db, ...common, ...args, '--out', out]);
+  await promisify(execFile)(process.execPath, [bin, main, command, db, ...common, ...args, '--out', out]);
   return JSON.parse(readFileSync(out, 'utf8')) as Written;
 }
 

@@ -30,7 +30,7 @@ describe('a reference that is not stored', () => {
     );
     expect(r.status, r.stderr).toBe(1);
     expect(r.stderr).toBe(
-      `bandwise ${command}: no N2 spectra with reference average and averaging mean in run run0000000000001 (stored references: recorded)\n`,
+      `bandwise ${command}: no N2 spectra with reference average, averaging mean and estimator welch in run run0000000000001; no stage has spectra of that reference and averaging (stored references: recorded)\n`,
     );
   });
 });

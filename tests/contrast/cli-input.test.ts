@@ -72,7 +72,7 @@ describe('options that would be ignored are refused', () => {
     [
       'compare',
       ['--design', 'paired', '--stages', 'N2,N3', '--groups', 'control,patient'],
-      'invalid contrast:\n  groups: "groups" is used by the groups design only (a paired design compares each subject\'s two conditions; leave subjects out with exclusions)\n',
+      'invalid contrast: groups: "groups" is used by the groups design only (a paired design compares each subject\'s two conditions; leave subjects out with exclusions)\n',
     ],
   ];
   it.each(cases)('%s %j', (command, args, message) => {

@@ -9,7 +9,9 @@ import { readLedger } from '../../src/analysis/ledger.ts';
 // `bandwise compare` end to end on the demo cohort (planted: demo-cohort/scenario.json, "effects"):
 // patients have a broadband aperiodic offset +0.15 log10 and half the fast-spindle amplitude in N2
 // over C3, C4, Cz, P3, P4, Pz. 1000 permutations, as the issue asks.
-const bin = path.join(import.meta.dirname, '..', '..', 'bin', 'bandwise.mjs');
+// the command from its sources (bin/run-ts.mjs runs src/cli/main.ts through tsx)
+const bin = path.join(import.meta.dirname, '..', '..', 'bin', 'run-ts.mjs');
+const main = path.join(import.meta.dirname, '..', '..', 'src', 'cli', 'main.ts');
 const PLANTED = ['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz'];
 let db = '';
 let dir = '';
@@ -35,6 +37,7 @@ function compare(
     process.execPath,
     [
       bin,
+      main,
       'compare',
       db,
       '--design',

@@ -4,7 +4,7 @@
 // (src/core/contrast/spec.ts); band edges against src/core/spectrum/bands.ts (common practice).
 import { fireEvent, render, screen } from '@testing-library/svelte';
 import { tick } from 'svelte';
-import { beforeEach, describe, expect, it } from 'vitest';
+import { beforeEach, describe, expect, it, vi } from 'vitest';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { DEFAULT_BANDS, SIGMA_PRESETS } from '../../src/core/spectrum/bands.ts';
 import AnalysisHead from '../../src/dashboard/analysis/AnalysisHead.svelte';
@@ -17,6 +17,10 @@ import RunControls from '../../src/dashboard/analysis/RunControls.svelte';
 import StatisticsFields from '../../src/dashboard/analysis/StatisticsFields.svelte';
 import { notes } from '../../src/dashboard/db/database-notes.svelte.ts';
 import { Router } from '../../src/dashboard/router.svelte.ts';
+
+// the head's split note reads the session, whose module loads duckdb-wasm's engine (a Worker, which
+// jsdom has not); the engine is not under test here
+vi.mock('../../src/dashboard/db/connection.ts', () => ({ openPickedFile: vi.fn(), openServedDatabase: vi.fn(), preloadEngine: vi.fn() }));
 
 /** What a database like the demo's offers (references sorted as the database lists them: the command line's default is not first). */
 const CHOICES: FormChoices = {

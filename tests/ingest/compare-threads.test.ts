@@ -2,7 +2,7 @@
 // matrix shared through a SharedArrayBuffer) gives the single-thread compare() of
 // src/core/contrast/run.ts on the same rows exactly (JSON equal): a groups design with cluster
 // mass on 1, 2 and 3 threads (3 does not divide the 301 permutations evenly), one with TFCE and a
-// paired design (its second matrix shared too) on 2; a PermutationTestInputError of the statistics reaches
+// paired design (its second matrix shared too) on 2; a refusal of the data reaches
 // the caller with its type and message. Size: a synthetic database of 24 recordings × 6 channels
 // × 5 stages × 61 bins (0–15 Hz), contrasts on 1–12 Hz with 301 permutations.
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -19,7 +19,7 @@ import type { ContrastData, Exclusion } from '../../src/core/contrast/data.ts';
 import { compare } from '../../src/core/contrast/run.ts';
 import { parseContrast, type Contrast } from '../../src/core/contrast/spec.ts';
 import { syntheticSpec } from '../../src/core/simulate/synthetic-database.ts';
-import { PermutationTestInputError } from '../../src/core/stats/index.ts';
+import { ContrastDataError } from '../../src/core/contrast/data-error.ts';
 
 describe('compare on worker threads', () => {
   let dir: string;
@@ -63,9 +63,9 @@ describe('compare on worker threads', () => {
     });
   }
 
-  it('a PermutationTestInputError of the statistics reaches the caller typed, the workers stopped', async () => {
+  it('a refusal of the data (a group of one) reaches the caller typed, as on one thread, the workers stopped', async () => {
     const c = parseContrast(contrasts['groups, cluster mass']);
-    // every patient (odd recordings) but one left out: the statistics refuse a group of one
+    // every patient (odd recordings) but one left out: the contrast refuses a group of one (a ContrastDataError)
     const exclusions: Exclusion[] = Array.from({ length: 11 }, () => ({ subject: '', channel: null, reason: 'test' }));
     const all = await rows(c);
     const patients = [...new Set(all.participants.filter((p) => p.group === 'patient').map((p) => String(p.subject)))].sort();
@@ -76,9 +76,9 @@ describe('compare on worker threads', () => {
     } catch (e) {
       expected = e;
     }
-    expect(expected).toBeInstanceOf(PermutationTestInputError);
+    expect(expected).toBeInstanceOf(ContrastDataError);
     const threaded = compareDatabase(file, c, exclusions, undefined, undefined, { threads: 2 });
-    await expect(threaded).rejects.toBeInstanceOf(PermutationTestInputError);
+    await expect(threaded).rejects.toBeInstanceOf(ContrastDataError);
     await expect(threaded).rejects.toThrow((expected as Error).message);
   });
 });

@@ -6,14 +6,22 @@
 // (util-linux setpriv), and as root without apt-get: each must stop with that one line, exit 1,
 // and install nothing.
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { chmodSync, copyFileSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 
-const script = path.resolve(import.meta.dirname, 'system-packages.mjs');
 const emptyPath = mkdtempSync(path.join(tmpdir(), 'bw-no-programs-'));
-afterAll(() => rmSync(emptyPath, { recursive: true, force: true }));
+// a copy the unprivileged user can read, wherever the clone lies (a private temporary folder in CI)
+const readable = mkdtempSync(path.join(tmpdir(), 'bw-setup-script-'));
+chmodSync(readable, 0o755);
+const script = path.join(readable, 'system-packages.mjs');
+copyFileSync(path.resolve(import.meta.dirname, 'system-packages.mjs'), script);
+chmodSync(script, 0o644);
+afterAll(() => {
+  rmSync(emptyPath, { recursive: true, force: true });
+  rmSync(readable, { recursive: true, force: true });
+});
 
 // found by the program on PATH (gcc; Slurm's slurmctld, slurmd, sbatch; munged), so an empty PATH hides them
 const ON_PATH = ['gcc', 'slurmctld', 'slurmd', 'slurm-client', 'munge'];
