@@ -29,7 +29,7 @@ describe('electrodes TSV', () => {
   });
 
   it('turns the ALS systems into RAS (x right = −y, y front = x) and notes a system that names no axes', () => {
-    // BIDS appendix: EEGLAB and CTF are ALS (x to the nasion, y to the left ear, z up)
+    // BIDS appendix: the coordinate-system identifier below is ALS (x to the nasion, y to the left ear, z up)
     const als = parseElectrodesTsv('name\tx\ty\tz\nNz\t0.1\t0\t0\nLPA\t0\t0.08\t0\n', { file: 'a.tsv', unit: 'm', coordinateSystem: 'EEGLAB' });
     expect(als.electrodes).toEqual([
       { name: 'Nz', x: -0, y: 0.1, z: 0 },

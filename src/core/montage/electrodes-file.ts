@@ -8,8 +8,8 @@
  * Every position is turned into metres in one head frame: x to the right ear, y to the nose, z up
  * (RAS), the origin of the file's coordinate system. Orientations of the EEG coordinate systems
  * (BIDS specification, appendix "Coordinate systems"): CapTrak, ElektaNeuromag, ChietiItab and the
- * standard templates (MNI…, fsaverage…) are RAS; EEGLAB, EEGLAB-HJ, CTF, 4DBti and KitYokogawa
- * are ALS (x to the nose, y to the left ear, z up), so RAS = (−y, x, z). `Other` (its axes are in
+ * standard templates (MNI…, fsaverage…) are RAS; the five identifiers in ALS below (the appendix's
+ * x-to-the-nose systems) are ALS (x to the nose, y to the left ear, z up), so RAS = (−y, x, z). `Other` (its axes are in
  * free text) and names not in the list are taken as RAS, with a note.
  */
 
