@@ -29,14 +29,29 @@ describe('electrodes TSV', () => {
   });
 
   it('turns the ALS systems into RAS (x right = −y, y front = x) and notes a system that names no axes', () => {
-    // BIDS appendix: the coordinate-system identifier below is ALS (x to the nasion, y to the left ear, z up)
-    const als = parseElectrodesTsv('name\tx\ty\tz\nNz\t0.1\t0\t0\nLPA\t0\t0.08\t0\n', { file: 'a.tsv', unit: 'm', coordinateSystem: 'EEGLAB' });
+    // BIDS appendix "Coordinate systems": CTF is ALS (x to the nasion, y to the left ear, z up)
+    const als = parseElectrodesTsv('name\tx\ty\tz\nNz\t0.1\t0\t0\nLPA\t0\t0.08\t0\n', { file: 'a.tsv', unit: 'm', coordinateSystem: 'CTF' });
     expect(als.electrodes).toEqual([
       { name: 'Nz', x: -0, y: 0.1, z: 0 },
       { name: 'LPA', x: -0.08, y: 0, z: 0 },
     ]);
     const other = parseElectrodesTsv('name\tx\ty\tz\nA\t1\t2\t3\n', { file: 'o.tsv', unit: 'm', coordinateSystem: 'Other' });
     expect(other.notes).toEqual(["o.tsv: coordinate system 'Other' does not name its axes; taken as x right, y front, z up (RAS)"]);
+  });
+
+  it('reads the axes of an unnamed system from the 10-10 names of its electrodes', () => {
+    // ALS frame (x to the nose, y to the left): Fp1 front-left, O2 back-right (10-10 naming, common practice)
+    const alsText =
+      'name\tx\ty\tz\nFp1\t0.08\t0.03\t0.02\nFp2\t0.08\t-0.03\t0.02\nO1\t-0.08\t0.03\t0.02\nO2\t-0.08\t-0.03\t0.02\nC3\t0\t0.06\t0.06\nC4\t0\t-0.06\t0.06\n';
+    const als = parseElectrodesTsv(alsText, { file: 'n.tsv', unit: 'm', coordinateSystem: 'Other' });
+    expect(als.notes).toEqual(["n.tsv: coordinate system 'Other' does not name its axes; read as ALS from the 10-10 names of its electrodes"]);
+    expect(als.electrodes.find((e) => e.name === 'Fp1')).toEqual({ name: 'Fp1', x: -0.03, y: 0.08, z: 0.02 });
+    expect(als.electrodes.find((e) => e.name === 'C4')).toEqual({ name: 'C4', x: 0.06, y: 0, z: 0.06 });
+    // the same head already in RAS is kept as it is
+    const rasText = 'name\tx\ty\tz\nFp1\t-0.03\t0.08\t0.02\nO2\t0.03\t-0.08\t0.02\nC3\t-0.06\t0\t0.06\nC4\t0.06\t0\t0.06\n';
+    const ras = parseElectrodesTsv(rasText, { file: 'r.tsv', unit: 'm', coordinateSystem: 'Other' });
+    expect(ras.notes).toEqual(["r.tsv: coordinate system 'Other' does not name its axes; read as RAS from the 10-10 names of its electrodes"]);
+    expect(ras.electrodes[0]).toEqual({ name: 'Fp1', x: -0.03, y: 0.08, z: 0.02 });
   });
 
   it('names the file, the line and the bad value', () => {

@@ -8,9 +8,12 @@
  * Every position is turned into metres in one head frame: x to the right ear, y to the nose, z up
  * (RAS), the origin of the file's coordinate system. Orientations of the EEG coordinate systems
  * (BIDS specification, appendix "Coordinate systems"): CapTrak, ElektaNeuromag, ChietiItab and the
- * standard templates (MNI…, fsaverage…) are RAS; the five identifiers in ALS below (the appendix's
- * x-to-the-nose systems) are ALS (x to the nose, y to the left ear, z up), so RAS = (−y, x, z). `Other` (its axes are in
- * free text) and names not in the list are taken as RAS, with a note.
+ * standard templates (MNI…, fsaverage…) are RAS; CTF, 4DBti and KitYokogawa are ALS (x to the nose,
+ * y to the left ear, z up), so RAS = (−y, x, z). For any other name (`Other`, whose axes are in free
+ * text, or a system not listed here) the axes are read from the electrodes themselves when they
+ * carry 10-10 names: frontal (Fp, AF, F) against occipital (O, PO) gives the front, odd-numbered
+ * (left) against even-numbered (right) gives the left (10-10 naming, common practice). When the
+ * names do not say either, the file is taken as RAS, with a note.
  */
 
 export type CoordinateUnit = 'm' | 'cm' | 'mm';
@@ -43,7 +46,7 @@ export class ElectrodesFileError extends Error {
   override name = 'ElectrodesFileError';
 }
 
-const ALS = ['EEGLAB', 'EEGLAB-HJ', 'CTF', '4DBti', 'KitYokogawa'];
+const ALS = ['CTF', '4DBti', 'KitYokogawa'];
 const RAS = ['CapTrak', 'ElektaNeuromag', 'ChietiItab', 'RAS'];
 // BIDS standard template identifiers (RAS, origin at the AC): names start with these
 const TEMPLATE_PREFIXES = ['MNI', 'ICBM', 'IXI549Space', 'fsaverage', 'fsLR', 'UNCInfant', 'Talairach', 'OASIS30'];
@@ -77,8 +80,6 @@ export function parseElectrodesTsv(text: string, o: { file: string; unit: Coordi
   const absent = ['name', 'x', 'y', 'z'].filter((c) => col(c) < 0);
   if (absent.length > 0) throw new ElectrodesFileError(`${o.file}: the header needs the columns name, x, y, z (missing: ${absent.join(', ')})`);
   const system = o.coordinateSystem?.trim() || 'RAS';
-  const orientation = orientationOf(system);
-  const notes = orientation === null ? [`${o.file}: coordinate system '${system}' does not name its axes; taken as x right, y front, z up (RAS)`] : [];
   const scale = METRES_PER_UNIT[o.unit];
   const seen = new Map<string, number>();
   const electrodes: FileElectrode[] = [];
@@ -96,9 +97,52 @@ export function parseElectrodesTsv(text: string, o: { file: string; unit: Coordi
     const bad = v.findIndex((x) => !Number.isFinite(x));
     if (bad >= 0) throw new ElectrodesFileError(`${o.file}: line ${i + 1}, electrode "${name}": ${'xyz'[bad]} = "${raw[bad]!.trim()}" is not a number`);
     const [x, y, z] = v.map((c) => c * scale);
-    // ALS → RAS: right = −left, front = x (BIDS appendix "Coordinate systems")
-    electrodes.push(orientation === 'ALS' ? { name, x: -y, y: x, z } : { name, x, y, z });
+    electrodes.push({ name, x, y, z });
   }
   if (electrodes.length === 0) throw new ElectrodesFileError(`${o.file}: no electrode has a position (x, y, z)`);
-  return { file: o.file, coordinateSystem: system, unit: o.unit, electrodes, notes };
+  const named = orientationOf(system);
+  const orientation = named ?? orientationFromNames(electrodes);
+  const notes: string[] = [];
+  if (named === null && orientation !== null)
+    notes.push(`${o.file}: coordinate system '${system}' does not name its axes; read as ${orientation} from the 10-10 names of its electrodes`);
+  if (orientation === null) notes.push(`${o.file}: coordinate system '${system}' does not name its axes; taken as x right, y front, z up (RAS)`);
+  // ALS → RAS: right = −left, front = x (BIDS appendix "Coordinate systems")
+  const ras = orientation === 'ALS' ? electrodes.map((e) => ({ name: e.name, x: -e.y, y: e.x, z: e.z })) : electrodes;
+  return { file: o.file, coordinateSystem: system, unit: o.unit, electrodes: ras, notes };
+}
+
+const FRONTAL = /^(FP|AF|F)\d*z?$/i;
+const OCCIPITAL = /^(O|PO)\d*z?$/i;
+
+/**
+ * 'RAS' or 'ALS' from where the 10-10 names lie: the front is the mean of the frontal electrodes
+ * minus the mean of the occipital ones, the left the mean over mirror pairs (C3 and C4: the same
+ * letters, odd number n on the left, n + 1 on the right; 10-10 naming, common practice) of the
+ * odd one minus the even one. null unless both directions lie mostly along one axis, in the sense
+ * one of the two frames expects.
+ */
+function orientationFromNames(electrodes: FileElectrode[]): 'RAS' | 'ALS' | null {
+  const mean = (sel: FileElectrode[]) =>
+    sel.length === 0 ? null : [sel.reduce((s, e) => s + e.x, 0) / sel.length, sel.reduce((s, e) => s + e.y, 0) / sel.length];
+  const frontal = mean(electrodes.filter((e) => FRONTAL.test(e.name)));
+  const occipital = mean(electrodes.filter((e) => OCCIPITAL.test(e.name)));
+  const byName = new Map(electrodes.map((e) => [e.name.toUpperCase(), e]));
+  const left = [0, 0];
+  let pairs = 0;
+  for (const e of electrodes) {
+    const m = /^([A-Z]+)(\d+)$/i.exec(e.name);
+    if (!m || Number(m[2]) % 2 !== 1) continue;
+    const mirror = byName.get(`${m[1].toUpperCase()}${Number(m[2]) + 1}`);
+    if (!mirror) continue;
+    left[0] += e.x - mirror.x;
+    left[1] += e.y - mirror.y;
+    pairs++;
+  }
+  if (!frontal || !occipital || pairs === 0) return null;
+  const front = [frontal[0] - occipital[0], frontal[1] - occipital[1]];
+  // RAS: front along +y, left along −x; ALS: front along +x, left along +y
+  const along = (v: number[], axis: 0 | 1, sign: 1 | -1) => sign * v[axis] > 2 * Math.abs(v[1 - axis]);
+  if (along(front, 1, 1) && along(left, 0, -1)) return 'RAS';
+  if (along(front, 0, 1) && along(left, 1, 1)) return 'ALS';
+  return null;
 }
