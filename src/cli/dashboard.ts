@@ -6,8 +6,10 @@ export function register(program: Command): void {
     .command('dashboard')
     .description(
       'Serves the dashboard and the database on 127.0.0.1 (never on other addresses) and prints the address to open ' +
-        'in a browser. The browser reads the database read-only with HTTP range requests; nothing is fetched from the ' +
-        'internet. Stop with Ctrl-C. A research tool, not a diagnostic device.',
+        'in a browser. The browser reads the database with HTTP range requests; nothing is fetched from the ' +
+        'internet. The only writes are the workflow steps the "Split and plans" view offers (split, lock, confirm), ' +
+        'done as the commands of those names do them and recorded in the same ledger; --read-only turns them off. ' +
+        'Stop with Ctrl-C. A research tool, not a diagnostic device.',
     )
     .argument('<database>', 'bandwise database file (.duckdb)')
     .option('--port <port>', 'port on 127.0.0.1 (default: a free port)', (v) => {
@@ -15,7 +17,8 @@ export function register(program: Command): void {
       if (!Number.isInteger(p) || p < 1 || p > 65535) throw new InvalidArgumentError(`invalid port: ${v}`);
       return p;
     })
-    .action(async (database: string, flags: { port?: number }) => {
+    .option('--read-only', 'never write to the database: the split, lock and confirm steps run from the command line only')
+    .action(async (database: string, flags: { port?: number; readOnly?: boolean }) => {
       // loaded on use: `bandwise --help` opens no database code
       const { dashboardAppDir, serveDashboard, waitForSignal } = await import('../server/launcher.ts');
       const { checkpointLeftoverLog, openStore } = await import('../../ingest/store/database.ts');
@@ -38,7 +41,7 @@ export function register(program: Command): void {
         if (reportUserError('dashboard', e)) return;
         throw e;
       }
-      const server = await serveDashboard(database, flags.port);
+      const server = await serveDashboard(database, flags.port, { readOnly: flags.readOnly });
       console.log(`dashboard on ${server.url}  (Ctrl-C to stop)`);
       await waitForSignal();
       await server.close();

@@ -33,7 +33,10 @@ export class Session {
     }
     // the server names the file it serves (its real name, not the URL's)
     const name = served?.ok ? servedDatabaseName(served.headers.get('Content-Disposition')) : null;
-    if (served?.ok) await this.open(() => openServedDatabase(SERVED_DATABASE, name ?? undefined));
+    // read again (after a workflow step or a command in a terminal): a new address, so the engine
+    // reads the file as it is now, not what it kept of the address it read before
+    const url = this.generation === 0 ? SERVED_DATABASE : `${SERVED_DATABASE}?read=${this.generation}`;
+    if (served?.ok) await this.open(() => openServedDatabase(url, name ?? undefined));
   }
 
   async openFile(file: File): Promise<void> {

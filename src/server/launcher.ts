@@ -6,6 +6,7 @@ import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { startDashboardServer } from './serve.ts';
+import { workflowApi } from './workflow-api.ts';
 
 // the sources (src/server/) and the built command (dist/cli/) both lie two folders below the package
 const root = fileURLToPath(new URL('../..', import.meta.url));
@@ -24,9 +25,14 @@ export function dashboardAppDir(): string {
   return APP_DIR;
 }
 
-export async function serveDashboard(dbPath: string, port?: number) {
+/**
+ * Serves the app and the database; unless read-only, the workflow's steps (split, lock, confirm)
+ * may also be taken from the dashboard, recorded in the ledger beside the database as the commands do.
+ */
+export async function serveDashboard(dbPath: string, port?: number, o: { readOnly?: boolean } = {}) {
   if (!existsSync(dbPath)) throw new Error(`no database at ${dbPath}`);
-  return startDashboardServer({ dbPath: path.resolve(dbPath), appDir: dashboardAppDir(), port });
+  const db = path.resolve(dbPath);
+  return startDashboardServer({ dbPath: db, appDir: dashboardAppDir(), port, api: o.readOnly ? undefined : workflowApi(db, `${db}.ledger.jsonl`) });
 }
 
 /** Resolves on Ctrl-C (SIGINT) or SIGTERM: the end of serving. */

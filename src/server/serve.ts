@@ -2,7 +2,10 @@
 // to holders of a per-start access token (access-token.ts) and nobody else: a request without the
 // token or its cookie gets 403 with no body, whatever it asks for. Implements HEAD and single byte
 // ranges itself (duckdb-wasm reads the database with range requests; see STACK.md). Anything not
-// served answers 404, other methods 405.
+// served answers 404, other methods 405. With a handler for the workflow's steps (workflow-api.ts),
+// POST /api/<step> takes a JSON body from the app's own page only (its Origin, when sent, must be
+// this server's; Content-Type application/json, which a form on another site cannot send without
+// asking first; at most 1 MiB) and answers JSON.
 import { createReadStream } from 'node:fs';
 import { realpath, stat } from 'node:fs/promises';
 import http from 'node:http';
@@ -26,6 +29,18 @@ export interface RequestLogEntry {
   range?: string;
 }
 
+/** The answer of a write step: an HTTP status and a JSON body. */
+export interface ApiAnswer {
+  status: number;
+  body: unknown;
+}
+
+/** Answers POST /api/<route> with its parsed JSON body. */
+export type ApiHandler = (route: string, body: unknown) => Promise<ApiAnswer>;
+
+/** Largest JSON body a write step takes (a plan of contrasts with their exclusions is a few KB). */
+const MAX_API_BODY_BYTES = 1 << 20;
+
 export interface DashboardServerOptions {
   /** Database file to serve read-only at DATABASE_URL_PATH. */
   dbPath: string;
@@ -35,6 +50,8 @@ export interface DashboardServerOptions {
   port?: number;
   /** Called once per answered request. */
   onRequest?: (entry: RequestLogEntry) => void;
+  /** The workflow's write steps; absent: the dashboard only reads (POST /api/… answers 405). */
+  api?: ApiHandler;
 }
 
 export interface DashboardServer {
@@ -179,6 +196,10 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
       return;
     }
     const method = req.method ?? '';
+    if (pathOnly.startsWith('/api/')) {
+      await answerApi(req, res, pathOnly.slice('/api/'.length));
+      return;
+    }
     if (method !== 'GET' && method !== 'HEAD') {
       send(res, req, 405, 'method not allowed', { Allow: 'GET, HEAD' });
       return;
@@ -215,6 +236,53 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     const named: Record<string, string> =
       pathOnly === DATABASE_URL_PATH ? { 'Content-Disposition': `inline; filename*=UTF-8''${rfc5987(path.basename(dbFile))}` } : {};
     await sendFile(req, res, target.file, target.size, cache, named);
+  }
+
+  function sendJson(res: http.ServerResponse, req: http.IncomingMessage, status: number, value: unknown): void {
+    const body = Buffer.from(JSON.stringify(value));
+    res.writeHead(status, { ...SECURITY_HEADERS, 'Content-Type': 'application/json; charset=utf-8', 'Content-Length': String(body.length) });
+    res.end(body);
+    log(req, status, body.length);
+  }
+
+  async function answerApi(req: http.IncomingMessage, res: http.ServerResponse, route: string): Promise<void> {
+    if (req.method !== 'POST') {
+      send(res, req, 405, 'method not allowed', { Allow: 'POST' });
+      return;
+    }
+    if (!options.api) {
+      sendJson(res, req, 405, { error: 'this dashboard was started read-only (bandwise dashboard --read-only): run the step from the command line' });
+      return;
+    }
+    const origin = req.headers.origin;
+    if (origin !== undefined && !allowedHosts.has(origin.replace(/^http:\/\//, ''))) {
+      send(res, req, 403, 'forbidden origin');
+      return;
+    }
+    if ((req.headers['content-type'] ?? '').split(';')[0].trim().toLowerCase() !== 'application/json') {
+      send(res, req, 415, 'a JSON body is needed (Content-Type: application/json)');
+      return;
+    }
+    const chunks: Buffer[] = [];
+    let size = 0;
+    for await (const chunk of req as AsyncIterable<Buffer>) {
+      size += chunk.length;
+      if (size > MAX_API_BODY_BYTES) {
+        send(res, req, 413, `the body is larger than ${MAX_API_BODY_BYTES} bytes`, { Connection: 'close' });
+        req.destroy();
+        return;
+      }
+      chunks.push(chunk);
+    }
+    let body: unknown;
+    try {
+      body = JSON.parse(Buffer.concat(chunks).toString('utf8'));
+    } catch {
+      sendJson(res, req, 400, { error: 'the body is not JSON' });
+      return;
+    }
+    const answer = await options.api(route, body);
+    sendJson(res, req, answer.status, answer.body);
   }
 
   async function sendFile(

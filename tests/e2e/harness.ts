@@ -7,7 +7,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { build } from 'vite';
-import { startDashboardServer, type DashboardServer, type RequestLogEntry } from '../../src/server/serve.ts';
+import { startDashboardServer, type ApiHandler, type DashboardServer, type RequestLogEntry } from '../../src/server/serve.ts';
 
 const repo = fileURLToPath(new URL('../../', import.meta.url));
 export const CHROMIUM = '/usr/bin/chromium';
@@ -46,12 +46,12 @@ export interface DashboardSession {
 
 const LOCAL_SCHEMES = new Set(['blob:', 'data:', 'about:']);
 
-/** Serve `appDir` with `dbPath`, open a fresh chromium profile on it. */
-export async function openDashboard(appDir: string, dbPath: string): Promise<DashboardSession> {
+/** Serve `appDir` with `dbPath` (and the workflow's write steps when `api` is given), open a fresh chromium profile on it. */
+export async function openDashboard(appDir: string, dbPath: string, api?: ApiHandler): Promise<DashboardSession> {
   const requests: RequestLogEntry[] = [];
   const consoleErrors: string[] = [];
   const foreignRequests: string[] = [];
-  const server = await startDashboardServer({ dbPath, appDir, onRequest: (e) => requests.push(e) });
+  const server = await startDashboardServer({ dbPath, appDir, api, onRequest: (e) => requests.push(e) });
   const profile = mkdtempSync(path.join(os.tmpdir(), 'bandwise-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: CHROMIUM,

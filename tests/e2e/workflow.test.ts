@@ -23,6 +23,7 @@ import { demoDatabase } from '../helpers/demo-db.ts';
 import { countsIn, perGroupNumbers, realNames } from '../confirmation/leaks.ts';
 import { buildDashboard, openDashboard, type DashboardSession } from './harness.ts';
 import { PATH_COLUMNS } from '../../src/dashboard/views/robustness/columns.ts';
+import { workflowApi } from '../../src/server/workflow-api.ts';
 
 const OUTPUT = path.resolve('test-output/e2e');
 const REAL = ['control', 'patient'];
@@ -62,7 +63,7 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
       await store.close();
     }
     await buildDashboard(path.join(dir, 'app'));
-    s = await openDashboard(path.join(dir, 'app'), db);
+    s = await openDashboard(path.join(dir, 'app'), db, workflowApi(db, path.join(dir, 'ledger.jsonl')));
     mkdirSync(OUTPUT, { recursive: true });
   });
 
@@ -228,6 +229,38 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
     expect([a, b].sort()).toEqual(REAL);
     expect(methods).toContain(`they were unblinded for this analysis: ${p.lockedContrast.groups![0]} is ${a} and ${p.lockedContrast.groups![1]} is ${b}`);
     expect(methods).toContain('records no analysis that included confirmation-part subjects before the plan was locked');
+  });
+
+  it('a confirmation taken from the dashboard is stored, read again into the plans table and marked as not the first', async () => {
+    const { page } = s;
+    await page.goto(`${s.server.url}#/workflow`);
+    await page.getByTestId('workflow-actions').waitFor({ timeout: 60_000 });
+    // a split exists, so a new one needs "replace" ticked first
+    expect(await page.getByTestId('take-split').isDisabled()).toBe(true);
+    await page.getByTestId(`take-confirm-${planId}`).click();
+    await page.getByTestId('step-done').waitFor({ timeout: 240_000 });
+    expect(await page.getByTestId('step-done').innerText()).toContain(`plan ${planId}: confirmation 2 (not the first: not a held-out test)`);
+    // the database was read again: the plan now shows two confirmations
+    const confirmationsAt = (await page.getByTestId('plans').locator('thead th').allInnerTexts()).findIndex((h) => h.startsWith('Confirmations'));
+    await expect
+      .poll(
+        () =>
+          page
+            .getByTestId('plans')
+            .locator(`tbody tr td:nth-child(${confirmationsAt + 1})`)
+            .first()
+            .innerText(),
+        { timeout: 60_000 },
+      )
+      .toBe('2');
+    const ledger = readFileSync(path.join(dir, 'ledger.jsonl'), 'utf8')
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l));
+    expect(ledger.filter((e) => e.planId === planId).map((e) => e.confirmationRun)).toEqual([1, 2]);
+    await page.getByRole('link', { name: 'open it' }).click();
+    await page.getByTestId('methods-text').waitFor({ timeout: 60_000 });
+    expect(await page.getByTestId('methods-text').innerText()).toContain('not the first');
   });
 
   it('no console error, no request off this machine', () => {

@@ -89,7 +89,7 @@ async function* streamed(e: Engine, sql: string): AsyncIterable<RecordBatch> {
 /** Attach the database served at `url` (absolute http URL), read with range requests; `name`: its file name (default: the URL's last part). */
 export async function openServedDatabase(url: string, name?: string): Promise<CohortConnection> {
   const abs = new URL(url, document.baseURI).href;
-  return attach(await getEngine(), abs, abs, name ?? abs.split('/').pop()!);
+  return attach(await getEngine(), abs, abs, name ?? new URL(abs).pathname.split('/').pop()!);
 }
 
 /** Attach a database file the user picked or dropped; nothing is uploaded anywhere. */
