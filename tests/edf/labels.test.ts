@@ -30,6 +30,9 @@ describe('parseChannelLabel', () => {
   it('the physical dimension decides for prefix-less labels: a non-voltage unit is MISC', () => {
     expect(parseChannelLabel('Cz', 'uV').type).toBe('EEG');
     expect(parseChannelLabel('Cz', 'µV').type).toBe('EEG');
+    // units in any case, as exports write them (toMicrovolts reads them so): still a voltage
+    for (const unit of ['uv', 'UV', 'µv', 'mv']) expect(parseChannelLabel('Cz', unit).type).toBe('EEG');
+    expect(parseChannelLabel('Cz', 'MV').type).toBe('MISC'); // megavolts: no EEG by name alone
     expect(parseChannelLabel('Cz', '%').type).toBe('MISC');
     expect(parseChannelLabel('Pulse', 'bpm').type).toBe('MISC');
     expect(parseChannelLabel('EEG Cz', 'degC').type).toBe('EEG'); // an explicit prefix wins

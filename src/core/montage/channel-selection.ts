@@ -13,7 +13,7 @@
  *    EEG derivation (Pz-Oz); two channels with one name (C3-M2 and C3-M1) are both named by
  *    their derivation; two channels that still share a name are an error.
  */
-import { classifyDerivation, derivationName, parseChannelLabel, type Derivation } from './labels.ts';
+import { classifyDerivation, derivationName, microvoltsPer, parseChannelLabel, type Derivation } from './labels.ts';
 import type { MontageChannel } from './reference.ts';
 
 /** One signal of a recording's header, as selection needs it. */
@@ -67,14 +67,7 @@ export class ChannelSelectionError extends Error {
 }
 
 /** Multiplier from a physical dimension to µV, or null when it is not a voltage. Empty → µV (assumed). */
-export function toMicrovolts(dimension: string): number | null {
-  const d = dimension.trim();
-  if (d === '' || /^(µ|μ|u)V$/i.test(d)) return 1;
-  if (d === 'mV') return 1e3;
-  if (d === 'V') return 1e6;
-  if (d === 'nV') return 1e-3;
-  return null;
-}
+export const toMicrovolts = microvoltsPer;
 
 const named = (list: readonly string[], ...names: string[]) => {
   const wanted = new Set(names.map((n) => n.trim().toUpperCase()));

@@ -56,9 +56,23 @@ const WORDS: [RegExp, ChannelType][] = [
   [/\b(resp|thorax|thor|abdomen|abdo|airflow|flow|snore)\b/i, 'RESP'],
 ];
 
-/** Voltage units (µV, uV, mV, V, nV): only these can carry EEG/EOG/EMG/ECG by name alone. */
+/**
+ * Multiplier from a physical dimension to µV, or null when it is not a voltage; empty → 1 (µV
+ * assumed). The micro prefix as µ (U+00B5), μ (U+03BC) or u; exports write units in either
+ * case (uv, UV, mv), so case is ignored except that "M" (mega) is no voltage of a body signal.
+ */
+export function microvoltsPer(dimension: string): number | null {
+  const d = dimension.trim();
+  if (d === '' || /^(µ|μ|u)V$/i.test(d)) return 1;
+  if (/^mV$/i.test(d) && d[0] === 'm') return 1e3;
+  if (/^V$/i.test(d)) return 1e6;
+  if (/^nV$/i.test(d)) return 1e-3;
+  return null;
+}
+
+/** Voltage units (µV, uV, mV, V, nV in any case but mega): only these can carry EEG/EOG/EMG/ECG by name alone. */
 function isVoltage(unit: string): boolean {
-  return /^(µ|μ|u|m|n)?V$/.test(unit.trim());
+  return unit.trim() !== '' && microvoltsPer(unit) !== null;
 }
 
 /**
@@ -124,8 +138,9 @@ export function hemisphere(electrode: string): 'left' | 'right' | 'midline' | nu
  *    backups F3-M2, C3-M2, O1-M2 (AASM Manual for the Scoring of Sleep, v2.x).
  *  - ipsilateral-mastoid (C3-M1) and midline-mastoid (Pz-M1): one mastoid, no standard scheme.
  *  - linked-mastoids: a scalp electrode against both mastoids or both ear lobes, spelled with
- *    both names: M1M2, M1+M2, A1A2, A1+A2 (either order). Abbreviations without a standard
- *    spelling (LE, "linked") are not guessed: they are 'other'.
+ *    both names: M1M2, M1+M2, A1A2, A1+A2 (either order), or their average written out,
+ *    (A1+A2)/2 (white space ignored). Abbreviations without a standard spelling (LE, LM,
+ *    "linked") are not guessed: they are 'other'.
  *  - bipolar: both electrodes 10-10 scalp sites (Fpz-Cz, Pz-Oz, C3-Cz).
  *  - other: anything else (a mastoid or eye electrode against something, AVG, LE…).
  */
@@ -138,7 +153,8 @@ export interface Derivation {
 }
 
 const COMMON_WORDS = /^(REF|REFERENCE)$/i;
-const LINKED = /^(M1\+?M2|M2\+?M1|A1\+?A2|A2\+?A1)$/i;
+// both mastoids or ear lobes: M1M2, M1+M2, and their average written out, (M1+M2)/2 (white space ignored)
+const LINKED = /^(M1\+?M2|M2\+?M1|A1\+?A2|A2\+?A1|\((M1\+M2|M2\+M1|A1\+A2|A2\+A1)\)\/2)$/i;
 
 /**
  * The reference a label names, in one spelling for comparisons: null for the common reference
@@ -149,7 +165,8 @@ export function referenceKey(reference: string | null): string | null {
   if (reference === null) return null;
   const r = reference.trim();
   if (r === '' || COMMON_WORDS.test(r)) return null;
-  if (LINKED.test(r)) return r.toUpperCase().startsWith('A') ? 'A1+A2' : 'M1+M2';
+  const packed = r.replace(/\s+/g, '');
+  if (LINKED.test(packed)) return /^\(?A/i.test(packed) ? 'A1+A2' : 'M1+M2';
   return canonicalElectrode(r) ?? r.toUpperCase();
 }
 
