@@ -8,6 +8,10 @@
  * mix stages with other events: texts that are not stage labels (and do not look like one) are
  * ignored with a warning. A missing (n/a) duration means one epoch. Delimiter: by extension
  * (.tsv/.csv), else by the header line; CSV fields may be quoted.
+ * Per-epoch tables (common practice of lab exports): without onset and duration columns, a
+ * `stage` (or `sleep stage`) column gives one epoch per row from the recording start, read
+ * strictly; an `epoch` column, if any, must count on by one from its first row (0 or 1), since a
+ * skipped or repeated number would move every later epoch.
  */
 import { readFile } from 'node:fs/promises';
 import path from 'node:path';
@@ -37,6 +41,8 @@ export function scoringFromTableText(text: string, file: string, options: Scorin
   const onsetCol = lower.indexOf('onset');
   const durCol = lower.indexOf('duration');
   const stageName = STAGE_COLUMNS.find((c) => lower.includes(c));
+  const perEpochCol = lower.findIndex((h) => /^sleep[ _]?stage$|^stage$/.test(h));
+  if (onsetCol < 0 && durCol < 0 && perEpochCol >= 0) return perEpochTable(table, lower, perEpochCol, file, epochS, options);
   const problems: ScoringProblem[] = [];
   if (onsetCol < 0) problems.push({ kind: 'column', epochs: [], message: `no 'onset' column (header: ${table.header.join(', ')})` });
   if (durCol < 0) problems.push({ kind: 'column', epochs: [], message: `no 'duration' column (header: ${table.header.join(', ')})` });
@@ -87,6 +93,32 @@ export function scoringFromTableText(text: string, file: string, options: Scorin
     });
   }
   return hyp;
+}
+
+/** One row per epoch from the recording start: the stage column strictly, an epoch column checked to count on by one. */
+function perEpochTable(table: ReturnType<typeof parseDelimited>, lower: string[], stageCol: number, file: string, epochS: number, options: ScoringOptions): Hypnogram {
+  const epochCol = lower.indexOf('epoch');
+  const problems: ScoringProblem[] = [];
+  const intervals: StageInterval[] = [];
+  let first: number | null = null;
+  table.rows.forEach((r, i) => {
+    const where = `row ${i + 1}`;
+    if (r.cells.length !== table.header.length) {
+      problems.push({ kind: 'syntax', epochs: [], message: `${where} (line ${r.line}) has ${r.cells.length} fields, the header has ${table.header.length}` });
+      return;
+    }
+    if (epochCol >= 0) {
+      const n = parseNumber(cellValue(r.cells[epochCol]) ?? '');
+      first ??= n === 0 ? 0 : 1;
+      if (n !== first + i) {
+        problems.push({ kind: 'onset', epochs: [i], message: `${where}, column '${table.header[epochCol]}': epoch ${n === null ? '(not a number)' : n} is not the next epoch (${first + i})` });
+        return;
+      }
+    }
+    intervals.push({ onsetS: i * epochS, durationS: epochS, label: cellValue(r.cells[stageCol]) ?? '', where });
+  });
+  if (problems.length) throw new ScoringError(file, problems);
+  return hypnogramFromIntervals(intervals, { file, source: `table:${path.basename(file)}`, eventStyle: false }, options);
 }
 
 export async function readScoringFile(file: string): Promise<string> {
