@@ -3,12 +3,14 @@
  *
  * TSV as BIDS writes it: tab-separated, UTF-8, one header row, no quoting (BIDS specification,
  * "Tabular files"). CSV as RFC 4180: fields may be quoted with ", a quote inside is doubled, a
- * quoted field may hold commas and line breaks. A leading UTF-8 byte-order mark and CRLF line
- * ends are accepted; blank lines are skipped. Cells are not trimmed here.
+ * quoted field may hold commas and line breaks. A CSV whose header line has semicolons and no
+ * comma is read with ';' as separator (spreadsheets in decimal-comma locales write it so; common
+ * practice), by the same quoting rules. A leading UTF-8 byte-order mark and CRLF line ends are
+ * accepted; blank lines are skipped. Cells are not trimmed here.
  */
 import path from 'node:path';
 
-export type Delimiter = '\t' | ',';
+export type Delimiter = '\t' | ',' | ';';
 
 export interface DelimitedTable {
   delimiter: Delimiter;
@@ -17,19 +19,19 @@ export interface DelimitedTable {
   rows: { cells: string[]; line: number }[];
 }
 
-/** By extension (.tsv → tab, .csv → comma), else by the header line (a tab → tab, else comma). */
+/** By extension (.tsv → tab, .csv → comma), else by the header line (a tab → tab, else comma); a comma-less header line with ';' → semicolon. */
 export function detectDelimiter(file: string, text: string): Delimiter {
   const ext = path.extname(file).toLowerCase();
   if (ext === '.tsv') return '\t';
-  if (ext === '.csv') return ',';
   const firstLine = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '';
-  return firstLine.includes('\t') ? '\t' : ',';
+  if (ext !== '.csv' && firstLine.includes('\t')) return '\t';
+  return firstLine.includes(';') && !firstLine.includes(',') ? ';' : ',';
 }
 
 /** Throws Error(`line N: …`) on an unterminated quoted CSV field. */
 export function parseDelimited(text: string, delimiter: Delimiter): DelimitedTable {
   const src = text.replace(/^\uFEFF/, '');
-  const records = delimiter === '\t' ? splitTsv(src) : splitCsv(src);
+  const records = delimiter === '\t' ? splitTsv(src) : splitCsv(src, delimiter);
   const nonBlank = records.filter((r) => !(r.cells.length === 1 && r.cells[0] === ''));
   const [head, ...rows] = nonBlank;
   return { delimiter, header: head ? head.cells : [], rows };
@@ -39,7 +41,7 @@ function splitTsv(src: string): { cells: string[]; line: number }[] {
   return src.split(/\r?\n/).map((l, i) => ({ cells: l.split('\t'), line: i + 1 }));
 }
 
-function splitCsv(src: string): { cells: string[]; line: number }[] {
+function splitCsv(src: string, separator: ',' | ';'): { cells: string[]; line: number }[] {
   const out: { cells: string[]; line: number }[] = [];
   let cells: string[] = [];
   let cell = '';
@@ -68,7 +70,7 @@ function splitCsv(src: string): { cells: string[]; line: number }[] {
     if (c === '"' && cell === '') {
       quoted = true;
       i++;
-    } else if (c === ',') {
+    } else if (c === separator) {
       cells.push(cell);
       cell = '';
       i++;

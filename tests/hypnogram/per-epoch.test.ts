@@ -62,3 +62,14 @@ describe('per-epoch tables (a stage column, no onset/duration)', () => {
     expect((e as Error).message).toContain("row 3, column 'epoch': epoch 4 is not the next epoch (3)");
   });
 });
+
+describe('semicolon-separated CSV (spreadsheets in locales with a decimal comma write it so; common practice)', () => {
+  it('is told from the header line: a per-epoch table and an onset table', async () => {
+    expect((await readScoring(file('j.csv', 'Epoch;Stage\r\n1;W\r\n2;N2\r\n3;"R"\r\n'))).stages).toEqual(['W', 'N2', 'R']);
+    expect((await readScoring(file('k.csv', 'onset;duration;stage\n0;30;W\n30;60;N2\n'))).stages).toEqual(['W', 'N2', 'N2']);
+  });
+
+  it('a comma in the header keeps the comma as separator', async () => {
+    expect((await readScoring(file('l.csv', 'onset,duration,stage\n0,30,W\n'))).stages).toEqual(['W']);
+  });
+});
