@@ -3,7 +3,8 @@
 // table (tests/edf/helpers.ts, not our writer), scored by a per-epoch text file. The default 4-s
 // Welch segment holds 799.2 samples: refused in one line that says what would work; a 5-s
 // segment (999 samples) is ingested and its spectrum checked against scipy.signal.welch of the
-// planted physical values.
+// planted physical values. Then 30-s epochs over 7-s EDF+C data records: the scoring's onsets
+// (0, 30, 60 … s) fall inside records, so every epoch is cut out of several records.
 import { writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -80,6 +81,66 @@ n = 5994
 ps = [welch(x[e*n:(e+1)*n], fs=999/5, window='hann', nperseg=999, noverlap=500, detrend='constant', scaling='density')[1] for e in ${JSON.stringify(epochs)}]
 print(json.dumps(numpy.mean(ps, axis=0)[:226].tolist()))`,
       { x: planted },
+    );
+    let worst = 0;
+    for (let k = 1; k < ref.length; k++) worst = Math.max(worst, Math.abs(stored.power[k] - ref[k]) / ref[k]);
+    expect(worst).toBeLessThan(1e-5); // float32 storage
+  });
+});
+
+describe('30-s epochs over 7-s data records (EDF+C, stage annotations off the record grid)', () => {
+  it('stores the annotated stages and an N2 spectrum equal to scipy.signal.welch over epochs that span records', async () => {
+    const fs = 100;
+    const spr = 7 * fs;
+    const nRec = 35; // 245 s: 8 whole epochs and 5 s the last epoch is cut short in
+    const stages = ['W', 'W', '2', '2', '2', '2', '2', '2'];
+    const digital = new Int16Array(nRec * spr);
+    const x = new Float64Array(nRec * spr);
+    for (let i = 0; i < digital.length; i++) {
+      const u = Math.sin(i * 78.233) * 43758.5453;
+      digital[i] = Math.round(3000 * Math.sin((2 * Math.PI * 10 * i) / fs) + 8000 * (u - Math.floor(u) - 0.5));
+      x[i] = phys(digital[i]);
+    }
+    const talWidth = 600; // 300 two-byte samples per record
+    const records = Array.from({ length: nRec }, (_, r) => {
+      // EDF+ 2003 §2.2.4: the time-keeping TAL first, the stage annotations in record 0
+      let tal = `+${r * 7}\x14\x14\x00`;
+      if (r === 0) tal += stages.map((st, e) => `+${e * 30}\x1530\x14Sleep stage ${st}\x14\x00`).join('');
+      const bytes = new Uint8Array(talWidth);
+      bytes.set(Buffer.from(tal, 'latin1'));
+      return concat([int16le(digital.subarray(r * spr, (r + 1) * spr)), bytes]);
+    });
+    const file = path.join(tmp.dir, 'seven.edf');
+    writeFileSync(
+      file,
+      handEdf({
+        patient: 'X X X X',
+        recording: 'Startdate X X X X',
+        date: '05.04.03',
+        time: '22.30.15',
+        reserved: 'EDF+C',
+        nRecords: String(nRec),
+        duration: '7',
+        signals: [
+          { label: 'EEG C4-M1', dim: 'uV', pmin: String(PMIN), pmax: String(PMAX), dmin: String(DMIN), dmax: String(DMAX), spr: String(spr) },
+          { label: 'EDF Annotations', dim: '', pmin: '-1', pmax: '1', dmin: '-32768', dmax: '32767', spr: String(talWidth / 2) },
+        ],
+        data: concat(records),
+      }),
+    );
+    const b = await processRecording({ ...rec, subject: 'seven', recordingPath: file, scoringPath: null }, resolveIngestParams({ fit: null }));
+    expect(b.epochs.stage).toEqual(['W', 'W', 'N2', 'N2', 'N2', 'N2', 'N2', 'N2', 'unscored']);
+    expect(b.epochs.dropReason?.[8]).toBe('recording-end');
+    const rejected = new Set(b.rejections.filter((r) => r.channel === 'C4' && r.reference === 'recorded').map((r) => r.epoch));
+    const epochs = [2, 3, 4, 5, 6, 7].filter((e) => !rejected.has(e));
+    const stored = b.spectra.find((s) => s.channel === 'C4' && s.reference === 'recorded' && s.stage === 'N2' && s.averaging === 'mean')!;
+    expect(stored.nEpochs).toBe(epochs.length);
+    const ref = runPython<number[]>(
+      `from scipy.signal import welch
+x = numpy.fromfile(inputs['x'])
+ps = [welch(x[e*3000:(e+1)*3000], fs=100, window='hann', nperseg=400, noverlap=200, detrend='constant', scaling='density')[1] for e in ${JSON.stringify(epochs)}]
+print(json.dumps(numpy.mean(ps, axis=0)[:181].tolist()))`,
+      { x },
     );
     let worst = 0;
     for (let k = 1; k < ref.length; k++) worst = Math.max(worst, Math.abs(stored.power[k] - ref[k]) / ref[k]);
