@@ -9,12 +9,12 @@
 // the AASM rule, Iber et al. 2007). Spectra are checked against scipy.signal.welch of the values
 // given to libedf, samples against those values within one digital step.
 import { execFileSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CohortRecording } from '../../ingest/cohort/types.ts';
 import { openEdf } from '../../ingest/edf/reader.ts';
-import { processRecording, resolveIngestParams } from '../../ingest/pipeline.ts';
+import { PipelineError, processRecording, resolveIngestParams } from '../../ingest/pipeline.ts';
 import { compileWithLibedf, writerSource, type RefAnnotation, type RefSignal } from '../edf/libedf.ts';
 import { makeTmpDir } from '../edf/helpers.ts';
 import { runPython } from '../helpers/python.ts';
@@ -178,5 +178,23 @@ describe('a clinical-style EDF+ export (0.2-s records, 200 Hz) through ingest', 
       // 16-bit storage: a digital step of 1000/65535 µV against an RMS of ≈ 37 µV (see derivations.test.ts)
       expect(maxRel(stored.power, scipyStageMean(planted[k], epochs))).toBeLessThan(2e-3);
     }
+  });
+});
+
+describe('a refused scoring file', () => {
+  it('is one line for ingest_errors and the summary, every problem in it, the unknown text by its hash only', async () => {
+    const scoring = path.join(tmp.dir, 'psg-scoring.csv');
+    writeFileSync(scoring, 'Epoch;Stage\n1;W\n2;Quillfeather\n4;N2\n');
+    const e = await processRecording({ ...rec('psg', file), scoringPath: scoring }, resolveIngestParams({ fit: null })).catch((x: unknown) => x);
+    expect(e).toBeInstanceOf(PipelineError);
+    expect((e as PipelineError).step).toBe('scoring');
+    const message = (e as PipelineError).message;
+    expect(message).not.toMatch(/[\r\n]/);
+    expect(message).toBe(`${scoring}: 1 scoring problem: row 3, column 'Epoch': epoch 4 is not the next epoch (3)`);
+    writeFileSync(scoring, 'Epoch;Stage\n1;W\n2;Quillfeather\n3;Sleep stage 5\n');
+    const two = (await processRecording({ ...rec('psg', file), scoringPath: scoring }, resolveIngestParams({ fit: null })).catch((x: unknown) => x)) as Error;
+    expect(two.message).not.toMatch(/[\r\n]/);
+    expect(two.message).toMatch(/^.*psg-scoring\.csv: 2 scoring problems: unknown stage label \(text #[0-9a-f]{8}, row 2\).*; unknown stage label/);
+    expect(two.message).not.toContain('Quillfeather');
   });
 });
