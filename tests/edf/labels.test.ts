@@ -23,6 +23,13 @@ describe('parseChannelLabel', () => {
     ['Thorax', 'RESP', 'Thorax', null],
     ['SaO2', 'MISC', 'SaO2', null],
     ['  O2-M1  ', 'EEG', 'O2', 'M1'],
+    // a type word with a number or a bracket straight after it, as some cohort exports name channels (common practice)
+    ['EEG(sec)', 'EEG', 'EEG(sec)', null],
+    ['EEG2', 'EEG', 'EEG2', null],
+    ['ECG2', 'ECG', 'ECG2', null],
+    ['EKG1', 'ECG', 'EKG1', null],
+    ['EOG(L)', 'EOG', 'EOG(L)', null],
+    ['EMG(chin)', 'EMG', 'EMG(chin)', null],
   ])('%s → %s %s %s', (label, type, electrode, reference) => {
     expect(parseChannelLabel(label)).toEqual({ raw: label, type, electrode, reference });
   });

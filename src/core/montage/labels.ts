@@ -77,7 +77,7 @@ function isVoltage(unit: string): boolean {
 
 /**
  * Splits an EDF channel label. Type, in this order: a leading type word (EEG, EOG, EMG, ECG/EKG,
- * RESP, MISC); a sensor word (ECG, LOC, chin, thorax…); a 10-20/10-10 electrode name → EEG;
+ * RESP, MISC), also with a number or bracket right after it as the whole label (EEG2, EEG(sec)); a sensor word (ECG, LOC, chin, thorax…); a 10-20/10-10 electrode name → EEG;
  * otherwise MISC. Without a prefix, a physical dimension that is given and is not a voltage
  * (%, bpm, degC…) makes the channel MISC whatever its name.
  */
@@ -91,6 +91,10 @@ export function parseChannelLabel(label: string, physicalDimension?: string): Ch
     rest = m[2].trim();
   } else if (PREFIXES[rest.toUpperCase()]) {
     type = PREFIXES[rest.toUpperCase()];
+  } else {
+    // a type word with a number or a bracket right after it names the channel by its type ("EEG2", "EEG(sec)", "ECG2")
+    const numbered = /^(EEG|EOG|EMG|ECG|EKG)(\d+|\([^()]*\))$/i.exec(rest);
+    if (numbered) type = PREFIXES[numbered[1].toUpperCase()];
   }
   // Derivation: "C3-M2", "C4:A1"; the first separator splits electrode from reference.
   const sep = /[-:]/.exec(rest);
