@@ -3,10 +3,10 @@
  *
  * TSV as BIDS writes it: tab-separated, UTF-8, one header row, no quoting (BIDS specification,
  * "Tabular files"). CSV as RFC 4180: fields may be quoted with ", a quote inside is doubled, a
- * quoted field may hold commas and line breaks. A CSV whose header line has semicolons and no
- * comma is read with ';' as separator (spreadsheets in decimal-comma locales write it so; common
- * practice), by the same quoting rules. A leading UTF-8 byte-order mark and CRLF line ends are
- * accepted; blank lines are skipped. Cells are not trimmed here.
+ * quoted field may hold commas and line breaks; ';' may stand for ',' (scoring tables from
+ * decimal-comma spreadsheets, see ingest/hypnogram/table.ts), by the same quoting rules. A
+ * leading UTF-8 byte-order mark and CRLF line ends are accepted; blank lines are skipped. Cells
+ * are not trimmed here.
  */
 import path from 'node:path';
 
@@ -19,13 +19,13 @@ export interface DelimitedTable {
   rows: { cells: string[]; line: number }[];
 }
 
-/** By extension (.tsv → tab, .csv → comma), else by the header line (a tab → tab, else comma); a comma-less header line with ';' → semicolon. */
+/** By extension (.tsv → tab, .csv → comma), else by the header line (a tab → tab, else comma). */
 export function detectDelimiter(file: string, text: string): Delimiter {
   const ext = path.extname(file).toLowerCase();
   if (ext === '.tsv') return '\t';
+  if (ext === '.csv') return ',';
   const firstLine = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '';
-  if (ext !== '.csv' && firstLine.includes('\t')) return '\t';
-  return firstLine.includes(';') && !firstLine.includes(',') ? ';' : ',';
+  return firstLine.includes('\t') ? '\t' : ',';
 }
 
 /** Throws Error(`line N: …`) on an unterminated quoted CSV field. */

@@ -15,7 +15,7 @@
  */
 import { readFile } from 'node:fs/promises';
 import path from 'node:path';
-import { cellValue, detectDelimiter, parseDelimited, parseNumber } from '../cohort/delimited.ts';
+import { cellValue, detectDelimiter, parseDelimited, parseNumber, type Delimiter } from '../cohort/delimited.ts';
 import type { StageInterval } from './epochs.ts';
 import { hypnogramFromIntervals } from './epochs.ts';
 import type { Hypnogram, ScoringOptions, ScoringProblem } from './types.ts';
@@ -33,7 +33,7 @@ export function scoringFromTableText(text: string, file: string, options: Scorin
   const epochS = resolveEpochS(options, file);
   let table;
   try {
-    table = parseDelimited(text, detectDelimiter(file, text));
+    table = parseDelimited(text, scoringDelimiter(file, text));
   } catch (e) {
     throw new ScoringError(file, [{ kind: 'syntax', epochs: [], message: (e as Error).message }]);
   }
@@ -119,6 +119,17 @@ function perEpochTable(table: ReturnType<typeof parseDelimited>, lower: string[]
   });
   if (problems.length) throw new ScoringError(file, problems);
   return hypnogramFromIntervals(intervals, { file, source: `table:${path.basename(file)}`, eventStyle: false }, options);
+}
+
+/**
+ * detectDelimiter, and ';' when a comma-separated guess meets a header line with semicolons and
+ * no comma (decimal-comma spreadsheets write CSV so; common practice). A decimal comma in an onset
+ * is then no number and is refused naming its row, never misread.
+ */
+export function scoringDelimiter(file: string, text: string): Delimiter {
+  const d = detectDelimiter(file, text);
+  const firstLine = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '';
+  return d === ',' && firstLine.includes(';') && !firstLine.includes(',') ? ';' : d;
 }
 
 export async function readScoringFile(file: string): Promise<string> {

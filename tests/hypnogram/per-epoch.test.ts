@@ -73,3 +73,11 @@ describe('semicolon-separated CSV (spreadsheets in locales with a decimal comma 
     expect((await readScoring(file('l.csv', 'onset,duration,stage\n0,30,W\n'))).stages).toEqual(['W']);
   });
 });
+
+describe('a decimal comma in a semicolon table', () => {
+  it('is no number: refused naming the row, never misread', async () => {
+    const e = await readScoring(file('m.csv', 'onset;duration;stage\n0;30;W\n30,5;30;N2\n')).catch((x: unknown) => x);
+    expect(e).toBeInstanceOf(ScoringError);
+    expect((e as Error).message).toContain("row 2, column 'onset': onset '30,5' is not a number of seconds");
+  });
+});
