@@ -10,7 +10,7 @@
  * (.tsv/.csv), else by the header line; CSV fields may be quoted.
  * Per-epoch tables (common practice of lab exports): without onset and duration columns, a
  * `stage` (or `sleep stage`) column gives one epoch per row from the recording start, read
- * strictly; an `epoch` column, if any, must count on by one from its first row (0 or 1), since a
+ * strictly (n/a or empty: an epoch without scoring); an `epoch` column, if any, must count on by one from its first row (0 or 1), since a
  * skipped or repeated number would move every later epoch.
  */
 import { readFile } from 'node:fs/promises';
@@ -115,7 +115,8 @@ function perEpochTable(table: ReturnType<typeof parseDelimited>, lower: string[]
         return;
       }
     }
-    intervals.push({ onsetS: i * epochS, durationS: epochS, label: cellValue(r.cells[stageCol]) ?? '', where });
+    const label = cellValue(r.cells[stageCol]);
+    if (label !== null) intervals.push({ onsetS: i * epochS, durationS: epochS, label, where }); // n/a: an epoch without scoring
   });
   if (problems.length) throw new ScoringError(file, problems);
   return hypnogramFromIntervals(intervals, { file, source: `table:${path.basename(file)}`, eventStyle: false }, options);

@@ -81,3 +81,12 @@ describe('a decimal comma in a semicolon table', () => {
     expect((e as Error).message).toContain("row 2, column 'onset': onset '30,5' is not a number of seconds");
   });
 });
+
+describe('a per-epoch row without a stage (n/a or empty, the BIDS missing value)', () => {
+  it('is an epoch without scoring: unscored, reported as a gap, the hypnogram partial', async () => {
+    const h = await readScoring(file('n.csv', 'epoch,stage\n1,W\n2,n/a\n3,\n4,N2\n'));
+    expect(h.stages).toEqual(['W', 'unscored', 'unscored', 'N2']);
+    expect(h.warnings.map((w) => [w.kind, w.epochs])).toEqual([['gap', [1, 2]]]);
+    expect(h.partial).toBe(true);
+  });
+});
