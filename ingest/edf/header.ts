@@ -245,7 +245,8 @@ function parseStart(file: string, dateRaw: string, timeRaw: string, sub: ReturnT
   const agrees = sub !== null && sub.day === day && sub.month === month && (yy === null || sub.year % 100 === yy);
   if (sub && !agrees && yy !== null)
     warnings.add('local recording identification', 'its Startdate subfield disagrees with the header start date; the header date is used (content withheld)');
-  if (yy === null && !agrees) throw new EdfFormatError(file, 'start date', 'yy', 'year written "yy" and no EDF+ Startdate subfield of the same day and month: no year');
+  if (yy === null && !agrees)
+    throw new EdfFormatError(file, 'start date', 'yy', 'year written "yy" and no EDF+ Startdate subfield of the same day and month: no year');
   const year = agrees ? sub.year : yy! >= 85 ? 1900 + yy! : 2000 + yy!;
   const daysInMonth = [31, year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0) ? 29 : 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
   if (month < 1 || month > 12 || day < 1 || day > daysInMonth[month - 1]) {

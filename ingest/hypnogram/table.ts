@@ -96,7 +96,14 @@ export function scoringFromTableText(text: string, file: string, options: Scorin
 }
 
 /** One row per epoch from the recording start: the stage column strictly, an epoch column checked to count on by one. */
-function perEpochTable(table: ReturnType<typeof parseDelimited>, lower: string[], stageCol: number, file: string, epochS: number, options: ScoringOptions): Hypnogram {
+function perEpochTable(
+  table: ReturnType<typeof parseDelimited>,
+  lower: string[],
+  stageCol: number,
+  file: string,
+  epochS: number,
+  options: ScoringOptions,
+): Hypnogram {
   const epochCol = lower.indexOf('epoch');
   const problems: ScoringProblem[] = [];
   const intervals: StageInterval[] = [];
@@ -111,7 +118,11 @@ function perEpochTable(table: ReturnType<typeof parseDelimited>, lower: string[]
       const n = parseNumber(cellValue(r.cells[epochCol]) ?? '');
       first ??= n === 0 ? 0 : 1;
       if (n !== first + i) {
-        problems.push({ kind: 'onset', epochs: [i], message: `${where}, column '${table.header[epochCol]}': epoch ${n === null ? '(not a number)' : n} is not the next epoch (${first + i})` });
+        problems.push({
+          kind: 'onset',
+          epochs: [i],
+          message: `${where}, column '${table.header[epochCol]}': epoch ${n === null ? '(not a number)' : n} is not the next epoch (${first + i})`,
+        });
         return;
       }
     }

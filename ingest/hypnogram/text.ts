@@ -28,8 +28,6 @@ export function scoringFromText(text: string, file: string, options: ScoringOpti
     .map((l) => l.trim());
   while (lines.length && lines[lines.length - 1] === '') lines.pop();
   const header = lines.length > 0 && stageFromLabel(lines[0], options.labelMap) === undefined && HEADER_LINE.test(normalizeLabel(lines[0])) ? 1 : 0;
-  const intervals: StageInterval[] = lines
-    .slice(header)
-    .map((label, i) => ({ onsetS: i * epochS, durationS: epochS, label, where: `line ${i + 1 + header}` }));
+  const intervals: StageInterval[] = lines.slice(header).map((label, i) => ({ onsetS: i * epochS, durationS: epochS, label, where: `line ${i + 1 + header}` }));
   return hypnogramFromIntervals(intervals, { file, source: `text:${path.basename(file)}`, eventStyle: false }, options);
 }

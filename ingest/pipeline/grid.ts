@@ -111,7 +111,9 @@ export function frequencyGrid(fsHz: number, params: IngestParams, file: string):
   const perSegment = params.segmentS * fsHz;
   if (Math.abs(perSegment - Math.round(perSegment)) > 1e-6) {
     // a rate that is not a whole number of Hz (199.8 Hz = 999 samples per 5-s record): say which segment would work
-    const works = Array.from({ length: 120 }, (_, k) => Math.ceil(2 * params.segmentS) / 2 + k / 2).find((sec) => Math.abs(sec * fsHz - Math.round(sec * fsHz)) <= 1e-6);
+    const works = Array.from({ length: 120 }, (_, k) => Math.ceil(2 * params.segmentS) / 2 + k / 2).find(
+      (sec) => Math.abs(sec * fsHz - Math.round(sec * fsHz)) <= 1e-6,
+    );
     const hint = works === undefined ? '' : ` (--segment ${works}: ${Math.round(works * fsHz)} samples)`;
     throw new PipelineError(
       'spectra',

@@ -127,9 +127,10 @@ describe('a clinical-style EDF+ export (0.2-s records, 200 Hz) through ingest', 
   });
 
   it('the non-EEG signals are there with their own types when asked for', async () => {
-    const all = await processRecording(rec('psg', file), resolveIngestParams({ fit: null, channelTypes: ['EEG', 'EOG', 'EMG', 'ECG', 'RESP', 'MISC'], references: ['recorded'] })).catch(
-      (e: Error) => e,
-    );
+    const all = await processRecording(
+      rec('psg', file),
+      resolveIngestParams({ fit: null, channelTypes: ['EEG', 'EOG', 'EMG', 'ECG', 'RESP', 'MISC'], references: ['recorded'] }),
+    ).catch((e: Error) => e);
     // SpO2 (%) and position are not voltages: asking for every type names the first of them
     expect(all).toBeInstanceOf(Error);
     expect((all as Error).message).toMatch(/channel "SpO2" has unit "%", not a voltage/);
