@@ -3,12 +3,14 @@
  *
  * TSV as BIDS writes it: tab-separated, UTF-8, one header row, no quoting (BIDS specification,
  * "Tabular files"). CSV as RFC 4180: fields may be quoted with ", a quote inside is doubled, a
- * quoted field may hold commas and line breaks. A leading UTF-8 byte-order mark and CRLF line
- * ends are accepted; blank lines are skipped. Cells are not trimmed here.
+ * quoted field may hold commas and line breaks; ';' may stand for ',' (scoring tables from
+ * decimal-comma spreadsheets, see ingest/hypnogram/table.ts), by the same quoting rules. A
+ * leading UTF-8 byte-order mark and CRLF line ends are accepted; blank lines are skipped. Cells
+ * are not trimmed here.
  */
 import path from 'node:path';
 
-export type Delimiter = '\t' | ',';
+export type Delimiter = '\t' | ',' | ';';
 
 export interface DelimitedTable {
   delimiter: Delimiter;
@@ -29,7 +31,7 @@ export function detectDelimiter(file: string, text: string): Delimiter {
 /** Throws Error(`line N: …`) on an unterminated quoted CSV field. */
 export function parseDelimited(text: string, delimiter: Delimiter): DelimitedTable {
   const src = text.replace(/^\uFEFF/, '');
-  const records = delimiter === '\t' ? splitTsv(src) : splitCsv(src);
+  const records = delimiter === '\t' ? splitTsv(src) : splitCsv(src, delimiter);
   const nonBlank = records.filter((r) => !(r.cells.length === 1 && r.cells[0] === ''));
   const [head, ...rows] = nonBlank;
   return { delimiter, header: head ? head.cells : [], rows };
@@ -39,7 +41,7 @@ function splitTsv(src: string): { cells: string[]; line: number }[] {
   return src.split(/\r?\n/).map((l, i) => ({ cells: l.split('\t'), line: i + 1 }));
 }
 
-function splitCsv(src: string): { cells: string[]; line: number }[] {
+function splitCsv(src: string, separator: ',' | ';'): { cells: string[]; line: number }[] {
   const out: { cells: string[]; line: number }[] = [];
   let cells: string[] = [];
   let cell = '';
@@ -68,7 +70,7 @@ function splitCsv(src: string): { cells: string[]; line: number }[] {
     if (c === '"' && cell === '') {
       quoted = true;
       i++;
-    } else if (c === ',') {
+    } else if (c === separator) {
       cells.push(cell);
       cell = '';
       i++;

@@ -221,15 +221,33 @@ function physicalDimension(raw: string, index: number, warnings: WarningList): s
   return raw.trim();
 }
 
-/** EDF 1992 §2.1 dd.mm.yy and hh.mm.ss; EDF+ 2003 §2.1.3.2 year rule: 85–99 → 19yy, 00–84 → 20yy. */
-function parseStart(file: string, dateRaw: string, timeRaw: string): string {
+/** Day, month and 4-digit year of the EDF+ "Startdate dd-MMM-yyyy" subfield (EDF+ 2003 §2.1.3.3), or null ("X", absent, malformed). */
+function startdateSubfield(recording: string): { day: number; month: number; year: number } | null {
+  const [word, date] = recording.trim().split(/ +/);
+  const m = word === 'Startdate' ? /^(\d\d)-([A-Za-z]{3})-(\d{4})$/.exec(date ?? '') : null;
+  const month = m ? MONTHS.indexOf(m[2].toUpperCase()) + 1 : 0;
+  return m && month > 0 ? { day: Number(m[1]), month, year: Number(m[3]) } : null;
+}
+const MONTHS = ['JAN', 'FEB', 'MAR', 'APR', 'MAY', 'JUN', 'JUL', 'AUG', 'SEP', 'OCT', 'NOV', 'DEC'];
+
+/**
+ * EDF 1992 §2.1 dd.mm.yy and hh.mm.ss; EDF+ 2003 §2.1.3.2 year rule: 85–99 → 19yy, 00–84 → 20yy,
+ * and the letters "yy" after 2084. An EDF+ Startdate subfield with the same day, month and
+ * two-digit year gives the 4-digit year (its text is never quoted).
+ */
+function parseStart(file: string, dateRaw: string, timeRaw: string, sub: ReturnType<typeof startdateSubfield>, warnings: WarningList): string {
   const date = dateRaw.trim();
-  const dm = /^(\d\d)\.(\d\d)\.(\d\d)$/.exec(date);
+  const dm = /^(\d\d)\.(\d\d)\.(\d\d|yy)$/i.exec(date);
   if (!dm) throw new EdfFormatError(file, 'start date', safeValue(date), `${quoteValue(date)} is not a date of the form dd.mm.yy`);
   const day = Number(dm[1]);
   const month = Number(dm[2]);
-  const yy = Number(dm[3]);
-  const year = yy >= 85 ? 1900 + yy : 2000 + yy;
+  const yy = /^yy$/i.test(dm[3]) ? null : Number(dm[3]);
+  const agrees = sub !== null && sub.day === day && sub.month === month && (yy === null || sub.year % 100 === yy);
+  if (sub && !agrees && yy !== null)
+    warnings.add('local recording identification', 'its Startdate subfield disagrees with the header start date; the header date is used (content withheld)');
+  if (yy === null && !agrees)
+    throw new EdfFormatError(file, 'start date', 'yy', 'year written "yy" and no EDF+ Startdate subfield of the same day and month: no year');
+  const year = agrees ? sub.year : yy! >= 85 ? 1900 + yy! : 2000 + yy!;
   const daysInMonth = [31, year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0) ? 29 : 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
   if (month < 1 || month > 12 || day < 1 || day > daysInMonth[month - 1]) {
     throw new EdfFormatError(file, 'start date', date, `"${date}" is not a calendar date`);
@@ -301,9 +319,10 @@ export function parseEdfHeader(bytes: Uint8Array, file: string, fileSizeBytes: n
 
   // EDF 1992 §2.1: local patient / recording identification, 80 bytes each — validated, then dropped.
   checkIdentification('local patient identification', c.take(80), isPlus, warnings);
-  checkIdentification('local recording identification', c.take(80), isPlus, warnings);
+  const recording = c.take(80);
+  checkIdentification('local recording identification', recording, isPlus, warnings);
 
-  const startDate = parseStart(file, c.take(8), c.take(8));
+  const startDate = parseStart(file, c.take(8), c.take(8), isPlus ? startdateSubfield(recording) : null, warnings);
 
   // EDF 1992 §2.1: number of bytes in header record (8).
   const headerBytes = c.integer('number of bytes in header', c.take(8));

@@ -6,6 +6,9 @@
  *  - onsets must lie on the epoch grid (k · epochS from the recording start), else error;
  *  - a duration must be a whole number of epochs, except when the interval ends exactly at the
  *    recording end; a missing duration means one epoch;
+ *  - an unscored label ('Sleep stage ?', 'Movement time') off the grid, of a part-epoch length
+ *    or of 0 s is no error: it covers the whole epochs inside it (maybe none), with one
+ *    'unscored-not-whole-epochs' warning naming such labels;
  *  - an epoch covered by two intervals is an overlap: error naming the epochs and both labels;
  *  - epochs covered by no interval are 'unscored', reported by where they lie: before the first
  *    scored epoch ('scoring-starts-late'), after the last ('scoring-ends-early') or between
@@ -109,6 +112,7 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
   const unscoredBefore = new Buckets();
   const unscoredPast = new Buckets();
   const truncated = new Buckets();
+  const notWhole = new Buckets();
   let stageIntervals = 0;
 
   for (const iv of sorted) {
@@ -119,6 +123,7 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
     }
     const firstEpoch = Math.floor((iv.onsetS + TOL_S) / epochS);
     let stage = stageFromLabel(iv.label, labelMap);
+    const labelledUnscored = stage === 'unscored'; // '?', movement time (not an unknown label scored as unscored)
     if (stage === undefined) {
       if (ctx.eventStyle && !looksLikeStageLabel(iv.label)) {
         ignored.add(textHash(iv.label), seconds(iv.onsetS), [firstEpoch]);
@@ -135,35 +140,44 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
     stageIntervals++;
 
     const k0 = Math.round(iv.onsetS / epochS);
-    if (Math.abs(k0 * epochS - iv.onsetS) > TOL_S) {
-      problems.push({
-        kind: 'off-grid',
-        epochs: [firstEpoch],
-        message: `${what}: onset ${iv.onsetS} s is not on the ${epochS}-s epoch grid (inside ${say([firstEpoch])})`,
-      });
-      continue;
-    }
     const durS = iv.durationS ?? epochS;
-    if (!Number.isFinite(durS) || durS <= 0) {
-      problems.push({ kind: 'duration', epochs: [k0], message: `${what}: duration ${durS} s at ${say([k0])} is not a positive number of seconds` });
-      continue;
-    }
-    const nEpochs = durS / epochS;
-    let count = Math.round(nEpochs);
-    if (Math.abs(count - nEpochs) > TOL_S / epochS) {
-      const endsAtRecordingEnd = recDur !== null && Math.abs(iv.onsetS + durS - recDur) <= TOL_S;
-      if (!endsAtRecordingEnd) {
+    const onGrid = Math.abs(k0 * epochS - iv.onsetS) <= TOL_S;
+    const whole = Math.abs(Math.round(durS / epochS) - durS / epochS) <= TOL_S / epochS;
+    const endsAtRecordingEnd = recDur !== null && Math.abs(iv.onsetS + durS - recDur) <= TOL_S;
+    let from = k0;
+    let count = Math.round(durS / epochS);
+    if (labelledUnscored && Number.isFinite(durS) && durS >= 0 && !(onGrid && durS > 0 && (whole || endsAtRecordingEnd))) {
+      // an unscored label off the grid, of a part-epoch length or of 0 s: the whole epochs inside it (ours; unscored is what an epoch without scoring is anyway)
+      from = Math.ceil((iv.onsetS - TOL_S) / epochS);
+      count = Math.max(0, Math.floor((iv.onsetS + durS + TOL_S) / epochS) - from);
+      notWhole.add(what, what, [firstEpoch]);
+    } else {
+      if (!onGrid) {
         problems.push({
-          kind: 'duration-off-grid',
-          epochs: [k0],
-          message: `${what}: duration ${durS} s from ${say([k0])} is not a whole number of ${epochS}-s epochs`,
+          kind: 'off-grid',
+          epochs: [firstEpoch],
+          message: `${what}: onset ${iv.onsetS} s is not on the ${epochS}-s epoch grid (inside ${say([firstEpoch])})`,
         });
         continue;
       }
-      count = Math.ceil(nEpochs);
+      if (!Number.isFinite(durS) || durS <= 0) {
+        problems.push({ kind: 'duration', epochs: [k0], message: `${what}: duration ${durS} s at ${say([k0])} is not a positive number of seconds` });
+        continue;
+      }
+      if (!whole) {
+        if (!endsAtRecordingEnd) {
+          problems.push({
+            kind: 'duration-off-grid',
+            epochs: [k0],
+            message: `${what}: duration ${durS} s from ${say([k0])} is not a whole number of ${epochS}-s epochs`,
+          });
+          continue;
+        }
+        count = Math.ceil(durS / epochS);
+      }
     }
 
-    for (let k = k0; k < k0 + count; k++) {
+    for (let k = from; k < from + count; k++) {
       if (k < 0) {
         (stage === 'unscored' ? unscoredBefore : scoredBefore).add(what, what, [k]);
         continue;
@@ -247,6 +261,15 @@ export function hypnogramFromIntervals(intervals: readonly StageInterval[], ctx:
       const o = outside(b, true, before);
       warnings.push({ kind: 'trimmed-unscored', epochs: o.epochs, message: o.trimmed });
     }
+  }
+  if (notWhole.map.size) {
+    const epochs = unique([...notWhole.map.values()].flatMap((b) => b.epochs));
+    const names = [...notWhole.map.keys()];
+    warnings.push({
+      kind: 'unscored-not-whole-epochs',
+      epochs,
+      message: `${names.length} unscored label(s) whose duration is not a whole number of ${epochS}-s epochs taken over the whole epochs inside them: ${names.slice(0, 8).join(', ')}${names.length > 8 ? ` and ${names.length - 8} more` : ''}`,
+    });
   }
   for (const [hash, b] of ignored.map) {
     const epochs = unique(b.epochs);

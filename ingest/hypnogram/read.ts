@@ -4,10 +4,10 @@
  * names an 'onset' column, else a per-epoch text file.
  */
 import path from 'node:path';
-import { detectDelimiter, parseDelimited } from '../cohort/delimited.ts';
+import { parseDelimited } from '../cohort/delimited.ts';
 import { readScoringEdf } from './edf.ts';
 import type { EdfScoringOptions } from './edf.ts';
-import { readScoringFile, scoringFromTableText } from './table.ts';
+import { readScoringFile, scoringDelimiter, scoringFromTableText } from './table.ts';
 import { scoringFromText } from './text.ts';
 import type { Hypnogram } from './types.ts';
 
@@ -20,7 +20,7 @@ export async function readScoring(file: string, options: EdfScoringOptions = {})
   const firstLine = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '';
   let header: string[] = [];
   try {
-    header = parseDelimited(firstLine, detectDelimiter(file, text)).header;
+    header = parseDelimited(firstLine, scoringDelimiter(file, text)).header;
   } catch {
     // an unclosed quote: not a table header
   }

@@ -6,7 +6,7 @@ import type { LabelMap } from '../../src/core/hypnogram/labels.ts';
  * epochs before the recording start). Kinds: 'scoring-starts-late', 'scoring-ends-early', 'gap'
  * (epochs without any scoring; the hypnogram is then `partial`), 'trimmed-unscored',
  * 'trimmed-scored' (epochs outside the recording dropped), 'truncated' (partial last epoch
- * dropped), 'ignored-events', 'unknown-label' (scored as unscored), 'scoring-shift-snapped',
+ * dropped), 'unscored-not-whole-epochs' (an unscored label taken over the whole epochs inside it), 'ignored-events', 'unknown-label' (scored as unscored), 'scoring-shift-snapped',
  * 'lights-*' (see lights.ts). Messages never quote annotation free text (names.ts).
  */
 export interface ScoringWarning {

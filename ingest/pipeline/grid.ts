@@ -108,6 +108,20 @@ export function frequencyGrid(fsHz: number, params: IngestParams, file: string):
     }
   }
 
+  const perSegment = params.segmentS * fsHz;
+  if (Math.abs(perSegment - Math.round(perSegment)) > 1e-6) {
+    // a rate that is not a whole number of Hz (199.8 Hz = 999 samples per 5-s record): say which segment would work
+    const works = Array.from({ length: 120 }, (_, k) => Math.ceil(2 * params.segmentS) / 2 + k / 2).find(
+      (sec) => Math.abs(sec * fsHz - Math.round(sec * fsHz)) <= 1e-6,
+    );
+    const hint = works === undefined ? '' : ` (--segment ${works}: ${Math.round(works * fsHz)} samples)`;
+    throw new PipelineError(
+      'spectra',
+      file,
+      'segment length',
+      `a ${params.segmentS}-s segment at ${fsHz} Hz is ${Number(perSegment.toFixed(6))} samples, not a whole number; every recording shares the 1/segment-Hz grid, so choose a segment length whose samples are whole at this rate${hint} or resample the file`,
+    );
+  }
   let welch: Welch;
   try {
     welch = sharedWelch(fsHz, params.segmentS, params.overlap, fullMaxHz);

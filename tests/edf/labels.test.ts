@@ -23,6 +23,13 @@ describe('parseChannelLabel', () => {
     ['Thorax', 'RESP', 'Thorax', null],
     ['SaO2', 'MISC', 'SaO2', null],
     ['  O2-M1  ', 'EEG', 'O2', 'M1'],
+    // a type word with a number or a bracket straight after it, as some cohort exports name channels (common practice)
+    ['EEG(sec)', 'EEG', 'EEG(sec)', null],
+    ['EEG2', 'EEG', 'EEG2', null],
+    ['ECG2', 'ECG', 'ECG2', null],
+    ['EKG1', 'ECG', 'EKG1', null],
+    ['EOG(L)', 'EOG', 'EOG(L)', null],
+    ['EMG(chin)', 'EMG', 'EMG(chin)', null],
   ])('%s → %s %s %s', (label, type, electrode, reference) => {
     expect(parseChannelLabel(label)).toEqual({ raw: label, type, electrode, reference });
   });
@@ -30,6 +37,9 @@ describe('parseChannelLabel', () => {
   it('the physical dimension decides for prefix-less labels: a non-voltage unit is MISC', () => {
     expect(parseChannelLabel('Cz', 'uV').type).toBe('EEG');
     expect(parseChannelLabel('Cz', 'µV').type).toBe('EEG');
+    // units in any case, as exports write them (toMicrovolts reads them so): still a voltage
+    for (const unit of ['uv', 'UV', 'µv', 'mv']) expect(parseChannelLabel('Cz', unit).type).toBe('EEG');
+    expect(parseChannelLabel('Cz', 'MV').type).toBe('MISC'); // megavolts: no EEG by name alone
     expect(parseChannelLabel('Cz', '%').type).toBe('MISC');
     expect(parseChannelLabel('Pulse', 'bpm').type).toBe('MISC');
     expect(parseChannelLabel('EEG Cz', 'degC').type).toBe('EEG'); // an explicit prefix wins

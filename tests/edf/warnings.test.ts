@@ -8,7 +8,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openEdf, type EdfFile } from '../../ingest/edf/reader.ts';
 import { toMicrovolts } from '../../src/core/montage/channel-selection.ts';
-import { concat, goodBdfPlusSpec, goodEdfPlusSpec, goodRecord, handEdf, int16le, makeTmpDir, type HandEdf } from './helpers.ts';
+import { concat, goodBdfPlusSpec, goodDigital24, goodEdfPlusSpec, goodRecord, handEdf, int16le, makeTmpDir, type HandEdf } from './helpers.ts';
 
 let tmp: ReturnType<typeof makeTmpDir>;
 beforeAll(() => {
@@ -48,6 +48,31 @@ describe('header warnings', () => {
     }
     // plain ASCII "uV" and "mV" need no warning
     expect((await opened(edit((h) => (h.signals[1].dim = 'mV')))).warnings).toEqual([]);
+  });
+
+  it('BDF+ with "µV" as the Latin-1 byte B5 and a record count of −1: both read, both said, the 24-bit samples exact', async () => {
+    const h = edit((b) => {
+      b.signals[0].dim = '\xb5V';
+      b.nRecords = '-1';
+    }, goodBdfPlusSpec(3));
+    const path = join(tmp.dir, 'latin1-minus-one.bdf');
+    writeFileSync(path, handEdf(h));
+    const f = await openEdf(path);
+    try {
+      expect(f.header.variant).toBe('BDF+C');
+      expect(f.header.nRecords).toBe(3);
+      expect(f.header.signals[0].physicalDimension).toBe('µV');
+      expect(f.warnings).toEqual([
+        { field: 'physical dimension', message: 'signal 1: "µ" written as the Latin-1 byte B5 (EDF asks for ASCII, e.g. "uV"); read as µ' },
+        { field: 'number of data records', message: 'number of data records is -1 (unknown); 3 records derived from the file size' },
+      ]);
+      // signal 0 has gain 1, offset 0 (helpers.ts): the physical values are the planted digital ones
+      const got: number[] = [];
+      for await (const b of f.readEpochs({ signals: [0], epochS: 0.5 })) if (b.data) got.push(...b.data[0]);
+      expect(got).toEqual([0, 1, 2].flatMap((r) => goodDigital24(r)[0]));
+    } finally {
+      await f.close();
+    }
   });
 
   it('other non-ASCII bytes in signal fields: one warning per field naming the signals; content withheld except the label (kept as Latin-1)', async () => {

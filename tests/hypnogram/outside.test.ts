@@ -125,3 +125,32 @@ describe('messages never quote annotation free text', () => {
     }
   });
 });
+
+describe('unscored labels whose duration is not whole epochs (exports end with a long "Sleep stage ?"; movement marked as an instant)', () => {
+  it('cover the whole epochs inside them, with one warning naming them; nothing scored is changed', () => {
+    // 300-s recording = epochs 0–9; '?' from 150 s for 45 s covers epoch 5 whole and half of 6, which N2 then scores
+    const h = score([ann(0, 150, 'Sleep stage W'), ann(150, 45, 'Sleep stage ?'), ann(180, 120, 'Sleep stage 2')], { recordingDurationS: 300 });
+    expect(h.stages).toEqual(['W', 'W', 'W', 'W', 'W', 'unscored', 'N2', 'N2', 'N2', 'N2']);
+    expect(h.warnings.map((w) => [w.kind, w.epochs])).toEqual([['unscored-not-whole-epochs', [5]]]);
+    expect(h.warnings[0].message).toBe(
+      "1 unscored label(s) whose duration is not a whole number of 30-s epochs taken over the whole epochs inside them: 'Sleep stage ?' (annotation at 150 s)",
+    );
+  });
+
+  it("a trailing 'Sleep stage ?' of any length past the end is trimmed, not refused", () => {
+    const h = score([ann(0, 120, 'Sleep stage 2'), ann(120, 15931, 'Sleep stage ?')], { recordingDurationS: 150 });
+    expect(h.stages).toEqual(['N2', 'N2', 'N2', 'N2', 'unscored']);
+    expect(h.warnings.map((w) => w.kind)).toEqual(['trimmed-unscored', 'unscored-not-whole-epochs']);
+  });
+
+  it("'Movement time' of 0 s marks no epoch: kept as a note, the epoch keeps its stage", () => {
+    const h = score([ann(0, 60, 'Sleep stage W'), ann(40, 0, 'Movement time'), ann(60, 30, 'Sleep stage 2')], { recordingDurationS: 90 });
+    expect(h.stages).toEqual(['W', 'W', 'N2']);
+    expect(h.warnings.map((w) => [w.kind, w.epochs])).toEqual([['unscored-not-whole-epochs', [1]]]);
+  });
+
+  it('a scored stage of a duration that is not whole epochs is still refused (it would shift what the epochs hold)', () => {
+    const e = scoringError(() => score([ann(0, 60, 'Sleep stage W'), ann(60, 75, 'Sleep stage 2')], { recordingDurationS: 300 }));
+    expect(e.message).toContain("'Sleep stage 2' (annotation at 60 s): duration 75 s from epoch 2 (60–90 s) is not a whole number of 30-s epochs");
+  });
+});

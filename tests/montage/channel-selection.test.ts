@@ -33,7 +33,13 @@ describe('selectChannels', () => {
 
   it('names two derivations of one electrode by their derivations, and refuses two channels that stay alike', () => {
     expect(selectChannels(header([['EEG C3-M2'], ['EEG C3-M1'], ['EEG C4']]), [], BY_TYPE).map((c) => c.name)).toEqual(['C3-M2', 'C3-M1', 'C4']);
-    expect(() => selectChannels(header([['EEG Pz-Oz'], ['Pz:Oz']]), [], BY_TYPE)).toThrow('two channels are both "Pz-Oz"; exclude one of them');
+    expect(() => selectChannels(header([['EEG Pz-Oz'], ['Pz:Oz']]), [], BY_TYPE)).toThrow(
+      'signals 1 ("EEG Pz-Oz") and 2 ("Pz:Oz") are both channel "Pz-Oz"; exclude one of them by its label',
+    );
+    // the very same label twice (an export that duplicated a channel): excluding by label would drop both, so say so
+    expect(() => selectChannels(header([['EEG C3-M2'], ['EEG F3-M2'], ['EEG C3-M2 ']]), [], BY_TYPE)).toThrow(
+      'signals 1 and 3 are both labelled "EEG C3-M2" and cannot be told apart; exclude that label to leave both out, or relabel one in the file',
+    );
   });
 
   it('takes bare labels the positions file names as EEG (a net numbered E1 … E256), unless a prefix or BIDS says otherwise', () => {

@@ -52,8 +52,15 @@ describe('classifyDerivation', () => {
     ['C4-M1+M2', 'C4', 'linked-mastoids', 'M1+M2'],
     ['EEG O1-A1A2', 'O1', 'linked-mastoids', 'A1+A2'],
     ['Cz-a2+a1', 'Cz', 'linked-mastoids', 'A1+A2'],
+    // the average of both written out, as some exports spell it (common practice): (A1+A2)/2, with spaces too
+    ['EEG C3-(A1+A2)/2', 'C3', 'linked-mastoids', 'A1+A2'],
+    ['C4-(M1 + M2)/2', 'C4', 'linked-mastoids', 'M1+M2'],
+    ['O2:(m2+m1)/2', 'O2', 'linked-mastoids', 'M1+M2'],
+    ['EEG C3-A1 + A2', 'C3', 'linked-mastoids', 'A1+A2'],
     // not guessed: abbreviations without a standard spelling, non-scalp electrodes
     ['EEG C3-LE', 'C3', 'other', 'LE'],
+    ['EEG C3-LM', 'C3', 'other', 'LM'], // "linked mastoids" abbreviated: not a spelling with both names
+    ['C3-(A1+A2)', 'C3', 'other', '(A1+A2)'], // a sum, not an average
     ['EEG C3-AVG', 'C3', 'other', 'AVG'],
     ['EEG M1-M2', 'M1', 'other', 'M2'],
   ])('%s → %s, %s against %s', (label, name, kind, referredTo) => {

@@ -11,9 +11,10 @@
  *    the channels it names the same way;
  *  - names: the electrode (C3, also for C3-M2 and C3-REF); both electrodes of a scalp-to-scalp
  *    EEG derivation (Pz-Oz); two channels with one name (C3-M2 and C3-M1) are both named by
- *    their derivation; two channels that still share a name are an error.
+ *    their derivation; two channels that still share a name are an error naming both signals
+ *    (the same label twice cannot be told apart: the message says so).
  */
-import { classifyDerivation, derivationName, parseChannelLabel, type Derivation } from './labels.ts';
+import { classifyDerivation, derivationName, microvoltsPer, parseChannelLabel, type Derivation } from './labels.ts';
 import type { MontageChannel } from './reference.ts';
 
 /** One signal of a recording's header, as selection needs it. */
@@ -67,14 +68,7 @@ export class ChannelSelectionError extends Error {
 }
 
 /** Multiplier from a physical dimension to µV, or null when it is not a voltage. Empty → µV (assumed). */
-export function toMicrovolts(dimension: string): number | null {
-  const d = dimension.trim();
-  if (d === '' || /^(µ|μ|u)V$/i.test(d)) return 1;
-  if (d === 'mV') return 1e3;
-  if (d === 'V') return 1e6;
-  if (d === 'nV') return 1e-3;
-  return null;
-}
+export const toMicrovolts = microvoltsPer;
 
 const named = (list: readonly string[], ...names: string[]) => {
   const wanted = new Set(names.map((n) => n.trim().toUpperCase()));
@@ -124,10 +118,20 @@ export function selectChannels(
   const count = new Map<string, number>();
   for (const c of out) count.set(c.name, (count.get(c.name) ?? 0) + 1);
   for (const c of out) if (count.get(c.name)! > 1 && c.montage.reference) c.name = `${c.montage.electrode}-${c.montage.reference}`;
-  const seen = new Set<string>();
+  const seen = new Map<string, SelectedChannel>();
   for (const c of out) {
-    if (seen.has(c.name)) throw new ChannelSelectionError('label', `two channels are both "${c.name}"; exclude one of them`);
-    seen.add(c.name);
+    const first = seen.get(c.name);
+    if (first) {
+      const [a, b] = [first, c].map((x) => signals.find((s) => s.index === x.index)!.label.trim());
+      const which = `signals ${first.index + 1} and ${c.index + 1}`;
+      throw new ChannelSelectionError(
+        'label',
+        a === b
+          ? `${which} are both labelled "${a}" and cannot be told apart; exclude that label to leave both out, or relabel one in the file`
+          : `signals ${first.index + 1} ("${a}") and ${c.index + 1} ("${b}") are both channel "${c.name}"; exclude one of them by its label`,
+      );
+    }
+    seen.set(c.name, c);
   }
   return out;
 }

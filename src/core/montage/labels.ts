@@ -56,14 +56,28 @@ const WORDS: [RegExp, ChannelType][] = [
   [/\b(resp|thorax|thor|abdomen|abdo|airflow|flow|snore)\b/i, 'RESP'],
 ];
 
-/** Voltage units (µV, uV, mV, V, nV): only these can carry EEG/EOG/EMG/ECG by name alone. */
+/**
+ * Multiplier from a physical dimension to µV, or null when it is not a voltage; empty → 1 (µV
+ * assumed). The micro prefix as µ (U+00B5), μ (U+03BC) or u; exports write units in either
+ * case (uv, UV, mv), so case is ignored except that "M" (mega) is no voltage of a body signal.
+ */
+export function microvoltsPer(dimension: string): number | null {
+  const d = dimension.trim();
+  if (d === '' || /^(µ|μ|u)V$/i.test(d)) return 1;
+  if (/^mV$/i.test(d) && d[0] === 'm') return 1e3;
+  if (/^V$/i.test(d)) return 1e6;
+  if (/^nV$/i.test(d)) return 1e-3;
+  return null;
+}
+
+/** Voltage units (µV, uV, mV, V, nV in any case but mega): only these can carry EEG/EOG/EMG/ECG by name alone. */
 function isVoltage(unit: string): boolean {
-  return /^(µ|μ|u|m|n)?V$/.test(unit.trim());
+  return unit.trim() !== '' && microvoltsPer(unit) !== null;
 }
 
 /**
  * Splits an EDF channel label. Type, in this order: a leading type word (EEG, EOG, EMG, ECG/EKG,
- * RESP, MISC); a sensor word (ECG, LOC, chin, thorax…); a 10-20/10-10 electrode name → EEG;
+ * RESP, MISC), also with a number or bracket right after it as the whole label (EEG2, EEG(sec)); a sensor word (ECG, LOC, chin, thorax…); a 10-20/10-10 electrode name → EEG;
  * otherwise MISC. Without a prefix, a physical dimension that is given and is not a voltage
  * (%, bpm, degC…) makes the channel MISC whatever its name.
  */
@@ -77,6 +91,10 @@ export function parseChannelLabel(label: string, physicalDimension?: string): Ch
     rest = m[2].trim();
   } else if (PREFIXES[rest.toUpperCase()]) {
     type = PREFIXES[rest.toUpperCase()];
+  } else {
+    // a type word with a number or a bracket right after it names the channel by its type ("EEG2", "EEG(sec)", "ECG2")
+    const numbered = /^(EEG|EOG|EMG|ECG|EKG)(\d+|\([^()]*\))$/i.exec(rest);
+    if (numbered) type = PREFIXES[numbered[1].toUpperCase()];
   }
   // Derivation: "C3-M2", "C4:A1"; the first separator splits electrode from reference.
   const sep = /[-:]/.exec(rest);
@@ -124,8 +142,9 @@ export function hemisphere(electrode: string): 'left' | 'right' | 'midline' | nu
  *    backups F3-M2, C3-M2, O1-M2 (AASM Manual for the Scoring of Sleep, v2.x).
  *  - ipsilateral-mastoid (C3-M1) and midline-mastoid (Pz-M1): one mastoid, no standard scheme.
  *  - linked-mastoids: a scalp electrode against both mastoids or both ear lobes, spelled with
- *    both names: M1M2, M1+M2, A1A2, A1+A2 (either order). Abbreviations without a standard
- *    spelling (LE, "linked") are not guessed: they are 'other'.
+ *    both names: M1M2, M1+M2, A1A2, A1+A2 (either order), or their average written out,
+ *    (A1+A2)/2 (white space ignored). Abbreviations without a standard spelling (LE, LM,
+ *    "linked") are not guessed: they are 'other'.
  *  - bipolar: both electrodes 10-10 scalp sites (Fpz-Cz, Pz-Oz, C3-Cz).
  *  - other: anything else (a mastoid or eye electrode against something, AVG, LE…).
  */
@@ -138,7 +157,8 @@ export interface Derivation {
 }
 
 const COMMON_WORDS = /^(REF|REFERENCE)$/i;
-const LINKED = /^(M1\+?M2|M2\+?M1|A1\+?A2|A2\+?A1)$/i;
+// both mastoids or ear lobes: M1M2, M1+M2, and their average written out, (M1+M2)/2 (white space ignored)
+const LINKED = /^(M1\+?M2|M2\+?M1|A1\+?A2|A2\+?A1|\((M1\+M2|M2\+M1|A1\+A2|A2\+A1)\)\/2)$/i;
 
 /**
  * The reference a label names, in one spelling for comparisons: null for the common reference
@@ -149,7 +169,8 @@ export function referenceKey(reference: string | null): string | null {
   if (reference === null) return null;
   const r = reference.trim();
   if (r === '' || COMMON_WORDS.test(r)) return null;
-  if (LINKED.test(r)) return r.toUpperCase().startsWith('A') ? 'A1+A2' : 'M1+M2';
+  const packed = r.replace(/\s+/g, '');
+  if (LINKED.test(packed)) return /^\(?A/i.test(packed) ? 'A1+A2' : 'M1+M2';
   return canonicalElectrode(r) ?? r.toUpperCase();
 }
 
