@@ -4,6 +4,11 @@
  * its length, every parameter, the real database file name, and only significant findings in the
  * results sentence.
  */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { shortMethods, wordCount, type ReportableResult } from '../../src/core/report/index.ts';
 import type { CompareResult } from '../../src/core/contrast/run.ts';
@@ -11,6 +16,9 @@ import { runPython } from '../helpers/python.ts';
 import { FACTS, fixedResults, LEDGER } from './inputs.ts';
 
 const { cmp, check } = fixedResults();
+const repo = fileURLToPath(new URL('../..', import.meta.url));
+const report = (...args: string[]) =>
+  spawnSync(process.execPath, [path.join(repo, 'bin/run-ts.mjs'), path.join(repo, 'src/cli/main.ts'), 'report', ...args], { encoding: 'utf8' });
 
 describe('short methods', () => {
   it('is 200–300 words for the compare and the band check (the length asked of a paste-ready paragraph)', () => {
@@ -70,5 +78,27 @@ describe('short methods', () => {
       else expect(results).not.toContain(`${h.test} (p = `);
     }
     expect(check.family.some((h) => !h.passed)).toBe(true);
+  });
+});
+
+describe('bandwise report --short', () => {
+  it('prints the short paragraph of a saved result on standard output, and asks for --out or --short', () => {
+    const dir = mkdtempSync(path.join(tmpdir(), 'bw-short-'));
+    try {
+      const saved = { ...cmp, database: { file: 'study.duckdb', runId: 'r1', toolVersion: '0.1.0', ingestParameters: FACTS.ingestParameters } };
+      const file = path.join(dir, 'result.json');
+      writeFileSync(file, JSON.stringify(saved));
+      const r = report(file, '--short', '--no-ledger');
+      expect(r.stderr).toBe('');
+      expect(r.status).toBe(0);
+      // the JSON round trip is the file the command reads; the paragraph is the one the dashboard shows for it
+      expect(r.stdout).toBe(shortMethods(JSON.parse(JSON.stringify(saved)) as ReportableResult, null, null));
+      expect(r.stdout).toContain('database study.duckdb');
+      const none = report(file, '--no-ledger');
+      expect(none.status).toBe(2);
+      expect(none.stderr.trim()).toBe('bandwise report: give --out <file> for the methods text, or --short to print the short paragraph');
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
