@@ -27,12 +27,17 @@ export async function renderPng(svg: string, o: Pick<FigureOptions, 'widthMm' | 
     font: { loadSystemFonts: true, fontFiles, defaultFontFamily: 'DejaVu Sans' },
   });
   const png = withPhysicalDensity(resvg.render().asPng(), o.dpi);
-  const warning = fontFiles.length === 0 ? 'DejaVu Sans is not installed, so the PNG uses another system font (Debian: apt-get install fonts-dejavu-core)' : null;
+  const warning =
+    fontFiles.length === 0 ? 'DejaVu Sans is not installed, so the PNG uses another system font (Debian: apt-get install fonts-dejavu-core)' : null;
   return { png, warning };
 }
 
 /** Reads the result, draws it, writes `out`; refuses a result that is not a contrast's (a band check has its own figures in the dashboard). */
-export async function writeFigure(resultFile: string, o: FigureOptions, out: string): Promise<{ warning: string | null; pixels: { width: number; height: number } | null }> {
+export async function writeFigure(
+  resultFile: string,
+  o: FigureOptions,
+  out: string,
+): Promise<{ warning: string | null; pixels: { width: number; height: number } | null }> {
   const result = readResult(resultFile);
   if (result.kind !== 'compare') throw new ReportFileError(`${resultFile}: a figure is drawn from a compare result, this is a ${result.kind} result`);
   refuseClashes([{ what: 'the result', file: resultFile }], [{ what: '--out', file: out }]);

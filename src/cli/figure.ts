@@ -31,7 +31,7 @@ export function register(program: Command): void {
     .argument('<result>', 'result JSON written by `bandwise compare`')
     .requiredOption('--out <file>', 'figure file to write (.svg or .png)')
     .option('--kind <kind>', `${FIGURE_KINDS.join(' or ')} (default: ${d.kind})`)
-    .option('--band <lo-hi>', "scalp map: the band averaged, Hz, e.g. 12-15 (default: the range of the cluster with the smallest p, else every frequency)")
+    .option('--band <lo-hi>', 'scalp map: the band averaged, Hz, e.g. 12-15 (default: the range of the cluster with the smallest p, else every frequency)')
     .option('--width-mm <mm>', `printed width, mm, ${L.minMm}–${L.maxMm} (default: ${d.widthMm})`)
     .option('--height-mm <mm>', `printed height, mm, ${L.minMm}–${L.maxMm} (default: ${d.heightMm})`)
     .option('--dpi <dpi>', `PNG resolution, dots per inch, ${L.minDpi}–${L.maxDpi} (default: ${d.dpi}); the PNG is round(width-mm / 25.4 × dpi) pixels wide`)

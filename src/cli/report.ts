@@ -29,12 +29,15 @@ export function register(program: Command): void {
       const { ReportFileError, shortReport, writeReport } = await import('../analysis/write-report.ts');
       const { reportUserError } = await import('./user-errors.ts');
       try {
-        if (flags.out === undefined && !flags.short) throw new ReportFileError('bandwise report: give --out <file> for the methods text, or --short to print the short paragraph');
+        if (flags.out === undefined && !flags.short)
+          throw new ReportFileError('bandwise report: give --out <file> for the methods text, or --short to print the short paragraph');
         if (flags.short) process.stdout.write(await shortReport(resultFile, flags));
         if (flags.out === undefined) return;
         const r = await writeReport(resultFile, { ...flags, out: flags.out });
         // with --short, standard output holds the paragraph alone
-        (flags.short ? console.error : console.log)(`wrote ${flags.out} and ${r.jsonFile}${r.database ? '' : ' (no database: spectral facts from the result only)'}`);
+        (flags.short ? console.error : console.log)(
+          `wrote ${flags.out} and ${r.jsonFile}${r.database ? '' : ' (no database: spectral facts from the result only)'}`,
+        );
         if (r.ledgerWarning) console.error(`bandwise report: ${r.ledgerWarning}`);
       } catch (e) {
         if (e instanceof ReportFileError) {

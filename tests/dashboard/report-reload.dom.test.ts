@@ -10,7 +10,10 @@ import ShortMethods from '../../src/dashboard/views/report/ShortMethods.svelte';
 import { FACTS, fixedResults, LEDGER } from '../report/inputs.ts';
 
 const { cmp, check } = fixedResults();
-const saved: ReportableResult = { ...cmp, database: { file: 'study.duckdb', runId: FACTS.runId, toolVersion: '0.1.0', ingestParameters: FACTS.ingestParameters } };
+const saved: ReportableResult = {
+  ...cmp,
+  database: { file: 'study.duckdb', runId: FACTS.runId, toolVersion: '0.1.0', ingestParameters: FACTS.ingestParameters },
+};
 
 describe('result and methods text across a reload', () => {
   beforeEach(() => sessionStorage.clear());

@@ -42,7 +42,7 @@ function pngFacts(png: Buffer): { width: number; height: number; perMetre: numbe
   expect(png.subarray(12, 16).toString('latin1')).toBe('IHDR');
   let perMetre: number | null = null;
   let unit: number | null = null;
-  for (let at = 8; at < png.length; ) {
+  for (let at = 8; at < png.length;) {
     const len = png.readUInt32BE(at);
     if (png.subarray(at + 4, at + 8).toString('latin1') === 'pHYs') {
       perMetre = png.readUInt32BE(at + 8);

@@ -39,7 +39,16 @@ function cohort(nPerGroup: number, seed: number): ContrastData {
 }
 
 export function figureResult(): CompareResult {
-  const c = parseContrast({ design: 'groups', groupColumn: 'group', groups: ['control', 'patient'], stage: 'N2', fminHz: 1, fmaxHz: 30, permutations: 200, seed: 5 });
+  const c = parseContrast({
+    design: 'groups',
+    groupColumn: 'group',
+    groups: ['control', 'patient'],
+    stage: 'N2',
+    fminHz: 1,
+    fmaxHz: 30,
+    permutations: 200,
+    seed: 5,
+  });
   return compare(c, cohort(14, 11));
 }
 

@@ -32,8 +32,12 @@ describe('short methods', () => {
   });
 
   it('states every parameter of data, spectra and statistics, with the database file name', () => {
-    const t = shortMethods({ ...cmp, database: { file: 'sleep-study-2026.duckdb', runId: 'r1', toolVersion: '0.1.0', ingestParameters: FACTS.ingestParameters } }, null, LEDGER);
-    const p = (FACTS.ingestParameters as { segmentS: number; overlap: number; epochS: number; rejection: { maxPeakToPeakUv: number } });
+    const t = shortMethods(
+      { ...cmp, database: { file: 'sleep-study-2026.duckdb', runId: 'r1', toolVersion: '0.1.0', ingestParameters: FACTS.ingestParameters } },
+      null,
+      LEDGER,
+    );
+    const p = FACTS.ingestParameters as { segmentS: number; overlap: number; epochS: number; rejection: { maxPeakToPeakUv: number } };
     expect(t).toContain('database sleep-study-2026.duckdb');
     expect(t).toContain(`${p.epochS}-s epochs`);
     expect(t).toContain(`${p.segmentS}-s Hann windows, ${p.overlap * 100} % overlap`);

@@ -29,8 +29,7 @@ function correctionText(r: CompareResult): string {
   const s = r.statistics;
   const perm = s.exact ? `all ${s.permutations} relabellings (exact)` : `${s.permutations} permutations (seed ${s.seed})`;
   if (c.correction === 'none') return 'No correction for multiple comparisons (uncorrected p from the t distribution).';
-  if (c.correction === 'tfce' && s.tfce)
-    return `Correction: threshold-free cluster enhancement (Smith & Nichols 2009; E ${s.tfce.E}, H ${s.tfce.H}), ${perm}.`;
+  if (c.correction === 'tfce' && s.tfce) return `Correction: threshold-free cluster enhancement (Smith & Nichols 2009; E ${s.tfce.E}, H ${s.tfce.H}), ${perm}.`;
   const stat = c.correction === 'cluster-size' ? 'size' : 'mass';
   return (
     `Correction: cluster ${stat} (Maris & Oostenveld 2007), cluster-forming threshold |t| > ${g3(s.threshold.t)} ` +

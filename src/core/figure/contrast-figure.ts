@@ -57,7 +57,9 @@ function colourBar(box: Box, limit: number, label: string): string {
   const parts: string[] = [];
   for (let i = 0; i < steps; i++) {
     const v = -limit + ((i + 0.5) / steps) * 2 * limit;
-    parts.push(`<rect x="${mm(box.x + (i * box.w) / steps)}" y="${mm(box.y)}" width="${mm(box.w / steps + 0.05)}" height="${barH}" fill="${divergingColour(v, limit)}"/>`);
+    parts.push(
+      `<rect x="${mm(box.x + (i * box.w) / steps)}" y="${mm(box.y)}" width="${mm(box.w / steps + 0.05)}" height="${barH}" fill="${divergingColour(v, limit)}"/>`,
+    );
   }
   parts.push(`<rect x="${mm(box.x)}" y="${mm(box.y)}" width="${mm(box.w)}" height="${barH}" fill="none" stroke="#333" stroke-width="0.15"/>`);
   for (const t of niceTicks(-limit, limit, 4)) {
@@ -66,7 +68,9 @@ function colourBar(box: Box, limit: number, label: string): string {
     parts.push(textElement(String(t).replace('-', '−'), x, box.y + barH + 0.8 + PT.tick * MM_PER_PT, PT.tick, { anchor: 'middle' }));
   }
   const labelLines = wrapText(label, PT.label, box.w);
-  labelLines.forEach((l, i) => parts.push(textElement(l, box.x + box.w / 2, box.y + barH + 1 + lineMm(PT.tick) + (i + 1) * lineMm(PT.label), PT.label, { anchor: 'middle' })));
+  labelLines.forEach((l, i) =>
+    parts.push(textElement(l, box.x + box.w / 2, box.y + barH + 1 + lineMm(PT.tick) + (i + 1) * lineMm(PT.label), PT.label, { anchor: 'middle' })),
+  );
   return parts.join('');
 }
 
@@ -105,7 +109,9 @@ function statisticImage(r: CompareResult, box: Box, limit: number): string {
     for (let f = 0; f < F; f++) {
       const x1 = X(edges[f]);
       const x2 = X(edges[f + 1]);
-      parts.push(`<rect x="${mm(x1)}" y="${mm(plot.y + ch * rowH)}" width="${mm(x2 - x1 + 0.02)}" height="${mm(rowH + 0.02)}" fill="${divergingColour(s.stat[ch * F + f], limit)}"/>`);
+      parts.push(
+        `<rect x="${mm(x1)}" y="${mm(plot.y + ch * rowH)}" width="${mm(x2 - x1 + 0.02)}" height="${mm(rowH + 0.02)}" fill="${divergingColour(s.stat[ch * F + f], limit)}"/>`,
+      );
     }
   parts.push('</g>');
   // outlines: the edges of a cluster's cells that border a cell outside it
@@ -157,23 +163,33 @@ function scalpMap(r: CompareResult, box: Box, limit: number, band: [number, numb
   const ringed = new Set(r.clusters.filter((k) => k.p < FIGURE_ALPHA && k.fminHz <= band[1] && k.fmaxHz >= band[0]).flatMap((k) => k.channels));
   const N = 64;
   const cell = (2 * R) / N;
-  const parts: string[] = [`<clipPath id="head"><circle cx="${mm(cx)}" cy="${mm(cy)}" r="${mm(R)}"/></clipPath>`, '<g clip-path="url(#head)" shape-rendering="crispEdges">'];
+  const parts: string[] = [
+    `<clipPath id="head"><circle cx="${mm(cx)}" cy="${mm(cy)}" r="${mm(R)}"/></clipPath>`,
+    '<g clip-path="url(#head)" shape-rendering="crispEdges">',
+  ];
   for (let i = 0; i < N; i++)
     for (let j = 0; j < N; j++) {
       const ux = -1 + (i + 0.5) * (2 / N);
       const uy = 1 - (j + 0.5) * (2 / N);
       if (Math.hypot(ux, uy) > 1 + 2 / N) continue;
-      parts.push(`<rect x="${mm(cx - R + i * cell)}" y="${mm(cy - R + j * cell)}" width="${mm(cell + 0.02)}" height="${mm(cell + 0.02)}" fill="${divergingColour(idw(values, ux, uy), limit)}"/>`);
+      parts.push(
+        `<rect x="${mm(cx - R + i * cell)}" y="${mm(cy - R + j * cell)}" width="${mm(cell + 0.02)}" height="${mm(cell + 0.02)}" fill="${divergingColour(idw(values, ux, uy), limit)}"/>`,
+      );
     }
   parts.push('</g>');
   const nose = `M${mm(cx - 0.12 * R)} ${mm(cy - 0.99 * R)}L${mm(cx)} ${mm(cy - 1.1 * R)}L${mm(cx + 0.12 * R)} ${mm(cy - 0.99 * R)}`;
   parts.push(`<circle cx="${mm(cx)}" cy="${mm(cy)}" r="${mm(R)}" fill="none" stroke="#111" stroke-width="0.3"/>`);
   parts.push(`<path d="${nose}" fill="none" stroke="#111" stroke-width="0.3"/>`);
-  for (const side of [-1, 1]) parts.push(`<ellipse cx="${mm(cx + side * 1.04 * R)}" cy="${mm(cy)}" rx="${mm(0.04 * R)}" ry="${mm(0.14 * R)}" fill="none" stroke="#111" stroke-width="0.3"/>`);
+  for (const side of [-1, 1])
+    parts.push(
+      `<ellipse cx="${mm(cx + side * 1.04 * R)}" cy="${mm(cy)}" rx="${mm(0.04 * R)}" ry="${mm(0.14 * R)}" fill="none" stroke="#111" stroke-width="0.3"/>`,
+    );
   for (const e of values) {
     const x = cx + e.x * R;
     const y = cy - e.y * R;
-    parts.push(`<circle cx="${mm(x)}" cy="${mm(y)}" r="${ringed.has(e.channel) ? 0.9 : 0.45}" fill="${ringed.has(e.channel) ? 'white' : '#111'}" stroke="#111" stroke-width="0.3"/>`);
+    parts.push(
+      `<circle cx="${mm(x)}" cy="${mm(y)}" r="${ringed.has(e.channel) ? 0.9 : 0.45}" fill="${ringed.has(e.channel) ? 'white' : '#111'}" stroke="#111" stroke-width="0.3"/>`,
+    );
     parts.push(textElement(e.channel, x, y - 1.2, PT.tick, { anchor: 'middle' }));
   }
   return parts.join('');
@@ -184,7 +200,8 @@ function bandValues(r: CompareResult, band: [number, number]): { channel: string
   const s = r.statistics;
   const F = s.freqsHz.length;
   const bins = s.freqsHz.map((f, i) => ({ f, i })).filter(({ f }) => f >= band[0] && f <= band[1]);
-  if (bins.length === 0) throw new FigureLayoutError(`no frequency of the result lies in ${band[0]}–${band[1]} Hz (the result covers ${s.freqsHz[0]}–${s.freqsHz[F - 1]} Hz)`);
+  if (bins.length === 0)
+    throw new FigureLayoutError(`no frequency of the result lies in ${band[0]}–${band[1]} Hz (the result covers ${s.freqsHz[0]}–${s.freqsHz[F - 1]} Hz)`);
   const out: { channel: string; x: number; y: number; v: number }[] = [];
   s.channels.forEach((channel, ch) => {
     const p = r.channelLayout?.positions?.[ch] ?? channelPosition(channel);
@@ -199,7 +216,8 @@ function bandValues(r: CompareResult, band: [number, number]): { channel: string
 
 /** The figure as standalone SVG text (UTF-8 XML), width and height in mm. */
 export function contrastFigureSvg(r: CompareResult, o: FigureOptions): string {
-  if (r.kind !== 'compare' || !Array.isArray(r.statistics?.stat)) throw new FigureLayoutError('a figure needs a compare result with its statistics (the result JSON of a contrast)');
+  if (r.kind !== 'compare' || !Array.isArray(r.statistics?.stat))
+    throw new FigureLayoutError('a figure needs a compare result with its statistics (the result JSON of a contrast)');
   const W = o.widthMm;
   const H = o.heightMm;
   const inner = W - 2 * MARGIN_MM;
@@ -212,7 +230,10 @@ export function contrastFigureSvg(r: CompareResult, o: FigureOptions): string {
   const captionH = caption.length * lineMm(PT.caption) + 1;
   const barH = colourBarHeight(barLabel, barW);
   const body: Box = { x: MARGIN_MM, y: topH, w: inner, h: H - topH - barH - captionH - MARGIN_MM - 2 };
-  if (body.h < 15) throw new FigureLayoutError(`a ${W} × ${H} mm figure leaves ${mm(Math.max(0, body.h))} mm for the plot after title, colour bar and caption; make it taller`);
+  if (body.h < 15)
+    throw new FigureLayoutError(
+      `a ${W} × ${H} mm figure leaves ${mm(Math.max(0, body.h))} mm for the plot after title, colour bar and caption; make it taller`,
+    );
   const values = o.kind === 'scalp-map' ? bandValues(r, band) : null;
   const limit = limitOf(values ? values.map((e) => e.v) : r.statistics.stat);
   const plot = values ? scalpMap(r, body, limit, band, values) : statisticImage(r, body, limit);

@@ -40,7 +40,7 @@ export function withPhysicalDensity(png: Uint8Array, dpi: number): Uint8Array {
   chunk[16] = 1; // unit: metre
   c.setUint32(17, crc32(chunk.subarray(4, 17)));
   const rest: Uint8Array[] = [];
-  for (let at = ihdrEnd; at < png.length; ) {
+  for (let at = ihdrEnd; at < png.length;) {
     const len = view.getUint32(at);
     const type = String.fromCharCode(...png.subarray(at + 4, at + 8));
     if (type !== 'pHYs') rest.push(png.subarray(at, at + 12 + len));

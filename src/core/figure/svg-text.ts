@@ -39,7 +39,13 @@ export function wrapText(s: string, pt: number, widthMm: number): string[] {
 const num = (x: number) => Number(x.toFixed(3)).toString();
 
 /** One <text> element; coordinates in mm, size in pt; `anchor` start, middle or end; `rotate` degrees about (x, y). */
-export function textElement(s: string, x: number, y: number, pt: number, opts: { anchor?: 'start' | 'middle' | 'end'; bold?: boolean; rotate?: number } = {}): string {
+export function textElement(
+  s: string,
+  x: number,
+  y: number,
+  pt: number,
+  opts: { anchor?: 'start' | 'middle' | 'end'; bold?: boolean; rotate?: number } = {},
+): string {
   const anchor = opts.anchor && opts.anchor !== 'start' ? ` text-anchor="${opts.anchor}"` : '';
   const bold = opts.bold ? ' font-weight="bold"' : '';
   const rotate = opts.rotate ? ` transform="rotate(${opts.rotate} ${num(x)} ${num(y)})"` : '';

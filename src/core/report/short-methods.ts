@@ -50,7 +50,8 @@ function spectraSentence(r: ReportableResult, facts: DatabaseFacts | null): stri
   const c = r.contrast;
   const raw = facts?.ingestParameters ?? r.database?.ingestParameters;
   const stages = c.design === 'paired' && c.stages ? c.stages.join(' and ') : c.stage;
-  if (raw === undefined || raw === null) return `Spectra of stage ${stages} (reference ${c.reference}, ${c.averaging} over epochs) were used; the ingest parameters were not available.`;
+  if (raw === undefined || raw === null)
+    return `Spectra of stage ${stages} (reference ${c.reference}, ${c.averaging} over epochs) were used; the ingest parameters were not available.`;
   const f = ingestParameterFacts(raw);
   const rej = f.rejection;
   const est =
@@ -66,7 +67,9 @@ function spectraSentence(r: ReportableResult, facts: DatabaseFacts | null): stri
     `frequency resolution ${g3(1 / f.segmentS)} Hz, and averaged (${c.averaging}) over the clean epochs of stage ${stages}, reference ${c.reference}. ` +
     `Epochs were rejected${share} for peak-to-peak amplitude above ${rej.maxPeakToPeakUv} µV, flat signal (SD below ${rej.flatSdUv} µV), or outlying broadband (${rej.broadbandHz.join('–')} Hz) ` +
     `or muscle-range (${rej.muscleHz.join('–')} Hz) power (modified z-score above ${rej.outlierZ}).` +
-    (f.fit && (r.kind === 'band-check' || FIT_MEASURES.includes(c.measure)) ? ` Aperiodic (1/f) components were fitted over ${f.fit.fitRangeHz.join('–')} Hz (Donoghue et al. 2020).` : '')
+    (f.fit && (r.kind === 'band-check' || FIT_MEASURES.includes(c.measure))
+      ? ` Aperiodic (1/f) components were fitted over ${f.fit.fitRangeHz.join('–')} Hz (Donoghue et al. 2020).`
+      : '')
   );
 }
 
