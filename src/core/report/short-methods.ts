@@ -84,10 +84,13 @@ function compareStatistics(r: CompareResult): string {
       : c.correction === 'none'
         ? 'no correction for multiple comparisons'
         : `${CORRECTION_WORDS[c.correction]} (Maris & Oostenveld 2007), cluster-forming threshold |t| > ${g3(s.threshold.t)} (two-tailed p = ${c.clusterP}, df = ${g3(s.threshold.df)}), over ${perm}`;
-  // the label's first part names the statistic ("Welch t" of "Welch t, patient − control"); the title states the direction once
-  const statistic = c.design === 'covariate' ? statisticLabel(c, s.statistic) : statisticLabel(c, s.statistic).split(', ')[0];
+  // a two-condition design: the title states the direction once, the label's first part names the statistic ("Welch t" of "Welch t, patient − control")
+  const tested =
+    c.design === 'covariate'
+      ? `was tested at every point for a ${statisticLabel(c, s.statistic)} (stage ${c.stage})`
+      : `was compared (${designTitle(c)}) with the ${statisticLabel(c, s.statistic).split(', ')[0]} at every point`;
   return (
-    `The measure ${r.measure} over ${c.fminHz}–${c.fmaxHz} Hz in ${chans} was compared (${designTitle(c)}) with the ${statistic} at every point, ` +
+    `The measure ${r.measure} over ${c.fminHz}–${c.fmaxHz} Hz in ${chans} ${tested}, ` +
     `corrected by ${corr}; effect sizes are ${s.effect.kind === 'hedges-g' ? "Hedges' g" : 'correlations'} with ${g3(s.effect.level * 100)} % intervals.`
   );
 }
