@@ -1,6 +1,5 @@
 /** Paper figures of a contrast result as SVG text, and the PNG resolution chunk (pure; rasterised by the dashboard's canvas or by src/analysis/figure-file.ts). */
 export { contrastFigureSvg, FigureLayoutError, mapBand } from './contrast-figure.ts';
-export { figureCaption, figureTitle, colourBarLabel, FIGURE_ALPHA } from './caption.ts';
 export {
   figureOptions,
   parseBandHz,
@@ -8,7 +7,6 @@ export {
   FigureOptionError,
   FIGURE_DEFAULTS,
   FIGURE_KINDS,
-  FIGURE_FORMATS,
   FIGURE_LIMITS,
   type FigureOptions,
   type FigureKind,
