@@ -1,12 +1,13 @@
 /**
- * `bandwise figure`: a saved compare result drawn as a paper figure (src/core/figure builds the
+ * `bandwise figure`: a saved compare or band-check result drawn as a paper figure (src/core/figure builds the
  * SVG, the same text the dashboard exports) and written as SVG, or as PNG rasterised by resvg at
  * the chosen dpi with the resolution recorded in the file. Text in the PNG is set in DejaVu Sans
  * (Debian's fonts-dejavu-core) when it is installed, else in the system's fonts.
  */
 import { existsSync } from 'node:fs';
 import type { CompareResult } from '../core/contrast/run.ts';
-import { contrastFigureSvg, pixelSize, withPhysicalDensity, type FigureOptions } from '../core/figure/index.ts';
+import { bandCheckFigureSvg, contrastFigureSvg, pixelSize, withPhysicalDensity, type FigureOptions } from '../core/figure/index.ts';
+import type { BandCheckResult } from '../core/verdict/band-check.ts';
 import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
 import { ReportFileError, readResult } from './write-report.ts';
 
@@ -32,16 +33,24 @@ export async function renderPng(svg: string, o: Pick<FigureOptions, 'widthMm' | 
   return { png, warning };
 }
 
-/** Reads the result, draws it, writes `out`; refuses a result that is not a contrast's (a band check has its own figures in the dashboard). */
+/**
+ * Reads the result, draws it (a compare result as `o.kind` says, a band check as its spectra and
+ * effect panels), writes `out`. `asked` names the options given that apply to a compare figure
+ * only (--kind, --band): refused for a band check rather than ignored.
+ */
 export async function writeFigure(
   resultFile: string,
   o: FigureOptions,
   out: string,
+  asked: string[] = [],
 ): Promise<{ warning: string | null; pixels: { width: number; height: number } | null }> {
   const result = readResult(resultFile);
-  if (result.kind !== 'compare') throw new ReportFileError(`${resultFile}: a figure is drawn from a compare result, this is a ${result.kind} result`);
+  if (result.kind === 'band-check' && asked.length > 0)
+    throw new ReportFileError(
+      `${resultFile}: ${asked.join(' and ')} ${asked.length === 1 ? 'applies' : 'apply'} to a compare result only; a band check has one figure (its spectra and effect panels)`,
+    );
   refuseClashes([{ what: 'the result', file: resultFile }], [{ what: '--out', file: out }]);
-  const svg = contrastFigureSvg(result as CompareResult, o);
+  const svg = result.kind === 'compare' ? contrastFigureSvg(result as CompareResult, o) : bandCheckFigureSvg(result as BandCheckResult, o);
   if (o.format === 'svg') {
     writeFileReplacing(out, svg);
     return { warning: null, pixels: null };

@@ -25,13 +25,17 @@ export function register(program: Command): void {
     .description(
       'Draws a compare result (the JSON of `bandwise compare --out`) as a paper figure: a title, the statistic over channels × ' +
         'frequencies with significant clusters outlined (or the scalp map of one band), a colour bar whose label states the design ' +
-        'and direction, and a caption with measure, stage, design, correction, threshold, permutations and n per group. Text stays ' +
+        'and direction, and a caption with measure, stage, design, correction, threshold, permutations and n per group. A band-check ' +
+        'result is drawn as its mean spectra with aperiodic fits above the frequency-wise effect size, with the verdict. Text stays ' +
         'text in SVG; PNG is rendered at the chosen dpi (DejaVu Sans, Debian package fonts-dejavu-core). The dashboard exports the same SVG.',
     )
-    .argument('<result>', 'result JSON written by `bandwise compare`')
+    .argument('<result>', 'result JSON written by `bandwise compare` or `bandwise band-check`')
     .requiredOption('--out <file>', 'figure file to write (.svg or .png)')
-    .option('--kind <kind>', `${FIGURE_KINDS.join(' or ')} (default: ${d.kind})`)
-    .option('--band <lo-hi>', 'scalp map: the band averaged, Hz, e.g. 12-15 (default: the range of the cluster with the smallest p, else every frequency)')
+    .option('--kind <kind>', `compare results: ${FIGURE_KINDS.join(' or ')} (default: ${d.kind})`)
+    .option(
+      '--band <lo-hi>',
+      'compare results, scalp map: the band averaged, Hz, e.g. 12-15 (default: the range of the cluster with the smallest p, else every frequency)',
+    )
     .option('--width-mm <mm>', `printed width, mm, ${L.minMm}–${L.maxMm} (default: ${d.widthMm})`)
     .option('--height-mm <mm>', `printed height, mm, ${L.minMm}–${L.maxMm} (default: ${d.heightMm})`)
     .option('--dpi <dpi>', `PNG resolution, dots per inch, ${L.minDpi}–${L.maxDpi} (default: ${d.dpi}); the PNG is round(width-mm / 25.4 × dpi) pixels wide`)
@@ -53,7 +57,8 @@ export function register(program: Command): void {
           format: (flags.format ?? ext ?? 'svg') as never,
         });
         if (ext && ext !== o.format) throw new FigureOptionError(`--out ends in .${ext} but the format is ${o.format}`);
-        const r = await writeFigure(resultFile, o, flags.out);
+        const asked = [flags.kind !== undefined ? '--kind' : '', flags.band !== undefined ? '--band' : ''].filter(Boolean);
+        const r = await writeFigure(resultFile, o, flags.out, asked);
         console.log(`wrote ${flags.out} (${o.widthMm} × ${o.heightMm} mm${r.pixels ? `, ${r.pixels.width} × ${r.pixels.height} px at ${o.dpi} dpi` : ''})`);
         if (r.warning) console.error(`bandwise figure: ${r.warning}`);
       } catch (e) {

@@ -14,6 +14,7 @@ import { contrastFigureSvg, figureOptions, FigureOptionError, pixelSize } from '
 import { paperFigureSvg } from '../../src/dashboard/export/paper-figure.ts';
 import { runPython } from '../helpers/python.ts';
 import { figureResult, writeResultFile } from './fixture.ts';
+import { fixedResults } from '../report/inputs.ts';
 
 const repo = fileURLToPath(new URL('../..', import.meta.url));
 const cli = (...args: string[]) =>
@@ -132,5 +133,32 @@ describe('bandwise figure', () => {
     const r = cli(file, '--out', path.join(dir, 'x.png'), '--format', 'svg');
     expect(r.status).toBe(2);
     expect(r.stderr.trim()).toBe('bandwise figure: --out ends in .png but the format is svg');
+  });
+});
+
+describe('band check figure', () => {
+  // the report tests' band check (tests/report/inputs.ts: 2 × 20 simulated subjects, sigma 12–16 Hz, 200 permutations)
+  const { check } = fixedResults();
+
+  it('writes the same SVG from the command line as the dashboard, with its size in mm and its parameters, and refuses --kind', () => {
+    const file = path.join(dir, 'band-check.json');
+    writeFileSync(file, JSON.stringify(check));
+    const out = path.join(dir, 'band.svg');
+    const r = cli(file, '--out', out, '--width-mm', '170', '--height-mm', '130');
+    expect(r.status, r.stderr).toBe(0);
+    const svg = readFileSync(out, 'utf8');
+    expect(svg).toBe(paperFigureSvg(JSON.parse(readFileSync(file, 'utf8')), { widthMm: 170, heightMm: 130 }));
+    const p = parseSvg(svg);
+    expect([p.width, p.height, p.viewBox]).toEqual(['170mm', '130mm', '0 0 170 130']);
+    const text = p.texts.join(' ');
+    expect(text).toContain('Band check of sigma (12–16 Hz): N2, patient − control');
+    expect(text).toContain('Welch t, patient − control');
+    expect(text).toContain('200 permutations (seed 5)');
+    expect(text).toContain(`Bonferroni over ${check.family.length} tests at α = 0.05`);
+    expect(text).toContain(`Verdict: ${check.verdict}.`);
+    expect(text).toContain('n: control 20, patient 20');
+    const refused = cli(file, '--out', path.join(dir, 'b.svg'), '--kind', 'scalp-map');
+    expect(refused.status).toBe(2);
+    expect(refused.stderr).toMatch(/--kind applies to a compare result only/);
   });
 });

@@ -2,17 +2,23 @@
 // src/core/figure (the same text `bandwise figure` writes), or a PNG drawn from it on a canvas at
 // the chosen dpi with the resolution recorded in the file.
 import type { CompareResult } from '../../core/contrast/run.ts';
-import { contrastFigureSvg, figureOptions, pixelSize, withPhysicalDensity, type FigureOptions } from '../../core/figure/index.ts';
+import { bandCheckFigureSvg, contrastFigureSvg, figureOptions, pixelSize, withPhysicalDensity, type FigureOptions } from '../../core/figure/index.ts';
+import type { BandCheckResult } from '../../core/verdict/band-check.ts';
 import { fileNameFrom } from './download.ts';
 
-/** The figure's SVG text for the export's settings (defaults filled, values checked). */
-export function paperFigureSvg(result: CompareResult, settings: Partial<FigureOptions>): string {
-  return contrastFigureSvg(result, figureOptions(settings));
+/** A result a paper figure is drawn from. */
+export type FigureResult = CompareResult | BandCheckResult;
+
+/** The figure's SVG text for the export's settings (defaults filled, values checked); a band check ignores kind and band. */
+export function paperFigureSvg(result: FigureResult, settings: Partial<FigureOptions>): string {
+  const o = figureOptions(settings);
+  return result.kind === 'compare' ? contrastFigureSvg(result, o) : bandCheckFigureSvg(result, o);
 }
 
-/** "figure-n2-log-psd-statistic-map.svg" */
-export function paperFigureName(result: CompareResult, o: Pick<FigureOptions, 'kind' | 'format'>): string {
-  return fileNameFrom(`figure ${result.contrast.stage} ${result.measure} ${o.kind}`, o.format);
+/** "figure-n2-log-psd-statistic-map.svg", "figure-n2-band-check-sigma.png" */
+export function paperFigureName(result: FigureResult, o: Pick<FigureOptions, 'kind' | 'format'>): string {
+  const what = result.kind === 'compare' ? `${result.measure} ${o.kind}` : `band check ${result.band.name}`;
+  return fileNameFrom(`figure ${result.contrast.stage} ${what}`, o.format);
 }
 
 /** PNG of SVG text at round(mm / 25.4 × dpi) pixels each way, drawn by the browser. */
@@ -38,9 +44,9 @@ async function svgPng(svg: string, o: FigureOptions): Promise<Blob> {
 }
 
 /** The export's file: SVG text or PNG, and its name. */
-export async function paperFigureFile(result: CompareResult, settings: Partial<FigureOptions>): Promise<{ blob: Blob; fileName: string }> {
+export async function paperFigureFile(result: FigureResult, settings: Partial<FigureOptions>): Promise<{ blob: Blob; fileName: string }> {
   const o = figureOptions(settings);
-  const svg = contrastFigureSvg(result, o);
+  const svg = paperFigureSvg(result, o);
   const blob = o.format === 'svg' ? new Blob([svg], { type: 'image/svg+xml' }) : await svgPng(svg, o);
   return { blob, fileName: paperFigureName(result, o) };
 }
