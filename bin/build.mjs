@@ -7,7 +7,8 @@
 //   dist/cli/power-worker.js    power's simulation thread (src/analysis/power-worker.ts)
 //   dist/cli/*-<hash>.js        code shared by these and the commands' parts loaded on use
 //   dist/dashboard/             the dashboard app (Vite, vite.config.ts)
-// npm packages are bundled, except DuckDB's native binding (@duckdb/node-bindings, from node_modules).
+// npm packages are bundled, except the native modules: DuckDB's binding (@duckdb/node-bindings) and
+// the PNG rasteriser of `bandwise figure` (@resvg/resvg-js), both loaded from node_modules.
 import { chmodSync, readFileSync, rmSync } from 'node:fs';
 import { builtinModules } from 'node:module';
 import path from 'node:path';
@@ -53,8 +54,8 @@ const node = await build({
   target: 'node20',
   // the JavaScript of the packages is bundled: Node then reads a few files, not hundreds of small
   // CommonJS ones (each @stdlib function is a package of its own, @duckdb/node-api a file per
-  // class); only DuckDB's native binding is loaded from node_modules
-  external: ['@duckdb/node-bindings'],
+  // class); only the native modules (DuckDB's binding, resvg) are loaded from node_modules
+  external: ['@duckdb/node-bindings', '@resvg/resvg-js'],
   // bundled CommonJS code calls require() for Node's own modules
   banner: { js: "import { createRequire as __bandwiseRequire } from 'node:module'; const require = __bandwiseRequire(import.meta.url);" },
   plugins: [builtTwins],

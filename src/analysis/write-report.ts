@@ -5,14 +5,17 @@
  */
 import { existsSync } from 'node:fs';
 import path from 'node:path';
-import { methodsReport, type ReportableResult } from '../core/report/index.ts';
+import { methodsReport, shortMethods, type ReportableResult } from '../core/report/index.ts';
 import { databaseFactsOf, ledgerCountsOf } from './report-facts.ts';
 import { tryAppendLedger } from './ledger.ts';
 import { readSmallText } from '../files/input-files.ts';
 import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
 
 export interface ReportOptions {
-  out: string;
+  /** the full methods text (Markdown); needed unless `short` */
+  out?: string;
+  /** print the short methods paragraph on standard output */
+  short?: boolean;
   json?: string;
   database?: string;
   ledger?: string | false;
@@ -48,6 +51,17 @@ function databaseFor(resultFile: string, r: ReportableResult, given?: string): s
   return existsSync(beside) ? beside : null;
 }
 
+/** The short methods paragraph of a saved result, with its database's facts and the ledger counts when at hand (nothing written or recorded). */
+export async function shortReport(resultFile: string, flags: Omit<ReportOptions, 'out' | 'json'>): Promise<string> {
+  const result = readResult(resultFile);
+  const db = databaseFor(resultFile, result, flags.database);
+  const ledgerFile = flags.ledger === false ? null : (flags.ledger ?? (db ? `${db}.ledger.jsonl` : null));
+  const facts = db ? await databaseFactsOf(db, result.contrast, flags.run ?? result.database?.runId) : null;
+  const dbName = (db ?? result.database?.file ?? '').split(/[\\/]/).pop()!;
+  const ledger = ledgerFile && existsSync(ledgerFile) ? ledgerCountsOf(ledgerFile, dbName) : null;
+  return shortMethods(result, facts, ledger);
+}
+
 /**
  * Reads the result (and its database and ledger when at hand), refuses outputs that would destroy
  * an input or each other (OutputClashError, before anything is written), writes the methods text
@@ -55,7 +69,7 @@ function databaseFor(resultFile: string, r: ReportableResult, given?: string): s
  */
 export async function writeReport(
   resultFile: string,
-  flags: ReportOptions,
+  flags: ReportOptions & { out: string },
 ): Promise<{ markdown: string; jsonFile: string; database: string | null; ledger: string | null; ledgerWarning: string | null }> {
   const result = readResult(resultFile);
   const db = databaseFor(resultFile, result, flags.database);

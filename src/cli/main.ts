@@ -21,6 +21,7 @@ const COMMANDS: [name: string, summary: string, load: () => Promise<CommandFile>
   ['compare', 'run one contrast (groups, paired stages/sessions, covariate) with permutation correction', () => import('./compare.ts')],
   ['band-check', 'is a band effect band-specific, or a broadband aperiodic change? (verdict with the numbers behind it)', () => import('./band-check.ts')],
   ['report', 'write the methods text (Markdown) and its parameters (JSON) for a saved result', () => import('./report.ts')],
+  ['figure', 'draw a saved compare result as a paper figure (SVG or PNG, size in mm, caption with the parameters)', () => import('./figure.ts')],
   ['split', 'split the subjects into an exploration part and a held-out confirmation part (optionally blinded)', () => import('./split.ts')],
   ['lock', 'fix the analysis plan (contrasts, run, exclusions, split) before the confirmation part is analysed', () => import('./lock.ts')],
   ['confirm', 'run a locked plan once on the held-out confirmation part, unblinded', () => import('./confirm.ts')],

@@ -14,7 +14,21 @@ const help = (args: string[]) => {
   return r.stdout;
 };
 
-const COMMANDS = ['ingest', 'merge', 'compare', 'band-check', 'report', 'split', 'lock', 'confirm', 'dashboard', 'cluster-script', 'simulate', 'demo'];
+const COMMANDS = [
+  'ingest',
+  'merge',
+  'compare',
+  'band-check',
+  'report',
+  'figure',
+  'split',
+  'lock',
+  'confirm',
+  'dashboard',
+  'cluster-script',
+  'simulate',
+  'demo',
+];
 
 /** The option entries of a help text, each as one line (commander wraps a description onto indented lines). */
 function optionEntries(text: string): string[] {

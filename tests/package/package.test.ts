@@ -101,8 +101,9 @@ describe('the package', () => {
       for (const m of text.matchAll(imports)) specifiers.add(m[1] ?? m[2] ?? m[3] ?? m[4]);
     }
     const bare = [...specifiers].filter((s) => !s.startsWith('.'));
-    // the packages' JavaScript is bundled (bin/build.mjs); DuckDB's native binding is loaded from node_modules
+    // the packages' JavaScript is bundled (bin/build.mjs); the native modules (DuckDB's binding, the PNG rasteriser) are loaded from node_modules
     expect(bare).toContain('@duckdb/node-bindings');
+    expect(bare).toContain('@resvg/resvg-js');
     expect(bare.filter((s) => ['tsx', 'esbuild', 'vite'].includes(packageOf(s)))).toEqual([]);
     expect(bare.filter((s) => !s.startsWith('node:') && !builtinModules.includes(s) && !(packageOf(s) in pkg.dependencies))).toEqual([]);
   });
@@ -121,6 +122,10 @@ describe('the package', () => {
     const compare = cli(['compare', db, '--groups', 'control,patient', '--permutations', '200', '--threads', '2', '--out', at('result.json'), '--no-ledger']);
     expect(compare.status, compare.stderr + compare.stdout).toBe(0);
     expect(JSON.parse(readFileSync(at('result.json'), 'utf8')).n).toEqual({ control: 4, patient: 4 });
+    // the PNG figure loads resvg's native module from node_modules: 100 mm at 150 dpi = 590.55 → 591 pixels wide (PNG IHDR width, bytes 16–19)
+    const figure = cli(['figure', at('result.json'), '--out', at('figure.png'), '--width-mm', '100', '--height-mm', '90', '--dpi', '150']);
+    expect(figure.status, figure.stderr).toBe(0);
+    expect(readFileSync(at('figure.png')).readUInt32BE(16)).toBe(591);
     expect(readdirSync(tmp)).toEqual([]);
   }, 300_000);
 

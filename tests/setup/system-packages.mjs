@@ -4,6 +4,7 @@
 // otherwise it stops with one line naming what to install and the command that does it.
 //   libedf-dev, gcc   EDF round trips through EDFlib (tests/edf/libedf.ts compiles small C programs)
 //   chromium          the browser end-to-end tests (tests/e2e/harness.ts drives /usr/bin/chromium)
+//   fonts-dejavu-core the font of the PNG figures (tests/figure: `bandwise figure --format png`)
 //   slurmctld slurmd slurm-client munge   the single-node Slurm test (tests/scale/slurm-harness.ts)
 // python3 with numpy and scipy (the reference for numeric checks) is checked, not installed: which
 // python3 is on PATH, and how its packages are managed, is the machine owner's choice.
@@ -28,6 +29,7 @@ const PACKAGES = [
   ['libedf-dev', () => existsSync('/usr/include/edflib.h')],
   ['gcc', () => onPath('gcc')],
   ['chromium', () => existsSync('/usr/bin/chromium')],
+  ['fonts-dejavu-core', () => existsSync('/usr/share/fonts/truetype/dejavu/DejaVuSans.ttf')],
   ['slurmctld', () => onPath('slurmctld')],
   ['slurmd', () => onPath('slurmd')],
   ['slurm-client', () => onPath('sbatch')],

@@ -1,4 +1,5 @@
 /** Methods reports of compare and band-check results (pure; Node gathers the facts in src/analysis/report-facts.ts). */
+export { shortMethods, wordCount, SHORT_ALPHA } from './short-methods.ts';
 export { methodsReport, type MethodsReport, type MethodsParameters, type ReportableResult } from './methods.ts';
 export {
   ingestParameterFacts,
