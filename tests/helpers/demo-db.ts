@@ -12,6 +12,7 @@ import { fileURLToPath } from 'node:url';
 import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_RECORDINGS, DEMO_SCENARIO, scenarioStamp } from '../../src/simulation/index.ts';
 import { runIngest } from '../../ingest/run.ts';
 import { resolveIngestParams } from '../../ingest/pipeline.ts';
+import type { IngestParams } from '../../ingest/pipeline/params.ts';
 import { runIdentity } from '../../ingest/store/identity.ts';
 
 const repo = fileURLToPath(new URL('../..', import.meta.url));
@@ -55,12 +56,15 @@ async function withLock<T>(name: string, fn: () => Promise<T>): Promise<T> {
   }
 }
 
-/** Path of the ingested demo database (built on first use). */
-export async function demoDatabase(): Promise<string> {
+/**
+ * Path of the ingested demo database (built on first use); `extra` ingest parameters (such as a
+ * multitaper estimate) make a database of their own beside it.
+ */
+export async function demoDatabase(extra: Partial<IngestParams> = {}): Promise<string> {
   return withLock('demo', async () => {
     const cohort = await ensureDemoCohort();
     // keyed by the scenario, the ingest parameters and the code, so a change of any builds a new file
-    const params = resolveIngestParams({ references: [...DEMO_INGEST_PARAMS.references] });
+    const params = resolveIngestParams({ references: [...DEMO_INGEST_PARAMS.references], ...extra });
     const stamp = `${(await scenarioStamp(DEMO_SCENARIO)).slice(0, 8)}-${runIdentity(params).runId.slice(0, 8)}-${codeHash()}`;
     const db = path.join(tmp, `demo-${stamp}.duckdb`);
     const done = `${db}.done`;

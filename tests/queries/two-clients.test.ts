@@ -16,6 +16,7 @@ import type { SqlClient } from '../../src/queries/client.ts';
 import * as cohort from '../../src/queries/cohort.ts';
 import * as contrastData from '../../src/queries/contrast-data.ts';
 import * as fits from '../../src/queries/fits.ts';
+import * as night from '../../src/queries/night.ts';
 import * as positions from '../../src/queries/positions.ts';
 import * as quality from '../../src/queries/quality.ts';
 import * as reportFacts from '../../src/queries/report-facts.ts';
@@ -26,7 +27,7 @@ import * as workflow from '../../src/queries/workflow.ts';
 import { demoDatabase } from '../helpers/demo-db.ts';
 import { wasmClientFor } from '../dashboard/wasm-client.ts';
 
-const MODULES = { bandCheckData, cohort, contrastData, fits, positions, quality, reportFacts, runsModule, schemaModule, spectra, workflow };
+const MODULES = { bandCheckData, cohort, contrastData, fits, night, positions, quality, reportFacts, runsModule, schemaModule, spectra, workflow };
 /** Exported functions that run no SQL (they choose or compute from what a query returned). */
 const NOT_QUERIES = new Set(['chooseRun', 'binsUpTo', 'contrastMaxHz', 'contrastStages', 'groupingColumns', 'CohortSchema', 'partViewOf']);
 
@@ -114,6 +115,8 @@ const CALLS: Record<string, (db: SqlClient, ctx: Context) => Promise<unknown>>[]
     spectraChoices: (db) => quality.spectraChoices(db),
     recordingEpochs: (db, ctx) => quality.recordingEpochs(db, ctx.recordingId, 'C3'),
     epochBandPower: (db, ctx) => quality.epochBandPower(db, ctx.schema, ctx.recordingId, 'C3', 'recorded'),
+    // the demo stores no epoch spectra: both answer null; the decoded values over both engines: tests/dashboard/night-spectra.test.ts
+    nightSpectra: (db, ctx) => night.nightSpectra(db, ctx.schema, ctx.recordingId, 'C3'),
   },
   {
     contrastParticipants: (db, ctx) => contrastData.contrastParticipants(db, ctx.schema),

@@ -3,7 +3,12 @@ import type { DataColumn } from '../../components/table-columns.ts';
 import { deviationLink } from '../deviation/deviation-params.ts';
 
 const RECORDING_COLUMNS: readonly DataColumn[] = [
-  { key: 'recording_id', label: 'Recording' },
+  // each recording links to its detail on the quality screen (its spectrum, rejections and night)
+  {
+    key: 'recording_id',
+    label: 'Recording',
+    href: (r) => (r.subject === null || r.subject === undefined ? null : `#/quality?${new URLSearchParams({ subject: String(r.subject) })}`),
+  },
   // each subject links to its deviation map
   { key: 'subject', label: 'Subject', href: (r) => (r.subject === null || r.subject === undefined ? null : deviationLink(String(r.subject))) },
   { key: 'session', label: 'Session' },

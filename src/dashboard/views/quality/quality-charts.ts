@@ -85,7 +85,7 @@ export function cellSpectrumPlot(d: CellDetail, maxHz: number): Plot.PlotOptions
 }
 
 /** Band power per epoch over the night (log y), rejected epochs marked. */
-export function bandPowerNightPlot(d: CellDetail): Plot.PlotOptions {
+export function bandPowerNightPlot(d: Pick<CellDetail, 'epochs' | 'bandPower'>): Plot.PlotOptions {
   const onset = new Map(d.epochs.map((e) => [e.epoch, e.onsetS / 3600]));
   const rows = d.bandPower
     .filter((r) => r.band !== 'broadband' && typeof r.power === 'number' && r.power > 0)
