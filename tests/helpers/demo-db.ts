@@ -6,7 +6,7 @@
  * building it twice.
  */
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { ensureDemoCohort, DEMO_INGEST_PARAMS, DEMO_RECORDINGS, DEMO_SCENARIO, scenarioStamp } from '../../src/simulation/index.ts';
@@ -57,20 +57,41 @@ async function withLock<T>(name: string, fn: () => Promise<T>): Promise<T> {
 }
 
 /**
- * Path of the ingested demo database (built on first use); `extra` ingest parameters (such as a
- * multitaper estimate) make a database of their own beside it.
+ * The demo's participants table with only the first `perGroup` subjects of each group (in table
+ * order), written beside it so the recording paths stay valid.
  */
-export async function demoDatabase(extra: Partial<IngestParams> = {}): Promise<string> {
+function firstOfEachGroup(participantsPath: string, perGroup: number): string {
+  const [header, ...rows] = readFileSync(participantsPath, 'utf8').trim().split('\n');
+  const group = header.split('\t').indexOf('group');
+  const taken = new Map<string, number>();
+  const kept = rows.filter((r) => {
+    const g = r.split('\t')[group];
+    taken.set(g, (taken.get(g) ?? 0) + 1);
+    return taken.get(g)! <= perGroup;
+  });
+  const out = path.join(path.dirname(participantsPath), `participants-first-${perGroup}.tsv`);
+  writeFileSync(out, [header, ...kept].join('\n') + '\n');
+  return out;
+}
+
+/**
+ * Path of the ingested demo database (built on first use); `extra` ingest parameters (such as a
+ * multitaper estimate) make a database of their own beside it, and `perGroup` one of the first
+ * subjects of each group only (a smaller build for a check that needs fewer).
+ */
+export async function demoDatabase(extra: Partial<IngestParams> = {}, o: { perGroup?: number } = {}): Promise<string> {
   return withLock('demo', async () => {
     const cohort = await ensureDemoCohort();
     // keyed by the scenario, the ingest parameters and the code, so a change of any builds a new file
     const params = resolveIngestParams({ references: [...DEMO_INGEST_PARAMS.references], ...extra });
-    const stamp = `${(await scenarioStamp(DEMO_SCENARIO)).slice(0, 8)}-${runIdentity(params).runId.slice(0, 8)}-${codeHash()}`;
+    const subset = o.perGroup === undefined ? '' : `-first${o.perGroup}`;
+    const stamp = `${(await scenarioStamp(DEMO_SCENARIO)).slice(0, 8)}-${runIdentity(params).runId.slice(0, 8)}-${codeHash()}${subset}`;
     const db = path.join(tmp, `demo-${stamp}.duckdb`);
     const done = `${db}.done`;
     if (existsSync(db) && existsSync(done)) return db;
+    const table = o.perGroup === undefined ? cohort.participantsPath : firstOfEachGroup(cohort.participantsPath, o.perGroup);
     // the ingest is resumable: a partial database from a killed run is completed, not rebuilt
-    const summary = await runIngest(cohort.participantsPath, db, { jobs: 2, params });
+    const summary = await runIngest(table, db, { jobs: 2, params });
     if (summary.failed.length > 0) throw new Error(`demo ingest failed: ${summary.failed.map((f) => `${f.file}: ${f.message}`).join('; ')}`);
     mkdirSync(done, { recursive: true });
     return db;
