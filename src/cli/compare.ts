@@ -73,7 +73,7 @@ export function register(program: Command): void {
     const { withExclusions } = await import('../core/contrast/exclusions.ts');
     const { designTitle, signText } = await import('../core/contrast/labels.ts');
     const { compareDatabase } = await import('../analysis/compare-runner.ts');
-    const { tryAppendLedger } = await import('../analysis/ledger.ts');
+    const { dataIdentityOf, tryAppendLedger } = await import('../analysis/ledger.ts');
     const { reportUserError } = await import('./user-errors.ts');
     const { partLine } = await import('../core/confirmation/methods-text.ts');
     const ledger = flags.ledger === false ? null : (flags.ledger ?? `${database}.ledger.jsonl`);
@@ -140,7 +140,7 @@ export function register(program: Command): void {
       if (reportUserError('compare', e)) return;
       throw e;
     }
-    const ledgerWarning = ledger ? tryAppendLedger(ledger, database, result) : null;
+    const ledgerWarning = ledger ? tryAppendLedger(ledger, database, { ...result, data: await dataIdentityOf(database, result.database.runId) }) : null;
     const n = Object.entries(result.n)
       .map(([k, v]) => `${k} ${v}`)
       .join(', ');

@@ -24,9 +24,10 @@ export function dashboardAppDir(): string {
   return APP_DIR;
 }
 
-export async function serveDashboard(dbPath: string, port?: number) {
+/** Serves the app and the database; the browser's analyses go to the database's ledger (default <database>.ledger.jsonl, as the commands). */
+export async function serveDashboard(dbPath: string, port?: number, ledgerPath = `${dbPath}.ledger.jsonl`) {
   if (!existsSync(dbPath)) throw new Error(`no database at ${dbPath}`);
-  return startDashboardServer({ dbPath: path.resolve(dbPath), appDir: dashboardAppDir(), port });
+  return startDashboardServer({ dbPath: path.resolve(dbPath), appDir: dashboardAppDir(), port, ledgerPath: path.resolve(ledgerPath) });
 }
 
 /** Resolves on Ctrl-C (SIGINT) or SIGTERM: the end of serving. */

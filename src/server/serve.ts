@@ -2,18 +2,21 @@
 // to holders of a per-start access token (access-token.ts) and nobody else: a request without the
 // token or its cookie gets 403 with no body, whatever it asks for. Implements HEAD and single byte
 // ranges itself (duckdb-wasm reads the database with range requests; see STACK.md). Anything not
-// served answers 404, other methods 405.
+// served answers 404, other methods 405. The database's ledger is read and appended to at LEDGER_URL_PATH.
 import { createReadStream } from 'node:fs';
 import { realpath, stat } from 'node:fs/promises';
 import http from 'node:http';
 import path from 'node:path';
 import { pipeline } from 'node:stream/promises';
 import { cookieValues, cookieName, isToken, newToken, tokenCookie, tokenParameters, withoutTokenParameter, withoutTokenValue } from './access-token.ts';
+import { ledgerRoute } from './ledger-route.ts';
 import { parseRange } from './range.ts';
 import { requestSegments, resolveInside } from './safe-path.ts';
 
 /** The one URL path under which the database file is served. */
 export const DATABASE_URL_PATH = '/data/cohort.duckdb';
+/** The ledger beside the database: GET reads it (JSON lines), POST appends one analysis (ledger-route.ts). */
+export const LEDGER_URL_PATH = '/data/ledger.jsonl';
 
 export interface RequestLogEntry {
   method: string;
@@ -31,6 +34,8 @@ export interface DashboardServerOptions {
   dbPath: string;
   /** Folder of the built app (holds index.html). */
   appDir: string;
+  /** The database's ledger file (JSON lines); absent: no ledger is served and the browser keeps its own count. */
+  ledgerPath?: string;
   /** TCP port; 0 or absent picks a free one. */
   port?: number;
   /** Called once per answered request. */
@@ -179,6 +184,11 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
       return;
     }
     const method = req.method ?? '';
+    if (pathOnly === LEDGER_URL_PATH && options.ledgerPath !== undefined) {
+      const answer = await ledgerRoute(req, options.ledgerPath, path.basename(dbFile));
+      send(res, req, answer.status, answer.text, answer.headers);
+      return;
+    }
     if (method !== 'GET' && method !== 'HEAD') {
       send(res, req, 405, 'method not allowed', { Allow: 'GET, HEAD' });
       return;

@@ -47,11 +47,12 @@ export interface DashboardSession {
 const LOCAL_SCHEMES = new Set(['blob:', 'data:', 'about:']);
 
 /** Serve `appDir` with `dbPath`, open a fresh chromium profile on it. */
-export async function openDashboard(appDir: string, dbPath: string): Promise<DashboardSession> {
+/** `ledgerPath`: the ledger the server keeps beside the database (as `bandwise dashboard` does); absent, none. */
+export async function openDashboard(appDir: string, dbPath: string, ledgerPath?: string): Promise<DashboardSession> {
   const requests: RequestLogEntry[] = [];
   const consoleErrors: string[] = [];
   const foreignRequests: string[] = [];
-  const server = await startDashboardServer({ dbPath, appDir, onRequest: (e) => requests.push(e) });
+  const server = await startDashboardServer({ dbPath, appDir, ledgerPath, onRequest: (e) => requests.push(e) });
   const profile = mkdtempSync(path.join(os.tmpdir(), 'bandwise-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: CHROMIUM,
