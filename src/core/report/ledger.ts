@@ -129,7 +129,7 @@ export interface LedgerInput {
  * is below 0.05, and for analyses their identity over `data` (dataIdentity) — the same for the
  * command line and the browser.
  */
-export function ledgerEntry(input: LedgerInput, database: string, data: string, time: string): LedgerEntry {
+export function ledgerEntry(input: LedgerInput, database: string, data: string, time = new Date().toISOString()): LedgerEntry {
   const ps = (input.clusters ?? []).map((k) => k.p);
   const p = input.p ?? (ps.length > 0 ? Math.min(...ps) : null);
   const entry: LedgerEntry = {

@@ -82,7 +82,7 @@ export class DatabaseNotes {
   /** Records an analysis: in the ledger beside the database, or (when it cannot be written) in this browser's. */
   async record(input: LedgerInput): Promise<void> {
     const key = this.requireKey();
-    const entry = ledgerEntry(input, this.name, await this.data.catch(() => ''), new Date().toISOString());
+    const entry = ledgerEntry(input, this.name, await this.data.catch(() => ''));
     if (key !== this.key) return;
     if (this.ledgerUrl !== null && (await postSharedLedger(this.ledgerUrl, entry))) {
       this.ledger = [...this.ledger, entry];
