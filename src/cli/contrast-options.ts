@@ -43,6 +43,8 @@ export interface Flags {
   out: string;
   tsv?: string;
   pointsTsv?: string;
+  /** compare: list one-point clusters with p above the table's limit in --tsv */
+  singlePointClusters?: boolean;
   exclusions?: string;
   run?: string;
   ledger?: string | false;

@@ -3,6 +3,7 @@
  * part (and which are left out, with the reason), the measure per subject × channel × point, and
  * the design. Pure; shared by the command line and the dashboard's worker.
  */
+import { frontToBack, storedPositionOf } from '../montage/channel-order.ts';
 import { INDIVIDUAL_BAND_MEASURES, type Contrast } from './spec.ts';
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from './data.ts';
 import { contrastConditions } from './conditions.ts';
@@ -82,8 +83,11 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
     peaks.get(k)!.push(p);
   }
 
-  // channels: those asked for, or every channel stored for this stage
-  const stored = [...new Set(data.spectra.rows.filter((r) => conds.some((d) => d.stage === r.stage)).map((r) => r.channel))];
+  // channels: those asked for, or every channel stored for this stage, front to back, then left to right
+  const stored = frontToBack(
+    [...new Set(data.spectra.rows.filter((r) => conds.some((d) => d.stage === r.stage)).map((r) => r.channel))],
+    storedPositionOf(data.positions ?? []),
+  );
   const channels = c.channels === 'all' ? stored : c.channels;
   for (const ch of channels)
     if (!stored.includes(ch))
