@@ -13,6 +13,8 @@ import { AnalysisForm } from '../../src/dashboard/analysis/analysis-form.svelte.
 import { AnalysisRun, type Progress } from '../../src/dashboard/analysis/analysis-run.svelte.ts';
 import BandFields from '../../src/dashboard/analysis/BandFields.svelte';
 import DesignFields from '../../src/dashboard/analysis/DesignFields.svelte';
+import NuisanceFields from '../../src/dashboard/analysis/NuisanceFields.svelte';
+import { contrastFromParams } from '../../src/dashboard/analysis/contrast-params.ts';
 import type { FormChoices } from '../../src/dashboard/analysis/form-choices.ts';
 import RunControls from '../../src/dashboard/analysis/RunControls.svelte';
 import StatisticsFields from '../../src/dashboard/analysis/StatisticsFields.svelte';
@@ -51,6 +53,21 @@ function formAt(hash: string, choices: FormChoices | null = CHOICES): AnalysisFo
 
 const field = (id: string) => screen.getByTestId(id) as HTMLInputElement | HTMLSelectElement;
 const params = () => router.route.params;
+
+describe('NuisanceFields', () => {
+  it('offers the participants columns but the group column, writes the picked ones as "nuisance", and parses into the contrast', async () => {
+    const form = formAt('#/contrast?design=groups&groups=control,patient&run=1');
+    render(NuisanceFields, { form, testPrefix: 'c' });
+    expect(screen.queryByTestId('c-nuisance-group')).toBeNull();
+    await fireEvent.click(field('c-nuisance-site'));
+    await fireEvent.click(field('c-nuisance-age'));
+    expect(params()).toMatchObject({ nuisance: 'site,age' });
+    expect(params().run).toBeUndefined();
+    expect(contrastFromParams(form.values).nuisance).toEqual(['site', 'age']);
+    await fireEvent.click(field('c-nuisance-site'));
+    expect(params().nuisance).toBe('age');
+  });
+});
 
 describe('DesignFields', () => {
   it('opens a new analysis on the command line’s defaults: two groups of `group`, N2, the recorded reference, mean over epochs, all channels', () => {
