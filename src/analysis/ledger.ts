@@ -1,56 +1,24 @@
 /**
  * The ledger: every contrast and band check run on a database, one JSON line each (settings,
- * time, smallest p), so a report can state how many analyses were tried and how many were
- * significant. Trying many analysis variants inflates false positives; the ledger makes it visible.
+ * time, smallest p, the analysis's identity), so a report can state how many distinct analyses
+ * were tried and how many were significant (src/core/report/ledger.ts counts them). Trying many
+ * analysis variants inflates false positives; the ledger makes it visible. The dashboard server
+ * appends the browser's analyses to the same file.
  */
 import { appendFileSync, existsSync, readFileSync } from 'node:fs';
-import type { Part } from '../core/confirmation/split.ts';
+import { ledgerEntry, type LedgerEntry, type LedgerInput as CoreLedgerInput } from '../core/report/ledger.ts';
+import { runDataIdentity } from '../queries/data-identity.ts';
+import { withDatabase } from './store-client.ts';
 
-export interface LedgerEntry {
-  time: string;
-  database: string;
-  kind: string;
-  contrast: unknown;
-  /** smallest corrected p of the analysis (null when it has none) */
-  p: number | null;
-  significant: boolean;
-  /** while a split exists: the part of the subjects the analysis used, and the split's id */
-  part?: Part;
-  splitId?: string;
-  /** a confirmation: the plan and which confirmation of it this was */
-  planId?: string;
-  confirmationRun?: number;
-  /** split and lock events: what was made (never a group's real name or code) */
-  details?: Record<string, unknown>;
-}
+export type { LedgerEntry };
 
-/** What an analysis result (or a split or lock event) gives the ledger. */
-export interface LedgerInput {
-  kind: string;
-  contrast: unknown;
-  clusters?: { p: number }[];
-  verdict?: string;
-  p?: number | null;
-  part?: Part;
-  split?: { id: string };
-  plan?: { id: string; confirmationRun: number };
-  details?: Record<string, unknown>;
+/** What a result gives the ledger, with the identity of the data it read (dataIdentityOf). */
+export interface LedgerInput extends CoreLedgerInput {
+  data?: string;
 }
 
 export function appendLedger(file: string, database: string, result: LedgerInput): LedgerEntry {
-  const ps = (result.clusters ?? []).map((k) => k.p);
-  const p = result.p ?? (ps.length > 0 ? Math.min(...ps) : null);
-  const entry: LedgerEntry = {
-    time: new Date().toISOString(),
-    database: database.split(/[\\/]/).pop()!,
-    kind: result.kind,
-    contrast: result.contrast,
-    p,
-    significant: p !== null && p < 0.05,
-  };
-  if (result.part && result.split) Object.assign(entry, { part: result.part, splitId: result.split.id });
-  if (result.plan) Object.assign(entry, { planId: result.plan.id, confirmationRun: result.plan.confirmationRun });
-  if (result.details) entry.details = result.details;
+  const entry = ledgerEntry(result, database, result.data ?? '', new Date().toISOString());
   appendFileSync(file, JSON.stringify(entry) + '\n');
   return entry;
 }
@@ -83,4 +51,9 @@ export function readLedger(file: string): LedgerEntry[] {
         throw new Error(`${file}: line ${i + 1} is not a ledger entry`);
       }
     });
+}
+
+/** The identity of the data of one ingest run of a database file (the ledger's `data`). */
+export async function dataIdentityOf(dbPath: string, runId: string): Promise<string> {
+  return withDatabase(dbPath, (db) => runDataIdentity(db, runId));
 }

@@ -3,7 +3,8 @@
  * and the ledger counts of a database file.
  */
 import type { Contrast } from '../core/contrast/spec.ts';
-import { ledgerCounts, type DatabaseFacts, type LedgerCounts } from '../core/report/facts.ts';
+import type { DatabaseFacts } from '../core/report/facts.ts';
+import { ledgerCounts, type LedgerCounts } from '../core/report/ledger.ts';
 import { databaseFacts } from '../queries/report-facts.ts';
 import { runs } from '../queries/runs.ts';
 import { readLedger } from './ledger.ts';

@@ -49,7 +49,7 @@ export function register(program: Command): void {
     const { default: cliProgress } = await import('cli-progress');
     const { withExclusions } = await import('../core/contrast/exclusions.ts');
     const { bandCheckDatabase } = await import('../analysis/band-check-runner.ts');
-    const { tryAppendLedger } = await import('../analysis/ledger.ts');
+    const { dataIdentityOf, tryAppendLedger } = await import('../analysis/ledger.ts');
     const { reportUserError } = await import('./user-errors.ts');
     const { partLine } = await import('../core/confirmation/methods-text.ts');
     const band = inputOrExit(() => parseBand(flags.band));
@@ -120,6 +120,7 @@ export function register(program: Command): void {
           p: result.p,
           part: result.part,
           split: result.split,
+          data: await dataIdentityOf(database, result.database.runId),
         })
       : null;
     console.log(`${result.band.name} ${result.band.loHz}–${result.band.hiHz} Hz: ${result.verdict}${result.periodicKind ? ` (${result.periodicKind})` : ''}`);

@@ -4,6 +4,8 @@
  */
 import { Command, InvalidArgumentError } from 'commander';
 import type { CompareRun } from '../analysis/compare-runner.ts';
+import { CLUSTER_TABLE_COLUMNS, clusterTable, SINGLE_POINT_MAX_P } from '../core/contrast/cluster-table.ts';
+import { toTsv } from '../core/report/tsv.ts';
 import { refuseClashes, writeFileReplacing } from '../files/output-files.ts';
 import { addContrastOptions, contrastOrExit, readExclusions, type Flags } from './contrast-options.ts';
 
@@ -13,11 +15,9 @@ const threadCount = (v: string) => {
   return x;
 };
 
-/** Clusters as TSV: one row per cluster, signs groups[1] − groups[0]. */
-export function clustersTsv(r: CompareRun): string {
-  const lines = ['cluster\tsign\tmass\tsize\tp\tfmin_hz\tfmax_hz\tchannels'];
-  r.clusters.forEach((k, i) => lines.push([i + 1, k.sign, k.mass.toFixed(4), k.size, k.p.toPrecision(4), k.fminHz, k.fmaxHz, k.channels.join(',')].join('\t')));
-  return lines.join('\n') + '\n';
+/** Clusters as TSV, as the dashboard's cluster table (src/core/contrast/cluster-table.ts): signs groups[1] − groups[0]. */
+export function clustersTsv(r: CompareRun, singlePoints: boolean): string {
+  return toTsv(CLUSTER_TABLE_COLUMNS, clusterTable(r, { singlePoints }).rows);
 }
 
 /** A number for a TSV field; a missing value (NaN: a point left out for too few values) is NA, as R and pandas read it. */
@@ -63,7 +63,11 @@ export function register(program: Command): void {
     )
     .argument('<database>', 'bandwise database file (.duckdb) written by `bandwise ingest`')
     .requiredOption('--out <file>', 'result JSON to write')
-    .option('--tsv <file>', 'cluster table as TSV')
+    .option(
+      '--tsv <file>',
+      `cluster table as TSV (the dashboard's columns; clusters of one point with p > ${SINGLE_POINT_MAX_P} left out unless --single-point-clusters)`,
+    )
+    .option('--single-point-clusters', `list clusters of one point (one channel, one frequency bin) with p > ${SINGLE_POINT_MAX_P} in --tsv too`)
     .option('--points-tsv <file>', 'per-point statistics (t, df, p, effect size with interval, cluster) as TSV')
     .option('--threads <n>', 'threads for the permutations (default: one per core for a large contrast, else 1); the result is the same', threadCount);
   addContrastOptions(command, { bandMeasures: true });
@@ -73,7 +77,7 @@ export function register(program: Command): void {
     const { withExclusions } = await import('../core/contrast/exclusions.ts');
     const { designTitle, signText } = await import('../core/contrast/labels.ts');
     const { compareDatabase } = await import('../analysis/compare-runner.ts');
-    const { tryAppendLedger } = await import('../analysis/ledger.ts');
+    const { dataIdentityOf, tryAppendLedger } = await import('../analysis/ledger.ts');
     const { reportUserError } = await import('./user-errors.ts');
     const { partLine } = await import('../core/confirmation/methods-text.ts');
     const ledger = flags.ledger === false ? null : (flags.ledger ?? `${database}.ledger.jsonl`);
@@ -134,13 +138,13 @@ export function register(program: Command): void {
     bar?.stop();
     try {
       writeFileReplacing(flags.out, JSON.stringify(result, null, 2) + '\n');
-      if (flags.tsv) writeFileReplacing(flags.tsv, clustersTsv(result));
+      if (flags.tsv) writeFileReplacing(flags.tsv, clustersTsv(result, flags.singlePointClusters ?? false));
       if (flags.pointsTsv) writeFileReplacing(flags.pointsTsv, pointsTsv(result));
     } catch (e) {
       if (reportUserError('compare', e)) return;
       throw e;
     }
-    const ledgerWarning = ledger ? tryAppendLedger(ledger, database, result) : null;
+    const ledgerWarning = ledger ? tryAppendLedger(ledger, database, { ...result, data: await dataIdentityOf(database, result.database.runId) }) : null;
     const n = Object.entries(result.n)
       .map(([k, v]) => `${k} ${v}`)
       .join(', ');

@@ -43,6 +43,8 @@ export interface Flags {
   out: string;
   tsv?: string;
   pointsTsv?: string;
+  /** compare: list one-point clusters with p above the table's limit in --tsv */
+  singlePointClusters?: boolean;
   exclusions?: string;
   run?: string;
   ledger?: string | false;
@@ -199,7 +201,11 @@ export function addContrastOptions(command: Command, o: { bandMeasures: boolean 
     .option('--sessions <a,b>', 'paired design over two sessions of each subject', pair('--sessions'))
     .option('--session <label>', 'the session to use when subjects have several')
     .option('--covariate <name>', 'numeric participants column to correlate with (covariate design)')
-    .option('--nuisance <names>', 'numeric participants columns to adjust for (Freedman–Lane permutation), comma-separated', list)
+    .option(
+      '--nuisance <names>',
+      'participants columns to adjust for, comma-separated: numeric, or categorical (text, e.g. sex: k levels become k − 1 indicator columns against the first level in sort order); Freedman–Lane permutation',
+      list,
+    )
     .addOption(new Option('--stage <stage>', 'sleep stage (default: N2)').choices(['W', 'N1', 'N2', 'N3', 'R']))
     .addOption(new Option('--reference <ref>', 'reference of the spectra (default: recorded)').choices([...REFERENCES]))
     .addOption(new Option('--averaging <how>', 'epoch averaging of the spectra (default: mean)').choices(['mean', 'median']))

@@ -7,9 +7,10 @@ export function register(program: Command): void {
     .description(
       'Serves the dashboard and the database on 127.0.0.1 (never on other addresses) and prints the address to open ' +
         'in a browser. The browser reads the database with HTTP range requests; nothing is fetched from the ' +
-        'internet. The only writes are the workflow steps the "Split and plans" view offers (split, lock, confirm), ' +
-        'done as the commands of those names do them and recorded in the same ledger; --read-only turns them off. ' +
-        'Stop with Ctrl-C. A research tool, not a diagnostic device.',
+        "internet. The analyses run in the browser are recorded in the database's ledger (<database>.ledger.jsonl, the one the " +
+        'commands write), so the count of distinct analyses is one for both. The only writes to the database are the workflow ' +
+        'steps the "Split and plans" view offers (split, lock, confirm), done as the commands of those names do them and recorded ' +
+        'in the same ledger; --read-only turns them off. Stop with Ctrl-C. A research tool, not a diagnostic device.',
     )
     .argument('<database>', 'bandwise database file (.duckdb)')
     .option('--port <port>', 'port on 127.0.0.1 (default: a free port)', (v) => {

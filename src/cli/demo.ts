@@ -67,7 +67,7 @@ export function register(program: Command): void {
       const { AppNotBuiltError, dashboardAppDir, serveDashboard, waitForSignal } = await import('../server/launcher.ts');
       const { bandCheckDatabase } = await import('../analysis/band-check-runner.ts');
       const { writeReport } = await import('../analysis/write-report.ts');
-      const { appendLedger } = await import('../analysis/ledger.ts');
+      const { appendLedger, dataIdentityOf } = await import('../analysis/ledger.ts');
       if (flags.dashboard) {
         // say so before the long work, not after it
         try {
@@ -121,7 +121,7 @@ export function register(program: Command): void {
         const result = await compareDatabase(DEMO_DATABASE, parseContrast(d.contrast), []);
         const file = path.join(DEMO_RESULTS, `${d.name}.json`);
         writeFileSync(file, JSON.stringify(result, null, 2) + '\n');
-        appendLedger(`${DEMO_DATABASE}.ledger.jsonl`, DEMO_DATABASE, result);
+        appendLedger(`${DEMO_DATABASE}.ledger.jsonl`, DEMO_DATABASE, { ...result, data: await dataIdentityOf(DEMO_DATABASE, result.database.runId) });
         console.log(
           `\n${d.what}\n  n: ${Object.entries(result.n)
             .map(([k, v]) => `${k} ${v}`)
@@ -138,7 +138,12 @@ export function register(program: Command): void {
         const result = await bandCheckDatabase(DEMO_DATABASE, parseContrast(d.contrast), d.band, []);
         const file = path.join(DEMO_RESULTS, `${d.name}.json`);
         writeFileSync(file, JSON.stringify(result, null, 2) + '\n');
-        appendLedger(ledger, DEMO_DATABASE, { kind: result.kind, contrast: { ...result.contrast, band: result.band }, p: result.p });
+        appendLedger(ledger, DEMO_DATABASE, {
+          kind: result.kind,
+          contrast: { ...result.contrast, band: result.band },
+          p: result.p,
+          data: await dataIdentityOf(DEMO_DATABASE, result.database.runId),
+        });
         console.log(`\n${d.what}: ${result.verdict}\n  ${result.sentence}`);
       }
       const report = path.join(DEMO_RESULTS, 'n2-sigma-band-check-methods.md');

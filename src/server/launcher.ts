@@ -26,13 +26,15 @@ export function dashboardAppDir(): string {
 }
 
 /**
- * Serves the app and the database; unless read-only, the workflow's steps (split, lock, confirm)
- * may also be taken from the dashboard, recorded in the ledger beside the database as the commands do.
+ * Serves the app and the database. The browser's analyses go to the database's ledger (default
+ * <database>.ledger.jsonl, as the commands), and unless read-only the workflow's steps (split,
+ * lock, confirm) may be taken from the dashboard, recorded in the same ledger.
  */
-export async function serveDashboard(dbPath: string, port?: number, o: { readOnly?: boolean } = {}) {
+export async function serveDashboard(dbPath: string, port?: number, o: { readOnly?: boolean; ledgerPath?: string } = {}) {
   if (!existsSync(dbPath)) throw new Error(`no database at ${dbPath}`);
   const db = path.resolve(dbPath);
-  return startDashboardServer({ dbPath: db, appDir: dashboardAppDir(), port, api: o.readOnly ? undefined : workflowApi(db, `${db}.ledger.jsonl`) });
+  const ledgerPath = path.resolve(o.ledgerPath ?? `${dbPath}.ledger.jsonl`);
+  return startDashboardServer({ dbPath: db, appDir: dashboardAppDir(), port, ledgerPath, api: o.readOnly ? undefined : workflowApi(db, ledgerPath) });
 }
 
 /** Resolves on Ctrl-C (SIGINT) or SIGTERM: the end of serving. */

@@ -5,18 +5,22 @@
 // served answers 404, other methods 405. With a handler for the workflow's steps (workflow-api.ts),
 // POST /api/<step> takes a JSON body from the app's own page only (its Origin, when sent, must be
 // this server's; Content-Type application/json, which a form on another site cannot send without
-// asking first; at most 1 MiB) and answers JSON.
+// asking first; at most 1 MiB) and answers JSON. The database's ledger is read and appended to at LEDGER_URL_PATH, under the
+// same origin rule for appending.
 import { createReadStream } from 'node:fs';
 import { realpath, stat } from 'node:fs/promises';
 import http from 'node:http';
 import path from 'node:path';
 import { pipeline } from 'node:stream/promises';
 import { cookieValues, cookieName, isToken, newToken, tokenCookie, tokenParameters, withoutTokenParameter, withoutTokenValue } from './access-token.ts';
+import { ledgerRoute } from './ledger-route.ts';
 import { parseRange } from './range.ts';
 import { requestSegments, resolveInside } from './safe-path.ts';
 
 /** The one URL path under which the database file is served. */
 export const DATABASE_URL_PATH = '/data/cohort.duckdb';
+/** The ledger beside the database: GET reads it (JSON lines), POST appends one analysis (ledger-route.ts). */
+export const LEDGER_URL_PATH = '/data/ledger.jsonl';
 
 export interface RequestLogEntry {
   method: string;
@@ -46,6 +50,8 @@ export interface DashboardServerOptions {
   dbPath: string;
   /** Folder of the built app (holds index.html). */
   appDir: string;
+  /** The database's ledger file (JSON lines); absent: no ledger is served and the browser keeps its own count. */
+  ledgerPath?: string;
   /** TCP port; 0 or absent picks a free one. */
   port?: number;
   /** Called once per answered request. */
@@ -196,6 +202,15 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
       return;
     }
     const method = req.method ?? '';
+    if (pathOnly === LEDGER_URL_PATH && options.ledgerPath !== undefined) {
+      if (method === 'POST' && !fromOwnOrigin(req)) {
+        send(res, req, 403, 'forbidden origin');
+        return;
+      }
+      const answer = await ledgerRoute(req, options.ledgerPath, path.basename(dbFile));
+      send(res, req, answer.status, answer.text, answer.headers);
+      return;
+    }
     if (pathOnly.startsWith('/api/')) {
       await answerApi(req, res, pathOnly.slice('/api/'.length));
       return;
@@ -245,6 +260,12 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
     log(req, status, body.length);
   }
 
+  /** A request that names no origin (curl) or this server's own: never another site's page. */
+  function fromOwnOrigin(req: http.IncomingMessage): boolean {
+    const origin = req.headers.origin;
+    return origin === undefined || allowedHosts.has(origin.replace(/^http:\/\//, ''));
+  }
+
   async function answerApi(req: http.IncomingMessage, res: http.ServerResponse, route: string): Promise<void> {
     if (req.method !== 'POST') {
       send(res, req, 405, 'method not allowed', { Allow: 'POST' });
@@ -254,8 +275,7 @@ export async function startDashboardServer(options: DashboardServerOptions): Pro
       sendJson(res, req, 405, { error: 'this dashboard was started read-only (bandwise dashboard --read-only): run the step from the command line' });
       return;
     }
-    const origin = req.headers.origin;
-    if (origin !== undefined && !allowedHosts.has(origin.replace(/^http:\/\//, ''))) {
+    if (!fromOwnOrigin(req)) {
       send(res, req, 403, 'forbidden origin');
       return;
     }

@@ -8,7 +8,7 @@ import type { ContrastData, SpectrumRow } from '../../src/core/contrast/data.ts'
 import { Random } from '../../src/core/stats/random.ts';
 import { methodsReport } from '../../src/core/report/index.ts';
 import { statisticMapPlot, statisticMapTitle } from '../../src/dashboard/views/contrast/contrast-charts.ts';
-import { clusterRows } from '../../src/dashboard/views/contrast/contrast-data.ts';
+import { clusterTable } from '../../src/core/contrast/cluster-table.ts';
 
 const CHANNELS = ['C3', 'C4'];
 const STEP = 0.5;
@@ -55,7 +55,7 @@ describe('labels of a paired contrast (N3 − N2)', () => {
     const bar = (statisticMapPlot(r).color as { label: string }).label;
     expect(bar).toBe('paired t, N3 − N2');
     expect(statisticMapTitle(r)).toBe('Statistic over channels and frequencies: N3 − N2, paired');
-    expect(clusterRows(r)[0].direction).toBe('N3 > N2');
+    expect(clusterTable(r, { singlePoints: true }).rows[0].direction).toBe('N3 > N2');
     const text = methodsReport(r, null, null).markdown;
     expect(text).toMatch(/positive cluster \(N3 > N2\), 1–4 Hz/);
     expect(`${bar} ${statisticMapTitle(r)} ${text}`).not.toMatch(/patient|control/);
@@ -71,7 +71,7 @@ describe('labels of a covariate contrast (age)', () => {
     expect(best.fminHz).toBeGreaterThanOrEqual(11.5);
     expect((statisticMapPlot(r).color as { label: string }).label).toBe('correlation with age, shown as t (from Pearson r)');
     expect(statisticMapTitle(r)).toBe('Statistic over channels and frequencies: N2, correlation with age');
-    expect(clusterRows(r)[0].direction).toBe('rises with age');
+    expect(clusterTable(r, { singlePoints: true }).rows[0].direction).toBe('rises with age');
     expect(methodsReport(r, null, null).markdown).toMatch(/positive cluster \(rises with age\), 1[12]/);
   });
 });

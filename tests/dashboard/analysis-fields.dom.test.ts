@@ -6,12 +6,15 @@ import { fireEvent, render, screen } from '@testing-library/svelte';
 import { tick } from 'svelte';
 import { beforeEach, describe, expect, it, vi } from 'vitest';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
+import { ledgerEntry } from '../../src/core/report/ledger.ts';
 import { DEFAULT_BANDS, SIGMA_PRESETS } from '../../src/core/spectrum/bands.ts';
 import AnalysisHead from '../../src/dashboard/analysis/AnalysisHead.svelte';
 import { AnalysisForm } from '../../src/dashboard/analysis/analysis-form.svelte.ts';
 import { AnalysisRun, type Progress } from '../../src/dashboard/analysis/analysis-run.svelte.ts';
 import BandFields from '../../src/dashboard/analysis/BandFields.svelte';
 import DesignFields from '../../src/dashboard/analysis/DesignFields.svelte';
+import NuisanceFields from '../../src/dashboard/analysis/NuisanceFields.svelte';
+import { contrastFromParams } from '../../src/dashboard/analysis/contrast-params.ts';
 import type { FormChoices } from '../../src/dashboard/analysis/form-choices.ts';
 import RunControls from '../../src/dashboard/analysis/RunControls.svelte';
 import StatisticsFields from '../../src/dashboard/analysis/StatisticsFields.svelte';
@@ -50,6 +53,21 @@ function formAt(hash: string, choices: FormChoices | null = CHOICES): AnalysisFo
 
 const field = (id: string) => screen.getByTestId(id) as HTMLInputElement | HTMLSelectElement;
 const params = () => router.route.params;
+
+describe('NuisanceFields', () => {
+  it('offers the participants columns but the group column, writes the picked ones as "nuisance", and parses into the contrast', async () => {
+    const form = formAt('#/contrast?design=groups&groups=control,patient&run=1');
+    render(NuisanceFields, { form, testPrefix: 'c' });
+    expect(screen.queryByTestId('c-nuisance-group')).toBeNull();
+    await fireEvent.click(field('c-nuisance-site'));
+    await fireEvent.click(field('c-nuisance-age'));
+    expect(params()).toMatchObject({ nuisance: 'site,age' });
+    expect(params().run).toBeUndefined();
+    expect(contrastFromParams(form.values).nuisance).toEqual(['site', 'age']);
+    await fireEvent.click(field('c-nuisance-site'));
+    expect(params().nuisance).toBe('age');
+  });
+});
 
 describe('DesignFields', () => {
   it('opens a new analysis on the command line’s defaults: two groups of `group`, N2, the recorded reference, mean over epochs, all channels', () => {
@@ -191,20 +209,27 @@ describe('AnalysisHead', () => {
     notes.ledger = [];
   });
 
-  it('shows one ledger count for every view: compare and band-check entries, significant below p 0.05', async () => {
+  it('shows one count of distinct analyses for every view, significant below p 0.05, and which ledger holds it', async () => {
     render(AnalysisHead, { title: 'Band check' });
     expect(screen.getByRole('heading').textContent).toBe('Band check');
-    const entry = (kind: string | undefined, smallestP: number | null) => ({
-      time: '2026-01-01T00:00:00Z',
-      ...(kind ? { kind } : {}),
-      contrast: {},
-      smallestP,
-      n: {},
-      exclusions: 0,
-    });
-    notes.ledger = [entry(undefined, 0.01), entry('compare', 0.2), entry('band-check', 0.049), entry('band-check', null)];
+    const entry = (kind: string, seed: number, p: number | null) => ledgerEntry({ kind, contrast: { seed }, p }, 'cohort.duckdb', 'd', '2026-01-01T00:00:00Z');
+    notes.name = 'cohort.duckdb';
+    // a reload ran the first contrast again: one analysis
+    notes.ledger = [
+      entry('compare', 1, 0.01),
+      entry('compare', 1, 0.01),
+      entry('compare', 2, 0.2),
+      entry('band-check', 1, 0.049),
+      entry('band-check', 2, null),
+    ];
+    notes.shared = true;
     await tick();
-    expect(screen.getByTestId('ledger-count').textContent).toBe('Analyses run on this database: 4, significant: 2');
+    expect(screen.getByTestId('ledger-count').textContent).toBe(
+      'Distinct analyses run on this database: 4 (2 compare, 2 band-check), significant: 2 (ledger beside the database, shared with the command line)',
+    );
+    notes.shared = false;
+    await tick();
+    expect(screen.getByTestId('ledger-count').textContent).toContain("(this browser's own ledger: the one beside the database cannot be reached)");
   });
 });
 

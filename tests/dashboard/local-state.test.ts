@@ -4,8 +4,17 @@
 import { describe, expect, it } from 'vitest';
 import { exclusionsToTsv, parseExclusionsTsv } from '../../src/core/contrast/exclusions.ts';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
-import { browserLedgerCounts } from '../../src/dashboard/db/ledger-report.ts';
-import { appendLedger, databaseKey, loadExclusions, loadLedger, saveExclusions, withExclusion, withoutExclusion } from '../../src/dashboard/db/local-store.ts';
+import { ledgerCounts, ledgerEntry } from '../../src/core/report/ledger.ts';
+import {
+  appendLedger,
+  databaseKey,
+  loadExclusions,
+  loadLedger,
+  saveExclusions,
+  saveLedger,
+  withExclusion,
+  withoutExclusion,
+} from '../../src/dashboard/db/local-store.ts';
 import type { RunInfo } from '../../src/queries/runs.ts';
 import { formatHash, parseHash } from '../../src/dashboard/routes.ts';
 import { contrastFileText, contrastFromParams, paramsFromContrast } from '../../src/dashboard/analysis/contrast-params.ts';
@@ -47,10 +56,24 @@ describe('per-database lists in browser storage', () => {
     expect(() => loadExclusions(store, 'bad')).toThrow(/bad:exclusions/);
   });
 
-  it('counts analyses run and those with a smallest p below 0.05', () => {
+  it("keeps this browser's ledger lines; lines kept before identities were read as contrasts and counted by contrast", () => {
     const store = new MemoryStore();
-    for (const p of [0.01, 0.2, null, 0.049]) appendLedger(store, 'k', { time: '2026-01-01T00:00:00Z', contrast: {}, smallestP: p, n: {}, exclusions: 0 });
-    expect(browserLedgerCounts(loadLedger(store, 'k'))).toEqual({ analyses: 4, significant: 2, byKind: { compare: 4 } });
+    // as an earlier version stored them: a reload ran the same contrast again
+    const older = [0.01, 0.01, 0.2, null].map((p, i) => ({
+      time: '2026-01-01T00:00:00Z',
+      contrast: { seed: i === 1 ? 0 : i },
+      smallestP: p,
+      n: {},
+      exclusions: 0,
+    }));
+    store.setItem('k:ledger', JSON.stringify(older));
+    const list = loadLedger(store, 'k', 'cohort.duckdb');
+    expect(list[0]).toEqual({ time: '2026-01-01T00:00:00Z', database: 'cohort.duckdb', kind: 'compare', contrast: { seed: 0 }, p: 0.01, significant: true });
+    expect(ledgerCounts(list, 'cohort.duckdb')).toEqual({ analyses: 3, significant: 1, byKind: { compare: 3 }, repeats: 1 });
+    const entry = ledgerEntry({ kind: 'compare', contrast: { seed: 9 }, p: 0.3 }, 'cohort.duckdb', 'd', '2026-01-02T00:00:00Z');
+    expect(appendLedger(store, 'k', entry)).toHaveLength(5);
+    saveLedger(store, 'k', []);
+    expect(loadLedger(store, 'k', 'cohort.duckdb')).toEqual([]);
   });
 });
 

@@ -5,7 +5,7 @@
 // src/core/report's ledgerCounts, the band check's ledger entry, and the result-file checks.
 import { describe, expect, it } from 'vitest';
 import { parseContrast } from '../../src/core/contrast/spec.ts';
-import { ledgerCounts } from '../../src/core/report/index.ts';
+import { analysisKey, ledgerCounts, ledgerEntry } from '../../src/core/report/index.ts';
 import {
   bonferroni,
   defaultPathChoices,
@@ -15,8 +15,7 @@ import {
   type PathResult,
   type SpecificationCurve,
 } from '../../src/core/verdict/index.ts';
-import { bandCheckLedgerEntry, browserLedgerCounts, entryKind } from '../../src/dashboard/db/ledger-report.ts';
-import type { LedgerEntry } from '../../src/dashboard/db/local-store.ts';
+import { bandCheckLedgerInput } from '../../src/dashboard/db/ledger-report.ts';
 import { bandFromParams, withEdges } from '../../src/dashboard/analysis/band-text.ts';
 import { bandCheckFromParams, paramsFromBandCheck } from '../../src/dashboard/views/band-check/band-check-params.ts';
 import { EFFECTS, effectRows, familyText, peakCentreText, periodicKindText } from '../../src/dashboard/views/band-check/band-check-data.ts';
@@ -340,25 +339,13 @@ describe('band check table and ledger', () => {
     );
   });
 
-  it('browser ledger counts equal src/core/report ledgerCounts; a band check entry records its band and adjusted p', () => {
-    const entry = bandCheckLedgerEntry(fakeResult(), 2, '2026-01-01T00:00:00.000Z');
-    expect(entry).toEqual({
-      time: '2026-01-01T00:00:00.000Z',
-      kind: 'band-check',
-      contrast: { ...contrast, band: sigma },
-      smallestP: 0.008,
-      n: { control: 10, patient: 10 },
-      exclusions: 2,
-    });
-    const contrastEntry = (p: number | null): LedgerEntry => ({ time: 'x', contrast, smallestP: p, n: {}, exclusions: 0 });
-    const list: LedgerEntry[] = [contrastEntry(0.001), contrastEntry(null), contrastEntry(0.05), entry];
-    expect(list.map(entryKind)).toEqual(['compare', 'compare', 'compare', 'band-check']);
-    const core = ledgerCounts(
-      list.map((e) => ({ database: 'd', kind: entryKind(e), significant: e.smallestP !== null && e.smallestP < 0.05 })),
-      'd',
-    );
-    expect(browserLedgerCounts(list)).toEqual(core);
-    expect(core).toEqual({ analyses: 4, significant: 2, byKind: { compare: 3, 'band-check': 1 } });
+  it('a band check gives the ledger its contrast with the band and its adjusted p; counted like the command line', () => {
+    const input = bandCheckLedgerInput(fakeResult());
+    expect(input).toEqual({ kind: 'band-check', contrast: { ...contrast, band: sigma }, p: 0.008 });
+    const entry = ledgerEntry(input, 'cohort.duckdb', 'data1', '2026-01-01T00:00:00.000Z');
+    // the command line records a band check as { ...result.contrast, band } (src/cli/band-check.ts): same identity
+    expect(entry.key).toBe(analysisKey('band-check', { ...contrast, band: sigma }, null, 'data1'));
+    expect(ledgerCounts([entry, entry], 'cohort.duckdb')).toEqual({ analyses: 1, significant: 1, byKind: { 'band-check': 1 }, repeats: 1 });
   });
 });
 

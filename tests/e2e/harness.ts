@@ -46,12 +46,16 @@ export interface DashboardSession {
 
 const LOCAL_SCHEMES = new Set(['blob:', 'data:', 'about:']);
 
-/** Serve `appDir` with `dbPath` (and the workflow's write steps when `api` is given), open a fresh chromium profile on it. */
-export async function openDashboard(appDir: string, dbPath: string, api?: ApiHandler): Promise<DashboardSession> {
+/**
+ * Serve `appDir` with `dbPath`, open a fresh chromium profile on it. `ledgerPath`: the ledger the
+ * server keeps beside the database (as `bandwise dashboard` does; absent, none); `api`: the
+ * workflow's write steps (absent, read-only).
+ */
+export async function openDashboard(appDir: string, dbPath: string, o: { ledgerPath?: string; api?: ApiHandler } = {}): Promise<DashboardSession> {
   const requests: RequestLogEntry[] = [];
   const consoleErrors: string[] = [];
   const foreignRequests: string[] = [];
-  const server = await startDashboardServer({ dbPath, appDir, api, onRequest: (e) => requests.push(e) });
+  const server = await startDashboardServer({ dbPath, appDir, ledgerPath: o.ledgerPath, api: o.api, onRequest: (e) => requests.push(e) });
   const profile = mkdtempSync(path.join(os.tmpdir(), 'bandwise-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: CHROMIUM,

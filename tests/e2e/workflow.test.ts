@@ -63,7 +63,7 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
       await store.close();
     }
     await buildDashboard(path.join(dir, 'app'));
-    s = await openDashboard(path.join(dir, 'app'), db, workflowApi(db, path.join(dir, 'ledger.jsonl')));
+    s = await openDashboard(path.join(dir, 'app'), db, { ledgerPath: path.join(dir, 'ledger.jsonl'), api: workflowApi(db, path.join(dir, 'ledger.jsonl')) });
     mkdirSync(OUTPUT, { recursive: true });
   });
 

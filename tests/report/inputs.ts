@@ -46,7 +46,7 @@ export const FACTS: DatabaseFacts = {
   warnings: { byStep: { channels: 2, read: 3, scoring: 4 }, recordingsByStatus: { ok: 35, 'ok-with-warnings': 2, 'partial-data': 1, 'partial-scoring': 2 } },
 };
 
-export const LEDGER: LedgerCounts = { analyses: 7, significant: 3, byKind: { compare: 5, 'band-check': 2 } };
+export const LEDGER: LedgerCounts = { analyses: 7, significant: 3, byKind: { compare: 5, 'band-check': 2 }, repeats: 0 };
 
 export function fixedResults() {
   const contrast = parseContrast(CONTRAST_JSON);

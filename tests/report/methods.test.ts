@@ -7,7 +7,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { methodsReport, ingestParameterFacts, ledgerCounts, ReportInputError } from '../../src/core/report/index.ts';
+import { methodsReport, ingestParameterFacts, ReportInputError } from '../../src/core/report/index.ts';
 import { CONTRAST_JSON, FACTS, LEDGER, fixedResults } from './inputs.ts';
 import { compare } from '../../src/core/contrast/run.ts';
 import { bandCheck } from '../../src/core/verdict/index.ts';
@@ -65,7 +65,7 @@ describe('methods report', () => {
     // frequency resolution 1/segment length (Welch 1967): 1/4 s = 0.25 Hz
     expect(text).toContain('4-s Hann-windowed segments overlapping by 50 %');
     expect(text).toContain('the frequency resolution is 0.25 Hz');
-    expect(text).toContain('records 7 analyses (5 compare, 2 band-check), of which 3 had p < 0.05');
+    expect(text).toContain('records 7 distinct analyses (5 compare, 2 band-check; each path of a robustness run counts as one), of which 3 had p < 0.05');
     expect(text).toContain('fitted over 1–40 Hz for every subject');
     expect(text).toContain(check.sentence);
     expect(text).toContain('research tool');
@@ -128,15 +128,5 @@ describe('methods report', () => {
     const broken = { ...(FACTS.ingestParameters as Record<string, unknown>), segmentS: undefined };
     expect(() => ingestParameterFacts(broken)).toThrow(ReportInputError);
     expect(() => ingestParameterFacts(broken)).toThrow(/segmentS/);
-  });
-
-  it('counts only analyses of the same database in the ledger', () => {
-    const entries = [
-      { database: 'a.duckdb', kind: 'compare', significant: true },
-      { database: 'a.duckdb', kind: 'band-check', significant: false },
-      { database: 'a.duckdb', kind: 'report', significant: false },
-      { database: 'b.duckdb', kind: 'compare', significant: true },
-    ];
-    expect(ledgerCounts(entries, 'a.duckdb')).toEqual({ analyses: 2, significant: 1, byKind: { compare: 1, 'band-check': 1 } });
   });
 });

@@ -3,6 +3,7 @@
  * part (and which are left out, with the reason), the measure per subject × channel × point, and
  * the design. Pure; shared by the command line and the dashboard's worker.
  */
+import { frontToBack, storedPositionOf } from '../montage/channel-order.ts';
 import { INDIVIDUAL_BAND_MEASURES, type Contrast } from './spec.ts';
 import type { AperiodicRow, ContrastData, Exclusion, PeakRow, SpectrumRow } from './data.ts';
 import { contrastConditions } from './conditions.ts';
@@ -12,7 +13,8 @@ import type { Band } from '../spectrum/bands.ts';
 import { mixedRecordedReferences } from './recorded-references.ts';
 import { ContrastDataError } from './data-error.ts';
 import { channelLayout, type ChannelLayout } from './channel-layout.ts';
-import { checkColumns, checkEnoughSubjects, checkNuisanceVaries } from './participant-checks.ts';
+import { checkColumns, checkEnoughSubjects } from './participant-checks.ts';
+import { checkCollinearity, nuisanceModel, type NuisanceValue } from './nuisance-coding.ts';
 import type { PermutationTestInput, Design } from '../stats/index.ts';
 import type { Stage } from '../stages.ts';
 
@@ -82,8 +84,11 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
     peaks.get(k)!.push(p);
   }
 
-  // channels: those asked for, or every channel stored for this stage
-  const stored = [...new Set(data.spectra.rows.filter((r) => conds.some((d) => d.stage === r.stage)).map((r) => r.channel))];
+  // channels: those asked for, or every channel stored for this stage, front to back, then left to right
+  const stored = frontToBack(
+    [...new Set(data.spectra.rows.filter((r) => conds.some((d) => d.stage === r.stage)).map((r) => r.channel))],
+    storedPositionOf(data.positions ?? []),
+  );
   const channels = c.channels === 'all' ? stored : c.channels;
   for (const ch of channels)
     if (!stored.includes(ch))
@@ -114,7 +119,7 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
   // (src/core/stats/missing.ts: two groups without nuisance covariates, paired); elsewhere the subject is left out
   const missingOk = c.design === 'paired' || (c.design === 'groups' && c.nuisance.length === 0 && c.statistic !== 'linear-model-t');
   const stageOf = (e: Exclusion) => (e.stage ? { stage: e.stage } : {});
-  const candidates: { subject: string; group: string | null; covariate: number | null; nuisance: number[]; channelsOut: Exclusion[] }[] = [];
+  const candidates: { subject: string; group: string | null; covariate: number | null; nuisance: NuisanceValue[]; channelsOut: Exclusion[] }[] = [];
   for (const subject of [...sessionsOf.keys()].sort()) {
     const p = participants.get(subject);
     let group: string | null = null;
@@ -132,15 +137,16 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
       }
       covariate = v;
     }
-    const nuisance: number[] = [];
+    // a number, or a level of a categorical covariate (text: dummy-coded in nuisance-coding.ts)
+    const nuisance: NuisanceValue[] = [];
     let missingNuisance: string | null = null;
     for (const name of c.nuisance) {
       const v = p?.[name];
-      if (typeof v === 'number' && Number.isFinite(v)) nuisance.push(v);
+      if ((typeof v === 'number' && Number.isFinite(v)) || (typeof v === 'string' && v.trim() !== '')) nuisance.push(v);
       else missingNuisance ??= name;
     }
     if (missingNuisance) {
-      excluded.push({ subject, channel: null, reason: `no numeric value of nuisance covariate ${missingNuisance}` });
+      excluded.push({ subject, channel: null, reason: `no value of nuisance covariate ${missingNuisance}` });
       continue;
     }
     const own = userExcluded.get(subject) ?? [];
@@ -264,7 +270,13 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
   }
 
   checkEnoughSubjects(c, kept, excluded);
-  checkNuisanceVaries(c, kept);
+  const nuisance = c.design === 'paired' ? [] : nuisanceModel(c.nuisance, kept);
+  if (nuisance.length > 0)
+    checkCollinearity(
+      nuisance,
+      c.design === 'groups' ? kept.map((k) => (k.group === c.groups![1] ? 1 : 0)) : kept.map((k) => k.covariate!),
+      c.design === 'groups' ? `the group (${c.groupColumn})` : `the covariate ${c.covariate}`,
+    );
   const n = kept.length;
   const data0 = matrices[0].subarray(0, n * width);
   let design: Design;
@@ -274,12 +286,12 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
     const group = kept.map((k) => (k.group === g1 ? 1 : 0));
     nPerGroup[g0] = group.filter((g) => g === 0).length;
     nPerGroup[g1] = group.filter((g) => g === 1).length;
-    design = { kind: 'groups', group, groupNames: [g0, g1], nuisance: nuisanceColumns(c, kept) };
+    design = { kind: 'groups', group, groupNames: [g0, g1], nuisance: nuisance.map((x) => x.column) };
   } else if (c.design === 'paired') {
     design = { kind: 'paired', second: matrices[1].subarray(0, n * width), conditionNames: [conds[0].name, conds[1].name] };
     nPerGroup.pairs = n;
   } else {
-    design = { kind: 'covariate', covariate: kept.map((k) => k.covariate!), covariateName: c.covariate, nuisance: nuisanceColumns(c, kept) };
+    design = { kind: 'covariate', covariate: kept.map((k) => k.covariate!), covariateName: c.covariate, nuisance: nuisance.map((x) => x.column) };
     nPerGroup.subjects = n;
   }
   if (design.kind !== 'paired' && design.nuisance && design.nuisance.length === 0) delete design.nuisance;
@@ -309,8 +321,4 @@ export function assembleContrast(c: Contrast, data: ContrastData, bandsFor?: Ban
     individualCentres,
     channelLayout: channelLayoutOfPoints,
   };
-}
-
-function nuisanceColumns(c: Contrast, kept: { nuisance: number[] }[]): { name: string; values: number[] }[] {
-  return c.nuisance.map((name, i) => ({ name, values: kept.map((k) => k.nuisance[i]) }));
 }

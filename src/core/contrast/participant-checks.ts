@@ -36,7 +36,7 @@ function requireNumeric(participants: Participants, name: string, role: string):
   }
 }
 
-/** The group column holds both groups; the covariate and the nuisance covariates are numeric columns. */
+/** The group column holds both groups; the covariate is a numeric column; the nuisance covariates are columns. */
 export function checkColumns(c: Contrast, participants: Participants): void {
   if (c.design === 'groups') {
     requireColumn(participants, c.groupColumn, 'group column');
@@ -53,7 +53,8 @@ export function checkColumns(c: Contrast, participants: Participants): void {
     }
   }
   if (c.design === 'covariate' && c.covariate) requireNumeric(participants, c.covariate, 'covariate');
-  if (c.design !== 'paired') for (const name of c.nuisance) requireNumeric(participants, name, 'nuisance covariate');
+  // a nuisance covariate may be numeric or categorical (text levels, dummy-coded: nuisance-coding.ts)
+  if (c.design !== 'paired') for (const name of c.nuisance) requireColumn(participants, name, 'nuisance covariate');
 }
 
 /** Enough subjects left (2 per group; 3 for a covariate or paired design), or who was left out and why. */
@@ -67,17 +68,4 @@ export function checkEnoughSubjects(c: Contrast, kept: readonly { group: string 
   const named = excluded.slice(0, NAMED).map((e) => `${e.subject} (${e.reason})`);
   if (excluded.length > NAMED) named.push(`and ${excluded.length - NAMED} more`);
   throw new ContrastDataError(`too few subjects: ${shortfall}; left out: ${named.join(', ') || 'none'}`);
-}
-
-/** A nuisance covariate with one value for every subject left cannot be adjusted for. */
-export function checkNuisanceVaries(c: Contrast, kept: readonly { nuisance: number[] }[]): void {
-  if (c.design === 'paired' || kept.length === 0) return;
-  c.nuisance.forEach((name, i) => {
-    const first = kept[0].nuisance[i];
-    if (kept.every((k) => k.nuisance[i] === first)) {
-      throw new ContrastDataError(
-        `nuisance covariate ${name} has the same value (${first}) for all ${kept.length} subjects: it cannot be adjusted for; leave it out`,
-      );
-    }
-  });
 }

@@ -69,7 +69,7 @@ export const contrastSchema = z
     /** which session to use when subjects have several and the design is not over sessions */
     session: z.string().optional(),
     covariate: z.string().optional(),
-    /** nuisance covariates (numeric participants columns; Freedman–Lane permutation) */
+    /** nuisance covariates: participants columns, numeric or categorical (text levels, k − 1 indicator columns); Freedman–Lane permutation */
     nuisance: z.array(z.string()).default([]),
     stage: stage.default('N2'),
     reference: z.enum(REFERENCES).default('recorded'),

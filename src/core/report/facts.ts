@@ -67,13 +67,6 @@ export interface WarningFacts {
   recordingsByStatus: Record<string, number>;
 }
 
-export interface LedgerCounts {
-  /** analyses (compare, band check) recorded for this database */
-  analyses: number;
-  significant: number;
-  byKind: Record<string, number>;
-}
-
 export class ReportInputError extends Error {
   override name = 'ReportInputError';
 }
@@ -112,12 +105,4 @@ export function ingestParameterFacts(p: unknown): IngestParameterFacts {
 function multitaperFacts(v: unknown): IngestParameterFacts['multitaper'] {
   const m = v as Record<string, unknown> | undefined;
   return m && isNum(m.nw) && isNum(m.k) ? { nw: m.nw, k: m.k } : null;
-}
-
-/** Counts a ledger's analyses for one database file name (reports are not analyses). */
-export function ledgerCounts(entries: readonly { database: string; kind: string; significant: boolean }[], database: string): LedgerCounts {
-  const own = entries.filter((e) => e.database === database && (e.kind === 'compare' || e.kind === 'band-check'));
-  const byKind: Record<string, number> = {};
-  for (const e of own) byKind[e.kind] = (byKind[e.kind] ?? 0) + 1;
-  return { analyses: own.length, significant: own.filter((e) => e.significant).length, byKind };
 }

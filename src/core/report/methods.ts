@@ -12,7 +12,8 @@ import type { Exclusion } from '../contrast/data.ts';
 import type { BandCheckResult } from '../verdict/band-check.ts';
 import type { ScalarTest } from '../verdict/scalar-test.ts';
 import { fmt } from '../verdict/rules.ts';
-import { ingestParameterFacts, ReportInputError, type DatabaseFacts, type IngestParameterFacts, type LedgerCounts } from './facts.ts';
+import { ingestParameterFacts, ReportInputError, type DatabaseFacts, type IngestParameterFacts } from './facts.ts';
+import type { LedgerCounts } from './ledger.ts';
 import { REFERENCE_LIST, type ReferenceKey } from './references.ts';
 import { derivationText, warningText } from './data-text.ts';
 import { outlierRate } from '../quality/outlier-limit.ts';
@@ -393,9 +394,16 @@ function bandResults(r: BandCheckResult): string {
 function ledgerSection(l: LedgerCounts | null): string {
   if (!l) return 'No ledger was given, so the number of analyses run on this database is not known.';
   const kinds = Object.entries(l.byKind)
-    .map(([k, v]) => `${v} ${k}`)
+    .map(([k, v]) => `${v} ${k === 'robustness' ? `robustness path${v === 1 ? '' : 's'}` : k}`)
     .join(', ');
-  return `The ledger of this database records ${l.analyses} analys${l.analyses === 1 ? 'is' : 'es'} (${kinds || 'none'}), of which ${l.significant} had p < 0.05. A result chosen from many analyses overstates the evidence; weigh this one against that count.`;
+  const repeats =
+    l.repeats > 0
+      ? ` ${l.repeats} further run${l.repeats === 1 ? '' : 's'} repeated an analysis already counted (same contrast, exclusions and data) and ${l.repeats === 1 ? 'is' : 'are'} not counted again.`
+      : '';
+  return (
+    `${l.browserOnly ? "This browser's own ledger of this database (the ledger beside the database could not be reached, so analyses run elsewhere are not in it)" : 'The ledger of this database'} records ${l.analyses} distinct analys${l.analyses === 1 ? 'is' : 'es'} (${kinds || 'none'}; each path of a robustness run counts as one), ` +
+    `of which ${l.significant} had p < 0.05.${repeats} A result chosen from many analyses overstates the evidence; weigh this one against that count.`
+  );
 }
 
 /** The contrast's keys and values, one per line, as set for this analysis. */

@@ -7,7 +7,8 @@
 import type { CompareResult } from '../contrast/run.ts';
 import { designTitle, signText, statisticLabel } from '../contrast/labels.ts';
 import type { BandCheckResult } from '../verdict/band-check.ts';
-import { ingestParameterFacts, type DatabaseFacts, type LedgerCounts } from './facts.ts';
+import { ingestParameterFacts, type DatabaseFacts } from './facts.ts';
+import type { LedgerCounts } from './ledger.ts';
 import type { ReportableResult } from './methods.ts';
 
 /** Findings at or below this p enter the results sentence (the family's Bonferroni threshold for a band check). */
@@ -124,7 +125,9 @@ export function shortMethods(r: ReportableResult, facts: DatabaseFacts | null, l
   const isBand = r.kind === 'band-check';
   const stats = isBand ? bandStatistics(r as BandCheckResult) : compareStatistics(r as CompareResult);
   const result = isBand ? bandResultSentence(r as BandCheckResult) : compareResultSentence(r as CompareResult);
-  const count = ledger ? ` It was one of ${ledger.analyses} analyses run on this database (${ledger.significant} with p < 0.05).` : '';
+  const count = ledger
+    ? ` It was one of ${ledger.analyses} distinct analyses recorded for this database (${ledger.significant} with p < 0.05)${ledger.browserOnly ? ', as counted by one browser' : ''}.`
+    : '';
   return `${dataSentence(r, facts)} ${spectraSentence(r, facts)} ${stats}${count} bandwise is a research tool, not a diagnostic device.\n\n${result}\n`;
 }
 

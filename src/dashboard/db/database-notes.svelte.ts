@@ -1,23 +1,55 @@
-// The open database's exclusion list and contrast ledger, kept in browser storage
-// (db/local-store.ts) and shared by the quality screen and every contrast.
+// The open database's exclusion list (browser storage, db/local-store.ts) and its ledger: the one
+// beside the database when the dashboard server keeps it (db/shared-ledger.ts; this browser's
+// earlier lines are merged into it), else this browser's own, and the views say which.
 import type { Exclusion } from '../../core/contrast/data.ts';
 import { exclusionsToTsv, parseExclusionsTsv } from '../../core/contrast/exclusions.ts';
-import { appendLedger, databaseKey, loadExclusions, loadLedger, saveExclusions, withExclusion, withoutExclusion, type LedgerEntry } from './local-store.ts';
-import { browserLedgerCounts } from './ledger-report.ts';
-import type { RunInfo } from '../../queries/runs.ts';
+import { ledgerCounts, ledgerEntry, type LedgerEntry, type LedgerInput } from '../../core/report/ledger.ts';
+import type { SqlClient } from '../../queries/client.ts';
+import { runDataIdentity } from '../../queries/data-identity.ts';
+import { chooseRun, type RunInfo } from '../../queries/runs.ts';
+import { appendLedger, saveLedger, databaseKey, loadExclusions, loadLedger, saveExclusions, withExclusion, withoutExclusion } from './local-store.ts';
+import { postSharedLedger, readSharedLedger, sharedLedgerUrl } from './shared-ledger.ts';
 
 export class DatabaseNotes {
   key: string | null = $state(null);
   exclusions: Exclusion[] = $state.raw([]);
   ledger: LedgerEntry[] = $state.raw([]);
-  /** The ledger's analyses and significant ones, as every view and the methods report state them. */
-  readonly counts = $derived(browserLedgerCounts(this.ledger));
+  /** the database's file name, as its ledger lines name it */
+  name = $state('');
+  /** true while the ledger shown is the one beside the database (shared with the command line) */
+  shared = $state(false);
+  /** The ledger's distinct analyses and significant ones, as every view and the methods report state them. */
+  readonly counts = $derived(ledgerCounts(this.ledger, this.name));
+  /** the identity of the data the analyses read (src/core/report/ledger.ts dataIdentity) */
+  private data: Promise<string> = Promise.resolve('');
+  private ledgerUrl: string | null = null;
 
   /** Point at the database just opened and read its lists. */
-  use(runs: readonly RunInfo[], source: string): void {
-    this.key = databaseKey(runs, source);
+  use(runs: readonly RunInfo[], db: SqlClient & { source: string; name: string }): void {
+    this.key = databaseKey(runs, db.source);
+    this.name = db.name;
     this.exclusions = loadExclusions(localStorage, this.key);
-    this.ledger = loadLedger(localStorage, this.key);
+    this.ledger = loadLedger(localStorage, this.key, db.name);
+    this.shared = false;
+    this.ledgerUrl = null;
+    this.data = runs.length > 0 ? runDataIdentity(db, chooseRun(runs).runId) : Promise.resolve('');
+    void this.joinShared(this.key, sharedLedgerUrl(db.source));
+  }
+
+  /** Reads the ledger beside the database and posts this browser's lines to it; they then leave this browser. */
+  private async joinShared(key: string, url: string | null): Promise<void> {
+    if (url === null) return;
+    const lines = await readSharedLedger(url);
+    if (lines === null || key !== this.key) return;
+    const own = this.ledger;
+    for (const e of own) if (!(await postSharedLedger(url, e))) return;
+    if (key !== this.key) return;
+    // lines recorded meanwhile stay in this browser until the next open
+    const meanwhile = this.ledger.filter((e) => !own.includes(e));
+    saveLedger(localStorage, key, meanwhile);
+    this.ledgerUrl = url;
+    this.shared = meanwhile.length === 0;
+    this.ledger = [...lines, ...own, ...meanwhile];
   }
 
   private requireKey(): string {
@@ -47,8 +79,19 @@ export class DatabaseNotes {
     saveExclusions(localStorage, this.requireKey(), this.exclusions);
   }
 
-  record(entry: LedgerEntry): void {
-    this.ledger = appendLedger(localStorage, this.requireKey(), entry);
+  /** Records an analysis: in the ledger beside the database, or (when it cannot be written) in this browser's. */
+  async record(input: LedgerInput): Promise<void> {
+    const key = this.requireKey();
+    const entry = ledgerEntry(input, this.name, await this.data.catch(() => ''));
+    if (key !== this.key) return;
+    if (this.ledgerUrl !== null && (await postSharedLedger(this.ledgerUrl, entry))) {
+      this.ledger = [...this.ledger, entry];
+      return;
+    }
+    // kept in this browser; merged into the ledger beside the database at the next open
+    appendLedger(localStorage, key, entry);
+    this.shared = false;
+    this.ledger = [...this.ledger, entry];
   }
 
   /** Whether a subject (whole, or this channel) is on the list. */

@@ -1,36 +1,53 @@
-// The browser ledger (db/local-store.ts, one list per database) as the methods report counts it
-// (src/core/report ledgerCounts): the one count every view shows; and the ledger entries of a
-// contrast and a band check. Entries without a kind (written before kinds were recorded) are
-// contrasts ('compare', as the command line calls them).
-import { ledgerCounts as reportCounts, type LedgerCounts } from '../../core/report/index.ts';
+// What the dashboard's analyses give the ledger (src/core/report/ledger.ts ledgerEntry adds the
+// identity): a contrast, a band check (its contrast with the band, as the command line records
+// it) and a robustness run (one analysis per path tried).
+import type { LedgerCounts, LedgerInput } from '../../core/report/ledger.ts';
 import type { CompareResult } from '../../core/contrast/run.ts';
+import type { PartFields } from '../../core/confirmation/stamp.ts';
 import type { BandCheckResult } from '../../core/verdict/index.ts';
-import type { LedgerEntry } from './local-store.ts';
+import type { SpecificationCurve } from '../../core/verdict/paths.ts';
+import type { Exclusion } from '../../core/contrast/data.ts';
 
-/** A ledger entry with the kind of analysis it records. */
-export type KindedLedgerEntry = LedgerEntry & { kind: 'compare' | 'band-check' };
-
-/** The kind of a browser ledger entry: its own, else 'compare'. */
-export function entryKind(e: LedgerEntry): string {
-  const k = (e as { kind?: unknown }).kind;
-  return typeof k === 'string' ? k : 'compare';
+function partOf(r: PartFields): Pick<LedgerInput, 'part' | 'split'> {
+  return r.part && r.split ? { part: r.part, split: { id: r.split.id } } : {};
 }
 
-/** Ledger counts of one database's browser ledger, as the methods report states them (significant: p < 0.05). */
-export function browserLedgerCounts(entries: readonly LedgerEntry[]): LedgerCounts {
-  const here = 'this database';
-  return reportCounts(
-    entries.map((e) => ({ database: here, kind: entryKind(e), significant: e.smallestP !== null && e.smallestP < 0.05 })),
-    here,
-  );
+/** A contrast: its contrast JSON (exclusions included) and smallest cluster (or TFCE) p. */
+export function contrastLedgerInput(r: CompareResult & PartFields, smallestP: number | null): LedgerInput {
+  return { kind: 'compare', contrast: r.contrast, p: smallestP, ...partOf(r) };
 }
 
-/** The ledger entry of a band check: its contrast with the band, the verdict's smallest adjusted p (as the command line). */
-export function bandCheckLedgerEntry(r: BandCheckResult, exclusions: number, time = new Date().toISOString()): KindedLedgerEntry {
-  return { time, kind: 'band-check', contrast: { ...r.contrast, band: r.band }, smallestP: r.p, n: { ...r.n }, exclusions };
+/** A band check: its contrast with the band, the verdict's smallest adjusted p (as the command line). */
+export function bandCheckLedgerInput(r: BandCheckResult & PartFields): LedgerInput {
+  return { kind: 'band-check', contrast: { ...r.contrast, band: r.band }, p: r.p, ...partOf(r) };
 }
 
-/** The ledger entry of a contrast: its contrast JSON and smallest cluster (or TFCE) p. */
-export function contrastLedgerEntry(r: CompareResult, smallestP: number | null, exclusions: number, time = new Date().toISOString()): KindedLedgerEntry {
-  return { time, kind: 'compare', contrast: r.contrast, smallestP, n: { ...r.n }, exclusions };
+/**
+ * A robustness run: each path is an analysis of its own (the contrast with its exclusions, the
+ * band, the test and the path's choices); the run's p is its smallest path p.
+ */
+export function robustnessLedgerInput(curve: SpecificationCurve & PartFields, exclusions: readonly Exclusion[]): LedgerInput {
+  const contrast = { ...curve.contrast, exclusions: [...exclusions] };
+  const at = { contrast, band: curve.band, test: curve.test };
+  return {
+    kind: 'robustness',
+    contrast: { ...at, paths: curve.nPaths },
+    p: curve.paths.length > 0 ? Math.min(...curve.paths.map((x) => x.p)) : null,
+    paths: curve.paths.map(({ measure, denominatorHz, reference, averaging, estimator, summary, fitRangeHz, band, bandDefinition, decision, p }) => ({
+      contrast: { ...at, choices: { measure, denominatorHz, reference, averaging, estimator, summary, fitRangeHz, band, bandDefinition, decision } },
+      p,
+    })),
+    ...partOf(curve),
+  };
+}
+
+/** The count every view shows: distinct analyses by kind, significant ones, and which ledger holds them. */
+export function ledgerLine(c: LedgerCounts, shared: boolean): string {
+  const kinds = Object.entries(c.byKind)
+    .map(([k, v]) => `${v} ${k === 'robustness' ? 'robustness paths' : k}`)
+    .join(', ');
+  const where = shared
+    ? 'ledger beside the database, shared with the command line'
+    : "this browser's own ledger: the one beside the database cannot be reached";
+  return `Distinct analyses run on this database: ${c.analyses}${kinds ? ` (${kinds})` : ''}, significant: ${c.significant} (${where})`;
 }

@@ -1,7 +1,9 @@
 // What the dashboard keeps in browser storage, per database: the exclusion list of the quality
-// screen and the ledger of contrasts run. A database is known by its ingest run ids (runs.run_id
-// is a hash of the run's parameters) and its file name, so two different files never share a list.
+// screen and, while the ledger beside the database cannot be reached, this browser's own ledger.
+// A database is known by its ingest run ids (runs.run_id is a hash of the run's parameters) and
+// its file name, so two different files never share a list.
 import type { Exclusion } from '../../core/contrast/data.ts';
+import type { LedgerEntry } from '../../core/report/ledger.ts';
 import type { RunInfo } from '../../queries/runs.ts';
 
 /** The key prefix of one database's entries. */
@@ -70,28 +72,37 @@ export function withoutExclusion(list: readonly Exclusion[], subject: string, ch
   return list.filter((x) => !(x.subject === subject && x.channel === channel));
 }
 
-/** One contrast run, as the ledger keeps it. */
-export interface LedgerEntry {
-  /** ISO time the run finished */
+/** A line of this browser's own ledger: the ledger's (src/core/report/ledger.ts), or one kept before identities were (smallestP, no kind). */
+interface OlderEntry {
   time: string;
-  /** the contrast JSON (parsed, defaults filled) */
   contrast: unknown;
-  /** smallest cluster (or TFCE) p, null when the run produced none */
   smallestP: number | null;
-  n: Record<string, number>;
-  exclusions: number;
+  kind?: string;
 }
 
-function isLedger(v: unknown): v is LedgerEntry[] {
+function isLedger(v: unknown): v is (LedgerEntry | OlderEntry)[] {
   return Array.isArray(v) && v.every((e) => e !== null && typeof e === 'object' && typeof (e as LedgerEntry).time === 'string');
 }
 
-export function loadLedger(store: KeyValueStore, dbKey: string): LedgerEntry[] {
-  return readJson(store, `${dbKey}:ledger`, isLedger, []);
+/** A line kept before the browser wrote the ledger's own lines: a contrast unless it says otherwise. */
+function upgraded(e: LedgerEntry | OlderEntry, database: string): LedgerEntry {
+  if ('p' in e) return e;
+  const p = e.smallestP;
+  return { time: e.time, database, kind: e.kind ?? 'compare', contrast: e.contrast, p, significant: p !== null && p < 0.05 };
+}
+
+/** This browser's ledger of one database (`database`: its file name, which older lines did not record). */
+export function loadLedger(store: KeyValueStore, dbKey: string, database: string): LedgerEntry[] {
+  return readJson(store, `${dbKey}:ledger`, isLedger, []).map((e) => upgraded(e, database));
 }
 
 export function appendLedger(store: KeyValueStore, dbKey: string, entry: LedgerEntry): LedgerEntry[] {
-  const list = [...loadLedger(store, dbKey), entry];
+  const list = [...loadLedger(store, dbKey, entry.database), entry];
   store.setItem(`${dbKey}:ledger`, JSON.stringify(list));
   return list;
+}
+
+/** Replaces this browser's ledger of a database (emptied once its lines are in the ledger beside the database). */
+export function saveLedger(store: KeyValueStore, dbKey: string, list: readonly LedgerEntry[]): void {
+  store.setItem(`${dbKey}:ledger`, JSON.stringify(list));
 }

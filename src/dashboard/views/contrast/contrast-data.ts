@@ -4,14 +4,12 @@ import type { ContrastData, Exclusion } from '../../../core/contrast/data.ts';
 import type { CompareResult } from '../../../core/contrast/run.ts';
 import type { Contrast } from '../../../core/contrast/spec.ts';
 import type { Position3 } from '../../../core/montage/positions.ts';
-import type { Row, SqlClient } from '../../../queries/client.ts';
+import type { SqlClient } from '../../../queries/client.ts';
 import { contrastMaxHz, loadContrastData } from '../../../queries/contrast-data.ts';
 import type { RunInfo } from '../../../queries/runs.ts';
 import type { CohortSchema } from '../../../queries/schema.ts';
 import type { PromiseCache } from '../../analysis/analysis-run.svelte.ts';
 import type { SpectraRows } from '../spectra/spectra-data.ts';
-import { signText } from '../../../core/contrast/labels.ts';
-import { ALPHA } from './contrast-charts.ts';
 
 /** Reads ContrastData once per (stages, reference, averaging, measure, method, highest frequency read); exclusions applied on each use. */
 export async function readContrastData(
@@ -35,22 +33,6 @@ export function smallestP(r: CompareResult): number | null {
   const ps = r.clusters.map((k) => k.p);
   if (r.statistics.tfce) ps.push(...r.statistics.tfce.pCorrected);
   return ps.length > 0 ? Math.min(...ps) : null;
-}
-
-/** The cluster table's rows. */
-export function clusterRows(r: CompareResult): Row[] {
-  return r.clusters.map((k, i) => ({
-    cluster: i + 1,
-    sign: k.sign > 0 ? '+' : '−',
-    direction: signText(r.contrast, k.sign),
-    fmin_hz: k.fminHz,
-    fmax_hz: k.fmaxHz,
-    channels: k.channels.join(' '),
-    mass: k.mass,
-    size: k.size,
-    p: k.p,
-    significant: k.p < ALPHA,
-  }));
 }
 
 /** Mean statistic per channel over a cluster's frequency range (for its scalp map). */

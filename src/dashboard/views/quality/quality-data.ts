@@ -1,5 +1,6 @@
 // Everything the quality screen shows: the subjects × channels grid from the quality table
 // (cell score from src/core/quality/cell-score.ts), the flags, and one cell's detail.
+import { frontToBack, storedPositionOf } from '../../../core/montage/channel-order.ts';
 import { cellScore } from '../../../core/quality/cell-score.ts';
 import type { QualityMetric, QualityRow } from '../../../core/quality/row.ts';
 import type { Stage } from '../../../core/stages.ts';
@@ -28,7 +29,7 @@ export interface GridCell {
 
 export interface QualityData {
   recordings: { recordingId: string; subject: string; session: string | null }[];
-  /** stored channel order (channels table) */
+  /** channels front to back, then left to right (stored positions, else the 10-10 template) */
   channelOrder: string[];
   /** stages that have quality rows */
   stages: string[];
@@ -112,7 +113,12 @@ export function gridForStage(d: QualityData, stage: string): Pick<QualityData, '
 export async function loadQuality(db: SqlClient, schema: CohortSchema): Promise<QualityData> {
   const recordings = await recordingSubjects(db);
   const rows = await qualityRows(db, schema);
-  const channelOrder = (await channelList(db)).map((c) => c.channel);
+  // front to back, then left to right, by the stored positions (src/core/montage/channel-order.ts)
+  const stored = await channelList(db);
+  const channelOrder = frontToBack(
+    stored.map((c) => c.channel),
+    storedPositionOf(stored.flatMap((c) => (c.x !== null && c.y !== null && c.z !== null ? [{ channel: c.channel, x: c.x, y: c.y, z: c.z }] : []))),
+  );
   const grid = buildGrid(recordings, channelOrder, rows);
   const flags: Row[] = rows
     .filter((r) => r.flagged)

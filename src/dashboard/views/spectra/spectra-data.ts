@@ -5,7 +5,7 @@ import type { AperiodicRow, Exclusion, SpectrumRow } from '../../../core/contras
 import { measureLayout, measureValues } from '../../../core/contrast/measure.ts';
 import { parseContrast, type Contrast } from '../../../core/contrast/spec.ts';
 import { aperiodicLog10 } from '../../../core/spectrum/aperiodic-model.ts';
-import { bandPower, type Band } from '../../../core/spectrum/bands.ts';
+import type { Band } from '../../../core/spectrum/bands.ts';
 import type { Stage } from '../../../core/stages.ts';
 import type { SqlClient } from '../../../queries/client.ts';
 import { contrastParticipants } from '../../../queries/contrast-data.ts';
@@ -17,6 +17,7 @@ import { storedEstimator } from '../../../queries/estimator.ts';
 import { meanWithInterval, type MeanBand } from './group-mean.ts';
 import { keepSubjects, partParticipants } from '../../../core/confirmation/part-data.ts';
 import { workflowOf } from '../../../queries/workflow.ts';
+import { frontToBack } from '../../../core/montage/channel-order.ts';
 
 /** What the y axis shows. */
 export type SpectrumMeasure = 'absolute' | 'log10' | 'relative' | 'residual';
@@ -68,7 +69,7 @@ export async function loadSpectraRows(
     rows,
     aperiodic: keepSubjects(aperiodic, view),
     participants: partParticipants(participants, view),
-    channels: [...new Set(rows.map((r) => r.channel))],
+    channels: frontToBack([...new Set(rows.map((r) => r.channel))]),
   };
 }
 
@@ -196,15 +197,67 @@ export function groupSpectra(
   return { freqsHz: layout.freqsHz, measure: o.measure, channels: [...o.channels], groups, left };
 }
 
+/** What a scalp map shows: a band of the spectrum's measure, or an aperiodic parameter. */
+export type MapMeasure = 'band-power' | 'relative-band-power' | 'residual' | 'offset' | 'exponent';
+export const MAP_MEASURES: readonly MapMeasure[] = ['band-power', 'relative-band-power', 'residual', 'offset', 'exponent'];
+
+/** The choices of the map, in words. */
+export const MAP_MEASURE_NAMES: Record<MapMeasure, string> = {
+  'band-power': 'band power',
+  'relative-band-power': 'relative band power',
+  residual: 'residual over the band',
+  offset: 'aperiodic offset',
+  exponent: 'aperiodic exponent',
+};
+
+/** The map of a spectrum measure: its band (absolute and log10 PSD: band power). */
+export function mapMeasureOf(measure: SpectrumMeasure): MapMeasure {
+  return measure === 'relative' ? 'relative-band-power' : measure === 'residual' ? 'residual' : 'band-power';
+}
+
+/** The map's measure in words and its unit (the colour bar). */
+export function mapMeasureText(m: MapMeasure, band: Band, relativeRangeHz: [number, number]): { what: string; unit: string } {
+  const inBand = `${band.name} ${band.loHz}–${band.hiHz} Hz`;
+  return {
+    'band-power': { what: `log10 ${inBand} power (mean density)`, unit: 'log10 µV²/Hz' },
+    'relative-band-power': { what: `log10 ${inBand} power relative to ${relativeRangeHz[0]}–${relativeRangeHz[1]} Hz (integrals)`, unit: 'log10 ratio' },
+    residual: { what: `mean residual (log10 PSD − aperiodic fit) over ${inBand}`, unit: 'log10' },
+    offset: { what: 'aperiodic offset', unit: 'log10 µV²/Hz' },
+    exponent: { what: 'aperiodic exponent', unit: 'exponent' },
+  }[m];
+}
+
 export interface BandMapValues {
   band: Band;
+  map: MapMeasure;
   channels: string[];
-  /** per group: mean log10 band power per channel (NaN where no subject has it) */
+  /** per group: mean of the map's measure per channel (NaN where no subject has it) */
   groups: { group: string; n: number; values: number[] }[];
 }
 
-/** Mean log10 band power (mean density, µV²/Hz) per channel and group, exclusions and flags left out. */
-export function bandMap(d: SpectraRows, o: { groupColumn: string; band: Band; exclusions: readonly Exclusion[] }): BandMapValues {
+/**
+ * Per channel and group, the mean over subjects of the map's measure (src/core/contrast/measure.ts,
+ * the numbers a contrast tests; the residual averaged over the band's bins); exclusions, flagged
+ * spectra and missing fits left out.
+ */
+export function bandMap(
+  d: SpectraRows,
+  o: { groupColumn: string; band: Band; map: MapMeasure; relativeRangeHz: [number, number]; exclusions: readonly Exclusion[] },
+): BandMapValues {
+  const c = parseContrast({
+    design: 'groups',
+    groups: ['a', 'b'],
+    measure: o.map,
+    bands: [o.band],
+    fminHz: o.band.loHz,
+    fmaxHz: o.band.hiHz,
+    relativeRangeHz: o.relativeRangeHz,
+    bandMethod: 'mean',
+  });
+  const axis = { freqStartHz: d.freqStartHz, freqStepHz: d.freqStepHz, nBins: d.nBins };
+  const layout = measureLayout(c, axis);
+  const out = new Float64Array(layout.freqsHz.length);
+  const fits = new Map(d.aperiodic.map((a) => [keyOf(a.subject, a.channel), a]));
   const groupOf = new Map(d.participants.map((p) => [String(p.subject), p[o.groupColumn]]));
   const sums = new Map<string, { n: Set<string>; sum: Float64Array; count: Float64Array }>();
   const idx = new Map(d.channels.map((ch, i) => [ch, i]));
@@ -212,7 +265,9 @@ export function bandMap(d: SpectraRows, o: { groupColumn: string; band: Band; ex
     const g = groupOf.get(r.subject);
     if (g === null || g === undefined || r.flagged) continue;
     if (o.exclusions.some((e) => e.subject === r.subject && (e.channel === null || e.channel === r.channel))) continue;
-    const v = Math.log10(bandPower(r.power, o.band, d.freqStartHz, d.freqStepHz, 'mean'));
+    if (measureValues(c, layout, axis, r.power, fits.get(keyOf(r.subject, r.channel)), [], out) !== null) continue;
+    let v = 0;
+    for (let j = 0; j < out.length; j++) v += out[j] / out.length;
     if (!Number.isFinite(v)) continue;
     const key = String(g);
     let s = sums.get(key);
@@ -226,5 +281,5 @@ export function bandMap(d: SpectraRows, o: { groupColumn: string; band: Band; ex
     const s = sums.get(group)!;
     return { group, n: s.n.size, values: Array.from(s.sum, (v, i) => (s.count[i] > 0 ? v / s.count[i] : Number.NaN)) };
   });
-  return { band: o.band, channels: d.channels, groups };
+  return { band: o.band, map: o.map, channels: d.channels, groups };
 }
