@@ -13,7 +13,7 @@ import type { Contrast } from './spec.ts';
 /** One-point clusters with a p above this are hidden unless asked for (ours). */
 export const SINGLE_POINT_MAX_P = 0.05;
 /** Level a cluster is marked significant at. */
-export const CLUSTER_ALPHA = 0.05;
+export const SIGNIFICANT_BELOW_P = 0.05;
 
 export interface ClusterTableColumn {
   /** also the TSV header */
@@ -81,7 +81,7 @@ export function clusterTable(r: ClusterSource, o: { singlePoints: boolean }): Cl
       mass: Number(k.mass.toFixed(4)),
       size: k.size,
       p: significant(k.p, 4),
-      significant: k.p < CLUSTER_ALPHA,
+      significant: k.p < SIGNIFICANT_BELOW_P,
     });
   });
   return { rows, hidden };
