@@ -41,4 +41,8 @@ describe('front to back, then left to right', () => {
     ]);
     expect(frontToBack(['E3', 'E2', 'X9', 'E1'], stored)).toEqual(['E1', 'E2', 'E3', 'X9']);
   });
+
+  it('puts channels without a position last, numbers by value: a net numbered E1 … E256 reads E2 before E10 (common practice)', () => {
+    expect(frontToBack(['E10', 'E2', 'E1', 'E100', 'ECG', 'E9'])).toEqual(['E1', 'E2', 'E9', 'E10', 'E100', 'ECG']);
+  });
 });
