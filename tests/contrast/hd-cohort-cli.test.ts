@@ -7,6 +7,7 @@
  * epochs at 128 Hz, 50 permutations. The net's sites are 8 idealised 10-10 positions
  * (positions.ts) on a 90-mm sphere, written as a BIDS-style electrodes TSV in mm.
  */
+import { frontToBack } from '../../src/core/montage/channel-order.ts';
 import { spawnSync } from 'node:child_process';
 import { copyFileSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -62,7 +63,8 @@ describe('an E-numbered cohort from the command line', () => {
     const r = compare(withPositions, []);
     expect(r.status, r.stderr).toBe(0);
     const result = JSON.parse(readFileSync(r.out, 'utf8'));
-    const order = [...NAMES].sort();
+    // all channels front to back, then left to right, by their stored positions (src/core/montage/channel-order.ts)
+    const order = frontToBack(NAMES, (n) => electrodePosition(SITES[NAMES.indexOf(n)]));
     expect(result.statistics.channels).toEqual(order);
     expect(result.channelLayout.neighbours).toBe('positions');
     // the graph is the one of the 10-10 sites the file gives (mm → unit sphere, rounded to 1 µm)

@@ -48,14 +48,17 @@ const LOCAL_SCHEMES = new Set(['blob:', 'data:', 'about:']);
 
 /**
  * Serve `appDir` with `dbPath`, open a fresh chromium profile on it. `ledgerPath`: the ledger the
- * server keeps beside the database (as `bandwise dashboard` does; absent, none); `api`: the
+ * server keeps beside the database (as `bandwise dashboard` does; absent, a fresh file of its own); `api`: the
  * workflow's write steps (absent, read-only).
  */
 export async function openDashboard(appDir: string, dbPath: string, o: { ledgerPath?: string; api?: ApiHandler } = {}): Promise<DashboardSession> {
   const requests: RequestLogEntry[] = [];
   const consoleErrors: string[] = [];
   const foreignRequests: string[] = [];
-  const server = await startDashboardServer({ dbPath, appDir, ledgerPath: o.ledgerPath, api: o.api, onRequest: (e) => requests.push(e) });
+  // as `bandwise dashboard` does, the server keeps a ledger; by default a fresh one of this session's own, not beside a shared database
+  const ledgerDir = o.ledgerPath === undefined ? mkdtempSync(path.join(os.tmpdir(), 'bandwise-ledger-')) : null;
+  const ledgerPath = o.ledgerPath ?? path.join(ledgerDir!, 'ledger.jsonl');
+  const server = await startDashboardServer({ dbPath, appDir, ledgerPath, api: o.api, onRequest: (e) => requests.push(e) });
   const profile = mkdtempSync(path.join(os.tmpdir(), 'bandwise-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: CHROMIUM,
@@ -92,6 +95,7 @@ export async function openDashboard(appDir: string, dbPath: string, o: { ledgerP
       await context.close();
       await server.close();
       rmSync(profile, { recursive: true, force: true });
+      if (ledgerDir) rmSync(ledgerDir, { recursive: true, force: true });
     },
   };
 }

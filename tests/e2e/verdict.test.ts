@@ -138,7 +138,7 @@ describe('dashboard in chromium on the demo database: band check, robustness, me
     expect(text).toContain('Methods: band check of sigma');
     expect(text).toContain("Welch's method (Welch 1967)");
     expect(text).toMatch(/In N2, \d+ of \d+ channel-epochs/);
-    expect(text).toMatch(/The ledger of this database records \d+ analyses \(\d+ band-check\)/);
+    expect(text).toMatch(/The ledger of this database records \d+ distinct analyses \(\d+ band-check;/);
     const ledger = await page.getByTestId('report-ledger-count').innerText();
     expect(count(ledger)).toBe(2);
     const [md] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-markdown').click()]);

@@ -183,7 +183,7 @@ describe('dashboard in chromium on the demo database: quality, spectra, contrast
     });
     expect(planted.sort()).toEqual(['C3', 'C4', 'Cz', 'P3', 'P4', 'Pz']);
     // columns: cluster, sign, direction, from, to, channels, mass, points, p, significant
-    const spindle = clusters.find((r) => r[1] === '−' && Number(r[8]) < 0.05 && Number(r[3]) <= 13.5 && Number(r[4]) >= 13.5);
+    const spindle = clusters.find((r) => r[1] === '-1' && Number(r[8]) < 0.05 && Number(r[3]) <= 13.5 && Number(r[4]) >= 13.5);
     expect(spindle, JSON.stringify(clusters)).toBeDefined();
     expect(spindle![2]).toBe('patient < control');
     expect(Number(spindle![3])).toBeGreaterThanOrEqual(SIGMA.loHz - 1);

@@ -257,7 +257,10 @@ describe('dashboard in chromium: the workflow state and blinded exploration', ()
       .trim()
       .split('\n')
       .map((l) => JSON.parse(l));
-    expect(ledger.filter((e) => e.planId === planId).map((e) => e.confirmationRun)).toEqual([1, 2]);
+    expect(
+      ledger.filter((e) => e.planId === planId).map((e) => e.confirmationRun),
+      JSON.stringify(ledger.slice(0, 4)),
+    ).toEqual([1, 2]);
     await page.getByRole('link', { name: 'open it' }).click();
     await page.getByTestId('methods-text').waitFor({ timeout: 60_000 });
     expect(await page.getByTestId('methods-text').innerText()).toContain('not the first');

@@ -54,7 +54,7 @@ describe('short methods', () => {
     expect(t).toContain(`|t| > ${Number(tScipy.toPrecision(3))} (two-tailed p = 0.05, df = ${df})`);
     expect(t).toContain('200 permutations (seed 5)');
     expect(t).toContain('control n = 20, patient n = 20');
-    expect(t).toContain('one of 7 analyses');
+    expect(t).toContain('one of 7 distinct analyses');
     // with the database facts: the recordings and the share rejected (1300 of 52000 N2 channel-epochs = 2.5 %)
     const withFacts = shortMethods(cmp as ReportableResult, FACTS, LEDGER);
     expect(withFacts).toContain('40 recordings stored in the database cohort.duckdb');

@@ -23,10 +23,13 @@ export class DatabaseNotes {
   /** the identity of the data the analyses read (src/core/report/ledger.ts dataIdentity) */
   private data: Promise<string> = Promise.resolve('');
   private ledgerUrl: string | null = null;
+  /** the database whose ledger is being joined, null when none */
+  private joining: string | null = null;
 
   /** Point at the database just opened and read its lists. */
   use(runs: readonly RunInfo[], db: SqlClient & { source: string; name: string }): void {
-    this.key = databaseKey(runs, db.source);
+    // a database read again (session.svelte.ts adds ?read=N to its address) keeps its lists
+    this.key = databaseKey(runs, db.source.replace(/\?read=\d+$/, ''));
     this.name = db.name;
     this.exclusions = loadExclusions(localStorage, this.key);
     this.ledger = loadLedger(localStorage, this.key, db.name);
@@ -38,14 +41,26 @@ export class DatabaseNotes {
 
   /** Reads the ledger beside the database and posts this browser's lines to it; they then leave this browser. */
   private async joinShared(key: string, url: string | null): Promise<void> {
-    if (url === null) return;
+    // one join at a time per database: two would post this browser's lines twice
+    if (url === null || this.joining === key) return;
+    this.joining = key;
+    try {
+      await this.join(key, url);
+    } finally {
+      if (this.joining === key) this.joining = null;
+    }
+  }
+
+  private async join(key: string, url: string): Promise<void> {
     const lines = await readSharedLedger(url);
     if (lines === null || key !== this.key) return;
-    const own = this.ledger;
+    // this browser's own lines are those in its storage, never lines read from the server
+    const own = loadLedger(localStorage, key, this.name);
     for (const e of own) if (!(await postSharedLedger(url, e))) return;
     if (key !== this.key) return;
     // lines recorded meanwhile stay in this browser until the next open
-    const meanwhile = this.ledger.filter((e) => !own.includes(e));
+    const posted = own.map((e) => JSON.stringify(e));
+    const meanwhile = loadLedger(localStorage, key, this.name).filter((e) => !posted.includes(JSON.stringify(e)));
     saveLedger(localStorage, key, meanwhile);
     this.ledgerUrl = url;
     this.shared = meanwhile.length === 0;
