@@ -79,15 +79,17 @@ describe('peak measures with peaks missing per channel × subject', () => {
     for (let c = 0; c < CHANNELS.length; c++) {
       const col = ref.centre.map((row) => row[c]);
       const count = (lo: number, hi: number) => col.slice(lo, hi).filter((v) => v !== null).length;
-      expect(r.valuesPerPoint![c]).toEqual({
+      // the result orders all channels front to back (src/core/montage/channel-order.ts): one point per channel
+      const at = r.statistics.channels.indexOf(CHANNELS[c]);
+      expect(r.valuesPerPoint![at]).toEqual({
         channel: CHANNELS[c],
         freqHz: 13.5,
         band: 'sigma 11–16 Hz',
         n: { control: count(0, 8), patient: count(8, 16) },
         leftOut: ref.t[c] === null,
       });
-      if (ref.t[c] === null) expect(r.statistics.stat[c]).toBeNaN();
-      else expect(r.statistics.stat[c]).toBeCloseTo(ref.t[c]!, 9);
+      if (ref.t[c] === null) expect(r.statistics.stat[at]).toBeNaN();
+      else expect(r.statistics.stat[at]).toBeCloseTo(ref.t[c]!, 9);
     }
     expect(r.valuesPerPoint!.map((p) => p.n)).toContainEqual({ control: 6, patient: 8 }); // C3: s02 and s05 without a peak
     expect(r.notes).toEqual([

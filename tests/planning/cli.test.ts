@@ -115,7 +115,7 @@ describe('bandwise power', () => {
       'an unknown reference group',
       ['--contrast', logPsd, '--band', '12-16', '--reference-group', 'nobody'],
       1,
-      'bandwise power: reference group group = nobody has 0 subjects with data; at least 2 are needed',
+      "bandwise power: no subject has group 'nobody'; its values are: control, patient",
     ],
   ];
   it.each(refused)('refuses %s in one line (exit status %#)', (_what, args, status, message) => {

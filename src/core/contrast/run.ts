@@ -99,9 +99,11 @@ export function checkBandDefinition(c: Contrast): Contrast {
 export function prepareAssembled(c: Contrast, assembled: AssembledContrast): PreparedCompare {
   const options = statsOptions(c);
   options.frequencyAdjacency = assembled.layout.frequencyAdjacency;
+  // the test's own input checks first: too few values at every point says more than "no variation"
+  const prepared = preparePermutationTest(assembled.input, options);
   if (!dataVary(assembled.input))
     throw new ContrastDataError('the data do not vary: every subject has the same value at every point, so there is no difference to test');
-  return { contrast: c, assembled, prepared: preparePermutationTest(assembled.input, options) };
+  return { contrast: c, assembled, prepared };
 }
 
 /** The permutations [from, to) of part `index` of `parts` equal shares of `count` (split over threads). */
