@@ -92,7 +92,7 @@ describe('band check on the demo cohort', () => {
     }
     expect(text).toContain(`In N2, ${counts.rejected} of ${counts.total} channel-epochs`);
     expect(text).toContain('sampling rates 128, 256 Hz');
-    expect(text).toContain('records 2 analyses (2 band-check)');
+    expect(text).toContain('records 2 distinct analyses (2 band-check;');
     expect(text).toContain('Verdict: **band-specific**');
     expect(params.ingest.references).toEqual(['recorded', 'linked-mastoids']);
     // the report is recorded, but not counted as an analysis
