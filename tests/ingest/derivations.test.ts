@@ -18,7 +18,7 @@ import { parseContrast } from '../../src/core/contrast/spec.ts';
 import { electrodePosition } from '../../src/core/montage/positions.ts';
 import { compileWithLibedf, READER_SOURCE, writerSource, type RefAnnotation, type RefSignal } from '../edf/libedf.ts';
 import { makeTmpDir } from '../edf/helpers.ts';
-import { runPython } from '../helpers/python.ts';
+import { maxRel, scipyStageMean } from '../helpers/scipy-stage-mean.ts';
 
 const FS = 128;
 const EPOCHS = 14; // 2 W, then 12 N2
@@ -79,25 +79,6 @@ const rec = (subject: string, file: string): CohortRecording => ({
   covariates: {},
 });
 
-/** Mean over the given epochs of scipy.signal.welch per 30-s epoch (Hann, 4-s segments, 50 % overlap, constant detrend, density), 0–45 Hz. */
-function scipyStageMean(x: Float64Array, epochs: number[]): number[] {
-  return runPython<number[]>(
-    `from scipy.signal import welch
-x = numpy.fromfile(inputs['x'])
-epochs = ${JSON.stringify(epochs)}
-n = 30 * ${FS}
-ps = [welch(x[e*n:(e+1)*n], fs=${FS}, window='hann', nperseg=4*${FS}, noverlap=2*${FS}, detrend='constant', scaling='density')[1] for e in epochs]
-print(json.dumps(numpy.mean(ps, axis=0)[:181].tolist()))`,
-    { x },
-  );
-}
-
-const maxRel = (a: ArrayLike<number>, b: ArrayLike<number>) => {
-  let m = 0;
-  for (let k = 1; k < b.length; k++) m = Math.max(m, Math.abs(a[k] - b[k]) / Math.abs(b[k]));
-  return m;
-};
-
 let aasmFile = '';
 type Bundle = Awaited<ReturnType<typeof processRecording>>;
 let bundle: Bundle;
@@ -152,13 +133,13 @@ describe('an AASM-style export (C3-M2, C4-M1, Pz-Oz, Pz-M1) through ingest', () 
     expect(stored.power.length).toBe(181);
     // the planted values: the file holds them as 16-bit samples, libedf truncating to a digital
     // step of 1000/65535 ≈ 0.015 µV, 4·10⁻⁴ of the signal's RMS (≈ 37 µV): differences of that order
-    expect(maxRel(stored.power, scipyStageMean(planted.get('aasm')![0], epochs))).toBeLessThan(2e-3);
+    expect(maxRel(stored.power, scipyStageMean(planted.get('aasm')![0], FS, epochs))).toBeLessThan(2e-3);
     // the same samples as libedf reads them back: equal up to float32 storage
     const reader = compileWithLibedf(tmp.dir, 'reader', READER_SOURCE);
     const back = path.join(tmp.dir, 'aasm.back');
     execFileSync(reader, [aasmFile, back]);
     const decoded = new Float64Array(readFileSync(back).buffer.slice(0, FS * SECONDS * 8));
-    expect(maxRel(stored.power, scipyStageMean(decoded, epochs))).toBeLessThan(1e-4);
+    expect(maxRel(stored.power, scipyStageMean(decoded, FS, epochs))).toBeLessThan(1e-4);
     const recorded = bundle.spectra.find((s) => s.channel === 'C3' && s.reference === 'recorded' && s.stage === 'N2' && s.averaging === 'mean')!;
     expect(Array.from(recorded.power)).toEqual(Array.from(stored.power));
   });

@@ -17,7 +17,7 @@ import { openEdf } from '../../ingest/edf/reader.ts';
 import { PipelineError, processRecording, resolveIngestParams } from '../../ingest/pipeline.ts';
 import { compileWithLibedf, writerSource, type RefAnnotation, type RefSignal } from '../edf/libedf.ts';
 import { makeTmpDir } from '../edf/helpers.ts';
-import { runPython } from '../helpers/python.ts';
+import { maxRel, scipyStageMean } from '../helpers/scipy-stage-mean.ts';
 
 const FS = 200;
 const RECORD_S = 0.2;
@@ -79,25 +79,6 @@ const rec = (subject: string, recordingPath: string): CohortRecording => ({
   scoringPath: null,
   covariates: {},
 });
-
-/** Mean over the given epochs of scipy.signal.welch per 30-s epoch (Hann, 4-s segments, 50 % overlap, constant detrend, density), 0–45 Hz. */
-function scipyStageMean(x: Float64Array, epochs: number[]): number[] {
-  return runPython<number[]>(
-    `from scipy.signal import welch
-x = numpy.fromfile(inputs['x'])
-epochs = ${JSON.stringify(epochs)}
-n = 30 * ${FS}
-ps = [welch(x[e*n:(e+1)*n], fs=${FS}, window='hann', nperseg=4*${FS}, noverlap=2*${FS}, detrend='constant', scaling='density')[1] for e in epochs]
-print(json.dumps(numpy.mean(ps, axis=0)[:181].tolist()))`,
-    { x },
-  );
-}
-
-const maxRel = (a: ArrayLike<number>, b: ArrayLike<number>) => {
-  let m = 0;
-  for (let k = 1; k < b.length; k++) m = Math.max(m, Math.abs(a[k] - b[k]) / Math.abs(b[k]));
-  return m;
-};
 
 beforeAll(async () => {
   tmp = makeTmpDir('real-exports');
@@ -177,7 +158,7 @@ describe('a clinical-style EDF+ export (0.2-s records, 200 Hz) through ingest', 
       const stored = bundle.spectra.find((s) => s.channel === channel && s.reference === 'recorded' && s.stage === 'N2' && s.averaging === 'mean')!;
       expect(stored.nEpochs).toBe(epochs.length);
       // 16-bit storage: a digital step of 1000/65535 µV against an RMS of ≈ 37 µV (see derivations.test.ts)
-      expect(maxRel(stored.power, scipyStageMean(planted[k], epochs))).toBeLessThan(2e-3);
+      expect(maxRel(stored.power, scipyStageMean(planted[k], FS, epochs))).toBeLessThan(2e-3);
     }
   });
 });
