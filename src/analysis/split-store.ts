@@ -8,7 +8,7 @@ import type { Store } from '../../ingest/store/index.ts';
 import { appendColumns } from '../../ingest/store/chunks.ts';
 import { CONFIRMATION_TABLES, createTableSql, type TableDef } from '../../ingest/store/schema.ts';
 import type { Part } from '../core/confirmation/split.ts';
-import type { SplitStamp } from '../core/confirmation/stamp.ts';
+import { splitOfRows, type SplitRow, type SplitStamp } from '../core/confirmation/stamp.ts';
 import type { PlanContent, StoredPlan } from '../core/confirmation/plan.ts';
 
 export interface StoredSplit {
@@ -51,23 +51,9 @@ export async function ensureSplitTables(store: Store): Promise<void> {
 }
 
 function splitOf(list: Record<string, unknown>[]): StoredSplit {
-  const first = list[0];
-  const parts = new Map(list.map((r) => [String(r.subject), String(r.part) as Part]));
-  const count = (p: Part) => [...parts.values()].filter((x) => x === p).length;
-  return {
-    stamp: {
-      id: String(first.split_id),
-      madeAt: iso(first.made_at),
-      seed: Number(first.seed),
-      fraction: Number(first.fraction),
-      stratify: JSON.parse(String(first.stratify)) as string[],
-      blindColumn: first.blind_column === null ? null : String(first.blind_column),
-      subjects: { exploration: count('exploration'), confirmation: count('confirmation') },
-    },
-    parts,
-    codes: first.group_codes === null ? null : (JSON.parse(String(first.group_codes)) as Record<string, string>),
-    replacedAt: first.replaced_at === null ? null : iso(first.replaced_at),
-  };
+  const { stamp, parts, codes } = splitOfRows(list.map((r) => ({ ...r, made_at: iso(r.made_at) }) as SplitRow));
+  const replaced = list[0].replaced_at;
+  return { stamp, parts, codes, replacedAt: replaced === null ? null : iso(replaced) };
 }
 
 /** Every split made on the database, oldest first (the current one last, not replaced). */

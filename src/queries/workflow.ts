@@ -7,7 +7,7 @@ import type { Contrast } from '../core/contrast/spec.ts';
 import type { PartView } from '../core/confirmation/part-data.ts';
 import type { PlanContent } from '../core/confirmation/plan.ts';
 import type { Part } from '../core/confirmation/split.ts';
-import type { SplitStamp } from '../core/confirmation/stamp.ts';
+import { splitOfRows, type SplitRow, type SplitStamp } from '../core/confirmation/stamp.ts';
 import { COHORT, rowsOf, type SqlClient } from './client.ts';
 import type { CohortSchema } from './schema.ts';
 
@@ -66,19 +66,7 @@ export async function readWorkflow(db: SqlClient, schema: CohortSchema): Promise
   });
   const earlierSplits = Number(earlier[0]?.n ?? 0);
   if (splitRows.length === 0) return { ...NO_WORKFLOW, earlierSplits, plans };
-  const first = splitRows[0];
-  const parts = new Map(splitRows.map((r) => [String(r.subject), String(r.part) as Part]));
-  const count = (p: Part) => [...parts.values()].filter((x) => x === p).length;
-  const split: SplitStamp = {
-    id: String(first.split_id),
-    madeAt: String(first.made_at),
-    seed: Number(first.seed),
-    fraction: Number(first.fraction),
-    stratify: JSON.parse(String(first.stratify)) as string[],
-    blindColumn: first.blind_column === null ? null : String(first.blind_column),
-    subjects: { exploration: count('exploration'), confirmation: count('confirmation') },
-  };
-  const codes = first.group_codes === null ? null : (JSON.parse(String(first.group_codes)) as Record<string, string>);
+  const { stamp: split, parts, codes } = splitOfRows(splitRows.map((r) => ({ ...r, made_at: String(r.made_at) }) as SplitRow));
   const view: PartView = {
     split,
     part: 'exploration',

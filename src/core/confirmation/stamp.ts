@@ -59,3 +59,34 @@ export interface PartFields {
   blinded?: boolean;
   plan?: PlanStamp;
 }
+
+/** One stored row of a split (table subject_split), times as ISO text. */
+export interface SplitRow {
+  split_id: unknown;
+  subject: unknown;
+  part: unknown;
+  seed: unknown;
+  fraction: unknown;
+  stratify: unknown;
+  blind_column: unknown;
+  group_codes: unknown;
+  made_at: string;
+}
+
+/** The split the rows of one split_id describe: its stamp, each subject's part and the blinding codes (null when not blinded). */
+export function splitOfRows(rows: SplitRow[]): { stamp: SplitStamp; parts: Map<string, Part>; codes: Record<string, string> | null } {
+  const first = rows[0];
+  const parts = new Map(rows.map((r) => [String(r.subject), String(r.part) as Part]));
+  const count = (p: Part) => [...parts.values()].filter((x) => x === p).length;
+  const stamp: SplitStamp = {
+    id: String(first.split_id),
+    madeAt: first.made_at,
+    seed: Number(first.seed),
+    fraction: Number(first.fraction),
+    stratify: JSON.parse(String(first.stratify)) as string[],
+    blindColumn: first.blind_column === null ? null : String(first.blind_column),
+    subjects: { exploration: count('exploration'), confirmation: count('confirmation') },
+  };
+  const codes = first.group_codes === null ? null : (JSON.parse(String(first.group_codes)) as Record<string, string>);
+  return { stamp, parts, codes };
+}

@@ -20,7 +20,6 @@ import { OneSampleT } from './one-sample-t.ts';
 import { CorrelationT } from './correlation-t.ts';
 import { LinearModelT } from './linear-model-t.ts';
 import { TwoGroupTMissing } from './two-group-t-missing.ts';
-import { OneSampleTMissing } from './one-sample-t-missing.ts';
 import { countValues, minimumText, type MissingSummary } from './missing.ts';
 import { makeScheme } from './relabelling.ts';
 import { pointGraphEdges } from './point-graph.ts';
@@ -28,7 +27,6 @@ import { ClusterWork, findClusters, type Cluster } from './clusters.ts';
 import { TFCE_DEFAULTS, TfceWork, tfceScores, type TfceParameters } from './tfce.ts';
 import { twoTailedCriticalT, twoTailedP } from './distributions.ts';
 import { correlationEffect, hedgesGOneSample, hedgesGTwoGroups, type EffectSize } from './effect-size.ts';
-import { hedgesGOneSampleMissing, hedgesGTwoGroupsMissing } from './effect-size-missing.ts';
 import { permutationP, runPermutations, type NullMaxima, type PermutationTest, type ProgressCallback } from './permutation-engine.ts';
 import { delaunayNeighbours } from '../montage/adjacency.ts';
 
@@ -200,7 +198,7 @@ function buildKernel(
 function oneSampleKernel(d: Float64Array, n: number, P: number, anyMissing: boolean): { kernel: PointStatistic; missing: MissingSummary | null } {
   if (!anyMissing) return { kernel: new OneSampleT(d, n, P), missing: null };
   const missing = countValues(d, n, P, null);
-  return { kernel: new OneSampleTMissing(d, n, P, missing.keep), missing };
+  return { kernel: new OneSampleT(d, n, P, missing.keep), missing };
 }
 
 function tfceParameters(option: PermutationTestOptions['tfce']): TfceParameters | null {
@@ -251,9 +249,9 @@ export function preparePermutationTest(input: PermutationTestInput, options: Per
     const r = stat.map((t) => t / Math.sqrt(t * t + kernel.df));
     effect = correlationEffect('partial-r', r, Float64Array.from(kernel.beta), n, n - 2 - kernel.df, level); // n − 2 − df = number of nuisance covariates
   } else if (labels) {
-    effect = missing ? hedgesGTwoGroupsMissing(input.data, n, P, labels, level) : hedgesGTwoGroups(input.data, n, P, labels, level);
+    effect = hedgesGTwoGroups(input.data, n, P, labels, level);
   } else {
-    effect = missing ? hedgesGOneSampleMissing(d!, n, P, level) : hedgesGOneSample(d!, n, P, level);
+    effect = hedgesGOneSample(d!, n, P, level);
   }
   if (missing) {
     // points left out: no statistic, p or effect (stat stays 0 for the clusters; reported as null)
