@@ -6,7 +6,7 @@
  */
 import { mkdir, readFile, writeFile } from 'node:fs/promises';
 import path from 'node:path';
-import { listSubjects, MODEL_TEXT, NightGenerator, planNight, type CohortTruth, type NightPlan, type Scenario } from '../core/simulate/index.ts';
+import { listSubjects, NightGenerator, planNight, truthOf, type NightPlan, type Scenario } from '../core/simulate/index.ts';
 import { EdfWriter, type EdfWriteSpec } from './edf-writer.ts';
 import { parseScenario, ScenarioFileError } from './scenario-schema.ts';
 
@@ -114,16 +114,7 @@ export async function writeSimulatedCohort(
   await mkdir(outDir, { recursive: true });
   const subjects = listSubjects(scenario);
   const recordings: string[] = [];
-  const truth: CohortTruth = {
-    scenario: scenario.name,
-    description: scenario.description,
-    seed: scenario.seed,
-    model: MODEL_TEXT,
-    channels: [...scenario.channels],
-    reference: { ...scenario.reference },
-    effects: scenario.effects,
-    subjects: [],
-  };
+  const truth = truthOf(scenario, []);
   for (const s of subjects) {
     const plan = planNight(scenario, s.index);
     const file = path.join(outDir, recordingName(s.code));

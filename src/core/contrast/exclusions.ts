@@ -52,3 +52,14 @@ export function withExclusions(c: Contrast, more: readonly Exclusion[]): Contras
   }
   return added.length === 0 ? c : { ...c, exclusions: [...c.exclusions, ...added] };
 }
+
+/** The list without repeats (the same subject, channel, stage and reason given by several parts of one analysis), first occurrence kept. */
+export function uniqueExclusions(list: readonly Exclusion[]): Exclusion[] {
+  const seen = new Set<string>();
+  return list.filter((e) => {
+    const k = `${e.subject}\u0000${e.channel ?? ''}\u0000${e.stage ?? ''}\u0000${e.reason}`;
+    if (seen.has(k)) return false;
+    seen.add(k);
+    return true;
+  });
+}

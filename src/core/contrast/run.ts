@@ -20,19 +20,13 @@ import {
   type PermutationRange,
   type PreparedPermutationTest,
   type ProgressCallback,
+  type ClusterResult,
 } from '../stats/index.ts';
 
 export const RESEARCH_NOTE = 'bandwise is a research tool. Its results are not a diagnosis and must not be used for clinical decisions.';
 
-export interface CompareCluster {
-  sign: 1 | -1;
-  mass: number;
-  size: number;
-  p: number;
-  fminHz: number;
-  fmaxHz: number;
-  channels: string[];
-}
+/** A cluster as a compare result stores it: the permutation test's cluster without its point indices. */
+export type CompareCluster = Omit<ClusterResult, 'points'>;
 
 export interface CompareResult {
   kind: 'compare';

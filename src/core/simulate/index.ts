@@ -21,7 +21,7 @@ export { checkScenario } from './validate.ts';
 export { listSubjects, subjectCode, type SimulatedSubject } from './subjects.ts';
 export { planNight, isMovementEpoch, type NightPlan, type PlannedRhythm, type PlannedSource } from './plan.ts';
 export { NightGenerator, generateEpoch } from './generate.ts';
-export { groundTruth, MODEL_TEXT, type CohortTruth } from './ground-truth.ts';
+export { groundTruth, truthOf, type CohortTruth } from './ground-truth.ts';
 export {
   backgroundDensity,
   backgroundWeight,

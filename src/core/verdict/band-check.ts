@@ -5,6 +5,7 @@
  * verdict follows the rules in rules.ts. Pure: the caller provides the rows (ContrastData) and
  * the aperiodic fit range stored with them.
  */
+import { uniqueExclusions } from '../contrast/exclusions.ts';
 import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData, Exclusion } from '../contrast/data.ts';
 import { compare, RESEARCH_NOTE, type CompareCluster } from '../contrast/run.ts';
@@ -344,7 +345,7 @@ export function bandCheck(contrastBase: Contrast, band: Band, data: ContrastData
     alpha,
   );
 
-  const exclusions = uniqueBySubject([...Object.values(tests).flatMap((x) => x?.excluded ?? []), ...fw.exclusions]);
+  const exclusions = uniqueExclusions([...Object.values(tests).flatMap((x) => x?.excluded ?? []), ...fw.exclusions]);
   const figure = bandCheckFigure(c, data, band, flanks, options.fitRangeHz, fw.statistics as PermutationTestResult, peaks.summary.means);
   return {
     kind: 'band-check',
@@ -422,16 +423,6 @@ function individualSetup(
 function channelsOf(pseudo: string, c: Contrast): string[] {
   const m = /^mean\((.*)\)$/.exec(pseudo);
   return m ? m[1].split(',') : c.channels === 'all' ? [pseudo] : [...c.channels];
-}
-
-function uniqueBySubject(list: Exclusion[]): Exclusion[] {
-  const seen = new Set<string>();
-  return list.filter((e) => {
-    const k = `${e.subject}\u0000${e.channel ?? ''}\u0000${e.reason}`;
-    if (seen.has(k)) return false;
-    seen.add(k);
-    return true;
-  });
 }
 
 function peakPresence(v: ScalarValues | undefined): Record<string, number> {

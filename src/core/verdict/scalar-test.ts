@@ -12,6 +12,7 @@
  * level in the band, the difference of two flanks) reduce or combine assembled rows of the same
  * subjects.
  */
+import { uniqueExclusions } from '../contrast/exclusions.ts';
 import type { Contrast } from '../contrast/spec.ts';
 import type { ContrastData, Exclusion } from '../contrast/data.ts';
 import { assembleContrast, type AssembledContrast, type BandResolver, type Participation } from '../contrast/assemble.ts';
@@ -141,16 +142,6 @@ export const rowMean = (r: Float64Array): number => {
   for (let i = 0; i < r.length; i++) s += r[i];
   return s / r.length;
 };
-
-function uniqueExclusions(list: Exclusion[]): Exclusion[] {
-  const seen = new Set<string>();
-  return list.filter((e) => {
-    const k = `${e.subject}\u0000${e.channel ?? ''}\u0000${e.reason}`;
-    if (seen.has(k)) return false;
-    seen.add(k);
-    return true;
-  });
-}
 
 /** The design restricted to the given rows of the assembled design (same order). */
 function subsetDesign(design: Design, rows: number[], second: Float64Array | null): Design {
