@@ -13,6 +13,8 @@ import { AnalysisForm } from '../../src/dashboard/analysis/analysis-form.svelte.
 import { AnalysisRun, type Progress } from '../../src/dashboard/analysis/analysis-run.svelte.ts';
 import BandFields from '../../src/dashboard/analysis/BandFields.svelte';
 import DesignFields from '../../src/dashboard/analysis/DesignFields.svelte';
+import FrequencyRangeField from '../../src/dashboard/analysis/FrequencyRangeField.svelte';
+import MeasureField from '../../src/dashboard/analysis/MeasureField.svelte';
 import NuisanceFields from '../../src/dashboard/analysis/NuisanceFields.svelte';
 import { contrastFromParams } from '../../src/dashboard/analysis/contrast-params.ts';
 import type { FormChoices } from '../../src/dashboard/analysis/form-choices.ts';
@@ -167,6 +169,24 @@ describe('BandFields', () => {
     await fireEvent.change(field('bc-band-preset'), { target: { value: 'alpha' } });
     expect(params().band).toBe('alpha:8-12');
     expect(screen.queryByTestId('bc-band-error')).toBeNull();
+  });
+});
+
+describe('FrequencyRangeField and MeasureField', () => {
+  it('show the command line’s frequency range and measure, and write what is picked into the contrast', async () => {
+    const form = formAt('#/contrast?design=groups&groups=control,patient');
+    render(FrequencyRangeField, { form, testPrefix: 'c' });
+    render(MeasureField, { form, measures: ['log-psd', 'residual', 'offset'], testPrefix: 'c' });
+    expect(Number(field('c-fmin').value)).toBe(CLI.fminHz);
+    expect(Number(field('c-fmax').value)).toBe(CLI.fmaxHz);
+    expect(field('c-measure').value).toBe(CLI.measure);
+    expect([...(field('c-measure') as HTMLSelectElement).options].map((o) => o.value)).toEqual(['log-psd', 'residual', 'offset']);
+    await fireEvent.change(field('c-fmin'), { target: { value: '0.5' } });
+    await fireEvent.change(field('c-fmax'), { target: { value: '20' } });
+    await fireEvent.change(field('c-measure'), { target: { value: 'residual' } });
+    expect(params()).toMatchObject({ fminHz: '0.5', fmaxHz: '20', measure: 'residual' });
+    const c = contrastFromParams(params());
+    expect([c.fminHz, c.fmaxHz, c.measure]).toEqual([0.5, 20, 'residual']);
   });
 });
 
