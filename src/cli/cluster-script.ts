@@ -6,20 +6,10 @@
 import path from 'node:path';
 import { Command, InvalidArgumentError } from 'commander';
 import { EXIT_OUTPUT_REFUSED, OutputClashError } from '../files/output-files.ts';
+import type { ClusterScriptOptions } from '../cluster/slurm-script.ts';
 
-interface Flags {
-  out: string;
-  shards: number;
-  scriptDir?: string;
-  shardDir?: string;
-  logDir?: string;
-  partition?: string;
-  cpus?: number;
-  mem?: string;
-  time?: string;
-  jobName?: string;
-  bandwise?: string;
-}
+/** The command's options: the scripts' own, with the folder of the scripts and how a task starts bandwise. */
+type Flags = Omit<ClusterScriptOptions, 'cohort' | 'command' | 'ingestOptions'> & { scriptDir?: string; bandwise?: string };
 
 const whole = (name: string) => (v: string) => {
   const x = Number(v);
