@@ -148,13 +148,17 @@ async function appendBatch(
   const rec = (i: number) => recs[Math.floor(i / (nc * ns))];
   const cs = (i: number) => i % (nc * ns);
   const views = recs.map((r) => Array.from({ length: nc * ns }, (_, j) => r.power.subarray(j * nb, (j + 1) * nb)));
-  await appendColumns(c, tableDef('spectra'), rows, {
-    recording_id: (i) => ids[Math.floor(i / (nc * ns))],
-    channel: (i) => spec.channels[Math.floor(cs(i) / ns)],
-    stage: (i) => spec.stages[cs(i) % ns],
+  // the key columns of spectra and aperiodic: recording, channel, stage, reference, averaging, estimator
+  const key = {
+    recording_id: (i: number) => ids[Math.floor(i / (nc * ns))],
+    channel: (i: number) => spec.channels[Math.floor(cs(i) / ns)],
+    stage: (i: number) => spec.stages[cs(i) % ns],
     reference: () => 'recorded',
     averaging: () => 'mean',
     estimator: () => 'welch',
+  };
+  await appendColumns(c, tableDef('spectra'), rows, {
+    ...key,
     n_epochs: (i) => rec(i).nEpochs[cs(i) % ns],
     n_segments: (i) => spec.segmentsPerEpoch * rec(i).nEpochs[cs(i) % ns],
     freq_start_hz: () => spec.freqStartHz,
@@ -165,12 +169,7 @@ async function appendBatch(
     flag_reason: () => null,
   });
   await appendColumns(c, tableDef('aperiodic'), rows, {
-    recording_id: (i) => ids[Math.floor(i / (nc * ns))],
-    channel: (i) => spec.channels[Math.floor(cs(i) / ns)],
-    stage: (i) => spec.stages[cs(i) % ns],
-    reference: () => 'recorded',
-    averaging: () => 'mean',
-    estimator: () => 'welch',
+    ...key,
     method: () => 'simulated',
     fit_lo_hz: () => 1,
     fit_hi_hz: () => 40,
